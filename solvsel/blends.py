@@ -112,48 +112,48 @@ class FractionBatch:
         }
 
 
-def _solve_gram(G: np.ndarray, b: np.ndarray):
+def _solve_gram(G, b):
     """Solve ``G z = b`` for a batch of symmetric PSD matrices of size 0..3.
 
-    Closed form (Cramer / adjugate), so no batch can fail as a whole on one
-    singular matrix.  Returns ``z`` and a mask of well-conditioned rows: the
-    determinant relative to the product of the diagonal (the squared volume
-    of the simplex relative to its edges) above ``_DET_TOL``.
+    ``G[i][j]`` and ``b[i]`` are 1-D arrays over the batch (coordinate-major,
+    so every operation is a contiguous vector operation).  Closed form
+    (Cramer / adjugate), so no batch fails as a whole on one singular matrix.
+    Returns the list of ``z[i]`` and a mask of well-conditioned rows: the
+    determinant relative to the product of the diagonal (the squared volume of
+    the face's simplex relative to its edges) above ``_DET_TOL``.
     """
-    n, m = b.shape
+    m = len(b)
     if m == 0:
-        return np.zeros((n, 0)), np.ones(n, dtype=bool)
-    diag_prod = np.prod(np.diagonal(G, axis1=1, axis2=2), axis=1)
+        return [], None
     if m == 1:
-        det = G[:, 0, 0]
+        det = G[0][0]
         ok = det > 0
-        with np.errstate(divide="ignore", invalid="ignore"):
-            z = b / np.where(ok, det, 1.0)[:, None]
-        return z, ok
+        return [b[0] / np.where(ok, det, 1.0)], ok
+    diag_prod = G[0][0] * G[1][1]
     if m == 2:
-        a, c, d = G[:, 0, 0], G[:, 0, 1], G[:, 1, 1]
+        a, c, d = G[0][0], G[0][1], G[1][1]
         det = a * d - c * c
         ok = (diag_prod > 0) & (det > _DET_TOL * diag_prod)
         inv = 1.0 / np.where(ok, det, 1.0)
-        z0 = (d * b[:, 0] - c * b[:, 1]) * inv
-        z1 = (a * b[:, 1] - c * b[:, 0]) * inv
-        return np.stack([z0, z1], axis=1), ok
+        return [(d * b[0] - c * b[1]) * inv, (a * b[1] - c * b[0]) * inv], ok
     if m == 3:
         g = G
-        c00 = g[:, 1, 1] * g[:, 2, 2] - g[:, 1, 2] * g[:, 2, 1]
-        c01 = g[:, 1, 2] * g[:, 2, 0] - g[:, 1, 0] * g[:, 2, 2]
-        c02 = g[:, 1, 0] * g[:, 2, 1] - g[:, 1, 1] * g[:, 2, 0]
-        c11 = g[:, 0, 0] * g[:, 2, 2] - g[:, 0, 2] * g[:, 2, 0]
-        c12 = g[:, 0, 1] * g[:, 2, 0] - g[:, 0, 0] * g[:, 2, 1]
-        c22 = g[:, 0, 0] * g[:, 1, 1] - g[:, 0, 1] * g[:, 1, 0]
-        det = g[:, 0, 0] * c00 + g[:, 0, 1] * c01 + g[:, 0, 2] * c02
+        diag_prod = diag_prod * g[2][2]
+        c00 = g[1][1] * g[2][2] - g[1][2] * g[1][2]
+        c01 = g[1][2] * g[0][2] - g[0][1] * g[2][2]
+        c02 = g[0][1] * g[1][2] - g[1][1] * g[0][2]
+        c11 = g[0][0] * g[2][2] - g[0][2] * g[0][2]
+        c12 = g[0][1] * g[0][2] - g[0][0] * g[1][2]
+        c22 = g[0][0] * g[1][1] - g[0][1] * g[0][1]
+        det = g[0][0] * c00 + g[0][1] * c01 + g[0][2] * c02
         ok = (diag_prod > 0) & (det > _DET_TOL * diag_prod)
         inv = 1.0 / np.where(ok, det, 1.0)
         # G is symmetric, so its adjugate is the (symmetric) cofactor matrix
-        z0 = (c00 * b[:, 0] + c01 * b[:, 1] + c02 * b[:, 2]) * inv
-        z1 = (c01 * b[:, 0] + c11 * b[:, 1] + c12 * b[:, 2]) * inv
-        z2 = (c02 * b[:, 0] + c12 * b[:, 1] + c22 * b[:, 2]) * inv
-        return np.stack([z0, z1, z2], axis=1), ok
+        return [
+            (c00 * b[0] + c01 * b[1] + c02 * b[2]) * inv,
+            (c01 * b[0] + c11 * b[1] + c12 * b[2]) * inv,
+            (c02 * b[0] + c12 * b[1] + c22 * b[2]) * inv,
+        ], ok
     raise InputError(f"at most {MAX_COMPONENTS} components per blend, got {m + 1}")
 
 
@@ -237,56 +237,77 @@ def best_fractions(hsp, target, lower=None, upper=None) -> FractionBatch:
     if np.any(lo < -_FEAS_TOL) or np.any(hi > 1 + _FEAS_TOL) or np.any(lo > hi + _FEAS_TOL):
         raise InputError("fraction bounds must satisfy 0 <= lower <= upper <= 1")
 
-    # Scaled coordinates centred on the target: the objective is |y|^2.
+    # Scaled coordinates centred on the target (the objective is |y|^2), laid
+    # out coordinate-major: Qc[i][c] is coordinate c of liquid i over the batch.
     Q = (P - T[:, None, :]) * SCALE
-    # Tighten bounds by the simplex: x_i <= 1 - sum_{j!=i} lo_j, x_i >= 1 - sum_{j!=i} hi_j.
+    Qc = np.ascontiguousarray(Q.transpose(1, 2, 0))
+    loc = np.ascontiguousarray(lo.T)
+    hic = np.ascontiguousarray(hi.T)
+    # Tighten bounds by the simplex: x_i <= 1 - sum_{j!=i} lo_j.
     hi_eff = np.minimum(hi, 1.0 - (lo.sum(1, keepdims=True) - lo))
-    lo_eff = np.maximum(lo, 1.0 - (hi.sum(1, keepdims=True) - hi))
     feasible = (lo.sum(1) <= 1 + _FEAS_TOL) & (hi.sum(1) >= 1 - _FEAS_TOL)
     # A fraction needs an "at upper bound" state only where that bound binds.
-    upper_binds = hi_eff < 1.0 - _FEAS_TOL
-    with_upper = bool(np.any(upper_binds & feasible[:, None]))
+    upper_binds = (hi_eff < 1.0 - _FEAS_TOL) & feasible[:, None]
+    with_upper = bool(np.any(upper_binds))
+    all_feasible = bool(np.all(feasible))
+    rows_feasible = np.flatnonzero(feasible)
 
     best_obj = np.full(n, np.inf)
-    best_x = np.full((n, k), np.nan)
+    best_x = np.full((k, n), np.nan)
     best_free = np.zeros(n, dtype=int)
-    rows_all = np.flatnonzero(feasible)
     for pat in _patterns(k, with_upper):
-        free = [i for i, s in enumerate(pat) if s == 0]
-        at_hi = [i for i, s in enumerate(pat) if s == 2]
-        rows = rows_all
+        free = [i for i, st in enumerate(pat) if st == 0]
+        fixed = [i for i, st in enumerate(pat) if st != 0]
+        at_hi = [i for i, st in enumerate(pat) if st == 2]
         if at_hi:
-            rows = rows[np.all(upper_binds[rows][:, at_hi], axis=1)]
-        if rows.size == 0:
+            rows = rows_feasible[np.all(upper_binds[rows_feasible][:, at_hi], axis=1)]
+        elif all_feasible:
+            rows = None  # every row: no copies
+        else:
+            rows = rows_feasible
+        if rows is not None and rows.size == 0:
             continue
-        q = Q[rows]
-        x = np.empty((rows.size, k))
-        fixed = [i for i, s in enumerate(pat) if s != 0]
+        if rows is None:
+            q, lo_r, hi_r = Qc, loc, hic
+        else:
+            q, lo_r, hi_r = Qc[:, :, rows], loc[:, rows], hic[:, rows]
+        x = [None] * k
         for i in fixed:
-            x[:, i] = hi[rows, i] if pat[i] == 2 else lo[rows, i]
-        s = 1.0 - x[:, fixed].sum(1) if fixed else np.ones(rows.size)
-        y0 = np.einsum("nj,njc->nc", x[:, fixed], q[:, fixed, :]) if fixed else np.zeros((rows.size, 3))
+            x[i] = hi_r[i] if pat[i] == 2 else lo_r[i]
+        s = 1.0 - sum(x[i] for i in fixed) if fixed else 1.0
+        y = [sum(x[i] * q[i][c] for i in fixed) if fixed else 0.0 for c in range(3)]
         if free:
             f0 = free[0]
-            E = q[:, free[1:], :] - q[:, f0 : f0 + 1, :]  # (m, f-1, 3)
-            base = y0 + s[:, None] * q[:, f0, :]
-            G = np.einsum("nic,njc->nij", E, E)
-            b = -np.einsum("nic,nc->ni", E, base)
-            z, ok = _solve_gram(G, b)
-            x[:, free[1:]] = z
-            x[:, f0] = s - z.sum(1)
-            y = base + np.einsum("ni,nic->nc", z, E)
+            y = [y[c] + s * q[f0][c] for c in range(3)]
+            E = [[q[j][c] - q[f0][c] for c in range(3)] for j in free[1:]]
+            G = [[E[a][0] * E[b][0] + E[a][1] * E[b][1] + E[a][2] * E[b][2]
+                  for b in range(len(E))] for a in range(len(E))]
+            rhs = [-(E[a][0] * y[0] + E[a][1] * y[1] + E[a][2] * y[2]) for a in range(len(E))]
+            z, ok = _solve_gram(G, rhs)
+            x[f0] = s - sum(z) if z else s + 0.0 * q[f0][0]
+            for j, zj in zip(free[1:], z):
+                x[j] = zj
+            for zj, Ej in zip(z, E):
+                y = [y[c] + zj * Ej[c] for c in range(3)]
+            if ok is None:
+                ok = np.ones(q.shape[2], dtype=bool)
         else:
             ok = np.abs(s) <= _FEAS_TOL
-            y = y0
-        ok &= np.all(x >= lo[rows] - _FEAS_TOL, axis=1) & np.all(x <= hi[rows] + _FEAS_TOL, axis=1)
-        obj = np.einsum("nc,nc->n", y, y)
-        better = ok & (obj < best_obj[rows] - _TIE_TOL)
-        if np.any(better):
+        for i in free:
+            ok &= (x[i] >= lo_r[i] - _FEAS_TOL) & (x[i] <= hi_r[i] + _FEAS_TOL)
+        obj = y[0] * y[0] + y[1] * y[1] + y[2] * y[2]
+        if rows is None:
+            better = ok & (obj < best_obj - _TIE_TOL)
+            r = better
+        else:
+            better = ok & (obj < best_obj[rows] - _TIE_TOL)
             r = rows[better]
+        if np.any(better):
             best_obj[r] = obj[better]
-            best_x[r] = x[better]
+            for i in range(k):
+                best_x[i][r] = x[i][better]
             best_free[r] = len(free)
+    best_x = best_x.T
 
     found = np.isfinite(best_obj)
     best_x = np.where(found[:, None], np.clip(best_x, lo, hi), np.nan)
