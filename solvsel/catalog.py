@@ -1,0 +1,756 @@
+"""Load and validate the bundled tables (and a user's own overlay) into typed records.
+
+Every table in ``tables/`` is declared column by column in
+``tables/schema.csv`` (type, required, unique, range, choices) and every
+source id must resolve in ``tables/sources.csv``.  A malformed table fails
+with a :class:`~solvsel.errors.TableError` naming the file, the row (the
+header is row 1, as in a spreadsheet) and the column, and what was expected.
+
+Names are matched forgivingly (case, spacing, dashes, synonyms, CAS); an
+unknown name raises :class:`~solvsel.errors.UnknownNameError` with the closest
+known names.  A substance outside the tables can be looked up in the reference
+library ``chemicals`` (its published HSP data sets MANUEL_RUBEN_2022,
+ALSHERI_HANSEN and WDR_SCHRIER only), and is then marked as coming from there.
+"""
+
+from __future__ import annotations
+
+import csv
+import difflib
+import math
+import re
+import unicodedata
+from dataclasses import dataclass, field, fields
+from functools import lru_cache
+from pathlib import Path
+from typing import Any, Iterable, Mapping, Sequence
+
+import numpy as np
+
+from .errors import InputError, TableError, UnknownNameError
+
+__all__ = [
+    "TABLES_DIR",
+    "SOURCE_KINDS",
+    "Catalog",
+    "Solvent",
+    "Solute",
+    "load_catalog",
+    "normalize_name",
+    "check_cas",
+]
+
+
+def _find_tables_dir() -> Path:
+    here = Path(__file__).resolve().parent
+    for candidate in (here / "tables", here.parent / "tables"):  # installed wheel, then checkout
+        if (candidate / "sources.csv").is_file():
+            return candidate
+    raise FileNotFoundError(f"solvsel: no tables/ folder found next to {here}")
+
+
+TABLES_DIR = _find_tables_dir()
+
+#: Provenance kinds a source may have.
+SOURCE_KINDS = ("published", "regulation", "handbook", "library", "memory", "demo", "derived")
+
+#: Published HSP data sets of the chemicals library that solvsel uses, in order of preference.
+LIBRARY_HSP_DATASETS = {
+    "MANUEL_RUBEN_2022": "hsp_mr2022",
+    "WDR_SCHRIER": "hsp_schrier2020",
+    "ALSHERI_HANSEN": "hsp_alshehri2022",
+}
+
+_TYPES = ("text", "number", "integer", "cas", "choice", "list", "sources")
+
+
+# ----------------------------------------------------------------------------- names
+
+
+def normalize_name(name: str) -> str:
+    """Key used to match names: case-folded, accents and dash variants unified, single spaces.
+
+    >>> normalize_name("  Propylene   Glycol ")
+    'propylene glycol'
+    >>> normalize_name("N,N-Dimethylformamide") == normalize_name("n,n–dimethylformamide")
+    True
+    """
+    s = unicodedata.normalize("NFKC", str(name)).casefold().strip()
+    s = re.sub("[\u2010-\u2015\u2212]", "-", s)
+    s = s.replace("\u2019", "'")
+    s = re.sub(r"\s+", " ", s)
+    return s
+
+
+_CAS_RE = re.compile(r"^(\d{2,7})-(\d{2})-(\d)$")
+
+
+def check_cas(cas: str) -> bool:
+    """True if ``cas`` is a well-formed CAS number with a valid check digit.
+
+    >>> check_cas("64-17-5"), check_cas("64-17-4")
+    (True, False)
+    """
+    m = _CAS_RE.match(cas.strip())
+    if not m:
+        return False
+    digits = (m.group(1) + m.group(2))[::-1]
+    return sum((i + 1) * int(d) for i, d in enumerate(digits)) % 10 == int(m.group(3))
+
+
+# ----------------------------------------------------------------------------- schema
+
+
+@dataclass(frozen=True)
+class ColumnSpec:
+    table: str
+    column: str
+    type: str
+    required: bool
+    unique: bool
+    min: float | None
+    max: float | None
+    choices: tuple[str, ...]
+    description: str
+
+
+def _read_csv_rows(path: Path) -> tuple[list[str], list[list[str]]]:
+    try:
+        with path.open(encoding="utf-8-sig", newline="") as fh:
+            rows = list(csv.reader(fh))
+    except UnicodeDecodeError as exc:
+        raise TableError(path, f"not UTF-8 text ({exc.reason} at byte {exc.start})") from None
+    except OSError as exc:
+        raise TableError(path, f"cannot be read: {exc.strerror}") from None
+    if not rows:
+        raise TableError(path, "is empty: expected a header row")
+    header = [h.strip() for h in rows[0]]
+    return header, rows[1:]
+
+
+@lru_cache(maxsize=4)
+def _load_schema(tables_dir: Path) -> dict[str, list[ColumnSpec]]:
+    path = tables_dir / "schema.csv"
+    header, rows = _read_csv_rows(path)
+    want = ["table", "column", "type", "required", "unique", "min", "max", "choices", "description"]
+    if header != want:
+        raise TableError(path, f"header must be {','.join(want)}", row=1)
+    out: dict[str, list[ColumnSpec]] = {}
+    for i, r in enumerate(rows, start=2):
+        if not any(c.strip() for c in r):
+            continue
+        if len(r) != len(want):
+            raise TableError(path, f"expected {len(want)} fields, found {len(r)}", row=i)
+        d = dict(zip(want, (c.strip() for c in r)))
+        if d["type"] not in _TYPES:
+            raise TableError(path, f"type must be one of {', '.join(_TYPES)}, got '{d['type']}'", row=i, column="type")
+        spec = ColumnSpec(
+            table=d["table"],
+            column=d["column"],
+            type=d["type"],
+            required=d["required"] == "yes",
+            unique=d["unique"] == "yes",
+            min=float(d["min"]) if d["min"] else None,
+            max=float(d["max"]) if d["max"] else None,
+            choices=tuple(c.strip() for c in d["choices"].split("|")) if d["choices"] else (),
+            description=d["description"],
+        )
+        cols = out.setdefault(spec.table, [])
+        if any(c.column == spec.column for c in cols):
+            raise TableError(path, f"column '{spec.column}' of table '{spec.table}' declared twice", row=i)
+        cols.append(spec)
+    return out
+
+
+@lru_cache(maxsize=4)
+def _load_sources(tables_dir: Path):
+    import pandas as pd
+
+    path = tables_dir / "sources.csv"
+    header, rows = _read_csv_rows(path)
+    want = ["id", "kind", "citation", "url"]
+    if header != want:
+        raise TableError(path, f"header must be {','.join(want)}", row=1)
+    seen: dict[str, int] = {}
+    records = []
+    for i, r in enumerate(rows, start=2):
+        if not any(c.strip() for c in r):
+            continue
+        if len(r) != 4:
+            raise TableError(path, f"expected 4 fields (id,kind,citation,url), found {len(r)}", row=i)
+        sid, kind, citation, url = (c.strip() for c in r)
+        if not sid:
+            raise TableError(path, "empty source id", row=i, column="id")
+        if sid in seen:
+            raise TableError(path, f"duplicate source id '{sid}' (first at row {seen[sid]})", row=i, column="id")
+        if kind not in SOURCE_KINDS:
+            raise TableError(path, f"kind must be one of {', '.join(SOURCE_KINDS)}, got '{kind}'", row=i, column="kind")
+        if not citation:
+            raise TableError(path, "empty citation", row=i, column="citation")
+        seen[sid] = i
+        records.append({"id": sid, "kind": kind, "citation": citation, "url": url})
+    return pd.DataFrame.from_records(records, columns=want)
+
+
+def read_table(
+    path: Path | str,
+    table: str,
+    tables_dir: Path = TABLES_DIR,
+    user: bool = False,
+):
+    """Read and validate one CSV against its rows in ``schema.csv``.
+
+    Returns a pandas DataFrame: numbers as float (empty -> NaN), integers as
+    Int64, everything else as str ('' when empty).  ``user=True`` accepts
+    source texts that are not ids of ``sources.csv`` (a user's own data) and
+    does not require the source columns.
+    """
+    import pandas as pd
+
+    path = Path(path)
+    schema = _load_schema(tables_dir)
+    if table not in schema:
+        raise TableError(path, f"no columns declared for table '{table}' in {tables_dir / 'schema.csv'}")
+    specs = schema[table]
+    source_ids = set(_load_sources(tables_dir)["id"])
+    header, rows = _read_csv_rows(path)
+    known = {s.column for s in specs}
+    for s in specs:
+        if s.column not in header and (s.required and not (user and s.type == "sources")):
+            raise TableError(path, f"missing column '{s.column}' ({s.description})", row=1, column=s.column)
+    for h in header:
+        if h not in known:
+            raise TableError(
+                path, f"unknown column '{h}'; the columns of {table} are: {', '.join(sorted(known))}", row=1, column=h
+            )
+    if len(set(header)) != len(header):
+        dup = [h for h in header if header.count(h) > 1][0]
+        raise TableError(path, f"column '{dup}' appears twice", row=1, column=dup)
+    data: dict[str, list] = {s.column: [] for s in specs}
+    first_seen: dict[tuple[str, str], int] = {}
+    for i, raw in enumerate(rows, start=2):
+        if not any(c.strip() for c in raw):
+            continue
+        if len(raw) != len(header):
+            raise TableError(path, f"expected {len(header)} fields, found {len(raw)} (a comma inside an unquoted value?)", row=i)
+        rec = dict(zip(header, raw))
+        for s in specs:
+            raw_val = rec.get(s.column, "")
+            val = raw_val.strip()
+            if val != raw_val:
+                raise TableError(path, "value has leading or trailing spaces", row=i, column=s.column)
+            data[s.column].append(_convert(path, i, s, val, source_ids, user))
+            if s.unique and val != "":
+                key = (s.column, normalize_name(val))
+                if key in first_seen:
+                    raise TableError(
+                        path, f"duplicate value '{val}' (already at row {first_seen[key]})", row=i, column=s.column
+                    )
+                first_seen[key] = i
+    df = pd.DataFrame(data)
+    for s in specs:
+        if s.type == "integer":
+            df[s.column] = df[s.column].astype("Int64")
+        elif s.type == "number":
+            df[s.column] = df[s.column].astype(float)
+    return df
+
+
+def _convert(path, row, spec: ColumnSpec, val: str, source_ids: set, user: bool):
+    col = spec.column
+    if val == "":
+        if spec.required and not (user and spec.type == "sources"):
+            raise TableError(path, f"empty value; expected {_expected(spec)}", row=row, column=col)
+        return math.nan if spec.type in ("number", "integer") else ""
+    if spec.type in ("number", "integer"):
+        try:
+            x = float(val)
+        except ValueError:
+            raise TableError(path, f"'{val}' is not a number; expected {_expected(spec)}", row=row, column=col) from None
+        if not math.isfinite(x):
+            raise TableError(path, f"'{val}' is not a finite number", row=row, column=col)
+        if spec.type == "integer" and x != int(x):
+            raise TableError(path, f"'{val}' is not a whole number", row=row, column=col)
+        if (spec.min is not None and x < spec.min) or (spec.max is not None and x > spec.max):
+            raise TableError(path, f"{val} is out of range; expected {_expected(spec)}", row=row, column=col)
+        return x
+    if spec.type == "cas":
+        if not check_cas(val):
+            raise TableError(path, f"'{val}' is not a valid CAS number (format NNNNNNN-NN-N with its check digit)", row=row, column=col)
+        return val
+    if spec.type == "choice":
+        if val not in spec.choices:
+            raise TableError(path, f"'{val}' is not one of {', '.join(spec.choices)}", row=row, column=col)
+        return val
+    if spec.type == "list":
+        items = [v.strip() for v in val.split(";")]
+        if spec.choices:
+            bad = [v for v in items if v not in spec.choices]
+            if bad:
+                raise TableError(path, f"'{bad[0]}' is not one of {', '.join(spec.choices)}", row=row, column=col)
+        return ";".join(items)
+    if spec.type == "sources":
+        items = [v.strip() for v in val.split(";") if v.strip()]
+        if not user:
+            bad = [v for v in items if v not in source_ids]
+            if bad:
+                raise TableError(path, f"unknown source id '{bad[0]}' (not in sources.csv)", row=row, column=col)
+        return ";".join(items)
+    return val
+
+
+def _expected(spec: ColumnSpec) -> str:
+    if spec.type in ("number", "integer"):
+        lo = "" if spec.min is None else f"{spec.min:g} <= "
+        hi = "" if spec.max is None else f" <= {spec.max:g}"
+        return f"{'a whole number' if spec.type == 'integer' else 'a number'} {lo}{spec.column}{hi} ({spec.description})"
+    if spec.type == "choice":
+        return "one of " + ", ".join(spec.choices)
+    if spec.type == "sources":
+        return "source ids from sources.csv separated by ;"
+    if spec.type == "cas":
+        return "a CAS number"
+    return spec.description or spec.type
+
+
+# ----------------------------------------------------------------------------- records
+
+
+def _num(x) -> float | None:
+    if x is None:
+        return None
+    try:
+        x = float(x)
+    except (TypeError, ValueError):
+        return None
+    return None if math.isnan(x) else x
+
+
+def _tuple(s: str) -> tuple[str, ...]:
+    return tuple(v for v in (s or "").split(";") if v)
+
+
+@dataclass(frozen=True)
+class Solvent:
+    """A liquid of the solvents table (or of the user's overlay, or of the reference library).
+
+    Numbers are None where unknown; HSP in MPa^0.5 at 25 C.
+    """
+
+    name: str
+    cas: str
+    dD: float
+    dP: float
+    dH: float
+    vm_cm3_mol: float
+    synonyms: tuple[str, ...] = ()
+    roles: tuple[str, ...] = ()
+    mw_g_mol: float | None = None
+    density_g_cm3: float | None = None
+    bp_C: float | None = None
+    mp_C: float | None = None
+    flash_C: float | None = None
+    flammable: bool = True
+    visc_mPa_s: float | None = None
+    alpha_1_K: float | None = None
+    water_miscibility: str = ""
+    water_in_solvent_wt: float | None = None
+    solvent_in_water_wt: float | None = None
+    cost_class: int | None = None
+    hsp_source: str = ""
+    props_source: str = ""
+    note: str = ""
+    origin: str = "bundled"
+
+    @property
+    def hsp(self) -> np.ndarray:
+        return np.array([self.dD, self.dP, self.dH])
+
+    @property
+    def is_user(self) -> bool:
+        return self.origin.startswith("user")
+
+    @property
+    def sources(self) -> tuple[str, ...]:
+        return tuple(dict.fromkeys(_tuple(self.hsp_source) + _tuple(self.props_source)))
+
+    def to_dict(self) -> dict[str, Any]:
+        d = {f.name: getattr(self, f.name) for f in fields(self)}
+        d["sources"] = list(self.sources)
+        return d
+
+
+@dataclass(frozen=True)
+class Solute:
+    """A solute of the solutes table: flavour, active, or a co-extract to reject.
+
+    ``r0`` is None where no interaction radius is published.
+    """
+
+    name: str
+    cas: str
+    dD: float
+    dP: float
+    dH: float
+    r0: float | None = None
+    synonyms: tuple[str, ...] = ()
+    category: str = "other"
+    hsp_basis: str = "measured"
+    hsp_method: str = ""
+    mw_g_mol: float | None = None
+    mp_C: float | None = None
+    dHfus_kJ_mol: float | None = None
+    vm_cm3_mol: float | None = None
+    density_g_cm3: float | None = None
+    smiles: str = ""
+    hsp_source: str = ""
+    props_source: str = ""
+    note: str = ""
+    origin: str = "bundled"
+
+    @property
+    def hsp(self) -> np.ndarray:
+        return np.array([self.dD, self.dP, self.dH])
+
+    @property
+    def is_user(self) -> bool:
+        return self.origin.startswith("user")
+
+    @property
+    def sources(self) -> tuple[str, ...]:
+        return tuple(dict.fromkeys(_tuple(self.hsp_source) + _tuple(self.props_source)))
+
+    def to_dict(self) -> dict[str, Any]:
+        d = {f.name: getattr(self, f.name) for f in fields(self)}
+        d["sources"] = list(self.sources)
+        return d
+
+
+def _solvent_from_row(r: Mapping[str, Any]) -> Solvent:
+    cost = r.get("cost_class")
+    return Solvent(
+        name=r["name"],
+        cas=r.get("cas", "") or "",
+        dD=float(r["dD_MPa05"]),
+        dP=float(r["dP_MPa05"]),
+        dH=float(r["dH_MPa05"]),
+        vm_cm3_mol=float(r["vm_cm3_mol"]),
+        synonyms=_tuple(r.get("synonyms", "")),
+        roles=_tuple(r.get("roles", "")),
+        mw_g_mol=_num(r.get("mw_g_mol")),
+        density_g_cm3=_num(r.get("density_g_cm3")),
+        bp_C=_num(r.get("bp_C")),
+        mp_C=_num(r.get("mp_C")),
+        flash_C=_num(r.get("flash_C")),
+        flammable=(r.get("flammable", "yes") or "yes") != "no",
+        visc_mPa_s=_num(r.get("visc_mPa_s")),
+        alpha_1_K=_num(r.get("alpha_1_K")),
+        water_miscibility=r.get("water_miscibility", "") or "",
+        water_in_solvent_wt=_num(r.get("water_in_solvent_wt")),
+        solvent_in_water_wt=_num(r.get("solvent_in_water_wt")),
+        cost_class=None if cost is None or (isinstance(cost, float) and math.isnan(cost)) or str(cost) == "<NA>" else int(cost),
+        hsp_source=r.get("hsp_source", "") or "",
+        props_source=r.get("props_source", "") or "",
+        note=r.get("note", "") or "",
+        origin=r.get("origin", "bundled") or "bundled",
+    )
+
+
+def _solute_from_row(r: Mapping[str, Any]) -> Solute:
+    return Solute(
+        name=r["name"],
+        cas=r.get("cas", "") or "",
+        dD=float(r["dD_MPa05"]),
+        dP=float(r["dP_MPa05"]),
+        dH=float(r["dH_MPa05"]),
+        r0=_num(r.get("r0_MPa05")),
+        synonyms=_tuple(r.get("synonyms", "")),
+        category=r.get("category", "other") or "other",
+        hsp_basis=r.get("hsp_basis", "measured") or "measured",
+        hsp_method=r.get("hsp_method", "") or "",
+        mw_g_mol=_num(r.get("mw_g_mol")),
+        mp_C=_num(r.get("mp_C")),
+        dHfus_kJ_mol=_num(r.get("dHfus_kJ_mol")),
+        vm_cm3_mol=_num(r.get("vm_cm3_mol")),
+        density_g_cm3=_num(r.get("density_g_cm3")),
+        smiles=r.get("smiles", "") or "",
+        hsp_source=r.get("hsp_source", "") or "",
+        props_source=r.get("props_source", "") or "",
+        note=r.get("note", "") or "",
+        origin=r.get("origin", "bundled") or "bundled",
+    )
+
+
+# ----------------------------------------------------------------------------- catalog
+
+
+class Catalog:
+    """All tables of one data folder, plus a user's overlay of solvents and solutes.
+
+    Tables are read and validated on first use.  Use :func:`load_catalog`
+    rather than building one directly.
+    """
+
+    def __init__(self, tables_dir: Path | str = TABLES_DIR, own: Mapping[str, Sequence[str | Path]] | None = None):
+        self.tables_dir = Path(tables_dir)
+        self.own = {k: tuple(Path(p) for p in v) for k, v in (own or {}).items()}
+        for k in self.own:
+            if k not in _load_schema(self.tables_dir):
+                raise InputError(f"own tables: no table named '{k}' to add rows to")
+        self._tables: dict[str, Any] = {}
+        self._index: dict[str, dict[str, int]] = {}
+        self._records: dict[str, list] = {}
+
+    # -- tables
+    @property
+    def table_names(self) -> list[str]:
+        """Names of the tables declared in schema.csv that have a file."""
+        return [t for t in _load_schema(self.tables_dir) if (self.tables_dir / f"{t}.csv").is_file()]
+
+    def table(self, name: str):
+        """The validated table ``name`` (without .csv) as a DataFrame, with an ``origin`` column."""
+        import pandas as pd
+
+        name = name.strip().lower()
+        if name == "sources":
+            return self.sources
+        if name in self._tables:
+            return self._tables[name]
+        path = self.tables_dir / f"{name}.csv"
+        if name not in _load_schema(self.tables_dir) or not path.is_file():
+            known = self.table_names + ["sources"]
+            close = difflib.get_close_matches(name, known, n=3, cutoff=0.5)
+            raise UnknownNameError(name, "table", tuple(close or known))
+        df = read_table(path, name, self.tables_dir)
+        df.insert(len(df.columns), "origin", "bundled")
+        for own_path in self.own.get(name, ()):
+            if not own_path.is_file():
+                raise InputError(f"your table '{own_path}' does not exist")
+            mine = read_table(own_path, name, self.tables_dir, user=True)
+            mine["origin"] = f"user: {own_path}"
+            df = _overlay(df, mine)
+        self._tables[name] = df
+        return df
+
+    @property
+    def sources(self):
+        return _load_sources(self.tables_dir)
+
+    def source(self, source_id: str) -> dict:
+        df = self.sources
+        hit = df[df["id"] == source_id]
+        if hit.empty:
+            close = difflib.get_close_matches(source_id, list(df["id"]), n=5, cutoff=0.5)
+            raise UnknownNameError(source_id, "source id", tuple(close))
+        return hit.iloc[0].to_dict()
+
+    @property
+    def solvents(self):
+        return self.table("solvents")
+
+    @property
+    def solutes(self):
+        return self.table("solutes")
+
+    # -- lookup
+    def _name_index(self, table: str) -> dict[str, int]:
+        if table not in self._index:
+            df = self.table(table)
+            idx: dict[str, int] = {}
+            cols = [c for c in ("name", "cas", "synonyms") if c in df.columns]
+            if "name" not in cols:
+                raise InputError(f"table '{table}' has no name column to look names up in")
+            # names first, then CAS, then synonyms: a synonym never shadows a name
+            for col in cols:
+                for i, v in enumerate(df[col]):
+                    keys = str(v).split(";") if col == "synonyms" else [str(v)]
+                    for k in keys:
+                        k = normalize_name(k)
+                        if k and k not in idx:
+                            idx[k] = i
+            self._index[table] = idx
+        return self._index[table]
+
+    def find_index(self, table: str, name: str) -> int:
+        """Row position of ``name`` (name, synonym or CAS) in ``table``; UnknownNameError otherwise."""
+        if not isinstance(name, str) or not name.strip():
+            raise InputError(f"expected a {table[:-1] if table.endswith('s') else table} name, got '{name}'")
+        idx = self._name_index(table)
+        key = normalize_name(name)
+        if key in idx:
+            return idx[key]
+        # forgive missing or extra 'n-' prefixes and hyphen/space variants
+        for variant in (key.replace("-", " "), key.replace(" ", "-"), "n-" + key, key.removeprefix("n-")):
+            if variant in idx:
+                return idx[variant]
+        df = self.table(table)
+        close = difflib.get_close_matches(key, list(idx), n=8, cutoff=0.6)
+        names = list(dict.fromkeys(df["name"].iloc[idx[c]] for c in close))[:5]
+        kind = {"solvents": "liquid", "solutes": "solute"}.get(table, f"entry in table '{table}'")
+        raise UnknownNameError(name, kind, tuple(names))
+
+    def find(self, table: str, name: str) -> dict:
+        """The row of ``table`` named ``name`` (forgiving match) as a dict."""
+        return self.table(table).iloc[self.find_index(table, name)].to_dict()
+
+    def solvent(self, name: str, library: bool = True) -> Solvent:
+        """The liquid named ``name`` (name, synonym or CAS).
+
+        With ``library=True`` a liquid not in the tables is looked up in the
+        reference library ``chemicals`` (marked ``origin='library: ...'``).
+        """
+        try:
+            return self.solvent_records()[self.find_index("solvents", name)]
+        except UnknownNameError as exc:
+            if library:
+                found = library_solvent(name)
+                if found is not None:
+                    return found
+            raise exc from None
+
+    def solute(self, name: str, library: bool = True) -> Solute:
+        """The solute named ``name``; falls back to the solvents table, then the library."""
+        try:
+            return self.solute_records()[self.find_index("solutes", name)]
+        except UnknownNameError as exc:
+            try:
+                s = self.solvent(name, library=library)
+            except UnknownNameError:
+                raise exc from None
+            return Solute(
+                name=s.name, cas=s.cas, dD=s.dD, dP=s.dP, dH=s.dH, synonyms=s.synonyms, category="other",
+                hsp_basis="measured", mw_g_mol=s.mw_g_mol, mp_C=s.mp_C, vm_cm3_mol=s.vm_cm3_mol,
+                density_g_cm3=s.density_g_cm3, hsp_source=s.hsp_source, props_source=s.props_source,
+                note=(s.note + " (a liquid of the solvents table used as a solute)").strip(), origin=s.origin,
+            )
+
+    def solvent_records(self) -> list[Solvent]:
+        if "solvents" not in self._records:
+            self._records["solvents"] = [_solvent_from_row(r) for r in self.solvents.to_dict("records")]
+        return self._records["solvents"]
+
+    def solute_records(self) -> list[Solute]:
+        if "solutes" not in self._records:
+            self._records["solutes"] = [_solute_from_row(r) for r in self.solutes.to_dict("records")]
+        return self._records["solutes"]
+
+    def solvents_with_role(self, role: str) -> list[Solvent]:
+        return [s for s in self.solvent_records() if role in s.roles]
+
+    def hsp_array(self, items: Iterable[str | Solvent | Solute]) -> np.ndarray:
+        """HSP of several liquids or solutes as an (n, 3) array."""
+        out = []
+        for it in items:
+            rec = self.solvent(it) if isinstance(it, str) else it
+            out.append(rec.hsp)
+        return np.array(out, dtype=float).reshape(-1, 3)
+
+
+def _overlay(df, mine):
+    """Rows of ``mine`` replace rows of ``df`` with the same CAS (or name), others are appended."""
+    import pandas as pd
+
+    drop = set()
+    keys = {}
+    for i, r in df.iterrows():
+        if r.get("cas"):
+            keys[("cas", r["cas"])] = i
+        keys[("name", normalize_name(r["name"]))] = i
+    for _, r in mine.iterrows():
+        for k in (("cas", r.get("cas")), ("name", normalize_name(r["name"]))):
+            if k[1] and k in keys:
+                drop.add(keys[k])
+    kept = df.drop(index=sorted(drop))
+    for col in df.columns:
+        if col not in mine.columns:
+            mine[col] = math.nan if df[col].dtype.kind in "fi" else ""
+    return pd.concat([kept, mine[df.columns]], ignore_index=True)
+
+
+@lru_cache(maxsize=8)
+def _cached_catalog(tables_dir: Path) -> Catalog:
+    return Catalog(tables_dir)
+
+
+def load_catalog(own: Mapping[str, Sequence[str | Path]] | None = None, tables_dir: Path | str | None = None) -> Catalog:
+    """The catalog of the bundled tables (cached), or with the user's ``own`` overlay files.
+
+    ``own`` maps a table name to CSV paths with the same columns, e.g.
+    ``{"solutes": ["my_solutes.csv"]}``; their rows add to or replace the
+    bundled ones (matched by CAS, else by name) and are marked as the user's.
+    """
+    tdir = Path(tables_dir) if tables_dir is not None else TABLES_DIR
+    if not own:
+        return _cached_catalog(tdir)
+    return Catalog(tdir, own=own)
+
+
+# ----------------------------------------------------------------------------- library
+
+
+@lru_cache(maxsize=256)
+def library_solvent(name_or_cas: str) -> Solvent | None:
+    """A substance from the reference library ``chemicals``, or None if it is unknown there
+    or has no HSP in the three published data sets.
+
+    Molar volume from the COSTALD correlation at 25 C (an estimate) from the
+    library's critical constants; the record says so in its note.
+    """
+    try:
+        from chemicals.identifiers import search_chemical
+    except ImportError:  # pragma: no cover
+        return None
+    try:
+        meta = search_chemical(name_or_cas.strip())
+    except Exception:  # unknown to the library
+        return None
+    cas = meta.CASs
+    hsp, src = library_hsp(cas)
+    if hsp is None:
+        return None
+    from chemicals import critical, acentric, phase_change, safety
+    from chemicals.volume import COSTALD
+
+    vm = density = None
+    try:
+        tc, vc, omega = critical.Tc(cas), critical.Vc(cas), acentric.omega(cas)
+        if tc and vc and omega is not None and tc > 298.15:
+            v = COSTALD(298.15, tc, vc, omega)  # m3/mol
+            vm = v * 1e6
+            density = meta.MW / vm
+    except Exception:
+        pass
+    if vm is None:
+        return None
+    tb, tm, tf = phase_change.Tb(cas), phase_change.Tm(cas), safety.T_flash(cas)
+    return Solvent(
+        name=meta.common_name or name_or_cas,
+        cas=cas,
+        dD=hsp[0], dP=hsp[1], dH=hsp[2],
+        vm_cm3_mol=round(vm, 1),
+        mw_g_mol=meta.MW,
+        density_g_cm3=round(density, 4),
+        bp_C=None if tb is None else round(tb - 273.15, 1),
+        mp_C=None if tm is None else round(tm - 273.15, 1),
+        flash_C=None if tf is None else round(tf - 273.15, 0),
+        hsp_source=src,
+        props_source="chemicals_lib",
+        note="from the reference library chemicals; molar volume estimated (COSTALD); not a food-use record",
+        origin=f"library: chemicals ({src})",
+    )
+
+
+def library_hsp(cas: str) -> tuple[tuple[float, float, float] | None, str]:
+    """HSP of ``cas`` from the first of the three published data sets that has it [MPa^0.5]."""
+    import chemicals.solubility as s
+
+    for key, sid in LIBRARY_HSP_DATASETS.items():
+        d = s.hansen_delta_d(cas, method=key) if key in s.hansen_delta_d_methods(cas) else None
+        if d is None:
+            continue
+        p = s.hansen_delta_p(cas, method=key)
+        h = s.hansen_delta_h(cas, method=key)
+        if p is None or h is None:
+            continue
+        return (round(d / 1000, 2), round(p / 1000, 2), round(h / 1000, 2)), sid
+    return None, ""

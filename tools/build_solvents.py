@@ -1,0 +1,187 @@
+"""Rebuild tables/solvents.csv from tools/solvents_curated.csv.
+
+The curated file holds what a person decided (names, synonyms, CAS, roles,
+water miscibility, cost class, notes).  This script adds, for pure compounds,
+the HSP from the published datasets bundled with the `chemicals` library (keys
+MANUEL_RUBEN_2022, ALSHERI_HANSEN, WDR_SCHRIER only) and the physical
+properties at 25 C from `chemicals` (molar mass, boiling and melting point,
+flash point) and `thermo` (liquid density, viscosity, thermal expansion), and
+for the mixtures the values written below with their sources.
+
+Run:  .venv/bin/python tools/build_solvents.py   (needs the `test` extra: thermo)
+"""
+
+from __future__ import annotations
+
+import csv
+import sys
+import warnings
+from pathlib import Path
+
+warnings.filterwarnings("ignore")
+
+ROOT = Path(__file__).resolve().parents[1]
+CURATED = ROOT / "tools" / "solvents_curated.csv"
+OUT = ROOT / "tables" / "solvents.csv"
+
+DATASETS = {"MANUEL_RUBEN_2022": "hsp_mr2022", "ALSHERI_HANSEN": "hsp_alshehri2022", "WDR_SCHRIER": "hsp_schrier2020"}
+
+# Which dataset a row takes its HSP from, where not the default MANUEL_RUBEN_2022
+HSP_CHOICE = {"56-81-5": "ALSHERI_HANSEN"}
+# rows whose HSP is taken from a model compound's row (CAS of the model)
+HSP_MODEL = {"75-28-5": "106-97-8"}
+TRIOLEIN, TRIBUTYRIN = "122-32-7", "60-01-5"
+OILS = {"8001-21-6", "8001-25-0", "8002-13-9", "8001-22-7", "8001-30-7"}
+
+# Mixtures: properties recalled from handbooks and supplier data sheets (kind memory).
+# mw, density_25C, bp, mp, flash, visc_25C, alpha
+MIXTURE_PROPS = {
+    "73398-61-5": (504.0, 0.942, None, -5.0, 240.0, 25.0, 7.5e-4),
+    "8001-21-6": (885.4, 0.918, None, -17.0, 316.0, 49.0, 7.1e-4),
+    "8001-25-0": (885.4, 0.911, None, -6.0, 318.0, 67.0, 7.1e-4),
+    "8002-13-9": (885.4, 0.914, None, -10.0, 320.0, 60.0, 7.1e-4),
+    "8001-22-7": (885.4, 0.917, None, -16.0, 320.0, 50.0, 7.1e-4),
+    "8001-30-7": (885.4, 0.917, None, -11.0, 320.0, 52.0, 7.1e-4),
+}
+# ethanol-water by volume: (ethanol vol fraction, density 25C, bp, mp, flash (closed cup), visc 25C, alpha)
+ETHANOL_WATER = {
+    "ethanol 96% v/v": (0.96, 0.8033, 78.2, -90.0, 17.0, 1.15, 1.05e-3),
+    "ethanol 70% v/v": (0.70, 0.8818, 80.8, -40.0, 21.0, 2.10, 0.85e-3),
+    "ethanol 50% v/v": (0.50, 0.9264, 82.9, -32.0, 24.0, 2.30, 0.70e-3),
+    "ethanol 40% v/v": (0.40, 0.9451, 84.5, -24.0, 26.0, 2.25, 0.60e-3),
+}
+
+# thermo estimates (not data-backed) for these: values recalled from handbooks and
+# supplier data sheets instead (kind memory); None leaves the cell empty (unknown).
+# cas: (density_25C, visc_25C)
+ESTIMATED_METHODS = {"MMSNM0", "LETSOU_STIEL", "COSTALD", "RACKETT", "YEN_WOODS_SAT", "TOWNSEND_HALES", "PRZEDZIECKI_SRIDHAR"}
+MEMORY_LIQUID = {
+    "102-76-1": (1.155, 17.4), "77-93-0": (1.136, 35.2), "25395-31-7": (1.17, None), "97-64-3": (1.030, None),
+    "120-51-4": (1.118, None), "60-01-5": (1.032, None), "5989-27-5": (0.838, 0.92), "80-56-8": (0.854, 1.30),
+    "96-47-9": (0.849, 0.46), "872-50-4": (1.028, 1.67), "108-32-7": (1.200, 2.5), "96-48-0": (1.125, 1.7),
+    "108-21-4": (0.866, 0.52), "111-90-0": (0.985, 3.85), "123-92-2": (0.867, 0.79), "111-62-6": (0.867, 5.2),
+    "106-65-0": (1.114, None),
+}
+# flash points (closed cup, C) missing from chemicals, recalled (kind memory)
+MEMORY_FLASH = {"77-93-0": 155.0, "100-51-6": 93.0, "96-47-9": -11.0, "75-28-5": -83.0, "74-98-6": -104.0,
+                "108-32-7": 132.0, "616-38-6": 17.0}
+NONFLAMMABLE = {"7732-18-5", "75-09-2", "67-66-3", "124-38-9", "811-97-2"}
+
+COLUMNS = [
+    "name", "synonyms", "cas", "roles", "mw_g_mol", "dD_MPa05", "dP_MPa05", "dH_MPa05", "hsp_source",
+    "vm_cm3_mol", "density_g_cm3", "bp_C", "mp_C", "flash_C", "flammable", "visc_mPa_s", "alpha_1_K", "props_source",
+    "water_miscibility", "water_in_solvent_wt", "solvent_in_water_wt", "miscibility_source",
+    "cost_class", "cost_source", "note",
+]
+
+
+def dataset_hsp(cas: str, key: str):
+    import chemicals.solubility as s
+
+    s._load_solubility_data()
+    df = s.solubility_sources[key]
+    if cas not in df.index:
+        return None
+    v = df.loc[cas]
+    return tuple(round(float(v.iloc[i]) / 1000.0, 2) for i in range(3))
+
+
+def r(x, nd):
+    return "" if x is None else f"{round(float(x), nd):g}"
+
+
+def main() -> int:
+    from chemicals.identifiers import search_chemical
+    from chemicals.phase_change import Tb, Tm
+    from chemicals.safety import T_flash
+    from thermo import Chemical
+
+    rows = list(csv.DictReader(CURATED.open(encoding="utf-8")))
+    by_name = {}
+    out = []
+    for row in rows:
+        cas = row["cas"]
+        o = {k: row.get(k, "") for k in COLUMNS}
+        o["miscibility_source"] = "" if row["water_miscibility"] == "" else (
+            "memory_mutual_solubility" if (row["water_in_solvent_wt"] or row["solvent_in_water_wt"]) else "common_practice"
+        )
+        o["cost_source"] = "memory_cost"
+        if row["name"] in ETHANOL_WATER:
+            phi, dens, bp, mp, fl, mu, alpha = ETHANOL_WATER[row["name"]]
+            e, w = by_name["ethanol"], by_name["water"]
+            hsp = [phi * e[k] + (1 - phi) * w[k] for k in ("dD", "dP", "dH")]
+            # mass and mole fractions from the pure densities at 25 C
+            me, mw_ = phi * e["rho"], (1 - phi) * w["rho"]
+            ne, nw = me / e["mw"], mw_ / w["mw"]
+            mw = (me + mw_) / (ne + nw)
+            o.update(mw_g_mol=r(mw, 2), dD_MPa05=r(hsp[0], 2), dP_MPa05=r(hsp[1], 2), dH_MPa05=r(hsp[2], 2),
+                     hsp_source="derived_volume_mix;hsp_mr2022", density_g_cm3=r(dens, 4), vm_cm3_mol=r(mw / dens, 1),
+                     bp_C=r(bp, 1), mp_C=r(mp, 0), flash_C=r(fl, 0), visc_mPa_s=r(mu, 2), alpha_1_K=r(alpha, 6),
+                     props_source="memory_ethanol_water;secondary_flash_ethanol_water")
+            out.append(o)
+            continue
+        if cas in MIXTURE_PROPS:
+            mw, dens, bp, mp, fl, mu, alpha = MIXTURE_PROPS[cas]
+            if cas in OILS:
+                hsp = dataset_hsp(TRIOLEIN, "MANUEL_RUBEN_2022")
+                src = "hsp_mr2022"
+            else:  # MCT: interpolate tributyrin (C4) -> triolein (C18) at C8.8
+                a, b = dataset_hsp(TRIBUTYRIN, "MANUEL_RUBEN_2022"), dataset_hsp(TRIOLEIN, "MANUEL_RUBEN_2022")
+                t = (8.8 - 4.0) / (18.0 - 4.0)
+                hsp = tuple(ai + t * (bi - ai) for ai, bi in zip(a, b))
+                src = "derived_triglyceride_interpolation;hsp_mr2022"
+            o.update(mw_g_mol=r(mw, 1), dD_MPa05=r(hsp[0], 2), dP_MPa05=r(hsp[1], 2), dH_MPa05=r(hsp[2], 2),
+                     hsp_source=src, density_g_cm3=r(dens, 3), vm_cm3_mol=r(mw / dens, 1), bp_C="", mp_C=r(mp, 0),
+                     flash_C=r(fl, 0), visc_mPa_s=r(mu, 1), alpha_1_K=r(alpha, 6), props_source="memory_oil_props")
+            out.append(o)
+            continue
+        key = HSP_CHOICE.get(cas, "MANUEL_RUBEN_2022")
+        hsp = dataset_hsp(HSP_MODEL.get(cas, cas), key)
+        if hsp is None:
+            print(f"no HSP for {row['name']} {cas}", file=sys.stderr)
+            return 1
+        src = DATASETS[key] + (";derived_model_compound" if cas in HSP_MODEL else "")
+        c = search_chemical(cas)
+        ch = Chemical(cas, T=298.15, P=101325.0)
+        rho = ch.rhol
+        if rho is None:
+            print(f"no liquid density for {row['name']}", file=sys.stderr)
+            return 1
+        dens = rho / 1000.0
+        mu = ch.mul * 1000.0 if ch.mul else None
+        props = "chemicals_lib;thermo_lib"
+        if ch.VolumeLiquid.method in ESTIMATED_METHODS or ch.ViscosityLiquid.method in ESTIMATED_METHODS:
+            if cas not in MEMORY_LIQUID:
+                print(f"{row['name']}: thermo estimate only; add a MEMORY_LIQUID entry", file=sys.stderr)
+                return 1
+            mdens, mmu = MEMORY_LIQUID[cas]
+            if ch.VolumeLiquid.method in ESTIMATED_METHODS:
+                dens = mdens
+            if ch.ViscosityLiquid.method in ESTIMATED_METHODS:
+                mu = mmu
+            props += ";memory_liquid_props"
+        alpha = ch.isobaric_expansion_l
+        tb, tm, tf = Tb(cas), Tm(cas), T_flash(cas)
+        if tf is None and cas in MEMORY_FLASH:
+            tf = MEMORY_FLASH[cas] + 273.15
+            props += ";memory_flash"
+        o.update(
+            mw_g_mol=r(c.MW, 3), dD_MPa05=r(hsp[0], 2), dP_MPa05=r(hsp[1], 2), dH_MPa05=r(hsp[2], 2), hsp_source=src,
+            density_g_cm3=r(dens, 4), vm_cm3_mol=r(c.MW / dens, 1), bp_C=r(tb - 273.15 if tb else None, 1),
+            mp_C=r(tm - 273.15 if tm else None, 1), flash_C=r(tf - 273.15 if tf else None, 0),
+            visc_mPa_s=r(mu, 3), alpha_1_K=r(alpha, 6), props_source=props,
+        )
+        by_name[row["name"]] = {"dD": hsp[0], "dP": hsp[1], "dH": hsp[2], "rho": dens, "mw": c.MW}
+        out.append(o)
+    for o in out:
+        o["flammable"] = "no" if o["cas"] in NONFLAMMABLE else "yes"
+    with OUT.open("w", newline="", encoding="utf-8") as fh:
+        w = csv.DictWriter(fh, fieldnames=COLUMNS, lineterminator="\n")
+        w.writeheader()
+        w.writerows(out)
+    print(f"wrote {len(out)} rows to {OUT}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
