@@ -84,3 +84,840 @@ def red(a, b, r0) -> np.ndarray:
     if np.any(~(r0 > 0)):
         raise InputError(f"R0 must be a positive number of MPa^0.5, got {r0}")
     return ra(a, b) / r0
+
+
+# ---------------------------------------------------------------------------
+# Everything below extends the distance functions above: sphere distance,
+# mixing, fraction conversion, temperature, Flory-Huggins, solid solubility and
+# partition.  Same conventions: numbers in, numbers or frozen dataclasses out.
+# ---------------------------------------------------------------------------
+
+import math  # noqa: E402
+from dataclasses import asdict, dataclass  # noqa: E402
+
+from .errors import MissingDataError, OutOfRangeError  # noqa: E402
+
+__all__ += [
+    "R_J_MOL_K",
+    "T_WINDOW_C",
+    "ra_to_surface",
+    "mix",
+    "convert_fractions",
+    "shift_temperature",
+    "shift_molar_volume",
+    "chi_flory_huggins",
+    "chi_critical",
+    "Binodal",
+    "binodal",
+    "ideal_solubility",
+    "ln_gamma_hansen",
+    "SolubilityEstimate",
+    "solid_solubility",
+    "PartitionEstimate",
+    "partition_coefficient",
+]
+
+#: Molar gas constant [J/(mol K)] (CODATA 2018, exact).
+R_J_MOL_K = 8.314462618
+
+#: Hard temperature window [C] for the Hansen-Beerbower shift.  The rules are
+#: first-order in (T - T_ref) with a constant expansion coefficient, which holds
+#: for ordinary liquids far from their critical point; -80 C covers cold
+#: ethanol extraction (down to about -80 C in practice), +150 C covers hot
+#: processing and stripping.  Outside it the constant-alpha assumption and the
+#: linearised dH rule are not trustworthy.
+T_WINDOW_C = (-80.0, 150.0)
+
+_FRACTION_TOL = 1e-6
+_KINDS = ("mass", "volume", "mole")
+
+
+def ra_to_surface(hsp, center, r0) -> np.ndarray:
+    """Signed distance from HSP point(s) to the surface of a sphere [MPa^0.5].
+
+    .. math:: d = R_a - R_0
+
+    Negative inside the sphere (a good solvent), positive outside.
+
+    Parameters
+    ----------
+    hsp : array_like, shape (..., 3)
+        dD, dP, dH of the solvent(s) [MPa^0.5]
+    center : array_like, shape (..., 3)
+        dD, dP, dH of the sphere centre [MPa^0.5]
+    r0 : float or array_like
+        radius of the sphere [MPa^0.5], > 0
+
+    Examples
+    --------
+    Ethanol against a sphere centred on water with R0 = 20 (illustrative
+    radius): Ra = 24.01 (see :func:`ra`), so the point lies 4.01 outside.
+
+    >>> round(float(ra_to_surface([15.8, 8.8, 19.4], [15.5, 16.0, 42.3], 20.0)), 2)
+    4.01
+    """
+    r0 = np.asarray(r0, dtype=float)
+    if np.any(~(r0 > 0)):
+        raise InputError(f"R0 must be a positive number of MPa^0.5, got {r0}")
+    return ra(hsp, center) - r0
+
+
+def _check_fractions(fractions, name: str, n: int | None = None) -> np.ndarray:
+    f = np.asarray(fractions, dtype=float)
+    if f.ndim == 0:
+        raise InputError(f"{name}: expected one fraction per component, got a single number")
+    if n is not None and f.shape[-1] != n:
+        raise InputError(f"{name}: expected {n} fractions (one per component), got {f.shape[-1]}")
+    if not np.all(np.isfinite(f)):
+        raise InputError(f"{name}: fractions must be finite numbers")
+    if np.any(f < 0):
+        raise InputError(f"{name}: fractions must be zero or positive, got {f[f < 0].ravel()[:3].tolist()}")
+    s = f.sum(axis=-1)
+    bad = np.abs(s - 1.0) > _FRACTION_TOL
+    if np.any(bad):
+        raise InputError(
+            f"{name}: fractions must sum to 1 (within {_FRACTION_TOL:g}), got a sum of "
+            f"{float(np.ravel(s)[np.argmax(np.ravel(bad))]):.6g}"
+        )
+    return f
+
+
+def mix(hsp, volume_fractions) -> np.ndarray:
+    r"""HSP of a blend as the volume-fraction average of its components.
+
+    .. math:: \delta_{k,\mathrm{blend}} = \sum_i \phi_i\,\delta_{k,i}
+              \qquad k \in \{D, P, H\}
+
+    Parameters
+    ----------
+    hsp : array_like, shape (..., n, 3)
+        dD, dP, dH of the n components [MPa^0.5]
+    volume_fractions : array_like, shape (..., n)
+        volume fractions [-], each >= 0, summing to 1 within 1e-6; leading axes
+        broadcast against those of ``hsp`` (e.g. many candidate blends of the
+        same n liquids: ``hsp`` (n, 3), fractions (k, n) -> (k, 3)).
+
+    Returns
+    -------
+    ndarray, shape (..., 3)
+        dD, dP, dH of the blend [MPa^0.5]
+
+    References
+    ----------
+    .. [1] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*,
+       2nd ed., CRC Press, 2007, ch. 1 (blends of non-solvents).
+
+    Examples
+    --------
+    Ethanol (15.8, 8.8, 19.4) and water (15.5, 16.0, 42.3), Hansen (2007)
+    values, 50/50 by volume: (15.65, 12.4, 30.85).
+
+    >>> mix([[15.8, 8.8, 19.4], [15.5, 16.0, 42.3]], [0.5, 0.5]).round(2).tolist()
+    [15.65, 12.4, 30.85]
+    """
+    h = as_hsp(hsp)
+    if h.ndim < 2:
+        raise InputError(f"hsp: expected one (dD, dP, dH) row per component, got shape {h.shape}")
+    f = _check_fractions(volume_fractions, "volume_fractions", h.shape[-2])
+    return np.einsum("...n,...nk->...k", f, h)
+
+
+def convert_fractions(fractions, frm: str, to: str, density_g_cm3=None, mw_g_mol=None) -> np.ndarray:
+    r"""Convert composition fractions between mass, volume and mole bases.
+
+    Volumes are taken as additive (ideal mixing), which is the usual
+    assumption of blend HSP arithmetic.
+
+    .. math::
+        \phi_i = \frac{w_i/\rho_i}{\sum_j w_j/\rho_j},\qquad
+        x_i = \frac{w_i/M_i}{\sum_j w_j/M_j}
+
+    Parameters
+    ----------
+    fractions : array_like, shape (..., n)
+        fractions on the ``frm`` basis [-], >= 0, summing to 1 within 1e-6
+    frm, to : {"mass", "volume", "mole"}
+        basis of the input and of the output
+    density_g_cm3 : array_like, shape (n,) or (..., n)
+        densities of the pure components [g/cm^3] (needed whenever the volume
+        basis is involved)
+    mw_g_mol : array_like, shape (n,) or (..., n)
+        molar masses [g/mol] (needed whenever the mole basis is involved)
+
+    Returns
+    -------
+    ndarray, shape (..., n)
+        fractions on the ``to`` basis, summing to 1
+
+    Examples
+    --------
+    40 % ethanol by volume (0.7893 g/cm^3) in water (0.9970 g/cm^3) is
+    34.5 % by mass with additive volumes (tables give 34.0 % at 20 C, the
+    difference being the volume contraction on mixing).
+
+    >>> w = convert_fractions([0.4, 0.6], "volume", "mass", density_g_cm3=[0.7893, 0.9970])
+    >>> round(float(w[0]), 3)
+    0.345
+    """
+    for label, kind in (("frm", frm), ("to", to)):
+        if kind not in _KINDS:
+            raise InputError(f"{label}: expected one of {', '.join(_KINDS)}, got '{kind}'")
+    f = _check_fractions(fractions, "fractions")
+    n = f.shape[-1]
+
+    def need(values, label, unit):
+        if values is None:
+            raise MissingDataError(f"converting {frm} to {to} fractions needs {label} [{unit}] of every component")
+        v = np.asarray(values, dtype=float)
+        if v.shape[-1:] != (n,):
+            raise InputError(f"{label}: expected {n} values (one per component), got shape {v.shape}")
+        if not np.all(np.isfinite(v)) or np.any(v <= 0):
+            raise MissingDataError(f"{label}: every component needs a known positive value [{unit}], got {v.tolist()}")
+        return v
+
+    if frm == to:
+        return f.copy()
+    # convert to mass first, then from mass to the wanted basis
+    if frm == "mass":
+        w = f
+    elif frm == "volume":
+        w = f * need(density_g_cm3, "density_g_cm3", "g/cm^3")
+    else:
+        w = f * need(mw_g_mol, "mw_g_mol", "g/mol")
+    w = w / w.sum(axis=-1, keepdims=True)
+    if to == "mass":
+        return w
+    if to == "volume":
+        out = w / need(density_g_cm3, "density_g_cm3", "g/cm^3")
+    else:
+        out = w / need(mw_g_mol, "mw_g_mol", "g/mol")
+    return out / out.sum(axis=-1, keepdims=True)
+
+
+def _check_temperature(temp_C, mp_C=None, bp_C=None, what="temp_C") -> np.ndarray:
+    t = np.asarray(temp_C, dtype=float)
+    if not np.all(np.isfinite(t)):
+        raise InputError(f"{what}: temperature must be a finite number of C, got {temp_C}")
+    lo, hi = T_WINDOW_C
+    if np.any(t < lo) or np.any(t > hi):
+        raise OutOfRangeError(
+            f"{what}: {float(np.ravel(t)[0]):g} C is outside the range of the Hansen-Beerbower "
+            f"temperature rules, {lo:g} to {hi:g} C"
+        )
+    if mp_C is not None:
+        mp = np.asarray(mp_C, dtype=float)
+        below = np.isfinite(mp) & (t < mp)
+        if np.any(below):
+            raise OutOfRangeError(
+                f"{what}: {float(np.broadcast_to(t, below.shape)[below][0]):g} C is below the melting point "
+                f"({float(np.broadcast_to(mp, below.shape)[below][0]):g} C): the liquid would freeze"
+            )
+    if bp_C is not None:
+        bp = np.asarray(bp_C, dtype=float)
+        above = np.isfinite(bp) & (t > bp)
+        if np.any(above):
+            raise OutOfRangeError(
+                f"{what}: {float(np.broadcast_to(t, above.shape)[above][0]):g} C is above the boiling point "
+                f"({float(np.broadcast_to(bp, above.shape)[above][0]):g} C at 1 atm): the liquid would boil "
+                "(pass bp_C=None for a liquid held under pressure)"
+            )
+    return t
+
+
+def shift_molar_volume(vm_cm3_mol, alpha_1_K, temp_C, ref_C: float = 25.0) -> np.ndarray:
+    r"""Molar volume at ``temp_C`` from a constant cubic expansion coefficient.
+
+    .. math:: V(T) = V(T_\mathrm{ref})\,\exp[\alpha (T - T_\mathrm{ref})]
+
+    Parameters
+    ----------
+    vm_cm3_mol : array_like
+        molar volume at ``ref_C`` [cm^3/mol]
+    alpha_1_K : array_like
+        cubic thermal expansion coefficient [1/K]
+    temp_C, ref_C : float
+        temperature wanted and reference temperature [C]
+    """
+    t = _check_temperature(temp_C)
+    a = np.asarray(alpha_1_K, dtype=float)
+    return np.asarray(vm_cm3_mol, dtype=float) * np.exp(a * (t - ref_C))
+
+
+def shift_temperature(hsp, alpha_1_K, temp_C, ref_C: float = 25.0, vm_cm3_mol=None, mp_C=None, bp_C=None):
+    r"""HSP of a liquid at another temperature (Hansen and Beerbower 1971).
+
+    The rules of [1]_ (as given in [2]_, ch. 1) are
+
+    .. math::
+        \frac{d\delta_D}{dT} = -1.25\,\alpha\,\delta_D,\qquad
+        \frac{d\delta_P}{dT} = -0.5\,\alpha\,\delta_P,\qquad
+        \frac{d\delta_H}{dT} = -\delta_H\,(1.22\times10^{-3} + 0.5\,\alpha)
+
+    integrated here with a constant ``alpha`` (so that
+    :math:`\delta_D(T) = \delta_D(T_\mathrm{ref})\,(V_\mathrm{ref}/V)^{1.25}`,
+    with :math:`V = V_\mathrm{ref} e^{\alpha \Delta T}`).
+
+    Valid range: the hard window :data:`T_WINDOW_C` (-80 to 150 C), and the
+    liquid range of the substance when ``mp_C`` / ``bp_C`` are given (below the
+    melting point it freezes, above the normal boiling point it boils at 1 atm).
+    Outside either, :class:`OutOfRangeError` is raised.
+
+    Parameters
+    ----------
+    hsp : array_like, shape (..., 3)
+        dD, dP, dH at ``ref_C`` [MPa^0.5]
+    alpha_1_K : float or array_like, shape (...)
+        cubic thermal expansion coefficient of each liquid [1/K], 0 <= alpha < 0.01
+    temp_C : float
+        temperature wanted [C]
+    ref_C : float
+        temperature of the given values [C] (tables: 25 C)
+    vm_cm3_mol : array_like, shape (...), optional
+        molar volume at ``ref_C`` [cm^3/mol]; if given the shifted molar volume
+        is returned too
+    mp_C, bp_C : array_like, shape (...), optional
+        melting and normal boiling points [C] (NaN = unknown, not checked)
+
+    Returns
+    -------
+    hsp : ndarray, shape (..., 3)
+        dD, dP, dH at ``temp_C`` [MPa^0.5]; or the tuple ``(hsp, vm)`` when
+        ``vm_cm3_mol`` is given (vm [cm^3/mol])
+
+    References
+    ----------
+    .. [1] Hansen, C. M.; Beerbower, A. Solubility parameters. In
+       *Kirk-Othmer Encyclopedia of Chemical Technology*, Suppl. Vol., 2nd ed.;
+       Standen, A., Ed.; Interscience: New York, 1971; pp 889-910.
+    .. [2] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*,
+       2nd ed., CRC Press, 2007.
+
+    Examples
+    --------
+    n-Hexane (14.9, 0, 0), alpha = 1.4e-3 1/K (from memory), heated from 25 to
+    60 C: dD falls by the factor exp(-1.25 * 1.4e-3 * 35) = 0.9406, to 14.01.
+
+    >>> shift_temperature([14.9, 0.0, 0.0], 1.4e-3, 60.0).round(2).tolist()
+    [14.01, 0.0, 0.0]
+    """
+    h = as_hsp(hsp)
+    a = np.asarray(alpha_1_K, dtype=float)
+    if not np.all(np.isfinite(a)):
+        raise MissingDataError("alpha_1_K: the thermal expansion coefficient is needed to shift HSP with temperature")
+    if np.any(a < 0) or np.any(a >= 0.01):
+        raise OutOfRangeError(f"alpha_1_K: expected 0 <= alpha < 0.01 1/K for a liquid, got {a.ravel()[:3].tolist()}")
+    _check_temperature(ref_C, what="ref_C")
+    t = _check_temperature(temp_C, mp_C, bp_C)
+    dt = t - ref_C
+    factors = np.stack(
+        np.broadcast_arrays(
+            np.exp(-1.25 * a * dt),
+            np.exp(-0.5 * a * dt),
+            np.exp(-(1.22e-3 + 0.5 * a) * dt),
+        ),
+        axis=-1,
+    )
+    out = h * factors
+    if vm_cm3_mol is None:
+        return out
+    vm = np.asarray(vm_cm3_mol, dtype=float) * np.exp(a * dt)
+    return out, vm
+
+
+def chi_flory_huggins(hsp1, hsp2, vm1_cm3_mol, temp_C=25.0) -> np.ndarray:
+    r"""Flory-Huggins interaction parameter from HSP, per molecule of liquid 1.
+
+    .. math::
+        \chi_{12} = \frac{V_1}{RT}\left[(\delta_{D1}-\delta_{D2})^2
+        + \tfrac14(\delta_{P1}-\delta_{P2})^2 + \tfrac14(\delta_{H1}-\delta_{H2})^2\right]
+        = \frac{V_1 R_a^2}{4RT}
+
+    Parameters
+    ----------
+    hsp1, hsp2 : array_like, shape (..., 3)
+        dD, dP, dH [MPa^0.5]
+    vm1_cm3_mol : array_like
+        molar volume of liquid 1, the lattice reference [cm^3/mol]
+    temp_C : float
+        temperature [C]
+
+    References
+    ----------
+    .. [1] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*,
+       2nd ed., CRC Press, 2007, ch. 2.
+
+    Examples
+    --------
+    Ethanol (V = 58.5 cm^3/mol) against water at 25 C: Ra = 24.01, so
+    chi = 58.5 * 576.6 / (4 * 8.3145 * 298.15) = 3.40 (far above the critical
+    value, although the two mix in all proportions: hydrogen-bonding pairs are
+    poorly predicted, which is why measured pairs always win).
+
+    >>> round(float(chi_flory_huggins([15.8, 8.8, 19.4], [15.5, 16.0, 42.3], 58.5)), 2)
+    3.4
+    """
+    v1 = np.asarray(vm1_cm3_mol, dtype=float)
+    if np.any(~(v1 > 0)):
+        raise InputError(f"vm1_cm3_mol: molar volume must be a positive number of cm^3/mol, got {v1}")
+    t = np.asarray(temp_C, dtype=float) + 273.15
+    r = ra(hsp1, hsp2)
+    return v1 * r * r / (4.0 * R_J_MOL_K * t)
+
+
+def chi_critical(vm1_cm3_mol, vm2_cm3_mol) -> np.ndarray:
+    r"""Critical Flory-Huggins parameter of a binary of unequal molar volumes.
+
+    With liquid 1 as the lattice reference (:math:`N_1 = 1`, :math:`N_2 = V_2/V_1`):
+
+    .. math:: \chi_c = \tfrac12\left(\frac{1}{\sqrt{N_1}} + \frac{1}{\sqrt{N_2}}\right)^2
+
+    Above it the pair splits into two liquid phases over some composition range.
+
+    Parameters
+    ----------
+    vm1_cm3_mol, vm2_cm3_mol : array_like
+        molar volumes [cm^3/mol]
+
+    References
+    ----------
+    .. [1] Flory, P. J. *Principles of Polymer Chemistry*; Cornell University
+       Press, 1953, ch. 13.
+
+    Examples
+    --------
+    Equal sizes give the classic 2; a solvent against a polymer of 100 times
+    its volume gives 0.5 (1 + 0.1)^2 = 0.605.
+
+    >>> float(chi_critical(100.0, 100.0)), round(float(chi_critical(100.0, 10000.0)), 3)
+    (2.0, 0.605)
+    """
+    v1 = np.asarray(vm1_cm3_mol, dtype=float)
+    v2 = np.asarray(vm2_cm3_mol, dtype=float)
+    if np.any(~(v1 > 0)) or np.any(~(v2 > 0)):
+        raise InputError("molar volumes must be positive numbers of cm^3/mol")
+    return 0.5 * (1.0 + np.sqrt(v1 / v2)) ** 2
+
+
+@dataclass(frozen=True)
+class Binodal:
+    """Coexisting compositions of a Flory-Huggins binary (volume fractions of liquid 2).
+
+    ``phi_a`` is the fraction of liquid 2 in the phase rich in liquid 1 (the
+    solubility of 2 in 1), ``phi_b`` its fraction in the phase rich in 2, so
+    ``1 - phi_b`` is the solubility of 1 in 2.  A miscible pair
+    (``chi <= chi_c``) has ``split = False`` and ``phi_a = phi_b = nan``.
+    """
+
+    chi: float
+    chi_critical: float
+    split: bool
+    phi_a: float
+    phi_b: float
+    success: bool
+    message: str
+
+    def to_dict(self) -> dict:
+        return asdict(self)
+
+
+def _softplus(x):
+    return np.logaddexp(0.0, x)
+
+
+def _fh_parts(u, chi, n1, n2):
+    """g', g - phi g', g'' of the FH mixing free energy per site at logit(phi) = u."""
+    lnp = -_softplus(-u)  # ln phi
+    lnq = -_softplus(u)  # ln (1 - phi)
+    p = np.exp(lnp)
+    q = np.exp(lnq)
+    g = q / n1 * lnq + p / n2 * lnp + chi * p * q
+    g1 = -(lnq + 1.0) / n1 + (lnp + 1.0) / n2 + chi * (q - p)
+    g2 = 1.0 / (n1 * q) + 1.0 / (n2 * p) - 2.0 * chi
+    return p, q, g, g1, g - p * g1, g2
+
+
+def _lower_hull(x, y):
+    hull = []
+    for i in range(len(x)):
+        while len(hull) >= 2:
+            j, k = hull[-2], hull[-1]
+            if (x[k] - x[j]) * (y[i] - y[j]) - (y[k] - y[j]) * (x[i] - x[j]) <= 0:
+                hull.pop()
+            else:
+                break
+        hull.append(i)
+    return hull
+
+
+def binodal(chi, n1=1.0, n2=1.0) -> Binodal:
+    r"""Mutual solubilities of a Flory-Huggins binary by the common tangent.
+
+    The mixing free energy per lattice site (:math:`\phi` = volume fraction of
+    liquid 2, :math:`N_i = V_i/V_\mathrm{ref}`)
+
+    .. math::
+        \frac{\Delta G}{RT} = \frac{1-\phi}{N_1}\ln(1-\phi)
+        + \frac{\phi}{N_2}\ln\phi + \chi\,\phi(1-\phi)
+
+    has a common tangent at the two coexisting compositions
+    :math:`\phi_a < \phi_b`: :math:`g'(\phi_a) = g'(\phi_b)` and
+    :math:`g - \phi g'` equal at both.  Found from the lower convex hull of
+    :math:`g` on a grid (or the strong-segregation limit for solubilities
+    below the grid), then refined by Newton's method in logit coordinates, so
+    that solubilities far below 1e-10 still resolve.
+
+    Parameters
+    ----------
+    chi : float
+        interaction parameter per reference site [-]
+    n1, n2 : float
+        sizes of the two liquids in reference sites [-] (use ``n1 = 1``,
+        ``n2 = V2/V1`` with :func:`chi_flory_huggins`)
+
+    Returns
+    -------
+    Binodal
+        non-convergence is reported in ``success``/``message``, not raised
+
+    References
+    ----------
+    .. [1] Flory, P. J. *Principles of Polymer Chemistry*; Cornell University
+       Press, 1953, ch. 13.
+
+    Examples
+    --------
+    Symmetric binary, chi = 3: the coexisting phases satisfy
+    ln[phi/(1-phi)] = chi (2 phi - 1), whose root is phi = 0.0707 (a classic
+    textbook check; any table of the symmetric regular solution).
+
+    >>> b = binodal(3.0)
+    >>> round(b.phi_a, 4), round(b.phi_b, 4)
+    (0.0707, 0.9293)
+    """
+    chi = float(chi)
+    n1 = float(n1)
+    n2 = float(n2)
+    if not (math.isfinite(chi) and n1 > 0 and n2 > 0):
+        raise InputError(f"binodal: expected a finite chi and positive sizes, got chi={chi}, n1={n1}, n2={n2}")
+    chic = 0.5 * (1.0 / math.sqrt(n1) + 1.0 / math.sqrt(n2)) ** 2
+    nan = float("nan")
+    if chi <= chic * (1 + 1e-9):
+        return Binodal(chi, chic, False, nan, nan, True, "miscible in all proportions (chi <= chi_c)")
+    # lower convex hull of g on a uniform grid in phi: the hull edge that skips
+    # most grid points bridges the concave region; its ends approximate the
+    # binodal.  Where an end sits on the last grid point the solubility is below
+    # the grid, and the strong-segregation limit gives the starting point:
+    # ln phi_a ~ N2/N1 - 1 - chi N2 and ln(1 - phi_b) ~ N1/N2 - 1 - chi N1.
+    x = None
+    if chi > 2.5 * chic:  # well split: the strong-segregation limit is a good start
+        x = np.array([n2 / n1 - 1.0 - chi * n2, -(n1 / n2 - 1.0 - chi * n1)], dtype=float)
+        x = np.minimum(x, [-0.5, np.inf])
+        x = np.maximum(x, [-np.inf, 0.5])
+    else:
+        phi = np.linspace(0.0, 1.0, 2001)[1:-1]
+        u = np.log(phi) - np.log1p(-phi)
+        _, _, g, _, _, _ = _fh_parts(u, chi, n1, n2)
+        hull = _lower_hull(phi, g)
+        gaps = np.diff(hull)
+        k = int(np.argmax(gaps))
+        if gaps[k] <= 1:
+            return Binodal(chi, chic, True, nan, nan, False, "no two-phase region found on the grid (just above critical)")
+        i, j = hull[k], hull[k + 1]
+        ua = u[i] if i > 0 else min(u[0], n2 / n1 - 1.0 - chi * n2)
+        ub = u[j] if j < len(u) - 1 else max(u[-1], -(n1 / n2 - 1.0 - chi * n1))
+        x = np.array([ua, ub], dtype=float)
+    ok = False
+    for _ in range(100):
+        pa, qa, _, g1a, ha, g2a = _fh_parts(x[0], chi, n1, n2)
+        pb, qb, _, g1b, hb, g2b = _fh_parts(x[1], chi, n1, n2)
+        f = np.array([g1a - g1b, ha - hb])
+        sa, sb = pa * qa, pb * qb  # d phi / d u
+        jac = np.array([[g2a * sa, -g2b * sb], [-pa * g2a * sa, pb * g2b * sb]])
+        try:
+            step = np.linalg.solve(jac, -f)
+        except np.linalg.LinAlgError:
+            break
+        step = np.clip(step, -2.0, 2.0)
+        x = x + step
+        if np.max(np.abs(step)) < 1e-11:
+            ok = True
+            break
+    pa = float(1.0 / (1.0 + np.exp(-x[0])))
+    pb = float(1.0 / (1.0 + np.exp(-x[1])))
+    if not ok or not (pb - pa > 1e-6):
+        return Binodal(chi, chic, True, pa, pb, False, "Newton refinement of the common tangent did not converge")
+    return Binodal(chi, chic, True, pa, pb, True, "two liquid phases between phi_a and phi_b")
+
+
+def ideal_solubility(temp_C, mp_C, dHfus_kJ_mol) -> float:
+    r"""Ideal mole-fraction solubility of a crystalline solid (Schroeder-van Laar).
+
+    .. math:: \ln x^\mathrm{id} = -\frac{\Delta H_\mathrm{fus}}{R}\left(\frac1T - \frac1{T_m}\right)
+
+    (heat-capacity terms neglected).
+
+    Parameters
+    ----------
+    temp_C : float
+        temperature [C], below the melting point
+    mp_C : float
+        melting point [C]
+    dHfus_kJ_mol : float
+        enthalpy of fusion [kJ/mol]
+
+    References
+    ----------
+    .. [1] Prausnitz, J. M.; Lichtenthaler, R. N.; de Azevedo, E. G.
+       *Molecular Thermodynamics of Fluid-Phase Equilibria*, 3rd ed.;
+       Prentice Hall, 1999, ch. 11.
+
+    Examples
+    --------
+    Naphthalene, Tm = 80.2 C, 19.01 kJ/mol (``chemicals`` library values), at
+    25 C: x = 0.302 (textbooks quote about 0.30).
+
+    >>> round(ideal_solubility(25.0, 80.2, 19.01), 3)
+    0.302
+    """
+    if mp_C is None or dHfus_kJ_mol is None or not (math.isfinite(mp_C) and math.isfinite(dHfus_kJ_mol)):
+        raise MissingDataError("solid solubility needs the solute's melting point and enthalpy of fusion")
+    if dHfus_kJ_mol <= 0:
+        raise InputError(f"dHfus_kJ_mol: enthalpy of fusion must be positive, got {dHfus_kJ_mol}")
+    if temp_C >= mp_C:
+        raise OutOfRangeError(
+            f"temp_C: {temp_C:g} C is at or above the solute's melting point ({mp_C:g} C): it is a liquid "
+            "there, so ask whether the two liquids mix instead"
+        )
+    t = temp_C + 273.15
+    tm = mp_C + 273.15
+    return math.exp(-dHfus_kJ_mol * 1000.0 / R_J_MOL_K * (1.0 / t - 1.0 / tm))
+
+
+def ln_gamma_hansen(x2, solute_hsp, vm2_cm3_mol, solvent_hsp, vm1_cm3_mol, temp_C=25.0, combinatorial=True):
+    r"""Activity coefficient of a solute (2) in a solvent (1) from HSP.
+
+    Regular-solution residual term in the Hansen form, plus (optionally) the
+    Flory-Huggins combinatorial term for unequal molar volumes:
+
+    .. math::
+        \ln\gamma_2 = \frac{V_2\,\phi_1^2}{RT}\left[\Delta\delta_D^2
+          + \tfrac14\Delta\delta_P^2 + \tfrac14\Delta\delta_H^2\right]
+          + \ln\frac{\phi_2}{x_2} + 1 - \frac{\phi_2}{x_2}
+
+    with :math:`\phi_i` the volume fractions.
+
+    Parameters
+    ----------
+    x2 : array_like
+        mole fraction of the solute [-]
+    solute_hsp, solvent_hsp : array_like, shape (3,)
+        dD, dP, dH [MPa^0.5]
+    vm2_cm3_mol, vm1_cm3_mol : float
+        molar volumes of the (subcooled liquid) solute and of the solvent [cm^3/mol]
+    temp_C : float
+        temperature [C]
+    combinatorial : bool
+        include the Flory-Huggins combinatorial term
+
+    References
+    ----------
+    .. [1] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*,
+       2nd ed., CRC Press, 2007, ch. 2.
+    .. [2] Flory, P. J. *J. Chem. Phys.* 1942, 10, 51-61. doi:10.1063/1.1723621
+    """
+    x2 = np.asarray(x2, dtype=float)
+    v1 = float(vm1_cm3_mol)
+    v2 = float(vm2_cm3_mol)
+    a2 = ra(solute_hsp, solvent_hsp) ** 2 / 4.0
+    vol1 = (1.0 - x2) * v1
+    vol2 = x2 * v2
+    phi1 = vol1 / (vol1 + vol2)
+    t = temp_C + 273.15
+    out = v2 * phi1 * phi1 * a2 / (R_J_MOL_K * t)
+    if combinatorial:
+        ratio = v2 / (vol1 + vol2)  # phi2 / x2
+        out = out + np.log(ratio) + 1.0 - ratio
+    return out
+
+
+@dataclass(frozen=True)
+class SolubilityEstimate:
+    """Estimated solubility of a solid solute (an estimate, never a measurement)."""
+
+    temp_C: float
+    mole_fraction: float
+    mass_fraction: float
+    g_per_L: float
+    ideal_mole_fraction: float
+    gamma: float
+    basis: str
+    note: str
+
+    def to_dict(self) -> dict:
+        return asdict(self)
+
+
+def solid_solubility(
+    solute_hsp,
+    vm2_cm3_mol,
+    mw2_g_mol,
+    mp_C,
+    dHfus_kJ_mol,
+    solvent_hsp,
+    vm1_cm3_mol,
+    mw1_g_mol,
+    temp_C=25.0,
+    combinatorial=True,
+) -> SolubilityEstimate:
+    r"""Solubility of a crystalline solute in a liquid (or a blend) from HSP.
+
+    Solves :math:`\ln x_2 = \ln x_2^\mathrm{id} - \ln\gamma_2(x_2)` for the
+    saturation mole fraction, with :func:`ideal_solubility` and
+    :func:`ln_gamma_hansen`; the lowest root is taken (the first saturation
+    met when adding solid).  Mass fraction from the molar masses; g of solute
+    per L of solution with additive volumes (the solute counted at its
+    subcooled-liquid molar volume).  For a blend pass its mixed HSP
+    (:func:`mix`), its mole-average molar volume and molar mass.
+
+    Parameters
+    ----------
+    solute_hsp : array_like, shape (3,)
+        dD, dP, dH of the solute [MPa^0.5]
+    vm2_cm3_mol : float
+        molar volume of the solute (subcooled liquid) [cm^3/mol]
+    mw2_g_mol : float
+        molar mass of the solute [g/mol]
+    mp_C : float
+        melting point of the solute [C]
+    dHfus_kJ_mol : float
+        enthalpy of fusion of the solute [kJ/mol]
+    solvent_hsp : array_like, shape (3,)
+        dD, dP, dH of the solvent or blend [MPa^0.5]
+    vm1_cm3_mol : float
+        molar volume of the solvent [cm^3/mol]
+    mw1_g_mol : float
+        molar mass of the solvent [g/mol]
+    temp_C : float
+        temperature [C], below the solute's melting point
+    combinatorial : bool
+        include the Flory-Huggins combinatorial term
+
+    Returns
+    -------
+    SolubilityEstimate
+
+    References
+    ----------
+    .. [1] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*,
+       2nd ed., CRC Press, 2007, ch. 2.
+    .. [2] Prausnitz, J. M.; Lichtenthaler, R. N.; de Azevedo, E. G.
+       *Molecular Thermodynamics of Fluid-Phase Equilibria*, 3rd ed., 1999, ch. 11.
+
+    Examples
+    --------
+    Naphthalene (19.2, 2.0, 5.9 from Hansen 2007; subcooled-liquid V about
+    123 cm^3/mol, from memory; 128.17 g/mol; 80.2 C and 19.01 kJ/mol from the
+    ``chemicals`` library) in toluene (18.0, 1.4, 2.0; 106.8 cm^3/mol, Hansen
+    2007; 92.14 g/mol) at 25 C: x = 0.27 against an ideal 0.302; the measured
+    value is about 0.28 (from memory).
+
+    >>> s = solid_solubility([19.2, 2.0, 5.9], 123.0, 128.17, 80.2, 19.01,
+    ...                      [18.0, 1.4, 2.0], 106.8, 92.14, 25.0)
+    >>> round(s.mole_fraction, 2)
+    0.27
+    """
+    for label, v in (("vm2_cm3_mol", vm2_cm3_mol), ("mw2_g_mol", mw2_g_mol), ("vm1_cm3_mol", vm1_cm3_mol), ("mw1_g_mol", mw1_g_mol)):
+        if v is None or not (float(v) > 0):
+            raise MissingDataError(f"solid solubility needs {label} (a positive number), got {v}")
+    xid = ideal_solubility(temp_C, mp_C, dHfus_kJ_mol)
+    lnxid = math.log(xid)
+
+    def f(lnx):
+        return lnx + float(ln_gamma_hansen(math.exp(lnx), solute_hsp, vm2_cm3_mol, solvent_hsp, vm1_cm3_mol, temp_C, combinatorial)) - lnxid
+
+    from scipy.optimize import brentq
+
+    # f -> -inf as x -> 0 and f(0) = -ln x_id >= 0 at x = 1: scan for the first sign change
+    grid = np.linspace(-60.0, 0.0, 241)
+    vals = np.array([f(g) for g in grid])
+    idx = np.nonzero(vals >= 0)[0]
+    j = int(idx[0]) if idx.size else len(grid) - 1
+    if j == 0:
+        lnx = grid[0]
+    else:
+        lnx = brentq(f, grid[j - 1], grid[j], xtol=1e-12)
+    x = math.exp(lnx)
+    gamma = xid / x
+    m2 = x * mw2_g_mol
+    m1 = (1 - x) * mw1_g_mol
+    w = m2 / (m1 + m2)
+    g_l = 1000.0 * m2 / (x * vm2_cm3_mol + (1 - x) * vm1_cm3_mol)
+    note = (
+        "estimate: ideal solubility x activity coefficient from HSP (regular solution"
+        + (" + Flory-Huggins combinatorial" if combinatorial else "")
+        + "); solvation and hydrogen-bond complexing are not modelled, so confirm at the bench"
+    )
+    return SolubilityEstimate(float(temp_C), x, w, g_l, xid, gamma, "estimated", note)
+
+
+@dataclass(frozen=True)
+class PartitionEstimate:
+    """Liquid-liquid partition of a dilute solute between phase I and phase II."""
+
+    k_x: float
+    k_c: float
+    log10_k_c: float
+    gamma_inf_1: float
+    gamma_inf_2: float
+    basis: str
+    note: str
+
+    def to_dict(self) -> dict:
+        return asdict(self)
+
+
+def partition_coefficient(
+    solute_hsp, vm_solute_cm3_mol, phase1_hsp, vm1_cm3_mol, phase2_hsp, vm2_cm3_mol, temp_C=25.0, combinatorial=True
+) -> PartitionEstimate:
+    r"""Partition coefficient of a dilute solute between two immiscible liquids.
+
+    At equal activity in both phases and infinite dilution,
+
+    .. math::
+        K_x = \frac{x^{II}}{x^{I}} = \frac{\gamma^\infty_{I}}{\gamma^\infty_{II}},\qquad
+        K_c = \frac{c^{II}}{c^{I}} = K_x \frac{V_I}{V_{II}}
+
+    with :math:`\gamma^\infty` from :func:`ln_gamma_hansen` at :math:`x \to 0`
+    and :math:`V` the molar volumes of the two phases.  Use it for washing or
+    back-extraction steps (which phase takes the solute, and roughly how
+    strongly).  Phases are taken as the pure liquids: their mutual solubility
+    (e.g. water in octanol) is not modelled.
+
+    Parameters
+    ----------
+    solute_hsp, phase1_hsp, phase2_hsp : array_like, shape (3,)
+        dD, dP, dH [MPa^0.5]
+    vm_solute_cm3_mol, vm1_cm3_mol, vm2_cm3_mol : float
+        molar volumes [cm^3/mol]
+    temp_C : float
+        temperature [C]
+
+    Returns
+    -------
+    PartitionEstimate
+        ``k_c`` > 1 means the solute prefers phase II.
+
+    References
+    ----------
+    .. [1] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*,
+       2nd ed., CRC Press, 2007, ch. 2.
+    """
+    for label, v in (("vm_solute_cm3_mol", vm_solute_cm3_mol), ("vm1_cm3_mol", vm1_cm3_mol), ("vm2_cm3_mol", vm2_cm3_mol)):
+        if v is None or not (float(v) > 0):
+            raise MissingDataError(f"partition coefficient needs {label} (a positive number), got {v}")
+    lg1 = float(ln_gamma_hansen(0.0, solute_hsp, vm_solute_cm3_mol, phase1_hsp, vm1_cm3_mol, temp_C, combinatorial))
+    lg2 = float(ln_gamma_hansen(0.0, solute_hsp, vm_solute_cm3_mol, phase2_hsp, vm2_cm3_mol, temp_C, combinatorial))
+    kx = math.exp(lg1 - lg2)
+    kc = kx * float(vm1_cm3_mol) / float(vm2_cm3_mol)
+    note = "estimate from HSP activity coefficients at infinite dilution; mutual solubility of the phases ignored"
+    return PartitionEstimate(kx, kc, math.log10(kc), math.exp(lg1), math.exp(lg2), "estimated", note)
