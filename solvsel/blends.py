@@ -463,3 +463,848 @@ def pareto_front(objectives) -> np.ndarray:
         dom = np.all(F[i] <= F, axis=1) & np.any(F[i] < F, axis=1)
         keep &= ~dom
     return keep
+
+
+# ============================================================================ catalog level
+#
+# Everything below works on catalog records: it builds the pool from the
+# user's constraints, runs the exact search, and checks and describes the best
+# blends.  The checks that belong to other modules (one phase: miscibility;
+# hazard class, food status, cautions and dose limits: compliance) are called
+# through the small adapters at the end of this file.
+
+from dataclasses import field  # noqa: E402
+
+__all__ += [
+    "BlendComponent",
+    "RejectDistance",
+    "Blend",
+    "DroppedBlend",
+    "ExcludedLiquid",
+    "BlendSearch",
+    "FractionBound",
+    "parse_fraction_bound",
+    "optimise_blends",
+    "USES",
+]
+
+#: Intended uses a pool can be restricted to (the ``roles`` of the solvents table).
+USES = ("carrier", "extraction", "bench")
+
+#: Blends checked one by one (one phase, dose) at most, best first.
+_SCAN_LIMIT = 20000
+#: Dropped blends listed individually (the rest are counted).
+_DROPPED_LISTED = 30
+
+_GENERAL_CAUTION = (
+    "Screening estimate from Hansen solubility parameters (blend HSP by volume-fraction average): "
+    "confirm solubility, phase behaviour and stability at the bench; this is not a safety, "
+    "regulatory or stability sign-off. Defer to local codes, the regulations in force and licensed practice."
+)
+
+
+@dataclass(frozen=True)
+class FractionBound:
+    """A bound on one liquid's volume fraction in every blend, e.g. ``ethanol <= 0.3``.
+
+    A lower bound above zero means the liquid must be in every blend.
+    """
+
+    name: str
+    lower: float = 0.0
+    upper: float = 1.0
+
+    def to_dict(self) -> dict:
+        return {"name": self.name, "lower": self.lower, "upper": self.upper}
+
+
+def parse_fraction_bound(text: str, what: str = "--fraction") -> FractionBound:
+    """Parse ``"ethanol<=0.3"``, ``"water>=10%"``, ``"0.1<=water<=0.5"`` or ``"water=0.2"``.
+
+    Fractions are by volume, as numbers in 0..1 or percents.
+
+    >>> parse_fraction_bound("ethanol<=0.3")
+    FractionBound(name='ethanol', lower=0.0, upper=0.3)
+    >>> parse_fraction_bound("0.1 <= water <= 50%")
+    FractionBound(name='water', lower=0.1, upper=0.5)
+    """
+    import re
+
+    raw = str(text).strip()
+
+    def number(s):
+        s = s.strip()
+        pct = s.endswith("%")
+        try:
+            v = float(s.rstrip("%").strip()) * (0.01 if pct else 1.0)
+        except ValueError:
+            return None
+        return v
+
+    m = re.fullmatch(r"\s*([^<>=]+?)\s*<=\s*([^<>=]+?)\s*<=\s*([^<>=]+?)\s*", raw)
+    if m:
+        lo, name, hi = number(m.group(1)), m.group(2).strip(), number(m.group(3))
+    else:
+        m = re.fullmatch(r"\s*([^<>=]+?)\s*(<=|>=|=)\s*([^<>=]+?)\s*", raw)
+        if not m:
+            raise InputError(f"{what}: expected NAME<=X, NAME>=X, NAME=X or LO<=NAME<=HI (volume fractions), got '{text}'")
+        name, op, v = m.group(1).strip(), m.group(2), number(m.group(3))
+        if v is None and number(name) is not None:
+            raise InputError(f"{what}: put the liquid's name on the left, e.g. 'ethanol<=0.3', got '{text}'")
+        lo, hi = {"<=": (0.0, v), ">=": (v, 1.0), "=": (v, v)}[op]
+    if lo is None or hi is None or not name:
+        raise InputError(f"{what}: expected a liquid's name and volume fractions as numbers (0.3 or 30%), got '{text}'")
+    if not (0 <= lo <= 1 and 0 <= hi <= 1):
+        raise InputError(f"{what}: volume fractions must be between 0 and 1 (0 and 100 %), got '{text}'")
+    if lo > hi:
+        raise InputError(f"{what}: lower bound {lo:g} is above the upper bound {hi:g} in '{text}'")
+    return FractionBound(name=name, lower=float(lo), upper=float(hi))
+
+
+@dataclass(frozen=True)
+class BlendComponent:
+    """One liquid of a blend."""
+
+    name: str
+    cas: str
+    volume_fraction: float
+    mass_fraction: float | None
+    origin: str = "bundled"
+
+    def to_dict(self) -> dict:
+        return {"name": self.name, "cas": self.cas, "volume_fraction": self.volume_fraction,
+                "mass_fraction": self.mass_fraction, "origin": self.origin}
+
+
+@dataclass(frozen=True)
+class RejectDistance:
+    """How far a blend keeps a solute to reject (RED > 1: outside its sphere)."""
+
+    name: str
+    ra: float
+    red: float | None
+
+    def to_dict(self) -> dict:
+        return {"name": self.name, "ra": self.ra, "red": self.red}
+
+
+@dataclass(frozen=True)
+class Blend:
+    """A ranked blend with its properties and cautions.
+
+    ``ra`` [MPa^0.5] is the Hansen distance of the blend's HSP (dD, dP, dH,
+    volume-fraction average, at the search temperature) to the target; ``red``
+    is ``ra / R0`` (None if the target has no radius).  ``worst_reject_ra`` is
+    the smallest Ra to a reject solute (the one the blend dissolves best) and
+    ``worst_reject_red`` the lowest RED among them (None unless every reject has
+    a radius).  ``selectivity`` is the margin by which the nearest reject is
+    further than the target: ``worst_reject_red - red`` when the target and all
+    rejects have radii (``selectivity_basis`` "RED"), else
+    ``worst_reject_ra - ra`` [MPa^0.5] (basis "Ra").
+    """
+
+    components: tuple[BlendComponent, ...]
+    dD: float
+    dP: float
+    dH: float
+    ra: float
+    red: float | None
+    one_phase: bool | None
+    phase_basis: str
+    phase_note: str
+    bp_min_C: float | None
+    bp_max_C: float | None
+    lowest_flash_C: float | None
+    hazard: str
+    hazard_rank: int
+    cost: float | None
+    rejects: tuple[RejectDistance, ...] = ()
+    worst_reject_ra: float | None = None
+    worst_reject_red: float | None = None
+    selectivity: float | None = None
+    selectivity_basis: str | None = None
+    solubility: dict | None = None
+    regulations: tuple[dict, ...] = ()
+    cautions: tuple[str, ...] = ()
+    pareto: bool = False
+    rank: int = 0
+
+    @property
+    def names(self) -> tuple[str, ...]:
+        return tuple(c.name for c in self.components)
+
+    @property
+    def label(self) -> str:
+        """``"ethanol 0.62 + water 0.38"`` (volume fractions)."""
+        return " + ".join(f"{c.name} {c.volume_fraction:.2f}" for c in self.components)
+
+    def to_dict(self) -> dict:
+        return {
+            "rank": self.rank,
+            "components": [c.to_dict() for c in self.components],
+            "n_components": len(self.components),
+            "dD": self.dD, "dP": self.dP, "dH": self.dH,
+            "ra": self.ra, "red": self.red,
+            "one_phase": self.one_phase, "phase_basis": self.phase_basis, "phase_note": self.phase_note,
+            "bp_min_C": self.bp_min_C, "bp_max_C": self.bp_max_C,
+            "lowest_flash_C": self.lowest_flash_C,
+            "hazard": self.hazard, "hazard_rank": self.hazard_rank,
+            "cost": self.cost,
+            "rejects": [r.to_dict() for r in self.rejects],
+            "worst_reject_ra": self.worst_reject_ra,
+            "worst_reject_red": self.worst_reject_red,
+            "selectivity": self.selectivity,
+            "selectivity_basis": self.selectivity_basis,
+            "solubility": self.solubility,
+            "regulations": list(self.regulations),
+            "pareto": self.pareto,
+            "cautions": list(self.cautions),
+        }
+
+
+@dataclass(frozen=True)
+class DroppedBlend:
+    """A blend that ranked among the best but was left out, and why."""
+
+    names: tuple[str, ...]
+    volume_fractions: tuple[float, ...]
+    ra: float
+    reason: str
+
+    def to_dict(self) -> dict:
+        return {"components": [{"name": n, "volume_fraction": x} for n, x in zip(self.names, self.volume_fractions)],
+                "ra": self.ra, "reason": self.reason}
+
+
+@dataclass(frozen=True)
+class ExcludedLiquid:
+    """A liquid of the table left out of the pool, and why."""
+
+    name: str
+    reason: str
+
+    def to_dict(self) -> dict:
+        return {"name": self.name, "reason": self.reason}
+
+
+@dataclass(frozen=True)
+class BlendSearch:
+    """Result of :func:`optimise_blends`.
+
+    ``results`` best first; ``pareto`` the non-dominated blends among those
+    that passed every check (target RED or Ra, worst reject RED, cost, hazard,
+    number of components); ``dropped`` the blends that would have ranked above
+    the last shown one but failed a check; ``counts`` how many combinations
+    were searched and why the others went; ``success`` False (with
+    ``message``) when no blend meets the constraints.
+    """
+
+    target: dict
+    results: tuple[Blend, ...]
+    pareto: tuple[Blend, ...]
+    dropped: tuple[DroppedBlend, ...]
+    excluded: tuple[ExcludedLiquid, ...]
+    counts: dict
+    constraints: dict
+    cautions: tuple[str, ...]
+    success: bool
+    message: str
+
+    def to_dict(self) -> dict:
+        return {
+            "target": self.target,
+            "results": [b.to_dict() for b in self.results],
+            "pareto": [b.to_dict() for b in self.pareto],
+            "dropped": [d.to_dict() for d in self.dropped],
+            "excluded": [e.to_dict() for e in self.excluded],
+            "counts": self.counts,
+            "constraints": self.constraints,
+            "cautions": list(self.cautions),
+            "success": self.success,
+            "message": self.message,
+        }
+
+
+def _as_target(target):
+    """(name, hsp array, r0, solute record or None, dict for output) from a Target, a record or numbers."""
+    if hasattr(target, "dD"):
+        name = getattr(target, "name", "target")
+        hsp = np.array([target.dD, target.dP, target.dH], dtype=float)
+        r0 = getattr(target, "r0", None)
+        solute = getattr(target, "solute", None)
+        if solute is None and hasattr(target, "dHfus_kJ_mol"):
+            solute = target  # a Solute record itself
+        info = target.to_dict() if hasattr(target, "to_dict") else {"name": name}
+    else:
+        vals = [float(v) for v in np.ravel(target)]
+        if len(vals) not in (3, 4):
+            raise InputError(f"target: expected dD, dP, dH[, R0] in MPa^0.5, got {len(vals)} numbers")
+        name, hsp, r0, solute = "typed target", np.array(vals[:3]), (vals[3] if len(vals) == 4 else None), None
+        info = {"name": name}
+    hsp = as_hsp(hsp, "target")
+    if r0 is not None and not (math.isfinite(float(r0)) and float(r0) > 0):
+        raise InputError(f"target R0 must be a positive number of MPa^0.5, got {r0}")
+    keep = {k: v for k, v in info.items() if k not in ("solute",)}
+    keep.update({"name": name, "dD": float(hsp[0]), "dP": float(hsp[1]), "dH": float(hsp[2]),
+                 "r0": None if r0 is None else float(r0)})
+    return name, hsp, (None if r0 is None else float(r0)), solute, keep
+
+
+def _as_rejects(rejects):
+    out = []
+    for r in rejects or ():
+        if hasattr(r, "dD"):
+            name, hsp, r0 = getattr(r, "name", "reject"), [r.dD, r.dP, r.dH], getattr(r, "r0", None)
+        else:
+            try:
+                name, hsp, r0 = r
+            except (TypeError, ValueError):
+                raise InputError(f"reject: expected a solute record or (name, (dD, dP, dH), R0), got {r!r}") from None
+        if r0 is not None and not (math.isfinite(float(r0)) and float(r0) > 0):
+            raise InputError(f"reject '{name}': R0 must be a positive number of MPa^0.5, got {r0}")
+        out.append((str(name), as_hsp(hsp, f"reject '{name}'"), None if r0 is None else float(r0)))
+    return out
+
+
+def _same(rec, other) -> bool:
+    if rec.cas and other.cas:
+        return rec.cas == other.cas
+    return rec.name == other.name
+
+
+def optimise_blends(
+    cat,
+    target,
+    *,
+    max_components: int = 3,
+    only=None,
+    exclude=None,
+    use: str | None = None,
+    jurisdiction: str | None = None,
+    worst_flammable_category=None,
+    bp_min_C: float | None = None,
+    bp_max_C: float | None = None,
+    min_flash_C: float | None = None,
+    max_cost: int | None = None,
+    bounds=(),
+    temp_C: float = 25.0,
+    rejects=(),
+    sort: str | None = None,
+    one_phase_only: bool = True,
+    min_fraction: float = 0.02,
+    top: int = 10,
+    pareto_pool: int | None = None,
+    pool=None,
+) -> BlendSearch:
+    r"""Best blends of 1 to ``max_components`` liquids for a target, under constraints.
+
+    The pool is the solvents table (or ``only`` / ``pool``) less the liquids the
+    constraints leave out (each with its reason, in ``excluded``).  For every
+    combination the volume fractions minimising Ra to the target are exact
+    (:func:`best_fractions`); blends whose fractions put a liquid under
+    ``min_fraction`` are the same as a smaller blend and are counted, not
+    listed.  The best are then checked one by one, best first: one phase at
+    those fractions (the miscibility module: measured pairs first, prediction
+    otherwise) and the legal status for the use and jurisdiction.
+
+    .. math::
+        \delta_\mathrm{blend} = \sum_i \phi_i \delta_i,\qquad
+        \mathrm{RED} = R_a(\delta_\mathrm{blend}, \delta_t) / R_0
+
+    Parameters
+    ----------
+    cat : Catalog
+        the catalog (solvents table and the tables the checks need)
+    target : Target, Solute or sequence
+        the target: a :class:`solvsel.target.Target`, a solute record, or
+        ``(dD, dP, dH[, R0])`` [MPa^0.5]
+    max_components : int
+        largest blend, 1 to 4
+    only, exclude : iterable of str, optional
+        names (or CAS) the pool is restricted to / leaves out
+    use : {"carrier", "extraction", "bench"}, optional
+        intended use: keeps liquids of the table listed for that use
+    jurisdiction : str, optional
+        e.g. "EU", "US": leaves out liquids not permitted for ``use`` there
+    worst_flammable_category : int or "none", optional
+        most hazardous GHS flammable-liquid category allowed (1..4); "none"
+        keeps only non-flammable liquids
+    bp_min_C, bp_max_C : float, optional
+        window for the normal boiling point of every liquid [C]
+    min_flash_C : float, optional
+        lowest closed-cup flash point allowed for any flammable liquid [C]
+    max_cost : int, optional
+        dearest cost class allowed (1 cheap .. 5 dear)
+    bounds : iterable of FractionBound or str
+        per-liquid volume-fraction bounds (``"ethanol<=0.3"``, ``"water>=0.1"``)
+    temp_C : float
+        temperature [C]: liquids' HSP shifted by Hansen-Beerbower (the
+        target is kept at its tabulated values)
+    rejects : iterable
+        solutes to keep out of solution: records or ``(name, (dD, dP, dH), R0)``
+    sort : {"fit", "selectivity", "cost"}, optional
+        ranking: best fit (Ra); selectivity (the default with rejects): the
+        checked blends are sorted into non-dominated layers on (fit, distance
+        of the nearest reject), first layer first, by fit within a layer, so
+        the trade-off front leads without any weighting of the two; or lowest
+        cost, then fit
+    one_phase_only : bool
+        drop blends predicted or measured to split into two phases
+    min_fraction : float
+        smallest volume fraction [-] of a liquid that counts as a component
+    top : int
+        number of blends returned
+    pareto_pool : int, optional
+        number of checked blends the Pareto front is taken over (default 5 x top, at least 50)
+    pool : list of Solvent, optional
+        the records to search instead of the solvents table (e.g. the user's own)
+
+    Returns
+    -------
+    BlendSearch
+    """
+    from .hansen import shift_temperature
+
+    name, t_hsp, r0, solute, t_info = _as_target(target)
+    if not 1 <= int(max_components) <= MAX_COMPONENTS:
+        raise InputError(f"--max-components: expected 1 to {MAX_COMPONENTS}, got {max_components}")
+    if use is not None and use not in USES:
+        raise InputError(f"--use: expected one of {', '.join(USES)}, got '{use}'")
+    if int(top) < 1:
+        raise InputError(f"--top: expected a positive number of blends, got {top}")
+    if not 0 <= float(min_fraction) < 0.5:
+        raise InputError(f"--min-fraction: expected a volume fraction between 0 and 0.5, got {min_fraction}")
+    if worst_flammable_category is not None and worst_flammable_category != "none":
+        try:
+            worst_flammable_category = int(worst_flammable_category)
+        except (TypeError, ValueError):
+            worst_flammable_category = -1
+        if worst_flammable_category not in (1, 2, 3, 4):
+            raise InputError("--worst-hazard: expected a GHS flammable-liquid category 1, 2, 3 or 4, or 'none'")
+    if bp_min_C is not None and bp_max_C is not None and bp_min_C > bp_max_C:
+        raise InputError(f"--bp-range: lowest boiling point {bp_min_C:g} C is above the highest {bp_max_C:g} C")
+    rej = _as_rejects(rejects)
+    if sort is None:
+        sort = "selectivity" if rej else "fit"
+    if sort not in ("fit", "selectivity", "cost"):
+        raise InputError(f"--sort: expected fit, selectivity or cost, got '{sort}'")
+    if sort == "selectivity" and not rej:
+        raise InputError("--sort selectivity needs at least one --reject solute")
+    red_basis = bool(rej) and r0 is not None and all(rr is not None for _, _, rr in rej)
+    bounds = [b if isinstance(b, FractionBound) else parse_fraction_bound(b) for b in (bounds or ())]
+    temp_C = float(temp_C)
+    if not math.isfinite(temp_C):
+        raise InputError(f"--temp: expected a temperature in C, got {temp_C}")
+
+    # ------------------------------------------------------------------ pool
+    if pool is not None:
+        records = list(pool)
+    elif only:
+        records = [cat.solvent(n) for n in only]
+    else:
+        records = list(cat.solvent_records())
+    unique = []
+    for rec in records:
+        if not any(_same(rec, u) for u in unique):
+            unique.append(rec)
+    records = unique
+    excluded: list[ExcludedLiquid] = []
+    drop_recs = [cat.solvent(n) for n in (exclude or ())]
+
+    kept, kept_hsp, hazards = [], [], []
+    for rec in records:
+        reason = None
+        if any(_same(rec, d) for d in drop_recs):
+            reason = "excluded by you"
+        elif use is not None and use not in rec.roles:
+            reason = f"not listed for use as {use} (listed: {', '.join(rec.roles) or 'none'})"
+        elif max_cost is not None and rec.cost_class is not None and rec.cost_class > int(max_cost):
+            reason = f"cost class {rec.cost_class} above {int(max_cost)}"
+        elif bp_min_C is not None or bp_max_C is not None:
+            if rec.bp_C is None:
+                reason = "boiling point not on record"
+            elif bp_min_C is not None and rec.bp_C < bp_min_C:
+                reason = f"boils at {rec.bp_C:g} C, below {bp_min_C:g} C"
+            elif bp_max_C is not None and rec.bp_C > bp_max_C:
+                reason = f"boils at {rec.bp_C:g} C, above {bp_max_C:g} C"
+        if reason is None and min_flash_C is not None and rec.flammable:
+            if rec.flash_C is None:
+                reason = "flammable, flash point not on record"
+            elif rec.flash_C < min_flash_C:
+                reason = f"flash point {rec.flash_C:g} C, below {min_flash_C:g} C"
+        hz_label, hz_rank, hz_cat, hz_flammable = _hazard_of(rec)
+        if reason is None and worst_flammable_category is not None:
+            if worst_flammable_category == "none" and hz_flammable:
+                reason = f"flammable ({hz_label})"
+            elif worst_flammable_category != "none" and hz_cat is not None and hz_cat < worst_flammable_category:
+                reason = f"{hz_label}, more hazardous than category {worst_flammable_category}"
+        if reason is None and jurisdiction is not None:
+            reason = _not_permitted(cat, rec, use, jurisdiction)
+        h = rec.hsp
+        if reason is None and abs(temp_C - 25.0) > 1e-9:
+            if rec.alpha_1_K is None:
+                reason = f"no thermal expansion coefficient on record to shift its HSP to {temp_C:g} C"
+            else:
+                try:
+                    bp = rec.bp_C if (rec.bp_C is not None and rec.bp_C > 25.0) else None
+                    h = shift_temperature(h, rec.alpha_1_K, temp_C, mp_C=rec.mp_C, bp_C=bp)
+                except InputError as exc:  # frozen or boiling at temp_C
+                    reason = str(exc)
+        if reason is not None:
+            excluded.append(ExcludedLiquid(rec.name, reason))
+            continue
+        kept.append(rec)
+        kept_hsp.append(np.asarray(h, dtype=float))
+        hazards.append((hz_label, hz_rank))
+
+    constraints = {
+        "max_components": int(max_components), "use": use, "jurisdiction": jurisdiction,
+        "only": list(only) if only else None, "exclude": list(exclude) if exclude else None,
+        "worst_flammable_category": worst_flammable_category, "bp_min_C": bp_min_C, "bp_max_C": bp_max_C,
+        "min_flash_C": min_flash_C, "max_cost": max_cost, "bounds": [b.to_dict() for b in bounds],
+        "temp_C": temp_C, "rejects": [r[0] for r in rej], "sort": sort, "one_phase_only": bool(one_phase_only),
+        "min_fraction": float(min_fraction), "top": int(top),
+    }
+    t_info["temp_C"] = temp_C
+    cautions = [_GENERAL_CAUTION]
+    if abs(temp_C - 25.0) > 1e-9:
+        cautions.append(
+            f"Liquids' HSP shifted from 25 C to {temp_C:g} C (Hansen-Beerbower); the target's are its tabulated values."
+        )
+    counts = {"liquids": len(kept), "excluded_liquids": len(excluded), "combinations": 0,
+              "bounds_not_met": 0, "same_as_smaller_blend": 0, "checked": 0, "two_phase": 0,
+              "not_permitted": 0, "kept": 0}
+
+    def finish(results, pareto, dropped, success, message):
+        return BlendSearch(t_info, tuple(results), tuple(pareto), tuple(dropped), tuple(excluded), counts,
+                           constraints, tuple(cautions), success, message)
+
+    # ------------------------------------------------------------------ bounds
+    m = len(kept)
+    lo, hi = np.zeros(m), np.ones(m)
+    for b in bounds:
+        ref = cat.solvent(b.name)
+        hit = [i for i, rec in enumerate(kept) if _same(rec, ref)]
+        if not hit:
+            if b.lower > 0:
+                why = next((e.reason for e in excluded if e.name == ref.name), "not in the pool")
+                raise InputError(
+                    f"--fraction {b.name}>={b.lower:g}: {ref.name} must then be in every blend, but it is "
+                    f"left out ({why})"
+                )
+            continue
+        lo[hit[0]] = max(lo[hit[0]], b.lower)
+        hi[hit[0]] = min(hi[hit[0]], b.upper)
+        if lo[hit[0]] > hi[hit[0]]:
+            raise InputError(f"--fraction: the bounds given for {ref.name} contradict each other")
+    n_required = int(np.count_nonzero(lo > 0))
+    if n_required > int(max_components):
+        raise InputError(f"{n_required} liquids must be in every blend (lower bounds), more than --max-components {max_components}")
+    if lo.sum() > 1 + 1e-12:
+        raise InputError(f"the lower bounds add up to {lo.sum():g}, more than the whole blend")
+    if m == 0:
+        return finish([], [], [], False, "no liquid is left in the pool under these constraints (see excluded)")
+
+    # ------------------------------------------------------------------ exact search
+    H = np.array(kept_hsp).reshape(m, 3)
+    idx_parts, x_parts, ra_parts, ok_parts = [], [], [], []
+    for k, combos, res in search_blends(H, t_hsp, min(int(max_components), m), lower=lo, upper=hi):
+        pad = np.full((combos.shape[0], MAX_COMPONENTS), -1, dtype=np.int32)
+        pad[:, :k] = combos
+        xs = np.zeros((combos.shape[0], MAX_COMPONENTS))
+        xs[:, :k] = np.nan_to_num(res.fractions)
+        idx_parts.append(pad)
+        x_parts.append(xs)
+        ra_parts.append(res.ra)
+        ok_parts.append(res.feasible)
+    if not idx_parts:
+        return finish([], [], [], False, "no combination of the pool meets the fraction bounds")
+    IDX = np.concatenate(idx_parts)
+    X = np.concatenate(x_parts)
+    RA = np.concatenate(ra_parts)
+    FEAS = np.concatenate(ok_parts)
+    member = IDX >= 0
+    K = member.sum(1)
+    counts["combinations"] = int(IDX.shape[0])
+    counts["bounds_not_met"] = int(np.count_nonzero(~FEAS))
+    reduced = FEAS & (K > 1) & np.any(member & (X < float(min_fraction)), axis=1)
+    counts["same_as_smaller_blend"] = int(np.count_nonzero(reduced))
+    cand = np.flatnonzero(FEAS & ~reduced)
+
+    # blend HSP and scores of every candidate
+    Hpad = np.vstack([H, np.zeros((1, 3))])
+    BH = np.einsum("nk,nkc->nc", X[cand], Hpad[IDX[cand]])
+    ra_c = RA[cand]
+    red_c = ra_c / r0 if r0 else None
+    if rej:
+        # distance of the nearest reject, in RED if every radius is known, else in Ra
+        rej_d = np.stack([np.sqrt(np.sum(((BH - rh) * SCALE) ** 2, axis=1)) / (rr if red_basis else 1.0)
+                          for _, rh, rr in rej], axis=1)
+        worst_c = rej_d.min(axis=1)
+        fit_c = red_c if red_basis else ra_c
+    else:
+        worst_c = None
+    cost_vec = np.array([np.nan if r.cost_class is None else float(r.cost_class) for r in kept] + [0.0])
+    cost_c = np.einsum("nk,nk->n", X[cand], cost_vec[IDX[cand]])
+    if sort == "cost":
+        order = np.lexsort((ra_c, np.nan_to_num(cost_c, nan=np.inf)))
+    else:  # fit, and the pool that selectivity re-ranks
+        order = np.lexsort((K[cand], ra_c))
+
+    # ------------------------------------------------------------------ checks, best first
+    want = int(top)
+    pool_n = max(5 * want, 200 if rej else 50) if pareto_pool is None else max(int(pareto_pool), want)
+    dropped: list[DroppedBlend] = []
+    kept_rows: list[tuple[int, object]] = []
+    # one-phase screen of every candidate at once (pairwise windows, measured
+    # pairs first); the full check with its reasons runs on the blends shown
+    screen_ok = _screen(cat, kept, IDX[cand], X[cand], temp_C)
+    if screen_ok is not None:
+        counts["two_phase"] = int(np.count_nonzero(~screen_ok))
+
+    def members_of(j):
+        row = cand[j]
+        members = [int(i) for i in IDX[row] if i >= 0]
+        return row, [kept[i] for i in members], X[row, : len(members)]
+
+    for j in order[:_SCAN_LIMIT]:
+        counts["checked"] += 1
+        if one_phase_only and screen_ok is not None and not screen_ok[j]:
+            if len(kept_rows) < want and len(dropped) < _DROPPED_LISTED:
+                row, recs, xs = members_of(j)
+                ph = _phase(cat, recs, xs, temp_C)
+                dropped.append(DroppedBlend(tuple(r.name for r in recs), tuple(float(v) for v in xs), float(RA[row]),
+                                            f"two phases at these fractions ({ph[1]}): {ph[2]}"))
+            continue
+        kept_rows.append((j, None))
+        if len(kept_rows) >= pool_n:
+            break
+    counts["kept"] = len(kept_rows)
+    if not kept_rows:
+        return finish([], [], dropped, False, "no blend passed the checks (see dropped)")
+    if sort == "selectivity":
+        js = np.array([j for j, _ in kept_rows])
+        layer = _pareto_layers(np.column_stack([fit_c[js], -worst_c[js]]))
+        new = np.lexsort((ra_c[js], layer))
+        kept_rows = [kept_rows[i] for i in new]
+
+    # ------------------------------------------------------------------ describe
+    def describe(j, phase, rank):
+        row, recs, xs = members_of(j)
+        members = [int(i) for i in IDX[row] if i >= 0]
+        xs = xs.copy()
+        phase = (True, "single liquid", "") if len(recs) == 1 else _phase(cat, recs, xs, temp_C)
+        return _describe_blend(
+            cat, recs, xs, BH[j], float(ra_c[j]), r0, phase, [hazards[i] for i in members],
+            None if np.isnan(cost_c[j]) else float(cost_c[j]),
+            rej, red_basis, solute, t_hsp, temp_C, use, jurisdiction, rank,
+        )
+
+    F = [ra_c[[j for j, _ in kept_rows]]]
+    if rej:
+        F.append(-worst_c[[j for j, _ in kept_rows]])
+    F.append(np.nan_to_num(cost_c[[j for j, _ in kept_rows]], nan=np.inf))
+    F.append(np.array([max(hazards[int(i)][1] for i in IDX[cand[j]] if i >= 0) for j, _ in kept_rows], float))
+    F.append(K[[cand[j] for j, _ in kept_rows]].astype(float))
+    front = pareto_front(np.column_stack(F))
+
+    described = {}
+    results = []
+    for rank, ((j, phase), on_front) in enumerate(zip(kept_rows[:want], front[:want]), start=1):
+        b = describe(j, phase, rank)
+        b = _with(b, pareto=bool(on_front))
+        described[j] = b
+        results.append(b)
+    pareto = []
+    for pos, ((j, phase), on_front) in enumerate(zip(kept_rows, front)):
+        if on_front:
+            pareto.append(described.get(j) or _with(describe(j, phase, pos + 1), pareto=True))
+    msg = f"{len(results)} blend(s) from {m} liquids; {counts['combinations']} combinations searched"
+    return finish(results, pareto, dropped, True, msg)
+
+
+def _pareto_layers(objectives) -> np.ndarray:
+    """Non-dominated sorting: layer 0 is the Pareto front, layer 1 the front of the rest, ..."""
+    F = np.asarray(objectives, dtype=float)
+    layer = np.full(F.shape[0], -1)
+    left = np.arange(F.shape[0])
+    level = 0
+    while left.size:
+        front = pareto_front(F[left])
+        layer[left[front]] = level
+        left = left[~front]
+        level += 1
+    return layer
+
+
+def _with(blend: Blend, **changes) -> Blend:
+    from dataclasses import replace
+
+    return replace(blend, **changes)
+
+
+def _describe_blend(cat, recs, xs, bh, ra_value, r0, phase, hazards, cost, rej, red_basis, solute, t_hsp,
+                    temp_C, use, jurisdiction, rank) -> Blend:
+    from .hansen import convert_fractions
+
+    xs = np.clip(xs, 0.0, 1.0)
+    xs = xs / xs.sum()
+    dens = [r.density_g_cm3 for r in recs]
+    mass = [None] * len(recs)
+    if all(d is not None and d > 0 for d in dens):
+        mass = [float(v) for v in convert_fractions(xs, "volume", "mass", density_g_cm3=dens)]
+    comps = tuple(
+        BlendComponent(r.name, r.cas, float(x), w, r.origin) for r, x, w in zip(recs, xs, mass)
+    )
+    bps = [r.bp_C for r in recs if r.bp_C is not None]
+    flashes = [r.flash_C for r in recs if r.flammable and r.flash_C is not None]
+    worst = max(hazards, key=lambda h: h[1])
+    rdist = tuple(
+        RejectDistance(n, v, None if rr is None else v / rr)
+        for (n, rh, rr), v in ((r, float(np.sqrt(np.sum(((bh - r[1]) * SCALE) ** 2)))) for r in rej)
+    )
+    red_value = None if r0 is None else ra_value / r0
+    worst_ra = min((r.ra for r in rdist), default=None)
+    worst_rej = min((r.red for r in rdist), default=None) if red_basis else None
+    if not rdist:
+        selectivity, basis = None, None
+    elif red_basis:
+        selectivity, basis = worst_rej - red_value, "RED"
+    else:
+        selectivity, basis = worst_ra - ra_value, "Ra"
+    cautions = []
+    regs = []
+    for r in recs:
+        cautions.extend(_solvent_cautions(r, use))
+        regs.extend(_regulations(cat, r, use, jurisdiction))
+    if len(recs) > 1 and flashes:
+        cautions.append(
+            f"Lowest flash point of a component {min(flashes):g} C: the blend's flash point is not the average "
+            "and must be measured (closed cup)."
+        )
+    if phase[1] == "predicted":
+        cautions.append("One phase is predicted from HSP, not measured: check the blend at the bench and in the cold.")
+    return Blend(
+        components=comps,
+        dD=float(bh[0]), dP=float(bh[1]), dH=float(bh[2]),
+        ra=ra_value, red=red_value,
+        one_phase=phase[0] if len(recs) > 1 else True,
+        phase_basis=phase[1], phase_note=phase[2],
+        bp_min_C=min(bps) if bps else None, bp_max_C=max(bps) if bps else None,
+        lowest_flash_C=min(flashes) if flashes else None,
+        hazard=worst[0], hazard_rank=int(worst[1]),
+        cost=cost,
+        rejects=rdist, worst_reject_ra=worst_ra, worst_reject_red=worst_rej,
+        selectivity=selectivity, selectivity_basis=basis,
+        solubility=_solubility(solute, t_hsp, recs, xs, bh, temp_C),
+        regulations=tuple(regs),
+        cautions=tuple(dict.fromkeys(c for c in cautions if c)),
+        rank=rank,
+    )
+
+
+# ---------------------------------------------------------------- adapters to other engines
+
+def _solubility(solute, t_hsp, recs, xs, bh, temp_C):
+    """Solid solubility estimate of the target in the blend, where its data allow."""
+    if solute is None:
+        return None
+    need = (getattr(solute, "mp_C", None), getattr(solute, "dHfus_kJ_mol", None),
+            getattr(solute, "mw_g_mol", None), getattr(solute, "vm_cm3_mol", None))
+    if any(v is None for v in need):
+        return None
+    if any(r.mw_g_mol is None or r.vm_cm3_mol is None or r.density_g_cm3 is None for r in recs):
+        return None
+    from .errors import SolvselError
+    from .hansen import convert_fractions, solid_solubility
+
+    try:
+        xm = convert_fractions(xs, "volume", "mole", density_g_cm3=[r.density_g_cm3 for r in recs],
+                               mw_g_mol=[r.mw_g_mol for r in recs])
+        vm1 = float(np.dot(xm, [r.vm_cm3_mol for r in recs]))
+        mw1 = float(np.dot(xm, [r.mw_g_mol for r in recs]))
+        est = solid_solubility(t_hsp, need[3], need[2], need[0], need[1], bh, vm1, mw1, temp_C=temp_C)
+    except SolvselError:
+        return None
+    return est.to_dict()
+
+
+def _hazard_of(rec):
+    """(label, rank, GHS category, flammable) of a liquid, from the compliance module.
+
+    rank orders hazard for the Pareto front: 0 not flammable, 1 gas under
+    pressure (not flammable) or flammable-liquid category 4, 2 category 3,
+    3 category 2, 4 category 1 (or flammable with no flash point on record),
+    5 flammable gas.
+    """
+    from .compliance import hazard_class
+
+    hz = hazard_class(rec.flash_C, rec.bp_C, flammable=rec.flammable)
+    if hz is None:
+        return "not flammable", 0, None, False
+    if hz.kind == "gas under pressure":
+        return "gas under pressure, not flammable", 1, None, False
+    if hz.kind == "flammable gas":
+        return "flammable gas", 5, 1, True
+    if hz.category is None:
+        return "flammable liquid, category not determined", 4, 1, True
+    return f"flammable liquid, GHS category {hz.category}", 5 - hz.category, hz.category, True
+
+
+def _not_permitted(cat, rec, use, jurisdiction):
+    """Reason a liquid is left out under a jurisdiction's food law for the use, or None."""
+    if use == "bench":
+        return None  # bench tests are not a food use: no food-law filter
+    from .compliance import food_status
+
+    st = food_status(cat, rec, use=use or "carrier", jurisdiction=jurisdiction)
+    if st.allowed:
+        return None
+    return f"{st.status} as {use or 'carrier'} in {jurisdiction}: {st.message}"
+
+
+def _regulations(cat, rec, use, jurisdiction):
+    if use is None and jurisdiction is None:
+        return []
+    if use == "bench":
+        return [{"name": rec.name, "use": "bench", "status": "bench only",
+                 "message": f"{rec.name}: bench tests only, not a food use"}]
+    from .compliance import food_status
+
+    st = food_status(cat, rec, use=use or "carrier", jurisdiction=jurisdiction)
+    d = st.to_dict()
+    return [{k: d[k] for k in ("name", "cas", "use", "jurisdiction", "status", "allowed", "conditions", "message",
+                               "flagged", "per_jurisdiction")}]
+
+
+def _solvent_cautions(rec, use):
+    from .compliance import solvent_cautions
+
+    return solvent_cautions(rec, use=use)
+
+
+def _screen(cat, recs, idx, fractions, temp_C):
+    """Pairwise one-phase screen of many blends (miscibility.pair_matrix), or None if unavailable."""
+    try:
+        from .miscibility import pair_matrix
+    except ModuleNotFoundError as exc:
+        if exc.name == "solvsel.miscibility":
+            return None
+        raise
+    m = pair_matrix(cat, [r.name for r in recs], temp_C)
+    return m.screen(np.where(idx < 0, 0, idx), fractions)
+
+
+def _phase(cat, recs, xs, temp_C):
+    """(one_phase True/False/None, basis, reason) of a blend at its fractions (miscibility.blend_phase)."""
+    try:
+        from .miscibility import blend_phase
+    except ModuleNotFoundError as exc:
+        if exc.name == "solvsel.miscibility":
+            return None, "not checked", "the miscibility check is not available"
+        raise
+    res = blend_phase(cat, [r.name for r in recs], [float(v) for v in xs], temp_C)
+    text = res.reason if not res.one_phase else res.note
+    if not res.one_phase and res.note:
+        text = f"{res.reason}; {res.note}"
+    return bool(res.one_phase), str(res.basis), str(text)

@@ -1,0 +1,227 @@
+"""``solvsel blend``: the best blends of up to four liquids for a target, under constraints."""
+
+from __future__ import annotations
+
+from ._common import add_json_flag, emit_json, get_catalog, parse_hsp, parse_names, print_cautions, print_table
+from ._target import add_target_arguments, target_from_args
+
+
+def register(sub):
+    p = sub.add_parser(
+        "blend",
+        help="optimise blends of up to 4 solvents for a solute, with constraints and rejects",
+        description=(
+            "Find the blends of 1 to 4 liquids whose Hansen parameters come closest to the target, "
+            "with the exact best volume fractions for every combination, under your constraints "
+            "(use, jurisdiction, hazard, boiling and flash points, fraction bounds, cost). Blends that "
+            "would split into two phases are dropped, and the reason is shown. With --reject, blends are "
+            "ranked by how well they keep those solutes out while dissolving the target (a Pareto trade-off)."
+        ),
+    )
+    add_target_arguments(p)
+    g = p.add_argument_group("pool and constraints")
+    g.add_argument("--max-components", type=int, default=3, metavar="N", help="largest blend, 1 to 4 (default 3)")
+    g.add_argument("--only", metavar="NAMES", help="search only these liquids (comma-separated names or CAS)")
+    g.add_argument("--exclude", metavar="NAMES", help="leave these liquids out (comma-separated)")
+    g.add_argument("--use", choices=("carrier", "extraction", "bench"),
+                   help="intended use: keeps liquids listed for it (and, with --jurisdiction, permitted for it)")
+    g.add_argument("--jurisdiction", choices=("EU", "US"),
+                   help="leave out liquids the bundled food-law table does not permit for the use there")
+    g.add_argument("--fraction", metavar="BOUND", action="append", default=[],
+                   help="volume-fraction bound on a liquid, e.g. \"ethanol<=0.3\", \"water>=0.1\" (the liquid is then "
+                   "in every blend), \"0.2<=triacetin<=0.6\"; repeat for several")
+    g.add_argument("--worst-hazard", metavar="CAT", choices=("1", "2", "3", "4", "none"),
+                   help="most hazardous GHS flammable-liquid category allowed: 1..4, or 'none' for non-flammable "
+                   "liquids only (e.g. 2 leaves out category 1 liquids and flammable gases)")
+    g.add_argument("--bp-range", metavar="LO:HI",
+                   help="normal boiling point window in C for every liquid, e.g. 40:100, :120 or 150:")
+    g.add_argument("--min-flash", type=float, metavar="C", help="lowest closed-cup flash point allowed in C")
+    g.add_argument("--max-cost", type=int, metavar="CLASS", help="dearest cost class allowed (1 cheap .. 5 dear)")
+    g.add_argument("--temp", type=float, default=25.0, metavar="C",
+                   help="temperature in C; the liquids' HSP are shifted to it (default 25)")
+    g.add_argument("--min-fraction", type=float, default=0.02, metavar="F",
+                   help="smallest volume fraction that counts as a component (default 0.02); blends with less "
+                   "of a liquid are the same as a smaller blend")
+    r = p.add_argument_group("selectivity")
+    r.add_argument("--reject", metavar="NAMES", action="append", default=[],
+                   help="solutes to keep out of solution (comma-separated names of the solutes table)")
+    r.add_argument("--reject-hsp", metavar="dD,dP,dH[,R0]", action="append", default=[],
+                   help="a solute to reject given by its Hansen parameters (and radius); repeat for several")
+    o = p.add_argument_group("output")
+    o.add_argument("--sort", choices=("fit", "selectivity", "cost"),
+                   help="ranking: fit (Ra, the default), selectivity (the default with rejects), cost")
+    o.add_argument("--keep-two-phase", action="store_true",
+                   help="list blends that split into two phases too (marked), instead of dropping them")
+    o.add_argument("--top", type=int, default=10, metavar="N", help="number of blends shown (default 10)")
+    add_json_flag(p)
+    return p
+
+
+def _parse_range(text):
+    from ..errors import InputError
+
+    if text is None:
+        return None, None
+    t = str(text).strip()
+    if ":" not in t:
+        raise InputError(f"--bp-range: expected LO:HI in C (either side may be empty), got '{text}'")
+    lo, _, hi = t.partition(":")
+    try:
+        lo_v = float(lo) if lo.strip() else None
+        hi_v = float(hi) if hi.strip() else None
+    except ValueError:
+        raise InputError(f"--bp-range: expected numbers of C as LO:HI, got '{text}'") from None
+    if lo_v is None and hi_v is None:
+        raise InputError("--bp-range: give at least one side, e.g. 40:100, :120 or 150:")
+    return lo_v, hi_v
+
+
+def _rejects(args, cat):
+    out = []
+    for text in args.reject:
+        for name in parse_names(text, "--reject"):
+            out.append(cat.solute(name))
+    for i, text in enumerate(args.reject_hsp, start=1):
+        v = parse_hsp(text, "--reject-hsp", allow_r0=True)
+        out.append((f"reject sphere {i} ({text})", v[:3], v[3] if len(v) == 4 else None))
+    return out
+
+
+def search(args, cat):
+    """Run the search the options describe (also used by the report command and the UI)."""
+    from ..blends import optimise_blends
+
+    target = target_from_args(args, cat)
+    bp_lo, bp_hi = _parse_range(args.bp_range)
+    return optimise_blends(
+        cat, target,
+        max_components=args.max_components,
+        only=parse_names(args.only, "--only") if args.only else None,
+        exclude=parse_names(args.exclude, "--exclude") if args.exclude else None,
+        use=args.use,
+        jurisdiction=args.jurisdiction,
+        worst_flammable_category=args.worst_hazard,
+        bp_min_C=bp_lo, bp_max_C=bp_hi,
+        min_flash_C=args.min_flash,
+        max_cost=args.max_cost,
+        bounds=args.fraction,
+        temp_C=args.temp,
+        rejects=_rejects(args, cat),
+        sort=args.sort,
+        one_phase_only=not args.keep_two_phase,
+        min_fraction=args.min_fraction,
+        top=args.top,
+    )
+
+
+def _short_hazard(b) -> str:
+    return {0: "none", 1: "low"}.get(b.hazard_rank, b.hazard.replace("flammable liquid, GHS ", "").replace("category ", "cat "))
+
+
+def _phase_text(b) -> str:
+    if len(b.components) == 1:
+        return "-"
+    if b.one_phase is None:
+        return "?"
+    return ("yes" if b.one_phase else "NO") + (" (m)" if b.phase_basis == "measured" else " (p)" if b.phase_basis == "predicted" else "")
+
+
+def print_search(res, file=None) -> None:
+    import sys
+
+    file = file or sys.stdout
+    t = res.target
+    r0 = f", R0 {t['r0']:g}" if t.get("r0") else " (no R0: RED not given)"
+    print(f"Target: {t['name']}  dD {t['dD']:.1f}  dP {t['dP']:.1f}  dH {t['dH']:.1f}{r0}  at {t['temp_C']:g} C",
+          file=file)
+    c = res.counts
+    print(f"Pool: {c['liquids']} liquids ({c['excluded_liquids']} left out); {c['combinations']} combinations "
+          f"searched with exact fractions", file=file)
+    if not res.results:
+        print(f"\nNo blend found: {res.message}", file=file)
+    else:
+        rejects = bool(res.results[0].rejects)
+        rows = []
+        for b in res.results:
+            row = {
+                "rank": b.rank,
+                "blend": b.label + (" *" if b.pareto and rejects else ""),
+                "mass": " / ".join("-" if x.mass_fraction is None else f"{x.mass_fraction:.2f}" for x in b.components),
+                "ra": b.ra, "red": b.red,
+                "phase": _phase_text(b),
+                "bp": "-" if b.bp_min_C is None else (f"{b.bp_min_C:g}" if b.bp_min_C == b.bp_max_C
+                                                      else f"{b.bp_min_C:g} to {b.bp_max_C:g}"),
+                "flash": b.lowest_flash_C,
+                "hazard": _short_hazard(b),
+                "cost": b.cost,
+            }
+            if rejects:
+                row["near"] = b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra
+                row["sel"] = b.selectivity
+            if b.solubility:
+                row["sol"] = b.solubility.get("g_per_L")
+            rows.append(row)
+        cols = [("rank", "#"), ("blend", "blend (volume fractions)"), ("mass", "mass fr."),
+                ("ra", "Ra", ".2f"), ("red", "RED", ".2f"), ("phase", "1 phase"), ("bp", "bp C"),
+                ("flash", "flash C", ".0f"), ("hazard", "flammable"), ("cost", "cost", ".1f")]
+        if rejects:
+            basis = res.results[0].selectivity_basis
+            cols += [("near", "reject " + ("RED" if basis == "RED" else "Ra"), ".2f"), ("sel", "margin", ".2f")]
+        if any("sol" in r for r in rows):
+            cols.append(("sol", "sol. g/L", ".3g"))
+        print(file=file)
+        print_table(rows, cols, file=file)
+        notes = ["Ra, RED: distance to the target [MPa^0.5]; 1 phase: (m) measured pair data, (p) predicted, ? not checked; "
+                 "cost: volume-weighted cost class (1 cheap .. 5 dear)."]
+        if rejects:
+            notes.append("reject: distance of the nearest reject solute; margin: how much further it is than the target "
+                         f"(in {basis}); * on the Pareto front (fit, reject distance, cost, hazard, components).")
+        for n in notes:
+            print("  " + n, file=file)
+        regs = {}
+        for b in res.results:
+            for rg in b.regulations:
+                regs.setdefault(rg["name"], rg)
+        if regs:
+            print("\nFood-law status of the liquids shown (bundled table; check the regulations in force):", file=file)
+            for name, rg in regs.items():
+                line = f"  {name}: {rg['status']}"
+                if rg.get("conditions"):
+                    line += " - " + "; ".join(rg["conditions"][:2]) + (" ..." if len(rg["conditions"]) > 2 else "")
+                print(line, file=file)
+    dropped_n = c.get("two_phase", 0)
+    if res.dropped or dropped_n or c.get("bounds_not_met") or c.get("same_as_smaller_blend"):
+        print(f"\nDropped: {dropped_n} two-phase among the {c['checked']} blends checked; "
+              f"{c['bounds_not_met']} cannot meet the fraction bounds; {c['same_as_smaller_blend']} are the same "
+              f"as a smaller blend (a liquid under the minimum fraction).", file=file)
+        for d in res.dropped[:5]:
+            label = " + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions))
+            reason = d.reason if len(d.reason) <= 150 else d.reason[:147] + "..."
+            print(f"  {label} (Ra {d.ra:.2f}): {reason}", file=file)
+        if len(res.dropped) > 5:
+            print(f"  ... {len(res.dropped) - 5} more (see --json)", file=file)
+    if res.excluded:
+        reasons = {}
+        for e in res.excluded:
+            key = e.reason.split(":")[0] if "not permitted" in e.reason or "no data" in e.reason else e.reason
+            key = "not listed for that use" if key.startswith("not listed for use") else key
+            reasons.setdefault(key, []).append(e.name)
+        print(f"\nLeft out of the pool: {len(res.excluded)} liquids", file=file)
+        for key, names in list(reasons.items())[:8]:
+            shown = ", ".join(names[:6]) + (f" and {len(names) - 6} more" if len(names) > 6 else "")
+            print(f"  {key}: {shown}", file=file)
+    cautions = []
+    for b in res.results[:3]:
+        cautions.extend(b.cautions)
+    cautions.extend(res.cautions)
+    print_cautions(cautions, file=file)
+
+
+def run(args) -> int:
+    cat = get_catalog(args)
+    res = search(args, cat)
+    if args.json:
+        emit_json(res)
+    else:
+        print_search(res)
+    return 0
