@@ -371,6 +371,15 @@ class Solvent:
         return self.origin.startswith("user")
 
     @property
+    def food_use(self) -> bool:
+        """True for liquids used on food (flavour carrier or extraction solvent roles).
+
+        This is the table's role, not a legal status: see
+        :func:`solvsel.compliance.food_status` for that, per use and jurisdiction.
+        """
+        return "carrier" in self.roles or "extraction" in self.roles
+
+    @property
     def sources(self) -> tuple[str, ...]:
         return tuple(dict.fromkeys(_tuple(self.hsp_source) + _tuple(self.props_source)))
 
