@@ -1,0 +1,1572 @@
+"""Structure to parameters: Hansen solubility parameters and molar volume from SMILES.
+
+A formulator's solute is often in no table.  This module reads a SMILES string
+with RDKit, refuses what a group-contribution model of neutral organic liquids
+does not cover (ions, salts and mixtures, metals, radicals), cuts the molecule
+into the groups of a method by substructure matching, and sums the group
+values.  Three estimates are made where they can be:
+
+* the project's own group-contribution model (``"solvsel-gc"``), a ridge
+  regression on group counts and volume-scaled group counts fitted to the HSP
+  datasets bundled with the ``chemicals`` library, validated by grouped k-fold
+  cross-validation (parameters in ``tables/gc_params.csv``, the training split
+  in ``tables/gc_training.csv``, the cross-validated errors by chemical class in
+  ``tables/gc_cv.csv``);
+* the published Hoftyzer-Van Krevelen method (``"hoftyzer-van-krevelen"``) with
+  the molar volume of Fedors [2]_, [3]_;
+* where ``chemicals`` knows the compound, an estimate from its physical
+  properties (``"properties"``): total parameter from the enthalpy of
+  vaporisation and liquid molar volume, dP from the dipole moment (Beerbower),
+  dD from the refractive index (Koenhen & Smolders) [4]_, [5]_.
+
+Every atom must be covered by a group; an atom no group covers makes that
+method refuse (its estimate is returned with ``covered=False`` and no numbers),
+never a silently wrong number.  The uncertainty given with an estimate is the
+cross-validated mean absolute error of the model for the molecule's chemical
+class, not a promise.
+
+References
+----------
+.. [1] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*, 2nd ed.
+   CRC Press, 2007. ISBN 978-0-8493-7248-3.
+.. [2] Van Krevelen, D. W.; te Nijenhuis, K. *Properties of Polymers*, 4th ed.,
+   Elsevier, 2009, ch. 7 (Hoftyzer-Van Krevelen method).
+   doi:10.1016/B978-0-08-054819-7.X0001-5
+.. [3] Fedors, R. F. A method for estimating both the solubility parameters and
+   molar volumes of liquids. Polym. Eng. Sci. 14 (1974) 147-154.
+   doi:10.1002/pen.760140211
+.. [4] Koenhen, D. M.; Smolders, C. A. The determination of solubility
+   parameters of solvents and polymers by means of correlations with other
+   physical quantities. J. Appl. Polym. Sci. 19 (1975) 1163-1179.
+   doi:10.1002/app.1975.070190423
+.. [5] Abraham, M. H.; McGowan, J. C. The use of characteristic volumes to
+   measure cavity terms in reversed phase liquid chromatography.
+   Chromatographia 23 (1987) 243-246. doi:10.1007/BF02311772
+"""
+
+from __future__ import annotations
+
+import csv
+import math
+from dataclasses import dataclass, field
+from functools import lru_cache
+from pathlib import Path
+
+from .errors import InputError, MissingDataError, OutOfRangeError, TableError
+
+__all__ = [
+    "Group",
+    "MethodEstimate",
+    "Estimate",
+    "METHODS",
+    "estimate",
+    "estimate_many",
+    "parse_smiles",
+    "hoftyzer_van_krevelen",
+    "fedors_volume",
+    "properties_estimate",
+    "own_model",
+    "mcgowan_volume",
+    "chemical_class",
+    "CLASSES",
+]
+
+#: Method names accepted by :func:`estimate` (``method=``).
+METHODS = ("solvsel-gc", "hoftyzer-van-krevelen", "properties")
+
+#: Chemical classes used to report errors by class (first match wins, see :func:`chemical_class`).
+CLASSES = (
+    "hydrocarbons",
+    "alcohols",
+    "esters",
+    "phenols",
+    "aldehydes/ketones",
+    "acids",
+    "amines",
+    "halogenated",
+    "ethers",
+    "multifunctional",
+    "other",
+)
+
+#: Elements a neutral organic molecule may contain here; anything else (metals,
+#: noble gases, ...) is outside every method.
+ORGANIC_ELEMENTS = frozenset({"H", "C", "N", "O", "F", "Cl", "Br", "I", "S", "P", "Si", "B"})
+
+R_J_molK = 8.314462618
+
+
+def _tables_dir() -> Path:
+    here = Path(__file__).resolve().parent
+    for cand in (here / "tables", here.parent / "tables"):
+        if cand.is_dir():
+            return cand
+    raise MissingDataError(f"the bundled tables folder was not found next to {here}")  # pragma: no cover
+
+
+# --------------------------------------------------------------------------- results
+
+
+@dataclass(frozen=True)
+class Group:
+    """One group of a method found in the molecule.
+
+    ``atoms`` holds, for each occurrence, the indices of the heavy atoms it
+    covers (RDKit atom order of the canonical SMILES); corrections that cover
+    no atom (ring closures) have empty tuples.
+    """
+
+    name: str
+    count: int
+    atoms: tuple[tuple[int, ...], ...] = ()
+
+    def to_dict(self) -> dict:
+        return {"name": self.name, "count": self.count, "atoms": [list(a) for a in self.atoms]}
+
+
+@dataclass(frozen=True)
+class MethodEstimate:
+    """The estimate of one method; numbers are None where the method does not cover the molecule."""
+
+    method: str
+    dD: float | None
+    dP: float | None
+    dH: float | None
+    vm_cm3_mol: float | None
+    covered: bool
+    groups: tuple[Group, ...] = ()
+    uncovered_atoms: tuple[int, ...] = ()
+    note: str = ""
+    source: str = ""
+
+    @property
+    def hsp(self):
+        import numpy as np
+
+        return np.array([self.dD, self.dP, self.dH], dtype=float)
+
+    def to_dict(self) -> dict:
+        return {
+            "method": self.method,
+            "dD": self.dD,
+            "dP": self.dP,
+            "dH": self.dH,
+            "vm": self.vm_cm3_mol,
+            "covered": self.covered,
+            "groups": [g.to_dict() for g in self.groups],
+            "uncovered_atoms": list(self.uncovered_atoms),
+            "note": self.note,
+            "source": self.source,
+        }
+
+
+@dataclass(frozen=True)
+class Estimate:
+    """HSP and molar volume estimated from a structure.
+
+    Attributes
+    ----------
+    smiles : str
+        canonical SMILES (RDKit, stereo kept)
+    dD, dP, dH : float
+        estimated Hansen parameters [MPa^0.5]
+    vm_cm3_mol : float or None
+        molar volume of the liquid [cm^3/mol] (``vm_method`` says from where)
+    method : str
+        method that gave dD, dP, dH
+    groups : tuple of Group
+        groups of that method found in the molecule
+    uncovered_atoms : tuple of int
+        heavy atoms no group of the chosen method covers (empty when the estimate is made)
+    chem_class : str
+        chemical class used for the uncertainty (one of :data:`CLASSES`)
+    uncertainty : dict
+        cross-validated mean absolute error of the method for that class,
+        keys dD, dP, dH, ra [MPa^0.5], plus n (compounds in the class)
+    others : tuple of MethodEstimate
+        the other methods' estimates (covered or not)
+    spread : dict
+        largest minus smallest value of dD, dP, dH over the covered methods [MPa^0.5]
+    notes : tuple of str
+        warnings (approximate groups, molecule outside the training range, ...)
+    """
+
+    smiles: str
+    dD: float
+    dP: float
+    dH: float
+    vm_cm3_mol: float | None
+    vm_method: str
+    method: str
+    groups: tuple[Group, ...]
+    uncovered_atoms: tuple[int, ...]
+    chem_class: str
+    uncertainty: dict
+    others: tuple[MethodEstimate, ...] = ()
+    spread: dict = field(default_factory=dict)
+    notes: tuple[str, ...] = ()
+    mw_g_mol: float | None = None
+    formula: str = ""
+
+    @property
+    def hsp(self):
+        import numpy as np
+
+        return np.array([self.dD, self.dP, self.dH], dtype=float)
+
+    def to_dict(self) -> dict:
+        return {
+            "smiles": self.smiles,
+            "dD": self.dD,
+            "dP": self.dP,
+            "dH": self.dH,
+            "vm": self.vm_cm3_mol,
+            "vm_method": self.vm_method,
+            "method": self.method,
+            "groups": [g.to_dict() for g in self.groups],
+            "uncovered_atoms": list(self.uncovered_atoms),
+            "uncertainty": dict(self.uncertainty),
+            "chem_class": self.chem_class,
+            "others": [o.to_dict() for o in self.others],
+            "spread": dict(self.spread),
+            "notes": list(self.notes),
+            "mw_g_mol": self.mw_g_mol,
+            "formula": self.formula,
+        }
+
+
+# --------------------------------------------------------------------------- SMILES
+
+
+def _rdkit():
+    from rdkit import Chem, RDLogger
+
+    RDLogger.DisableLog("rdApp.*")
+    return Chem
+
+
+_NITRO = None
+
+
+def parse_smiles(smiles: str):
+    """Parse and check one SMILES; return ``(mol, canonical_smiles)``.
+
+    Raises :class:`InputError` for a string RDKit cannot read and
+    :class:`OutOfRangeError` for what the HSP methods do not cover: several
+    components (salts, mixtures, hydrates), a net charge or separated charges
+    (ions, zwitterions; nitro groups and N-oxides are accepted), metals and
+    other non-organic elements, radicals.  Explicit hydrogens, stereo marks and
+    Kekule or aromatic input give the same molecule.
+    """
+    if not isinstance(smiles, str) or not smiles.strip():
+        raise InputError(f"SMILES: expected a non-empty SMILES string, got {smiles!r}")
+    text = smiles.strip()
+    if any(c.isspace() for c in text):
+        # a SMILES may carry a name after a space; only the first word is the structure
+        text = text.split()[0]
+    Chem = _rdkit()
+    mol = Chem.MolFromSmiles(text)
+    if mol is None:
+        raise InputError(f"SMILES '{smiles}' could not be read (check brackets, ring-closure digits and valences)")
+    frags = Chem.GetMolFrags(mol)
+    if len(frags) > 1:
+        raise OutOfRangeError(
+            f"SMILES '{smiles}' has {len(frags)} separate components (a salt, hydrate or mixture); "
+            "the HSP methods cover one neutral molecule: give the neutral parent compound, and for a mixture "
+            "estimate each component and blend them"
+        )
+    bad = sorted({a.GetSymbol() for a in mol.GetAtoms() if a.GetSymbol() not in ORGANIC_ELEMENTS})
+    if bad:
+        raise OutOfRangeError(
+            f"SMILES '{smiles}' contains {', '.join(bad)}: metals, metal complexes and inorganic elements are "
+            "outside the HSP group-contribution methods (they cover neutral organic molecules of C, H, N, O, S, "
+            "halogens)"
+        )
+    if mol.GetNumAtoms() == 0:
+        raise InputError(f"SMILES '{smiles}' holds no atoms")
+    net = sum(a.GetFormalCharge() for a in mol.GetAtoms())
+    if net != 0:
+        raise OutOfRangeError(
+            f"SMILES '{smiles}' is an ion (net charge {net:+d}); the HSP methods do not cover ions or ionic "
+            "liquids: give the neutral form (acid or base), whose parameters the methods do estimate"
+        )
+    charged = [a.GetIdx() for a in mol.GetAtoms() if a.GetFormalCharge() != 0]
+    if charged:
+        global _NITRO
+        if _NITRO is None:
+            _NITRO = Chem.MolFromSmarts("[N+,n+;!$([N+,n+][H])](~[O-])")
+        ok = set()
+        for m in mol.GetSubstructMatches(_NITRO):
+            ok.update(m)
+        if set(charged) - ok:
+            raise OutOfRangeError(
+                f"SMILES '{smiles}' has separated charges (a zwitterion or inner salt); the HSP methods do not "
+                "cover ionic species: give an uncharged structure"
+            )
+    if any(a.GetNumRadicalElectrons() for a in mol.GetAtoms()):
+        raise OutOfRangeError(f"SMILES '{smiles}' is a radical; the HSP methods cover closed-shell molecules only")
+    mol = Chem.RemoveHs(mol)
+    canonical = Chem.MolToSmiles(mol)
+    # re-read the canonical form so atom indices follow the canonical SMILES
+    mol = Chem.MolFromSmiles(canonical)
+    return mol, canonical
+
+
+# --------------------------------------------------------------------------- fragmentation
+
+
+# Group definitions: (name in the group table, SMARTS, number of leading atoms of
+# the match the group owns).  Order matters: each atom goes to the first group
+# that claims it.  The SMARTS are ours; the values are the method's.
+_FUNCTIONAL = [
+    ("-COOH", "[CX3](=[OX1])[OX2H1]", 3),
+    ("HCOO-", "[CX3H1](=[OX1])[OX2][#6]", 3),
+    ("-COO-", "[CX3](=[OX1])[OX2][#6]", 3),
+    ("-CHO", "[CX3H1](=[OX1])", 2),
+    (">CO", "[#6X3](=[OX1])", 2),
+    ("-CN", "[CX2]#[NX1]", 2),
+    ("-NO2", "[N+](=O)[O-]", 3),
+    ("-OH", "[OX2H1]", 1),
+    ("-O-", "[OX2H0]", 1),
+    ("-NH2", "[NX3H2]", 1),
+    ("-NH-", "[NX3H1]", 1),
+    (">N-", "[NX3H0;!$([N+])]", 1),
+    ("-S-", "[SX2H0]", 1),
+    ("-F", "[F]", 1),
+    ("-Cl", "[Cl]", 1),
+    ("-Br", "[Br]", 1),
+]
+_CARBON = [
+    ("-CH3", "[CX4H3]", 1),
+    ("-CH2-", "[CX4H2]", 1),
+    (">CH-", "[CX4H1]", 1),
+    (">C<", "[CX4H0]", 1),
+    ("=CH2", "[CX3H2]", 1),
+    ("=CH-", "[CX3H1,cH1]", 1),
+    ("=C<", "[CX3H0,cH0]", 1),
+]
+_HVK_DEFS = _FUNCTIONAL + _CARBON
+
+_FEDORS_DEFS = [
+    ("-COOH", "[CX3](=[OX1])[OX2H1]", 3),
+    ("HCOO-", "[CX3H1](=[OX1])[OX2][#6]", 3),
+    ("-COO-", "[CX3](=[OX1])[OX2][#6]", 3),
+    ("-CONH2", "[CX3](=[OX1])[NX3H2]", 3),
+    ("-CONH-", "[CX3](=[OX1])[NX3H1]", 3),
+    ("-CON<", "[CX3](=[OX1])[NX3H0]", 3),
+    ("-CHO", "[CX3H1](=[OX1])", 2),
+    (">CO", "[#6X3](=[OX1])", 2),
+    ("-CN", "[CX2]#[NX1]", 2),
+    ("-NO2 (aromatic)", "[N+](=O)([O-])a", 3),
+    ("-NO2", "[N+](=O)[O-]", 3),
+    ("-OH", "[OX2H1]", 1),
+    ("-O-", "[OX2H0,o]", 1),
+    ("-NH2", "[NX3H2]", 1),
+    ("-NH-", "[NX3H1,nH1]", 1),
+    (">N-", "[NX3H0;!$([N+])]", 1),
+    ("-N=", "[NX2,nX2]", 1),
+    ("-SH", "[SX2H1]", 1),
+    ("-S-", "[SX2H0,sX2]", 1),
+    ("-F", "[F]", 1),
+    ("-Cl", "[Cl]", 1),
+    ("-Br", "[Br]", 1),
+    ("-I", "[I]", 1),
+    ("#CH", "[CX2H1]", 1),
+    ("#C-", "[CX2H0]", 1),
+] + _CARBON
+
+
+@lru_cache(maxsize=None)
+def _compiled(defs_key: str):
+    Chem = _rdkit()
+    defs = {"hvk": _HVK_DEFS, "fedors": _FEDORS_DEFS}[defs_key]
+    out = []
+    for name, smarts, n in defs:
+        patt = Chem.MolFromSmarts(smarts)
+        if patt is None:  # pragma: no cover - a bug in the definitions above
+            raise RuntimeError(f"bad SMARTS for group {name}: {smarts}")
+        out.append((name, patt, n))
+    return tuple(out)
+
+
+def _claim(mol, defs, claimed: set, found: dict) -> None:
+    for name, patt, n in defs:
+        for match in mol.GetSubstructMatches(patt, uniquify=True, maxMatches=10000):
+            owned = tuple(match[:n])
+            if any(a in claimed for a in owned):
+                continue
+            claimed.update(owned)
+            found.setdefault(name, []).append(owned)
+
+
+def _benzene_rings(mol, claimed: set, found: dict) -> set:
+    """Hoftyzer-Van Krevelen phenyl / phenylene: isolated benzene rings with <= 2 substituents."""
+    rings = mol.GetRingInfo()
+    used_rings = set()
+    for k, ring in enumerate(rings.AtomRings()):
+        if len(ring) != 6:
+            continue
+        atoms = [mol.GetAtomWithIdx(i) for i in ring]
+        if not all(a.GetSymbol() == "C" and a.GetIsAromatic() and rings.NumAtomRings(a.GetIdx()) == 1 for a in atoms):
+            continue
+        if any(i in claimed for i in ring):
+            continue
+        subs = sum(1 for a in atoms for nb in a.GetNeighbors() if nb.GetIdx() not in ring)
+        if subs <= 1:
+            name = "phenyl"
+        elif subs == 2:
+            name = "phenylene"
+        else:
+            continue
+        claimed.update(ring)
+        found.setdefault(name, []).append(tuple(ring))
+        used_rings.add(k)
+    return used_rings
+
+
+def _groups_tuple(found: dict) -> tuple[Group, ...]:
+    return tuple(Group(name, len(occ), tuple(tuple(int(i) for i in o) for o in occ)) for name, occ in found.items())
+
+
+@lru_cache(maxsize=None)
+def _read_group_table(name: str, value_columns: tuple[str, ...]) -> dict:
+    path = _tables_dir() / f"{name}.csv"
+    out = {}
+    with open(path, newline="", encoding="utf-8") as fh:
+        for row_no, row in enumerate(csv.DictReader(fh), start=2):
+            values = {}
+            for col in value_columns:
+                try:
+                    values[col] = float(row[col])
+                except (KeyError, TypeError, ValueError):
+                    raise TableError(path, f"expected a number, got {row.get(col)!r}", row=row_no, column=col) from None
+            values["source"] = row.get("source", "")
+            out[row["group"]] = values
+    return out
+
+
+def _hvk_table() -> dict:
+    return _read_group_table("groups_hvk", ("Fd_J05_cm15_mol", "Fp_J05_cm15_mol", "Eh_J_mol"))
+
+
+def _fedors_table() -> dict:
+    return _read_group_table("groups_fedors", ("vm_cm3_mol", "ecoh_J_mol"))
+
+
+def _uncovered(mol, claimed: set) -> tuple[int, ...]:
+    return tuple(a.GetIdx() for a in mol.GetAtoms() if a.GetIdx() not in claimed)
+
+
+def _as_mol(smiles_or_mol):
+    if isinstance(smiles_or_mol, str):
+        return parse_smiles(smiles_or_mol)[0]
+    return smiles_or_mol
+
+
+def fedors_volume(smiles_or_mol) -> tuple[float | None, float | None, tuple[Group, ...], tuple[int, ...]]:
+    r"""Molar volume and cohesive energy of a liquid by Fedors' group contributions.
+
+    .. math::
+        V = \sum_i n_i \Delta v_i, \qquad E_{coh} = \sum_i n_i \Delta e_i,
+        \qquad \delta_t = \sqrt{E_{coh}/V}
+
+    with a ring-closure term per ring and a term per conjugated double bond in
+    a ring (Fedors 1974 [3]_).
+
+    Parameters
+    ----------
+    smiles_or_mol : str or rdkit Mol
+        the molecule
+
+    Returns
+    -------
+    vm : float or None
+        molar volume [cm^3/mol] (None if an atom is not covered)
+    ecoh : float or None
+        cohesive energy [J/mol]
+    groups : tuple of Group
+    uncovered : tuple of int
+        heavy atoms no Fedors group covers
+
+    Examples
+    --------
+    Benzene: 6 (=CH-) 13.5 + ring 16.0 + 3 ring double bonds (-2.2) = 90.4
+    cm3/mol (measured 89.4 at 25 C, Hansen 2007 Appendix A).
+
+    >>> round(fedors_volume("c1ccccc1")[0], 1)
+    90.4
+    """
+    mol = _as_mol(smiles_or_mol)
+    claimed: set = set()
+    found: dict = {}
+    _claim(mol, _compiled("fedors"), claimed, found)
+    rings = mol.GetRingInfo().AtomRings()
+    for ring in rings:
+        found.setdefault("ring (5 or more atoms)" if len(ring) >= 5 else "ring (3 or 4 atoms)", []).append(())
+    n_db = _ring_conjugated_double_bonds(mol)
+    if n_db:
+        found["ring double bond"] = [()] * n_db
+    uncovered = _uncovered(mol, claimed)
+    groups = _groups_tuple(found)
+    if uncovered:
+        return None, None, groups, uncovered
+    table = _fedors_table()
+    vm = sum(table[g.name]["vm_cm3_mol"] * g.count for g in groups)
+    ecoh = sum(table[g.name]["ecoh_J_mol"] * g.count for g in groups)
+    return vm, ecoh, groups, uncovered
+
+
+def _ring_conjugated_double_bonds(mol) -> int:
+    Chem = _rdkit()
+    kek = Chem.Mol(mol)
+    try:
+        Chem.Kekulize(kek, clearAromaticFlags=True)
+    except Exception:  # pragma: no cover - RDKit parsed it, so it kekulises
+        return 0
+    Chem.SetConjugation(kek)
+    n = 0
+    for b in kek.GetBonds():
+        if b.GetBondType() == Chem.BondType.DOUBLE and b.IsInRing() and b.GetIsConjugated():
+            n += 1
+    return n
+
+
+def hoftyzer_van_krevelen(smiles_or_mol) -> MethodEstimate:
+    r"""Hansen parameters by the Hoftyzer-Van Krevelen group method, with Fedors' volume.
+
+    .. math::
+        \delta_D = \frac{\sum F_{di}}{V}, \qquad
+        \delta_P = \frac{\sqrt{\sum F_{pi}^2}}{V}, \qquad
+        \delta_H = \sqrt{\frac{\sum E_{hi}}{V}}
+
+    (Van Krevelen & te Nijenhuis 2009 [2]_; V by Fedors [3]_).  The book's
+    symmetry factors on the polar term are not applied (planes of symmetry are
+    not found from the graph), so dP of symmetric polar molecules comes out high.
+    Group values are as recalled (source kind ``memory``); the benchmark shows
+    how they hold on the published datasets.
+
+    Parameters
+    ----------
+    smiles_or_mol : str or rdkit Mol
+
+    Returns
+    -------
+    MethodEstimate
+        dD, dP, dH [MPa^0.5], vm [cm^3/mol]; ``covered`` False (and numbers
+        None) when an atom has no group of the method
+
+    Examples
+    --------
+    Toluene, hand-counted: phenyl (1430, 110, 0) + CH3 (420, 0, 0); Fedors V =
+    71.4 + 33.5 = 104.9 cm3/mol, so dD = 1850/104.9 = 17.6 and dP = 110/104.9
+    = 1.0 (tabulated 18.0, 1.4, 2.0, Hansen 2007 Appendix A).
+
+    >>> e = hoftyzer_van_krevelen("Cc1ccccc1")
+    >>> round(e.dD, 1), round(e.dP, 1), round(e.dH, 1), round(e.vm_cm3_mol, 1)
+    (17.6, 1.0, 0.0, 104.9)
+    """
+    mol = _as_mol(smiles_or_mol)
+    claimed: set = set()
+    found: dict = {}
+    used_rings = _benzene_rings(mol, claimed, found)
+    _claim(mol, _compiled("hvk"), claimed, found)
+    n_rings = mol.GetRingInfo().NumRings() - len(used_rings)
+    if n_rings:
+        found["ring"] = [()] * n_rings
+    groups = _groups_tuple(found)
+    uncovered = _uncovered(mol, claimed)
+    source = "hvk_memory;fedors1974_memory"
+    if uncovered:
+        return MethodEstimate("hoftyzer-van-krevelen", None, None, None, None, False, groups, uncovered,
+                              "atoms without a group of the method", source)
+    vm, _, _, fed_unc = fedors_volume(mol)
+    if vm is None or vm <= 0:
+        return MethodEstimate("hoftyzer-van-krevelen", None, None, None, None, False, groups, fed_unc,
+                              "no Fedors molar volume for this molecule", source)
+    table = _hvk_table()
+    fd = sum(table[g.name]["Fd_J05_cm15_mol"] * g.count for g in groups)
+    fp2 = sum(table[g.name]["Fp_J05_cm15_mol"] ** 2 * g.count for g in groups)
+    eh = sum(table[g.name]["Eh_J_mol"] * g.count for g in groups)
+    notes = []
+    names = {g.name for g in groups}
+    if ({"=CH-", "=C<"} & names) and any(mol.GetAtomWithIdx(i).GetIsAromatic() for g in groups
+                                          if g.name in ("=CH-", "=C<") for o in g.atoms for i in o):
+        notes.append("aromatic atoms outside a phenyl or phenylene ring counted as =CH- / =C< (approximation)")
+    return MethodEstimate(
+        "hoftyzer-van-krevelen", fd / vm, math.sqrt(fp2) / vm, math.sqrt(max(eh, 0.0) / vm), vm, True,
+        groups, (), "; ".join(notes), source,
+    )
+
+
+# --------------------------------------------------------------------------- training data
+
+#: The ``chemicals`` HSP datasets the own model is fitted on (and no others).
+HSP_DATASETS = ("MANUEL_RUBEN_2022", "ALSHERI_HANSEN", "WDR_SCHRIER")
+DATASET_SOURCE = {"MANUEL_RUBEN_2022": "hsp_mr2022", "ALSHERI_HANSEN": "hsp_alshehri2022",
+                  "WDR_SCHRIER": "hsp_schrier2020"}
+
+#: Two datasets that give a compound HSP more than this far apart (Ra, MPa^0.5)
+#: make its label doubtful: it is kept out of fitting and reported apart.
+CONFLICT_RA = 4.0
+
+
+def training_data(exclude=()):
+    """The HSP training set: the three ``chemicals`` datasets merged by structure.
+
+    Each CAS number's values are the per-parameter median over the datasets
+    that list it; CAS numbers with the same structure (stereoisomers, duplicate
+    numbers: same canonical SMILES without stereo) are merged the same way, so
+    one structure is one compound and never sits on both sides of a
+    cross-validation split.  A compound whose datasets disagree by more than
+    :data:`CONFLICT_RA` is marked ``conflict`` (not fitted; errors on it are
+    reported apart).  Compounds that RDKit or the checks of
+    :func:`parse_smiles` refuse (salts, ions, metals) are dropped.
+
+    Parameters
+    ----------
+    exclude : iterable of str
+        CAS numbers to leave out (a user's hold-out set)
+
+    Returns
+    -------
+    pandas.DataFrame
+        columns key (canonical SMILES without stereo), smiles, cas (``;``
+        joined), dD, dP, dH [MPa^0.5], n_sources, max_ra (largest
+        disagreement between datasets), conflict (bool), source (ids of the
+        datasets that list it)
+    """
+    import numpy as np
+    import pandas as pd
+    from chemicals import solubility
+    from chemicals.identifiers import search_chemical
+
+    solubility._load_solubility_data()
+    exclude = {c.strip() for c in exclude if c and c.strip()}
+    rows, sets = {}, {}
+    for key in HSP_DATASETS:
+        df = solubility.solubility_sources[key]
+        for cas, r in df.iterrows():
+            if cas in exclude:
+                continue
+            rows.setdefault(cas, []).append(
+                (r["HANSEN_DELTA_D"] / 1000.0, r["HANSEN_DELTA_P"] / 1000.0, r["HANSEN_DELTA_H"] / 1000.0)
+            )
+            sets.setdefault(cas, set()).add(DATASET_SOURCE[key])
+    Chem = _rdkit()
+    by_key: dict = {}
+    for cas in sorted(rows):
+        try:
+            smi = search_chemical(cas).smiles
+        except Exception:
+            continue
+        if not smi:
+            continue
+        try:
+            mol, canonical = parse_smiles(smi)
+        except InputError:
+            continue
+        key = Chem.MolToSmiles(mol, isomericSmiles=False)
+        entry = by_key.setdefault(key, {"cas": [], "values": [], "smiles": canonical, "sets": set()})
+        entry["cas"].append(cas)
+        entry["sets"].update(sets[cas])
+        entry["values"].extend(rows[cas])
+    out = []
+    for key, e in by_key.items():
+        v = np.array(e["values"], dtype=float)
+        med = np.median(v, axis=0)
+        d = (v[:, None, :] - v[None, :, :]) * np.array([2.0, 1.0, 1.0])
+        max_ra = float(np.sqrt((d * d).sum(-1)).max())
+        out.append({
+            "key": key, "smiles": e["smiles"], "cas": ";".join(e["cas"]),
+            "dD": med[0], "dP": med[1], "dH": med[2], "n_sources": len(v),
+            "max_ra": max_ra, "conflict": max_ra > CONFLICT_RA, "source": ";".join(sorted(e["sets"])),
+        })
+    return pd.DataFrame(out).sort_values("key").reset_index(drop=True)
+
+
+# --------------------------------------------------------------------------- the own model
+
+# Our own fragment scheme.  First-order terms ("atom"): every heavy atom gets
+# exactly one type, the first whose SMARTS claims it (the first ``owned`` atoms
+# of a match).  Second-order terms ("match"): the number of matches of a SMARTS
+# (overlaps allowed), for interactions the first-order types miss.  "special"
+# terms are computed in code (rings, H-bond donors).
+OWN_TERMS = [
+    ("acid C(=O)OH", "[CX3](=O)[OX2H1]", "atom", 3),
+    ("lactone C(=O)O", "[CX3;R](=O)[OX2;R][#6]", "atom", 3),
+    ("ester C(=O)O", "[CX3](=O)[OX2][#6]", "atom", 3),
+    ("carbonate OC(=O)O", "[OX2][CX3](=O)[OX2]", "atom", 4),
+    ("amide C(=O)NH2", "[CX3](=O)[NX3H2]", "atom", 3),
+    ("amide C(=O)NH", "[CX3](=O)[NX3H1]", "atom", 3),
+    ("amide C(=O)N", "[CX3](=O)[NX3H0]", "atom", 3),
+    ("aldehyde CHO", "[CX3H1](=O)[#6]", "atom", 2),
+    ("formyl CHO", "[CX3H1](=O)", "atom", 2),
+    ("aryl ketone C=O", "[CX3](=O)([#6])a", "atom", 2),
+    ("ring ketone C=O", "[CX3;R](=O)", "atom", 2),
+    ("ketone C=O", "[CX3](=O)", "atom", 2),
+    ("nitrile C#N", "[CX2]#[NX1]", "atom", 2),
+    ("nitro NO2", "[N+](=O)[O-]", "atom", 3),
+    ("N-oxide", "[N+,n+][O-]", "atom", 2),
+    ("phenol OH", "[OX2H1]c", "atom", 1),
+    ("primary OH", "[OX2H1][CH2]", "atom", 1),
+    ("secondary OH", "[OX2H1][CH1]", "atom", 1),
+    ("tertiary OH", "[OX2H1][CX4H0]", "atom", 1),
+    ("other OH", "[OX2H1]", "atom", 1),
+    ("aryl ether O", "[OX2H0](a)", "atom", 1),
+    ("ring ether O", "[OX2H0;R]", "atom", 1),
+    ("ether O", "[OX2H0]", "atom", 1),
+    ("aromatic o", "[o]", "atom", 1),
+    ("aryl NH2", "[NX3H2]a", "atom", 1),
+    ("NH2", "[NX3H2]", "atom", 1),
+    ("aryl NH", "[NX3H1]a", "atom", 1),
+    ("NH", "[NX3H1]", "atom", 1),
+    ("aryl N", "[NX3H0]a", "atom", 1),
+    ("N", "[NX3H0]", "atom", 1),
+    ("aromatic nH", "[nH]", "atom", 1),
+    ("aromatic n", "[n]", "atom", 1),
+    ("imine N=", "[NX2]", "atom", 1),
+    ("thiol SH", "[SX2H1]", "atom", 1),
+    ("sulfide S", "[SX2H0]", "atom", 1),
+    ("aromatic s", "[s]", "atom", 1),
+    ("thione C=S", "[CX3]=[SX1]", "atom", 2),
+    ("sulfoxide S=O", "[SX3](=O)", "atom", 2),
+    ("sulfone SO2", "[SX4](=O)=O", "atom", 3),
+    ("phosphorus P", "[P]", "atom", 1),
+    ("silicon Si", "[Si]", "atom", 1),
+    ("boron B", "[B]", "atom", 1),
+    ("F", "[F]", "atom", 1),
+    ("aryl Cl", "[Cl]a", "atom", 1),
+    ("Cl", "[Cl]", "atom", 1),
+    ("Br", "[Br]", "atom", 1),
+    ("I", "[I]", "atom", 1),
+    ("aryl CH3", "[CH3]a", "atom", 1),
+    ("hetero CH3", "[CH3][!#6]", "atom", 1),
+    ("CH3", "[CH3]", "atom", 1),
+    ("ring CH2", "[CH2;R]", "atom", 1),
+    ("CH2", "[CX4H2]", "atom", 1),
+    ("ring CH", "[CX4H1;R]", "atom", 1),
+    ("CH", "[CX4H1]", "atom", 1),
+    ("ring C", "[CX4H0;R]", "atom", 1),
+    ("C", "[CX4H0]", "atom", 1),
+    ("methane CH4", "[CX4H4]", "atom", 1),
+    ("=CH2", "[CX3H2]", "atom", 1),
+    ("=CH", "[CX3H1]", "atom", 1),
+    ("=C", "[CX3H0]", "atom", 1),
+    ("aromatic cH", "[cH1]", "atom", 1),
+    ("fused aromatic c", "[cH0;R2,R3]", "atom", 1),
+    ("aromatic c", "[cH0]", "atom", 1),
+    ("alkyne C", "[CX2]", "atom", 1),
+    ("ortho OH..C=O", "[OX2H1]c:c[CX3]=O", "match", 0),
+    ("vicinal OH", "[OX2H1][#6][#6][OX2H1]", "match", 0),
+    ("CX3 halo", "[CX4]([F,Cl,Br])([F,Cl,Br])[F,Cl,Br]", "match", 0),
+    ("CX2 halo", "[CX4;!$(C([F,Cl,Br])([F,Cl,Br])[F,Cl,Br])]([F,Cl,Br])[F,Cl,Br]", "match", 0),
+    ("C=C-C=O", "C=C[CX3]=O", "match", 0),
+    ("aromatic rings", "", "special", 0),
+    ("rings", "", "special", 0),
+    ("H-bond donors", "", "special", 0),
+]
+
+#: McGowan characteristic atom volumes [cm^3/mol] and the bond term (Abraham & McGowan 1987 [5]_).
+MCGOWAN_ATOM = {"C": 16.35, "H": 8.71, "O": 12.43, "N": 14.39, "F": 10.48, "Cl": 20.95, "Br": 26.21,
+                "I": 34.53, "S": 22.91, "P": 24.87, "Si": 26.83, "B": 18.32}
+MCGOWAN_BOND = 6.56
+
+
+def mcgowan_volume(smiles_or_mol) -> float:
+    r"""McGowan characteristic volume of a molecule.
+
+    .. math:: V_x = \sum_{atoms} v_i - 6.56 \, N_{bonds}
+
+    (all atoms and bonds, hydrogens included; Abraham & McGowan 1987 [5]_).
+    The own model uses it as the size of the molecule.
+
+    Returns
+    -------
+    float
+        characteristic volume [cm^3/mol]
+
+    Examples
+    --------
+    Ethanol C2H6O: 2(16.35) + 6(8.71) + 12.43 - 8(6.56) = 44.91 cm3/mol
+    (Abraham & McGowan tabulate 0.4491 in units of 100 cm3/mol).
+
+    >>> round(mcgowan_volume("CCO"), 2)
+    44.91
+    """
+    Chem = _rdkit()
+    mol = Chem.AddHs(_as_mol(smiles_or_mol))
+    return sum(MCGOWAN_ATOM[a.GetSymbol()] for a in mol.GetAtoms()) - MCGOWAN_BOND * mol.GetNumBonds()
+
+
+@lru_cache(maxsize=None)
+def _own_compiled(terms: tuple):
+    Chem = _rdkit()
+    out = []
+    for name, smarts, kind, owned in terms:
+        patt = Chem.MolFromSmarts(smarts) if smarts else None
+        if kind != "special" and patt is None:
+            raise InputError(f"own-model term '{name}': SMARTS '{smarts}' could not be read")
+        out.append((name, patt, kind, int(owned)))
+    return tuple(out)
+
+
+def own_features(mol, terms=None):
+    """Counts of the own scheme's terms in ``mol``.
+
+    Returns ``(counts, vx, groups, uncovered)``: counts per term (numpy array
+    in the order of ``terms``), the McGowan volume [cm^3/mol], the groups found
+    and the heavy atoms no first-order term covers.
+    """
+    import numpy as np
+
+    from rdkit.Chem import rdMolDescriptors
+
+    terms = tuple(tuple(t) for t in (terms or OWN_TERMS))
+    comp = _own_compiled(terms)
+    claimed: set = set()
+    counts = np.zeros(len(comp))
+    found: dict = {}
+    for i, (name, patt, kind, owned) in enumerate(comp):
+        if kind == "atom":
+            for match in mol.GetSubstructMatches(patt, uniquify=True, maxMatches=10000):
+                o = tuple(match[:owned])
+                if any(a in claimed for a in o):
+                    continue
+                claimed.update(o)
+                counts[i] += 1
+                found.setdefault(name, []).append(o)
+        elif kind == "match":
+            ms = mol.GetSubstructMatches(patt, uniquify=True, maxMatches=10000)
+            counts[i] = len(ms)
+            if ms:
+                found[name] = list(ms)
+        else:
+            if name == "aromatic rings":
+                counts[i] = rdMolDescriptors.CalcNumAromaticRings(mol)
+            elif name == "rings":
+                counts[i] = rdMolDescriptors.CalcNumRings(mol)
+            elif name == "H-bond donors":
+                counts[i] = rdMolDescriptors.CalcNumHBD(mol)
+            else:
+                raise InputError(f"own-model term '{name}': unknown special term")
+            if counts[i]:
+                found[name] = [()] * int(counts[i])
+    return counts, mcgowan_volume(mol), _groups_tuple(found), _uncovered(mol, claimed)
+
+
+def own_design(counts, vx):
+    """Design row(s) of the own model: counts per 100 cm^3/mol of McGowan volume, then 100/Vx.
+
+    Group contributions to an intensive property act per unit volume (the
+    Hoftyzer-Van Krevelen form dD = sum F / V); scaling the counts by the size
+    of the molecule lets a linear model express that.
+    """
+    import numpy as np
+
+    counts = np.atleast_2d(np.asarray(counts, dtype=float))
+    vx = np.atleast_1d(np.asarray(vx, dtype=float))[:, None]
+    return np.hstack([counts * (100.0 / vx), 100.0 / vx])
+
+
+# --------------------------------------------------------------------------- second estimate from properties
+
+KOENHEN_SMOLDERS = (9.55, -5.55)  # dD [(cal/cm3)^0.5] = 9.55 nD - 5.55 (Koenhen & Smolders 1975)
+CAL05_TO_MPA05 = math.sqrt(4.184)
+BEERBOWER_DP = 37.4  # dP [MPa^0.5] = 37.4 mu [D] / V^0.5 [cm3/mol] (Hansen 2007, ch. 1)
+
+
+def _lookup_cas(mol) -> str | None:
+    """CAS number of ``mol`` in the main ``chemicals`` databank (by InChIKey), or None."""
+    Chem = _rdkit()
+    try:
+        key = Chem.MolToInchiKey(mol)
+    except Exception:  # pragma: no cover
+        return None
+    if not key:
+        return None
+    from chemicals.identifiers import pubchem_db
+
+    hit = pubchem_db.search_InChI_key(key, autoload=False)
+    return hit.CASs if hit else None
+
+
+def liquid_molar_volume(cas: str, T: float = 298.15) -> tuple[float | None, str]:
+    """Liquid molar volume [cm^3/mol] at ``T`` [K] from ``chemicals``, with the route used.
+
+    DIPPR-105 coefficients of Perry's handbook where the library has them, else
+    the COSTALD correlation on the library's critical constants.
+    """
+    from chemicals import volume
+
+    volume._load_rho_data()
+    df = volume.rho_data_Perry_8E_105_l
+    if cas in df.index:
+        r = df.loc[cas]
+        if r["Tmin"] <= T <= r["Tmax"]:
+            from chemicals.dippr import EQ105
+
+            return 1e6 / EQ105(T, r["C1"], r["C2"], r["C3"], r["C4"]), "DIPPR-105 (Perry's handbook, via chemicals)"
+    from chemicals.acentric import omega
+    from chemicals.critical import Tc, Vc
+
+    tc, vc, w = Tc(cas), Vc(cas), omega(cas)
+    if tc and vc and w is not None and T < tc:
+        return volume.COSTALD(T, tc, vc, w) * 1e6, "COSTALD on critical constants (via chemicals)"
+    return None, ""
+
+
+def properties_estimate(smiles_or_mol, cas: str | None = None) -> MethodEstimate:
+    r"""Hansen parameters from measured physical properties in the ``chemicals`` library.
+
+    .. math::
+        \delta_t = \sqrt{(\Delta H_{vap} - RT)/V_m}, \quad
+        \delta_D = 2.045 (9.55 n_D - 5.55), \quad
+        \delta_P = 37.4 \mu / \sqrt{V_m}, \quad
+        \delta_H = \sqrt{\delta_t^2 - \delta_D^2 - \delta_P^2}
+
+    at 25 C: enthalpy of vaporisation at 298 K (CRC, else Watson from the
+    normal boiling point), liquid molar volume (:func:`liquid_molar_volume`),
+    refractive index (Koenhen & Smolders [4]_; the factor converts
+    (cal/cm3)^0.5 to MPa^0.5) and dipole moment (Beerbower, Hansen 2007 [1]_).
+    Independent of any group method; ``covered`` is False when a property is missing.
+
+    Parameters
+    ----------
+    smiles_or_mol : str or rdkit Mol
+    cas : str, optional
+        CAS number, if known (else looked up by InChIKey)
+
+    Examples
+    --------
+    Ethanol from the library's data (tabulated 15.8, 8.8, 19.4, Hansen 2007):
+
+    >>> e = properties_estimate("CCO")
+    >>> [round(x, 1) for x in (e.dD, e.dP, e.dH)]
+    [16.3, 8.5, 19.6]
+    """
+    mol = _as_mol(smiles_or_mol)
+    name = "properties"
+    src = "chemicals_lib;koenhen1975_memory;hansen2007"
+    cas = cas or _lookup_cas(mol)
+    if not cas:
+        return MethodEstimate(name, None, None, None, None, False, note="compound not in the chemicals library", source=src)
+    from chemicals import phase_change
+    from chemicals.dipole import dipole_moment
+    from chemicals.refractivity import RI
+
+    T = 298.15
+    missing = []
+    vm, vm_route = liquid_molar_volume(cas, T)
+    if vm is None:
+        missing.append("liquid molar volume")
+    hvap = None
+    crc = phase_change.Hvap_data_CRC
+    if cas in crc.index and crc.loc[cas, "Hvap298"] == crc.loc[cas, "Hvap298"]:
+        hvap = float(crc.loc[cas, "Hvap298"])
+    else:
+        from chemicals.critical import Tc
+
+        tc = Tc(cas)
+        if cas in crc.index and tc and crc.loc[cas, "HvapTb"] == crc.loc[cas, "HvapTb"]:
+            tb = float(crc.loc[cas, "Tb"])
+            if tb < tc and T < tc:
+                hvap = phase_change.Watson(T, float(crc.loc[cas, "HvapTb"]), tb, tc)
+    if hvap is None:
+        missing.append("enthalpy of vaporisation")
+    n = RI(cas)
+    n = n[0] if isinstance(n, tuple) else n
+    if not n:
+        missing.append("refractive index")
+    mu = dipole_moment(cas)
+    if mu is None:
+        missing.append("dipole moment")
+    if missing:
+        return MethodEstimate(name, None, None, None, vm, False,
+                              note=f"CAS {cas}: the library lacks " + ", ".join(missing), source=src)
+    dt2 = (hvap - R_J_molK * T) / vm
+    dD = (KOENHEN_SMOLDERS[0] * n + KOENHEN_SMOLDERS[1]) * CAL05_TO_MPA05
+    dP = BEERBOWER_DP * mu / math.sqrt(vm)
+    rest = dt2 - dD * dD - dP * dP
+    note = f"CAS {cas}; Vm {vm_route}"
+    if rest < 0:
+        note += "; total parameter below dD and dP: dH set to 0"
+    return MethodEstimate(name, dD, dP, math.sqrt(max(rest, 0.0)), vm, True, note=note, source=src)
+
+
+# --------------------------------------------------------------------------- classes
+
+_CLASS_SMARTS = None
+
+
+def chemical_class(smiles_or_mol) -> str:
+    """Chemical class of a molecule, for reporting errors by class.
+
+    ``hydrocarbons`` (C and H only); ``halogenated`` (C, H and halogens only);
+    one of ``alcohols``, ``phenols``, ``esters``, ``aldehydes/ketones``,
+    ``acids``, ``amines``, ``ethers`` when that is the only functional family
+    (halogens count as one); ``multifunctional`` when two or more families are
+    present; ``other`` for the rest (nitriles, amides, nitro, sulfur, ...).
+
+    >>> chemical_class("CC(C)=CCCC(C)=CC=O"), chemical_class("Cc1ccc(C(C)C)c(O)c1")
+    ('aldehydes/ketones', 'phenols')
+    """
+    global _CLASS_SMARTS
+    Chem = _rdkit()
+    mol = _as_mol(smiles_or_mol)
+    if _CLASS_SMARTS is None:
+        _CLASS_SMARTS = {
+            "acids": Chem.MolFromSmarts("[CX3](=O)[OX2H1]"),
+            "esters": Chem.MolFromSmarts("[CX3](=O)[OX2][#6]"),
+            "aldehydes/ketones": Chem.MolFromSmarts("[CX3;$([CX3H1](=O)[#6]),$([CX3](=O)([#6])[#6])]=O"),
+            "phenols": Chem.MolFromSmarts("[OX2H1]c"),
+            "alcohols": Chem.MolFromSmarts("[OX2H1][CX4,CX3;!$(C=O)]"),
+            "amines": Chem.MolFromSmarts("[NX3;!$(N-C=[O,S]);!$(N-[S,P]=O);!$([N+])]"),
+            "ethers": Chem.MolFromSmarts("[OX2H0;!$(O-C=O)]([#6])[#6]"),
+            "halogenated": Chem.MolFromSmarts("[F,Cl,Br,I]"),
+        }
+    elements = {a.GetSymbol() for a in mol.GetAtoms()}
+    if elements <= {"C"}:
+        return "hydrocarbons"
+    fams = [name for name, patt in _CLASS_SMARTS.items() if mol.HasSubstructMatch(patt)]
+    # heteroatoms not explained by any family make the molecule "other"
+    explained = set()
+    for name in fams:
+        for m in mol.GetSubstructMatches(_CLASS_SMARTS[name]):
+            explained.update(m)
+    hetero = {a.GetIdx() for a in mol.GetAtoms() if a.GetSymbol() != "C"}
+    if hetero - explained:
+        return "multifunctional" if len(fams) >= 2 else "other"
+    if len(fams) == 1:
+        return fams[0]
+    return "multifunctional" if fams else "other"
+
+
+# --------------------------------------------------------------------------- own model parameters
+
+OWN_METHOD = "solvsel-gc"
+_PARAM_COLUMNS = ["term", "kind", "smarts", "owned", "dD", "dP", "dH", "source"]
+_BUNDLED_PARAMS = "gc_params.csv"
+
+
+def _sibling(path: Path, what: str) -> Path:
+    return path.with_name(f"{path.stem}_{what}.csv")
+
+
+@dataclass(frozen=True)
+class OwnParams:
+    """Fitted parameters of the own model (one coefficient per term and parameter)."""
+
+    path: str
+    terms: tuple  # (name, smarts, kind, owned)
+    coef: object  # ndarray (n_terms + 1, 3): terms then the 100/Vx size term
+    intercept: object  # ndarray (3,)
+    square: tuple  # per parameter: fitted as its square?
+    cv: dict  # class -> {"n", "mae_dD", ..., "q90_dD", ...}
+    source: str
+
+
+@lru_cache(maxsize=8)
+def load_params(path=None) -> OwnParams:
+    """Read the own model's parameters (bundled ``tables/gc_params.csv`` by default).
+
+    The cross-validated errors by class are read from ``<stem>_cv.csv`` beside it.
+    A malformed file raises :class:`TableError` naming the row and column.
+    """
+    import numpy as np
+
+    p = Path(path) if path else _tables_dir() / _BUNDLED_PARAMS
+    if not p.is_file():
+        raise InputError(f"--params: file '{p}' not found")
+    terms, coefs, intercept, square, size, srcs = [], [], None, (False, False, False), None, set()
+    with open(p, newline="", encoding="utf-8") as fh:
+        reader = csv.DictReader(fh)
+        missing = [c for c in _PARAM_COLUMNS if c not in (reader.fieldnames or [])]
+        if missing:
+            raise TableError(p, f"missing columns {', '.join(missing)} (expected {', '.join(_PARAM_COLUMNS)})")
+        for row_no, row in enumerate(reader, start=2):
+            try:
+                vals = np.array([float(row[c]) for c in ("dD", "dP", "dH")])
+            except ValueError:
+                raise TableError(p, "dD, dP, dH must be numbers", row=row_no, column="dD") from None
+            kind = row["kind"]
+            srcs.update(s for s in (row.get("source") or "").split(";") if s)
+            if kind in ("atom", "match", "special"):
+                try:
+                    owned = int(row["owned"] or 0)
+                except ValueError:
+                    raise TableError(p, "expected an integer", row=row_no, column="owned") from None
+                terms.append((row["term"], row["smarts"], kind, owned))
+                coefs.append(vals)
+            elif kind == "size":
+                size = vals
+            elif kind == "intercept":
+                intercept = vals
+            elif kind == "transform":
+                square = tuple(bool(v) for v in vals)
+            elif kind == "meta":
+                continue
+            else:
+                raise TableError(p, f"unknown kind '{kind}' (atom, match, special, size, intercept, transform, meta)",
+                                 row=row_no, column="kind")
+    if intercept is None or size is None or not terms:
+        raise TableError(p, "needs term rows, one 'size' row and one 'intercept' row")
+    cv = {}
+    cvp = _sibling(p, "cv")
+    if cvp.is_file():
+        with open(cvp, newline="", encoding="utf-8") as fh:
+            for row in csv.DictReader(fh):
+                if row.get("method") != OWN_METHOD and row.get("method") is not None:
+                    cv.setdefault(("method", row["method"]), {})[row["class"]] = _cv_row(row)
+                else:
+                    cv[row["class"]] = _cv_row(row)
+    _own_compiled(tuple(terms))  # fail early on a bad SMARTS
+    return OwnParams(str(p), tuple(terms), np.vstack(coefs + [size]), intercept, square, cv, ";".join(sorted(srcs)))
+
+
+def _cv_row(row) -> dict:
+    out = {"n": int(float(row["n"]))}
+    for k, v in row.items():
+        if k.startswith(("mae_", "q90_")):
+            out[k] = float(v) if v not in ("", None) else None
+    return out
+
+
+def own_model(smiles_or_mol, params=None) -> MethodEstimate:
+    r"""The project's own group-contribution estimate (``solvsel-gc``).
+
+    .. math::
+        y = b + \sum_i c_i \frac{100\, n_i}{V_x} + c_V \frac{100}{V_x}
+
+    with :math:`n_i` the counts of the scheme's terms, :math:`V_x` the McGowan
+    volume [cm^3/mol]; y is dD, dP, or the square of dH (see the ``transform``
+    row of the parameter table).  Coefficients are fitted by ridge regression
+    (:func:`refit`).
+
+    Parameters
+    ----------
+    smiles_or_mol : str or rdkit Mol
+    params : str or Path or OwnParams, optional
+        a parameter table from :func:`refit` (default: the bundled one)
+    """
+    import numpy as np
+
+    mol = _as_mol(smiles_or_mol)
+    P = params if isinstance(params, OwnParams) else load_params(str(params) if params else None)
+    counts, vx, groups, uncovered = own_features(mol, P.terms)
+    if uncovered:
+        return MethodEstimate(OWN_METHOD, None, None, None, None, False, groups, uncovered,
+                              "atoms without a term of the scheme", P.source)
+    x = own_design(counts, vx)[0]
+    y = P.intercept + x @ P.coef
+    out = []
+    for j in range(3):
+        v = float(y[j])
+        if P.square[j]:
+            v = math.sqrt(max(v, 0.0))
+        out.append(max(v, 0.0))
+    return MethodEstimate(OWN_METHOD, out[0], out[1], out[2], None, True, groups, (), "", P.source)
+
+
+# --------------------------------------------------------------------------- fitting and cross-validation
+
+ALPHAS = (0.1, 0.3, 1.0, 3.0, 10.0, 30.0)
+N_FOLDS = 10
+SEED = 20221  # fixed, so the recorded split can be regenerated
+
+
+def dataset_design(df, terms=None):
+    """Features of every compound of :func:`training_data`: ``(X, counts, vx, covered)``."""
+    import numpy as np
+
+    Chem = _rdkit()
+    terms = tuple(tuple(t) for t in (terms or OWN_TERMS))
+    C, V, ok = [], [], []
+    for smi in df["smiles"]:
+        mol = Chem.MolFromSmiles(smi)
+        counts, vx, _, unc = own_features(mol, terms)
+        C.append(counts)
+        V.append(vx)
+        ok.append(not unc)
+    C = np.array(C)
+    V = np.array(V)
+    return own_design(C, V), C, V, np.array(ok)
+
+
+def _fit_one(X, y, alpha):
+    """Ridge on standardised columns; returns (intercept, coefficients on the raw columns)."""
+    import numpy as np
+    from sklearn.linear_model import Ridge
+
+    mu = X.mean(axis=0)
+    sd = X.std(axis=0)
+    sd[sd == 0] = 1.0
+    r = Ridge(alpha=alpha).fit((X - mu) / sd, y)
+    coef = r.coef_ / sd
+    return float(r.intercept_ - np.sum(coef * mu)), coef
+
+
+def _fit(X, Y, alphas, square):
+    import numpy as np
+
+    icpt = np.zeros(3)
+    coef = np.zeros((X.shape[1], 3))
+    for j in range(3):
+        y = Y[:, j] ** 2 if square[j] else Y[:, j]
+        icpt[j], coef[:, j] = _fit_one(X, y, alphas[j])
+    return icpt, coef
+
+
+def _predict(X, icpt, coef, square):
+    import numpy as np
+
+    Y = icpt + X @ coef
+    for j in range(3):
+        if square[j]:
+            Y[:, j] = np.sqrt(np.clip(Y[:, j], 0, None))
+    return np.clip(Y, 0, None)
+
+
+def _choose_alphas(X, Y, groups, square, seed):
+    """Alpha per parameter by an inner grouped 5-fold CV on (X, Y) only."""
+    import numpy as np
+    from sklearn.model_selection import GroupKFold
+
+    best = []
+    splits = list(GroupKFold(n_splits=5, shuffle=True, random_state=seed).split(X, groups=groups))
+    for j in range(3):
+        errs = []
+        for a in ALPHAS:
+            e = 0.0
+            for tr, te in splits:
+                y = Y[tr, j] ** 2 if square[j] else Y[tr, j]
+                b, c = _fit_one(X[tr], y, a)
+                p = b + X[te] @ c
+                if square[j]:
+                    p = np.sqrt(np.clip(p, 0, None))
+                e += np.abs(p - Y[te, j]).sum()
+            errs.append(e)
+        best.append(ALPHAS[int(np.argmin(errs))])
+    return tuple(best)
+
+
+#: dD and dP are fitted as they are, dH as its square (hydrogen-bond cohesive
+#: energy per volume is what adds up by groups); chosen by cross-validation.
+SQUARE = (False, False, True)
+
+
+def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, square=SQUARE):
+    """Grouped k-fold cross-validation of the own model.
+
+    Each compound (one structure, see :func:`training_data`) is one group, so
+    no structure is in the training and the test part of a fold at once.
+    Compounds marked ``conflict`` get a fold and an out-of-fold prediction but
+    are never fitted on.  The ridge penalty is chosen inside each fold by an
+    inner grouped 5-fold split of that fold's training part (nested CV).
+
+    Returns
+    -------
+    folds : ndarray of int (fold of each compound, -1 if not covered)
+    pred : ndarray (n, 3) out-of-fold predictions [MPa^0.5] (NaN if not covered)
+    """
+    import numpy as np
+    from sklearn.model_selection import GroupKFold
+
+    Y = df[["dD", "dP", "dH"]].to_numpy(float)
+    keys = df["key"].to_numpy()
+    idx = np.where(covered)[0]
+    folds = np.full(len(df), -1)
+    pred = np.full((len(df), 3), np.nan)
+    fitted = covered & ~df["conflict"].to_numpy(bool)
+    for k, (_, te) in enumerate(GroupKFold(n_splits=n_folds, shuffle=True, random_state=seed).split(idx, groups=keys[idx])):
+        folds[idx[te]] = k
+    for k in range(n_folds):
+        tr = np.where(fitted & (folds != k) & (folds >= 0))[0]
+        te = np.where(folds == k)[0]
+        alphas = _choose_alphas(X[tr], Y[tr], keys[tr], square, seed + k)
+        icpt, coef = _fit(X[tr], Y[tr], alphas, square)
+        pred[te] = _predict(X[te], icpt, coef, square)
+    return folds, pred
+
+
+def error_table(df, preds: dict, mask=None):
+    """Mean absolute errors by class for each method, on the compounds every method covers.
+
+    ``preds`` maps method name to an (n, 3) array (NaN where not covered).
+    Returns rows ``{method, class, n, mae_dD, mae_dP, mae_dH, mae_ra, q90_*}``;
+    the class ``all`` is over every compound.
+    """
+    import numpy as np
+
+    Y = df[["dD", "dP", "dH"]].to_numpy(float)
+    common = np.ones(len(df), bool) if mask is None else np.asarray(mask, bool).copy()
+    for P in preds.values():
+        common &= np.isfinite(P).all(axis=1)
+    classes = df["chem_class"].to_numpy()
+    rows = []
+    for method, P in preds.items():
+        err = np.abs(P - Y)
+        ra = np.sqrt(4 * err[:, 0] ** 2 + err[:, 1] ** 2 + err[:, 2] ** 2)
+        for cls in ("all",) + CLASSES:
+            m = common if cls == "all" else common & (classes == cls)
+            if not m.any():
+                continue
+            row = {"method": method, "class": cls, "n": int(m.sum())}
+            for j, p in enumerate(("dD", "dP", "dH")):
+                row[f"mae_{p}"] = float(err[m, j].mean())
+            row["mae_ra"] = float(ra[m].mean())
+            for j, p in enumerate(("dD", "dP", "dH")):
+                row[f"q90_{p}"] = float(np.quantile(err[m, j], 0.9))
+            row["q90_ra"] = float(np.quantile(ra[m], 0.9))
+            rows.append(row)
+    return rows
+
+
+def published_predictions(df, methods=("hoftyzer-van-krevelen",)):
+    """Predictions of the published (and property) methods for every compound of ``df``."""
+    import numpy as np
+
+    Chem = _rdkit()
+    out = {}
+    for method in methods:
+        P = np.full((len(df), 3), np.nan)
+        for i, (smi, cas) in enumerate(zip(df["smiles"], df["cas"])):
+            mol = Chem.MolFromSmiles(smi)
+            if method == "hoftyzer-van-krevelen":
+                e = hoftyzer_van_krevelen(mol)
+            elif method == "properties":
+                e = properties_estimate(mol, cas=cas.split(";")[0])
+            else:
+                raise InputError(f"method '{method}': expected one of {', '.join(METHODS)}")
+            if e.covered:
+                P[i] = (e.dD, e.dP, e.dH)
+        out[method] = P
+    return out
+
+
+def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, progress=None):
+    """Fit the own model on the ``chemicals`` datasets and write its parameter table.
+
+    Writes ``out`` (parameters), ``<stem>_training.csv`` (every compound with
+    its values, fold, whether it was fitted, and its out-of-fold prediction)
+    and ``<stem>_cv.csv`` (cross-validated errors by class, the own model and
+    Hoftyzer-Van Krevelen on the same compounds).  Never overwrites a file
+    unless ``force``.
+
+    Parameters
+    ----------
+    out : str or Path
+        the parameter table to write (``.csv``)
+    exclude : iterable of str
+        CAS numbers held out of everything (fitting and validation)
+    force : bool
+        overwrite existing files
+
+    Returns
+    -------
+    dict
+        paths written, number of compounds, alphas, cross-validated errors (class ``all``)
+    """
+    import numpy as np
+
+    out = Path(out)
+    if out.suffix.lower() != ".csv":
+        raise InputError(f"--refit: the parameter file must end in .csv, got '{out}'")
+    paths = [out, _sibling(out, "training"), _sibling(out, "cv")]
+    if not force:
+        exist = [str(p) for p in paths if p.exists()]
+        if exist:
+            raise InputError(f"--refit: {', '.join(exist)} already exist; choose another name or add --force")
+    if not out.parent.is_dir():
+        raise InputError(f"--refit: folder '{out.parent}' does not exist")
+    terms = tuple(tuple(t) for t in (terms or OWN_TERMS))
+    say = progress or (lambda msg: None)
+    say("reading the HSP datasets of chemicals")
+    df = training_data(exclude)
+    df["chem_class"] = [chemical_class(s) for s in df["smiles"]]
+    say(f"{len(df)} compounds; counting groups")
+    X, _, _, covered = dataset_design(df, terms)
+    say("cross-validating")
+    folds, cvpred = cross_validate(df, X, covered, n_folds, seed)
+    fitted = covered & ~df["conflict"].to_numpy(bool)
+    Y = df[["dD", "dP", "dH"]].to_numpy(float)
+    keys = df["key"].to_numpy()
+    alphas = _choose_alphas(X[fitted], Y[fitted], keys[fitted], SQUARE, seed)
+    icpt, coef = _fit(X[fitted], Y[fitted], alphas, SQUARE)
+    say("scoring the published method on the same compounds")
+    pub = published_predictions(df)
+    preds = {OWN_METHOD: cvpred, **pub}
+    rows_cv = error_table(df, {OWN_METHOD: cvpred}, mask=fitted)
+    rows_cv += [dict(r, method=r["method"]) for r in error_table(df, preds, mask=fitted)
+                if r["method"] != OWN_METHOD]
+    conflict_rows = error_table(df, {OWN_METHOD: cvpred}, mask=covered & df["conflict"].to_numpy(bool))
+    for r in conflict_rows:
+        if r["class"] == "all":
+            rows_cv.append(dict(r, **{"class": "conflicting labels"}))
+    src = "derived_gc_fit"
+    tmp = [p.with_name(p.name + ".tmp") for p in paths]
+    with open(tmp[0], "w", newline="", encoding="utf-8") as fh:
+        w = csv.writer(fh)
+        w.writerow(_PARAM_COLUMNS)
+        for (name, smarts, kind, owned), c in zip(terms, coef[:-1]):
+            w.writerow([name, kind, smarts, owned, *(f"{v:.8g}" for v in c), src])
+        w.writerow(["100/Vx", "size", "", 0, *(f"{v:.8g}" for v in coef[-1]), src])
+        w.writerow(["intercept", "intercept", "", 0, *(f"{v:.8g}" for v in icpt), src])
+        w.writerow(["square", "transform", "", 0, *(int(s) for s in SQUARE), src])
+        w.writerow(["alpha", "meta", "", 0, *alphas, src])
+        w.writerow([f"folds={n_folds} seed={seed} compounds={int(fitted.sum())}", "meta", "", 0, 0, 0, 0, src])
+    with open(tmp[1], "w", newline="", encoding="utf-8") as fh:
+        w = csv.writer(fh)
+        w.writerow(["key", "smiles", "cas", "dD", "dP", "dH", "n_sources", "max_ra", "conflict", "covered",
+                    "fitted", "fold", "chem_class", "cv_dD", "cv_dP", "cv_dH", "source"])
+        for i, r in df.iterrows():
+            cvp = ["" if not np.isfinite(v) else f"{v:.3f}" for v in cvpred[i]]
+            w.writerow([r["key"], r["smiles"], r["cas"], f"{r['dD']:.2f}", f"{r['dP']:.2f}", f"{r['dH']:.2f}",
+                        r["n_sources"], f"{r['max_ra']:.2f}", "yes" if r["conflict"] else "no",
+                        "yes" if covered[i] else "no", "yes" if fitted[i] else "no", int(folds[i]),
+                        r["chem_class"], *cvp, r["source"]])
+    cols = ["method", "class", "n", "mae_dD", "mae_dP", "mae_dH", "mae_ra", "q90_dD", "q90_dP", "q90_dH", "q90_ra"]
+    with open(tmp[2], "w", newline="", encoding="utf-8") as fh:
+        w = csv.writer(fh)
+        w.writerow(cols + ["source"])
+        for r in rows_cv:
+            w.writerow([r[c] if isinstance(r[c], str) or c == "n" else f"{r[c]:.3f}" for c in cols] + [src])
+    for t, p in zip(tmp, paths):
+        t.replace(p)
+    load_params.cache_clear()
+    overall = next(r for r in rows_cv if r["method"] == OWN_METHOD and r["class"] == "all")
+    return {"paths": [str(p) for p in paths], "compounds": int(len(df)), "fitted": int(fitted.sum()),
+            "alphas": alphas, "cv": overall, "table": rows_cv}
+
+
+# --------------------------------------------------------------------------- the public entry point
+
+_LOW_CONFIDENCE_N = 10  # a class with fewer CV compounds than this falls back to the overall error
+
+
+def _uncertainty(P: OwnParams, method: str, cls: str) -> dict:
+    table = P.cv if method == OWN_METHOD else P.cv.get(("method", method), {})
+    row = table.get(cls)
+    basis = cls
+    if row is None or row["n"] < _LOW_CONFIDENCE_N:
+        row, basis = table.get("all"), "all"
+    if row is None:
+        return {"dD": None, "dP": None, "dH": None, "ra": None, "n": 0, "basis": "none", "kind": "cv_mae"}
+    return {
+        "dD": row.get("mae_dD"), "dP": row.get("mae_dP"), "dH": row.get("mae_dH"), "ra": row.get("mae_ra"),
+        "q90_dD": row.get("q90_dD"), "q90_dP": row.get("q90_dP"), "q90_dH": row.get("q90_dH"),
+        "q90_ra": row.get("q90_ra"), "n": row["n"], "basis": basis, "kind": "cv_mae",
+    }
+
+
+def estimate(smiles: str, method: str | None = None, params=None, properties: bool = True) -> Estimate:
+    """Estimate the Hansen parameters and molar volume of one molecule from its SMILES.
+
+    Parameters
+    ----------
+    smiles : str
+        one neutral organic molecule (stereo, Kekule or aromatic form, explicit
+        hydrogens all give the same answer)
+    method : str, optional
+        ``"solvsel-gc"`` (default), ``"hoftyzer-van-krevelen"`` or ``"properties"``
+    params : str or Path, optional
+        the own model's parameter table (default the bundled ``tables/gc_params.csv``)
+    properties : bool
+        also look the compound up in ``chemicals`` for the property-based estimate
+
+    Returns
+    -------
+    Estimate
+        dD, dP, dH [MPa^0.5], vm [cm^3/mol], the groups, the cross-validated
+        uncertainty for the molecule's class, the other methods and their spread
+
+    Raises
+    ------
+    InputError
+        unreadable SMILES or unknown method
+    OutOfRangeError
+        ions, salts and mixtures, metals, radicals
+    MissingDataError
+        the chosen method has no group for some atom (the message lists them)
+
+    Examples
+    --------
+    d-Limonene (tabulated 17.2, 1.8, 4.3, Hansen 2007 Appendix A):
+
+    >>> e = estimate("CC1=CCC(CC1)C(=C)C", properties=False)
+    >>> e.method, e.chem_class, abs(e.dD - 17.2) < 1.0
+    ('solvsel-gc', 'hydrocarbons', True)
+    """
+    import numpy as np
+
+    if method is not None and method not in METHODS:
+        raise InputError(f"method '{method}': expected one of {', '.join(METHODS)}")
+    method = method or OWN_METHOD
+    mol, canonical = parse_smiles(smiles)
+    P = load_params(str(params) if params else None)
+    own = own_model(mol, P)
+    hvk = hoftyzer_van_krevelen(mol)
+    cas = _lookup_cas(mol) if properties or method == "properties" else None
+    prop = properties_estimate(mol, cas) if cas else MethodEstimate(
+        "properties", None, None, None, None, False,
+        note="not looked up" if not (properties or method == "properties") else "compound not in the chemicals library",
+        source="chemicals_lib")
+    by_name = {OWN_METHOD: own, "hoftyzer-van-krevelen": hvk, "properties": prop}
+    chosen = by_name[method]
+    if not chosen.covered:
+        Chem = _rdkit()
+        if chosen.uncovered_atoms:
+            what = ", ".join(f"{mol.GetAtomWithIdx(i).GetSymbol()}{i}" for i in chosen.uncovered_atoms)
+            raise MissingDataError(
+                f"method '{method}' has no group for atom(s) {what} of '{canonical}'; the estimate is refused "
+                "rather than guessed (try another method with --method)")
+        raise MissingDataError(f"method '{method}' cannot estimate '{canonical}': {chosen.note}")
+    from rdkit.Chem import Descriptors, rdMolDescriptors
+
+    cls = chemical_class(mol)
+    notes = []
+    if chosen.note:
+        notes.append(chosen.note)
+    # molar volume: the library's liquid value where it has the compound, else Fedors
+    vm, vm_method = None, ""
+    if cas:
+        v, route = liquid_molar_volume(cas)
+        if v:
+            vm, vm_method = float(v), f"chemicals: {route}"
+    if vm is None:
+        fv = fedors_volume(mol)[0]
+        if fv:
+            vm, vm_method = float(fv), "Fedors 1974 group contribution"
+    if vm is None:
+        notes.append("no molar volume: Fedors has no group for some atom")
+    heavy = mol.GetNumAtoms()
+    if heavy < 3:
+        notes.append("very small molecule: group contributions are least reliable here")
+    mw = float(Descriptors.MolWt(mol))
+    if mw > 600:
+        notes.append("molecule larger than most of the training data (MW > 600): treat the estimate as rough")
+    covered = [e for e in (own, hvk, prop) if e.covered]
+    spread = {}
+    if len(covered) > 1:
+        arr = np.array([e.hsp for e in covered])
+        spread = {p: float(arr[:, j].max() - arr[:, j].min()) for j, p in enumerate(("dD", "dP", "dH"))}
+    others = tuple(e for name, e in by_name.items() if name != method)
+    return Estimate(
+        smiles=canonical, dD=float(chosen.dD), dP=float(chosen.dP), dH=float(chosen.dH),
+        vm_cm3_mol=vm, vm_method=vm_method, method=method, groups=chosen.groups,
+        uncovered_atoms=chosen.uncovered_atoms, chem_class=cls, uncertainty=_uncertainty(P, method, cls),
+        others=others, spread=spread, notes=tuple(notes), mw_g_mol=mw,
+        formula=rdMolDescriptors.CalcMolFormula(mol),
+    )
+
+
+def estimate_many(smiles_list, method=None, params=None, properties=False):
+    """Estimate many SMILES; returns a list of (smiles, Estimate or the error raised)."""
+    from .errors import SolvselError
+
+    out = []
+    for s in smiles_list:
+        try:
+            out.append((s, estimate(s, method=method, params=params, properties=properties)))
+        except SolvselError as exc:
+            out.append((s, exc))
+    return out
