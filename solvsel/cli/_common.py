@@ -221,13 +221,22 @@ def parse_percent(text: str, what: str = "--dose") -> float:
 
 
 def open_ui(args) -> int:
-    """Open the terminal UI on the demo scenario; fall back to the text demo without a terminal."""
+    """Open the terminal UI on the demo scenario.
+
+    Without a terminal (output piped, or run by a script) the text walk-through
+    of the same scenario is printed instead.
+    """
+    from argparse import Namespace
+
+    from .demo import run as run_demo
+
+    if not (sys.stdin.isatty() and sys.stdout.isatty()):
+        print("(no terminal: printing the text walk-through of the demo; run `solvsel` in a terminal for the UI)\n")
+        return run_demo(Namespace(step=None))
     try:
         from ..tui.app import run_app
     except ModuleNotFoundError as exc:
         if exc.name and exc.name.startswith("solvsel.tui"):
-            from .demo import run as run_demo
-
-            return run_demo(args)
+            return run_demo(Namespace(step=None))
         raise
     return run_app(catalog=get_catalog(args))

@@ -1,0 +1,91 @@
+"""The demo scenario: a fictional drinks maker's product, used by ``solvsel demo`` and the UI.
+
+The company, the product and every quantity in ``tables/demo_scenario.json``
+are invented for the demo (source kind ``demo``); the substances are real and
+carry their published values in the tables.  :func:`demo_steps` turns the
+scenario into the command lines the README walks through, so the text demo,
+the UI and the README show the same work.
+"""
+
+from __future__ import annotations
+
+import json
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from .catalog import TABLES_DIR
+from .errors import InputError
+
+__all__ = ["Scenario", "load_scenario", "demo_steps", "SCENARIO_PATH"]
+
+SCENARIO_PATH = TABLES_DIR / "demo_scenario.json"
+
+
+@dataclass(frozen=True)
+class Scenario:
+    """The demo scenario (all quantities invented for the demo)."""
+
+    company: str
+    product: str
+    story: str
+    target: dict[str, Any]
+    carrier: dict[str, Any]
+    extraction: dict[str, Any]
+    emulsion: dict[str, Any]
+    flavour: dict[str, Any]
+    source: str = "demo"
+    path: str = ""
+
+    @property
+    def solute(self) -> str:
+        return self.target["solute"]
+
+    def to_dict(self) -> dict:
+        return {k: getattr(self, k) for k in self.__dataclass_fields__}
+
+
+def load_scenario(path: str | Path | None = None) -> Scenario:
+    """Read the demo scenario (or a scenario file of the same shape)."""
+    p = Path(path) if path else SCENARIO_PATH
+    try:
+        data = json.loads(p.read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        raise InputError(f"scenario file '{p}' does not exist") from None
+    except json.JSONDecodeError as exc:
+        raise InputError(f"scenario file '{p}': not valid JSON (line {exc.lineno}: {exc.msg})") from None
+    keys = ("company", "product", "story", "target", "carrier", "extraction", "emulsion", "flavour")
+    missing = [k for k in keys if k not in data]
+    if missing:
+        raise InputError(f"scenario file '{p}': missing '{missing[0]}'")
+    if data.get("source") != "demo":
+        raise InputError(f"scenario file '{p}': its 'source' must be 'demo' (invented data are marked so)")
+    return Scenario(**{k: data[k] for k in keys}, source="demo", path=str(p))
+
+
+def _amounts(d: dict) -> str:
+    return ",".join(f"{k}={v:g}" for k, v in d.items())
+
+
+def demo_steps(s: Scenario) -> list[tuple[str, list[str]]]:
+    """(title, argv) of each step of the walk-through, in order."""
+    c, x, e, f = s.carrier, s.extraction, s.emulsion, s.flavour
+    return [
+        (f"1. Single food carriers for {s.solute}, ranked by RED",
+         ["rank", "--solute", s.solute, "--food", "--top", str(c.get("top", 8))]),
+        (f"2. Carrier blends of up to {c['max_components']} liquids ({c['jurisdiction']}, {c['use']} use)",
+         ["blend", "--solute", s.solute, "--use", c["use"], "--jurisdiction", c["jurisdiction"],
+          "--max-components", str(c["max_components"]), "--top", str(c.get("top", 8))]),
+        (f"3. Extraction solvents at {x['temp_C']:g} C that keep {', '.join(x['reject'])} out",
+         ["blend", "--solute", s.solute, "--use", x["use"], "--jurisdiction", x["jurisdiction"],
+          "--reject", ",".join(x["reject"]), "--temp", f"{x['temp_C']:g}",
+          "--max-components", str(x["max_components"]), "--top", str(x.get("top", 8))]),
+        ("4. Emulsifier pairs for the lemon oil phase",
+         ["hlb", "--oil", _amounts(e["oil"]), "--emulsifiers", ",".join(e["emulsifiers"])]),
+        ("5. Weighting, density match and creaming of the emulsion in the drink",
+         ["emulsion", "--oil", _amounts(e["oil"]), "--brix", f"{e['brix']:g}", "--dilution", f"{e['dilution']:g}",
+          "--droplet-um", f"{e['droplet_um']:g}", "--jurisdiction", e["jurisdiction"]]),
+        ("6. The lemon flavour's carrier against the finished-drink limits",
+         ["dose", "--formula", _amounts(f["formula"]), "--dose", f["dose"], "--chain", f["chain"],
+          "--category", f["category"], "--jurisdiction", f["jurisdiction"]]),
+    ]
