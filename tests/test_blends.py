@@ -240,3 +240,241 @@ def test_bad_input_raises_input_error():
         best_fractions([[15, 1, 1], [16, 2, 2]], [15, 1, 1], lower=[0.5, 0.2], upper=[0.4, 1])
     with pytest.raises(InputError):
         list(search_blends([[15, 1, 1]], [15, 1, 1], max_components=5))
+
+
+# ---------------------------------------------------------------- catalog level
+
+from solvsel.blends import FractionBound, optimise_blends, parse_fraction_bound  # noqa: E402
+from solvsel.errors import UnknownNameError  # noqa: E402
+
+
+@pytest.fixture(scope="module")
+def cat():
+    from solvsel.catalog import load_catalog
+
+    return load_catalog()
+
+
+CARRIERS = ["ethanol", "water", "glycerol", "propylene glycol", "triacetin", "triethyl citrate",
+            "benzyl alcohol", "medium-chain triglycerides", "ethyl acetate", "d-limonene"]
+
+
+def test_round_trip_table_liquids(cat):
+    # A target made as 50/30/20 (by volume) ethanol/water/glycerol from the
+    # table's own HSP (MANUEL_RUBEN_2022 values), blended by Hansen's
+    # volume-fraction rule, is found again from a pool of 10 carriers: same
+    # three liquids, fractions within 0.01 (the issue's tolerance).
+    made = {"ethanol": 0.5, "water": 0.3, "glycerol": 0.2}
+    t = sum(x * cat.solvent(n).hsp for n, x in made.items())
+    res = optimise_blends(cat, t, max_components=3, only=CARRIERS)
+    best = res.results[0]
+    assert best.ra < 1e-6
+    found = {c.name: c.volume_fraction for c in best.components}
+    assert set(found) == set(made)
+    for n, x in made.items():
+        assert abs(found[n] - x) < 0.01
+    assert best.one_phase is True and best.phase_basis == "measured"  # all three pairs are tabulated miscible
+
+
+def test_two_non_solvents_found_from_the_table(cat):
+    # Collodion: nitrocellulose dissolves in diethyl ether + ethanol though in
+    # neither alone (Hansen 2007, ch. 1, two-non-solvent effect). Sphere
+    # (15.4, 14.7, 8.8), R0 11.5 from memory of the handbook's polymer table.
+    res = optimise_blends(cat, (15.4, 14.7, 8.8, 11.5), max_components=2, only=["diethyl ether", "ethanol"])
+    singles = {b.names[0]: b.red for b in res.results if len(b.components) == 1}
+    assert singles["diethyl ether"] > 1 and singles["ethanol"] > 1
+    best = res.results[0]
+    assert set(best.names) == {"diethyl ether", "ethanol"} and best.red < 0.9
+
+
+def test_fraction_bounds_are_met(cat):
+    # common practice: "ethanol at most 0.3 by volume, water at least 0.1"
+    t = (15.8, 8.8, 19.4)  # ethanol's own HSP: pure ethanol would be best
+    res = optimise_blends(cat, t, max_components=3, only=CARRIERS,
+                          bounds=["ethanol<=0.3", FractionBound("water", lower=0.1)])
+    assert res.results
+    for b in res.results:
+        x = {c.name: c.volume_fraction for c in b.components}
+        assert x.get("ethanol", 0.0) <= 0.3 + 1e-9
+        assert x["water"] >= 0.1 - 1e-9
+        assert abs(sum(x.values()) - 1) < 1e-9
+    assert res.counts["combinations"] > 0
+
+
+def test_pool_constraints_leave_liquids_out_with_reasons(cat):
+    t = (16.5, 6.0, 12.0)
+    res = optimise_blends(cat, t, max_components=2, use="carrier", worst_flammable_category="none",
+                          bp_min_C=150, max_cost=3)
+    reasons = {e.name: e.reason for e in res.excluded}
+    assert "not listed for use as carrier" in reasons["n-hexane"]
+    assert "flammable" in reasons["ethanol"] or "boils" in reasons["ethanol"]
+    for b in res.results:
+        for c in b.components:
+            rec = cat.solvent(c.name)
+            assert "carrier" in rec.roles and rec.bp_C >= 150 and rec.cost_class <= 3
+        assert b.hazard_rank == 0
+    res = optimise_blends(cat, t, max_components=2, only=CARRIERS, min_flash_C=60)
+    names = {c.name for b in res.results for c in b.components}
+    assert "ethanol" not in names and "ethyl acetate" not in names
+    assert any("flash point" in e.reason for e in res.excluded)
+
+
+def test_jurisdiction_filters_by_food_law(cat):
+    # Directive 2009/32/EC Annex I (bundled regulations table): ethanol is a GMP
+    # extraction solvent; a liquid absent from the positive list is left out.
+    res = optimise_blends(cat, (17.8, 3.9, 9.9), max_components=2, use="extraction", jurisdiction="EU")
+    names = {c.name for b in res.results for c in b.components}
+    excluded = {e.name: e.reason for e in res.excluded}
+    assert "n-heptane" in excluded and "not permitted" in excluded["n-heptane"]
+    assert "n-heptane" not in names
+    assert all(r["allowed"] for b in res.results for r in b.regulations)
+
+
+def test_two_phase_blends_are_dropped_with_reason(cat):
+    # Water and triacetin are only partly miscible (measured pair of the
+    # miscibility table): the fit-optimal water/triacetin blend is dropped.
+    res = optimise_blends(cat, (17.5, 6.0, 10.0), max_components=3, only=["ethanol", "water", "triacetin"])
+    dropped = {tuple(sorted(d.names)): d.reason for d in res.dropped}
+    assert ("triacetin", "water") in dropped and "two phases" in dropped[("triacetin", "water")]
+    assert all(b.one_phase for b in res.results)
+    assert res.counts["two_phase"] >= 1
+    kept = optimise_blends(cat, (17.5, 6.0, 10.0), max_components=3, only=["ethanol", "water", "triacetin"],
+                           one_phase_only=False)
+    flagged = [b for b in kept.results if set(b.names) == {"water", "triacetin"}]
+    assert flagged and flagged[0].one_phase is False
+
+
+def test_mass_fractions_and_properties(cat):
+    res = optimise_blends(cat, (16.0, 12.0, 30.0), max_components=2, only=["ethanol", "water"])
+    b = next(b for b in res.results if len(b.components) == 2)
+    rho = {"ethanol": 0.7852, "water": 0.9971}  # table densities at 25 C
+    m = {c.name: c.volume_fraction * rho[c.name] for c in b.components}
+    tot = sum(m.values())
+    for c in b.components:
+        assert c.mass_fraction == pytest.approx(m[c.name] / tot, abs=1e-9)
+    assert b.bp_min_C == 78.4 and b.bp_max_C == 100.0 and b.lowest_flash_C == 12.0
+    # blend HSP is the volume-fraction average (Hansen 2007)
+    avg = sum(c.volume_fraction * cat.solvent(c.name).hsp for c in b.components)
+    np.testing.assert_allclose([b.dD, b.dP, b.dH], avg, atol=1e-12)
+    assert float(ra(avg, [16.0, 12.0, 30.0])) == pytest.approx(b.ra, abs=1e-9)
+    assert any("flash point" in c for c in b.cautions)
+    assert any("not a safety" in c for c in res.cautions)
+
+
+def test_temperature_shift(cat):
+    # Liquids' HSP at 60 C by the Hansen-Beerbower rules of the Hansen engine
+    from solvsel.hansen import shift_temperature
+
+    res = optimise_blends(cat, (16.0, 9.0, 18.0), max_components=1, only=["ethanol", "propylene glycol"], temp_C=60)
+    for b in res.results:
+        rec = cat.solvent(b.names[0])
+        np.testing.assert_allclose([b.dD, b.dP, b.dH], shift_temperature(rec.hsp, rec.alpha_1_K, 60.0), atol=1e-12)
+    # water freezes at -40 C: left out with the reason
+    res = optimise_blends(cat, (16.0, 9.0, 18.0), max_components=2, only=["ethanol", "water"], temp_C=-40)
+    assert [e.name for e in res.excluded] == ["water"]
+
+
+def test_selectivity_ranks_the_trade_off_front_first(cat):
+    # Typed target and reject spheres (RED basis): every result dissolves the
+    # target better than the nearest reject, and the first is non-dominated.
+    target = (17.8, 3.9, 9.9, 6.0)
+    rejects = [("sugar-like", (17.0, 18.5, 30.0), 8.0), ("wax-like", (16.0, 1.2, 2.4), 4.0)]
+    res = optimise_blends(cat, target, max_components=2, only=CARRIERS, rejects=rejects)
+    assert res.results and res.results[0].pareto
+    for b in res.results:
+        assert b.selectivity_basis == "RED"
+        assert b.worst_reject_red == pytest.approx(min(r.red for r in b.rejects))
+        assert b.selectivity == pytest.approx(b.worst_reject_red - b.red)
+    # the Pareto list: no member dominated; every result off the front dominated by a member
+    def objectives(b):
+        return np.array([b.red, -b.worst_reject_red, b.cost, b.hazard_rank, len(b.components)])
+
+    def dominates(a, b):
+        return np.all(objectives(a) <= objectives(b)) and np.any(objectives(a) < objectives(b))
+
+    assert res.pareto
+    for p in res.pareto:
+        assert not any(dominates(q, p) for q in list(res.pareto) + list(res.results))
+    for b in res.results:
+        assert b.pareto == any(b.names == p.names for p in res.pareto)
+        if not b.pareto:
+            assert any(dominates(p, b) for p in res.pareto)
+    # rejects without radius: Ra basis
+    res = optimise_blends(cat, (17.8, 3.9, 9.9), max_components=2, only=CARRIERS, rejects=[cat.solute("sucrose")])
+    assert res.results[0].selectivity_basis == "Ra" and res.results[0].worst_reject_red is None
+
+
+def test_parse_fraction_bound():
+    assert parse_fraction_bound("water>=10%") == FractionBound("water", 0.1, 1.0)
+    assert parse_fraction_bound("triacetin=0.25") == FractionBound("triacetin", 0.25, 0.25)
+    assert parse_fraction_bound("0.2 <= medium-chain triglycerides <= 0.6").name == "medium-chain triglycerides"
+    for bad in ("ethanol<0.3", "ethanol<=1.5", "0.3>=ethanol", "ethanol<=abc", "0.6<=water<=0.2"):
+        with pytest.raises(InputError):
+            parse_fraction_bound(bad)
+
+
+def test_user_mistakes_raise_solvsel_errors(cat):
+    with pytest.raises(UnknownNameError):
+        optimise_blends(cat, (16, 5, 10), only=["ethanool"])
+    with pytest.raises(InputError):
+        optimise_blends(cat, (16, 5, 10), max_components=5)
+    with pytest.raises(InputError):  # water required but excluded
+        optimise_blends(cat, (16, 5, 10), exclude=["water"], bounds=["water>=0.1"])
+    with pytest.raises(InputError):
+        optimise_blends(cat, (16, 5, 10), use="cleaning")
+    with pytest.raises(InputError):
+        optimise_blends(cat, (16, 5, 10), bounds=["water>=0.6", "ethanol>=0.6"])
+
+
+def test_no_blend_is_data_not_an_error(cat):
+    res = optimise_blends(cat, (16, 5, 10), only=["ethanol", "water"], bounds=["ethanol<=0.2", "water<=0.2"],
+                          max_components=2)
+    assert not res.success and not res.results and res.message
+
+
+# ---------------------------------------------------------------- command line
+
+def _run_cli(capsys, *argv):
+    from solvsel.cli import main
+
+    code = main(["blend", *argv])
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+def test_cli_json_contract(capsys):
+    import json
+
+    code, out, _ = _run_cli(capsys, "--hsp", "17.5,6.0,10.0", "--max-components", "3",
+                            "--only", "ethanol,water,triacetin", "--json")
+    assert code == 0
+    doc = json.loads(out)
+    assert {"dD", "dP", "dH"} <= set(doc["target"])
+    assert doc["results"]
+    for r in doc["results"]:
+        assert {"components", "dD", "dP", "dH", "ra", "red", "one_phase", "cautions"} <= set(r)
+        for c in r["components"]:
+            assert {"name", "cas", "volume_fraction", "mass_fraction"} <= set(c)
+            assert 0 <= c["volume_fraction"] <= 1
+    ras = [r["ra"] for r in doc["results"]]
+    assert ras == sorted(ras)  # best first
+    assert any("two phases" in d["reason"] for d in doc["dropped"])
+
+
+def test_cli_text_and_bad_input(capsys):
+    code, out, _ = _run_cli(capsys, "--solute", "cannabidiol", "--use", "extraction", "--jurisdiction", "EU",
+                            "--reject", "chlorophyll a", "--max-components", "2", "--top", "3")
+    assert code == 0
+    assert "blend (volume fractions)" in out and "Cautions:" in out and "Dropped:" in out
+    code, _, err = _run_cli(capsys, "--hsp", "17.5,6.0,10.0", "--fraction", "ethanol<0.3")
+    assert code == 2 and "--fraction" in err
+    code, _, err = _run_cli(capsys, "--hsp", "17.5,6.0,10.0", "--only", "ethanool,water")
+    assert code == 2 and "ethanol" in err
+
+
+def test_engine_does_not_import_textual():
+    import subprocess
+    import sys
+
+    code = "import sys, solvsel.blends; sys.exit(1 if 'textual' in sys.modules else 0)"
+    assert subprocess.run([sys.executable, "-c", code], cwd=str(__import__("pathlib").Path(__file__).parents[1])).returncode == 0
