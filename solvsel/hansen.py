@@ -536,19 +536,6 @@ def _fh_parts(u, chi, n1, n2):
     return p, q, g, g1, g - p * g1, g2
 
 
-def _lower_hull(x, y):
-    hull = []
-    for i in range(len(x)):
-        while len(hull) >= 2:
-            j, k = hull[-2], hull[-1]
-            if (x[k] - x[j]) * (y[i] - y[j]) - (y[k] - y[j]) * (x[i] - x[j]) <= 0:
-                hull.pop()
-            else:
-                break
-        hull.append(i)
-    return hull
-
-
 def binodal(chi, n1=1.0, n2=1.0) -> Binodal:
     r"""Mutual solubilities of a Flory-Huggins binary by the common tangent.
 
@@ -561,10 +548,11 @@ def binodal(chi, n1=1.0, n2=1.0) -> Binodal:
 
     has a common tangent at the two coexisting compositions
     :math:`\phi_a < \phi_b`: :math:`g'(\phi_a) = g'(\phi_b)` and
-    :math:`g - \phi g'` equal at both.  Found from the lower convex hull of
-    :math:`g` on a grid (or the strong-segregation limit for solubilities
-    below the grid), then refined by Newton's method in logit coordinates, so
-    that solubilities far below 1e-10 still resolve.
+    :math:`g - \phi g'` equal at both.  Started from the strong-segregation
+    limit (far from critical) or from a bisection on the tangent's slope
+    between the spinodal points (near critical), then refined by Newton's
+    method in logit coordinates, so that solubilities far below 1e-10 still
+    resolve.
 
     Parameters
     ----------
@@ -614,18 +602,36 @@ def binodal(chi, n1=1.0, n2=1.0) -> Binodal:
         x = np.minimum(x, [-0.5, np.inf])
         x = np.maximum(x, [-np.inf, 0.5])
     else:
-        phi = np.linspace(0.0, 1.0, 2001)[1:-1]
-        u = np.log(phi) - np.log1p(-phi)
-        _, _, g, _, _, _ = _fh_parts(u, chi, n1, n2)
-        hull = _lower_hull(phi, g)
-        gaps = np.diff(hull)
-        k = int(np.argmax(gaps))
-        if gaps[k] <= 1:
-            return Binodal(chi, chic, True, nan, nan, False, "no two-phase region found on the grid (just above critical)")
-        i, j = hull[k], hull[k + 1]
-        ua = u[i] if i > 0 else min(u[0], n2 / n1 - 1.0 - chi * n2)
-        ub = u[j] if j < len(u) - 1 else max(u[-1], -(n1 / n2 - 1.0 - chi * n1))
-        x = np.array([ua, ub], dtype=float)
+        # near the critical point: the spinodal roots s1 < s2 bound the
+        # concave region; the double tangent's slope m lies between g'(s2)
+        # and g'(s1), and for a trial slope each convex branch touches the
+        # line g - m phi at its minimum.  Bisect on m until both minima are
+        # equal (a vectorised stand-in for the convex hull), then polish.
+        qa = 2.0 * chi * n1 * n2
+        qb = n2 - n1 - qa
+        disc = qb * qb - 4.0 * qa * n1
+        if disc <= 0:
+            return Binodal(chi, chic, True, nan, nan, False, "no two-phase region found (just above critical)")
+        s1 = (-qb - math.sqrt(disc)) / (2.0 * qa)
+        s2 = (-qb + math.sqrt(disc)) / (2.0 * qa)
+        reach = max(40.0, 1.5 * chi * max(n1, n2) + 10.0)
+        us1 = math.log(s1) - math.log1p(-s1)
+        us2 = math.log(s2) - math.log1p(-s2)
+        offsets = np.geomspace(1e-4 * (us2 - us1), reach, 800)  # fine next to the spinodal
+        ul = (us1 - offsets)[::-1]
+        ur = us2 + offsets
+        pl, _, gl, _, _, _ = _fh_parts(ul, chi, n1, n2)
+        pr, _, gr, _, _, _ = _fh_parts(ur, chi, n1, n2)
+        lo = float(_fh_parts(ur[0], chi, n1, n2)[3])
+        hi = float(_fh_parts(ul[-1], chi, n1, n2)[3])
+        for _ in range(60):
+            m = 0.5 * (lo + hi)
+            if np.min(gl - m * pl) - np.min(gr - m * pr) > 0:
+                hi = m
+            else:
+                lo = m
+        m = 0.5 * (lo + hi)
+        x = np.array([ul[np.argmin(gl - m * pl)], ur[np.argmin(gr - m * pr)]], dtype=float)
     ok = False
     for _ in range(100):
         pa, qa, _, g1a, ha, g2a = _fh_parts(x[0], chi, n1, n2)

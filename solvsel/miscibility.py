@@ -1,0 +1,782 @@
+"""Do two (or more) liquids form one phase?  Measured where known, predicted otherwise.
+
+Measured binary pairs live in ``tables/miscibility.csv`` (about 25 C, each
+sourced): miscible in all proportions, partially miscible with the mutual
+solubilities in wt %, or practically immiscible.  For a pair not in the table
+the Flory-Huggins model with an interaction parameter from the Hansen
+parameters gives a prediction: the critical chi for the two molar volumes
+says whether the pair splits at all, and the binodal (common tangent) gives
+the mutual solubilities.  The answer always says which basis it used.  Water
+and other strongly hydrogen-bonding liquids are predicted poorly by this model
+(it knows no specific association), which is why a measured pair always wins.
+
+On top of the pairs: whether a blend is one phase at given fractions, a fast
+array screen of many candidate blends for the optimiser, and a graph of the
+liquids (networkx, imported when needed) to find co-solvents that bridge two
+immiscible liquids and the largest sets of food-grade liquids that are all
+mutually miscible.
+
+References
+----------
+.. [1] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*, 2nd ed.;
+   CRC Press, 2007, ch. 2.
+.. [2] Flory, P. J. *Principles of Polymer Chemistry*; Cornell University
+   Press, 1953, ch. 12-13.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from functools import lru_cache
+from itertools import combinations
+
+import numpy as np
+
+from . import hansen
+from .errors import InputError, MissingDataError
+
+__all__ = [
+    "FULL",
+    "PARTIAL",
+    "NONE",
+    "MEASURED_WINDOW_C",
+    "IMMISCIBLE_BELOW_WT",
+    "PairVerdict",
+    "pair",
+    "PairCheck",
+    "BlendPhase",
+    "blend_phase",
+    "PairMatrix",
+    "pair_matrix",
+    "predict_pair",
+    "graph",
+    "Bridge",
+    "bridges",
+    "largest_miscible_sets",
+]
+
+#: Status codes of :class:`PairMatrix` (and the table's ``one_phase`` values).
+FULL, PARTIAL, NONE = 0, 1, 2
+_TABLE_CODE = {"full": FULL, "partial": PARTIAL, "none": NONE}
+_VERDICT = {FULL: "yes", PARTIAL: "partial", NONE: "no"}
+
+#: A measured pair applies within this many degrees of its temperature [C];
+#: farther away (e.g. methanol and hexane above their critical solution
+#: temperature near 43 C) the prediction is used and the measured verdict noted.
+MEASURED_WINDOW_C = 10.0
+
+#: A predicted pair whose mutual solubilities are both below this [wt %] is
+#: called immiscible ("no") rather than partially miscible: the table's own
+#: convention (toluene-water, 0.05 wt %, is "none"; chloroform-water, 0.8 wt %,
+#: is "partial").
+IMMISCIBLE_BELOW_WT = 0.5
+
+
+# ----------------------------------------------------------------------------- one pair
+
+
+@dataclass(frozen=True)
+class PairVerdict:
+    """Whether two liquids form one phase, and on what basis.
+
+    Attributes
+    ----------
+    liquids : tuple of str
+        the two names (a, b) as in the catalog
+    one_phase : str
+        "yes" (miscible in all proportions), "partial" (one phase only inside
+        ``window``) or "no" (practically immiscible)
+    basis : str
+        "measured" (a row of tables/miscibility.csv) or "predicted" (Flory-Huggins from HSP)
+    window : dict or None
+        one-phase compositions of a partial (or predicted immiscible) pair:
+        ``b_in_a_max`` and ``a_in_b_max`` as mass fractions (0..1; None where
+        not tabulated), the same as volume fractions (``*_volume``), and
+        ``one_phase_ranges``, the ranges of the mass fraction of liquid b that
+        are one phase
+    chi : float or None
+        Flory-Huggins parameter from HSP, per molecule of liquid a [-]
+    chi_critical : float or None
+        critical chi for the two molar volumes [-]
+    source : tuple of str
+        source ids of a measured pair
+    note : str
+        anything the user should know (temperature of the data, caveats)
+    temp_C : float
+        temperature asked [C]
+    """
+
+    liquids: tuple[str, str]
+    one_phase: str
+    basis: str
+    window: dict | None
+    chi: float | None
+    chi_critical: float | None
+    source: tuple[str, ...] = ()
+    note: str = ""
+    temp_C: float = 25.0
+    cas: tuple[str, str] = ("", "")
+
+    @property
+    def code(self) -> int:
+        return {"yes": FULL, "partial": PARTIAL, "no": NONE}[self.one_phase]
+
+    def to_dict(self) -> dict:
+        return {
+            "liquids": list(self.liquids),
+            "cas": list(self.cas),
+            "one_phase": self.one_phase,
+            "basis": self.basis,
+            "window": self.window,
+            "chi": self.chi,
+            "chi_critical": self.chi_critical,
+            "source": list(self.source),
+            "note": self.note,
+            "temp_C": self.temp_C,
+        }
+
+
+def _solvent(cat, name):
+    if hasattr(name, "dD") and hasattr(name, "vm_cm3_mol"):
+        return name
+    return cat.solvent(name)
+
+
+def _mass_from_volume(phi, rho_solute, rho_host):
+    """Fraction of the solute in a binary, volume -> mass (additive volumes)."""
+    if phi is None or rho_solute is None or rho_host is None:
+        return None
+    m = phi * rho_solute
+    return m / (m + (1.0 - phi) * rho_host)
+
+
+def _volume_from_mass(w, rho_solute, rho_host):
+    if w is None or rho_solute is None or rho_host is None:
+        return None
+    v = w / rho_solute
+    return v / (v + (1.0 - w) / rho_host)
+
+
+def _window(b_in_a, a_in_b, rho_a, rho_b, basis_kind):
+    """Window dict from mass fractions (None = not tabulated)."""
+    ranges = []
+    lo = b_in_a if b_in_a is not None else 0.0
+    hi = a_in_b if a_in_b is not None else 0.0
+    if lo + hi >= 1.0:  # the gap closed (can only happen with odd data)
+        ranges = [[0.0, 1.0]]
+    else:
+        ranges = [[0.0, lo], [1.0 - hi, 1.0]]
+    return {
+        "fraction": "mass fraction of liquid b",
+        "b_in_a_max": b_in_a,
+        "a_in_b_max": a_in_b,
+        "b_in_a_max_volume": _volume_from_mass(b_in_a, rho_b, rho_a),
+        "a_in_b_max_volume": _volume_from_mass(a_in_b, rho_a, rho_b),
+        "one_phase_ranges": ranges,
+        "basis": basis_kind,
+    }
+
+
+@lru_cache(maxsize=64)
+def _measured_index(cat_id: int, cat_ref):
+    cat = cat_ref()
+    try:
+        df = cat.table("miscibility")
+    except Exception as exc:  # noqa: BLE001 - a missing table is a data error for the user
+        raise MissingDataError(f"the measured miscibility table could not be read: {exc}") from exc
+    index = {}
+    for row in df.to_dict("records"):
+        try:
+            a = cat.solvent(row["liquid_a"], library=False)
+            b = cat.solvent(row["liquid_b"], library=False)
+        except Exception:  # noqa: BLE001 - a pair naming a liquid not in this catalog is skipped
+            continue
+        key = frozenset((a.name, b.name))
+        index[key] = (a.name, row)
+    return index
+
+
+class _Ref:
+    """Hashable handle on a catalog for the caches (by identity)."""
+
+    def __init__(self, cat):
+        self.cat = cat
+
+    def __call__(self):
+        return self.cat
+
+    def __hash__(self):
+        return id(self.cat)
+
+    def __eq__(self, other):
+        return isinstance(other, _Ref) and other.cat is self.cat
+
+
+def measured_pair(cat, a, b):
+    """The table row of a measured pair (oriented so that ``a`` is first), or None."""
+    sa, sb = _solvent(cat, a), _solvent(cat, b)
+    idx = _measured_index(id(cat), _Ref(cat))
+    hit = idx.get(frozenset((sa.name, sb.name)))
+    if hit is None:
+        return None
+    first, row = hit
+    row = dict(row)
+    if first != sa.name:  # flip to the asked orientation
+        row["liquid_a"], row["liquid_b"] = row["liquid_b"], row["liquid_a"]
+        row["cas_a"], row["cas_b"] = row.get("cas_b"), row.get("cas_a")
+        row["b_in_a_wt"], row["a_in_b_wt"] = row.get("a_in_b_wt"), row.get("b_in_a_wt")
+    return row
+
+
+def _num(v):
+    if v is None:
+        return None
+    try:
+        f = float(v)
+    except (TypeError, ValueError):
+        return None
+    return f if math.isfinite(f) else None
+
+
+def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
+    r"""Flory-Huggins prediction for two liquid records (no table look-up).
+
+    .. math::
+        \chi = \frac{V_a R_a^2}{4RT},\qquad
+        \chi_c = \tfrac12\left(1 + \sqrt{V_a/V_b}\right)^2
+
+    Miscible in all proportions when :math:`\chi \le \chi_c`; otherwise the
+    binodal of :func:`solvsel.hansen.binodal` (with :math:`N_b = V_b/V_a`)
+    gives the mutual solubilities, and the pair is "no" when both are below
+    :data:`IMMISCIBLE_BELOW_WT`.
+
+    Parameters
+    ----------
+    sa, sb : Solvent
+        records with dD, dP, dH [MPa^0.5], vm_cm3_mol [cm^3/mol] and
+        density_g_cm3 [g/cm^3]
+    temp_C : float
+        temperature [C]
+    """
+    va, vb = float(sa.vm_cm3_mol), float(sb.vm_cm3_mol)
+    chi = float(hansen.chi_flory_huggins(sa.hsp, sb.hsp, va, temp_C))
+    nb = vb / va
+    b = hansen.binodal(chi, 1.0, nb)
+    chic = b.chi_critical
+    names = (sa.name, sb.name)
+    cas = (sa.cas or "", sb.cas or "")
+    base_note = "predicted by Flory-Huggins from HSP; hydrogen-bonding liquids (water, glycols) are poorly predicted"
+    if not b.split:
+        return PairVerdict(names, "yes", "predicted", {"fraction": "mass fraction of liquid b", "one_phase_ranges": [[0.0, 1.0]], "basis": "predicted"}, chi, chic, (), base_note, temp_C, cas)
+    if not math.isfinite(b.phi_a) or not (0.0 < b.phi_a < b.phi_b < 1.0):
+        return PairVerdict(names, "partial", "predicted", None, chi, chic, (), base_note + "; the binodal did not converge, window unknown", temp_C, cas)
+    if not b.success:
+        base_note += "; just above the critical point, the window is approximate"
+    rho_a, rho_b = _num(sa.density_g_cm3), _num(sb.density_g_cm3)
+    b_in_a = _mass_from_volume(b.phi_a, rho_b, rho_a)
+    a_in_b = _mass_from_volume(1.0 - b.phi_b, rho_a, rho_b)
+    if b_in_a is None:  # no densities: report volume fractions as they are
+        b_in_a, a_in_b = b.phi_a, 1.0 - b.phi_b
+    w = _window(b_in_a, a_in_b, rho_a, rho_b, "predicted")
+    w["b_in_a_max_volume"], w["a_in_b_max_volume"] = b.phi_a, 1.0 - b.phi_b
+    verdict = "no" if max(b_in_a, a_in_b) * 100.0 < IMMISCIBLE_BELOW_WT else "partial"
+    return PairVerdict(names, verdict, "predicted", w, chi, chic, (), base_note, temp_C, cas)
+
+
+def pair(cat, a, b, temp_C: float = 25.0) -> PairVerdict:
+    """Do liquids ``a`` and ``b`` form one phase at ``temp_C``?
+
+    A measured pair of tables/miscibility.csv within :data:`MEASURED_WINDOW_C`
+    of its temperature wins; otherwise the Flory-Huggins prediction of
+    :func:`predict_pair` is given, labelled "predicted".  chi and chi_critical
+    are reported in both cases (for a measured pair they show how far the
+    model is from the observation).
+
+    Parameters
+    ----------
+    cat : Catalog
+    a, b : str or Solvent
+        names, synonyms or CAS numbers (matched forgivingly), or records
+    temp_C : float
+        temperature [C]
+
+    Examples
+    --------
+    d-Limonene and ethanol mix in all proportions (common practice), although
+    the model alone predicts a split (chi 4.7 against a critical 3.6):
+
+    >>> from solvsel.catalog import load_catalog
+    >>> v = pair(load_catalog(), "d-limonene", "ethanol")
+    >>> v.one_phase, v.basis, v.chi > v.chi_critical
+    ('yes', 'measured', True)
+    """
+    if not (isinstance(temp_C, (int, float)) and math.isfinite(temp_C)):
+        raise InputError(f"temp_C: expected a temperature in C, got {temp_C}")
+    if not -80.0 <= temp_C <= 150.0:
+        raise InputError(f"temp_C: {temp_C:g} C is outside -80 to 150 C, where neither the table nor the model applies")
+    sa, sb = _solvent(cat, a), _solvent(cat, b)
+    if sa.name == sb.name:
+        return PairVerdict((sa.name, sb.name), "yes", "measured", {"one_phase_ranges": [[0.0, 1.0]]}, 0.0, None, (), "the same liquid", temp_C, (sa.cas, sb.cas))
+    predicted = predict_pair(sa, sb, temp_C)
+    row = measured_pair(cat, sa, sb)
+    if row is None:
+        return predicted
+    t_row = _num(row.get("temp_C")) or 25.0
+    src = tuple(s for s in str(row.get("source") or "").split(";") if s)
+    code = _TABLE_CODE[row["one_phase"]]
+    if abs(temp_C - t_row) > MEASURED_WINDOW_C:
+        note = (
+            f"{predicted.note}; the table has a measurement at {t_row:g} C "
+            f"({_VERDICT[code]}), too far from {temp_C:g} C to apply"
+        )
+        return PairVerdict(predicted.liquids, predicted.one_phase, "predicted", predicted.window, predicted.chi, predicted.chi_critical, src, note, temp_C, predicted.cas)
+    window = None
+    rho_a, rho_b = _num(sa.density_g_cm3), _num(sb.density_g_cm3)
+    if code == PARTIAL:
+        bia, aib = _num(row.get("b_in_a_wt")), _num(row.get("a_in_b_wt"))
+        window = _window(None if bia is None else bia / 100.0, None if aib is None else aib / 100.0, rho_a, rho_b, "measured")
+    elif code == FULL:
+        window = {"fraction": "mass fraction of liquid b", "one_phase_ranges": [[0.0, 1.0]], "basis": "measured"}
+    note = f"measured at {t_row:g} C"
+    if row.get("note"):
+        note += f"; {row['note']}"
+    if code == PARTIAL and window and (window["b_in_a_max"] is None or window["a_in_b_max"] is None):
+        note += "; a solubility not tabulated is taken as zero in blend checks"
+    if (code == FULL) != (predicted.one_phase == "yes"):
+        note += f"; the Flory-Huggins model alone would say '{predicted.one_phase}'"
+    return PairVerdict((sa.name, sb.name), _VERDICT[code], "measured", window, predicted.chi, predicted.chi_critical, src, note, temp_C, (sa.cas or "", sb.cas or ""))
+
+
+# ----------------------------------------------------------------------------- blends
+
+
+@dataclass(frozen=True)
+class PairCheck:
+    """One pair of a blend, checked at its proportion in the blend."""
+
+    a: str
+    b: str
+    one_phase: str
+    basis: str
+    fraction_b: float  # volume fraction of b in the pair, b / (a + b)
+    ok: bool
+    reason: str
+
+    def to_dict(self) -> dict:
+        return {"a": self.a, "b": self.b, "one_phase": self.one_phase, "basis": self.basis,
+                "fraction_b": self.fraction_b, "ok": self.ok, "reason": self.reason}
+
+
+@dataclass(frozen=True)
+class BlendPhase:
+    """Whether a blend is one phase at its fractions (pairwise test)."""
+
+    liquids: tuple[str, ...]
+    volume_fractions: tuple[float, ...]
+    one_phase: bool
+    basis: str
+    pairs: tuple[PairCheck, ...]
+    reason: str
+    note: str
+
+    def to_dict(self) -> dict:
+        return {
+            "liquids": list(self.liquids),
+            "volume_fractions": list(self.volume_fractions),
+            "one_phase": self.one_phase,
+            "basis": self.basis,
+            "pairs": [p.to_dict() for p in self.pairs],
+            "reason": self.reason,
+            "note": self.note,
+        }
+
+
+def _pair_ok(fa, fb, lim_b_in_a, lim_a_in_b):
+    """Is a pair one phase at volume amounts fa, fb given its volume-fraction limits?"""
+    tot = fa + fb
+    if tot <= 0:
+        return True, float("nan")
+    r = fb / tot
+    return (r <= lim_b_in_a + 1e-12) or (1.0 - r <= lim_a_in_b + 1e-12), r
+
+
+def _limits_from_verdict(v: PairVerdict) -> tuple[float, float]:
+    """(max volume fraction of b in a, of a in b) for blend checks."""
+    if v.one_phase == "yes":
+        return 1.0, 1.0
+    w = v.window or {}
+    bia = w.get("b_in_a_max_volume")
+    aib = w.get("a_in_b_max_volume")
+    if bia is None and w.get("b_in_a_max") is not None:
+        bia = w["b_in_a_max"]  # no densities: mass ~ volume
+    if aib is None and w.get("a_in_b_max") is not None:
+        aib = w["a_in_b_max"]
+    return float(bia or 0.0), float(aib or 0.0)
+
+
+def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0) -> BlendPhase:
+    """Is a blend of liquids one phase at the given volume fractions?
+
+    Each pair is checked at its own proportion in the blend,
+    :math:`\\phi_b/(\\phi_a + \\phi_b)`, against its one-phase window
+    (measured where tabulated, else predicted).  The test is pairwise: it
+    cannot see a third liquid bringing two immiscible ones together (ethanol
+    bridging water and a citrus oil), so a failing pair with such a co-solvent
+    present is reported as a failure with that possibility noted: check it at
+    the bench (or look for a ternary diagram).
+
+    Parameters
+    ----------
+    cat : Catalog
+    names : sequence of str
+        the liquids
+    volume_fractions : sequence of float
+        their volume fractions [-] (>= 0, summing to 1)
+    temp_C : float
+        temperature [C]
+    """
+    names = list(names)
+    f = hansen._check_fractions(volume_fractions, "volume_fractions", len(names))
+    recs = [_solvent(cat, n) for n in names]
+    checks = []
+    verdicts = {}
+    for i, j in combinations(range(len(recs)), 2):
+        v = pair(cat, recs[i], recs[j], temp_C)
+        verdicts[(i, j)] = v
+        if f[i] == 0 or f[j] == 0:
+            checks.append(PairCheck(recs[i].name, recs[j].name, v.one_phase, v.basis, float("nan"), True, "not both present"))
+            continue
+        lim_ba, lim_ab = _limits_from_verdict(v)
+        ok, r = _pair_ok(f[i], f[j], lim_ba, lim_ab)
+        if ok:
+            reason = "miscible in all proportions" if v.one_phase == "yes" else "inside the one-phase window"
+        else:
+            reason = (
+                f"{recs[j].name} is {r:.1%} of the pair by volume; one phase only up to "
+                f"{lim_ba:.2%} of {recs[j].name} in {recs[i].name} or {lim_ab:.2%} of {recs[i].name} in {recs[j].name}"
+                f" ({v.basis})"
+            )
+        checks.append(PairCheck(recs[i].name, recs[j].name, v.one_phase, v.basis, float(r), bool(ok), reason))
+    failing = [c for c in checks if not c.ok]
+    present = [k for k in range(len(recs)) if f[k] > 0]
+    basis = "measured" if all(c.basis == "measured" for c in checks) else "predicted"
+    note = "pairwise test of each pair at its proportion in the blend"
+    if failing:
+        reason = "; ".join(c.reason for c in failing)
+        bridging = []
+        for c in failing:
+            ia, ib = names.index(c.a) if c.a in names else None, names.index(c.b) if c.b in names else None
+            for k in present:
+                if recs[k].name in (c.a, c.b):
+                    continue
+                ka = verdicts.get(tuple(sorted((k, [r.name for r in recs].index(c.a)))))
+                kb = verdicts.get(tuple(sorted((k, [r.name for r in recs].index(c.b)))))
+                if ka and kb and ka.one_phase == "yes" and kb.one_phase == "yes":
+                    bridging.append(recs[k].name)
+            del ia, ib
+        if bridging:
+            note += (
+                "; " + ", ".join(sorted(set(bridging)))
+                + " mixes with both liquids of a failing pair and may bring them into one phase: check at the bench"
+            )
+    else:
+        reason = "every pair is one phase at its proportion"
+    return BlendPhase(tuple(r.name for r in recs), tuple(float(x) for x in f), not failing, basis, tuple(checks), reason, note)
+
+
+@dataclass(frozen=True)
+class PairMatrix:
+    """Pairwise miscibility of a set of liquids as arrays, for screening many blends.
+
+    Attributes
+    ----------
+    names : tuple of str
+        the liquids, in the order of the array axes
+    status : ndarray of int8, shape (n, n)
+        :data:`FULL` (0), :data:`PARTIAL` (1) or :data:`NONE` (2); symmetric;
+        the diagonal is FULL
+    measured : ndarray of bool, shape (n, n)
+        True where the status comes from the table
+    limit : ndarray of float, shape (n, n)
+        ``limit[i, j]`` is the largest volume fraction of liquid j in a binary
+        with liquid i, :math:`\\phi_j/(\\phi_i+\\phi_j)`, that is still one
+        phase on the i-rich side (1.0 for a miscible pair; 0.0 where a measured
+        solubility is not tabulated, the cautious choice)
+    chi, chi_critical : ndarray of float, shape (n, n)
+        Flory-Huggins chi (per molecule of the row liquid) and its critical value
+    temp_C : float
+        temperature of the screen [C]
+
+    Notes
+    -----
+    A pair (i, j) present at volume fractions f_i, f_j > 0 of a blend is one
+    phase when, with r = f_j / (f_i + f_j),
+
+        r <= limit[i, j]   or   1 - r <= limit[j, i]
+
+    and a blend passes the pairwise screen when every pair of its components
+    does.  :meth:`screen` applies this to many blends at once with array
+    operations only::
+
+        m = pair_matrix(cat, pool_names)
+        idx = np.array([[0, 3, 7], ...])          # (k, c) indices into m.names
+        frac = np.array([[0.5, 0.3, 0.2], ...])   # (k, c) volume fractions
+        ok = m.screen(idx, frac)                  # (k,) bool
+
+    Zero fractions always pass; the pairwise test ignores co-solvent bridging
+    (see :func:`blend_phase`).
+    """
+
+    names: tuple[str, ...]
+    status: np.ndarray
+    measured: np.ndarray
+    limit: np.ndarray
+    chi: np.ndarray
+    chi_critical: np.ndarray
+    temp_C: float = 25.0
+
+    def index(self, name: str) -> int:
+        try:
+            return self.names.index(name)
+        except ValueError:
+            raise InputError(f"'{name}' is not one of the liquids of this matrix: {', '.join(self.names)}") from None
+
+    def screen(self, indices, fractions) -> np.ndarray:
+        """Pairwise one-phase screen of many blends.
+
+        Parameters
+        ----------
+        indices : array_like of int, shape (k, c)
+            components of each blend, as indices into :attr:`names`
+        fractions : array_like of float, shape (k, c)
+            their volume fractions [-]
+
+        Returns
+        -------
+        ndarray of bool, shape (k,)
+        """
+        idx = np.asarray(indices, dtype=np.intp)
+        f = np.asarray(fractions, dtype=float)
+        if idx.shape != f.shape or idx.ndim != 2:
+            raise InputError(f"screen: indices and fractions must both have shape (k, c), got {idx.shape} and {f.shape}")
+        ok = np.ones(idx.shape[0], dtype=bool)
+        for p, q in combinations(range(idx.shape[1]), 2):
+            fi, fj = f[:, p], f[:, q]
+            tot = fi + fj
+            with np.errstate(invalid="ignore", divide="ignore"):
+                r = np.where(tot > 0, fj / np.where(tot > 0, tot, 1.0), 0.0)
+            i, j = idx[:, p], idx[:, q]
+            pair_ok = (r <= self.limit[i, j] + 1e-12) | (1.0 - r <= self.limit[j, i] + 1e-12) | (fi <= 0) | (fj <= 0)
+            ok &= pair_ok
+        return ok
+
+    def to_dict(self) -> dict:
+        return {
+            "names": list(self.names),
+            "status": self.status.tolist(),
+            "measured": self.measured.tolist(),
+            "limit": self.limit.tolist(),
+            "temp_C": self.temp_C,
+        }
+
+
+@lru_cache(maxsize=32)
+def _pair_matrix_cached(ref, names: tuple[str, ...], temp_C: float) -> PairMatrix:
+    cat = ref()
+    recs = [cat.solvent(n) for n in names]
+    n = len(recs)
+    status = np.zeros((n, n), dtype=np.int8)
+    measured = np.ones((n, n), dtype=bool)
+    limit = np.ones((n, n))
+    chi = np.zeros((n, n))
+    chic = np.full((n, n), np.nan)
+    for i, j in combinations(range(n), 2):
+        v = pair(cat, recs[i], recs[j], temp_C)
+        status[i, j] = status[j, i] = v.code
+        measured[i, j] = measured[j, i] = v.basis == "measured"
+        lim_ba, lim_ab = _limits_from_verdict(v)
+        limit[i, j], limit[j, i] = lim_ba, lim_ab
+        if v.chi is not None:
+            chi[i, j] = v.chi
+            chi[j, i] = v.chi * recs[j].vm_cm3_mol / recs[i].vm_cm3_mol
+        if v.chi_critical is not None:
+            chic[i, j] = v.chi_critical
+            chic[j, i] = v.chi_critical * recs[j].vm_cm3_mol / recs[i].vm_cm3_mol
+    for a in (status, measured, limit, chi, chic):
+        a.setflags(write=False)
+    return PairMatrix(tuple(r.name for r in recs), status, measured, limit, chi, chic, temp_C)
+
+
+def pair_matrix(cat, names=None, temp_C: float = 25.0) -> PairMatrix:
+    """Pairwise miscibility arrays of ``names`` (default: every solvent of the catalog).
+
+    See :class:`PairMatrix` for the arrays and the vectorised blend screen.
+    The result is cached per catalog, names and temperature (its arrays are
+    read-only).
+    """
+    if names is None:
+        names = [s.name for s in cat.solvent_records()]
+    canon = tuple(_solvent(cat, n).name for n in names)
+    if len(set(canon)) != len(canon):
+        raise InputError(f"pair_matrix: a liquid is named twice in {list(names)}")
+    return _pair_matrix_cached(_Ref(cat), canon, float(temp_C))
+
+
+# ----------------------------------------------------------------------------- graph
+
+
+def _food_ok(cat, s, use="carrier") -> bool:
+    from .compliance import food_status
+
+    try:
+        return food_status(cat, s, use=use).allowed
+    except Exception:  # noqa: BLE001 - no rule is not a permission
+        return False
+
+
+def graph(cat, temp_C: float = 25.0, names=None, predicted: bool = True):
+    """Graph of the liquids: an edge for every pair that is not immiscible.
+
+    Edge attributes: ``one_phase`` ("yes" or "partial"), ``basis``,
+    ``window`` (partial pairs), ``chi``, ``chi_critical``.  Node attributes:
+    ``cas``.  With ``predicted=False`` only measured pairs make edges.
+
+    Returns
+    -------
+    networkx.Graph
+    """
+    import networkx as nx
+
+    m = pair_matrix(cat, names, temp_C)
+    g = nx.Graph()
+    recs = [cat.solvent(n) for n in m.names]
+    for r in recs:
+        g.add_node(r.name, cas=r.cas)
+    for i, j in combinations(range(len(recs)), 2):
+        if m.status[i, j] == NONE or (not predicted and not m.measured[i, j]):
+            continue
+        attrs = {
+            "one_phase": _VERDICT[int(m.status[i, j])],
+            "basis": "measured" if m.measured[i, j] else "predicted",
+            "chi": float(m.chi[i, j]),
+            "chi_critical": float(m.chi_critical[i, j]),
+        }
+        if m.status[i, j] == PARTIAL:
+            attrs["window"] = {"b_in_a_max_volume": float(m.limit[i, j]), "a_in_b_max_volume": float(m.limit[j, i]),
+                               "a": recs[i].name, "b": recs[j].name}
+        g.add_edge(recs[i].name, recs[j].name, **attrs)
+    return g
+
+
+@dataclass(frozen=True)
+class Bridge:
+    """A liquid that mixes in all proportions with both liquids of an immiscible pair."""
+
+    name: str
+    cas: str
+    basis_a: str
+    basis_b: str
+    measured_both: bool
+    closeness: float  # largest chi/chi_c of the two pairs (smaller = more certain)
+    food: bool | None = None
+
+    def to_dict(self) -> dict:
+        return {"name": self.name, "cas": self.cas, "basis_a": self.basis_a, "basis_b": self.basis_b,
+                "measured_both": self.measured_both, "closeness": self.closeness, "food": self.food}
+
+
+def bridges(cat, a, b, temp_C: float = 25.0, food_only: bool = False, names=None) -> list[Bridge]:
+    """Liquids miscible in all proportions with both ``a`` and ``b``, best first.
+
+    Ranked by the evidence (both pairs measured, then one, then none), then by
+    the larger of the two chi/chi_critical ratios (smaller is further from a
+    split).  E.g. what brings a citrus oil and water into one phase.
+
+    Parameters
+    ----------
+    cat : Catalog
+    a, b : str
+        the two liquids
+    temp_C : float
+        temperature [C]
+    food_only : bool
+        keep only liquids whose food status as a carrier is permitted or
+        conditional (:func:`solvsel.compliance.food_status`)
+    names : sequence of str, optional
+        candidate pool (default: every solvent)
+    """
+    sa, sb = _solvent(cat, a), _solvent(cat, b)
+    pool = [s.name for s in cat.solvent_records()] if names is None else [_solvent(cat, n).name for n in names]
+    for s in (sa.name, sb.name):
+        if s not in pool:
+            pool.append(s)
+    m = pair_matrix(cat, pool, temp_C)
+    ia, ib = m.index(sa.name), m.index(sb.name)
+    out = []
+    for k, name in enumerate(m.names):
+        if k in (ia, ib):
+            continue
+        if m.status[k, ia] != FULL or m.status[k, ib] != FULL:
+            continue
+        rec = cat.solvent(name)
+        food = _food_ok(cat, rec) if food_only else None
+        if food_only and not food:
+            continue
+        ratio = max(m.chi[ia, k] / m.chi_critical[ia, k], m.chi[ib, k] / m.chi_critical[ib, k])
+        out.append(Bridge(name, rec.cas, "measured" if m.measured[k, ia] else "predicted",
+                          "measured" if m.measured[k, ib] else "predicted",
+                          bool(m.measured[k, ia] and m.measured[k, ib]), float(ratio), food))
+    evidence = {True: 0, False: 1}
+    out.sort(key=lambda r: (evidence[r.measured_both], (r.basis_a != "measured") + (r.basis_b != "measured"), r.closeness, r.name))
+    return out
+
+
+def largest_miscible_sets(cat, food_only: bool = True, temp_C: float = 25.0, names=None, measured_only: bool = False, top: int = 10):
+    """The largest sets of liquids that are all mutually miscible in all proportions.
+
+    Maximal cliques of the graph of "yes" edges (networkx ``find_cliques``),
+    largest first, then by the share of measured edges.  By default the rows
+    without a CAS number (blends of other rows, such as ethanol strengths)
+    are left out, as they add nothing to a set that holds their parts.
+
+    Parameters
+    ----------
+    food_only : bool
+        restrict to liquids whose food status as a carrier is permitted or
+        conditional (:func:`solvsel.compliance.food_status`)
+    measured_only : bool
+        use measured pairs only
+    top : int
+        how many sets to return
+
+    Returns
+    -------
+    list of dict
+        ``{"liquids": [...], "size": n, "measured_share": 0..1}``
+    """
+    import networkx as nx
+
+    pool = [s for s in cat.solvent_records()] if names is None else [_solvent(cat, n) for n in names]
+    if names is None:  # rows without CAS are blends of other rows (ethanol strengths)
+        pool = [s for s in pool if s.cas]
+    if food_only:
+        pool = [s for s in pool if _food_ok(cat, s)]
+    if not pool:
+        return []
+    m = pair_matrix(cat, [s.name for s in pool], temp_C)
+    g = nx.Graph()
+    g.add_nodes_from(m.names)
+    n = len(m.names)
+    for i, j in combinations(range(n), 2):
+        if m.status[i, j] == FULL and (m.measured[i, j] or not measured_only):
+            g.add_edge(m.names[i], m.names[j], measured=bool(m.measured[i, j]))
+    sets = []
+    for clique in nx.find_cliques(g):
+        if len(clique) < 2:
+            continue
+        edges = list(combinations(clique, 2))
+        share = sum(g.edges[e]["measured"] for e in edges) / len(edges)
+        sets.append({"liquids": sorted(clique), "size": len(clique), "measured_share": share})
+    sets.sort(key=lambda s: (-s["size"], -s["measured_share"], s["liquids"]))
+    return sets[: int(top)]

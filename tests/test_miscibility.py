@@ -1,0 +1,252 @@
+"""Checks of the miscibility table and engine (solvsel.miscibility).
+
+Facts of the trade are marked "common practice"; published mutual
+solubilities name their compilation.
+"""
+
+from __future__ import annotations
+
+import math
+from itertools import combinations
+
+import numpy as np
+import pytest
+
+from solvsel import miscibility as M
+from solvsel.catalog import load_catalog
+from solvsel.errors import InputError, UnknownNameError
+
+
+@pytest.fixture(scope="module")
+def cat():
+    return load_catalog()
+
+
+@pytest.fixture(scope="module")
+def table(cat):
+    return cat.table("miscibility")
+
+
+# ----------------------------------------------------------------------------- the table
+
+
+def test_table_is_frozen(table, cat):
+    # an edit to the table must be deliberate: counts and columns pinned
+    assert list(table.columns[:10]) == [
+        "liquid_a", "cas_a", "liquid_b", "cas_b", "one_phase", "b_in_a_wt", "a_in_b_wt", "temp_C", "source", "note",
+    ]
+    assert len(table) >= 60
+    assert len(table) == 132
+    assert table.one_phase.value_counts().to_dict() == {"full": 75, "none": 29, "partial": 28}
+    # about 25 C, as the design asks
+    assert table.temp_C.between(20, 30).all()
+
+
+def test_table_names_and_cas_resolve(table, cat):
+    seen = set()
+    for row in table.to_dict("records"):
+        a = cat.solvent(row["liquid_a"], library=False)
+        b = cat.solvent(row["liquid_b"], library=False)
+        assert a.name == row["liquid_a"] and b.name == row["liquid_b"]
+        assert (a.cas or None) == (row["cas_a"] or None) and (b.cas or None) == (row["cas_b"] or None)
+        key = frozenset((a.name, b.name))
+        assert key not in seen, f"duplicate pair {sorted(key)}"
+        seen.add(key)
+        if row["one_phase"] != "partial":
+            assert pd_isna(row["b_in_a_wt"]) and pd_isna(row["a_in_b_wt"])
+
+
+def pd_isna(v):
+    return v is None or (isinstance(v, float) and math.isnan(v))
+
+
+def test_water_pairs_agree_with_the_solvents_table(table, cat):
+    # the two tables say the same thing about water, value for value
+    water = {}
+    for row in table.to_dict("records"):
+        if row["liquid_b"] == "water":
+            water[row["liquid_a"]] = row
+    checked = 0
+    for s in cat.solvent_records():
+        if s.name == "water" or s.name not in water:
+            continue
+        row = water[s.name]
+        assert row["one_phase"] == s.water_miscibility, s.name
+        for ours, theirs in ((row["b_in_a_wt"], s.water_in_solvent_wt), (row["a_in_b_wt"], s.solvent_in_water_wt)):
+            if not pd_isna(ours) or theirs is not None:
+                assert ours == pytest.approx(theirs), s.name
+        checked += 1
+    assert checked >= 55
+    # water with every carrier of the table
+    carriers = [s.name for s in cat.solvent_records() if "carrier" in s.roles and s.cas and s.name != "water"]
+    missing = [c for c in carriers if c not in water]
+    assert not missing, missing
+
+
+# ----------------------------------------------------------------------------- facts of the trade
+
+
+@pytest.mark.parametrize(
+    "a, b, expected",
+    [
+        ("ethanol", "water", "yes"),  # common practice
+        ("n-hexane", "water", "no"),  # common practice
+        ("sunflower oil", "water", "no"),  # common practice: a triglyceride oil and water do not mix
+        ("d-limonene", "ethanol", "yes"),  # common practice
+        ("glycerol", "hexane", "no"),  # common practice
+        ("water", "ethyl acetate", "partial"),  # handbook mutual solubilities (from memory)
+    ],
+)
+def test_facts_of_the_trade(cat, a, b, expected):
+    v = M.pair(cat, a, b)
+    assert v.one_phase == expected and v.basis == "measured"
+    assert v.source  # sourced
+
+
+@pytest.mark.parametrize(
+    "solvent, water_in_solvent, solvent_in_water",
+    [
+        # Mutual solubilities with water at 20-25 C, wt %, as compiled in the
+        # IUPAC-NIST Solubility Data Series (esters: vol. 88; alcohols: vol. 15
+        # and the 2007 update) and the CRC Handbook's table of aqueous
+        # solubility of organic liquids (from memory): ethyl acetate 8.0 in
+        # water and 3.0 water in ester; 1-butanol 7.4 in water, 20.5 water in
+        # alcohol; diethyl ether 6.0 and 1.3.  Tolerance 1 wt % absolute:
+        # compilations differ by about that between 20 and 25 C.
+        ("ethyl acetate", 3.0, 8.0),
+        ("1-butanol", 20.5, 7.4),
+        ("diethyl ether", 1.3, 6.0),
+    ],
+)
+def test_mutual_solubilities_against_compilations(cat, solvent, water_in_solvent, solvent_in_water):
+    v = M.pair(cat, solvent, "water")
+    assert v.one_phase == "partial" and v.basis == "measured"
+    assert 100 * v.window["b_in_a_max"] == pytest.approx(water_in_solvent, abs=1.0)
+    assert 100 * v.window["a_in_b_max"] == pytest.approx(solvent_in_water, abs=1.0)
+    # the orientation flips cleanly
+    w = M.pair(cat, "water", solvent)
+    assert w.window["b_in_a_max"] == v.window["a_in_b_max"]
+    lo, hi = w.window["one_phase_ranges"]
+    assert lo == [0.0, w.window["b_in_a_max"]] and hi[1] == 1.0
+
+
+# ----------------------------------------------------------------------------- predictions
+
+
+def test_prediction_for_a_pair_not_in_the_table(cat):
+    # a glycol and a triglyceride oil: not tabulated here; the model predicts a split
+    assert M.measured_pair(cat, "medium-chain triglycerides", "propylene glycol") is None
+    v = M.pair(cat, "medium-chain triglycerides", "propylene glycol")
+    assert v.basis == "predicted" and v.one_phase in ("partial", "no")
+    assert v.chi > v.chi_critical
+    w = v.window
+    assert 0 < w["b_in_a_max"] < 1 and 0 < w["a_in_b_max"] < 1
+    # chi worked by hand from the two rows of the solvents table: V_a Ra^2 / (4 R T)
+    a, b = cat.solvent("medium-chain triglycerides"), cat.solvent("propylene glycol")
+    ra2 = 4 * (a.dD - b.dD) ** 2 + (a.dP - b.dP) ** 2 + (a.dH - b.dH) ** 2
+    assert v.chi == pytest.approx(a.vm_cm3_mol * ra2 / (4 * 8.314462618 * 298.15), rel=1e-9)
+
+
+def test_similar_liquids_are_predicted_miscible(cat):
+    # toluene and p-xylene (not tabulated) mix in all proportions (common practice)
+    assert M.measured_pair(cat, "toluene", "p-xylene") is None
+    v = M.pair(cat, "toluene", "p-xylene")
+    assert v.one_phase == "yes" and v.basis == "predicted" and v.chi < v.chi_critical
+
+
+def test_measured_pair_far_from_its_temperature_falls_back_to_the_model(cat):
+    v = M.pair(cat, "methanol", "n-hexane", temp_C=60.0)
+    assert v.basis == "predicted" and "too far" in v.note
+    assert M.pair(cat, "methanol", "n-hexane", temp_C=30.0).basis == "measured"
+
+
+def test_unknown_liquid_gets_suggestions(cat):
+    with pytest.raises(UnknownNameError) as err:
+        M.pair(cat, "ethanoll", "water")
+    assert "ethanol" in err.value.suggestions
+
+
+def test_bad_temperature(cat):
+    with pytest.raises(InputError, match="temp_C"):
+        M.pair(cat, "ethanol", "water", temp_C=400.0)
+
+
+# ----------------------------------------------------------------------------- blends
+
+
+def test_blend_phase(cat):
+    ok = M.blend_phase(cat, ["ethanol", "water"], [0.5, 0.5])
+    assert ok.one_phase and ok.basis == "measured"
+    # ethyl acetate dissolves in water to 7.8 wt % (about 8.6 % by volume):
+    # 5 % by volume is one phase, 20 % is not (handbook value, from memory)
+    assert M.blend_phase(cat, ["water", "ethyl acetate"], [0.95, 0.05]).one_phase
+    bad = M.blend_phase(cat, ["water", "ethyl acetate"], [0.8, 0.2])
+    assert not bad.one_phase and "ethyl acetate" in bad.reason
+    # water, ethanol and a citrus terpene: the pairwise test fails on water /
+    # limonene and says that ethanol may bridge them
+    tri = M.blend_phase(cat, ["water", "ethanol", "d-limonene"], [0.3, 0.6, 0.1])
+    assert not tri.one_phase and "ethanol" in tri.note
+
+
+@pytest.mark.parametrize("bad", [[0.5, 0.6], [-0.1, 1.1], [1.0]])
+def test_blend_phase_rejects_bad_fractions(cat, bad):
+    with pytest.raises(InputError):
+        M.blend_phase(cat, ["ethanol", "water"], bad)
+
+
+def test_matrix_screen_agrees_with_blend_phase(cat):
+    names = ["water", "ethanol", "ethyl acetate", "n-hexane", "propylene glycol", "triacetin", "d-limonene"]
+    m = M.pair_matrix(cat, names)
+    assert m.status.shape == (7, 7) and (m.status == m.status.T).all()
+    rng = np.random.default_rng(3)
+    idx = np.array([rng.choice(7, size=3, replace=False) for _ in range(60)])
+    frac = rng.dirichlet([0.5, 0.5, 0.5], size=60)
+    ok = m.screen(idx, frac)
+    for k in range(60):
+        bp = M.blend_phase(cat, [names[i] for i in idx[k]], frac[k] / frac[k].sum())
+        assert bool(ok[k]) == bp.one_phase, (idx[k], frac[k])
+    assert ok.any() and (~ok).any()
+
+
+def test_matrix_screen_is_fast_enough_for_the_optimiser(cat):
+    # 490,000 three-component candidates screened with array operations only;
+    # a loose bound (the benchmark prints the real number)
+    import time
+
+    m = M.pair_matrix(cat, ["water", "ethanol", "ethyl acetate", "n-hexane", "propylene glycol"])
+    rng = np.random.default_rng(0)
+    idx = rng.integers(0, 5, size=(490_000, 3))
+    frac = rng.dirichlet([1, 1, 1], size=490_000)
+    t = time.perf_counter()
+    m.screen(idx, frac)
+    assert time.perf_counter() - t < 2.0
+
+
+# ----------------------------------------------------------------------------- graph
+
+
+def test_bridges_between_citrus_oil_and_water(cat):
+    # common practice: ethanol brings citrus oils and water together (washing,
+    # extracts); it must come first, both pairs being measured
+    out = M.bridges(cat, "d-limonene", "water")
+    assert out[0].name == "ethanol" and out[0].measured_both
+    for b in out:
+        assert M.pair(cat, b.name, "d-limonene").one_phase == "yes"
+        assert M.pair(cat, b.name, "water").one_phase == "yes"
+
+
+def test_largest_miscible_sets_are_cliques(cat):
+    sets = M.largest_miscible_sets(cat, food_only=True, top=10)
+    assert sets and sets[0]["size"] >= 4
+    for s in sets:
+        for a, b in combinations(s["liquids"], 2):
+            assert M.pair(cat, a, b).one_phase == "yes"
+    # common practice: the water-soluble carriers ethanol, propylene glycol,
+    # glycerol and water are one such set
+    assert any({"ethanol", "propylene glycol", "glycerol", "water"} <= set(s["liquids"]) for s in sets)
+
+
+def test_graph_edges(cat):
+    g = M.graph(cat, names=["water", "ethanol", "n-hexane", "ethyl acetate"])
+    assert g.has_edge("water", "ethanol") and not g.has_edge("water", "n-hexane")
+    assert g.edges["water", "ethyl acetate"]["one_phase"] == "partial"
