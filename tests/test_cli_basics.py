@@ -1,0 +1,77 @@
+"""The shared CLI pieces: solvents, table, report, the --where grammar, exit codes."""
+
+from __future__ import annotations
+
+import json
+
+import pandas as pd
+import pytest
+
+from solvsel.cli import main
+from solvsel.errors import InputError
+from solvsel.query import where
+
+
+def run_json(capsys, argv):
+    assert main(argv + ["--json"]) == 0
+    return json.loads(capsys.readouterr().out)
+
+
+def test_solvents_json_contract(capsys):
+    rows = run_json(capsys, ["solvents"])
+    assert len(rows) >= 70
+    for key in ("name", "cas", "dD", "dP", "dH", "vm", "bp_C", "flash_C", "density", "sources"):
+        assert key in rows[0]
+
+
+def test_solvents_where_and_sort(capsys):
+    rows = run_json(capsys, ["solvents", "--where", "dH > 10 and bp_C < 120", "--sort", "bp_C"])
+    assert rows and all(r["dH"] > 10 and r["bp_C"] < 120 for r in rows)
+    assert [r["bp_C"] for r in rows] == sorted(r["bp_C"] for r in rows)
+    food = run_json(capsys, ["solvents", "--food"])
+    assert "n-hexane" in {r["name"] for r in food} and "dimethyl sulfoxide" not in {r["name"] for r in food}
+
+
+def test_where_grammar():
+    df = pd.DataFrame({"name": ["a", "b", "c"], "roles": ["carrier;bench", "bench", "extraction"],
+                       "flash_C": [10.0, float("nan"), 80.0]})
+    assert list(df[where(df, "roles has carrier or flash > 50")]["name"]) == ["a", "c"]
+    assert list(df[where(df, "flash is empty")]["name"]) == ["b"]
+    assert list(df[where(df, "not flash < 50")]["name"]) == ["b", "c"]  # an empty cell fails every comparison
+    for bad in ("flash >", "flash > 'x'", "(flash > 1", "nosuch > 1", "flash > 1 and", "__import__('os')"):
+        with pytest.raises(InputError):
+            where(df, bad)
+
+
+def test_bad_input_exits_2_without_traceback(capsys):
+    assert main(["solvents", "--where", "dQ > 1"]) == 2
+    err = capsys.readouterr().err
+    assert "Traceback" not in err and "unknown column 'dQ'" in err
+    assert main(["table", "nonesuch"]) == 2
+
+
+def test_table_json_keeps_column_names(capsys):
+    rows = run_json(capsys, ["table", "solutes"])
+    assert {"name", "cas", "dD_MPa05", "hsp_source"} <= set(rows[0])
+
+
+def test_report_writes_three_files_and_never_overwrites(tmp_path, capsys):
+    out = tmp_path / "carriers.md"
+    assert main(["report", str(out), "solvents", "--where", "dH > 20"]) == 0
+    md = out.read_text(encoding="utf-8")
+    assert "## Sources" in md and "Diaz de los Rios" in md and "## Caution" in md
+    assert json.loads(out.with_suffix(".json").read_text())[0]["name"]
+    assert out.with_suffix(".csv").read_text().startswith("name,cas,")
+    before = md
+    assert main(["report", str(out), "solvents"]) == 2  # exists: refused
+    assert out.read_text(encoding="utf-8") == before
+
+
+def test_demo_scenario_is_marked_demo():
+    from solvsel.catalog import load_catalog
+    from solvsel.demo import demo_steps, load_scenario
+
+    s = load_scenario()
+    assert s.source == "demo" and "fictional" in s.company
+    load_catalog().solute(s.solute, library=False)
+    assert len(demo_steps(s)) == 6
