@@ -628,6 +628,7 @@ class Blend:
     cautions: tuple[str, ...] = ()
     pareto: bool = False
     rank: int = 0
+    dose_check: dict | None = None
 
     @property
     def names(self) -> tuple[str, ...]:
@@ -658,6 +659,7 @@ class Blend:
             "solubility": self.solubility,
             "regulations": list(self.regulations),
             "pareto": self.pareto,
+            "dose_check": self.dose_check,
             "cautions": list(self.cautions),
         }
 
@@ -795,6 +797,11 @@ def optimise_blends(
     top: int = 10,
     pareto_pool: int | None = None,
     pool=None,
+    dose=None,
+    category: str | None = None,
+    chain: str | None = None,
+    already=None,
+    keep_over: bool = False,
 ) -> BlendSearch:
     r"""Best blends of 1 to ``max_components`` liquids for a target, under constraints.
 
@@ -858,6 +865,19 @@ def optimise_blends(
         number of checked blends the Pareto front is taken over (default 5 x top, at least 50)
     pool : list of Solvent, optional
         the records to search instead of the solvents table (e.g. the user's own)
+    dose : str or float, optional
+        dose of the blend (as a flavour carrier) in the food, "0.15%", "1500ppm"
+        or a mass fraction; with ``jurisdiction`` and ``category`` every blend is
+        checked against the carrier limits of the food as consumed (the
+        compliance module) and dropped when over one
+    category : str, optional
+        food category of the food as consumed (for ``dose``)
+    chain : str, optional
+        dilution chain from the blend to the food (syntax of the compliance module)
+    already : mapping, optional
+        what other ingredients already bring to the food, ``{substance: mg/kg}``
+    keep_over : bool
+        keep (flagged) blends over a limit at ``dose`` instead of dropping them
 
     Returns
     -------
@@ -891,6 +911,8 @@ def optimise_blends(
     if sort == "selectivity" and not rej:
         raise InputError("--sort selectivity needs at least one --reject solute")
     red_basis = bool(rej) and r0 is not None and all(rr is not None for _, _, rr in rej)
+    if dose is not None and (jurisdiction is None or category is None):
+        raise InputError("--dose needs --jurisdiction and --category (the food the blend ends up in)")
     bounds = [b if isinstance(b, FractionBound) else parse_fraction_bound(b) for b in (bounds or ())]
     temp_C = float(temp_C)
     if not math.isfinite(temp_C):
@@ -964,6 +986,8 @@ def optimise_blends(
         "min_flash_C": min_flash_C, "max_cost": max_cost, "bounds": [b.to_dict() for b in bounds],
         "temp_C": temp_C, "rejects": [r[0] for r in rej], "sort": sort, "one_phase_only": bool(one_phase_only),
         "min_fraction": float(min_fraction), "top": int(top),
+        "dose": dose, "category": category, "chain": chain, "already": dict(already) if already else None,
+        "keep_over": bool(keep_over),
     }
     t_info["temp_C"] = temp_C
     cautions = [_GENERAL_CAUTION]
@@ -973,7 +997,7 @@ def optimise_blends(
         )
     counts = {"liquids": len(kept), "excluded_liquids": len(excluded), "combinations": 0,
               "bounds_not_met": 0, "same_as_smaller_blend": 0, "checked": 0, "two_phase": 0,
-              "not_permitted": 0, "kept": 0}
+              "over_limit": 0, "kept": 0}
 
     def finish(results, pareto, dropped, success, message):
         return BlendSearch(t_info, tuple(results), tuple(pareto), tuple(dropped), tuple(excluded), counts,
@@ -1076,7 +1100,17 @@ def optimise_blends(
                 dropped.append(DroppedBlend(tuple(r.name for r in recs), tuple(float(v) for v in xs), float(RA[row]),
                                             f"two phases at these fractions ({ph[1]}): {ph[2]}"))
             continue
-        kept_rows.append((j, None))
+        dose_info = None
+        if dose is not None:
+            row, recs, xs = members_of(j)
+            dose_info = _dose_check(cat, recs, xs, dose, jurisdiction, category, chain, already)
+            if dose_info["ok"] is False and not keep_over:
+                counts["over_limit"] += 1
+                if len(kept_rows) < want and len(dropped) < _DROPPED_LISTED:
+                    dropped.append(DroppedBlend(tuple(r.name for r in recs), tuple(float(v) for v in xs),
+                                                float(RA[row]), dose_info["message"]))
+                continue
+        kept_rows.append((j, dose_info))
         if len(kept_rows) >= pool_n:
             break
     counts["kept"] = len(kept_rows)
@@ -1089,16 +1123,19 @@ def optimise_blends(
         kept_rows = [kept_rows[i] for i in new]
 
     # ------------------------------------------------------------------ describe
-    def describe(j, phase, rank):
+    def describe(j, dose_info, rank):
         row, recs, xs = members_of(j)
         members = [int(i) for i in IDX[row] if i >= 0]
         xs = xs.copy()
         phase = (True, "single liquid", "") if len(recs) == 1 else _phase(cat, recs, xs, temp_C)
-        return _describe_blend(
+        b = _describe_blend(
             cat, recs, xs, BH[j], float(ra_c[j]), r0, phase, [hazards[i] for i in members],
             None if np.isnan(cost_c[j]) else float(cost_c[j]),
             rej, red_basis, solute, t_hsp, temp_C, use, jurisdiction, rank,
         )
+        if dose_info is not None:
+            b = _with(b, dose_check=dose_info, cautions=tuple(dict.fromkeys(b.cautions + tuple(dose_info["cautions"]))))
+        return b
 
     F = [ra_c[[j for j, _ in kept_rows]]]
     if rej:
@@ -1110,15 +1147,15 @@ def optimise_blends(
 
     described = {}
     results = []
-    for rank, ((j, phase), on_front) in enumerate(zip(kept_rows[:want], front[:want]), start=1):
-        b = describe(j, phase, rank)
+    for rank, ((j, dose_info), on_front) in enumerate(zip(kept_rows[:want], front[:want]), start=1):
+        b = describe(j, dose_info, rank)
         b = _with(b, pareto=bool(on_front))
         described[j] = b
         results.append(b)
     pareto = []
-    for pos, ((j, phase), on_front) in enumerate(zip(kept_rows, front)):
+    for pos, ((j, dose_info), on_front) in enumerate(zip(kept_rows, front)):
         if on_front:
-            pareto.append(described.get(j) or _with(describe(j, phase, pos + 1), pareto=True))
+            pareto.append(described.get(j) or _with(describe(j, dose_info, pos + 1), pareto=True))
     msg = f"{len(results)} blend(s) from {m} liquids; {counts['combinations']} combinations searched"
     return finish(results, pareto, dropped, True, msg)
 
@@ -1275,6 +1312,36 @@ def _regulations(cat, rec, use, jurisdiction):
     d = st.to_dict()
     return [{k: d[k] for k in ("name", "cas", "use", "jurisdiction", "status", "allowed", "conditions", "message",
                                "flagged", "per_jurisdiction")}]
+
+
+def _dose_check(cat, recs, xs, dose, jurisdiction, category, chain, already=None):
+    """Carrier limits of the food at ``dose`` for a blend (compliance.carrier_dose_check), as a dict."""
+    from .compliance import carrier_dose_check
+    from .hansen import convert_fractions
+
+    dens = [r.density_g_cm3 for r in recs]
+    if not all(d is not None and d > 0 for d in dens):
+        return {"ok": None, "complete": False, "max_dose": None, "max_dose_unit": None, "binding": None,
+                "message": "a density is missing, so the blend's mass fractions and its dose limits are unknown",
+                "cautions": []}
+    w = convert_fractions(np.clip(xs, 0, 1) / np.sum(np.clip(xs, 0, 1)), "volume", "mass", density_g_cm3=dens)
+    chk = carrier_dose_check(cat, [(r.name, float(v)) for r, v in zip(recs, w)], dose, jurisdiction, category,
+                             chain=chain, already=already)
+    binding = None
+    if chk.binding is not None:
+        b = chk.binding
+        binding = {"rule": b.rule, "substance": b.substance, "level": b.level, "limit": b.limit, "unit": b.unit,
+                   "confidence": b.confidence}
+    if chk.ok:
+        msg = "within the limits at this dose" + ("" if chk.complete else " (some substances have no data: not a permission)")
+    else:
+        msg = "over a limit at this dose"
+        if binding:
+            msg += (f": {binding['substance']} at {binding['level']:.4g} {binding['unit']} against "
+                    f"{binding['limit']:.4g} ({binding['rule']})")
+    return {"ok": bool(chk.ok), "complete": bool(chk.complete), "max_dose": chk.max_dose,
+            "max_dose_unit": chk.max_dose_unit, "binding": binding, "no_data": list(chk.no_data),
+            "message": msg, "cautions": list(chk.cautions)}
 
 
 def _solvent_cautions(rec, use):

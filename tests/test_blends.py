@@ -478,3 +478,19 @@ def test_engine_does_not_import_textual():
 
     code = "import sys, solvsel.blends; sys.exit(1 if 'textual' in sys.modules else 0)"
     assert subprocess.run([sys.executable, "-c", code], cwd=str(__import__("pathlib").Path(__file__).parents[1])).returncode == 0
+
+
+def test_dose_limits_drop_carriers_over_the_limit(cat):
+    # EU carrier limit of 1 g/L in beverages for propylene glycol (Reg. (EC)
+    # No 1333/2008 Annex III Part 4, bundled regulations table; secondary
+    # source, verify): a flavour of pure PG at 0.15 % in a drink is over it,
+    # ethanol (a food, no carrier limit) is not.
+    res = optimise_blends(cat, (16.8, 10.4, 21.3), max_components=2, only=["propylene glycol", "ethanol"],
+                          dose="0.15%", jurisdiction="EU", category="flavoured drinks")
+    dropped = {d.names: d.reason for d in res.dropped}
+    assert ("propylene glycol",) in dropped and "over a limit" in dropped[("propylene glycol",)]
+    assert res.counts["over_limit"] >= 1
+    for b in res.results:
+        assert b.dose_check["ok"] is True
+    with pytest.raises(InputError):
+        optimise_blends(cat, (16.8, 10.4, 21.3), only=["ethanol"], dose="0.15%")

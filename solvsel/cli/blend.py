@@ -2,7 +2,16 @@
 
 from __future__ import annotations
 
-from ._common import add_json_flag, emit_json, get_catalog, parse_hsp, parse_names, print_cautions, print_table
+from ._common import (
+    add_json_flag,
+    emit_json,
+    get_catalog,
+    parse_amounts,
+    parse_hsp,
+    parse_names,
+    print_cautions,
+    print_table,
+)
 from ._target import add_target_arguments, target_from_args
 
 
@@ -42,6 +51,15 @@ def register(sub):
     g.add_argument("--min-fraction", type=float, default=0.02, metavar="F",
                    help="smallest volume fraction that counts as a component (default 0.02); blends with less "
                    "of a liquid are the same as a smaller blend")
+    d = p.add_argument_group("dose limits (flavour carriers)")
+    d.add_argument("--dose", metavar="DOSE",
+                   help="dose of the blend in the food, e.g. 0.15%% or 1500ppm; with --jurisdiction and --category, "
+                   "blends over a carrier limit of the food as consumed are dropped")
+    d.add_argument("--category", metavar="FOOD", help="food category of the food as consumed (solvsel table food_categories)")
+    d.add_argument("--chain", metavar="CHAIN", help="dilution chain from the blend to the food as consumed")
+    d.add_argument("--already", metavar="NAME=MG_PER_KG,...",
+                   help="what other ingredients already bring to the food as consumed [mg/kg]")
+    d.add_argument("--keep-over", action="store_true", help="list blends over a limit too (flagged) instead of dropping them")
     r = p.add_argument_group("selectivity")
     r.add_argument("--reject", metavar="NAMES", action="append", default=[],
                    help="solutes to keep out of solution (comma-separated names of the solutes table)")
@@ -111,6 +129,11 @@ def search(args, cat):
         one_phase_only=not args.keep_two_phase,
         min_fraction=args.min_fraction,
         top=args.top,
+        dose=args.dose,
+        category=args.category,
+        chain=args.chain,
+        already=dict(parse_amounts(args.already, "--already")) if args.already else None,
+        keep_over=args.keep_over,
     )
 
 
@@ -160,6 +183,11 @@ def print_search(res, file=None) -> None:
                 row["sel"] = b.selectivity
             if b.solubility:
                 row["sol"] = b.solubility.get("g_per_L")
+            if b.dose_check:
+                dc = b.dose_check
+                row["dose"] = "no data" if dc["ok"] is None else ("ok" if dc["ok"] else "OVER")
+                if dc.get("max_dose") is not None and dc.get("max_dose_unit") == "mass fraction":
+                    row["dose"] += f", max {100 * dc['max_dose']:.3g}%"
             rows.append(row)
         cols = [("rank", "#"), ("blend", "blend (volume fractions)"), ("mass", "mass fr."),
                 ("ra", "Ra", ".2f"), ("red", "RED", ".2f"), ("phase", "1 phase"), ("bp", "bp C"),
@@ -169,6 +197,8 @@ def print_search(res, file=None) -> None:
             cols += [("near", "reject " + ("RED" if basis == "RED" else "Ra"), ".2f"), ("sel", "margin", ".2f")]
         if any("sol" in r for r in rows):
             cols.append(("sol", "sol. g/L", ".3g"))
+        if any("dose" in r for r in rows):
+            cols.append(("dose", "at dose"))
         print(file=file)
         print_table(rows, cols, file=file)
         notes = ["Ra, RED: distance to the target [MPa^0.5]; 1 phase: (m) measured pair data, (p) predicted, ? not checked; "
@@ -191,7 +221,8 @@ def print_search(res, file=None) -> None:
                 print(line, file=file)
     dropped_n = c.get("two_phase", 0)
     if res.dropped or dropped_n or c.get("bounds_not_met") or c.get("same_as_smaller_blend"):
-        print(f"\nDropped: {dropped_n} two-phase among the {c['checked']} blends checked; "
+        over = f"{c['over_limit']} over a dose limit; " if c.get("over_limit") else ""
+        print(f"\nDropped: {dropped_n} of the {c['combinations']} combinations split into two phases; {over}"
               f"{c['bounds_not_met']} cannot meet the fraction bounds; {c['same_as_smaller_blend']} are the same "
               f"as a smaller blend (a liquid under the minimum fraction).", file=file)
         for d in res.dropped[:5]:
