@@ -58,6 +58,13 @@ __all__ = [
     "hazard_class",
     "solvent_cautions",
     "food_status",
+    "LimitCheck",
+    "ResidueCheck",
+    "ClaimCheck",
+    "DoseCheck",
+    "check_dose",
+    "carrier_dose_check",
+    "claim_rules",
 ]
 
 #: Jurisdictions in tables/regulations.csv (ICH is a pharmaceutical guideline, shown as a reference).
@@ -223,6 +230,7 @@ def _limit_from_row(r: Mapping[str, Any]) -> Limit:
 
 
 _ROWS_CACHE: dict[int, tuple[Limit, ...]] = {}
+_CATS_CACHE: dict[int, dict] = {}
 
 
 def _all_limits(cat) -> tuple[Limit, ...]:
@@ -259,6 +267,8 @@ class FoodCategory:
 def food_categories(cat=None) -> dict[str, FoodCategory]:
     """All food categories by name, in table order."""
     cat = _catalog(cat)
+    if id(cat) in _CATS_CACHE:
+        return dict(_CATS_CACHE[id(cat)])
     out = {}
     for r in cat.table("food_categories").to_dict("records"):
         fc = FoodCategory(
@@ -271,7 +281,8 @@ def food_categories(cat=None) -> dict[str, FoodCategory]:
             note=_text(r.get("note")),
         )
         out[fc.name] = fc
-    return out
+    _CATS_CACHE[id(cat)] = out
+    return dict(out)
 
 
 def resolve_category(cat, name: str) -> FoodCategory:
@@ -600,6 +611,9 @@ def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
     if hz is not None:
         if hz.kind == "gas under pressure":
             out.append(f"{name}: {hz.label}.")
+        elif hz.category == 4:
+            out.append(f"{name}: {hz.label}; it burns when heated above its flash point: keep hot work and heated "
+                       "vessels away from ignition sources.")
         else:
             out.append(
                 f"{name}: {hz.label}; keep from ignition sources, ground and bond containers, store and ship "
@@ -808,3 +822,602 @@ def food_status(cat, solvent, use: str | None = None, jurisdiction: str | None =
     if not jur:
         message = ", ".join(f"{j}: {s}" for j, s in per.items()) + " — " + message
     return FoodStatus(name, cas, use, jur, status, tuple(dict.fromkeys(all_conds)), rows_t, message, flagged, per)
+
+
+# ----------------------------------------------------------------------------- dose checks
+
+
+@dataclass(frozen=True)
+class LimitCheck:
+    """One limit compared with the level of its substance (or group) in the food as consumed.
+
+    ``level`` and ``limit`` are in ``unit`` (the unit of the rule).  ``ok`` is
+    true when the level keeps the limit; ``binds`` marks the limit that sets
+    the maximum dose (the tightest one).  ``max_dose`` is the largest dose of
+    the formula (in the unit of the first chain step) that keeps this limit,
+    counting what other ingredients already bring; None when the rule has no
+    number or the dose cannot be scaled.
+    """
+
+    rule: str
+    jurisdiction: str
+    substance: str
+    members: tuple[str, ...]
+    cas: tuple[str, ...]
+    level: float | None
+    limit: float | None
+    unit: str
+    ok: bool
+    binds: bool
+    max_dose: float | None
+    status: str
+    applies_to: str
+    food_category: str
+    condition: str
+    group: str
+    confidence: str
+    checked_on: str
+    source: tuple[str, ...]
+    note: str
+
+    @property
+    def flagged(self) -> bool:
+        return self.confidence != "checked"
+
+    def to_dict(self) -> dict[str, Any]:
+        d = asdict(self)
+        for k in ("members", "cas", "source"):
+            d[k] = list(d[k])
+        d["flagged"] = self.flagged
+        d["checked_on"] = self.checked_on or None
+        return d
+
+
+@dataclass(frozen=True)
+class ResidueCheck:
+    """A measured solvent residue in the formula (extract) against one rule.
+
+    ``level`` is in ``unit``: the residue in the food (food residue rows) or in
+    the extract (extract residue rows).  ``tolerated_ppm`` is the residue in the
+    extract that the rule would tolerate at this dose and chain.
+    """
+
+    substance: str
+    cas: str
+    measured_ppm: float
+    rule: str
+    jurisdiction: str
+    applies_to: str
+    condition: str
+    level: float | None
+    limit: float | None
+    unit: str
+    ok: bool | None
+    tolerated_ppm: float | None
+    status: str
+    reference_only: bool
+    confidence: str
+    source: tuple[str, ...]
+    note: str
+
+    def to_dict(self) -> dict[str, Any]:
+        d = asdict(self)
+        d["source"] = list(d["source"])
+        d["flagged"] = self.confidence != "checked"
+        return d
+
+
+@dataclass(frozen=True)
+class ClaimCheck:
+    """A claim rule of tables/claims.csv against the formula (flavour) or the product."""
+
+    claim: str
+    substance: str
+    applies_to: str
+    stage: str
+    level_percent: float | None
+    max_percent: float | None
+    ok: bool | None
+    requirement: str
+    source: tuple[str, ...]
+    note: str
+
+    def to_dict(self) -> dict[str, Any]:
+        d = asdict(self)
+        d["source"] = list(d["source"])
+        return d
+
+
+@dataclass(frozen=True)
+class DoseCheck:
+    """Levels along the chain, every applicable limit, residues, claims and the maximum dose.
+
+    ``ok`` is true when every limit with data is kept (and every residue and
+    claim ceiling); ``complete`` is false when some substance has no data in
+    the jurisdiction (listed in ``no_data``: never a permission).
+    """
+
+    formula: Any
+    jurisdiction: str
+    category: str
+    steps: tuple
+    stages: tuple
+    other_sources_mg_per_kg: dict
+    names: dict
+    checks: tuple[LimitCheck, ...]
+    no_data: tuple[dict, ...]
+    residues: tuple[ResidueCheck, ...]
+    claims: tuple[ClaimCheck, ...]
+    max_dose: float | None
+    max_dose_unit: str
+    max_fraction_in_food: float | None
+    binding: LimitCheck | None
+    per_ingredient: tuple[dict, ...]
+    ok: bool
+    complete: bool
+    cautions: tuple[str, ...]
+    assumptions: tuple[str, ...]
+
+    def stage_table(self, index: int) -> list[dict]:
+        """Rows ``{substance, cas, mg_per_kg, mg_per_L}`` of one stage, largest first."""
+        st = self.stages[index]
+        last = index == len(self.stages) - 1
+        rows = []
+        keys = list(st.mass_fractions) + ([k for k in self.other_sources_mg_per_kg if k not in st.mass_fractions] if last else [])
+        for k in keys:
+            mgkg = st.mass_fractions.get(k, 0.0) * 1e6 + (self.other_sources_mg_per_kg.get(k, 0.0) if last else 0.0)
+            rows.append({
+                "substance": self.names[k][0], "cas": self.names[k][1], "mg_per_kg": mgkg,
+                "mg_per_L": None if st.density_g_cm3 is None else mgkg * st.density_g_cm3,
+            })
+        return sorted(rows, key=lambda r: -r["mg_per_kg"])
+
+    def to_dict(self) -> dict[str, Any]:
+        stages = []
+        for i, st in enumerate(self.stages):
+            rows = self.stage_table(i)
+            stages.append({
+                "name": st.name,
+                "step": st.step.to_dict() if st.step is not None else None,
+                "density_g_cm3": st.density_g_cm3,
+                "density_basis": st.density_basis,
+                "fraction_of_previous": st.fraction_of_previous,
+                "fraction_of_formula": st.fraction_of_formula,
+                "levels": {r["substance"]: r["mg_per_kg"] for r in rows},
+                "levels_mg_per_L": {r["substance"]: r["mg_per_L"] for r in rows},
+            })
+        return {
+            "formula": self.formula.to_dict(),
+            "jurisdiction": self.jurisdiction,
+            "category": self.category,
+            "stages": stages,
+            "other_sources_mg_per_kg": {self.names[k][0]: v for k, v in self.other_sources_mg_per_kg.items()},
+            "limits": [c.to_dict() for c in self.checks],
+            "no_data": list(self.no_data),
+            "residues": [r.to_dict() for r in self.residues],
+            "claims": [c.to_dict() for c in self.claims],
+            "max_dose": self.max_dose,
+            "max_dose_unit": self.max_dose_unit,
+            "max_fraction_in_food": self.max_fraction_in_food,
+            "binding": self.binding.to_dict() if self.binding is not None else None,
+            "per_ingredient": list(self.per_ingredient),
+            "ok": self.ok,
+            "complete": self.complete,
+            "cautions": list(self.cautions),
+            "assumptions": list(self.assumptions),
+        }
+
+
+def claim_rules(cat=None, claim: str | None = None) -> list[dict]:
+    """Rows of tables/claims.csv (all, or those of ``claim``); an unknown claim lists the known ones.
+
+    The bundled rows are examples: the certifier's rules decide.
+    """
+    cat = _catalog(cat)
+    rows = cat.table("claims").to_dict("records")
+    if claim is None:
+        return rows
+    key = _norm(claim)
+    hit = [r for r in rows if _norm(r["claim"]) == key]
+    if not hit:
+        known = sorted({r["claim"] for r in rows})
+        raise UnknownNameError(str(claim), "claim", tuple(known))
+    return hit
+
+
+def _resolve_substance(cat, name: str, what: str) -> tuple[str, str, str]:
+    """(key, display name, cas) of a substance given by name or CAS."""
+    from .formulation import _lookup
+
+    try:
+        n, cas, _, _, _ = _lookup(cat, name)
+        return (cas or n), n, cas
+    except UnknownNameError:
+        rows = limits(cat, substance=name)
+        if rows:
+            return (rows[0].cas or rows[0].substance), rows[0].substance, rows[0].cas
+        raise
+
+
+_MAX_UNIT = {"w/w": "mass fraction", "v/v": "volume fraction", "g/L": "g/L"}
+
+
+def check_dose(
+    cat,
+    formula,
+    chain=None,
+    jurisdiction: str = "EU",
+    category: str = "food",
+    dose: str | float | None = None,
+    already: Mapping[str, float] | None = None,
+    residues: Mapping[str, float] | None = None,
+    claims: Sequence[str] | None = None,
+    formula_density: float | None = None,
+) -> DoseCheck:
+    """Levels of a formula along a dilution chain, checked against every limit that applies.
+
+    Parameters
+    ----------
+    cat : Catalog or None
+    formula : solvsel.formulation.Formula
+    chain : str or list of Step, optional
+        The chain (syntax in :mod:`solvsel.formulation`); None: the dose goes
+        straight into the food as consumed.
+    jurisdiction : {"EU", "US"}
+    category : str
+        Food category of the food as consumed (the last stage).
+    dose : str or float, optional
+        Dose of the formula in the first stage ("0.15%", "1500ppm", "1.5g/L";
+        a float is a mass fraction).
+    already : mapping, optional
+        What other ingredients already bring to the food as consumed,
+        ``{substance: mg/kg}``; added to the formula's share ("from all sources").
+    residues : mapping, optional
+        Measured solvent residues in the formula (extract), ``{solvent: ppm}``.
+    claims : list of str, optional
+        Claims to check with tables/claims.csv (e.g. "halal").
+    formula_density : float, optional
+        Density of the formula [g/cm3]; default from its components.
+
+    Notes
+    -----
+    Level in the food as consumed of substance *i* (group *G*: summed over
+    its members), with :math:`w_i` its mass fraction in the formula,
+    :math:`F` the mass fraction of the formula in the food and :math:`B_i`
+    what other ingredients bring:
+
+    .. math::
+
+        c_G = \\sum_{i \\in G} (10^6 F w_i + B_i) \\quad [\\mathrm{mg/kg}],
+        \\qquad c_G\\,\\rho_\\mathrm{food} \\quad [\\mathrm{mg/L}]
+
+    The level is proportional to the dose (for doses in %, ppm, % v/v or
+    g/L), so the largest dose keeping limit :math:`L` is
+    :math:`x_\\max = x\\,(L - B_G\\rho)/(c_G - B_G\\rho)` (Practice: "maximum
+    flavour dose = (limit - what other ingredients bring) / share of the
+    limited carriers").  A substance with no rule in the jurisdiction is
+    listed in ``no_data`` and the result is not ``complete``.
+    """
+    from .formulation import WATER_DENSITY_25C, parse_chain, stage_levels  # noqa: F401
+
+    cat = _catalog(cat)
+    jur = _check_jurisdiction(jurisdiction, FOOD_JURISDICTIONS, "--jurisdiction (food law)")
+    if jur is None:
+        raise InputError("--jurisdiction: give EU or US (limits differ by jurisdiction)")
+    fc = resolve_category(cat, category)
+    if isinstance(dose, (int, float)) and not isinstance(dose, bool):
+        if not (0 < float(dose) <= 1):
+            raise InputError(f"--dose: a mass fraction must be more than 0 and at most 1, got {dose}")
+        dose = f"{float(dose) * 100!r}%"
+    steps = parse_chain(chain, dose) if (chain is None or isinstance(chain, str)) else list(chain)
+    if chain is not None and not isinstance(chain, str) and dose is not None:
+        raise InputError("give the dose inside the chain steps or as dose, not both")
+    stages = stage_levels(formula, steps, formula_density)
+    assumptions = list(formula.notes)
+    final = stages[-1]
+    if final.density_g_cm3 is None and fc.typical_density_g_cm3 is not None:
+        from dataclasses import replace
+
+        final = replace(final, density_g_cm3=fc.typical_density_g_cm3, density_basis="assumed (category)")
+        stages[-1] = final
+        assumptions.append(
+            f"density of '{final.name}' assumed {fc.typical_density_g_cm3:g} g/cm3 (typical for {fc.name}); "
+            "give d= in the chain for your product"
+        )
+    names = {k: (v[0], v[1]) for k, v in formula.substance_fractions().items()}
+    # other sources (mg/kg in the food as consumed)
+    other: dict[str, float] = {}
+    for n, v in (already or {}).items():
+        if v is None or not math.isfinite(float(v)) or float(v) < 0:
+            raise InputError(f"--already: amount of '{n}' must be zero or more mg/kg, got {v}")
+        key, disp, cas = _resolve_substance(cat, n, "--already")
+        other[key] = other.get(key, 0.0) + float(v)
+        names.setdefault(key, (disp, cas))
+    F = final.fraction_of_formula
+    rho = final.density_g_cm3
+    w0 = dict(stages[0].mass_fractions)
+    scalable = steps[0].scalable
+    x0 = steps[0].amount if scalable else None
+
+    def level(keys: Sequence[str], basis: str | None) -> tuple[float, float]:
+        """(level from the formula, level from other sources) in mg/kg or mg/L."""
+        fp = sum(w0.get(k, 0.0) for k in keys) * F * 1e6
+        bg = sum(other.get(k, 0.0) for k in keys)
+        if basis == "volume":
+            if rho is None:
+                raise MissingDataError(
+                    f"a limit in mg/L applies in '{final.name}' ({fc.name}) but its density is not known: give d= in the chain"
+                )
+            return fp * rho, bg * rho
+        return fp, bg
+
+    # gather the rules of every substance present in the food
+    present = [k for k in names if (w0.get(k, 0.0) > 0 or other.get(k, 0.0) > 0)]
+    rules_of: dict[str, list[Limit]] = {}
+    no_data = []
+    for k in present:
+        cas = names[k][1]
+        rows = []
+        if cas:
+            rows = [r for r in limits(cat, cas=cas, jurisdiction=jur, category=fc.name, use=FINISHED_FOOD_USES)
+                    if r.applies_to in ("finished food", "status")]
+        if rows:
+            rules_of[k] = rows
+        else:
+            why = "no CAS number, so no rule can be looked up" if not cas else "no rule in the bundled table"
+            no_data.append({
+                "substance": names[k][0], "cas": cas, "jurisdiction": jur, "category": fc.name,
+                "message": f"{names[k][0]}: {why} for {jur} / {fc.name}; that is not a permission (check the rules in force)",
+            })
+    # one check per rule, summed over the members of a group
+    checks_raw: dict[tuple, dict] = {}
+    for k, rows in rules_of.items():
+        for r in rows:
+            ident = r.group or (r.cas or r.substance)
+            key = (ident, r.rule, r.food_category, r.limit, r.unit, r.status, r.applies_to)
+            entry = checks_raw.setdefault(key, {"row": r, "members": []})
+            entry["members"].append(k)
+    checks = []
+    for key, e in checks_raw.items():
+        r, members = e["row"], e["members"]
+        label = " + ".join(names[m][0] for m in members)
+        if r.group:
+            label += f" (group {r.group})"
+        base = dict(
+            rule=r.rule, jurisdiction=r.jurisdiction, substance=label, members=tuple(names[m][0] for m in members),
+            cas=tuple(names[m][1] for m in members), unit=r.unit, status=r.status, applies_to=r.applies_to,
+            food_category=r.food_category, condition=r.condition, group=r.group, confidence=r.confidence,
+            checked_on=r.checked_on, source=r.source, note=r.note,
+        )
+        if r.status == "not permitted":
+            fp, bg = level(members, "mass")
+            checks.append(LimitCheck(level=fp + bg, limit=0.0, ok=(fp + bg) == 0, binds=False,
+                                     max_dose=0.0 if scalable else None, **{**base, "unit": "mg/kg"}))
+            continue
+        if r.limit_mg is None:  # GMP: no number to keep
+            fp, bg = level(members, "mass")
+            checks.append(LimitCheck(level=None, limit=None, ok=True, binds=False, max_dose=None, **base))
+            continue
+        fp, bg = level(members, r.basis)
+        per_unit = _UNIT_BASIS[r.unit][1]
+        lvl = (fp + bg) / per_unit
+        ok = (fp + bg) <= r.limit_mg * (1 + 1e-12)
+        mx = None
+        if scalable:
+            room = r.limit_mg - bg
+            mx = 0.0 if room <= 0 else (math.inf if fp <= 0 else x0 * room / fp)
+        checks.append(LimitCheck(level=lvl, limit=r.limit, ok=ok, binds=False, max_dose=mx, **base))
+    finite = [c.max_dose for c in checks if c.max_dose is not None and math.isfinite(c.max_dose)]
+    max_dose = min(finite) if finite else None
+    binding = None
+    if max_dose is not None:
+        checks = [
+            c if c.max_dose is None or not math.isfinite(c.max_dose) or c.max_dose > max_dose * (1 + 1e-9) + 1e-300
+            else _replace(c, binds=True)
+            for c in checks
+        ]
+        binding = next(c for c in checks if c.binds)
+    checks = [(_replace(c, max_dose=None) if c.max_dose is not None and not math.isfinite(c.max_dose) else c) for c in checks]
+    checks.sort(key=lambda c: (not c.binds, c.ok, -(c.level / c.limit if c.level is not None and c.limit else 0)))
+    max_fraction = None
+    if max_dose is not None and x0:
+        max_fraction = F * max_dose / x0
+    # per ingredient: the tightest limit on what it brings
+    per_ingredient = []
+    for comp in formula.components:
+        keys = {s[0] for s in comp.substances}
+        mine = [c for c in checks if c.max_dose is not None and any(names.get(k, ("", ""))[0] in c.members for k in keys)]
+        best = min(mine, key=lambda c: c.max_dose) if mine else None
+        per_ingredient.append({
+            "name": comp.name, "cas": comp.cas, "mass_fraction": comp.mass_fraction,
+            "max_dose": best.max_dose if best else None,
+            "binding_rule": best.rule if best else None,
+            "binding_substance": best.substance if best else None,
+            "no_data": any(d["substance"] in {names.get(k, ("",))[0] for k in keys} for d in no_data),
+        })
+    res = _residue_checks(cat, residues or {}, jur, fc.name, F, x0, stages)
+    cl = _claim_checks(cat, claims or (), stages, other, names)
+    ok = all(c.ok for c in checks) and all(r.ok is not False for r in res if not r.reference_only) and all(
+        c.ok is not False for c in cl
+    )
+    cautions = [
+        "Limits apply to the food as consumed and from all sources: add what other ingredients bring (--already).",
+        f"Jurisdiction {jur}, category '{fc.name}': the rules, sources and checked-on dates are listed with each limit; "
+        "rows marked 'secondary, verify' or 'from memory' are not confirmed against the official text.",
+    ]
+    if any(c.flagged for c in checks) or any(r.confidence != "checked" for r in res):
+        cautions.append("Some limits used here are unconfirmed (secondary source or recalled): verify them before relying on the result.")
+    if no_data:
+        cautions.append(
+            "No data for " + ", ".join(d["substance"] for d in no_data) + f" in {jur}: the tool found no rule, which is not a permission."
+        )
+    if res:
+        cautions.append(
+            "Residual solvents: measured residues come from headspace GC of the actual lot; limits differ by jurisdiction "
+            "and use, and a prediction never replaces the measurement."
+        )
+    if cl:
+        cautions.append("Claim rules are examples from tables/claims.csv: verify with your certifier.")
+    for comp in formula.components:
+        if comp.origin.startswith("solvents"):
+            try:
+                rec = cat.solvent(comp.name, library=False)
+            except Exception:
+                continue
+            cautions += [c for c in solvent_cautions(rec, use="carrier", cat=cat) if c != DEFER]
+    cautions.append(DEFER)
+    return DoseCheck(
+        formula=formula, jurisdiction=jur, category=fc.name, steps=tuple(steps), stages=tuple(stages),
+        other_sources_mg_per_kg=other, names=names, checks=tuple(checks), no_data=tuple(no_data),
+        residues=tuple(res), claims=tuple(cl), max_dose=max_dose,
+        max_dose_unit=_MAX_UNIT.get(steps[0].how, steps[0].how), max_fraction_in_food=max_fraction,
+        binding=binding, per_ingredient=tuple(per_ingredient), ok=ok, complete=not no_data,
+        cautions=tuple(dict.fromkeys(cautions)), assumptions=tuple(assumptions),
+    )
+
+
+def _replace(obj, **kw):
+    from dataclasses import replace
+
+    return replace(obj, **kw)
+
+
+def _residue_checks(cat, residues: Mapping[str, float], jur: str, category: str, F: float, x0, stages) -> list[ResidueCheck]:
+    out: list[ResidueCheck] = []
+    given: dict[str, tuple[str, str, float]] = {}
+    for n, ppm in residues.items():
+        if ppm is None or not math.isfinite(float(ppm)) or float(ppm) < 0:
+            raise InputError(f"--residue: residue of '{n}' must be zero or more ppm, got {ppm}")
+        key, disp, cas = _resolve_substance(cat, n, "--residue")
+        if not cas:
+            raise InputError(f"--residue: '{n}' has no CAS number; residue rules are looked up by CAS")
+        given[cas] = (disp, cas, float(ppm))
+    for cas, (disp, _, ppm) in given.items():
+        rows = [r for r in limits(cat, cas=cas, jurisdiction=jur, category=category, use="extraction")]
+        ref = [r for r in limits(cat, cas=cas, jurisdiction="ICH") if r.status in ("class 1", "class 2", "class 3")]
+        if not rows:
+            listed = (jur, "extraction") in POSITIVE_LISTS
+            out.append(ResidueCheck(
+                disp, cas, ppm, POSITIVE_LISTS.get((jur, "extraction"), "no rule"), jur, "status",
+                "not listed" if listed else "no data", None, None, "", False if listed else None, None,
+                "not permitted" if listed else "no data", False, "checked" if listed else "from memory", (),
+                (f"{disp} is not a permitted extraction solvent in the {jur} (not in the bundled positive list; verify)"
+                 if listed else f"no {jur} residue rule for {disp} in the bundled table: not a permission"),
+            ))
+        for r in rows + ref:
+            reference = r.jurisdiction == "ICH"
+            members = [cas]
+            if r.group:
+                members = [c for c in given if any(x.group == r.group for x in limits(cat, cas=c, jurisdiction=r.jurisdiction))]
+                if members[0] != cas:  # report a group once, at its first member
+                    continue
+            total = sum(given[c][2] for c in members)
+            if r.limit is None:
+                ok = r.status != "not permitted"
+                out.append(ResidueCheck(disp, cas, ppm, r.rule, r.jurisdiction, r.applies_to, r.condition, None, None, "",
+                                        ok, None, r.status, reference, r.confidence, r.source,
+                                        r.note or ("good manufacturing practice: technically unavoidable residues only" if ok else "")))
+                continue
+            per = _UNIT_BASIS[r.unit][1]
+            if r.applies_to == "food residue":
+                lvl_mg = total * F
+                tol = r.limit_mg / F if F > 0 else None
+            else:  # residue in the extract itself
+                lvl_mg = total
+                tol = r.limit_mg
+            if r.group and tol is not None:
+                tol = tol - (total - ppm)
+            label = disp if not r.group else " + ".join(given[c][0] for c in members) + f" (group {r.group})"
+            out.append(ResidueCheck(label, cas, ppm, r.rule, r.jurisdiction, r.applies_to, r.condition, lvl_mg / per,
+                                    r.limit, r.unit, lvl_mg <= r.limit_mg * (1 + 1e-12), tol, r.status, reference,
+                                    r.confidence, r.source, r.note))
+    return out
+
+
+def _claim_checks(cat, claims: Sequence[str], stages, other: Mapping[str, float], names) -> list[ClaimCheck]:
+    out = []
+    first, last = stages[0], stages[-1]
+    for claim in claims:
+        for r in claim_rules(cat, claim):
+            cas = _text(r.get("cas"))
+            key = cas or _text(r.get("substance"))
+            if r["applies_to"] == "flavour":
+                st, w = first, first.mass_fractions.get(key, 0.0)
+            else:
+                st, w = last, last.mass_fractions.get(key, 0.0) + other.get(key, 0.0) * 1e-6
+            mx = _number(r.get("max_percent"))
+            pct = w * 100.0
+            present = w > 0
+            if mx is None:
+                ok = None if present else True
+            else:
+                ok = pct <= mx * (1 + 1e-12) and not (mx == 0 and present)
+            out.append(ClaimCheck(
+                claim=_text(r["claim"]), substance=_text(r["substance"]), applies_to=r["applies_to"], stage=st.name,
+                level_percent=pct, max_percent=mx, ok=ok, requirement=_text(r.get("requirement")),
+                source=tuple(s for s in _text(r.get("source")).split(";") if s), note=_text(r.get("note")),
+            ))
+    return out
+
+
+def carrier_dose_check(cat, solvent_or_formula, dose, jurisdiction: str, category: str, chain=None, already=None) -> DoseCheck:
+    """Check a carrier (or a blend, or a whole formula) at a dose, for ``rank`` and ``blend``.
+
+    Parameters
+    ----------
+    cat : Catalog or None
+    solvent_or_formula : Solvent, str, mapping, list or Formula
+        A single carrier (record or name: 100 % of the formula), a blend as
+        ``{name: mass_fraction}`` or ``[(name, mass_fraction), ...]`` with
+        fractions in 0..1 (the rest, if any, is unspecified), or a
+        :class:`~solvsel.formulation.Formula`.
+    dose : str or float
+        Dose of the formula in the first stage: "0.15%", "1500ppm" or a mass
+        fraction (0.0015).
+    jurisdiction : {"EU", "US"}
+    category : str
+        Food category of the food as consumed (see ``solvsel table food_categories``).
+    chain : str, optional
+        Dilution chain (syntax in :mod:`solvsel.formulation`); the dose fills
+        its first step.
+
+    Returns
+    -------
+    DoseCheck
+        ``.ok`` (every limit kept), ``.complete`` (no substance without data),
+        ``.max_dose`` (in the unit of the dose, e.g. a mass fraction) and
+        ``.binding`` (the limit that sets it), ``.checks`` (every limit with its
+        level), ``.cautions``.
+
+    Notes
+    -----
+    How ``rank`` and ``blend`` use it: for each candidate, call
+    ``carrier_dose_check(cat, candidate, args.dose, args.jurisdiction,
+    args.category)``; drop (or flag, with ``--keep-over``) a candidate whose
+    ``ok`` is false, show ``binding.rule`` and ``max_dose`` beside it, and flag
+    one whose ``complete`` is false ("no data": never a permission).  A
+    candidate that is a user's or library liquid without CAS gets ``no_data``.
+
+    Examples
+    --------
+    A flavour that is 100 % propylene glycol in an EU beverage: the carrier
+    group limit of 1 000 mg/L (Reg. (EC) No 1333/2008 Annex III Part 4) caps
+    the dose at 1000 / (10^6 x 1.04) = 0.096 % for a drink of density 1.04.
+
+    >>> chk = carrier_dose_check(None, "propylene glycol", "0.05%", "EU", "flavoured drinks", chain="drink d=1.04")
+    >>> round(chk.max_dose * 100, 4), chk.binding.unit
+    (0.0962, 'mg/L')
+    """
+    from .formulation import Formula, formula_from_amounts
+
+    cat = _catalog(cat)
+    if isinstance(solvent_or_formula, Formula):
+        formula = solvent_or_formula
+    elif isinstance(solvent_or_formula, Mapping):
+        formula = formula_from_amounts(cat, [(n, 100.0 * w) for n, w in solvent_or_formula.items()], name="blend")
+    elif isinstance(solvent_or_formula, (list, tuple)):
+        formula = formula_from_amounts(cat, [(n, 100.0 * w) for n, w in solvent_or_formula], name="blend")
+    else:
+        name = solvent_or_formula if isinstance(solvent_or_formula, str) else _get(solvent_or_formula, "name")
+        formula = formula_from_amounts(cat, [(name, 100.0)], name=str(name))
+    return check_dose(cat, formula, chain=chain, jurisdiction=jurisdiction, category=category, dose=dose, already=already)
