@@ -793,7 +793,7 @@ def optimise_blends(
     rejects=(),
     sort: str | None = None,
     one_phase_only: bool = True,
-    min_fraction: float = 0.02,
+    min_fraction: float = 0.05,
     top: int = 10,
     pareto_pool: int | None = None,
     pool=None,

@@ -48,8 +48,8 @@ def register(sub):
     g.add_argument("--max-cost", type=int, metavar="CLASS", help="dearest cost class allowed (1 cheap .. 5 dear)")
     g.add_argument("--temp", type=float, default=25.0, metavar="C",
                    help="temperature in C; the liquids' HSP are shifted to it (default 25)")
-    g.add_argument("--min-fraction", type=float, default=0.02, metavar="F",
-                   help="smallest volume fraction that counts as a component (default 0.02); blends with less "
+    g.add_argument("--min-fraction", type=float, default=0.05, metavar="F",
+                   help="smallest volume fraction that counts as a component (default 0.05); blends with less "
                    "of a liquid are the same as a smaller blend")
     d = p.add_argument_group("dose limits (flavour carriers)")
     d.add_argument("--dose", metavar="DOSE",
@@ -138,7 +138,19 @@ def search(args, cat):
 
 
 def _short_hazard(b) -> str:
-    return {0: "none", 1: "low"}.get(b.hazard_rank, b.hazard.replace("flammable liquid, GHS ", "").replace("category ", "cat "))
+    import re
+
+    h = b.hazard
+    m = re.search(r"category (\d)", h)
+    if m:
+        return f"cat {m.group(1)}"
+    if h.startswith("not flammable"):
+        return "no"
+    if h.startswith("gas under pressure"):
+        return "no (gas)"
+    if h.startswith("flammable gas"):
+        return "gas, cat 1"
+    return "yes, cat ?"
 
 
 def _phase_text(b) -> str:
