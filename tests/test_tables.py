@@ -284,3 +284,18 @@ def test_total_parameter_against_hildebrand(pure):
         else:
             note = "(Hvap is an estimate in thermo: named exception, not asserted)" if r[4] else ""
         print("  ", r, note)
+
+
+def test_every_table_has_a_source_column_filled_on_every_row(cat):
+    """Every row that holds a number carries at least one source id (issue 2: a source on every row)."""
+    from solvsel.catalog import _load_schema
+
+    schema = _load_schema(TABLES_DIR)
+    for name in cat.table_names:
+        cols = [s.column for s in schema[name] if s.type == "sources"]
+        nums = [s.column for s in schema[name] if s.type in ("number", "integer")]
+        assert cols, f"table {name} has no source column"
+        df = cat.table(name)
+        has_value = df[nums].notna().any(axis=1) if nums else df.index == df.index
+        empty = df[(df[cols] == "").all(axis=1) & has_value]
+        assert empty.empty, f"{name}: rows without any source: {list(empty.index + 2)}"
