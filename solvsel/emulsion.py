@@ -58,6 +58,12 @@ __all__ = [
     "RipeningCheck",
     "ripening_check",
     "OilComponent",
+    "check_agent",
+    "RIPENING_INHIBITOR_THRESHOLDS",
+    "sucrose_table",
+    "agent_limits",
+    "EmulsionDesign",
+    "design_beverage_emulsion",
 ]
 
 #: Standard gravity [m/s2].
@@ -538,7 +544,7 @@ def weighting_options(
 
     >>> opts = weighting_options(0.845, 1.045, 200, [("ester gum", 1.08, 100), ("SAIB", 1.146, 300)])
     >>> [(o.agents, o.legal) for o in opts]
-    [(('SAIB',), True)]
+    [(('SAIB',), True), (('ester gum',), False)]
     """
     ro = _pos(oil_density, "oil_density", "g/cm3")
     rt = _pos(beverage_density, "beverage_density", "g/cm3")
@@ -560,7 +566,8 @@ def weighting_options(
         out.append(WeightingOption((n,), (x,), (level,), (lim,), rt, True, legal, max_oil, msg))
     singles_legal = [o for o in out if o.legal]
     if singles_legal:
-        return sorted(singles_legal, key=lambda o: o.levels_ppm[0] / o.limits_ppm[0])
+        over = [o for o in out if not o.legal]
+        return sorted(singles_legal, key=lambda o: o.levels_ppm[0] / o.limits_ppm[0]) + over
     pairs: list[WeightingOption] = []
     for (n1, d1, l1), (n2, d2, l2) in itertools.combinations(usable, 2):
         a = {n1: 1.0 / ro - 1.0 / d1, n2: 1.0 / ro - 1.0 / d2}
@@ -665,3 +672,215 @@ def ripening_check(components: Sequence[OilComponent], nano: bool = False) -> Ri
     if not warn:
         return RipeningCheck(False, prone, inhib, reason + f"; the inhibitor share ({inhib:.0%}) is at or above the published thresholds", "")
     return RipeningCheck(True, prone, inhib, reason, remedy)
+
+
+# ----------------------------------------------------------------------------- catalog edge
+
+
+def sucrose_table(cat) -> tuple[np.ndarray, np.ndarray]:
+    """The bundled sucrose density table (Brix [%], density at 20 C [g/cm3]), Brix ascending."""
+    df = cat.table("sucrose_density").sort_values("sucrose_wt_pct")
+    return df["sucrose_wt_pct"].to_numpy(float), df["density_20C_g_cm3"].to_numpy(float)
+
+
+def agent_limits(cat, agent: str, cas: str, jurisdiction: str, category: str) -> list[AgentLimit]:
+    """Weighting-agent rules in force for ``agent`` from :func:`solvsel.compliance.limits`."""
+    from .compliance import limits
+
+    rows = limits(cat, cas=cas or None, substance=None if cas else agent, jurisdiction=jurisdiction,
+                  category=category, use="weighting")
+    return [AgentLimit(agent, r.jurisdiction, r.rule, r.limit_mg, r.basis, r.status, r.flagged, r.note) for r in rows]
+
+
+def _component(cat, name: str, fraction: float, densities: Mapping[str, float]) -> OilComponent:
+    from .hlb import _oil_row
+
+    table, row = _oil_row(cat, name)
+    key = row["name"]
+    dens = None
+    for k in (name.strip().lower(), key.lower()):
+        if k in densities:
+            dens = float(densities[k])
+    if dens is None:
+        dens = _num(row.get("density_g_cm3"))
+    if dens is None:
+        raise MissingDataError(f"no density on record for '{key}': give it, e.g. --oil-density '{key}=0.85'")
+    return OilComponent(key, fraction, dens, str(row.get("ripening") or "unknown"), _num(row.get("water_solubility_mg_L")),
+                        str(row.get("cas") or ""), table == "weighting_agents")
+
+
+def _num(x) -> float | None:
+    try:
+        x = float(x)
+    except (TypeError, ValueError):
+        return None
+    return None if math.isnan(x) else x
+
+
+@dataclass(frozen=True)
+class EmulsionDesign:
+    """Everything :func:`design_beverage_emulsion` found, JSON-ready through ``to_dict``."""
+
+    beverage_density: float
+    beverage_density_basis: str
+    oil_phase: tuple[OilComponent, ...]
+    oil_phase_density: float
+    density_difference: float
+    oil_in_concentrate: float
+    dilution: float | None
+    oil_in_drink_ppm: float | None
+    agent_level_ppm: float | None
+    agent_limit_ppm: float | None
+    agents: tuple[AgentCheck, ...]
+    droplet_diameter_um: float | None
+    viscosity_mPa_s: float
+    creaming_mm_per_day: float | None
+    height_mm: float
+    shelf_days: float
+    time_to_cream_days: float | None
+    max_droplet_um: float
+    distribution: DistributionCreaming | None
+    weighting: dict
+    weighting_excluded: dict
+    ripening: RipeningCheck
+    jurisdictions: tuple[str, ...]
+    category: str
+    ok: bool
+    refusals: tuple[str, ...]
+    cautions: tuple[str, ...]
+
+    def to_dict(self) -> dict:
+        d = {f: getattr(self, f) for f in self.__dataclass_fields__}
+        d["oil_phase"] = [c.to_dict() for c in self.oil_phase]
+        d["agents"] = [a.to_dict() for a in self.agents]
+        d["distribution"] = self.distribution.to_dict() if self.distribution else None
+        d["weighting"] = {j: [o.to_dict() for o in opts] for j, opts in self.weighting.items()}
+        d["ripening"] = self.ripening.to_dict()
+        d["refusals"] = list(self.refusals)
+        d["cautions"] = list(self.cautions)
+        d["jurisdictions"] = list(self.jurisdictions)
+        return d
+
+
+def design_beverage_emulsion(
+    cat,
+    oil: Sequence[tuple[str, float]],
+    brix: float | None = None,
+    density: float | None = None,
+    dilution: float | None = None,
+    oil_in_concentrate: float = 0.10,
+    droplet_um: float | None = None,
+    sizes: Sequence[tuple[float, float]] | None = None,
+    viscosity_mpa_s: float = WATER_VISCOSITY_20C,
+    height_mm: float = 100.0,
+    shelf_days: float = 180.0,
+    jurisdictions: Sequence[str] = ("US", "EU"),
+    category: str = "flavoured drinks",
+    oil_densities: Mapping[str, float] | None = None,
+    nano: bool = False,
+) -> EmulsionDesign:
+    """Density match, legal check of the weighting agents, creaming and ripening of a beverage emulsion.
+
+    ``oil`` names the oil phase (oils and weighting agents, amounts as
+    fractions or percent); the drink's density comes from ``brix`` (the
+    bundled sucrose table, 20 C) or is given as ``density``; ``dilution`` is
+    the parts of finished drink made from one part of concentrate (mass), and
+    ``oil_in_concentrate`` the oil phase's mass fraction of the concentrate.
+    Over-limit agents are data (``ok`` False, ``refusals``), not exceptions.
+    """
+    from .hlb import normalize_fractions
+
+    if (brix is None) == (density is None):
+        raise InputError("give the drink's sugar content (--brix) or its density (--density), one of the two")
+    if brix is not None:
+        bx, by = sucrose_table(cat)
+        rho_b = sucrose_solution_density(brix, bx, by)
+        basis = f"sucrose solution of {float(brix):g} degrees Brix at 20 C (bundled table, interpolated)"
+    else:
+        rho_b = _pos(density, "density", "g/cm3")
+        if not (0.95 <= rho_b <= 1.4):
+            raise OutOfRangeError(f"density: {density!r} g/cm3 is not the density of a drink (expected 0.95-1.4)")
+        basis = "given"
+    if not (0.0 < float(oil_in_concentrate) <= 1.0):
+        raise OutOfRangeError(f"oil phase in the concentrate: expected a mass fraction above 0 and up to 1, got {oil_in_concentrate!r}")
+    dens_over = {k.strip().lower(): float(v) for k, v in (oil_densities or {}).items()}
+    w = normalize_fractions([a for _, a in oil], what="--oil")
+    comps = tuple(_component(cat, n, float(wi), dens_over) for (n, _), wi in zip(oil, w))
+    names = [c.name for c in comps]
+    if len(set(names)) != len(names):
+        raise InputError(f"--oil names the same ingredient twice: {', '.join(names)}")
+    rho_o = oil_phase_density([c.mass_fraction for c in comps], [c.density for c in comps])
+    drho = rho_b - rho_o
+    oil_ppm = None
+    if dilution is not None:
+        oil_ppm = agent_level_ppm(1.0, float(oil_in_concentrate), dilution)
+    checks, refusals = [], []
+    total_agent = None
+    binding = None
+    for c in comps:
+        if not c.is_agent:
+            continue
+        if oil_ppm is None:
+            refusals.append(f"{c.name}: give --dilution to check its level against the legal maximum")
+            continue
+        level = c.mass_fraction * oil_ppm
+        total_agent = (total_agent or 0.0) + level
+        for j in jurisdictions:
+            chk = check_agent(c.name, c.cas, j, level, rho_b, agent_limits(cat, c.name, c.cas, j, category))
+            checks.append(chk)
+            if not chk.ok:
+                refusals.append(chk.message)
+            if chk.limit_ppm is not None:
+                head = chk.limit_ppm - chk.level_ppm
+                if binding is None or head < binding[0]:
+                    binding = (head, chk.limit_ppm)
+    v = None
+    t_cream = None
+    if droplet_um is not None:
+        v = creaming_mm_per_day(droplet_um, rho_b, rho_o, viscosity_mpa_s)
+        t_cream = time_to_cream_days(height_mm, v)
+    d_max = max_droplet_diameter_um(height_mm, shelf_days, rho_b, rho_o, viscosity_mpa_s)
+    dist = None
+    if sizes:
+        dist = creaming_of_distribution([s for s, _ in sizes], [f for _, f in sizes], rho_b, rho_o, viscosity_mpa_s, height_mm, shelf_days)
+    # weighting options for the flavour part of the oil phase (agents taken out)
+    base = [c for c in comps if not c.is_agent]
+    weighting: dict = {}
+    excluded: dict = {}
+    if base and oil_ppm is not None:
+        wb = np.array([c.mass_fraction for c in base])
+        rho_base = oil_phase_density(wb / wb.sum(), [c.density for c in base])
+        agents_tab = cat.table("weighting_agents").to_dict("records")
+        for j in jurisdictions:
+            cands = []
+            for r in agents_tab:
+                rules = agent_limits(cat, r["name"], str(r.get("cas") or ""), j, category)
+                chk = check_agent(r["name"], str(r.get("cas") or ""), j, 1.0, rho_b, rules)
+                cands.append((r["name"], float(r["density_g_cm3"]), chk.limit_ppm))
+                if chk.limit_ppm is None:
+                    excluded.setdefault(j, []).append(chk.message)
+            weighting[j] = weighting_options(rho_base, rho_b, oil_ppm, cands)
+    ripe = ripening_check(comps, nano=nano)
+    cautions = list(EMULSION_CAUTIONS)
+    if brix is not None:
+        cautions.append("Drink density is that of a pure sucrose solution at 20 C: acids, other sugars, "
+                        "sweeteners and carbonation shift it; measure the finished drink where it matters.")
+    if abs(viscosity_mpa_s - WATER_VISCOSITY_20C) < 1e-12:
+        cautions.append("Creaming uses the viscosity of water at 20 C; a sugared drink is more viscous, "
+                        "so the true rate is lower (give --viscosity for the drink).")
+    if any(chk.message.endswith("verify)") or "verify" in chk.message for chk in checks):
+        cautions.append("Some legal limits on record are not confirmed against the official text: verify them "
+                        "in the regulations in force before relying on the check.")
+    if ripe.warn:
+        cautions.append("Ostwald ripening: " + ripe.reason + ". " + ripe.remedy + ".")
+    return EmulsionDesign(
+        beverage_density=rho_b, beverage_density_basis=basis, oil_phase=comps, oil_phase_density=rho_o,
+        density_difference=drho, oil_in_concentrate=float(oil_in_concentrate),
+        dilution=None if dilution is None else float(dilution), oil_in_drink_ppm=oil_ppm,
+        agent_level_ppm=total_agent, agent_limit_ppm=None if binding is None else binding[1], agents=tuple(checks),
+        droplet_diameter_um=None if droplet_um is None else float(droplet_um), viscosity_mPa_s=float(viscosity_mpa_s),
+        creaming_mm_per_day=v, height_mm=float(height_mm), shelf_days=float(shelf_days), time_to_cream_days=t_cream,
+        max_droplet_um=d_max, distribution=dist, weighting=weighting, weighting_excluded=excluded, ripening=ripe,
+        jurisdictions=tuple(jurisdictions), category=category, ok=not any(not c.ok for c in checks),
+        refusals=tuple(refusals), cautions=tuple(cautions),
+    )

@@ -70,6 +70,9 @@ __all__ = [
     "bench_series",
     "fit_required_hlb",
     "emulsifier_from_row",
+    "pool_from_catalog",
+    "all_emulsifiers",
+    "oil_phase_required_hlb",
 ]
 
 #: Cautions every HLB result carries (common practice; see the module docstring).
@@ -761,7 +764,7 @@ def pair_fractions(hlb_a: float, hlb_b: float, target: float) -> tuple[float, fl
     return wa, 1.0 - wa
 
 
-_TAILS = ("laur", "myrist", "palmit", "stear", "ole", "ricinole")
+_TAILS = ("ricinole", "laur", "myrist", "palmit", "stear", "ole")  # longest match first
 
 
 def _family(e: Emulsifier) -> str | None:
@@ -797,18 +800,33 @@ class EmulsifierSystem:
 
 
 def _triple_fractions(h: np.ndarray, target: float) -> np.ndarray | None:
-    """Most balanced fractions (max of the smallest) of three emulsifiers for ``target``, or None."""
-    from scipy.optimize import linprog
+    """Most balanced fractions (largest smallest fraction) of three emulsifiers for ``target``, or None.
 
-    # variables w1, w2, w3, t ; maximise t subject to sum w = 1, h.w = target, w_i >= t
-    c = np.array([0, 0, 0, -1.0])
-    a_eq = np.array([[1, 1, 1, 0], [h[0], h[1], h[2], 0]], dtype=float)
-    b_eq = np.array([1.0, target])
-    a_ub = np.array([[-1, 0, 0, 1], [0, -1, 0, 1], [0, 0, -1, 1]], dtype=float)
-    res = linprog(c, A_ub=a_ub, b_ub=np.zeros(3), A_eq=a_eq, b_eq=b_eq, bounds=[(0, 1)] * 3 + [(0, 1)], method="highs")
-    if not res.success or res.x[3] <= 1e-6:
+    The blends of three that hit the target form a segment of the simplex
+    whose ends have one fraction zero; the smallest fraction is concave along
+    it, so the best point is an end or a crossing of two fractions.
+    """
+    ends = []
+    for i in range(3):
+        j, k = [m for m in range(3) if m != i]
+        if min(h[j], h[k]) - 1e-12 <= target <= max(h[j], h[k]) + 1e-12 and h[j] != h[k]:
+            w = np.zeros(3)
+            w[j] = (target - h[k]) / (h[j] - h[k])
+            w[k] = 1.0 - w[j]
+            ends.append(np.clip(w, 0.0, 1.0))
+    if len(ends) < 2:
         return None
-    return res.x[:3]
+    p, q = ends[0], max(ends[1:], key=lambda e: float(np.abs(e - ends[0]).sum()))
+    cands = [0.0, 1.0]
+    d = q - p
+    for i, j in itertools.combinations(range(3), 2):
+        den = d[i] - d[j]
+        if abs(den) > 1e-15:
+            s = (p[j] - p[i]) / den
+            if 0.0 <= s <= 1.0:
+                cands.append(s)
+    best = max((p + s * d for s in cands), key=lambda w: float(w.min()))
+    return best if best.min() > 1e-6 else None
 
 
 def emulsifier_systems(pool: Sequence[Emulsifier], target: float, size: int = 2, min_fraction: float = 0.0) -> list[EmulsifierSystem]:
@@ -1066,3 +1084,73 @@ def fit_required_hlb(hlbs: Sequence[float], scores: Sequence[float], better: str
     if interval is None:
         msg += " (no interval: as many parameters as blends)"
     return RequiredHLBFit(rhlb, interval, best, True, msg, int(h.size))
+
+
+# ----------------------------------------------------------------------------- catalog edge
+
+
+def pool_from_catalog(cat, names: Sequence[str]) -> list[Emulsifier]:
+    """The emulsifiers named (forgiving lookup in ``tables/emulsifiers.csv``), in the order given."""
+    out = []
+    seen = set()
+    for n in names:
+        row = cat.find("emulsifiers", n)
+        if row["name"] in seen:
+            raise InputError(f"--emulsifiers: '{n}' names '{row['name']}' a second time")
+        seen.add(row["name"])
+        out.append(emulsifier_from_row(row))
+    return out
+
+
+def all_emulsifiers(cat) -> list[Emulsifier]:
+    """The default pool: every nonionic or zwitterionic emulsifier of the table with an HLB.
+
+    Ionic emulsifiers are on Davies' scale (up to 40) and do not mix
+    linearly with nonionics on Griffin's, and biopolymers have no HLB: name
+    them explicitly to use them.
+    """
+    return [e for e in (emulsifier_from_row(r) for r in cat.table("emulsifiers").to_dict("records"))
+            if e.ionic_type in ("nonionic", "zwitterionic") and e.hlb is not None]
+
+
+def _oil_row(cat, name: str) -> tuple[str, dict]:
+    """(table, row) of an oil-phase ingredient: oils first, then weighting agents."""
+    from .errors import UnknownNameError
+
+    try:
+        return "oils", cat.find("oils", name)
+    except UnknownNameError as first:
+        try:
+            return "weighting_agents", cat.find("weighting_agents", name)
+        except UnknownNameError:
+            raise UnknownNameError(name, "oil-phase ingredient (tables/oils.csv or tables/weighting_agents.csv)",
+                                   first.suggestions) from None
+
+
+def oil_phase_required_hlb(cat, amounts: Sequence[tuple[str, float]], overrides: Mapping[str, float] | None = None) -> OilPhaseHLB:
+    """Required HLB of an oil phase named as (name, amount) pairs, from the tables.
+
+    Each part's value comes from, in order: ``overrides`` (the user's own), the
+    oils table, or an estimate from the HSP of the liquid named in its
+    ``hsp_as`` column (Vaughan & Rice [4]_).  A part with none of these raises
+    :class:`MissingDataError` naming it.
+    """
+    overrides = {k.strip().lower(): float(v) for k, v in (overrides or {}).items()}
+    comps, basis = [], []
+    for name, amount in amounts:
+        table, row = _oil_row(cat, name)
+        key = row["name"]
+        r = None
+        b = ""
+        for k in (name.strip().lower(), key.lower()):
+            if k in overrides:
+                r, b = overrides[k], "given"
+        if r is None and table == "oils" and _num(row.get("rhlb_ow")) is not None:
+            r, b = float(row["rhlb_ow"]), f"tabulated ({row.get('rhlb_source')})"
+        if r is None and table == "oils" and str(row.get("hsp_as") or ""):
+            s = cat.solvent(row["hsp_as"], library=False)
+            dt = float(np.sqrt(np.sum(np.asarray(s.hsp, dtype=float) ** 2)))
+            r, b = required_hlb_vaughan_rice(dt), f"estimated (Vaughan & Rice 1990 from the HSP of {s.name})"
+        comps.append((key, amount, r))
+        basis.append(b or "none")
+    return required_hlb(comps, basis)

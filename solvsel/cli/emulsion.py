@@ -1,0 +1,127 @@
+"""``solvsel emulsion``: weighting, density match, creaming and legal checks of a beverage emulsion."""
+
+from __future__ import annotations
+
+import sys
+
+from ._common import add_json_flag, emit_json, get_catalog, parse_amounts, parse_names, parse_percent, print_cautions, print_table
+
+
+def register(sub):
+    p = sub.add_parser(
+        "emulsion",
+        help="weighting, density match, creaming and legal checks for a beverage emulsion",
+        description=(
+            "For an oil phase (flavour oils and weighting agents) in a drink of given sugar content or density: "
+            "the oil phase's density, the weighting agent that would match the drink and whether it stays under "
+            "the legal maximum in the finished drink after the concentrate's dilution (and which pair of agents "
+            "fits when one alone would not), the Stokes creaming rate for a droplet size or a size distribution, "
+            "the largest droplet for a shelf life, and a warning for oils prone to Ostwald ripening. "
+            "Exits with 2 when a weighting agent in the oil phase is over a legal maximum."
+        ),
+    )
+    p.add_argument("--oil", required=True, metavar="NAME=AMOUNT,...",
+                   help='oil phase, e.g. "d-limonene=70,sucrose acetate isobutyrate=30" (percent or fractions)')
+    d = p.add_mutually_exclusive_group(required=True)
+    d.add_argument("--brix", type=float, metavar="BX", help="sugar content of the finished drink, degrees Brix (sucrose)")
+    d.add_argument("--density", type=float, metavar="G_CM3", help="density of the finished drink in g/cm3")
+    p.add_argument("--dilution", type=float, metavar="D",
+                   help="parts of finished drink made from one part of concentrate (by mass), e.g. 500")
+    p.add_argument("--oil-phase", default="10%", metavar="PCT",
+                   help="oil phase in the emulsion concentrate, e.g. 12%% or 0.12 (default 10%%)")
+    p.add_argument("--droplet-um", type=float, metavar="UM", help="droplet diameter in um (e.g. the mean size)")
+    p.add_argument("--sizes", metavar="UM=VOL,...",
+                   help='droplet size distribution: diameter in um = volume share, e.g. "0.3=85,0.8=10,1.5=5"')
+    p.add_argument("--viscosity", type=float, default=None, metavar="MPA_S",
+                   help="viscosity of the drink in mPa s (default: water at 20 C, 1.002)")
+    p.add_argument("--height-mm", type=float, default=100.0, metavar="MM",
+                   help="liquid height the droplets must not cross in the shelf life (default 100 mm)")
+    p.add_argument("--shelf-days", type=float, default=180.0, metavar="DAYS", help="target shelf life in days (default 180)")
+    p.add_argument("--jurisdiction", default="US,EU", metavar="J,...", help="jurisdictions to check: US, EU (default both)")
+    p.add_argument("--category", default="flavoured drinks", metavar="FOOD",
+                   help="food category of the finished drink (solvsel table food_categories; default flavoured drinks)")
+    p.add_argument("--oil-density", metavar="NAME=G_CM3,...", help="densities for oils with none on record")
+    p.add_argument("--nano", action="store_true", help="the emulsion is a nanoemulsion (stricter ripening warning)")
+    add_json_flag(p)
+    return p
+
+
+def run(args) -> int:
+    from ..emulsion import WATER_VISCOSITY_20C, design_beverage_emulsion
+    from ..errors import InputError
+
+    cat = get_catalog(args)
+    jur = [j.upper() for j in parse_names(args.jurisdiction, "--jurisdiction")]
+    bad = [j for j in jur if j not in ("US", "EU")]
+    if bad:
+        raise InputError(f"--jurisdiction: expected US and/or EU, got '{bad[0]}'")
+    sizes = None
+    if args.sizes:
+        sizes = []
+        for name, share in parse_amounts(args.sizes, "--sizes"):
+            try:
+                sizes.append((float(name), share))
+            except ValueError:
+                raise InputError(f"--sizes: '{name}' is not a diameter in um") from None
+    dens = dict(parse_amounts(args.oil_density, "--oil-density")) if args.oil_density else None
+    res = design_beverage_emulsion(
+        cat, parse_amounts(args.oil, "--oil"), brix=args.brix, density=args.density, dilution=args.dilution,
+        oil_in_concentrate=parse_percent(args.oil_phase, "--oil-phase"), droplet_um=args.droplet_um, sizes=sizes,
+        viscosity_mpa_s=WATER_VISCOSITY_20C if args.viscosity is None else args.viscosity, height_mm=args.height_mm,
+        shelf_days=args.shelf_days, jurisdictions=tuple(jur), category=args.category, oil_densities=dens, nano=args.nano,
+    )
+    if args.json:
+        emit_json(res)
+    else:
+        _print(res)
+    if not res.ok:
+        for r in res.refusals:
+            print(f"solvsel: over the legal maximum: {r}", file=sys.stderr)
+        return 2
+    return 0
+
+
+def _print(r) -> None:
+    print(f"Drink density: {r.beverage_density:.4f} g/cm3 ({r.beverage_density_basis})")
+    print_table([c.to_dict() for c in r.oil_phase],
+                [("name", "oil phase"), ("mass_fraction", "fraction", ".3f"), ("density", "g/cm3", ".3f"),
+                 ("ripening", "ripening")])
+    print(f"Oil phase density: {r.oil_phase_density:.4f} g/cm3; difference to the drink {r.density_difference:+.4f} g/cm3")
+    if r.oil_in_drink_ppm is not None:
+        print(f"Oil phase in the drink: {r.oil_in_drink_ppm:.4g} mg/kg ({r.oil_in_concentrate:.1%} of the concentrate, "
+              f"1 part in {r.dilution:g})")
+    else:
+        print("Give --dilution to compute levels in the drink and check legal limits.")
+    if r.agents:
+        print("\nWeighting agents in the oil phase, in the finished drink:")
+        print_table([a.to_dict() | {"verdict": "ok" if a.ok else "OVER"} for a in r.agents],
+                    [("agent", "agent"), ("jurisdiction", "where"), ("level_ppm", "mg/kg", ".4g"),
+                     ("limit_text", "legal maximum"), ("rule", "rule"), ("verdict", "")])
+    print()
+    if r.creaming_mm_per_day is not None:
+        word = "cream" if r.creaming_mm_per_day >= 0 else "settle"
+        print(f"Droplets of {r.droplet_diameter_um:g} um {word} at {abs(r.creaming_mm_per_day):.3g} mm/day "
+              f"(viscosity {r.viscosity_mPa_s:g} mPa s): {r.time_to_cream_days:.4g} days to cross {r.height_mm:g} mm")
+    print(f"Largest droplet that crosses less than {r.height_mm:g} mm in {r.shelf_days:g} days: {r.max_droplet_um:.3g} um")
+    if r.distribution is not None:
+        dd = r.distribution
+        print(f"Size distribution: volume-weighted mean rate {dd.mean_mm_per_day:.3g} mm/day; "
+              f"{dd.fraction_creamed:.1%} of the oil is in droplets that cross {dd.height_mm:g} mm within {dd.shelf_days:g} days")
+    for j, opts in r.weighting.items():
+        if not opts:
+            continue
+        print(f"\nWeighting the flavour oil to the drink's density ({j}):")
+        rows = [{"agents": " + ".join(o.agents) or "none needed",
+                 "pct": " + ".join(f"{x:.1%}" for x in o.fractions),
+                 "ppm": " + ".join(f"{x:.4g}" for x in o.levels_ppm),
+                 "lim": " / ".join("-" if x is None else f"{x:.4g}" for x in o.limits_ppm),
+                 "rho": o.density,
+                 "ok": ("matched" if o.matched else "partial") + ("" if o.legal else ", OVER")} for o in opts]
+        print_table(rows, [("agents", "agent(s)"), ("pct", "in oil phase"), ("ppm", "mg/kg in drink"),
+                           ("lim", "limit mg/kg"), ("rho", "oil g/cm3", ".4f"), ("ok", "")])
+        for msg in r.weighting_excluded.get(j, []):
+            print(f"  left out: {msg}")
+    print(f"\nOstwald ripening: {'WARNING' if r.ripening.warn else 'no warning'}: {r.ripening.reason}")
+    if r.ripening.remedy:
+        print(f"  remedy: {r.ripening.remedy}")
+    print_cautions(r.cautions)
