@@ -231,6 +231,7 @@ def _limit_from_row(r: Mapping[str, Any]) -> Limit:
 
 _ROWS_CACHE: dict[int, tuple[Limit, ...]] = {}
 _CATS_CACHE: dict[int, dict] = {}
+_RESOLVED: dict[tuple, "FoodCategory"] = {}
 
 
 def _all_limits(cat) -> tuple[Limit, ...]:
@@ -291,6 +292,9 @@ def resolve_category(cat, name: str) -> FoodCategory:
     An unknown name raises :class:`UnknownNameError` listing the known
     categories, closest first.
     """
+    ck = (id(_catalog(cat)), str(name))
+    if ck in _RESOLVED:
+        return _RESOLVED[ck]
     cats = food_categories(cat)
     if name is None or not str(name).strip():
         raise InputError("--category: expected a food category, got nothing; known: " + ", ".join(cats))
@@ -301,7 +305,8 @@ def resolve_category(cat, name: str) -> FoodCategory:
             if k and _norm(k) not in index:
                 index[_norm(k)] = fc.name
     if key in index:
-        return cats[index[key]]
+        _RESOLVED[ck] = cats[index[key]]
+        return _RESOLVED[ck]
     names = list(cats)
     ranked = sorted(names, key=lambda n: -difflib.SequenceMatcher(None, key, _norm(n)).ratio())
     raise UnknownNameError(str(name), "food category", tuple(ranked))
@@ -385,15 +390,11 @@ def limits(
     jur = _check_jurisdiction(jurisdiction)
     rows = [r for r in _all_limits(cat) if include_revoked or r.in_force]
     if cas is None and substance is not None:
+        # the rule's own name, or any name / synonym the other tables know for its CAS
         key = _norm(substance)
-        named = [r for r in rows if _norm(r.substance) == key]
-        if named:
-            rows = named
-        else:
-            cas = _cas_of(cat, substance)
-            if cas is None:
-                return []
-    if cas is not None:
+        known_cas = _cas_of(cat, substance)
+        rows = [r for r in rows if _norm(r.substance) == key or (known_cas and r.cas == known_cas)]
+    elif cas is not None:
         rows = [r for r in rows if r.cas == cas.strip()]
     if jur is not None:
         rows = [r for r in rows if r.jurisdiction == jur]
@@ -1419,5 +1420,5 @@ def carrier_dose_check(cat, solvent_or_formula, dose, jurisdiction: str, categor
         formula = formula_from_amounts(cat, [(n, 100.0 * w) for n, w in solvent_or_formula], name="blend")
     else:
         name = solvent_or_formula if isinstance(solvent_or_formula, str) else _get(solvent_or_formula, "name")
-        formula = formula_from_amounts(cat, [(name, 100.0)], name=str(name))
+        formula = formula_from_amounts(cat, [(solvent_or_formula, 100.0)], name=str(name))
     return check_dose(cat, formula, chain=chain, jurisdiction=jurisdiction, category=category, dose=dose, already=already)

@@ -168,12 +168,23 @@ def _ethanol_strength(name: str) -> float | None:
 
 
 def _component(cat, name, amount, given_cas=None, given_density=None, what="--formula") -> tuple:
-    try:
-        cname, cas, dens, origin, record = _lookup(cat, name)
-    except UnknownNameError:
-        if not given_cas:
-            raise
-        cname, cas, dens, origin, record = name, given_cas, None, "given", None
+    if not isinstance(name, str):
+        # a catalog record (e.g. a user's or library liquid): take its own identity and density
+        rec = name
+        cname, cas, dens = str(getattr(rec, "name", "")), str(getattr(rec, "cas", "") or ""), getattr(rec, "density_g_cm3", None)
+        origin = "solvents" if hasattr(rec, "roles") else "record"
+        if getattr(rec, "origin", "bundled") != "bundled":
+            origin += f" ({rec.origin})"
+        if not cname:
+            raise InputError(f"{what}: a component record without a name")
+        record = rec
+    else:
+        try:
+            cname, cas, dens, origin, record = _lookup(cat, name)
+        except UnknownNameError:
+            if not given_cas:
+                raise
+            cname, cas, dens, origin, record = name, given_cas, None, "given", None
     if given_cas and cas and given_cas != cas:
         raise InputError(f"{what}: '{name}' has CAS {cas} in the tables, but {given_cas} was given")
     cas = cas or (given_cas or "")
@@ -206,6 +217,9 @@ def formula_from_amounts(
     what: str = "--formula",
 ) -> Formula:
     """A formula from ``[(name, percent), ...]`` by mass (default) or by volume.
+
+    A name may also be a catalog record (a :class:`~solvsel.catalog.Solvent`),
+    whose CAS and density are then used as they are.
 
     Percent amounts must not add up to more than 100; below 100 the rest is an
     unspecified component with no limits checked (and a note says so).  By

@@ -221,3 +221,22 @@ def test_food_status_carriers(cat):
     assert cp.food_status(cat, "toluene", use="bench").status == "bench only"
     with pytest.raises(InputError):
         cp.food_status(cat, "ethanol", jurisdiction="ICH")
+
+
+def test_substance_name_finds_rows_under_other_names(cat):
+    # the EU rows say "hexane", ICH says "n-hexane": both are CAS 110-54-3 and both are found by either name
+    by_hexane = {r.jurisdiction for r in cp.limits(cat, substance="hexane")}
+    by_n = {r.jurisdiction for r in cp.limits(cat, substance="n-hexane")}
+    assert by_hexane == by_n == {"EU", "US", "ICH"}
+
+
+def test_table_frozen_counts(cat):
+    """Row counts by jurisdiction and the sum of the numeric limits: an edit to the table must be deliberate."""
+    rows = cp._all_limits(cat)
+    counts = {j: sum(r.jurisdiction == j for r in rows) for j in cp.JURISDICTIONS}
+    assert counts == {"EU": 68, "US": 47, "ICH": 52}
+    assert sum(r.limit for r in rows if r.limit is not None) == pytest.approx(145312.649)
+    # US ester gum 100 ppm and SAIB 300 mg/L (21 CFR 172.735, 172.833); EU E 444 300 / E 445 100 mg/L (1333/2008)
+    agents = {(r.jurisdiction, r.cas): (r.limit, r.unit) for r in rows if r.use == "weighting" and r.status == "limit"}
+    assert agents == {("US", "8050-30-4"): (100, "ppm"), ("US", "126-13-6"): (300, "mg/L"),
+                      ("EU", "126-13-6"): (300, "mg/L"), ("EU", "8050-30-4"): (100, "mg/L")}

@@ -287,3 +287,38 @@ def test_cli_text_and_bad_input(capsys):
     assert main(["dose", "--formula", "propylene glycol=90,ethanol=20", "--dose", "0.1%", "--jurisdiction", "EU"]) == 2
     assert "more than 100 %" in capsys.readouterr().err
     assert main(["dose", "--formula", "propylene glycol=100", "--dose", "0.1%", "--jurisdiction", "EU", "--category", "x"]) == 2
+
+
+def test_records_from_outside_the_tables_are_checked_by_their_own_cas(cat):
+    # a user's or library liquid reaches the dose check as a record: its CAS and density are used as given
+    import dataclasses
+
+    pg = dataclasses.replace(cat.solvent("propylene glycol"), name="my propylene glycol", origin="user: mine.csv")
+    r = cp.carrier_dose_check(cat, pg, "0.25%", "EU", "confectionery")
+    assert r.ok and r.max_dose == pytest.approx(0.003, rel=1e-12)  # Reg. (EC) No 1333/2008 Annex III Part 4
+    blend = cp.carrier_dose_check(cat, [(pg, 0.5), ("triacetin", 0.5)], "0.4%", "EU", "confectionery")
+    assert not blend.ok and blend.binding.level == pytest.approx(4000)
+
+
+from hypothesis import given, settings, strategies as hs
+
+
+@settings(max_examples=25, deadline=None)
+@given(
+    parts=hs.lists(hs.floats(0.5, 10), min_size=4, max_size=4),
+    dose=hs.floats(1e-4, 5e-3),
+    rho=hs.floats(0.99, 1.10),
+)
+def test_group_level_is_the_sum_and_max_dose_meets_the_limit(parts, dose, rho):
+    # mass balance (common practice): the group level is the sum of its members' levels, and it scales with the
+    # dose, so at the reported maximum dose the binding limit is met exactly
+    cat = load_catalog()
+    names = ["propylene glycol", "triacetin", "triethyl citrate", "water"]
+    total = sum(parts)
+    f = fm.formula_from_amounts(cat, [(n, 100 * p / total) for n, p in zip(names, parts)])
+    r = cp.check_dose(cat, f, chain=f"drink d={rho!r}", dose=dose, jurisdiction="EU", category="flavoured drinks")
+    grp = only(r.checks, "Reg. (EC) No 1333/2008 Annex III Part 4")
+    members = sum(p / total for p in parts[:3])
+    assert grp.level == pytest.approx(members * dose * 1e6 * rho, rel=1e-9)
+    at_max = cp.check_dose(cat, f, chain=f"drink d={rho!r}", dose=r.max_dose, jurisdiction="EU", category="flavoured drinks")
+    assert only(at_max.checks, grp.rule).level == pytest.approx(1000, rel=1e-9)
