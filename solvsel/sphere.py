@@ -1,0 +1,1027 @@
+r"""Fit a solute's Hansen sphere from bench solubility results.
+
+A solute (an extract, an oleoresin, a gum, a new active) is shaken with 15-40
+liquids and each result is scored good or bad (or on a graded scale).  This
+module turns those scores into a sphere: a centre (dD, dP, dH) and an
+interaction radius R0 such that good liquids lie inside (RED < 1) and bad ones
+outside.  It says how well the scores are explained, which liquids sit on the
+wrong side, whether the good liquids surround the centre at all, how sure the
+answer is, and which untested liquids would narrow it most.
+
+Method.  Hansen's desirability [1]_ scores each liquid ``A_i = 1`` on the right
+side and ``A_i = exp(-v_i)`` on the wrong side, ``v_i`` its distance from the
+surface [MPa^0.5]; the fit maximises the (weighted) geometric mean of the
+``A_i``.  Taking logarithms, that is minimising the weighted sum of wrong-side
+distances
+
+.. math::
+    V(c, R_0) = \sum_{good} w_i \max(0, R_{a,i} - R_0)
+              + \sum_{bad} w_i \max(0, R_0 - R_{a,i})
+
+For a fixed centre ``V`` is convex and piecewise linear in ``R0`` with breaks
+at the liquids' distances, so the best R0 is found exactly among them (all at
+once, by sorting).  The centre is searched by multi-start local optimisation
+inside physical bounds.  When the scores can be explained perfectly, a whole
+region of spheres fits; the classic choice is the smallest R0, which is biased
+low.  The default rule here takes the sphere with the largest margin between
+good and bad liquids (each liquid's required margin scaled by its grading
+weight), a rule of our own choosing, compared with the classic one in
+``bench/bench_sphere.py``.
+
+Uncertainty.  Reading the desirability as a likelihood (a wrong-side liquid
+costs ``exp(-w_i v_i)``), a profile interval holds every value of a parameter
+for which some sphere has ``V <= V_min + chi2_1(level)/2`` (1.353 at 90 %);
+the level is nominal under that model.
+
+References
+----------
+.. [1] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*, 2nd ed.
+   CRC Press, 2007, ch. 1 (the sphere-fitting desirability function).
+   ISBN 978-0-8493-7248-3.
+.. [2] Vebber, G. C.; Pranke, P.; Pereira, C. N. Calculating Hansen solubility
+   parameters of polymers with genetic algorithms. *J. Appl. Polym. Sci.*
+   131 (2014) 39696. DOI: 10.1002/app.39696.
+.. [3] Pawitan, Y. *In All Likelihood: Statistical Modelling and Inference
+   Using Likelihood*. Oxford University Press, 2001, ch. 2-3 (profile
+   likelihood intervals).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .errors import InputError
+from .hansen import SCALE, as_hsp, ra, scaled
+
+__all__ = [
+    "DEFAULT_BOUNDS",
+    "RULES",
+    "SphereFit",
+    "WrongSide",
+    "SuggestedTest",
+    "fit_sphere",
+    "desirability",
+    "grading_weights",
+    "suggest_tests",
+]
+
+#: Search bounds of the centre [MPa^0.5]: (dD, dP, dH) low/high.  They span
+#: the food and pharmaceutical solutes of the handbook's tables with room to
+#: spare (common practice); the fit flags a centre that ends on a bound.
+DEFAULT_BOUNDS = ((12.0, 25.0), (0.0, 35.0), (0.0, 40.0))
+
+#: Ways to choose one sphere among those that fit equally well.
+RULES = ("margin", "classic")
+
+_MIN_LIQUIDS = 5
+_R0_MAX = 60.0  # [MPa^0.5], far beyond any tabulated sphere
+
+
+# --------------------------------------------------------------------------
+# results
+
+
+@dataclass(frozen=True)
+class WrongSide:
+    """A liquid whose result the fitted sphere does not explain."""
+
+    name: str
+    good: bool
+    red: float
+    weight: float
+    dD: float
+    dP: float
+    dH: float
+
+    def to_dict(self) -> dict:
+        return {
+            "name": self.name,
+            "result": "good" if self.good else "bad",
+            "red": self.red,
+            "weight": self.weight,
+            "dD": self.dD,
+            "dP": self.dP,
+            "dH": self.dH,
+        }
+
+
+@dataclass(frozen=True)
+class SphereFit:
+    """A fitted Hansen sphere with its fit quality and uncertainty.
+
+    Attributes
+    ----------
+    dD, dP, dH : float
+        centre [MPa^0.5]
+    r0 : float
+        interaction radius [MPa^0.5]
+    fit : float
+        Hansen's desirability, the weighted geometric mean of the liquids'
+        scores (1 when every result is explained) [-]
+    explained : float
+        weighted fraction of liquids on the right side [-]
+    wrong_side : tuple of WrongSide
+        liquids not explained, farthest from the surface first
+    interval : dict
+        ``{"dD": (lo, hi), "dP": ..., "dH": ..., "r0": ..., "level", "method"}``
+    open : bool
+        True when the good liquids do not surround the centre (the sphere is
+        bounded by bad liquids on one side only)
+    open_direction : tuple of float or None
+        unit vector (dD, dP, dH) pointing to where no good liquid was tested
+    """
+
+    dD: float
+    dP: float
+    dH: float
+    r0: float
+    fit: float
+    explained: float
+    wrong_side: tuple
+    interval: dict
+    open: bool
+    open_direction: tuple | None
+    open_note: str
+    rule: str
+    separable: bool
+    margin: float
+    objective: float
+    names: tuple
+    good: tuple
+    weights: tuple
+    red: tuple
+    at_bound: tuple
+    success: bool
+    message: str
+    n_evaluations: int = 0
+
+    @property
+    def hsp(self) -> np.ndarray:
+        """Centre as an array (dD, dP, dH) [MPa^0.5]."""
+        return np.array([self.dD, self.dP, self.dH])
+
+    @property
+    def n_liquids(self) -> int:
+        return len(self.names)
+
+    @property
+    def n_good(self) -> int:
+        return int(sum(self.good))
+
+    def to_dict(self) -> dict:
+        iv = {k: (list(v) if isinstance(v, tuple) else v) for k, v in self.interval.items()}
+        return {
+            "dD": self.dD,
+            "dP": self.dP,
+            "dH": self.dH,
+            "r0": self.r0,
+            "fit": self.fit,
+            "explained": self.explained,
+            "wrong_side": [w.to_dict() for w in self.wrong_side],
+            "interval": iv,
+            "open": self.open,
+            "open_direction": list(self.open_direction) if self.open_direction else None,
+            "open_note": self.open_note,
+            "rule": self.rule,
+            "separable": self.separable,
+            "margin": self.margin,
+            "n_liquids": self.n_liquids,
+            "n_good": self.n_good,
+            "at_bound": list(self.at_bound),
+            "liquids": [
+                {"name": n, "result": "good" if g else "bad", "weight": w, "red": r}
+                for n, g, w, r in zip(self.names, self.good, self.weights, self.red)
+            ],
+            "success": self.success,
+            "message": self.message,
+        }
+
+
+@dataclass(frozen=True)
+class SuggestedTest:
+    """An untested liquid proposed for the next bench round (a heuristic)."""
+
+    name: str
+    red: float
+    dD: float
+    dP: float
+    dH: float
+    direction: tuple
+    why: str
+
+    def to_dict(self) -> dict:
+        return {
+            "name": self.name,
+            "red": self.red,
+            "dD": self.dD,
+            "dP": self.dP,
+            "dH": self.dH,
+            "direction": list(self.direction),
+            "why": self.why,
+        }
+
+
+# --------------------------------------------------------------------------
+# inputs
+
+
+def grading_weights(scores, good_at_most: float | None = None, good_at_least: float | None = None):
+    """Classify graded scores and weight each by its distance from the cut-off.
+
+    A score on the good side of the cut-off is good.  The weight of a result is
+    its distance from the midpoint between the cut-off and the next score of
+    the scale (the scale's step is the smallest gap between distinct scores,
+    at most 1), so a 1 on a 1-6 scale cut at 2 weighs 3 times a 2 or a 3.
+    Weights are scaled to a mean of 1.
+
+    Parameters
+    ----------
+    scores : array_like of float
+        one score per liquid [-]
+    good_at_most : float, optional
+        scores at or below this are good (scales where low is best, e.g. 1-6)
+    good_at_least : float, optional
+        scores at or above this are good (scales where high is best, e.g. 0-5)
+
+    Returns
+    -------
+    good : ndarray of bool
+    weights : ndarray of float
+
+    Examples
+    --------
+    The 1 (dissolved) ... 6 (no effect) scale cut at 2 (common practice):
+
+    >>> g, w = grading_weights([1, 2, 3, 6], good_at_most=2)
+    >>> g.tolist(), np.round(w, 3).tolist()   # distances 1.5, .5, .5, 3.5 over their mean 1.5
+    ([True, True, False, False], [1.0, 0.333, 0.333, 2.333])
+    """
+    s = np.asarray(scores, dtype=float)
+    if s.ndim != 1 or s.size == 0:
+        raise InputError("scores: expected one number per liquid")
+    if not np.all(np.isfinite(s)):
+        raise InputError("scores: every score must be a finite number")
+    if (good_at_most is None) == (good_at_least is None):
+        raise InputError(
+            "graded scores need exactly one cut-off: good_at_most (low is best, e.g. 1-6) "
+            "or good_at_least (high is best, e.g. 0-5)"
+        )
+    uniq = np.unique(s)
+    step = float(np.min(np.diff(uniq))) if uniq.size > 1 else 1.0
+    step = min(step, 1.0)
+    if good_at_most is not None:
+        good = s <= good_at_most
+        mid = float(good_at_most) + step / 2
+    else:
+        good = s >= good_at_least
+        mid = float(good_at_least) - step / 2
+    w = np.abs(s - mid)
+    w = np.maximum(w, step / 2)
+    return good, w / w.mean()
+
+
+def _prepare(hsp, good, weights, names, good_at_most, good_at_least):
+    X = as_hsp(hsp, "hsp")
+    if X.ndim != 2:
+        raise InputError(f"hsp: expected one row of dD, dP, dH per liquid, got shape {X.shape}")
+    n = X.shape[0]
+    g_in = np.asarray(good)
+    if g_in.shape != (n,):
+        raise InputError(f"good: expected {n} results (one per liquid), got shape {g_in.shape}")
+    if g_in.dtype == bool:
+        if good_at_most is not None or good_at_least is not None:
+            raise InputError("good_at_most / good_at_least apply to numeric scores, not to good/bad results")
+        g = g_in.astype(bool)
+        w = np.ones(n)
+    else:
+        try:
+            g, w = grading_weights(g_in.astype(float), good_at_most, good_at_least)
+        except (TypeError, ValueError) as exc:
+            if isinstance(exc, InputError):
+                raise
+            raise InputError("good: expected booleans or numeric scores") from None
+    if weights is not None:
+        extra = np.asarray(weights, dtype=float)
+        if extra.shape != (n,) or not np.all(np.isfinite(extra)) or np.any(extra <= 0):
+            raise InputError(f"weights: expected {n} positive numbers (one per liquid)")
+        w = w * extra
+    if names is None:
+        names = tuple(f"liquid {i + 1}" for i in range(n))
+    else:
+        names = tuple(str(x) for x in names)
+        if len(names) != n:
+            raise InputError(f"names: expected {n} names, got {len(names)}")
+        seen = {}
+        for i, nm in enumerate(names):
+            key = nm.strip().lower()
+            if key in seen:
+                raise InputError(f"liquid '{nm}' is listed twice (entries {seen[key] + 1} and {i + 1}); keep one result per liquid")
+            seen[key] = i
+    if n < _MIN_LIQUIDS:
+        raise InputError(
+            f"only {n} liquids: a sphere has 4 unknowns, test at least {_MIN_LIQUIDS} liquids "
+            "(15-30 spread over Hansen space is usual practice)"
+        )
+    ng = int(g.sum())
+    if ng == n:
+        raise InputError(
+            f"all {n} liquids are good: nothing bounds the sphere; test liquids that do not "
+            "dissolve the solute (far from the good ones)"
+        )
+    if ng == 0:
+        raise InputError(
+            f"all {n} liquids are bad: nothing locates the sphere; test liquids of other "
+            "kinds until at least one dissolves the solute"
+        )
+    return X, g, w, names
+
+
+def _check_bounds(bounds):
+    b = np.asarray(DEFAULT_BOUNDS if bounds is None else bounds, dtype=float)
+    if b.shape != (3, 2) or not np.all(np.isfinite(b)) or np.any(b[:, 0] >= b[:, 1]):
+        raise InputError("bounds: expected ((dD_lo, dD_hi), (dP_lo, dP_hi), (dH_lo, dH_hi)) with lo < hi")
+    return b
+
+
+# --------------------------------------------------------------------------
+# the objective
+
+
+def _distances(Xs, C):
+    """Distances [MPa^0.5] from centres C (m, 3) to liquids Xs (n, 3), both scaled."""
+    diff = C[:, None, :] - Xs[None, :, :]
+    return np.sqrt(np.einsum("mnk,mnk->mn", diff, diff))
+
+
+def _loss(v, lapse: float):
+    """Negative log of a liquid's desirability for wrong-side distance v >= 0.
+
+    ``-log(lapse + (1 - lapse) exp(-v))``: Hansen's ``v`` when lapse = 0,
+    and at most ``-log(lapse)`` otherwise.
+    """
+    if lapse <= 0.0:
+        return v
+    return -np.log(lapse + (1.0 - lapse) * np.exp(-v))
+
+
+def _best_r0(d, wg, wb, lapse: float = 0.0):
+    """Exact optimum of V over R0 for each row of distances ``d`` (m, n).
+
+    Between two consecutive distances the set of wrong-side liquids is fixed
+    and each one's loss is a concave function of R0 (linear when lapse = 0),
+    so the optimum lies at one of the distances.  With lapse = 0 all breaks
+    are evaluated at once by sorting and prefix sums (O(n log n) a centre),
+    otherwise on the full (n x n) table.  Returns V_min (m,), and the lowest
+    and highest R0 reaching it (m,).
+    """
+    if lapse > 0.0:
+        # f[m, k] = sum_i loss(violation of liquid i when R0 = d[m, k])
+        gap = d[:, None, :] - d[:, :, None]  # d_i - R0, R0 = d_k on axis 1
+        # a good liquid is wrong beyond R0 (gap > 0), a bad one inside (gap < 0)
+        f = (np.where(gap > 0.0, wg, wb) * _loss(np.abs(gap), lapse)).sum(axis=2)
+        ds = d
+    else:
+        order = np.argsort(d, axis=1)
+        ds = np.take_along_axis(d, order, axis=1)
+        WG = wg[order]
+        WB = wb[order]
+        # good liquids farther than the break: sum w (d_j - d_k)
+        sg = np.cumsum(WG[:, ::-1], axis=1)[:, ::-1] - WG
+        sgd = np.cumsum((WG * ds)[:, ::-1], axis=1)[:, ::-1] - WG * ds
+        # bad liquids nearer than the break: sum w (d_k - d_j)
+        pb = np.cumsum(WB, axis=1) - WB
+        pbd = np.cumsum(WB * ds, axis=1) - WB * ds
+        f = (sgd - ds * sg) + (ds * pb - pbd)
+    fmin = f.min(axis=1)
+    near = f <= (fmin + 1e-9 * (1.0 + fmin))[:, None]
+    r_lo = np.where(near, ds, np.inf).min(axis=1)
+    r_hi = np.where(near, ds, -np.inf).max(axis=1)
+    return np.maximum(fmin, 0.0), r_lo, r_hi
+
+
+def _violations(d, good, r0):
+    return np.where(good, np.maximum(d - r0, 0.0), np.maximum(r0 - d, 0.0))
+
+
+def desirability(hsp, good, r0, solvents_hsp, weights=None) -> float:
+    r"""Hansen's desirability of a sphere for a set of bench results.
+
+    .. math::
+        \mathrm{fit} = \Big(\prod_i A_i^{w_i}\Big)^{1/\sum w_i},\quad
+        A_i = e^{-v_i} \text{ on the wrong side, else } 1
+
+    ``v_i`` is the liquid's distance from the sphere's surface.
+
+    Parameters
+    ----------
+    hsp : array_like, shape (3,)
+        centre dD, dP, dH [MPa^0.5]
+    good : array_like of bool, shape (n,)
+        bench result of each liquid
+    r0 : float
+        radius [MPa^0.5]
+    solvents_hsp : array_like, shape (n, 3)
+        dD, dP, dH of the liquids [MPa^0.5]
+    weights : array_like, shape (n,), optional
+        weight of each result [-]
+
+    Examples
+    --------
+    Toluene (18.0, 1.4, 2.0; Hansen (2007) Appendix A [1]_) is good but lies
+    at Ra = sqrt(4*1.7**2 + 1.5**2 + 0.7**2) = 3.782 from a made-up sphere at
+    (19.7, 2.9, 2.7) with R0 = 3.5, so it scores exp(-0.282); ethanol
+    (15.8, 8.8, 19.4), bad and far outside, scores 1; the geometric mean of
+    the two is exp(-0.1408) = 0.8687:
+
+    >>> round(desirability([19.7, 2.9, 2.7], [True, False], 3.5,
+    ...                    [[18.0, 1.4, 2.0], [15.8, 8.8, 19.4]]), 4)
+    0.8687
+    """
+    X = as_hsp(solvents_hsp, "solvents_hsp")
+    g = np.asarray(good, dtype=bool)
+    w = np.ones(len(g)) if weights is None else np.asarray(weights, dtype=float)
+    d = ra(X, as_hsp(hsp))
+    v = _violations(d, g, float(r0))
+    return float(np.exp(-np.sum(w * v) / np.sum(w)))
+
+
+# --------------------------------------------------------------------------
+# searches
+
+
+def _lp_lifted_margin(Xs, g, w, lo, hi):
+    """Largest margin in squared distance (a linear program in the lifted space).
+
+    ``|x - c|^2 = |x|^2 - 2 x.c + |c|^2`` is linear in (c, s = R^2 - |c|^2),
+    so the widest band of squared distances separating good from bad liquids
+    is exact and global.  Returns (centre, t); t > 0 means the results can be
+    explained perfectly.
+    """
+    from scipy.optimize import linprog
+
+    sq = np.sum(Xs * Xs, axis=1)
+    sign = np.where(g, 1.0, -1.0)
+    # good: sq - 2x.c - s + w t <= 0 ; bad: -sq + 2x.c + s + w t <= 0
+    A = np.column_stack([-2.0 * Xs * sign[:, None], -sign, w])
+    b = -sq * sign
+    cost = np.array([0, 0, 0, 0, -1.0])
+    bounds = [(lo[k], hi[k]) for k in range(3)] + [(None, None), (None, None)]
+    res = linprog(cost, A_ub=A, b_ub=b, bounds=bounds, method="highs")
+    if res.status != 0:
+        return None, -np.inf
+    return res.x[:3], float(res.x[4])
+
+
+def _slsqp_margin(Xs, g, w, c0, lo, hi, classic: bool):
+    """Largest (weighted) margin, or the classic smallest radius, among perfect fits."""
+    from scipy.optimize import minimize
+
+    sign = np.where(g, 1.0, -1.0)  # good: R - w t - d >= 0 ; bad: d - R - w t >= 0
+    wt = np.zeros_like(w) if classic else w
+
+    def parts(z):
+        diff = z[:3] - Xs
+        d = np.sqrt(np.sum(diff * diff, axis=1))
+        return diff, np.maximum(d, 1e-12)
+
+    def cons(z):
+        _, d = parts(z)
+        return sign * (z[3] - d) - wt * z[4]
+
+    def cons_jac(z):
+        diff, d = parts(z)
+        J = np.empty((len(d), 5))
+        J[:, :3] = -sign[:, None] * diff / d[:, None]
+        J[:, 3] = sign
+        J[:, 4] = -wt
+        return J
+
+    if classic:
+        def obj(z):
+            return z[3]
+
+        grad = np.array([0, 0, 0, 1.0, 0])
+    else:
+        def obj(z):
+            return -z[4]
+
+        grad = np.array([0, 0, 0, 0, -1.0])
+
+    d0 = np.sqrt(np.sum((c0 - Xs) ** 2, axis=1))
+    if classic:
+        r_init = float(d0[g].max())
+        t_init = 0.0
+    else:
+        r_init = 0.5 * (float(d0[g].max()) + float(d0[~g].min()))
+        t_init = 0.0
+    z0 = np.array([*c0, r_init, t_init])
+    bnds = [(lo[k], hi[k]) for k in range(3)] + [(0.0, _R0_MAX), (None, None) if not classic else (0.0, 0.0)]
+    res = minimize(
+        obj, z0, jac=lambda z: grad, method="SLSQP", bounds=bnds,
+        constraints=[{"type": "ineq", "fun": cons, "jac": cons_jac}],
+        options={"maxiter": 200, "ftol": 1e-10},
+    )
+    z = res.x
+    ok = bool(np.all(cons(z) >= -1e-7))
+    return z[:3], z, ok, res.nit
+
+
+def _hansen_search(Xs, wg, wb, lo, hi, rng, n_starts, lapse, xatol=1e-4, m=800, polish=True):
+    """Minimise V over the centre: vectorised coarse pass, then Nelder-Mead.
+
+    Returns the best centre, its V, the number of evaluations and the
+    starting points used (best first).
+    """
+    from scipy.optimize import minimize
+
+    C = lo + (hi - lo) * rng.random((m, 3))
+    good_pts = Xs[wg > 0]
+    cen = np.average(Xs, axis=0, weights=wg)
+    C = np.vstack([C, good_pts, cen[None]])
+    C = np.clip(C, lo, hi)
+    V, _, _ = _best_r0(_distances(Xs, C), wg, wb, lapse)
+    order = np.argsort(V)
+    starts = []
+    for i in order:
+        if all(np.linalg.norm(C[i] - s) > 1.0 for s in starts):
+            starts.append(C[i])
+        if len(starts) >= n_starts:
+            break
+    count = [len(C)]
+
+    def fun(c):
+        count[0] += 1
+        return float(_best_r0(_distances(Xs, c[None]), wg, wb, lapse)[0][0])
+
+    if not polish:
+        return starts[0], float(V[order[0]]), count[0], starts
+    found = []
+    for s in starts:
+        res = minimize(fun, s, method="Nelder-Mead", bounds=list(zip(lo, hi)),
+                       options={"xatol": xatol, "fatol": 1e-9, "maxfev": 2000,
+                                "initial_simplex": s + 0.8 * np.vstack([np.zeros(3), np.eye(3)])})
+        found.append((float(res.fun), np.asarray(res.x)))
+    found.sort(key=lambda t: t[0])
+    return found[0][1], found[0][0], count[0], [f[1] for f in found]
+
+
+def _logistic_fit(Xs, g, w, starts, lo, hi, lapse):
+    """Sphere with a soft surface: maximum likelihood of the bench results.
+
+    ``P(good) = lapse + (1 - 2 lapse) / (1 + exp((Ra - R0)/s))``: the smooth
+    analogue of the largest margin when no sphere explains every result
+    (liquids near the surface on the right side count as weak evidence, so
+    the sphere is centred among them instead of resting on the nearest ones).
+    Returns (centre, R0, s, negative log-likelihood).
+    """
+    from scipy.optimize import minimize
+
+    y = g.astype(float)
+    lam = max(lapse, 1e-3)
+
+    def nll(z):
+        diff = z[:3] - Xs
+        d = np.maximum(np.sqrt(np.sum(diff * diff, axis=1)), 1e-12)
+        s = math.exp(z[4])
+        a = (z[3] - d) / s
+        sig = 0.5 * (1.0 + np.tanh(0.5 * a))
+        p = lam + (1.0 - 2.0 * lam) * sig
+        f = -np.sum(w * (y * np.log(p) + (1.0 - y) * np.log1p(-p)))
+        dfdp = -w * (y / p - (1.0 - y) / (1.0 - p))
+        dfda = dfdp * (1.0 - 2.0 * lam) * sig * (1.0 - sig)
+        grad = np.empty(5)
+        grad[:3] = -(dfda[:, None] * diff / d[:, None]).sum(axis=0) / s
+        grad[3] = dfda.sum() / s
+        grad[4] = -(dfda * a).sum()
+        return f, grad
+
+    bnds = [(lo[k], hi[k]) for k in range(3)] + [(0.5, _R0_MAX), (math.log(0.05), math.log(5.0))]
+    best = None
+    nit = 0
+    for c0, r0 in starts:
+        res = minimize(nll, np.array([*c0, r0, 0.0]), jac=True, method="L-BFGS-B", bounds=bnds)
+        nit += res.nit
+        if np.all(np.isfinite(res.x)) and (best is None or res.fun < best.fun):
+            best = res
+    return best.x[:3], float(best.x[3]), float(math.exp(best.x[4])), float(best.fun), nit
+
+
+def _softplus(x, beta):
+    return np.logaddexp(0.0, beta * x) / beta
+
+
+def _profile_interval(Xs, g, w, c_hat, r_hat, budget, lo, hi, lapse, beta=30.0):
+    """Range of each parameter over spheres with V <= budget (8 small SLSQP runs).
+
+    The hinge ``max(0, v)`` in V is replaced by the softplus
+    ``log(1 + exp(beta v))/beta`` (above the hinge by at most ln 2/beta =
+    0.023 MPa^0.5 a liquid, and only near the surface), which makes the
+    constraint smooth in the 4 unknowns; the budget is raised by the same
+    excess at the estimate so that the estimate stays inside.
+    """
+    from scipy.optimize import minimize
+
+    sign = np.where(g, 1.0, -1.0)
+
+    def viol(z):
+        diff = z[:3] - Xs
+        d = np.maximum(np.sqrt(np.sum(diff * diff, axis=1)), 1e-12)
+        return diff, d, sign * (d - z[3])
+
+    def dloss(u):  # derivative of _loss at u >= 0
+        if lapse <= 0.0:
+            return np.ones_like(u)
+        e = (1.0 - lapse) * np.exp(-u)
+        return e / (lapse + e)
+
+    _, _, v_hat = viol(np.concatenate([c_hat, [r_hat]]))
+    excess = float(np.sum(w * (_loss(_softplus(v_hat, beta), lapse) - _loss(np.maximum(v_hat, 0.0), lapse))))
+    cap = budget + excess
+
+    def cons(z):
+        return np.array([cap - np.dot(w, _loss(_softplus(viol(z)[2], beta), lapse))])
+
+    def cons_jac(z):
+        diff, d, v = viol(z)
+        # w * sign * loss'(softplus) * sigmoid(beta v)
+        s = w * sign * dloss(_softplus(v, beta)) * 0.5 * (1.0 + np.tanh(0.5 * beta * v))
+        J = np.empty((1, 4))
+        J[0, :3] = -(s[:, None] * diff / d[:, None]).sum(axis=0)
+        J[0, 3] = np.sum(s)
+        return J
+
+    z0 = np.concatenate([c_hat, [r_hat]])
+    bnds = [(lo[k], hi[k]) for k in range(3)] + [(1e-3, _R0_MAX)]
+    out = []
+    ok_all = True
+    for k in range(4):
+        ends = []
+        for s in (1.0, -1.0):
+            grad = np.zeros(4)
+            grad[k] = s
+            res = minimize(lambda z, k=k, s=s: s * z[k], z0, jac=lambda z, gr=grad: gr, method="SLSQP",
+                           bounds=bnds, constraints=[{"type": "ineq", "fun": cons, "jac": cons_jac}],
+                           options={"maxiter": 200, "ftol": 1e-9})
+            z = res.x
+            if np.all(np.isfinite(z)) and cons(z)[0] >= -1e-6:
+                ends.append(float(z[k]))
+            else:
+                ok_all = False
+                ends.append(float(z0[k]))
+        out.append((min(ends[0], z0[k]), max(ends[1], z0[k])))
+    return out, ok_all
+
+
+def _open_check(Xs, g, c):
+    """Is the centre outside the hull of the good liquids?  Returns (open, u_scaled)."""
+    from scipy.optimize import linprog
+
+    P = Xs[g] - c
+    # maximise t subject to u . p_i >= t for all good, -1 <= u <= 1
+    A = np.column_stack([-P, np.ones(len(P))])
+    res = linprog(np.array([0, 0, 0, -1.0]), A_ub=A, b_ub=np.zeros(len(P)),
+                  bounds=[(-1, 1)] * 3 + [(None, 1.0)], method="highs")
+    if res.status != 0:
+        return False, None
+    t = float(res.x[3])
+    if t <= 1e-6:
+        return False, None
+    u = -res.x[:3]  # direction from the centre in which no good liquid lies
+    return True, u / np.linalg.norm(u)
+
+
+_AXES = ("dD", "dP", "dH")
+
+
+def _describe_direction(vec) -> str:
+    parts = []
+    for k, comp in enumerate(vec):
+        if abs(comp) >= 0.35:
+            parts.append(("higher " if comp > 0 else "lower ") + _AXES[k])
+    return " and ".join(parts) if parts else "no single direction"
+
+
+# --------------------------------------------------------------------------
+# the fit
+
+
+def fit_sphere(
+    hsp,
+    good,
+    weights=None,
+    *,
+    names=None,
+    good_at_most: float | None = None,
+    good_at_least: float | None = None,
+    rule: str = "margin",
+    lapse: float = 0.05,
+    bounds=None,
+    interval: bool = True,
+    level: float = 0.90,
+    n_starts: int = 4,
+    seed: int = 0,
+) -> SphereFit:
+    r"""Fit a solute's Hansen sphere to bench solubility results.
+
+    Maximises Hansen's desirability [1]_ (minimises the weighted sum of
+    wrong-side distances ``V``, see the module text); R0 is exact for each
+    centre, the centre is found by multi-start local optimisation within
+    ``bounds``.  Among equally good spheres ``rule`` picks one:
+
+    - ``"margin"`` (default): the largest margin ``t`` between the surface and
+      the nearest liquids, each liquid's margin scaled by its weight,
+      :math:`R_{a,i} \le R_0 - w_i t` (good), :math:`R_{a,i} \ge R_0 + w_i t` (bad);
+    - ``"classic"``: the smallest R0 (biased low, kept for comparison with
+      published fits).
+
+    Parameters
+    ----------
+    hsp : array_like, shape (n, 3)
+        dD, dP, dH of the liquids tested [MPa^0.5]
+    good : array_like, shape (n,)
+        bool (True = dissolves) or numeric scores with ``good_at_most`` /
+        ``good_at_least``; scores are weighted by their distance from the
+        cut-off (:func:`grading_weights`) [-]
+    weights : array_like, shape (n,), optional
+        extra weight of each result, e.g. 0.5 for a partial result [-]
+    names : sequence of str, optional
+        liquid names for the report; duplicates are refused
+    good_at_most, good_at_least : float, optional
+        cut-off of a numeric scale [-]
+    rule : {"margin", "classic"}
+        choice among spheres that fit equally well
+    lapse : float
+        floor of a wrong-side liquid's desirability, for gross bench errors
+        (a mislabelled tube, a contaminated sample), 0 <= lapse < 1: each
+        liquid scores ``lapse + (1 - lapse) exp(-v)``, so one result far on
+        the wrong side cannot drag the sphere.  0 gives the handbook's
+        function exactly [1]_; the default 0.05 (one gross error in twenty
+        results) is our choice [-]
+    bounds : ((lo, hi), (lo, hi), (lo, hi)), optional
+        search bounds of dD, dP, dH [MPa^0.5], default :data:`DEFAULT_BOUNDS`
+    interval : bool
+        compute profile intervals (8 small optimisations)
+    level : float
+        level of the profile intervals, 0 < level < 1 [-]
+    n_starts : int
+        local searches when the results cannot all be explained [-]
+    seed : int
+        seed of the random starting points (the fit is reproducible) [-]
+
+    Returns
+    -------
+    SphereFit
+
+    Examples
+    --------
+    Twelve liquids scored against a made-up sphere at (17, 8, 10), R0 = 7
+    (Appendix A solvent values of Hansen (2007) [1]_): the fit explains all
+    of them and its 90 % profile interval holds the true centre.
+
+    >>> liquids = {"n-hexane": (14.9, 0.0, 0.0), "toluene": (18.0, 1.4, 2.0),
+    ...   "acetone": (15.5, 10.4, 7.0), "ethanol": (15.8, 8.8, 19.4),
+    ...   "water": (15.5, 16.0, 42.3), "ethyl acetate": (15.8, 5.3, 7.2),
+    ...   "methanol": (14.7, 12.3, 22.3), "2-butanone": (16.0, 9.0, 5.1),
+    ...   "dichloromethane": (17.0, 7.3, 7.1), "1-butanol": (16.0, 5.7, 15.8),
+    ...   "tetrahydrofuran": (16.8, 5.7, 8.0), "acetonitrile": (15.3, 18.0, 6.1)}
+    >>> X = np.array(list(liquids.values()))
+    >>> good = ra(X, [17.0, 8.0, 10.0]) < 7.0
+    >>> f = fit_sphere(X, good, names=list(liquids))
+    >>> f.fit, len(f.wrong_side)
+    (1.0, 0)
+    >>> all(f.interval[k][0] <= t <= f.interval[k][1] for k, t in zip(("dD", "dP", "dH"), (17, 8, 10)))
+    True
+    """
+    try:
+        from threadpoolctl import threadpool_limits
+    except ImportError:  # pragma: no cover - optional: only a speed matter
+        threadpool_limits = None
+    if threadpool_limits is None:  # pragma: no cover
+        return _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bounds,
+                    interval, level, n_starts, seed)
+    # the optimisers make many tiny BLAS calls: threads only add waiting
+    with threadpool_limits(limits=1, user_api="blas"):
+        return _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bounds,
+                    interval, level, n_starts, seed)
+
+
+def _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bounds,
+         interval, level, n_starts, seed) -> SphereFit:
+    if rule not in RULES:
+        raise InputError(f"rule: expected one of {', '.join(RULES)}, got '{rule}'")
+    if not (0.0 <= float(lapse) < 1.0):
+        raise InputError(f"lapse: expected a number in [0, 1), got {lapse}")
+    lapse = float(lapse)
+    if not (0.0 < float(level) < 1.0):
+        raise InputError(f"level: expected a number between 0 and 1, got {level}")
+    X, g, w, names = _prepare(hsp, good, weights, names, good_at_most, good_at_least)
+    b = _check_bounds(bounds)
+    lo, hi = b[:, 0] * SCALE, b[:, 1] * SCALE
+    Xs = scaled(X)
+    wg = np.where(g, w, 0.0)
+    wb = np.where(g, 0.0, w)
+    rng = np.random.default_rng(seed)
+    messages = []
+    success = True
+    n_eval = 0
+
+    c_lp, t_lp = _lp_lifted_margin(Xs, g, w, lo, hi)
+    separable = bool(c_lp is not None and t_lp > 1e-7)
+    if separable:
+        # every result can be explained: choose among the perfect fits
+        cands = []
+        starts = [c_lp, np.average(Xs, axis=0, weights=wg)]
+        for c0 in starts:
+            c0 = np.clip(c0, lo, hi)
+            c, z, ok, nit = _slsqp_margin(Xs, g, w, c0, lo, hi, classic=(rule == "classic"))
+            n_eval += nit
+            if ok:
+                cands.append((z[3] if rule == "classic" else -z[4], c))
+        if not cands:
+            # keep the exact linear-programme sphere: it explains every result
+            messages.append("local refinement failed; kept the linear-programme sphere")
+            c = c_lp
+        else:
+            c = min(cands, key=lambda t: t[0])[1]
+            # the refinement must not lose the perfect fit found by the LP
+            if _best_r0(_distances(Xs, c[None]), wg, wb, lapse)[0][0] > 1e-9:
+                c = c_lp
+        V_min = 0.0
+    else:
+        if rule == "classic":
+            c, V_min, ne, _ = _hansen_search(Xs, wg, wb, lo, hi, rng, n_starts, lapse)
+            n_eval += ne
+        else:
+            # the Hansen optimum only seeds the soft-surface fit: a looser search
+            # (the plain linear penalty is cheaper to scan and good enough for seeds)
+            _, _, ne, found = _hansen_search(Xs, wg, wb, lo, hi, rng, 6, 0.0, polish=False)
+            n_eval += ne
+            starts = []
+            V_min = np.inf
+            for c0 in found:
+                vm, rl, rh = _best_r0(_distances(Xs, c0[None]), wg, wb, lapse)
+                V_min = min(V_min, float(vm[0]))
+                starts.append((c0, 0.5 * float(rl[0] + rh[0])))
+            c, r_soft, width, _, ne = _logistic_fit(Xs, g, w, starts, lo, hi, lapse)
+            n_eval += ne
+
+    d = _distances(Xs, c[None])[0]
+    V_c, r_lo, r_hi = _best_r0(d[None], wg, wb, lapse)
+    V_c, r_lo, r_hi = float(V_c[0]), float(r_lo[0]), float(r_hi[0])
+    if separable:
+        dg, db = float(d[g].max()), float(d[~g].min())
+        if rule == "classic":
+            r0 = dg
+        else:
+            # R0 that balances the weighted margins of the nearest liquids
+            r0 = _balance_r0(d, g, w)
+        margin = (db - dg) / 2.0
+    elif rule == "classic":
+        r0 = r_lo
+        margin = 0.0
+    else:
+        r0 = r_soft
+        margin = 0.0
+    r0 = float(r0)
+    V = float(np.sum(w * _loss(_violations(d, g, r0), lapse)))
+    if rule == "classic" and V > V_c + 1e-7:  # cannot happen: r0 lies in the optimal flat interval
+        messages.append("radius not at the optimum of the desirability")
+        success = False
+
+    redv = d / r0
+    tol = 1e-6
+    wrong = []
+    for i in np.argsort(-np.abs(redv - 1.0)):
+        if (g[i] and redv[i] > 1 + tol) or (not g[i] and redv[i] < 1 - tol):
+            wrong.append(WrongSide(names[i], bool(g[i]), float(redv[i]), float(w[i]), *map(float, X[i])))
+    explained = 1.0 - float(np.sum(w[[names.index(x.name) for x in wrong]])) / float(np.sum(w)) if wrong else 1.0
+    # the trade's number: Hansen's desirability itself (no floor)
+    fit = float(np.exp(-np.sum(w * _violations(d, g, r0)) / np.sum(w)))
+
+    centre = c / SCALE
+    at_bound = tuple(
+        _AXES[k] for k in range(3) if min(abs(centre[k] - b[k, 0]), abs(centre[k] - b[k, 1])) < 1e-3
+    )
+    if at_bound:
+        messages.append("centre on the search bound of " + ", ".join(at_bound) + ": the data do not bound it there")
+
+    is_open, u = _open_check(Xs, g, c)
+    open_dir = None
+    open_note = "the good liquids surround the centre"
+    if is_open:
+        vec = u / SCALE
+        vec = vec / np.linalg.norm(vec)
+        open_dir = tuple(float(x) for x in vec)
+        open_note = (
+            "open sphere: no good liquid lies on the side of " + _describe_direction(vec)
+            + " from the centre; test liquids there to close it"
+        )
+
+    iv = {"level": float(level), "method": "profile"}
+    if interval:
+        from scipy.stats import chi2
+
+        # region of spheres whose (floored) desirability is within the level of the best
+        budget = max(min(V_min, V) + float(chi2.ppf(level, 1)) / 2.0, V)
+        ranges, ok = _profile_interval(Xs, g, w, c, r0, budget, lo, hi, lapse)
+        for k, key in enumerate(("dD", "dP", "dH")):
+            iv[key] = (ranges[k][0] / SCALE[k], ranges[k][1] / SCALE[k])
+        iv["r0"] = ranges[3]
+        if not ok:
+            messages.append("some interval searches did not converge; those ends are kept at the estimate")
+    else:
+        for key in ("dD", "dP", "dH", "r0"):
+            iv[key] = (None, None)
+        iv["method"] = "none"
+
+    if not messages:
+        messages.append("every result explained" if not wrong else f"{len(wrong)} result(s) on the wrong side")
+    return SphereFit(
+        dD=float(centre[0]), dP=float(centre[1]), dH=float(centre[2]), r0=r0,
+        fit=fit, explained=explained, wrong_side=tuple(wrong), interval=iv,
+        open=is_open, open_direction=open_dir, open_note=open_note, rule=rule,
+        separable=separable, margin=float(margin), objective=V, names=names,
+        good=tuple(bool(x) for x in g), weights=tuple(float(x) for x in w),
+        red=tuple(float(x) for x in redv), at_bound=at_bound,
+        success=success, message="; ".join(messages), n_evaluations=int(n_eval),
+    )
+
+
+def _balance_r0(d, g, w) -> float:
+    """R0 maximising min(min_good (R - d)/w, min_bad (d - R)/w) for fixed distances.
+
+    Both terms are linear in R, so the optimum is where the tightest good and
+    the tightest bad liquid cross; found exactly over all pairs.
+    """
+    dg, wg_ = d[g], w[g]
+    db, wb_ = d[~g], w[~g]
+    # candidate R for each (good i, bad j): (R - dg_i)/wg_i = (db_j - R)/wb_j
+    R = (dg[:, None] * wb_[None, :] + db[None, :] * wg_[:, None]) / (wg_[:, None] + wb_[None, :])
+    R = R.ravel()
+    m = np.minimum(((R[:, None] - dg[None, :]) / wg_[None, :]).min(axis=1),
+                   ((db[None, :] - R[:, None]) / wb_[None, :]).min(axis=1))
+    return float(R[np.argmax(m)])
+
+
+# --------------------------------------------------------------------------
+# next tests
+
+
+def suggest_tests(fit: SphereFit, hsp, names, k: int = 5, exclude=()) -> list[SuggestedTest]:
+    """Untested liquids whose result would most narrow the sphere (a heuristic).
+
+    Heuristic, not an optimal design: liquids whose RED under the current fit
+    is nearest 1 decide the surface, so they are ranked by ``|RED - 1|``;
+    to spread them over directions, each pick after the first adds a penalty
+    ``0.5 max cos(angle)`` to the candidates pointing the same way from the
+    centre as a liquid already picked, and liquids lying where the sphere is
+    open get a bonus of 0.25.
+
+    Parameters
+    ----------
+    fit : SphereFit
+    hsp : array_like, shape (m, 3)
+        dD, dP, dH of the candidate liquids [MPa^0.5]
+    names : sequence of str
+        their names; names already tested in ``fit`` (and ``exclude``) are skipped
+    k : int
+        how many to propose [-]
+    """
+    X = as_hsp(hsp, "hsp")
+    if X.ndim != 2 or len(names) != len(X):
+        raise InputError("suggest_tests: expected one name per row of dD, dP, dH")
+    if k < 1:
+        raise InputError(f"k: expected a positive number of liquids, got {k}")
+    tested = {n.strip().lower() for n in fit.names} | {n.strip().lower() for n in exclude}
+    keep = [i for i, n in enumerate(names) if str(n).strip().lower() not in tested]
+    if not keep:
+        return []
+    X = X[keep]
+    nm = [names[i] for i in keep]
+    d = ra(X, fit.hsp)
+    redv = d / fit.r0
+    u = scaled(X) - scaled(fit.hsp)
+    norm = np.linalg.norm(u, axis=1)
+    u = u / np.where(norm > 0, norm, 1.0)[:, None]
+    cost = np.abs(redv - 1.0)
+    if fit.open and fit.open_direction is not None:
+        od = np.asarray(fit.open_direction) * SCALE
+        od = od / np.linalg.norm(od)
+        cost = cost - 0.25 * np.clip(u @ od, 0.0, None)
+    picked: list[int] = []
+    out = []
+    for _ in range(min(k, len(nm))):
+        c = cost.copy()
+        if picked:
+            c = c + 0.5 * np.clip(u @ u[picked].T, 0.0, None).max(axis=1)
+        c[picked] = np.inf
+        j = int(np.argmin(c))
+        picked.append(j)
+        vec = u[j] / SCALE
+        vec = vec / (np.linalg.norm(vec) or 1.0)
+        why = f"RED {redv[j]:.2f}: near the surface, toward " + _describe_direction(vec)
+        out.append(SuggestedTest(str(nm[j]), float(redv[j]), *map(float, X[j]), tuple(float(x) for x in vec), why))
+    return out
