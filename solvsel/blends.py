@@ -61,6 +61,7 @@ __all__ = [
     "combinations_array",
     "kkt_violation",
     "search_blends",
+    "SearchCancelled",
     "pareto_front",
 ]
 
@@ -380,13 +381,17 @@ def combinations_array(m: int, k: int, required=()) -> np.ndarray:
     return out
 
 
+class SearchCancelled(Exception):
+    """Raised inside :func:`search_blends` when the progress callback asks to stop."""
+
+
 def _chunks(n: int, size: int):
     for start in range(0, n, size):
         yield slice(start, min(n, start + size))
 
 
 def search_blends(pool_hsp, target, max_components: int = 3, lower=None, upper=None,
-                  sizes=None, chunk: int = 1 << 16):
+                  sizes=None, chunk: int = 1 << 16, progress=None):
     """Exact best fractions of every combination of 1..``max_components`` liquids of a pool.
 
     Parameters
@@ -404,6 +409,9 @@ def search_blends(pool_hsp, target, max_components: int = 3, lower=None, upper=N
         blend sizes to search (default 1..max_components)
     chunk : int
         combinations solved per batch (memory bound)
+    progress : callable, optional
+        ``progress(done, total)`` after each batch (combinations); returning
+        False stops the search (:class:`SearchCancelled` is raised)
 
     Yields
     ------
@@ -421,12 +429,19 @@ def search_blends(pool_hsp, target, max_components: int = 3, lower=None, upper=N
     if lo.shape != (m,) or hi.shape != (m,):
         raise InputError(f"lower/upper: expected one bound per pool liquid ({m})")
     required = np.flatnonzero(lo > 0)
-    for k in sizes or range(1, int(max_components) + 1):
+    sizes = list(sizes or range(1, int(max_components) + 1))
+    total = sum(comb(m - len(required), k - len(required)) if k >= len(required) else 0 for k in sizes)
+    done = 0
+    for k in sizes:
         combos = combinations_array(m, k, required)
         if combos.shape[0] == 0:
             continue
-        parts = [best_fractions(H[combos[sl]], target, lo[combos[sl]], hi[combos[sl]])
-                 for sl in _chunks(combos.shape[0], chunk)]
+        parts = []
+        for sl in _chunks(combos.shape[0], chunk):
+            parts.append(best_fractions(H[combos[sl]], target, lo[combos[sl]], hi[combos[sl]]))
+            done += sl.stop - sl.start
+            if progress is not None and progress(done, total) is False:
+                raise SearchCancelled(f"search stopped after {done} of {total} combinations")
         if len(parts) == 1:
             res = parts[0]
         else:
@@ -802,6 +817,7 @@ def optimise_blends(
     chain: str | None = None,
     already=None,
     keep_over: bool = False,
+    progress=None,
 ) -> BlendSearch:
     r"""Best blends of 1 to ``max_components`` liquids for a target, under constraints.
 
@@ -878,6 +894,9 @@ def optimise_blends(
         what other ingredients already bring to the food, ``{substance: mg/kg}``
     keep_over : bool
         keep (flagged) blends over a limit at ``dose`` instead of dropping them
+    progress : callable, optional
+        ``progress(done, total)`` during the exact search (combinations); return
+        False to cancel, which gives a result with ``success`` False
 
     Returns
     -------
@@ -1032,7 +1051,11 @@ def optimise_blends(
     # ------------------------------------------------------------------ exact search
     H = np.array(kept_hsp).reshape(m, 3)
     idx_parts, x_parts, ra_parts, ok_parts = [], [], [], []
-    for k, combos, res in search_blends(H, t_hsp, min(int(max_components), m), lower=lo, upper=hi):
+    try:
+        searched = list(search_blends(H, t_hsp, min(int(max_components), m), lower=lo, upper=hi, progress=progress))
+    except SearchCancelled as exc:
+        return finish([], [], [], False, f"cancelled: {exc}")
+    for k, combos, res in searched:
         pad = np.full((combos.shape[0], MAX_COMPONENTS), -1, dtype=np.int32)
         pad[:, :k] = combos
         xs = np.zeros((combos.shape[0], MAX_COMPONENTS))

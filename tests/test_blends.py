@@ -495,3 +495,11 @@ def test_dose_limits_drop_carriers_over_the_limit(cat):
         assert b.dose_check["ok"] is True
     with pytest.raises(InputError):
         optimise_blends(cat, (16.8, 10.4, 21.3), only=["ethanol"], dose="0.15%")
+
+
+def test_progress_and_cancel(cat):
+    seen = []
+    res = optimise_blends(cat, (16, 5, 10), max_components=3, progress=lambda d, t: seen.append((d, t)))
+    assert res.success and seen and seen[-1][0] == seen[-1][1] == res.counts["combinations"]
+    res = optimise_blends(cat, (16, 5, 10), max_components=3, progress=lambda d, t: False)
+    assert not res.success and "cancelled" in res.message
