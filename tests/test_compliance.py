@@ -240,3 +240,16 @@ def test_table_frozen_counts(cat):
     agents = {(r.jurisdiction, r.cas): (r.limit, r.unit) for r in rows if r.use == "weighting" and r.status == "limit"}
     assert agents == {("US", "8050-30-4"): (100, "ppm"), ("US", "126-13-6"): (300, "mg/L"),
                       ("EU", "126-13-6"): (300, "mg/L"), ("EU", "8050-30-4"): (100, "mg/L")}
+
+
+def test_engines_do_not_import_the_ui_or_heavy_libraries():
+    # the engines never import textual (design rule); compliance and formulation load no numpy/pandas at import
+    import subprocess
+    import sys
+
+    code = (
+        "import sys, solvsel.compliance, solvsel.formulation, solvsel.cli.dose; "
+        "print(','.join(m for m in ('textual', 'pandas', 'scipy', 'rdkit', 'chemicals') if m in sys.modules))"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout.strip()
+    assert out == ""

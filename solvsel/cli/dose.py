@@ -30,9 +30,9 @@ def register(subparsers):
             "Levels of every component of a flavour, extract or concentrate at every stage of a dilution chain "
             "(mg/kg and mg/L), checked against the limits of the jurisdiction for the food as consumed (summed "
             "from all sources), with the maximum dose, residual solvents and claim flags. "
-            "Chain: steps separated by ';', each 'NAME [AMOUNT] [d=DENSITY] [dil=DENSITY]', AMOUNT one of 0.15%% "
-            "(w/w), 0.15%%v (v/v), 1500ppm, 1.5g/kg, 1.5g/L, 1+5 (parts by mass), 1+5v (parts by volume); "
-            "e.g. \"syrup 0.5%% d=1.28; drink 1+5v d=1.04\"."
+            "Chain: steps separated by ';', each 'NAME [AMOUNT] [d=DENSITY] [dil=DENSITY]', AMOUNT one of 0.15% "
+            "(w/w), 0.15%v (v/v), 1500ppm, 1.5g/kg, 1.5g/L, 1+5 (parts by mass), 1+5v (parts by volume); "
+            "d= is the density of the new stage in g/cm3; e.g. \"syrup 0.5% d=1.28; drink 1+5v d=1.04\"."
         ),
     )
     p.add_argument("--formula", required=True, metavar="A=90,B=10|FILE.csv",
@@ -42,9 +42,9 @@ def register(subparsers):
                    help="whether the --formula percentages are by mass (default) or by volume")
     p.add_argument("--dose", metavar="AMOUNT", help="dose of the formula in the first stage, e.g. 0.15%%, 1500ppm, 1.5g/L")
     p.add_argument("--chain", metavar="STEPS", help="dilution chain (see above); without it the dose goes into the food as consumed")
-    p.add_argument("--category", default="food", help="food category of the food as consumed (default: food, i.e. all foods); "
+    p.add_argument("--category", default=None, help="food category of the food as consumed (default: food, i.e. all foods); "
                    "see 'solvsel table food_categories'")
-    p.add_argument("--jurisdiction", required=True, choices=("EU", "US", "eu", "us"), help="whose limits to apply")
+    p.add_argument("--jurisdiction", required=True, type=str.upper, choices=("EU", "US"), help="whose limits to apply")
     p.add_argument("--already", metavar="NAME=MG_PER_KG,...",
                    help="what other ingredients already bring to the food as consumed [mg/kg]")
     p.add_argument("--residue", metavar="SOLVENT=PPM,...",
@@ -86,12 +86,14 @@ def run(args) -> int:
     residues = dict(parse_amounts(args.residue, "--residue")) if args.residue else None
     claims = [c for item in args.claim for c in parse_names(item, "--claim")]
     result = check_dose(
-        cat, formula, chain=args.chain, jurisdiction=args.jurisdiction.upper(), category=args.category,
+        cat, formula, chain=args.chain, jurisdiction=args.jurisdiction.upper(), category=args.category or "food",
         dose=args.dose, already=already, residues=residues, claims=claims, formula_density=args.formula_density,
     )
     if args.json:
         emit_json(result)
         return 0
+    if args.category is None:
+        print("(no --category given: the limits for all foods are used; a specific category may have other limits)\n")
     _print(result)
     return 0
 
