@@ -109,7 +109,7 @@ def _print(r) -> None:
         dens = "unknown" if st.density_g_cm3 is None else f"{st.density_g_cm3:.4g} g/cm3 ({st.density_basis})"
         print(head + f"  density {dens}")
         rows = r.stage_table(i)
-        print_table(rows, [("substance", "substance"), ("cas", "CAS"), ("mg_per_kg", "mg/kg", ".5g"), ("mg_per_L", "mg/L", ".5g")])
+        print_table(rows, [("substance", "substance"), ("cas", "CAS"), ("mg_per_kg", "mg/kg", ".6g"), ("mg_per_L", "mg/L", ".6g")])
     if r.other_sources_mg_per_kg:
         print("  (last stage includes other ingredients: "
               + ", ".join(f"{r.names[k][0]} {v:g} mg/kg" for k, v in r.other_sources_mg_per_kg.items()) + ")")
@@ -165,7 +165,17 @@ def _print(r) -> None:
                 print(f"  {p['name']}: {v} ({p['binding_rule']})")
     else:
         print("Maximum dose: no numeric limit of the table applies" + (" (or the first step is in parts)" if not r.steps[0].scalable else ""))
-    print("Result: " + ("every limit with data is kept" if r.ok else "a limit, residue rule or claim ceiling is broken")
+    broken = []
+    n = sum(not c.ok for c in r.checks)
+    if n:
+        broken.append(f"{n} limit{'s' if n > 1 else ''} in the food exceeded")
+    n = sum(x.ok is False and not x.reference_only for x in r.residues)
+    if n:
+        broken.append(f"{n} residue rule{'s' if n > 1 else ''} broken")
+    n = sum(c.ok is False for c in r.claims)
+    if n:
+        broken.append(f"{n} claim ceiling{'s' if n > 1 else ''} exceeded")
+    print("Result: " + ("; ".join(broken) if broken else "every limit with data is kept")
           + ("" if r.complete else "; some substances have no data (not a permission)"))
     if r.assumptions:
         print("\nAssumptions:")
