@@ -488,8 +488,6 @@ def pareto_front(objectives) -> np.ndarray:
 # hazard class, food status, cautions and dose limits: compliance) are called
 # through the small adapters at the end of this file.
 
-from dataclasses import field  # noqa: E402
-
 __all__ += [
     "BlendComponent",
     "RejectDistance",
@@ -629,6 +627,7 @@ class Blend:
     phase_note: str
     bp_min_C: float | None
     bp_max_C: float | None
+    bp_complete: bool
     lowest_flash_C: float | None
     hazard: str
     hazard_rank: int
@@ -662,7 +661,7 @@ class Blend:
             "dD": self.dD, "dP": self.dP, "dH": self.dH,
             "ra": self.ra, "red": self.red,
             "one_phase": self.one_phase, "phase_basis": self.phase_basis, "phase_note": self.phase_note,
-            "bp_min_C": self.bp_min_C, "bp_max_C": self.bp_max_C,
+            "bp_min_C": self.bp_min_C, "bp_max_C": self.bp_max_C, "bp_complete": self.bp_complete,
             "lowest_flash_C": self.lowest_flash_C,
             "hazard": self.hazard, "hazard_rank": self.hazard_rank,
             "cost": self.cost,
@@ -901,6 +900,18 @@ def optimise_blends(
     Returns
     -------
     BlendSearch
+
+    Examples
+    --------
+    Nitrocellulose (sphere 15.4, 14.7, 8.8 with R0 11.5 MPa^0.5, from memory
+    of the polymer table of [1]_) is dissolved by neither diethyl ether nor
+    ethanol (RED > 1) but by their blend, the classic collodion solvent:
+
+    >>> from solvsel.catalog import load_catalog
+    >>> res = optimise_blends(load_catalog(), (15.4, 14.7, 8.8, 11.5), max_components=2,
+    ...                       only=["diethyl ether", "ethanol"])
+    >>> [(b.label, round(b.red, 2)) for b in res.results]
+    [('diethyl ether 0.48 + ethanol 0.52', 0.82), ('ethanol 1.00', 1.06), ('diethyl ether 1.00', 1.1)]
     """
     from .hansen import shift_temperature
 
@@ -933,9 +944,17 @@ def optimise_blends(
     if dose is not None and (jurisdiction is None or category is None):
         raise InputError("--dose needs --jurisdiction and --category (the food the blend ends up in)")
     bounds = [b if isinstance(b, FractionBound) else parse_fraction_bound(b) for b in (bounds or ())]
+    from .errors import OutOfRangeError
+    from .hansen import T_WINDOW_C
+
     temp_C = float(temp_C)
     if not math.isfinite(temp_C):
         raise InputError(f"--temp: expected a temperature in C, got {temp_C}")
+    if not T_WINDOW_C[0] <= temp_C <= T_WINDOW_C[1]:
+        raise OutOfRangeError(
+            f"--temp: {temp_C:g} C is outside {T_WINDOW_C[0]:g} to {T_WINDOW_C[1]:g} C, the range of the "
+            "Hansen-Beerbower temperature rules"
+        )
 
     # ------------------------------------------------------------------ pool
     if pool is not None:
@@ -1149,7 +1168,7 @@ def optimise_blends(
     def describe(j, dose_info, rank):
         row, recs, xs = members_of(j)
         members = [int(i) for i in IDX[row] if i >= 0]
-        xs = xs.copy()
+        xs = xs.copy()  # members: indices into the pool, for the hazards
         phase = (True, "single liquid", "") if len(recs) == 1 else _phase(cat, recs, xs, temp_C)
         b = _describe_blend(
             cat, recs, xs, BH[j], float(ra_c[j]), r0, phase, [hazards[i] for i in members],
@@ -1251,6 +1270,7 @@ def _describe_blend(cat, recs, xs, bh, ra_value, r0, phase, hazards, cost, rej, 
         one_phase=phase[0] if len(recs) > 1 else True,
         phase_basis=phase[1], phase_note=phase[2],
         bp_min_C=min(bps) if bps else None, bp_max_C=max(bps) if bps else None,
+        bp_complete=len(bps) == len(recs),
         lowest_flash_C=min(flashes) if flashes else None,
         hazard=worst[0], hazard_rank=int(worst[1]),
         cost=cost,

@@ -184,8 +184,9 @@ def print_search(res, file=None) -> None:
                 "mass": " / ".join("-" if x.mass_fraction is None else f"{x.mass_fraction:.2f}" for x in b.components),
                 "ra": b.ra, "red": b.red,
                 "phase": _phase_text(b),
-                "bp": "-" if b.bp_min_C is None else (f"{b.bp_min_C:g}" if b.bp_min_C == b.bp_max_C
-                                                      else f"{b.bp_min_C:g} to {b.bp_max_C:g}"),
+                "bp": ("-" if b.bp_min_C is None else (f"{b.bp_min_C:g}" if b.bp_min_C == b.bp_max_C
+                                                       else f"{b.bp_min_C:g} to {b.bp_max_C:g}"))
+                + ("" if b.bp_complete else " (+?)"),
                 "flash": b.lowest_flash_C,
                 "hazard": _short_hazard(b),
                 "cost": b.cost,
@@ -214,6 +215,7 @@ def print_search(res, file=None) -> None:
         print(file=file)
         print_table(rows, cols, file=file)
         notes = ["Ra, RED: distance to the target [MPa^0.5]; 1 phase: (m) measured pair data, (p) predicted, ? not checked; "
+                 "bp: normal boiling points of the components, (+?) some not on record; "
                  "cost: volume-weighted cost class (1 cheap .. 5 dear)."]
         if rejects:
             notes.append("reject: distance of the nearest reject solute; margin: how much further it is than the target "
