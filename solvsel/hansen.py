@@ -319,7 +319,7 @@ def _check_temperature(temp_C, mp_C=None, bp_C=None, what="temp_C") -> np.ndarra
             raise OutOfRangeError(
                 f"{what}: {float(np.broadcast_to(t, above.shape)[above][0]):g} C is above the boiling point "
                 f"({float(np.broadcast_to(bp, above.shape)[above][0]):g} C at 1 atm): the liquid would boil "
-                "(pass bp_C=None for a liquid held under pressure)"
+                "unless held under pressure"
             )
     return t
 
@@ -839,19 +839,25 @@ def solid_solubility(
     lnxid = math.log(xid)
 
     def f(lnx):
-        return lnx + float(ln_gamma_hansen(math.exp(lnx), solute_hsp, vm2_cm3_mol, solvent_hsp, vm1_cm3_mol, temp_C, combinatorial)) - lnxid
+        return lnx + ln_gamma_hansen(np.exp(lnx), solute_hsp, vm2_cm3_mol, solvent_hsp, vm1_cm3_mol, temp_C, combinatorial) - lnxid
 
-    from scipy.optimize import brentq
-
-    # f -> -inf as x -> 0 and f(0) = -ln x_id >= 0 at x = 1: scan for the first sign change
+    # f -> -inf as x -> 0 and f = -ln x_id >= 0 at x = 1: scan (vectorised) for
+    # the first sign change, then bisect (no scipy import: keeps the CLI fast)
     grid = np.linspace(-60.0, 0.0, 241)
-    vals = np.array([f(g) for g in grid])
+    vals = f(grid)
     idx = np.nonzero(vals >= 0)[0]
     j = int(idx[0]) if idx.size else len(grid) - 1
     if j == 0:
-        lnx = grid[0]
+        lnx = float(grid[0])
     else:
-        lnx = brentq(f, grid[j - 1], grid[j], xtol=1e-12)
+        lo, hi = float(grid[j - 1]), float(grid[j])
+        for _ in range(60):
+            mid = 0.5 * (lo + hi)
+            if f(mid) >= 0:
+                hi = mid
+            else:
+                lo = mid
+        lnx = 0.5 * (lo + hi)
     x = math.exp(lnx)
     gamma = xid / x
     m2 = x * mw2_g_mol

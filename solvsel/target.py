@@ -177,3 +177,316 @@ def target_from_smiles(smiles: str) -> Target:
         getattr(e, "smiles", smiles), float(e.dD), float(e.dP), float(e.dH), None, "estimated", None, note,
         getattr(e, "vm_cm3_mol", None), dict(unc) if isinstance(unc, dict) else None,
     )
+
+
+# ----------------------------------------------------------------------------- ranking
+
+from dataclasses import field  # noqa: E402
+
+from .errors import MissingDataError  # noqa: E402
+
+__all__ += ["RankedSolvent", "Ranking", "rank_solvents", "nearest_liquids", "solvent_at"]
+
+
+@dataclass(frozen=True)
+class RankedSolvent:
+    """One solvent of a ranking, with what the bench needs beside the distance.
+
+    ``ra`` and ``red`` are at the ranking temperature (the solvent's HSP
+    shifted by Hansen and Beerbower's rules where its expansion coefficient is
+    known); ``red`` is None when the target has no R0.  ``solubility`` is an
+    estimate (dict of :class:`~solvsel.hansen.SolubilityEstimate`) where the
+    solute has fusion data, else None.
+    """
+
+    name: str
+    cas: str
+    ra: float
+    red: float | None
+    dD: float
+    dP: float
+    dH: float
+    vm_cm3_mol: float
+    bp_C: float | None
+    flash_C: float | None
+    hazard: str | None
+    hazard_code: str | None
+    food_status: str | None
+    food_allowed: bool | None
+    cost_class: int | None
+    water_miscibility: str
+    solubility: dict | None
+    dose: dict | None
+    cautions: tuple[str, ...]
+    notes: tuple[str, ...]
+    origin: str
+    sources: tuple[str, ...] = ()
+
+    def to_dict(self) -> dict:
+        return {
+            "name": self.name, "cas": self.cas, "ra": self.ra, "red": self.red,
+            "dD": self.dD, "dP": self.dP, "dH": self.dH, "vm": self.vm_cm3_mol,
+            "bp_C": self.bp_C, "flash_C": self.flash_C, "hazard": self.hazard,
+            "hazard_code": self.hazard_code,
+            "food_status": self.food_status, "food_allowed": self.food_allowed,
+            "cost_class": self.cost_class, "water_miscibility": self.water_miscibility,
+            "solubility": self.solubility, "dose": self.dose,
+            "cautions": list(self.cautions), "notes": list(self.notes),
+            "origin": self.origin, "sources": list(self.sources),
+        }
+
+
+@dataclass(frozen=True)
+class Ranking:
+    """Solvents ranked for a target, best first, with what was left out and why."""
+
+    target: Target
+    temp_C: float
+    results: tuple[RankedSolvent, ...]
+    dropped: tuple[dict, ...] = ()
+    notes: tuple[str, ...] = ()
+    cautions: tuple[str, ...] = ()
+    sorted_by: str = "ra"
+
+    def to_dict(self) -> dict:
+        return {
+            "target": self.target.to_dict(),
+            "temp_C": self.temp_C,
+            "sorted_by": self.sorted_by,
+            "results": [r.to_dict() for r in self.results],
+            "dropped": list(self.dropped),
+            "notes": list(self.notes),
+            "cautions": list(self.cautions),
+        }
+
+
+def solvent_at(s, temp_C: float, ref_C: float = 25.0):
+    """HSP [MPa^0.5] and molar volume [cm^3/mol] of a solvent record at ``temp_C``.
+
+    Returns ``(hsp, vm, note)``.  Raises :class:`~solvsel.errors.OutOfRangeError`
+    when the liquid is frozen or boiling there.  A liquefied gas (normal
+    boiling point below 25 C, handled under pressure) is not checked against
+    its boiling point; a liquid without an expansion coefficient keeps its
+    25 C values, with a note.
+    """
+    from . import hansen
+
+    h = np.array([s.dD, s.dP, s.dH], dtype=float)
+    vm = float(s.vm_cm3_mol)
+    if abs(temp_C - ref_C) < 1e-9:
+        return h, vm, ""
+    gas = s.bp_C is not None and s.bp_C < ref_C
+    if s.alpha_1_K is None:
+        hansen._check_temperature(temp_C, s.mp_C, None if gas else s.bp_C)
+        return h, vm, f"no expansion coefficient: HSP kept at {ref_C:g} C"
+    h2, vm2 = hansen.shift_temperature(h, s.alpha_1_K, temp_C, ref_C, vm, s.mp_C, None if gas else s.bp_C)
+    note = "liquefied gas: held under pressure" if gas else ""
+    return h2, float(vm2), note
+
+
+def _solubility(target: Target, h, vm, s, temp_C):
+    sol = target.solute
+    if sol is None or sol.mp_C is None or sol.dHfus_kJ_mol is None or sol.vm_cm3_mol is None or sol.mw_g_mol is None:
+        return None
+    if temp_C >= sol.mp_C:
+        return None
+    if s.mw_g_mol is None:
+        return None
+    from .hansen import solid_solubility
+
+    e = solid_solubility(target.hsp, sol.vm_cm3_mol, sol.mw_g_mol, sol.mp_C, sol.dHfus_kJ_mol, h, vm, s.mw_g_mol, temp_C)
+    return {"mole_fraction": e.mole_fraction, "mass_fraction": e.mass_fraction, "g_per_L": e.g_per_L,
+            "ideal_mole_fraction": e.ideal_mole_fraction, "basis": "estimated"}
+
+
+def _hazard_label(s):
+    """(label, short code) of the GHS class, e.g. ("flammable liquid, ...", "H225")."""
+    from .compliance import hazard_class
+
+    try:
+        hz = hazard_class(s.flash_C, s.bp_C, s.flammable)
+    except (InputError, MissingDataError, ValueError, TypeError):
+        return None, None
+    if hz is None:
+        return None, None
+    return hz.label or hz.kind, hz.hazard_statement or hz.kind
+
+
+def _cautions(results, defer: str) -> tuple[str, ...]:
+    """Cautions of the shown results, each once, the closing deferral last."""
+    seen = dict.fromkeys(c for r in results for c in r.cautions if c != defer)
+    return tuple(seen) + (defer,)
+
+
+def rank_solvents(
+    cat,
+    target: Target,
+    temp_C: float = 25.0,
+    names=None,
+    food: bool = False,
+    use: str | None = None,
+    jurisdiction: str | None = None,
+    top: int | None = None,
+    dose=None,
+    category: str | None = None,
+    keep_over: bool = False,
+    exclude=(),
+) -> Ranking:
+    """Rank single solvents for a target by RED (or Ra when R0 is unknown).
+
+    Parameters
+    ----------
+    cat : Catalog
+    target : Target
+    temp_C : float
+        temperature [C]; solvents are shifted with
+        :func:`~solvsel.hansen.shift_temperature` (the target's HSP stays at
+        25 C: solutes carry no expansion coefficient), solubility estimates use
+        it directly; a solvent frozen or boiling there is dropped with the reason
+    names : sequence of str, optional
+        the pool (default: every solvent of the catalog, the user's included)
+    food : bool
+        keep only liquids whose food status for ``use`` is permitted or
+        conditional (:func:`solvsel.compliance.food_status`; "no data" is never
+        taken as permission)
+    use : {"carrier", "extraction", "bench"}, optional
+        the intended use (default carrier), for food status and cautions
+    jurisdiction : {"EU", "US"}, optional
+    top : int, optional
+        keep the best ``top``
+    dose, category : optional
+        dose of the flavour in the first stage ("0.15%") and the food category:
+        each carrier is checked with :func:`solvsel.compliance.carrier_dose_check`
+        (needs ``jurisdiction``); one that breaks a limit is dropped unless
+        ``keep_over``
+    exclude : sequence of str
+        names to leave out (e.g. the liquid itself for substitutes)
+
+    Returns
+    -------
+    Ranking
+    """
+    from . import compliance, hansen
+
+    if not (isinstance(temp_C, (int, float)) and math.isfinite(temp_C)):
+        raise InputError(f"--temp: expected a temperature in C, got {temp_C}")
+    hansen._check_temperature(temp_C)
+    if (dose is not None) != (category is not None):
+        raise InputError("--dose and --category go together: the dose check needs both (and --jurisdiction)")
+    if dose is not None and jurisdiction is None:
+        raise InputError("--dose needs --jurisdiction EU or US: limits differ by jurisdiction")
+    if top is not None and (not isinstance(top, int) or top < 1):
+        raise InputError(f"--top: expected a whole number of at least 1, got {top}")
+    use = use or "carrier"
+    recs = cat.solvent_records() if names is None else [cat.solvent(n) for n in names]
+    skip = {cat.solvent(n).name for n in exclude}
+    results, dropped = [], []
+    notes = []
+    if abs(temp_C - 25.0) > 1e-9:
+        notes.append(f"solvent HSP shifted from 25 to {temp_C:g} C (Hansen and Beerbower 1971); the target's HSP are at 25 C")
+    if target.r0 is None:
+        notes.append("the target has no R0: ranked by Ra, RED not given")
+    all_cautions: list[str] = []
+    for s in recs:
+        if s.name in skip:
+            continue
+        try:
+            h, vm, tnote = solvent_at(s, temp_C)
+        except (InputError, MissingDataError) as exc:
+            dropped.append({"name": s.name, "cas": s.cas, "reason": str(exc)})
+            continue
+        status = None
+        allowed = None
+        try:
+            fs = compliance.food_status(cat, s, use=use, jurisdiction=jurisdiction)
+            status, allowed = fs.status, fs.allowed
+        except (InputError, MissingDataError, LookupError) as exc:
+            if food:
+                dropped.append({"name": s.name, "cas": s.cas, "reason": f"food status unknown: {exc}"})
+                continue
+        if food and not allowed:
+            dropped.append({"name": s.name, "cas": s.cas, "reason": f"food status as {use}: {status}"})
+            continue
+        dose_info = None
+        row_notes = [n for n in (tnote,) if n]
+        if dose is not None:
+            chk = compliance.carrier_dose_check(cat, s, dose, jurisdiction, category)
+            dose_info = {
+                "ok": chk.ok, "complete": chk.complete, "max_dose": chk.max_dose,
+                "max_dose_unit": chk.max_dose_unit,
+                "binding_rule": chk.binding.rule if chk.binding is not None else None,
+            }
+            if not chk.ok and not keep_over:
+                why = f"breaks a limit at the dose {dose}"
+                if chk.binding is not None:
+                    why += f" ({chk.binding.rule})"
+                dropped.append({"name": s.name, "cas": s.cas, "reason": why})
+                continue
+            if not chk.ok:
+                row_notes.append("over a limit at this dose")
+            if not chk.complete:
+                row_notes.append("no limit data for some part in this jurisdiction (not a permission)")
+        r = float(hansen.ra(h, target.hsp))
+        red = r / target.r0 if target.r0 else None
+        try:
+            sol = _solubility(target, h, vm, s, temp_C)
+        except (InputError, MissingDataError):
+            sol = None
+        cautions = tuple(compliance.solvent_cautions(s, use=use, cat=cat))
+        all_cautions.extend(cautions)
+        if s.is_user:
+            row_notes.append(f"your row ({s.origin})")
+        results.append(RankedSolvent(
+            s.name, s.cas, r, red, float(h[0]), float(h[1]), float(h[2]), vm, s.bp_C, s.flash_C,
+            *_hazard_label(s), status, allowed, s.cost_class, s.water_miscibility, sol, dose_info,
+            cautions, tuple(row_notes), s.origin, tuple(s.sources),
+        ))
+    results.sort(key=lambda x: (x.ra, x.name))
+    if top is not None:
+        results = results[:top]
+    if target.solute is not None and target.solute.dHfus_kJ_mol is None:
+        notes.append("no enthalpy of fusion for this solute in the table: no solubility estimate")
+    elif target.solute is not None:
+        notes.append("solubility columns are estimates (ideal solubility x HSP activity coefficient); confirm at the bench")
+    if target.basis == "estimated":
+        notes.append("the target's HSP are estimated from structure: a screening result")
+    caut = _cautions(results, compliance.DEFER)
+    return Ranking(target, float(temp_C), tuple(results), tuple(dropped), tuple(notes), caut, "red" if target.r0 else "ra")
+
+
+def nearest_liquids(cat, name: str, k: int = 10, food: bool = False, use: str | None = None, jurisdiction: str | None = None, temp_C: float = 25.0) -> Ranking:
+    """The liquids nearest to a given liquid in Hansen space (substitutes).
+
+    Uses scikit-learn's :class:`~sklearn.neighbors.NearestNeighbors` on the
+    coordinates (2 dD, dP, dH) of :func:`solvsel.hansen.scaled`, in which
+    Euclidean distance equals Ra; for replacing a solvent that is banned,
+    toxic or costly.  The pool can be restricted to food-grade liquids
+    (``food``); the liquid itself is left out.
+
+    Parameters
+    ----------
+    name : str
+        the liquid to replace
+    k : int
+        how many neighbours
+    """
+    from sklearn.neighbors import NearestNeighbors
+
+    from . import hansen
+
+    me = cat.solvent(name)
+    if not isinstance(k, int) or k < 1:
+        raise InputError(f"--top: expected a whole number of at least 1, got {k}")
+    target = Target(me.name, float(me.dD), float(me.dP), float(me.dH), None, "table", None,
+                    f"the liquid to replace; HSP source {me.hsp_source}", me.vm_cm3_mol)
+    full = rank_solvents(cat, target, temp_C=temp_C, food=food, use=use, jurisdiction=jurisdiction, exclude=[me.name])
+    if not full.results:
+        return full
+    pts = hansen.scaled(np.array([[r.dD, r.dP, r.dH] for r in full.results]))
+    nn = NearestNeighbors(n_neighbors=min(k, len(pts))).fit(pts)
+    dist, idx = nn.kneighbors(hansen.scaled(me.hsp)[None, :])
+    chosen = [full.results[i] for i in idx[0]]
+    notes = full.notes + (f"nearest liquids to {me.name} (Ra in MPa^0.5); similar HSP is not similar toxicity, taste or legal status",)
+    from .compliance import DEFER
+
+    return Ranking(target, full.temp_C, tuple(chosen), full.dropped, notes, _cautions(chosen, DEFER), "ra")

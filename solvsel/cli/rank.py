@@ -1,0 +1,102 @@
+"""``solvsel rank``: single solvents ranked for a target, or the nearest liquids to one."""
+
+from __future__ import annotations
+
+from ._common import add_json_flag, emit_json, get_catalog, parse_names, print_cautions, print_table
+from ._target import add_target_arguments, target_from_args
+
+
+def register(sub):
+    p = sub.add_parser(
+        "rank",
+        help="rank single solvents for a solute (or find substitutes for a liquid)",
+        description="Rank every liquid of the table (or a pool) by its Hansen distance Ra, and RED = Ra/R0 "
+        "where the target has a radius, with the estimated solubility where the solute has fusion data, "
+        "boiling and flash point, food status and the cautions that apply. With --like NAME, list the "
+        "liquids nearest to NAME in Hansen space instead (substitutes). Estimates for planning bench work.",
+    )
+    group = add_target_arguments(p)
+    group.add_argument("--like", metavar="NAME", help="find the liquids nearest to this liquid (substitutes)")
+    p.add_argument("--food", action="store_true", help="only liquids whose food status for the use is permitted or conditional")
+    p.add_argument("--use", choices=("carrier", "extraction", "bench"), default=None, help="intended use (default carrier)")
+    p.add_argument("--jurisdiction", choices=("EU", "US"), help="food law to apply (default: most permissive of EU and US)")
+    p.add_argument("--only", metavar="NAMES", help="rank only these liquids (comma-separated)")
+    p.add_argument("--top", type=int, default=15, metavar="N", help="show the best N (default 15)")
+    p.add_argument("--all", action="store_true", help="show every ranked liquid")
+    p.add_argument("--temp", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
+    p.add_argument("--dose", metavar="DOSE", help="dose of the flavour in the food, e.g. 0.15%% (needs --category and --jurisdiction)")
+    p.add_argument("--category", metavar="CATEGORY", help="food category for the dose check (see: solvsel table food_categories)")
+    p.add_argument("--keep-over", action="store_true", help="keep carriers that break a limit at the dose (flagged) instead of dropping them")
+    add_json_flag(p)
+    return p
+
+
+def compute(args, cat):
+    """The :class:`~solvsel.target.Ranking` the options ask for."""
+    from ..errors import InputError
+    from ..target import nearest_liquids, rank_solvents
+
+    top = None if args.all else args.top
+    if top is not None and top < 1:
+        raise InputError(f"--top: expected a whole number of at least 1, got {top}")
+    if args.like:
+        if args.dose or args.only:
+            raise InputError("--like finds substitutes among all liquids: it does not take --dose or --only")
+        return nearest_liquids(cat, args.like, k=top or 10_000, food=args.food, use=args.use,
+                               jurisdiction=args.jurisdiction, temp_C=args.temp)
+    target = target_from_args(args, cat)
+    names = parse_names(args.only, "--only") if args.only else None
+    return rank_solvents(cat, target, temp_C=args.temp, names=names, food=args.food, use=args.use,
+                         jurisdiction=args.jurisdiction, top=top, dose=args.dose, category=args.category,
+                         keep_over=args.keep_over)
+
+
+def _fmt_sol(r):
+    s = r.solubility
+    if not s:
+        return None
+    return s["g_per_L"]
+
+
+def run(args) -> int:
+    cat = get_catalog(args)
+    result = compute(args, cat)
+    if args.json:
+        emit_json(result)
+        return 0
+    t = result.target
+    head = f"Target: {t.name} ({t.basis})  dD {t.dD:.1f}  dP {t.dP:.1f}  dH {t.dH:.1f}"
+    head += f"  R0 {t.r0:.1f}" if t.r0 else "  R0 unknown"
+    head += f"   at {result.temp_C:g} C"
+    print(head)
+    print()
+    rows = []
+    for i, r in enumerate(result.results, 1):
+        flag = []
+        if r.dose and not r.dose["ok"]:
+            flag.append("OVER LIMIT")
+        if r.origin.startswith("user"):
+            flag.append("yours")
+        rows.append({
+            "n": i, "name": r.name, "ra": r.ra, "red": r.red, "sol": _fmt_sol(r),
+            "bp": r.bp_C, "flash": r.flash_C, "hazard": r.hazard_code or "", "food": r.food_status or "-",
+            "flag": ", ".join(flag + list(r.notes)),
+        })
+    cols = [("n", "#"), ("name", "liquid"), ("ra", "Ra", ".2f")]
+    if t.r0:
+        cols.append(("red", "RED", ".2f"))
+    if any(r.solubility for r in result.results):
+        cols.append(("sol", "est. g/L", ".3g"))
+    cols += [("bp", "bp C", ".0f"), ("flash", "flash C", ".0f"), ("hazard", "GHS"), ("food", "food status"), ("flag", "notes")]
+    if rows:
+        print_table(rows, cols)
+    else:
+        print("No liquid is left after the filters.")
+    if result.dropped:
+        print(f"\nLeft out: {len(result.dropped)} liquid(s)", end="")
+        shown = result.dropped[:5]
+        print(": " + "; ".join(f"{d['name']} ({d['reason']})" for d in shown) + (" ..." if len(result.dropped) > 5 else ""))
+    for n in result.notes:
+        print(f"Note: {n}")
+    print_cautions(result.cautions)
+    return 0
