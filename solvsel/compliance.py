@@ -1166,9 +1166,13 @@ def check_dose(
             rules_of[k] = rows
         else:
             why = "no CAS number, so no rule can be looked up" if not cas else "no rule in the bundled table"
+            elsewhere = sorted({r.food_category for r in limits(cat, cas=cas, jurisdiction=jur, use=FINISHED_FOOD_USES)}) if cas else []
+            hint = f" (the table has {jur} rules for it in: {', '.join(elsewhere)})" if elsewhere else ""
             no_data.append({
                 "substance": names[k][0], "cas": cas, "jurisdiction": jur, "category": fc.name,
-                "message": f"{names[k][0]}: {why} for {jur} / {fc.name}; that is not a permission (check the rules in force)",
+                "message": f"{names[k][0]}: {why} for {jur} / {fc.name}{hint}; that is not a permission "
+                           "(check the rules in force)",
+                "rules_in_categories": elsewhere,
             })
     # one check per rule, summed over the members of a group
     checks_raw: dict[tuple, dict] = {}

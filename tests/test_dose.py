@@ -322,3 +322,21 @@ def test_group_level_is_the_sum_and_max_dose_meets_the_limit(parts, dose, rho):
     assert grp.level == pytest.approx(members * dose * 1e6 * rho, rel=1e-9)
     at_max = cp.check_dose(cat, f, chain=f"drink d={rho!r}", dose=r.max_dose, jurisdiction="EU", category="flavoured drinks")
     assert only(at_max.checks, grp.rule).level == pytest.approx(1000, rel=1e-9)
+
+
+def test_practice_worked_check_ester_gum_per_litre(cat):
+    # Practice worked check (US 21 CFR 172.735, 100 ppm): a concentrate with 24 % ester gum dosed at 1 g/L puts
+    # 240 mg/L in the drink and is limited to about 0.42 g/L (at density 1.00: 100 / 240 g/L = 0.4167 g/L)
+    f = fm.formula_from_amounts(cat, [("ester gum", 24), ("water", 76)])
+    r = cp.check_dose(cat, f, chain="drink 1g/L d=1.00", jurisdiction="US", category="flavoured drinks")
+    assert r.stages[-1].mg_per_L["8050-30-4"] == pytest.approx(240)
+    assert r.max_dose == pytest.approx(0.41667, rel=1e-4) and r.max_dose_unit == "g/L"
+
+
+def test_no_data_points_to_categories_with_rules(cat):
+    # EU E 445 is limited in flavoured drinks (1333/2008 Annex II 14.1.4); for "beverages" in general the table
+    # has no row, and the result says where it has one instead of treating it as allowed
+    f = fm.formula_from_amounts(cat, [("ester gum", 10), ("water", 90)])
+    r = cp.check_dose(cat, f, dose="0.1%", jurisdiction="EU", category="beverages")
+    gum = [d for d in r.no_data if d["cas"] == "8050-30-4"]
+    assert gum and gum[0]["rules_in_categories"] == ["flavoured drinks"] and not r.complete
