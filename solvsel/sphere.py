@@ -71,7 +71,7 @@ __all__ = [
 #: Search bounds of the centre [MPa^0.5]: (dD, dP, dH) low/high.  They span
 #: the food and pharmaceutical solutes of the handbook's tables with room to
 #: spare (common practice); the fit flags a centre that ends on a bound.
-DEFAULT_BOUNDS = ((12.0, 25.0), (0.0, 35.0), (0.0, 40.0))
+DEFAULT_BOUNDS = ((12.0, 25.0), (0.0, 30.0), (0.0, 40.0))
 
 #: Ways to choose one sphere among those that fit equally well.
 RULES = ("margin", "classic")
@@ -1025,3 +1025,320 @@ def suggest_tests(fit: SphereFit, hsp, names, k: int = 5, exclude=()) -> list[Su
         why = f"RED {redv[j]:.2f}: near the surface, toward " + _describe_direction(vec)
         out.append(SuggestedTest(str(nm[j]), float(redv[j]), *map(float, X[j]), tuple(float(x) for x in vec), why))
     return out
+
+
+# --------------------------------------------------------------------------
+# bench files (the edge: a user's CSV in, a solute row out)
+
+#: Columns of a bench file; ``liquid`` and ``result`` are required.
+BENCH_COLUMNS = ("liquid", "result", "dD", "dP", "dH", "weight", "note")
+WORD_RESULTS = {"good": "good", "partial": "partial", "bad": "bad"}
+
+
+@dataclass(frozen=True)
+class BenchRow:
+    """One liquid of a bench file, resolved to its HSP."""
+
+    row: int
+    label: str
+    key: str
+    dD: float
+    dP: float
+    dH: float
+    result: str
+    score: float | None
+    weight: float
+    basis: str
+
+
+@dataclass(frozen=True)
+class BenchData:
+    """The rows of a bench file, ready for :func:`fit_sphere`."""
+
+    path: str
+    rows: tuple
+    scale: str  # "words" or "numbers"
+
+    @property
+    def hsp(self) -> np.ndarray:
+        return np.array([[r.dD, r.dP, r.dH] for r in self.rows])
+
+    @property
+    def names(self) -> list[str]:
+        return [r.label for r in self.rows]
+
+
+def _parse_blend(text: str):
+    """``"ethanol:water=70:30"`` -> [("ethanol", 70.0), ("water", 30.0)], or None if not a blend."""
+    if "=" not in text or ":" not in text:
+        return None
+    left, _, right = text.rpartition("=")
+    names = [n.strip() for n in left.split(":")]
+    parts = [p.strip() for p in right.split(":")]
+    if len(names) != len(parts) or len(names) < 2 or not all(names):
+        raise ValueError("a blend is written NAME:NAME=PARTS:PARTS, e.g. ethanol:water=70:30 (parts by volume)")
+    try:
+        amounts = [float(p.rstrip("%")) for p in parts]
+    except ValueError:
+        raise ValueError(f"the parts of a blend must be numbers, got '{right.strip()}'") from None
+    if any(not math.isfinite(a) or a < 0 for a in amounts) or sum(amounts) <= 0:
+        raise ValueError(f"the parts of a blend must be zero or positive and not all zero, got '{right.strip()}'")
+    return list(zip(names, amounts))
+
+
+def read_bench(path, cat, partial: str = "good", partial_weight: float = 0.5) -> BenchData:
+    """Read a bench file: one row per liquid tested, with its result.
+
+    Columns: ``liquid`` (a name, synonym or CAS of the solvents table; a blend
+    of table liquids by volume written ``ethanol:water=70:30``; or a liquid of
+    your own with ``dD``, ``dP``, ``dH``), ``result`` (good / partial / bad,
+    or a number on your scale), and optionally ``weight`` (a positive
+    number, default 1) and ``note``.  Lines starting with ``#`` are comments.
+    Every row is either used or reported as an error naming the file, the row
+    and the column: none is dropped silently.
+
+    Parameters
+    ----------
+    path : str or Path
+        the CSV file (UTF-8)
+    cat : Catalog
+        the catalog whose liquids the names refer to
+    partial : {"good", "bad"}
+        how a partial result counts
+    partial_weight : float
+        weight of a partial result, > 0 [-]
+    """
+    import csv
+    from pathlib import Path
+
+    from .errors import TableError, UnknownNameError
+    from .hansen import mix
+
+    if partial not in ("good", "bad"):
+        raise InputError(f"partial: expected good or bad, got '{partial}'")
+    if not (partial_weight > 0 and math.isfinite(partial_weight)):
+        raise InputError(f"partial weight: expected a positive number, got {partial_weight}")
+    p = Path(path)
+    if not p.is_file():
+        raise InputError(f"{p}: no such file (a CSV with columns liquid,result[,dD,dP,dH,weight,note])")
+    try:
+        text = p.read_text(encoding="utf-8-sig")
+    except UnicodeDecodeError:
+        raise TableError(p, "not a UTF-8 text file; save it as CSV UTF-8") from None
+    lines = text.splitlines()
+    numbered = [(i + 1, ln) for i, ln in enumerate(lines) if ln.strip() and not ln.lstrip().startswith("#")]
+    if not numbered:
+        raise TableError(p, "the file is empty; expected a header row liquid,result and one row per liquid")
+    reader = csv.reader([ln for _, ln in numbered], skipinitialspace=True)
+    recs = list(reader)
+    header = [h.strip() for h in recs[0]]
+    hrow = numbered[0][0]
+    for h in header:
+        if h not in BENCH_COLUMNS:
+            raise TableError(p, f"unknown column '{h}'; the columns are {', '.join(BENCH_COLUMNS)}", row=hrow, column=h)
+    for need in ("liquid", "result"):
+        if need not in header:
+            raise TableError(p, f"missing column '{need}' (columns: liquid,result[,dD,dP,dH,weight,note])", row=hrow)
+    own_cols = [c for c in ("dD", "dP", "dH") if c in header]
+    if own_cols and len(own_cols) != 3:
+        raise TableError(p, "give all three of dD, dP, dH (for liquids of your own) or none", row=hrow)
+
+    rows, seen = [], {}
+    kinds = set()
+    for (lineno, _), raw in zip(numbered[1:], recs[1:]):
+        if len(raw) != len(header):
+            raise TableError(p, f"expected {len(header)} fields, found {len(raw)} (quote a value that holds a comma)", row=lineno)
+        rec = {h: v.strip() for h, v in zip(header, raw)}
+        label = rec["liquid"]
+        if not label:
+            raise TableError(p, "empty liquid name", row=lineno, column="liquid")
+        res = rec["result"].lower()
+        if not res:
+            raise TableError(p, "empty result; expected good, partial, bad or a number", row=lineno, column="result")
+        score = None
+        if res in WORD_RESULTS:
+            kinds.add("words")
+        else:
+            try:
+                score = float(res)
+            except ValueError:
+                raise TableError(p, f"'{rec['result']}' is not a result; expected good, partial, bad or a number",
+                                 row=lineno, column="result") from None
+            if not math.isfinite(score):
+                raise TableError(p, f"'{rec['result']}' is not a finite number", row=lineno, column="result")
+            kinds.add("numbers")
+        if len(kinds) > 1:
+            raise TableError(p, "results mix words (good/partial/bad) and numbers; use one scale in a file",
+                             row=lineno, column="result")
+        weight = 1.0
+        if rec.get("weight"):
+            try:
+                weight = float(rec["weight"])
+            except ValueError:
+                weight = math.nan
+            if not (math.isfinite(weight) and weight > 0):
+                raise TableError(p, f"'{rec['weight']}' is not a positive number", row=lineno, column="weight")
+        own = [rec.get(c, "") for c in ("dD", "dP", "dH")] if own_cols else ["", "", ""]
+        if any(own):
+            if not all(own):
+                col = ("dD", "dP", "dH")[[bool(x) for x in own].index(False)]
+                raise TableError(p, "give all three of dD, dP, dH for a liquid of your own", row=lineno, column=col)
+            vals = []
+            for c, v in zip(("dD", "dP", "dH"), own):
+                try:
+                    x = float(v)
+                except ValueError:
+                    raise TableError(p, f"'{v}' is not a number of MPa^0.5", row=lineno, column=c) from None
+                lo_, hi_ = {"dD": (10, 25), "dP": (0, 30), "dH": (0, 45)}[c]
+                if not (lo_ <= x <= hi_):
+                    raise TableError(p, f"{c} = {v} is outside {lo_}-{hi_} MPa^0.5, the range of real liquids",
+                                     row=lineno, column=c)
+                vals.append(x)
+            hsp, key, basis = vals, "own:" + label.strip().lower(), "your values"
+        else:
+            try:
+                blend = _parse_blend(label)
+            except ValueError as exc:
+                raise TableError(p, str(exc), row=lineno, column="liquid") from None
+            try:
+                if blend:
+                    recs_b = [cat.solvent(n) for n, _ in blend]
+                    amounts = np.array([a for _, a in blend])
+                    hsp = mix(np.array([r.hsp for r in recs_b]), amounts / amounts.sum())
+                    key = "blend:" + ";".join(f"{r.name}={a / amounts.sum():.4f}" for r, (_, a) in
+                                              sorted(zip(recs_b, blend), key=lambda t: t[0].name))
+                    basis = "blend of table liquids (volume-fraction average)"
+                else:
+                    r = cat.solvent(label)
+                    hsp, key = r.hsp, "liquid:" + (r.cas or r.name)
+                    basis = "table" if not r.origin.startswith("library") else r.origin
+            except UnknownNameError as exc:
+                raise TableError(p, str(exc) + "; or give dD, dP, dH for a liquid of your own",
+                                 row=lineno, column="liquid") from None
+        if key in seen:
+            raise TableError(p, f"'{label}' is the same liquid as row {seen[key]}; keep one result per liquid "
+                                "(or average repeats into one score)", row=lineno, column="liquid")
+        seen[key] = lineno
+        result = WORD_RESULTS.get(res, "score")
+        if result == "partial":
+            weight *= partial_weight
+        rows.append(BenchRow(lineno, label, key, *map(float, hsp), result, score, weight, basis))
+    if not rows:
+        raise TableError(p, "no liquids: expected one row per liquid tested under the header")
+    return BenchData(str(p), tuple(rows), kinds.pop())
+
+
+def fit_bench(data: BenchData, *, partial: str = "good", good_at_most=None, good_at_least=None, **kw) -> SphereFit:
+    """Fit a sphere to a :class:`BenchData` (see :func:`fit_sphere` for ``kw``)."""
+    w = np.array([r.weight for r in data.rows])
+    if data.scale == "words":
+        if good_at_most is not None or good_at_least is not None:
+            raise InputError("--good-at-most / --good-at-least apply to numeric scores; this file has good/partial/bad")
+        good = np.array([r.result == "good" or (r.result == "partial" and partial == "good") for r in data.rows])
+        return fit_sphere(data.hsp, good, w, names=data.names, **kw)
+    if good_at_most is None and good_at_least is None:
+        raise InputError(
+            f"{data.path}: the results are numbers; say where good ends with --good-at-most N "
+            "(low is best, e.g. 1-6) or --good-at-least N (high is best)"
+        )
+    scores = np.array([r.score for r in data.rows])
+    return fit_sphere(data.hsp, scores, w, names=data.names, good_at_most=good_at_most,
+                      good_at_least=good_at_least, **kw)
+
+
+def solute_row(fit: SphereFit, name: str, source: str, category: str = "other") -> dict:
+    """A row of the solutes table (its column names) holding a fitted sphere."""
+    iv = fit.interval
+    method = (f"bench fit ({fit.rule} rule) of {fit.n_liquids} liquids, {fit.n_good} good, "
+              f"desirability {fit.fit:.3f}")
+    if iv.get("method") == "profile":
+        method += "; {:.0f} % profile interval dD {:.1f}-{:.1f}, dP {:.1f}-{:.1f}, dH {:.1f}-{:.1f}, R0 {:.1f}-{:.1f}".format(
+            100 * iv["level"], *iv["dD"], *iv["dP"], *iv["dH"], *iv["r0"])
+    note = fit.open_note if fit.open else ""
+    if fit.wrong_side:
+        note = (note + "; " if note else "") + "wrong side: " + ", ".join(f"{w.name} (RED {w.red:.2f})" for w in fit.wrong_side)
+    return {
+        "name": name, "synonyms": "", "cas": "", "category": category,
+        "dD_MPa05": f"{fit.dD:.2f}", "dP_MPa05": f"{fit.dP:.2f}", "dH_MPa05": f"{fit.dH:.2f}",
+        "r0_MPa05": f"{fit.r0:.2f}", "hsp_basis": "fitted", "hsp_method": method,
+        "hsp_source": source, "mw_g_mol": "", "mp_C": "", "dHfus_kJ_mol": "", "vm_cm3_mol": "",
+        "smiles": "", "props_source": source, "note": note,
+    }
+
+
+def save_solute(row: dict, path, tables_dir=None) -> str:
+    """Append ``row`` to the user's solutes CSV at ``path`` (created if missing).
+
+    The user's other rows are kept byte for byte: the new file is written
+    beside the old one, validated as a solutes table, and only then moved in
+    place.  A name already in the file is refused.  Returns "created" or
+    "appended".
+    """
+    import csv
+    import io
+    import os
+    import tempfile
+    from pathlib import Path
+
+    from .catalog import TABLES_DIR, normalize_name, read_table
+    from .errors import TableError
+
+    tdir = Path(tables_dir) if tables_dir is not None else TABLES_DIR
+    p = Path(path)
+    if p.exists() and not p.is_file():
+        raise InputError(f"--into {p}: not a file")
+    if p.exists():
+        old = p.read_bytes()
+        try:
+            text = old.decode("utf-8-sig")
+        except UnicodeDecodeError:
+            raise TableError(p, "not a UTF-8 text file; nothing was written") from None
+        lines = text.splitlines()
+        if not lines:
+            raise TableError(p, "the file is empty (no header); delete it or give another --into; nothing was written")
+        header = next(csv.reader([lines[0]]))
+        missing = [c for c in row if c not in header and row[c] != ""]
+        if missing:
+            raise TableError(p, f"the file has no column {missing[0]!r} for the fitted sphere; nothing was written", row=1)
+        for i, rec in enumerate(csv.DictReader(io.StringIO(text)), start=2):
+            if normalize_name(rec.get("name") or "") == normalize_name(row["name"]):
+                raise InputError(f"--save-as {row['name']!r}: {p} already has a solute of that name (row {i}); "
+                                 "choose another name; nothing was written")
+        buf = io.StringIO()
+        csv.DictWriter(buf, fieldnames=header, lineterminator="\n", extrasaction="ignore").writerow(row)
+        sep = b"" if old.endswith(b"\n") or not old else b"\n"
+        new = old + sep + buf.getvalue().encode("utf-8")
+        what = "appended"
+    else:
+        from .catalog import _load_schema
+
+        header = [s.column for s in _load_schema(tdir)["solutes"]]
+        buf = io.StringIO()
+        w = csv.DictWriter(buf, fieldnames=header, lineterminator="\n", extrasaction="ignore")
+        w.writeheader()
+        w.writerow(row)
+        new = buf.getvalue().encode("utf-8")
+        what = "created"
+    parent = p.resolve().parent
+    if not parent.is_dir():
+        raise InputError(f"--into {p}: the folder {parent} does not exist")
+    fd, tmp = tempfile.mkstemp(prefix=".solvsel-", suffix=".csv", dir=parent)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(new)
+        try:
+            read_table(tmp, "solutes", tables_dir=tdir, user=True)
+        except TableError as exc:
+            raise TableError(p, f"the file would not be a valid solutes table ({exc.message}); nothing was written",
+                             row=exc.row, column=exc.column) from None
+        if p.exists():
+            os.chmod(tmp, p.stat().st_mode & 0o777)
+        else:
+            mask = os.umask(0)
+            os.umask(mask)
+            os.chmod(tmp, 0o666 & ~mask)
+        os.replace(tmp, p)
+    finally:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+    return what
