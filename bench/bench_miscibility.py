@@ -1,0 +1,86 @@
+"""How well does the Flory-Huggins prediction from HSP do without the table?
+
+For every measured pair of tables/miscibility.csv, the model's verdict
+(:func:`solvsel.miscibility.predict_pair`, which never looks at the table) is
+compared with the measurement: the share predicted right as miscible in all
+proportions vs not, by group (pairs with water, other pairs), the confusion
+counts, and for partial pairs with tabulated solubilities the log10 error of
+the predicted mutual solubilities.  Then the speed of the pair matrix and of
+the array screen of 490,000 candidate blends.  Prints numbers; not a test.
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+import sys
+import time
+from pathlib import Path
+
+import numpy as np
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT))
+
+from solvsel import miscibility as M  # noqa: E402
+from solvsel.catalog import load_catalog  # noqa: E402
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__)
+    ap.add_argument("--quick", action="store_true", help="skip the full 74-liquid matrix timing")
+    args = ap.parse_args()
+    cat = load_catalog()
+    df = cat.table("miscibility")
+    groups = {"with water": [], "without water": []}
+    sol_err = []
+    confusion = {}
+    for row in df.to_dict("records"):
+        a, b = cat.solvent(row["liquid_a"]), cat.solvent(row["liquid_b"])
+        pred = M.predict_pair(a, b, float(row["temp_C"]))
+        measured_full = row["one_phase"] == "full"
+        predicted_full = pred.one_phase == "yes"
+        key = "with water" if "water" in (a.name, b.name) else "without water"
+        groups[key].append(measured_full == predicted_full)
+        confusion[(row["one_phase"], pred.one_phase)] = confusion.get((row["one_phase"], pred.one_phase), 0) + 1
+        if row["one_phase"] == "partial" and pred.window:
+            for col, k in (("b_in_a_wt", "b_in_a_max"), ("a_in_b_wt", "a_in_b_max")):
+                v = row.get(col)
+                if v is not None and not (isinstance(v, float) and math.isnan(v)) and pred.window.get(k):
+                    sol_err.append(math.log10(pred.window[k] * 100.0 / float(v)))
+    total = groups["with water"] + groups["without water"]
+    print(f"Flory-Huggins from HSP against {len(total)} measured pairs (miscible in all proportions vs not)")
+    for k, v in groups.items():
+        print(f"  {k:14s}: {sum(v):3d} / {len(v):3d} right = {100 * sum(v) / len(v):5.1f} %")
+    print(f"  {'all':14s}: {sum(total):3d} / {len(total):3d} right = {100 * sum(total) / len(total):5.1f} %")
+    print("  confusion (measured -> predicted):")
+    for (m, p), n in sorted(confusion.items()):
+        print(f"    {m:8s} -> {p:8s}: {n}")
+    if sol_err:
+        e = np.array(sol_err)
+        print(f"  partial pairs, predicted mutual solubility: {len(e)} values, mean log10 error {e.mean():+.2f}, "
+              f"RMS {math.sqrt(np.mean(e ** 2)):.2f} decades")
+
+    names = [s.name for s in cat.solvent_records()]
+    pool = names[:20]
+    t = time.perf_counter()
+    m20 = M.pair_matrix(cat, pool)
+    t20 = time.perf_counter() - t
+    print(f"pair matrix of 20 liquids (190 pairs): {t20:.3f} s")
+    if not args.quick:
+        t = time.perf_counter()
+        M.pair_matrix(cat, names)
+        print(f"pair matrix of all {len(names)} liquids ({len(names) * (len(names) - 1) // 2} pairs): {time.perf_counter() - t:.2f} s")
+    rng = np.random.default_rng(0)
+    idx = np.stack([rng.choice(20, 3, replace=False) for _ in range(490_000)])
+    frac = rng.dirichlet([1, 1, 1], size=490_000)
+    best = 1e9
+    for _ in range(3):
+        t = time.perf_counter()
+        ok = m20.screen(idx, frac)
+        best = min(best, time.perf_counter() - t)
+    print(f"screen of 490,000 three-liquid blends: {1e3 * best:.0f} ms ({100 * ok.mean():.1f} % pass the pairwise test)")
+
+
+if __name__ == "__main__":
+    main()
