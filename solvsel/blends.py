@@ -1093,7 +1093,10 @@ def optimise_blends(
     K = member.sum(1)
     counts["combinations"] = int(IDX.shape[0])
     counts["bounds_not_met"] = int(np.count_nonzero(~FEAS))
-    reduced = FEAS & (K > 1) & np.any(member & (X < float(min_fraction)), axis=1)
+    # a liquid under the minimum fraction makes the blend the same as the smaller
+    # one, unless its lower bound puts it there (a required liquid)
+    lo_pad = np.append(lo, 0.0)[IDX]
+    reduced = FEAS & (K > 1) & np.any(member & (X < float(min_fraction)) & (lo_pad <= 0), axis=1)
     counts["same_as_smaller_blend"] = int(np.count_nonzero(reduced))
     cand = np.flatnonzero(FEAS & ~reduced)
 

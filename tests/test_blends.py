@@ -504,3 +504,13 @@ def test_progress_and_cancel(cat):
     assert res.success and seen and seen[-1][0] == seen[-1][1] == res.counts["combinations"]
     res = optimise_blends(cat, (16, 5, 10), max_components=3, progress=lambda d, t: False)
     assert not res.success and "cancelled" in res.message
+
+
+def test_required_liquid_below_the_component_minimum_is_kept(cat):
+    # water >= 0.02 forces 2 % water, under the 5 % component minimum: such
+    # blends are still the answer (the smaller blend without water is not allowed)
+    res = optimise_blends(cat, (15.8, 8.8, 19.4), max_components=2, only=["ethanol", "water", "propylene glycol"],
+                          bounds=["water>=0.02"])
+    assert res.results
+    best = {c.name: c.volume_fraction for c in res.results[0].components}
+    assert best == pytest.approx({"ethanol": 0.98, "water": 0.02})
