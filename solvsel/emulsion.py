@@ -460,6 +460,13 @@ def check_agent(agent: str, cas: str, jurisdiction: str, level_ppm: float, bever
     level_l = level_ppm * beverage_density
     banned = [r for r in rules if r.status in ("not permitted", "revoked")]
     numeric = [r for r in rules if r.limit_mg is not None and r.basis in ("mass", "volume")]
+    gmp = [r for r in rules if r.status == "GMP" and r.limit_mg is None]
+    if gmp and not numeric and not banned:
+        r = gmp[0]
+        flag = " (not confirmed against the official text: verify)" if r.flagged else ""
+        return AgentCheck(agent, cas, jurisdiction, level_ppm, level_l, None, "GMP", r.rule, True,
+                          f"{agent}: permitted at good manufacturing practice, no numerical limit "
+                          f"({jurisdiction} {r.rule}){flag}")
     if banned and not numeric:
         r = banned[0]
         return AgentCheck(agent, cas, jurisdiction, level_ppm, level_l, None, r.status, r.rule, level_ppm == 0,
@@ -683,12 +690,12 @@ def sucrose_table(cat) -> tuple[np.ndarray, np.ndarray]:
     return df["sucrose_wt_pct"].to_numpy(float), df["density_20C_g_cm3"].to_numpy(float)
 
 
-def agent_limits(cat, agent: str, cas: str, jurisdiction: str, category: str) -> list[AgentLimit]:
-    """Weighting-agent rules in force for ``agent`` from :func:`solvsel.compliance.limits`."""
+def agent_limits(cat, agent: str, cas: str, jurisdiction: str, category: str, use: str = "weighting") -> list[AgentLimit]:
+    """Rules in force for ``agent`` used as ``use`` ("weighting" or "emulsifier"), from :func:`solvsel.compliance.limits`."""
     from .compliance import limits
 
     rows = limits(cat, cas=cas or None, substance=None if cas else agent, jurisdiction=jurisdiction,
-                  category=category, use="weighting")
+                  category=category, use=use)
     return [AgentLimit(agent, r.jurisdiction, r.rule, r.limit_mg, r.basis, r.status, r.flagged, r.note) for r in rows]
 
 
@@ -742,6 +749,7 @@ class EmulsionDesign:
     distribution: DistributionCreaming | None
     weighting: dict
     weighting_excluded: dict
+    emulsifier: dict | None
     ripening: RipeningCheck
     jurisdictions: tuple[str, ...]
     category: str
@@ -778,6 +786,8 @@ def design_beverage_emulsion(
     category: str = "flavoured drinks",
     oil_densities: Mapping[str, float] | None = None,
     nano: bool = False,
+    emulsifier: str | None = None,
+    emulsifier_ratio: float | None = None,
 ) -> EmulsionDesign:
     """Density match, legal check of the weighting agents, creaming and ripening of a beverage emulsion.
 
@@ -787,6 +797,9 @@ def design_beverage_emulsion(
     the parts of finished drink made from one part of concentrate (mass), and
     ``oil_in_concentrate`` the oil phase's mass fraction of the concentrate.
     Over-limit agents are data (``ok`` False, ``refusals``), not exceptions.
+    With ``emulsifier`` (a row of the emulsifiers table) its amount follows
+    from its usual use ratio to oil (or ``emulsifier_ratio``, g per g of oil
+    phase) and its level in the drink is checked like the agents'.
     """
     from .hlb import normalize_fractions
 
@@ -860,6 +873,27 @@ def design_beverage_emulsion(
                 if chk.limit_ppm is None:
                     excluded.setdefault(j, []).append(chk.message)
             weighting[j] = weighting_options(rho_base, rho_b, oil_ppm, cands)
+    emul = None
+    if emulsifier is not None:
+        erow = cat.find("emulsifiers", emulsifier)
+        ratio = _num(emulsifier_ratio) if emulsifier_ratio is not None else _num(erow.get("use_ratio_to_oil"))
+        if ratio is None or ratio <= 0:
+            raise MissingDataError(f"no use ratio to oil on record for '{erow['name']}': give it (g per g of oil phase)")
+        emul = {"name": erow["name"], "cas": str(erow.get("cas") or ""), "ratio_to_oil": ratio,
+                "ratio_basis": "given" if emulsifier_ratio is not None else "table (usual use ratio)",
+                "in_concentrate": ratio * float(oil_in_concentrate), "level_ppm": None, "checks": []}
+        if emul["in_concentrate"] >= 1.0 - float(oil_in_concentrate):
+            raise InputError(f"{erow['name']} at {ratio:g} g per g of oil leaves no water in the concentrate")
+        if oil_ppm is not None:
+            level = ratio * oil_ppm
+            emul["level_ppm"] = level
+            for j in jurisdictions:
+                chk = check_agent(erow["name"], emul["cas"], j, level, rho_b,
+                                  agent_limits(cat, erow["name"], emul["cas"], j, category, use="emulsifier"))
+                emul["checks"].append(chk.to_dict())
+                if not chk.ok:
+                    refusals.append(chk.message)
+                    checks.append(chk)
     ripe = ripening_check(comps, nano=nano)
     cautions = list(EMULSION_CAUTIONS)
     if brix is not None:
@@ -880,7 +914,8 @@ def design_beverage_emulsion(
         agent_level_ppm=total_agent, agent_limit_ppm=None if binding is None else binding[1], agents=tuple(checks),
         droplet_diameter_um=None if droplet_um is None else float(droplet_um), viscosity_mPa_s=float(viscosity_mpa_s),
         creaming_mm_per_day=v, height_mm=float(height_mm), shelf_days=float(shelf_days), time_to_cream_days=t_cream,
-        max_droplet_um=d_max, distribution=dist, weighting=weighting, weighting_excluded=excluded, ripening=ripe,
+        max_droplet_um=d_max, distribution=dist, weighting=weighting, weighting_excluded=excluded, emulsifier=emul,
+        ripening=ripe,
         jurisdictions=tuple(jurisdictions), category=category, ok=not any(not c.ok for c in checks),
         refusals=tuple(refusals), cautions=tuple(cautions),
     )

@@ -264,3 +264,17 @@ def test_cli_over_limit_exits_2_with_the_rule():
              "--oil-phase", "15%", "--jurisdiction", "US")
     assert r.returncode == 2 and "21 CFR 172.735" in r.stderr and "Traceback" not in r.stderr
     assert "OVER" in r.stdout
+
+
+def test_emulsifier_level_checked_against_limits(cat):
+    # gum arabic is permitted at GMP in EU flavoured drinks (Reg. (EC) No 1333/2008 Annex II, group I, as on
+    # record) - allowed; quillaia extract at 1 g per g of oil in a 10 % oil phase dosed 1 in 250 puts
+    # 400 mg/kg in the drink, over 200 mg/L (Annex II cat. 14.1.4, as on record) - refused
+    ga = E.design_beverage_emulsion(cat, [("orange oil", 100)], brix=11, dilution=250, emulsifier="gum arabic",
+                                    jurisdictions=("EU",))
+    assert ga.emulsifier["level_ppm"] == pytest.approx(400.0) and all(c["ok"] for c in ga.emulsifier["checks"])
+    q = E.design_beverage_emulsion(cat, [("orange oil", 100)], brix=11, dilution=250, emulsifier="quillaia extract",
+                                   emulsifier_ratio=1.0, jurisdictions=("EU",))
+    assert not q.ok and any("quillaia extract" in m and "200 mg/L" in m for m in q.refusals)
+    with pytest.raises(MissingDataError, match="no use ratio"):
+        E.design_beverage_emulsion(cat, [("orange oil", 100)], brix=11, dilution=250, emulsifier="polysorbate 80")

@@ -42,6 +42,11 @@ def register(sub):
                    help="food category of the finished drink (solvsel table food_categories; default flavoured drinks)")
     p.add_argument("--oil-density", metavar="NAME=G_CM3,...", help="densities for oils with none on record")
     p.add_argument("--nano", action="store_true", help="the emulsion is a nanoemulsion (stricter ripening warning)")
+    p.add_argument("--emulsifier", metavar="NAME",
+                   help="emulsifier of the concentrate (e.g. gum arabic): its amount from the usual use ratio to oil, "
+                   "and its level in the drink checked against the limits on record")
+    p.add_argument("--emulsifier-ratio", type=float, metavar="G_PER_G",
+                   help="grams of emulsifier per gram of oil phase (default: the table's usual ratio)")
     add_json_flag(p)
     return p
 
@@ -69,6 +74,7 @@ def run(args) -> int:
         oil_in_concentrate=parse_percent(args.oil_phase, "--oil-phase"), droplet_um=args.droplet_um, sizes=sizes,
         viscosity_mpa_s=WATER_VISCOSITY_20C if args.viscosity is None else args.viscosity, height_mm=args.height_mm,
         shelf_days=args.shelf_days, jurisdictions=tuple(jur), category=args.category, oil_densities=dens, nano=args.nano,
+        emulsifier=args.emulsifier, emulsifier_ratio=args.emulsifier_ratio,
     )
     if args.json:
         emit_json(res)
@@ -121,6 +127,12 @@ def _print(r) -> None:
                            ("lim", "limit mg/kg"), ("rho", "oil g/cm3", ".4f"), ("ok", "")])
         for msg in r.weighting_excluded.get(j, []):
             print(f"  left out: {msg}")
+    if r.emulsifier is not None:
+        e = r.emulsifier
+        print(f"\nEmulsifier: {e['name']} at {e['ratio_to_oil']:g} g per g of oil phase ({e['ratio_basis']}), "
+              f"{e['in_concentrate']:.1%} of the concentrate")
+        for c in e["checks"]:
+            print(f"  {'ok  ' if c['ok'] else 'OVER'} {c['message']}")
     print(f"\nOstwald ripening: {'WARNING' if r.ripening.warn else 'no warning'}: {r.ripening.reason}")
     if r.ripening.remedy:
         print(f"  remedy: {r.ripening.remedy}")
