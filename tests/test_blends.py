@@ -130,6 +130,20 @@ def test_kkt_conditions_hold_at_the_optimum():
         assert v.max() < 1e-6
 
 
+def test_order_of_liquids_does_not_matter():
+    # Property (common practice for an exact solver): permuting the liquids of
+    # each combination permutes the fractions and leaves Ra unchanged.
+    rng = np.random.default_rng(5)
+    P = _random_hsp(rng, 4 * 300).reshape(300, 4, 3)
+    t = _random_hsp(rng, 1)[0]
+    lo, hi = np.array([0.0, 0.05, 0.0, 0.1]), np.array([0.8, 1.0, 0.5, 1.0])
+    a = best_fractions(P, t, lo, hi)
+    perm = np.array([2, 0, 3, 1])
+    b = best_fractions(P[:, perm], t, lo[perm], hi[perm])
+    np.testing.assert_allclose(b.ra, a.ra, atol=1e-9)
+    np.testing.assert_allclose(b.fractions, a.fractions[:, perm], atol=1e-7)
+
+
 def test_round_trip_library_liquids():
     # A target made as 55/30/15 (by volume) ethanol/water/propylene glycol, HSP
     # from chemicals' MANUEL_RUBEN_2022, blended by the volume-fraction rule of
