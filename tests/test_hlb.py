@@ -357,3 +357,12 @@ def test_engines_import_light():
             "print(any(m.split('.')[0] in ('textual', 'rdkit') or m == 'scipy.optimize' for m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
     assert out.stdout.strip() == "False", out.stderr
+
+
+def test_cli_rules_on_record_never_assumed():
+    # an emulsifier with no rule on record for the category is said so, never taken as allowed
+    r = _cli("hlb", "--target", "12", "--emulsifiers", "polysorbate 80,sorbitan monooleate", "--jurisdiction", "EU", "--json")
+    assert r.returncode == 0, r.stderr
+    rules = json.loads(r.stdout)["emulsifier_rules"]
+    assert {x["emulsifier"] for x in rules} == {"polysorbate 80", "sorbitan monooleate"}
+    assert all(x["status"] != "no data" or "not treated as allowed" in x["text"] for x in rules)

@@ -30,6 +30,10 @@ def register(sub):
     e.add_argument("--top", type=int, default=10, metavar="N", help="show the N best systems of each size (default 10)")
     e.add_argument("--min-fraction", type=float, default=0.05, metavar="F",
                    help="drop systems in which an emulsifier is below this mass fraction (default 0.05)")
+    e.add_argument("--jurisdiction", metavar="J,...",
+                   help="show the legal rules on record for the emulsifiers of the systems shown (US, EU)")
+    e.add_argument("--category", default="flavoured drinks", metavar="FOOD",
+                   help="food category for those rules (default flavoured drinks)")
     s = p.add_argument_group("structure")
     s.add_argument("--smiles", metavar="SMILES", help="HLB of this structure by Griffin (nonionic) and Davies")
     b = p.add_argument_group("bench series")
@@ -110,6 +114,8 @@ def run(args) -> int:
         if args.triples:
             triples = H.emulsifier_systems(pool, target, 3, args.min_fraction)
             out["triples"] = [s.to_dict() for s in triples[: max(args.top, 0)]]
+    if args.jurisdiction and (out.get("pairs") or out.get("triples")):
+        out["emulsifier_rules"] = _rules(cat, pool, out, args)
     if args.series:
         names = parse_names(args.series, "--series")
         if len(names) != 2:
@@ -136,6 +142,38 @@ def run(args) -> int:
         return 0
     _print(out)
     return 0
+
+
+def _rules(cat, pool, out: dict, args) -> list[dict]:
+    """Rules on record for each emulsifier shown; none on record is said, never taken as allowed."""
+    from ..compliance import limits
+    from ..errors import InputError
+
+    jur = [j.strip().upper() for j in parse_names(args.jurisdiction, "--jurisdiction")]
+    bad = [j for j in jur if j not in ("US", "EU")]
+    if bad:
+        raise InputError(f"--jurisdiction: expected US and/or EU, got '{bad[0]}'")
+    shown = []
+    for s in out.get("pairs", []) + out.get("triples", []):
+        for c in s["components"]:
+            if c["name"] not in shown:
+                shown.append(c["name"])
+    by_name = {e.name: e for e in pool}
+    rows = []
+    for name in shown:
+        e = by_name[name]
+        for j in jur:
+            found = limits(cat, cas=e.cas or None, substance=None if e.cas else name, jurisdiction=j,
+                           category=args.category, use="emulsifier")
+            if found:
+                for lim in found:
+                    rows.append({"emulsifier": name, "jurisdiction": j, "rule": lim.rule, "limit": lim.limit,
+                                 "unit": lim.unit, "status": lim.status, "text": lim.describe()})
+            else:
+                rows.append({"emulsifier": name, "jurisdiction": j, "rule": None, "limit": None, "unit": None,
+                             "status": "no data",
+                             "text": f"no rule on record for {name} in {j} {args.category}: not treated as allowed"})
+    return rows
 
 
 def _print(out: dict) -> None:
@@ -165,6 +203,11 @@ def _print(out: dict) -> None:
             rows = [{"names": " + ".join(f"{c['name']} {c['fraction']:.2f}" for c in t["components"]), "hlb": t["hlb"]}
                     for t in out["triples"]]
             print_table(rows, [("names", "emulsifiers and mass fractions"), ("hlb", "HLB", ".2f")])
+        print()
+    if out.get("emulsifier_rules"):
+        print("Legal rules on record for these emulsifiers:")
+        for r in out["emulsifier_rules"]:
+            print(f"  {r['emulsifier']}: {r['text']}")
         print()
     if "series" in out:
         s = out["series"]
