@@ -511,8 +511,7 @@ _DROPPED_LISTED = 30
 
 _GENERAL_CAUTION = (
     "Screening estimate from Hansen solubility parameters (blend HSP by volume-fraction average): "
-    "confirm solubility, phase behaviour and stability at the bench; this is not a safety, "
-    "regulatory or stability sign-off. Defer to local codes, the regulations in force and licensed practice."
+    "confirm solubility, phase behaviour and stability at the bench; measured data win."
 )
 
 
@@ -931,6 +930,8 @@ def optimise_blends(
             worst_flammable_category = -1
         if worst_flammable_category not in (1, 2, 3, 4):
             raise InputError("--worst-hazard: expected a GHS flammable-liquid category 1, 2, 3 or 4, or 'none'")
+    if max_cost is not None and int(max_cost) not in (1, 2, 3, 4, 5):
+        raise InputError(f"--max-cost: expected a cost class 1 (cheap) to 5 (dear), got {max_cost}")
     if bp_min_C is not None and bp_max_C is not None and bp_min_C > bp_max_C:
         raise InputError(f"--bp-range: lowest boiling point {bp_min_C:g} C is above the highest {bp_max_C:g} C")
     rej = _as_rejects(rejects)
@@ -1028,7 +1029,9 @@ def optimise_blends(
         "keep_over": bool(keep_over),
     }
     t_info["temp_C"] = temp_C
-    cautions = [_GENERAL_CAUTION]
+    from .compliance import DEFER
+
+    cautions = [_GENERAL_CAUTION, DEFER]
     if abs(temp_C - 25.0) > 1e-9:
         cautions.append(
             f"Liquids' HSP shifted from 25 C to {temp_C:g} C (Hansen-Beerbower); the target's are its tabulated values."

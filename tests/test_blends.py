@@ -373,7 +373,7 @@ def test_mass_fractions_and_properties(cat):
     np.testing.assert_allclose([b.dD, b.dP, b.dH], avg, atol=1e-12)
     assert float(ra(avg, [16.0, 12.0, 30.0])) == pytest.approx(b.ra, abs=1e-9)
     assert any("flash point" in c for c in b.cautions)
-    assert any("not a safety" in c for c in res.cautions)
+    assert any("not a safety" in c and "defer" in c for c in res.cautions)
 
 
 def test_temperature_shift(cat):
