@@ -1297,7 +1297,9 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
         if not lines:
             raise TableError(p, "the file is empty (no header); delete it or give another --into; nothing was written")
         header = next(csv.reader([lines[0]]))
-        missing = [c for c in row if c not in header and row[c] != ""]
+        # the sphere itself must fit; descriptive columns are written where the file has them
+        essential = ("name", "category", "dD_MPa05", "dP_MPa05", "dH_MPa05", "r0_MPa05", "hsp_basis")
+        missing = [c for c in essential if c not in header]
         if missing:
             raise TableError(p, f"the file has no column {missing[0]!r} for the fitted sphere; nothing was written", row=1)
         for i, rec in enumerate(csv.DictReader(io.StringIO(text)), start=2):
