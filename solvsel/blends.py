@@ -649,8 +649,11 @@ class Blend:
 
     @property
     def label(self) -> str:
-        """``"ethanol 0.62 + water 0.38"`` (volume fractions)."""
-        return " + ".join(f"{c.name} {c.volume_fraction:.2f}" for c in self.components)
+        """``"ethanol 0.62 + water 0.38"`` (volume fractions); the user's own liquids marked "(yours)"."""
+        return " + ".join(
+            f"{c.name}{' (yours)' if c.origin.startswith('user') else ''} {c.volume_fraction:.2f}"
+            for c in self.components
+        )
 
     def to_dict(self) -> dict:
         return {

@@ -528,3 +528,23 @@ def test_required_liquid_below_the_component_minimum_is_kept(cat):
     assert res.results
     best = {c.name: c.volume_fraction for c in res.results[0].components}
     assert best == pytest.approx({"ethanol": 0.98, "water": 0.02})
+
+
+def test_users_own_liquids_are_marked(tmp_path):
+    # a user's row (same columns as the bundled table) is searched and shown as theirs
+    from pathlib import Path
+
+    from solvsel.catalog import load_catalog
+
+    table = Path(__file__).parents[1] / "tables" / "solvents.csv"
+    lines = table.read_text(encoding="utf-8").splitlines()
+    row = next(line for line in lines if line.startswith("triacetin,"))
+    parts = row.split(",")
+    parts[0], parts[1], parts[2] = "my carrier X", "", ""
+    own = tmp_path / "own.csv"
+    own.write_text(lines[0] + "\n" + ",".join(parts) + "\n", encoding="utf-8")
+    cat = load_catalog(own={"solvents": [str(own)]})
+    res = optimise_blends(cat, (16.5, 4.5, 9.1), max_components=2, only=["my carrier X", "ethanol"])
+    best = res.results[0]
+    assert best.names == ("my carrier X",) and best.ra < 1e-9
+    assert best.components[0].origin.startswith("user") and "(yours)" in best.label
