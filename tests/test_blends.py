@@ -536,13 +536,17 @@ def test_users_own_liquids_are_marked(tmp_path):
 
     from solvsel.catalog import load_catalog
 
+    import csv
+
     table = Path(__file__).parents[1] / "tables" / "solvents.csv"
-    lines = table.read_text(encoding="utf-8").splitlines()
-    row = next(line for line in lines if line.startswith("triacetin,"))
-    parts = row.split(",")
-    parts[0], parts[1], parts[2] = "my carrier X", "", ""
+    with open(table, newline="", encoding="utf-8") as fh:
+        rows = list(csv.DictReader(fh))
+    row = dict(next(r for r in rows if r["name"] == "triacetin"), name="my carrier X", synonyms="", cas="")
     own = tmp_path / "own.csv"
-    own.write_text(lines[0] + "\n" + ",".join(parts) + "\n", encoding="utf-8")
+    with open(own, "w", newline="", encoding="utf-8") as fh:
+        w = csv.DictWriter(fh, fieldnames=list(rows[0]))
+        w.writeheader()
+        w.writerow(row)
     cat = load_catalog(own={"solvents": [str(own)]})
     res = optimise_blends(cat, (16.5, 4.5, 9.1), max_components=2, only=["my carrier X", "ethanol"])
     best = res.results[0]
