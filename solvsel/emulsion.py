@@ -700,9 +700,21 @@ def agent_limits(cat, agent: str, cas: str, jurisdiction: str, category: str, us
 
 
 def _component(cat, name: str, fraction: float, densities: Mapping[str, float]) -> OilComponent:
+    from .errors import UnknownNameError
     from .hlb import _oil_row
 
-    table, row = _oil_row(cat, name)
+    try:
+        table, row = _oil_row(cat, name)
+    except UnknownNameError as not_an_oil:
+        # a flavour solvent of the solvents table (e.g. benzyl alcohol): its density, and whether it
+        # dissolves in water (then it leaves the droplets and ripens)
+        try:
+            sv = cat.solvent(name, library=False)
+        except UnknownNameError:
+            raise not_an_oil from None
+        table = "solvents"
+        ripe = {"full": "prone", "partial": "prone"}.get(sv.water_miscibility or "", "unknown")
+        row = {"name": sv.name, "density_g_cm3": sv.density_g_cm3, "ripening": ripe, "cas": sv.cas or ""}
     key = row["name"]
     dens = None
     for k in (name.strip().lower(), key.lower()):
@@ -905,6 +917,10 @@ def design_beverage_emulsion(
     if any(chk.message.endswith("verify)") or "verify" in chk.message for chk in checks):
         cautions.append("Some legal limits on record are not confirmed against the official text: verify them "
                         "in the regulations in force before relying on the check.")
+    if abs(drho) < 0.01:
+        cautions.append("The oil phase is within 0.01 g/cm3 of the drink: oil densities on record are mostly at 25 C "
+                        "and the sucrose table at 20 C, and oils expand about twice as fast as water with heat; "
+                        "measure both at the storage temperature before trusting a close match.")
     if ripe.warn:
         cautions.append("Ostwald ripening: " + ripe.reason + ". " + ripe.remedy + ".")
     return EmulsionDesign(

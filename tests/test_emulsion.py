@@ -278,3 +278,12 @@ def test_emulsifier_level_checked_against_limits(cat):
     assert not q.ok and any("quillaia extract" in m and "200 mg/L" in m for m in q.refusals)
     with pytest.raises(MissingDataError, match="no use ratio"):
         E.design_beverage_emulsion(cat, [("orange oil", 100)], brix=11, dilution=250, emulsifier="polysorbate 80")
+
+
+def test_flavour_solvent_in_the_oil_phase(cat):
+    # a liquid of the solvents table that is not in the oils table (benzyl alcohol, partly water-miscible):
+    # its density comes from the solvents table and it counts as ripening-prone (it leaves the droplets)
+    r = E.design_beverage_emulsion(cat, [("d-limonene", 90), ("benzyl alcohol", 10)], brix=11)
+    ba = cat.solvent("benzyl alcohol", library=False)
+    assert r.oil_phase[1].density == ba.density_g_cm3 and r.oil_phase[1].ripening == "prone"
+    assert r.oil_phase_density == pytest.approx(1 / (0.9 / 0.838 + 0.1 / ba.density_g_cm3))
