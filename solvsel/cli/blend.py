@@ -222,6 +222,14 @@ def print_search(res, file=None) -> None:
                          f"(in {basis}); * on the Pareto front (fit, reject distance, cost, hazard, components).")
         for n in notes:
             print("  " + n, file=file)
+        shown = {b.names for b in res.results}
+        extra = [b for b in res.pareto if b.names not in shown]
+        if rejects and extra:
+            print(f"\nAlso on the trade-off front ({len(extra)} more; see --json):", file=file)
+            for b in extra[:5]:
+                near = b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra
+                print(f"  {b.label}: Ra {b.ra:.2f}, nearest reject {near:.2f}, cost {b.cost or 0:.1f}, "
+                      f"{_short_hazard(b)}", file=file)
         regs = {}
         for b in res.results:
             for rg in b.regulations:
