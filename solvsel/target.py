@@ -331,6 +331,7 @@ def rank_solvents(
     category: str | None = None,
     keep_over: bool = False,
     exclude=(),
+    require_solubility: bool = False,
 ) -> Ranking:
     """Rank single solvents for a target by RED (or Ra when R0 is unknown).
 
@@ -361,6 +362,11 @@ def rank_solvents(
         ``keep_over``
     exclude : sequence of str
         names to leave out (e.g. the liquid itself for substitutes)
+    require_solubility : bool
+        raise :class:`~solvsel.errors.MissingDataError` (rather than leave the
+        column empty) when the target has no fusion data for an estimate, and
+        :class:`~solvsel.errors.OutOfRangeError` when the temperature is at or
+        above its melting point
 
     Returns
     -------
@@ -377,6 +383,16 @@ def rank_solvents(
         raise InputError("--dose needs --jurisdiction EU or US: limits differ by jurisdiction")
     if top is not None and (not isinstance(top, int) or top < 1):
         raise InputError(f"--top: expected a whole number of at least 1, got {top}")
+    if require_solubility:
+        sol = target.solute
+        if sol is None:
+            raise MissingDataError(
+                f"a solubility estimate needs a solute of the table with fusion data; '{target.name}' is {target.basis} HSP only"
+            )
+        missing = [k for k in ("mp_C", "dHfus_kJ_mol", "vm_cm3_mol", "mw_g_mol") if getattr(sol, k) is None]
+        if missing:
+            raise MissingDataError(f"no solubility estimate for {sol.name}: the solutes table has no {', '.join(missing)} for it")
+        hansen.ideal_solubility(temp_C, sol.mp_C, sol.dHfus_kJ_mol)  # raises above the melting point
     use = use or "carrier"
     recs = cat.solvent_records() if names is None else [cat.solvent(n) for n in names]
     skip = {cat.solvent(n).name for n in exclude}

@@ -274,6 +274,9 @@ def test_rank_like(capsys):
         (("rank",), "no target"),
         (("rank", "--like", "no such liquid qq"), "no liquid"),
         (("miscible", "water"), "two liquids"),
+        (("rank", "--solute", "cannabidiol", "--solubility"), "dHfus"),  # no fusion data in the table
+        (("rank", "--solute", "vanillin", "--solubility", "--temp", "90"), "melting point"),  # mp 81.5 C
+        (("rank", "--hsp", "17,3,8", "--dose", "0.1%"), "--category"),
         (("miscible", "water", "ethanol", "--fractions", "0.5,0.6"), "sum"),
         (("miscible", "water", "ethanol", "--fractions=-0.5,1.5"), "positive"),
     ],

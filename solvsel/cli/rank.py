@@ -26,6 +26,8 @@ def register(sub):
     p.add_argument("--temp", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
     p.add_argument("--dose", metavar="DOSE", help="dose of the flavour in the food, e.g. 0.15%% (needs --category and --jurisdiction)")
     p.add_argument("--category", metavar="CATEGORY", help="food category for the dose check (see: solvsel table food_categories)")
+    p.add_argument("--solubility", action="store_true",
+                   help="require the solubility estimate (error if the solute has no fusion data)")
     p.add_argument("--keep-over", action="store_true", help="keep carriers that break a limit at the dose (flagged) instead of dropping them")
     add_json_flag(p)
     return p
@@ -40,15 +42,15 @@ def compute(args, cat):
     if top is not None and top < 1:
         raise InputError(f"--top: expected a whole number of at least 1, got {top}")
     if args.like:
-        if args.dose or args.only:
-            raise InputError("--like finds substitutes among all liquids: it does not take --dose or --only")
+        if args.dose or args.only or args.solubility:
+            raise InputError("--like finds substitutes among all liquids: it does not take --dose, --only or --solubility")
         return nearest_liquids(cat, args.like, k=top or 10_000, food=args.food, use=args.use,
                                jurisdiction=args.jurisdiction, temp_C=args.temp)
     target = target_from_args(args, cat)
     names = parse_names(args.only, "--only") if args.only else None
     return rank_solvents(cat, target, temp_C=args.temp, names=names, food=args.food, use=args.use,
                          jurisdiction=args.jurisdiction, top=top, dose=args.dose, category=args.category,
-                         keep_over=args.keep_over)
+                         keep_over=args.keep_over, require_solubility=args.solubility)
 
 
 def _fmt_sol(r):
