@@ -1035,6 +1035,8 @@ def optimise_blends(
     from .compliance import DEFER
 
     cautions = [_GENERAL_CAUTION, DEFER]
+    if jurisdiction is not None and use is None:
+        cautions.append(f"No use given: the {jurisdiction} food-law filter took each liquid as a flavour carrier.")
     if abs(temp_C - 25.0) > 1e-9:
         cautions.append(
             f"Liquids' HSP shifted from 25 C to {temp_C:g} C (Hansen-Beerbower); the target's are its tabulated values."
