@@ -287,3 +287,39 @@ def test_flavour_solvent_in_the_oil_phase(cat):
     ba = cat.solvent("benzyl alcohol", library=False)
     assert r.oil_phase[1].density == ba.density_g_cm3 and r.oil_phase[1].ripening == "prone"
     assert r.oil_phase_density == pytest.approx(1 / (0.9 / 0.838 + 0.1 / ba.density_g_cm3))
+
+
+# ----------------------------------------------------------------------------- properties
+
+from hypothesis import given, settings, strategies as st  # noqa: E402
+
+
+@settings(max_examples=150, deadline=None)
+@given(ro=st.floats(0.80, 0.99), ra=st.floats(1.05, 1.40), rt=st.floats(1.00, 1.04))
+def test_weighting_round_trip(ro, ra, rt):
+    # the fraction found always gives back the target density by volume additivity (exact algebra)
+    w = E.weighting_fraction(ro, ra, rt)
+    assert 0 < w < 1
+    assert E.oil_phase_density([1 - w, w], [ro, ra]) == pytest.approx(rt, rel=1e-12)
+
+
+@settings(max_examples=150, deadline=None)
+@given(ws=st.lists(st.floats(0.01, 1.0), min_size=1, max_size=5), rhos=st.lists(st.floats(0.7, 1.5), min_size=5, max_size=5))
+def test_oil_phase_density_between_its_parts(ws, rhos):
+    w = np.array(ws) / sum(ws)
+    rho = np.array(rhos[: len(ws)])
+    d = E.oil_phase_density(w, rho)
+    assert rho.min() - 1e-12 <= d <= rho.max() + 1e-12
+
+
+@settings(max_examples=100, deadline=None)
+@given(c_oil=st.floats(50, 2000), l1=st.floats(10, 500), l2=st.floats(10, 500))
+def test_weighting_options_never_exceed_limits_when_legal(c_oil, l1, l2):
+    opts = E.weighting_options(0.84, 1.04, c_oil, [("a", 1.146, l1), ("b", 1.08, l2)])
+    for o in opts:
+        if o.legal:
+            assert all(lv <= lim * (1 + 1e-9) for lv, lim in zip(o.levels_ppm, o.limits_ppm))
+        if o.matched and o.agents:
+            x = np.array(o.fractions)
+            rho = np.array([1.146 if n == "a" else 1.08 for n in o.agents])
+            assert E.oil_phase_density([1 - x.sum(), *x], [0.84, *rho]) == pytest.approx(1.04, rel=1e-9)

@@ -366,3 +366,18 @@ def test_cli_rules_on_record_never_assumed():
     rules = json.loads(r.stdout)["emulsifier_rules"]
     assert {x["emulsifier"] for x in rules} == {"polysorbate 80", "sorbitan monooleate"}
     assert all(x["status"] != "no data" or "not treated as allowed" in x["text"] for x in rules)
+
+
+from hypothesis import given, settings, strategies as st  # noqa: E402
+
+
+@settings(max_examples=200, deadline=None)
+@given(a=st.floats(1, 20), b=st.floats(1, 20), u=st.floats(0, 1))
+def test_pair_fractions_round_trip(a, b, u):
+    # the fractions found always blend back to the target (Griffin's linear mixing, exact algebra)
+    if abs(a - b) < 1e-6:
+        return
+    t = min(a, b) + u * abs(a - b)
+    wa, wb = H.pair_fractions(a, b, t)
+    assert 0 <= wa <= 1 and wa + wb == pytest.approx(1.0)
+    assert H.blend_hlb([a, b], [wa, wb]) == pytest.approx(t, abs=1e-9)
