@@ -99,7 +99,8 @@ def _pos(x, name: str, unit: str) -> float:
 def sucrose_solution_density(brix: float, table_brix: Sequence[float], table_density: Sequence[float]) -> float:
     r"""Density of a sucrose solution at 20 C from its Brix, by linear interpolation.
 
-    The table is a published one (``tables/sucrose_density.csv``); between
+    The bundled table (``tables/sucrose_density.csv``) is the handbook's
+    sucrose table at 20 C as recalled (source ``crc_sucrose_memory``); between
     its points 1-2 degrees Brix apart, the curvature of the density
     (about 3e-5 g/cm3 per degree squared) keeps linear interpolation within
     ``h^2 f''/8`` < 2e-5 g/cm3 of the smooth curve.
