@@ -239,6 +239,25 @@ def _num(v):
     return f if math.isfinite(f) else None
 
 
+def _at_temperature(sa, sb, temp_C):
+    """HSP and molar volumes of two liquids at ``temp_C`` (Hansen-Beerbower), with a note."""
+    from .target import solvent_at
+
+    if abs(temp_C - 25.0) < 1e-9:
+        return sa.hsp, float(sa.vm_cm3_mol), sb.hsp, float(sb.vm_cm3_mol), ""
+    out, notes = [], []
+    for s in (sa, sb):
+        try:
+            h, v, note = solvent_at(s, temp_C)
+            if note:
+                notes.append(f"{s.name}: {note}")
+        except (InputError, MissingDataError) as exc:
+            h, v = s.hsp, float(s.vm_cm3_mol)
+            notes.append(f"{s.name}: HSP kept at 25 C ({exc})")
+        out += [h, v]
+    return (*out, "; ".join(notes) or f"HSP shifted to {temp_C:g} C (Hansen and Beerbower 1971)")
+
+
 def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
     r"""Flory-Huggins prediction for two liquid records (no table look-up).
 
@@ -257,16 +276,19 @@ def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
         records with dD, dP, dH [MPa^0.5], vm_cm3_mol [cm^3/mol] and
         density_g_cm3 [g/cm^3]
     temp_C : float
-        temperature [C]
+        temperature [C]; away from 25 C both liquids' HSP and molar volumes
+        are shifted first (:func:`solvsel.target.solvent_at`)
     """
-    va, vb = float(sa.vm_cm3_mol), float(sb.vm_cm3_mol)
-    chi = float(hansen.chi_flory_huggins(sa.hsp, sb.hsp, va, temp_C))
+    ha, va, hb, vb, shift_note = _at_temperature(sa, sb, temp_C)
+    chi = float(hansen.chi_flory_huggins(ha, hb, va, temp_C))
     nb = vb / va
     b = hansen.binodal(chi, 1.0, nb)
     chic = b.chi_critical
     names = (sa.name, sb.name)
     cas = (sa.cas or "", sb.cas or "")
     base_note = "predicted by Flory-Huggins from HSP; hydrogen-bonding liquids (water, glycols) are poorly predicted"
+    if shift_note:
+        base_note += "; " + shift_note
     if not b.split:
         return PairVerdict(names, "yes", "predicted", {"fraction": "mass fraction of liquid b", "one_phase_ranges": [[0.0, 1.0]], "basis": "predicted"}, chi, chic, (), base_note, temp_C, cas)
     if not math.isfinite(b.phi_a) or not (0.0 < b.phi_a < b.phi_b < 1.0):
@@ -330,6 +352,8 @@ def pair(cat, a, b, temp_C: float = 25.0) -> PairVerdict:
             f"{predicted.note}; the table has a measurement at {t_row:g} C "
             f"({_VERDICT[code]}), too far from {temp_C:g} C to apply"
         )
+        if row.get("note"):
+            note += f" (table note: {row['note']})"
         return PairVerdict(predicted.liquids, predicted.one_phase, "predicted", predicted.window, predicted.chi, predicted.chi_critical, src, note, temp_C, predicted.cas)
     window = None
     rho_a, rho_b = _num(sa.density_g_cm3), _num(sb.density_g_cm3)
