@@ -17,13 +17,13 @@ References
 .. [1] Stokes, G. G. On the effect of the internal friction of fluids on the
    motion of pendulums. Trans. Cambridge Philos. Soc. 9, 8-106 (1851).
 .. [2] McClements, D. J. *Food Emulsions: Principles, Practices, and
-   Techniques*, 3rd ed. CRC Press, 2015. ISBN 978-1-4987-2668-9.
+   Techniques*, 3rd ed. CRC Press, 2015.
 .. [3] Chanamai, R.; McClements, D. J. Impact of weighting agents and sucrose
    on gravitational separation of beverage emulsions. J. Agric. Food Chem.
-   48, 5561-5565 (2000). doi:10.1021/jf0002903
+   48, 5561-5565 (2000).
 .. [4] Wooster, T. J.; Golding, M.; Sanguansri, P. Impact of oil type on
    nanoemulsion formation and Ostwald ripening stability. Langmuir 24,
-   12758-12765 (2008). doi:10.1021/la801685v
+   12758-12765 (2008). https://pubmed.ncbi.nlm.nih.gov/18850732/
 """
 
 from __future__ import annotations
