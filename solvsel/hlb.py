@@ -25,7 +25,7 @@ References
    Surface Activity, vol. 1, 426-438. Butterworths, London (1957).
 .. [4] Vaughan, C. D.; Rice, D. A. Predicting O/W emulsion stability by the
    "required HLB equation". J. Dispersion Sci. Technol. 11, 83-91 (1990).
-.. [5] Hassan, A. K. et al. Assignment of optimum surfactants blend and right
+.. [5] Hassan et al. Assignment of optimum surfactants blend and right
    oil phase concentration of oil in water emulsion. Indian J. Pharm. Sci.
    80, 334-341 (2018). https://www.ijpsonline.com/articles/assignment-of-optimum-surfactants-blend-and-right-oil-phase-concentration-of-oil-in-water-emulsion-3464.html
 """
