@@ -840,14 +840,15 @@ def design_beverage_emulsion(
     oil_ppm = None
     if dilution is not None:
         oil_ppm = agent_level_ppm(1.0, float(oil_in_concentrate), dilution)
-    checks, refusals = [], []
+    checks, refusals, notes = [], [], []
     total_agent = None
     binding = None
     for c in comps:
         if not c.is_agent:
             continue
         if oil_ppm is None:
-            refusals.append(f"{c.name}: give --dilution to check its level against the legal maximum")
+            notes.append(f"{c.name} is a weighting agent: give the dilution of the concentrate to check its level "
+                         "in the drink against the legal maximum")
             continue
         level = c.mass_fraction * oil_ppm
         total_agent = (total_agent or 0.0) + level
@@ -908,7 +909,7 @@ def design_beverage_emulsion(
                     refusals.append(chk.message)
                     checks.append(chk)
     ripe = ripening_check(comps, nano=nano)
-    cautions = list(EMULSION_CAUTIONS)
+    cautions = notes + list(EMULSION_CAUTIONS)
     if brix is not None:
         cautions.append("Drink density is that of a pure sucrose solution at 20 C: acids, other sugars, "
                         "sweeteners and carbonation shift it; measure the finished drink where it matters.")
