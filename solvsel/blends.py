@@ -1077,36 +1077,43 @@ def optimise_blends(
 
     # ------------------------------------------------------------------ exact search
     H = np.array(kept_hsp).reshape(m, 3)
-    idx_parts, x_parts, ra_parts, ok_parts = [], [], [], []
+    # Keep only the candidates of each size as it is solved (most combinations
+    # of 3-4 liquids put a liquid under the minimum fraction), so memory stays
+    # that of the candidates, not of every combination.
+    idx_parts, x_parts, ra_parts = [], [], []
+    lo_pad_all = np.append(lo, 0.0)
     try:
-        searched = list(search_blends(H, t_hsp, min(int(max_components), m), lower=lo, upper=hi, progress=progress))
+        for k, combos, res in search_blends(H, t_hsp, min(int(max_components), m), lower=lo, upper=hi,
+                                            progress=progress):
+            n_k = combos.shape[0]
+            counts["combinations"] += int(n_k)
+            feas = res.feasible
+            counts["bounds_not_met"] += int(np.count_nonzero(~feas))
+            xk = np.nan_to_num(res.fractions)
+            # a liquid under the minimum fraction makes the blend the same as the
+            # smaller one, unless its lower bound puts it there (a required liquid)
+            if k > 1:
+                reduced = feas & np.any((xk < float(min_fraction)) & (lo_pad_all[combos] <= 0), axis=1)
+            else:
+                reduced = np.zeros(n_k, dtype=bool)
+            counts["same_as_smaller_blend"] += int(np.count_nonzero(reduced))
+            keep_k = np.flatnonzero(feas & ~reduced)
+            pad = np.full((keep_k.size, MAX_COMPONENTS), -1, dtype=np.int32)
+            pad[:, :k] = combos[keep_k]
+            xs = np.zeros((keep_k.size, MAX_COMPONENTS))
+            xs[:, :k] = xk[keep_k]
+            idx_parts.append(pad)
+            x_parts.append(xs)
+            ra_parts.append(res.ra[keep_k])
     except SearchCancelled as exc:
         return finish([], [], [], False, f"cancelled: {exc}")
-    for k, combos, res in searched:
-        pad = np.full((combos.shape[0], MAX_COMPONENTS), -1, dtype=np.int32)
-        pad[:, :k] = combos
-        xs = np.zeros((combos.shape[0], MAX_COMPONENTS))
-        xs[:, :k] = np.nan_to_num(res.fractions)
-        idx_parts.append(pad)
-        x_parts.append(xs)
-        ra_parts.append(res.ra)
-        ok_parts.append(res.feasible)
-    if not idx_parts:
+    if not idx_parts or sum(p.shape[0] for p in idx_parts) == 0:
         return finish([], [], [], False, "no combination of the pool meets the fraction bounds")
     IDX = np.concatenate(idx_parts)
     X = np.concatenate(x_parts)
     RA = np.concatenate(ra_parts)
-    FEAS = np.concatenate(ok_parts)
-    member = IDX >= 0
-    K = member.sum(1)
-    counts["combinations"] = int(IDX.shape[0])
-    counts["bounds_not_met"] = int(np.count_nonzero(~FEAS))
-    # a liquid under the minimum fraction makes the blend the same as the smaller
-    # one, unless its lower bound puts it there (a required liquid)
-    lo_pad = np.append(lo, 0.0)[IDX]
-    reduced = FEAS & (K > 1) & np.any(member & (X < float(min_fraction)) & (lo_pad <= 0), axis=1)
-    counts["same_as_smaller_blend"] = int(np.count_nonzero(reduced))
-    cand = np.flatnonzero(FEAS & ~reduced)
+    K = (IDX >= 0).sum(1)
+    cand = np.arange(IDX.shape[0])
 
     # blend HSP and scores of every candidate
     Hpad = np.vstack([H, np.zeros((1, 3))])
