@@ -925,6 +925,9 @@ def design_beverage_emulsion(
                         "measure both at the storage temperature before trusting a close match.")
     if ripe.warn:
         cautions.append("Ostwald ripening: " + ripe.reason + ". " + ripe.remedy + ".")
+    from .compliance import DEFER
+
+    cautions.append(DEFER)
     return EmulsionDesign(
         beverage_density=rho_b, beverage_density_basis=basis, oil_phase=comps, oil_phase_density=rho_o,
         density_difference=drho, oil_in_concentrate=float(oil_in_concentrate),

@@ -136,7 +136,9 @@ def run(args) -> int:
         out["fit"] = fit.to_dict()
     if not out:
         raise InputError("nothing to do: give --oil or --target (and --emulsifiers), --smiles, --series or --scores")
-    out["cautions"] = cautions
+    from ..compliance import DEFER
+
+    out["cautions"] = cautions + [DEFER]
     if args.json:
         emit_json(out)
         return 0
