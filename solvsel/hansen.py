@@ -1017,3 +1017,59 @@ def rank_order(targets, solvents, r0=None, k: int | None = None):
             raise InputError("r0: every radius must be a positive number of MPa^0.5")
         score /= r
     return order, score
+
+
+__all__ += ["blend_pseudo_solvent"]
+
+
+def blend_pseudo_solvent(hsp, volume_fractions, vm_cm3_mol, mw_g_mol):
+    r"""A blend as one pseudo-liquid, for :func:`solid_solubility` or :func:`partition_coefficient`.
+
+    HSP by :func:`mix`; molar volume and molar mass as mole-fraction averages
+    (the lattice of the Flory-Huggins terms counts molecules):
+
+    .. math::
+        x_i = \frac{\phi_i/V_i}{\sum_j \phi_j/V_j},\qquad
+        V = \sum_i x_i V_i = \Big(\sum_i \phi_i/V_i\Big)^{-1},\qquad
+        M = \sum_i x_i M_i
+
+    Parameters
+    ----------
+    hsp : array_like, shape (n, 3)
+        dD, dP, dH of the components [MPa^0.5]
+    volume_fractions : array_like, shape (n,)
+        volume fractions [-]
+    vm_cm3_mol : array_like, shape (n,)
+        molar volumes [cm^3/mol]
+    mw_g_mol : array_like, shape (n,)
+        molar masses [g/mol]
+
+    Returns
+    -------
+    hsp : ndarray, shape (3,)
+        [MPa^0.5]
+    vm : float
+        [cm^3/mol]
+    mw : float
+        [g/mol]
+
+    Examples
+    --------
+    Ethanol (58.5 cm^3/mol, 46.07 g/mol) and water (18.0, 18.015) 50/50 by
+    volume: x_water = (0.5/18)/(0.5/18 + 0.5/58.5) = 0.765, so
+    V = 1/(0.5/58.5 + 0.5/18) = 27.5 cm^3/mol and M = 0.765 * 18.015 + 0.235 * 46.07
+    = 24.62 g/mol (by hand).
+
+    >>> h, v, m = blend_pseudo_solvent([[15.8, 8.8, 19.4], [15.5, 16.0, 42.3]], [0.5, 0.5], [58.5, 18.0], [46.07, 18.015])
+    >>> round(v, 1), round(m, 2)
+    (27.5, 24.62)
+    """
+    h = mix(hsp, volume_fractions)
+    f = np.asarray(volume_fractions, dtype=float)
+    v = np.asarray(vm_cm3_mol, dtype=float)
+    m = np.asarray(mw_g_mol, dtype=float)
+    if v.shape != f.shape or m.shape != f.shape or np.any(~(v > 0)) or np.any(~(m > 0)):
+        raise InputError("blend_pseudo_solvent: one positive molar volume and molar mass per component are needed")
+    n = f / v
+    x = n / n.sum()
+    return h, float(1.0 / n.sum()), float(np.dot(x, m))

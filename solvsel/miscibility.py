@@ -489,16 +489,16 @@ def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0) -> BlendPhas
     if failing:
         reason = "; ".join(c.reason for c in failing)
         bridging = []
+        pos = {r.name: k for k, r in enumerate(recs)}
         for c in failing:
-            ia, ib = names.index(c.a) if c.a in names else None, names.index(c.b) if c.b in names else None
+            ia, ib = pos[c.a], pos[c.b]
             for k in present:
-                if recs[k].name in (c.a, c.b):
+                if k in (ia, ib):
                     continue
-                ka = verdicts.get(tuple(sorted((k, [r.name for r in recs].index(c.a)))))
-                kb = verdicts.get(tuple(sorted((k, [r.name for r in recs].index(c.b)))))
-                if ka and kb and ka.one_phase == "yes" and kb.one_phase == "yes":
+                ka = verdicts[tuple(sorted((k, ia)))]
+                kb = verdicts[tuple(sorted((k, ib)))]
+                if ka.one_phase == "yes" and kb.one_phase == "yes":
                     bridging.append(recs[k].name)
-            del ia, ib
         if bridging:
             note += (
                 "; " + ", ".join(sorted(set(bridging)))

@@ -289,3 +289,26 @@ def test_partition_prefers_the_closer_phase():
     assert p.k_c > 1e3 and p.log10_k_c == pytest.approx(math.log10(p.k_c))
     swapped = H.partition_coefficient([17.2, 1.8, 4.3], 162.0, hsp("n-hexane"), 131.6, hsp("water"), 18.0)
     assert swapped.k_c == pytest.approx(1 / p.k_c, rel=1e-9)
+
+
+def test_blend_pseudo_solvent_limits_and_hand_values():
+    # a "blend" of one liquid is that liquid; mole-average volume worked by hand
+    # (see the doctest): ethanol / water 50/50 by volume -> 27.5 cm^3/mol
+    h, v, m = H.blend_pseudo_solvent([hsp("ethanol"), hsp("water")], [1.0, 0.0], [58.5, 18.0], [46.07, 18.015])
+    assert h.tolist() == pytest.approx(list(hsp("ethanol"))) and v == pytest.approx(58.5) and m == pytest.approx(46.07)
+    _, v2, _ = H.blend_pseudo_solvent([hsp("ethanol"), hsp("water")], [0.5, 0.5], [58.5, 18.0], [46.07, 18.015])
+    assert v2 == pytest.approx(1 / (0.5 / 58.5 + 0.5 / 18.0))
+    with pytest.raises(InputError):
+        H.blend_pseudo_solvent([hsp("ethanol"), hsp("water")], [0.5, 0.5], [58.5, -1.0], [46.07, 18.015])
+
+
+def test_rank_order_matches_brute_force():
+    rng = np.random.default_rng(5)
+    t = rng.uniform([14, 0, 0], [21, 20, 25], size=(50, 3))
+    s = rng.uniform([14, 0, 0], [21, 20, 25], size=(30, 3))
+    full = H.ra(t[:, None, :], s[None, :, :])
+    order, score = H.rank_order(t, s)
+    assert np.allclose(score, np.sort(full, axis=1), atol=1e-9)
+    o5, s5 = H.rank_order(t, s, r0=np.full(50, 4.0), k=5)
+    assert np.allclose(s5, np.sort(full, axis=1)[:, :5] / 4.0, atol=1e-9)
+    assert (o5 == order[:, :5]).mean() > 0.99  # ties aside
