@@ -786,12 +786,14 @@ class EmulsifierSystem:
     hlb: float
     same_tail: bool  # all share one fatty acid (the classic low/high pair of one family)
     score: float  # higher is better: balance of the blend (smallest fraction)
+    computed_hlb: bool = False  # some HLB is computed from an idealised structure, not measured
 
     def to_dict(self) -> dict:
         d = {
             "components": [{"name": n, "fraction": f, "hlb": h} for n, f, h in zip(self.names, self.fractions, self.hlbs)],
             "hlb": self.hlb,
             "same_tail": self.same_tail,
+            "computed_hlb": self.computed_hlb,
         }
         if len(self.names) == 2:
             d.update(a=self.names[0], b=self.names[1], fraction_a=self.fractions[0], fraction_b=self.fractions[1])
@@ -832,9 +834,10 @@ def emulsifier_systems(pool: Sequence[Emulsifier], target: float, size: int = 2,
     """Every pair (``size=2``) or triple (``size=3``) of ``pool`` that hits ``target``, best first.
 
     Ranked by: one fatty-acid family first (practitioners blend a low- and a
-    high-HLB emulsifier of one family), then by balance (the larger the
-    smallest fraction, the less the blend hangs on one component), then by
-    name.  A target outside the pool's HLB range raises
+    high-HLB emulsifier of one family), then systems whose HLB values are
+    measured (or from analytical numbers) before those computed from an
+    idealised structure, then by balance (the larger the smallest fraction,
+    the less the blend hangs on one component), then by name.  A target outside the pool's HLB range raises
     :class:`OutOfRangeError` naming the range; a biopolymer in the pool raises
     :class:`InputError`.
 
@@ -897,9 +900,10 @@ def emulsifier_systems(pool: Sequence[Emulsifier], target: float, size: int = 2,
                 hlb=float(h @ w),
                 same_tail=len(fams) == 1 and None not in fams,
                 score=float(w.min()),
+                computed_hlb=any(pool[i].hlb_method == "Griffin structure" for i in idx),
             )
         )
-    out.sort(key=lambda s: (not s.same_tail, -round(s.score, 9), s.names))
+    out.sort(key=lambda s: (not s.same_tail, s.computed_hlb, -round(s.score, 9), s.names))
     return out
 
 

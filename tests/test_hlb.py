@@ -381,3 +381,12 @@ def test_pair_fractions_round_trip(a, b, u):
     wa, wb = H.pair_fractions(a, b, t)
     assert 0 <= wa <= 1 and wa + wb == pytest.approx(1.0)
     assert H.blend_hlb([a, b], [wa, wb]) == pytest.approx(t, abs=1e-9)
+
+
+def test_measured_values_rank_before_computed(cat):
+    # within one fatty-acid family, systems resting on HLB values computed from an idealised structure
+    # come after those resting on Griffin's measured values (common practice: trust measured numbers)
+    systems = H.emulsifier_systems(H.all_emulsifiers(cat), 13.7)
+    flags = [s.computed_hlb for s in systems if s.same_tail]
+    assert flags == sorted(flags) and not flags[0] and any(flags)
+    assert systems[0].names == ("polysorbate 20", "sorbitan monolaurate")
