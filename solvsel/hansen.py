@@ -617,16 +617,16 @@ def binodal(chi, n1=1.0, n2=1.0) -> Binodal:
         reach = max(40.0, 1.5 * chi * max(n1, n2) + 10.0)
         us1 = math.log(s1) - math.log1p(-s1)
         us2 = math.log(s2) - math.log1p(-s2)
-        offsets = np.geomspace(1e-4 * (us2 - us1), reach, 800)  # fine next to the spinodal
+        offsets = np.geomspace(1e-4 * (us2 - us1), reach, 400)  # fine next to the spinodal
         ul = (us1 - offsets)[::-1]
         ur = us2 + offsets
         pl, _, gl, _, _, _ = _fh_parts(ul, chi, n1, n2)
         pr, _, gr, _, _, _ = _fh_parts(ur, chi, n1, n2)
         lo = float(_fh_parts(ur[0], chi, n1, n2)[3])
         hi = float(_fh_parts(ul[-1], chi, n1, n2)[3])
-        for _ in range(60):
+        for _ in range(32):  # a start for Newton: 2^-32 of the bracket is plenty
             m = 0.5 * (lo + hi)
-            if np.min(gl - m * pl) - np.min(gr - m * pr) > 0:
+            if (gl - m * pl).min() - (gr - m * pr).min() > 0:
                 hi = m
             else:
                 lo = m
