@@ -5,6 +5,12 @@ where a sphere fitted from bench results can be saved), from typed numbers,
 or from a structure (SMILES, estimated by group contribution).  Every target
 says which of these it is (``basis``), so a result is never read as more
 certain than its input.
+
+The ranking of single solvents against a target lives here too
+(:func:`rank_solvents`): Hansen distance at the working temperature, the
+solubility estimate where the solute has fusion data, food status, dose
+limits and cautions from :mod:`solvsel.compliance`; and the nearest liquids
+to a given liquid (:func:`nearest_liquids`), for substitutes.
 """
 
 from __future__ import annotations
