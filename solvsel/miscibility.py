@@ -334,9 +334,9 @@ def pair(cat, a, b, temp_C: float = 25.0) -> PairVerdict:
     ('yes', 'measured', True)
     """
     if not (isinstance(temp_C, (int, float)) and math.isfinite(temp_C)):
-        raise InputError(f"temp_C: expected a temperature in C, got {temp_C}")
+        raise InputError(f"--temp (temp_C): expected a temperature in C, got {temp_C}")
     if not -80.0 <= temp_C <= 150.0:
-        raise InputError(f"temp_C: {temp_C:g} C is outside -80 to 150 C, where neither the table nor the model applies")
+        raise InputError(f"--temp (temp_C): {temp_C:g} C is outside -80 to 150 C, where neither the table nor the model applies")
     sa, sb = _solvent(cat, a), _solvent(cat, b)
     if sa.name == sb.name:
         return PairVerdict((sa.name, sb.name), "yes", "measured", {"one_phase_ranges": [[0.0, 1.0]]}, 0.0, None, (), "the same liquid", temp_C, (sa.cas, sb.cas))

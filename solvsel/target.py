@@ -382,7 +382,7 @@ def rank_solvents(
 
     if not (isinstance(temp_C, (int, float)) and math.isfinite(temp_C)):
         raise InputError(f"--temp: expected a temperature in C, got {temp_C}")
-    hansen._check_temperature(temp_C)
+    hansen._check_temperature(temp_C, what="--temp (temp_C)")
     if (dose is not None) != (category is not None):
         raise InputError("--dose and --category go together: the dose check needs both (and --jurisdiction)")
     if dose is not None and jurisdiction is None:
