@@ -1,0 +1,103 @@
+"""The solvsel terminal app: six screens over one session, opened on the demo scenario.
+
+``create_app`` builds the app for the command line and for the tests alike;
+``run_app`` runs it.  Each screen lives in its own module; styles in app.tcss.
+"""
+
+from __future__ import annotations
+
+from textual.app import App
+from textual.binding import Binding
+from textual.theme import Theme
+
+from .base import SCREENS
+from .state import Session
+
+THEME = Theme(
+    name="solvsel-bench",
+    primary="#3d8c95",
+    secondary="#b8893a",
+    accent="#d9a441",
+    warning="#e0a030",
+    error="#d9534f",
+    success="#6aa36f",
+    foreground="#e6e2d8",
+    background="#161b20",
+    surface="#1e252c",
+    panel="#26303a",
+    dark=True,
+)
+
+
+class SolvselApp(App):
+    """Choose carriers, blends and emulsifier systems for the current target."""
+
+    CSS_PATH = "app.tcss"
+    TITLE = "solvsel"
+    ENABLE_COMMAND_PALETTE = False
+    BINDINGS = [Binding(key.lower(), f"switch_mode('{mode}')", title, show=False) for mode, key, title in SCREENS] + [
+        Binding("ctrl+q", "quit", "Quit", priority=True),
+    ]
+
+    def __init__(self, session: Session) -> None:
+        from .carriers import CarriersScreen
+        from .emulsion import EmulsionScreen
+        from .hspmap import MapScreen
+        from .limits import LimitsScreen
+        from .tables import TablesScreen
+        from .target import TargetScreen
+
+        self.MODES = {
+            "tables": TablesScreen, "target": TargetScreen, "carriers": CarriersScreen,
+            "map": MapScreen, "emulsion": EmulsionScreen, "limits": LimitsScreen,
+        }
+        super().__init__()
+        self.session = session
+        self.start_mode: str | None = None
+        self.register_theme(THEME)
+        self.theme = THEME.name
+
+    def on_mount(self) -> None:
+        self.switch_mode(self.start_mode or ("carriers" if self.session.target is not None else "tables"))
+        error = self.session.notes.pop("start_error", None)
+        if error is not None:
+            from .dialogs import show_error
+
+            show_error(self, error)
+
+
+def create_app(catalog=None, scenario=None, start: str | None = None) -> SolvselApp:
+    """The app on ``catalog`` (default: the bundled tables) and ``scenario`` (default: the demo).
+
+    The target starts as the scenario's solute.  ``start`` names the first
+    screen (``tables``, ``target``, ``carriers``, ``map``, ``emulsion``, ``limits``).
+    """
+    from ..catalog import load_catalog
+    from ..errors import SolvselError
+
+    cat = catalog if catalog is not None else load_catalog()
+    if scenario is None:
+        from ..demo import load_scenario
+
+        scenario = load_scenario()
+    session = Session(catalog=cat, scenario=scenario)
+    part = scenario.get("target") if isinstance(scenario, dict) else getattr(scenario, "target", None)
+    name = (part or {}).get("solute")
+    if name:
+        from ..target import target_from_solute
+
+        try:
+            session.set_target(target_from_solute(cat, name))
+        except SolvselError as exc:  # a user's own scenario naming an unknown solute
+            session.notes["start_error"] = exc
+    app = SolvselApp(session)
+    if start:
+        app.start_mode = start
+    return app
+
+
+def run_app(catalog=None) -> int:
+    """Run the UI on the demo scenario; returns the exit code."""
+    app = create_app(catalog=catalog)
+    app.run()
+    return int(app.return_code or 0)

@@ -1,0 +1,486 @@
+"""Carriers screen: single liquids ranked for the target, and optimised blends.
+
+The constraints on the left bound both lists (use, jurisdiction, largest
+blend, lowest flash point, boiling window, temperature, liquids left out,
+solutes to keep out).  The ranking is the library's single-liquid ranking; the
+blend search (:func:`solvsel.blends.optimise_blends`) runs in a cancellable
+thread worker that posts :class:`BlendProgress` and :class:`BlendDone`
+messages.  Blends dropped by a check, and liquids left out of the pool, are
+listed with their reasons.
+"""
+
+from __future__ import annotations
+
+import inspect
+from dataclasses import dataclass, field
+
+from rich.text import Text
+from textual import work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.message import Message
+from textual.widgets import Button, DataTable, Input, Label, ProgressBar, Select, Static, TabbedContent, TabPane
+from textual.worker import Worker, WorkerState, get_current_worker
+
+from .base import BenchScreen
+from .widgets import CautionBox
+
+USE_CHOICES = [("carrier (flavour carrier)", "carrier"), ("extraction", "extraction"), ("bench", "bench"),
+               ("any liquid of the table", "any")]
+JURISDICTIONS = [("EU", "EU"), ("US", "US"), ("none (no legal filter)", "none")]
+
+
+# ----------------------------------------------------------------- messages
+
+
+class BlendProgress(Message):
+    """The blend search moved on: ``done`` of ``total`` steps (``total`` None: not known)."""
+
+    def __init__(self, done: float, total: float | None, text: str) -> None:
+        super().__init__()
+        self.done, self.total, self.text = done, total, text
+
+
+class BlendDone(Message):
+    """The blend search finished (``result`` a BlendSearch) or was cancelled (``result`` None)."""
+
+    def __init__(self, result, cancelled: bool = False) -> None:
+        super().__init__()
+        self.result = result
+        self.cancelled = cancelled
+
+
+class BlendFailed(Message):
+    """The blend search stopped on a user's mistake (a SolvselError)."""
+
+    def __init__(self, error: BaseException) -> None:
+        super().__init__()
+        self.error = error
+
+
+class _Cancelled(Exception):
+    pass
+
+
+@dataclass(frozen=True)
+class SearchRequest:
+    """The constraints read from the form, as the blend engine takes them."""
+
+    use: str | None
+    jurisdiction: str | None
+    max_components: int
+    min_flash_C: float | None
+    bp_min_C: float | None
+    bp_max_C: float | None
+    temp_C: float
+    exclude: tuple[str, ...]
+    rejects: tuple[str, ...]
+    top: int = 10
+    extra: dict = field(default_factory=dict)
+
+
+def _float(text: str, what: str) -> float | None:
+    from ..errors import InputError
+
+    t = (text or "").strip()
+    if not t:
+        return None
+    try:
+        return float(t)
+    except ValueError:
+        raise InputError(f"{what}: expected a number, got '{text}'") from None
+
+
+def _window(text: str) -> tuple[float | None, float | None]:
+    from ..errors import InputError
+
+    t = (text or "").strip()
+    if not t:
+        return None, None
+    if ":" not in t:
+        raise InputError(f"boiling window: expected LO:HI in C (either side may be empty), got '{text}'")
+    lo, _, hi = t.partition(":")
+    return _float(lo, "boiling window, lowest"), _float(hi, "boiling window, highest")
+
+
+def _names(text: str, what: str) -> tuple[str, ...]:
+    from ..cli._common import parse_names
+
+    return tuple(parse_names(text, what)) if (text or "").strip() else ()
+
+
+def _fmt(x, spec=".2f") -> str:
+    return "-" if x is None else format(x, spec)
+
+
+class CarriersScreen(BenchScreen):
+    """Ranked single liquids and optimised blends for the current target."""
+
+    MODE = "carriers"
+    BINDINGS = [
+        Binding("ctrl+r", "search", "Search blends"),
+        Binding("escape", "cancel", "Cancel search"),
+        Binding("ctrl+e", "preset('extraction')", "Extraction preset"),
+        Binding("ctrl+l", "preset('carrier')", "Carrier preset"),
+    ]
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.ranking = None  # BlendSearch of single liquids
+        self.result = None  # BlendSearch of blends
+        self.worker: Worker | None = None
+        self.messages: list[Message] = []  # typed messages seen (for the tests and the status line)
+
+    def compose(self) -> ComposeResult:
+        yield from self.compose_frame_top()
+        with Horizontal(id="carriers-body"):
+            with VerticalScroll(id="constraints"):
+                yield Static("Constraints", classes="pane-title")
+                with Horizontal(classes="preset-row"):
+                    yield Button("Carrier", id="preset-carrier", classes="preset", compact=True)
+                    yield Button("Extraction", id="preset-extraction", classes="preset", compact=True)
+                yield Label("Use")
+                yield Select(USE_CHOICES, value="carrier", allow_blank=False, id="use", compact=True)
+                yield Label("Jurisdiction")
+                yield Select(JURISDICTIONS, value="EU", allow_blank=False, id="jurisdiction", compact=True)
+                yield Label("Largest blend (liquids)")
+                yield Select([(str(k), k) for k in (1, 2, 3, 4)], value=3, allow_blank=False, id="max-components", compact=True)
+                yield Label("Lowest flash point, C")
+                yield Input(placeholder="e.g. 60", id="min-flash", compact=True)
+                yield Label("Boiling window, C (LO:HI)")
+                yield Input(placeholder="e.g. 40:120 or :100", id="bp-window", compact=True)
+                yield Label("Temperature, C")
+                yield Input(value="25", id="temp", compact=True)
+                yield Label("Leave out (names, commas)")
+                yield Input(placeholder="e.g. benzyl alcohol", id="exclude", compact=True)
+                yield Label("Keep out of solution (solutes)")
+                yield Input(placeholder="e.g. chlorophyll a, sucrose", id="rejects", compact=True)
+                yield Button("Search blends  ^R", id="run-search", variant="primary", compact=True)
+            with Vertical(id="carriers-main"):
+                with TabbedContent(id="carrier-tabs", initial="tab-blends"):
+                    with TabPane("Single liquids", id="tab-single"):
+                        yield DataTable(id="rank-grid", cursor_type="row", zebra_stripes=True)
+                    with TabPane("Blends", id="tab-blends"):
+                        yield DataTable(id="blend-grid", cursor_type="row", zebra_stripes=True)
+                    with TabPane("Dropped", id="tab-dropped"):
+                        yield DataTable(id="dropped-grid", cursor_type="row", zebra_stripes=True)
+                    with TabPane("Left out", id="tab-excluded"):
+                        yield DataTable(id="excluded-grid", cursor_type="row", zebra_stripes=True)
+                with Horizontal(id="search-status-row"):
+                    yield ProgressBar(total=1, show_eta=False, id="search-progress")
+                    yield Static("", id="search-status")
+                with Horizontal(id="carrier-lower"):
+                    with VerticalScroll(id="carrier-detail-pane"):
+                        yield Static("", id="carrier-detail")
+                    with VerticalScroll(id="carrier-cautions-pane"):
+                        yield CautionBox(id="carrier-cautions", classes="cautions")
+        yield from self.compose_frame_bottom()
+
+    def on_mount(self) -> None:
+        self.query_one("#rank-grid", DataTable).add_columns(
+            "#", "liquid", "Ra", "RED", "bp C", "flash C", "GHS", "food status", "cost")
+        self.query_one("#blend-grid", DataTable).add_columns(
+            "#", "blend (volume fractions)", "Ra", "RED", "one phase", "bp C", "flash C", "flammable", "cost", "reject", "margin")
+        self.query_one("#dropped-grid", DataTable).add_columns("blend (volume fractions)", "Ra", "why it was dropped")
+        self.query_one("#excluded-grid", DataTable).add_columns("liquid", "why it is not in the pool")
+        self.fill_preset("carrier")
+
+    # ---------------------------------------------------------------- target / presets
+    def target_changed(self) -> None:
+        self.refresh_all()
+
+    def refresh_all(self) -> None:
+        if self.session.target is None:
+            self.query_one("#carrier-detail", Static).update("No target: choose one on the Target screen (F2).")
+            return
+        request = self.guard(self.read_form)
+        if request is None:
+            return
+        self.run_ranking(request)
+        self.start_search(request)
+
+    def fill_preset(self, key: str) -> None:
+        part = self.session.scenario_part(key)
+        self.query_one("#use", Select).value = part.get("use", key)
+        self.query_one("#jurisdiction", Select).value = part.get("jurisdiction", "EU")
+        self.query_one("#max-components", Select).value = int(part.get("max_components", 3))
+        self.query_one("#temp", Input).value = f"{float(part.get('temp_C', 25.0)):g}"
+        self.query_one("#rejects", Input).value = ", ".join(part.get("reject", []))
+        self.query_one("#exclude", Input).value = ", ".join(part.get("exclude", []))
+        self.query_one("#min-flash", Input).value = ""
+        self.query_one("#bp-window", Input).value = ""
+
+    def action_preset(self, key: str) -> None:
+        self.fill_preset(key)
+        self.refresh_all()
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        if event.button.id == "run-search":
+            self.action_search()
+        elif event.button.id in ("preset-carrier", "preset-extraction"):
+            self.action_preset(event.button.id.split("-", 1)[1])
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        self.action_search()
+
+    def action_search(self) -> None:
+        self.refresh_all()
+
+    def read_form(self) -> SearchRequest:
+        from ..errors import InputError
+
+        use = self.query_one("#use", Select).value
+        jur = self.query_one("#jurisdiction", Select).value
+        temp = _float(self.query_one("#temp", Input).value, "temperature")
+        lo, hi = _window(self.query_one("#bp-window", Input).value)
+        if temp is None:
+            raise InputError("temperature: expected a number of C, got nothing")
+        return SearchRequest(
+            use=None if use == "any" else use,
+            jurisdiction=None if jur == "none" else jur,
+            max_components=int(self.query_one("#max-components", Select).value),
+            min_flash_C=_float(self.query_one("#min-flash", Input).value, "lowest flash point"),
+            bp_min_C=lo, bp_max_C=hi, temp_C=temp,
+            exclude=_names(self.query_one("#exclude", Input).value, "leave out"),
+            rejects=_names(self.query_one("#rejects", Input).value, "keep out of solution"),
+        )
+
+    def engine_kwargs(self, req: SearchRequest) -> dict:
+        cat = self.session.catalog
+        return dict(
+            use=req.use, jurisdiction=req.jurisdiction, min_flash_C=req.min_flash_C,
+            bp_min_C=req.bp_min_C, bp_max_C=req.bp_max_C, temp_C=req.temp_C,
+            exclude=list(req.exclude) or None,
+            rejects=[cat.solute(n) for n in req.rejects],
+        )
+
+    # ---------------------------------------------------------------- single liquids
+    def run_ranking(self, req: SearchRequest) -> None:
+        from ..target import rank_solvents
+
+        res = self.guard(rank_solvents, self.session.catalog, self.session.target, temp_C=req.temp_C,
+                         food=req.use is not None, use=req.use, jurisdiction=req.jurisdiction, top=15,
+                         exclude=req.exclude)
+        if res is None:
+            return
+        self.ranking = res
+        self.session.ranking = res
+        grid = self.query_one("#rank-grid", DataTable)
+        grid.clear()
+        for i, r in enumerate(res.results, 1):
+            grid.add_row(str(i), r.name + (" (yours)" if r.origin.startswith("user") else ""), _fmt(r.ra),
+                         _fmt(r.red), _fmt(r.bp_C, ".0f"), _fmt(r.flash_C, ".0f"), r.hazard_code or "no",
+                         r.food_status or "-", _fmt(r.cost_class, ".0f"))
+        if res.results:
+            self.show_single(res.results[0])
+        self.show_cautions()
+
+    def show_single(self, r) -> None:
+        t = Text()
+        t.append(f"{r.name}\n", style="bold")
+        t.append(f"HSP at {self.ranking.temp_C:g} C  dD {r.dD:.2f}  dP {r.dP:.2f}  dH {r.dH:.2f} MPa^0.5   Ra {r.ra:.2f}"
+                 + (f"   RED {r.red:.2f}" if r.red is not None else "") + "\n")
+        t.append(f"bp {_fmt(r.bp_C, '.0f')} C   flash {_fmt(r.flash_C, '.0f')} C   {r.hazard or 'not flammable'}\n")
+        t.append(f"food status: {r.food_status or 'no data'}   water: {r.water_miscibility or '-'}"
+                 f"   cost class {_fmt(r.cost_class, '.0f')}\n")
+        if r.solubility and r.solubility.get("g_per_L") is not None:
+            t.append(f"solubility estimate {r.solubility['g_per_L']:.3g} g/L (an estimate; confirm at the bench)\n")
+        for n in tuple(r.notes) + tuple(self.ranking.notes):
+            t.append(f"note: {n}\n", style="dim")
+        if self.ranking.dropped:
+            t.append(f"{len(self.ranking.dropped)} liquids left out of the ranking (e.g. "
+                     + "; ".join(f"{d['name']}: {d['reason']}" for d in self.ranking.dropped[:2]) + ")\n", style="dim")
+        t.append("flash point and boiling window bound the blends only", style="dim italic")
+        self.query_one("#carrier-detail", Static).update(t)
+        self.show_cautions(r)
+
+    # ---------------------------------------------------------------- blends (worker)
+    def start_search(self, req: SearchRequest) -> None:
+        if self.worker is not None and self.worker.state in (WorkerState.PENDING, WorkerState.RUNNING):
+            self.worker.cancel()
+        bar = self.query_one("#search-progress", ProgressBar)
+        bar.update(total=None, progress=0)
+        self.query_one("#search-status", Static).update("searching blends ... (Esc cancels)")
+        self.worker = self.search_worker(self.session.target, req)
+
+    @work(thread=True, exclusive=True, group="blends", exit_on_error=False)
+    def search_worker(self, target, req: SearchRequest) -> None:
+        """Look up the reject solutes and run the blend search, off the UI thread."""
+        from ..blends import optimise_blends
+        from ..errors import SolvselError
+
+        worker = get_current_worker()
+        self.post_message(BlendProgress(0, None, f"pool and constraints; blends of up to {req.max_components} liquids"))
+        try:
+            kwargs = self.engine_kwargs(req)  # name lookups may reach the reference library: not on the UI thread
+        except SolvselError as exc:
+            self.post_message(BlendFailed(exc))
+            return
+
+        def progress(done=None, total=None, *rest, **kw):
+            # the engine's callback, when it has one: report, and stop if cancelled
+            if worker.is_cancelled:
+                raise _Cancelled()
+            if done is not None:
+                self.post_message(BlendProgress(done, total, "searching"))
+            return True
+
+        extra = {}
+        if "progress" in inspect.signature(optimise_blends).parameters:
+            extra["progress"] = progress
+        try:
+            res = optimise_blends(self.session.catalog, target, max_components=req.max_components, top=req.top,
+                                  **kwargs, **extra)
+        except _Cancelled:
+            self.post_message(BlendDone(None, cancelled=True))
+            return
+        except SolvselError as exc:
+            self.post_message(BlendFailed(exc))
+            return
+        if worker.is_cancelled:
+            self.post_message(BlendDone(None, cancelled=True))
+            return
+        self.post_message(BlendDone(res))
+
+    def action_cancel(self) -> None:
+        if self.worker is not None and self.worker.state in (WorkerState.PENDING, WorkerState.RUNNING):
+            self.worker.cancel()
+            self.query_one("#search-status", Static).update("cancelling ...")
+
+    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        # a search cancelled before its thread ran posts nothing: say so here
+        if event.worker is self.worker and event.state == WorkerState.CANCELLED:
+            self.query_one("#search-progress", ProgressBar).update(total=1, progress=0)
+            self.query_one("#search-status", Static).update("search cancelled")
+
+    def on_blend_progress(self, message: BlendProgress) -> None:
+        self.messages.append(message)
+        bar = self.query_one("#search-progress", ProgressBar)
+        bar.update(total=message.total, progress=message.done)
+        self.query_one("#search-status", Static).update(message.text)
+
+    def on_blend_failed(self, message: BlendFailed) -> None:
+        self.messages.append(message)
+        self.query_one("#search-progress", ProgressBar).update(total=1, progress=0)
+        self.query_one("#search-status", Static).update("search stopped: see the message")
+        from .dialogs import show_error
+
+        show_error(self.app, message.error)
+
+    def on_blend_done(self, message: BlendDone) -> None:
+        self.messages.append(message)
+        bar = self.query_one("#search-progress", ProgressBar)
+        if message.cancelled or message.result is None:
+            bar.update(total=1, progress=0)
+            self.query_one("#search-status", Static).update("search cancelled")
+            return
+        bar.update(total=1, progress=1)
+        res = message.result
+        self.result = res
+        self.session.blends = res
+        c = res.counts
+        self.query_one("#search-status", Static).update(
+            f"{c.get('combinations', 0)} combinations of {c.get('liquids', 0)} liquids, exact fractions; "
+            f"{len(res.results)} shown, {len(res.dropped)} dropped, {len(res.excluded)} liquids left out"
+            + ("" if res.success else f"; {res.message}"))
+        self.fill_blends(res)
+
+    def fill_blends(self, res) -> None:
+        grid = self.query_one("#blend-grid", DataTable)
+        grid.clear()
+        for b in res.results:
+            grid.add_row(
+                str(b.rank) + ("*" if b.pareto and b.rejects else ""), b.label, _fmt(b.ra), _fmt(b.red),
+                _phase(b), _bp(b), _fmt(b.lowest_flash_C, ".0f"), _short_hazard(b), _fmt(b.cost, ".1f"),
+                _fmt(b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra),
+                _fmt(b.selectivity))
+        dropped = self.query_one("#dropped-grid", DataTable)
+        dropped.clear()
+        for d in res.dropped:
+            label = " + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions))
+            dropped.add_row(label, _fmt(d.ra), d.reason)
+        excluded = self.query_one("#excluded-grid", DataTable)
+        excluded.clear()
+        for e in res.excluded:
+            excluded.add_row(e.name, e.reason)
+        if res.results:
+            self.show_blend(res.results[0])
+        else:
+            self.query_one("#carrier-detail", Static).update(f"No blend: {res.message}")
+        self.show_cautions()
+
+    # ---------------------------------------------------------------- detail and cautions
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        row = event.cursor_row
+        if event.data_table.id == "blend-grid" and self.result is not None and 0 <= row < len(self.result.results):
+            self.show_blend(self.result.results[row])
+        elif event.data_table.id == "rank-grid" and self.ranking is not None and 0 <= row < len(self.ranking.results):
+            self.show_single(self.ranking.results[row])
+
+    def show_blend(self, b) -> None:
+        t = Text()
+        t.append(f"#{b.rank}  {b.label}\n", style="bold")
+        t.append(f"blend HSP  dD {b.dD:.2f}  dP {b.dP:.2f}  dH {b.dH:.2f} MPa^0.5   Ra {b.ra:.2f}"
+                 + (f"   RED {b.red:.2f}" if b.red is not None else "   (no R0: RED not given)") + "\n")
+        for c in b.components:
+            mf = "-" if c.mass_fraction is None else f"{c.mass_fraction:.3f}"
+            t.append(f"  {c.name:<28} volume {c.volume_fraction:.3f}   mass {mf}\n")
+        if len(b.components) > 1:
+            t.append(f"one phase: {_phase(b)}  {b.phase_note}\n", style="dim")
+        if b.rejects:
+            t.append("kept out: " + ", ".join(
+                f"{r.name} Ra {r.ra:.1f}" + (f" RED {r.red:.2f}" if r.red is not None else "") for r in b.rejects) + "\n")
+        if b.solubility:
+            g = b.solubility.get("g_per_L")
+            if g is not None:
+                t.append(f"solubility estimate: {g:.3g} g/L (an estimate; confirm at the bench)\n")
+        for rg in b.regulations:
+            line = f"{rg.get('name', '')}: {rg.get('status', '')}"
+            if rg.get("conditions"):
+                line += " - " + "; ".join(rg["conditions"][:2])
+            t.append(line + "\n", style="italic")
+        self.query_one("#carrier-detail", Static).update(t)
+        self.show_cautions(b)
+
+    def show_cautions(self, selected=None) -> None:
+        """The selected liquid's or blend's cautions, then those of the whole list shown."""
+        cautions: list[str] = []
+        if selected is None:
+            for res in (self.result, self.ranking):
+                if res is not None and res.results:
+                    selected = res.results[0]
+                    break
+        if selected is not None:
+            cautions += list(selected.cautions)
+        for res in (self.result, self.ranking):
+            if res is not None:
+                cautions += list(res.cautions)
+        t = self.session.target
+        if t is not None and t.solute is not None and getattr(t.solute, "category", "") == "active" and t.solute.note:
+            cautions.append(t.solute.note)
+        # the most serious first: flammability and toxicity before the general deferral
+        cautions.sort(key=lambda c: c.startswith(("Estimates", "Screening")))
+        self.query_one("#carrier-cautions", CautionBox).show(cautions)
+
+
+def _short_hazard(b) -> str:
+    if b.hazard_rank == 0:
+        return "no"
+    return b.hazard.replace("flammable liquid, GHS ", "").replace("category ", "cat ")
+
+
+def _phase(b) -> str:
+    if len(b.components) == 1:
+        return "-"
+    if b.one_phase is None:
+        return "?"
+    return ("yes" if b.one_phase else "NO") + {"measured": " (measured)", "predicted": " (predicted)"}.get(b.phase_basis, "")
+
+
+def _bp(b) -> str:
+    if b.bp_min_C is None:
+        return "-"
+    if b.bp_min_C == b.bp_max_C:
+        return f"{b.bp_min_C:g}"
+    return f"{b.bp_min_C:g}-{b.bp_max_C:g}"

@@ -1,0 +1,153 @@
+"""Limits screen: a flavour formula along its dilution chain, against the finished-product limits.
+
+Calls :func:`solvsel.compliance.check_dose` with the formula of
+:func:`solvsel.formulation.formula_from_amounts`; shows the level of every
+substance at every stage, each limit that applies (and the one that binds),
+and the largest dose that keeps them.
+"""
+
+from __future__ import annotations
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, VerticalScroll
+from textual.widgets import Button, DataTable, Input, Label, Static
+
+from .base import BenchScreen
+from .widgets import CautionBox
+
+
+def _g(x, spec=".4g") -> str:
+    return "-" if x is None else format(x, spec)
+
+
+class LimitsScreen(BenchScreen):
+    """Levels along the dilution chain and the limits of the finished product."""
+
+    MODE = "limits"
+    BINDINGS = [Binding("ctrl+r", "compute", "Compute")]
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.result = None
+
+    def compose(self) -> ComposeResult:
+        yield from self.compose_frame_top()
+        with Horizontal(id="limits-body"):
+            with VerticalScroll(id="limits-form"):
+                yield Static("Flavour and use", classes="pane-title")
+                yield Label("Formula, % by mass (NAME=AMOUNT, ...)")
+                yield Input(id="lim-formula", compact=True)
+                yield Label("Dose in the first stage (0.15%, 1500ppm)")
+                yield Input(id="lim-dose", compact=True)
+                yield Label("Dilution chain (e.g. syrup 1+5 carbonated water)")
+                yield Input(id="lim-chain", compact=True)
+                yield Label("Food category as consumed")
+                yield Input(id="lim-category", compact=True)
+                yield Label("Jurisdiction (EU or US)")
+                yield Input(id="lim-jurisdiction", compact=True)
+                yield Button("Check  ^R", id="lim-compute", variant="primary", compact=True)
+            with VerticalScroll(id="limits-results"):
+                yield Static("", id="lim-summary", classes="result-block")
+                yield DataTable(id="lim-checks", cursor_type="row", zebra_stripes=True)
+                yield Static("", id="lim-stages-title", classes="result-block")
+                yield DataTable(id="lim-stages", cursor_type="row", zebra_stripes=True)
+                yield Static("", id="lim-notes", classes="result-block")
+                yield CautionBox(id="lim-cautions", classes="cautions")
+        yield from self.compose_frame_bottom()
+
+    def on_mount(self) -> None:
+        f = self.session.scenario_part("flavour")
+        self.query_one("#lim-formula", Input).value = ", ".join(f"{k}={v:g}" for k, v in f.get("formula", {}).items())
+        self.query_one("#lim-dose", Input).value = str(f.get("dose", ""))
+        self.query_one("#lim-chain", Input).value = str(f.get("chain", ""))
+        self.query_one("#lim-category", Input).value = str(f.get("category", "food"))
+        self.query_one("#lim-jurisdiction", Input).value = str(f.get("jurisdiction", "EU"))
+        self.query_one("#lim-checks", DataTable).add_columns(
+            "rule", "substance", "level", "limit", "unit", "of limit", "ok", "binds", "max dose", "confidence")
+        self.compute(interactive=False)
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        if event.button.id == "lim-compute":
+            self.compute()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        self.compute()
+
+    def action_compute(self) -> None:
+        self.compute()
+
+    def run_check(self):
+        from ..cli._common import parse_amounts
+        from ..compliance import check_dose
+        from ..errors import InputError
+        from ..formulation import formula_from_amounts
+
+        q = self.query_one
+        cat = self.session.catalog
+        formula = formula_from_amounts(cat, parse_amounts(q("#lim-formula", Input).value, "formula"), name="flavour")
+        dose = q("#lim-dose", Input).value.strip() or None
+        chain = q("#lim-chain", Input).value.strip() or None
+        if dose is None and chain is None:
+            raise InputError("dose: give the dose of the formula (e.g. 0.15%) or a chain with amounts")
+        return check_dose(cat, formula, chain=chain, jurisdiction=q("#lim-jurisdiction", Input).value.strip().upper() or "EU",
+                          category=q("#lim-category", Input).value.strip() or "food", dose=dose)
+
+    def compute(self, interactive: bool = True) -> None:
+        from ..errors import SolvselError
+        from .dialogs import show_error
+
+        try:
+            r = self.run_check()
+        except SolvselError as exc:
+            self.query_one("#lim-summary", Static).update(Text.assemble((f"{exc.title}: ", "bold"), str(exc)))
+            if interactive:
+                show_error(self.app, exc)
+            return
+        self.result = r
+        self.show(r)
+
+    def show(self, r) -> None:
+        frac = r.max_dose_unit.endswith("fraction")
+        t = Text()
+        t.append(f"Formula '{r.formula.name}': " + ", ".join(f"{c.name} {c.mass_fraction * 100:.4g} %" for c in r.formula.components) + "\n")
+        t.append(f"limits of {r.jurisdiction}; food as consumed: {r.category}\n")
+        if r.max_dose is not None:
+            shown = f"{r.max_dose * 100:.4g} %" if frac else f"{r.max_dose:.4g} {r.max_dose_unit}"
+            b = r.binding
+            t.append(f"largest dose {shown} in '{r.stages[1].name}'", style="bold")
+            t.append(f", bound by {b.jurisdiction} {b.rule} on {b.substance} ({b.limit:g} {b.unit})\n")
+        else:
+            t.append("largest dose: no numeric limit of the table applies\n", style="bold")
+        over = sum(not c.ok for c in r.checks)
+        t.append(("every limit with data is kept" if not over else f"{over} limit(s) exceeded")
+                 + ("" if r.complete else "; some substances have no data (not a permission)") + "\n",
+                 style="bold" if over else "")
+        self.query_one("#lim-summary", Static).update(t)
+        grid = self.query_one("#lim-checks", DataTable)
+        grid.clear()
+        for c in r.checks:
+            md = None if c.max_dose is None else c.max_dose * (100 if frac else 1)
+            grid.add_row(c.rule, c.substance, _g(c.level), _g(c.limit) if c.limit is not None else c.status, c.unit,
+                         "-" if not c.limit or c.level is None else f"{100 * c.level / c.limit:.0f} %",
+                         "ok" if c.ok else "OVER", "binds" if c.binds else "", _g(md), c.confidence)
+        stages = self.query_one("#lim-stages", DataTable)
+        stages.clear(columns=True)
+        rows = [r.stage_table(i) for i in range(len(r.stages))]
+        subs = list(dict.fromkeys(row["substance"] for tab in rows for row in tab))
+        stages.add_columns("substance, mg/kg", *[st.name for st in r.stages])
+        for s in subs:
+            cells = [s]
+            for tab in rows:
+                hit = next((row for row in tab if row["substance"] == s), None)
+                cells.append(_g(hit["mg_per_kg"], ",.6g") if hit else "-")
+            stages.add_row(*cells)
+        self.query_one("#lim-stages-title", Static).update(Text("\nLevels along the chain", style="bold"))
+        notes = Text()
+        for d in r.no_data:
+            notes.append(f"no data: {d['message']}\n", style="dim")
+        for a in r.assumptions:
+            notes.append(f"assumed: {a}\n", style="dim")
+        self.query_one("#lim-notes", Static).update(notes)
+        self.query_one("#lim-cautions", CautionBox).show(r.cautions)

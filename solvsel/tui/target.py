@@ -1,0 +1,195 @@
+"""Target screen: say what must dissolve, in one of four ways.
+
+From the solutes table (:func:`solvsel.target.target_from_solute`), typed
+numbers (:func:`~solvsel.target.target_from_hsp`), a structure
+(:func:`~solvsel.target.target_from_smiles`, with the groups of
+:func:`solvsel.structure.estimate` shown), or a sphere fitted from bench
+results (:mod:`solvsel.sphere`).  The chosen target drives the carriers and
+map screens.
+"""
+
+from __future__ import annotations
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.widgets import Button, Input, Label, OptionList, Static, TabbedContent, TabPane
+from textual.widgets.option_list import Option
+
+from .base import BenchScreen
+from .widgets import CautionBox
+
+
+class TargetScreen(BenchScreen):
+    """Choose the target: a solute, typed HSP, a SMILES string or a bench fit."""
+
+    MODE = "target"
+
+    def compose(self) -> ComposeResult:
+        yield from self.compose_frame_top()
+        with Horizontal(id="target-body"):
+            with TabbedContent(id="target-tabs"):
+                with TabPane("From the solutes table", id="from-table"):
+                    yield Input(placeholder="type to narrow the list; Enter on a name uses it", id="solute-filter", compact=True)
+                    yield OptionList(id="solute-list")
+                with TabPane("Typed numbers", id="from-typed"):
+                    with Vertical(classes="form"):
+                        yield Label("Name")
+                        yield Input(value="typed target", id="typed-name", compact=True)
+                        yield Label("dD, dP, dH in MPa^0.5, and R0 if known (e.g. 17.0, 3.0, 8.0, 8.0)")
+                        yield Input(placeholder="dD, dP, dH[, R0]", id="typed-hsp", compact=True)
+                        yield Button("Use these numbers", id="use-typed", variant="primary", compact=True)
+                with TabPane("From a structure", id="from-smiles"):
+                    with Vertical(classes="form"):
+                        yield Label("SMILES (the HSP are estimated by group contribution)")
+                        yield Input(placeholder="e.g. CC1=CCC(CC1)C(=C)C", id="smiles", compact=True)
+                        yield Button("Estimate and use", id="use-smiles", variant="primary", compact=True)
+                        yield Static("", id="smiles-detail")
+                with TabPane("From bench results", id="from-bench"):
+                    with Vertical(classes="form"):
+                        yield Label("CSV of bench tests (one row a liquid, with its score)")
+                        yield Input(placeholder="path/to/bench.csv", id="bench-path", compact=True)
+                        yield Label("a liquid counts as a good solvent at a score of at most")
+                        yield Input(value="2", id="bench-good", compact=True)
+                        yield Button("Fit the sphere and use it", id="use-bench", variant="primary", compact=True)
+                        yield Static("", id="bench-detail")
+            with VerticalScroll(id="target-summary-pane"):
+                yield Static("", id="target-summary")
+                yield CautionBox(id="target-cautions", classes="cautions")
+        yield from self.compose_frame_bottom()
+
+    def on_mount(self) -> None:
+        self.fill_solutes("")
+
+    def target_changed(self) -> None:
+        self.show_target()
+
+    # ---------------------------------------------------------------- table
+    def fill_solutes(self, text: str) -> None:
+        ol = self.query_one("#solute-list", OptionList)
+        ol.clear_options()
+        key = text.strip().casefold()
+        for s in self.session.catalog.solute_records():
+            hay = " ".join((s.name, s.cas, *s.synonyms, s.category)).casefold()
+            if key and key not in hay:
+                continue
+            r0 = f" R0 {s.r0:.1f}" if s.r0 else ""
+            mine = "  (yours)" if s.is_user else ""
+            ol.add_option(Option(f"{s.name:<30} {s.category:<8} {s.dD:5.1f} {s.dP:5.1f} {s.dH:5.1f}{r0}  {s.hsp_basis}{mine}",
+                                 id=s.cas or s.name))
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        if event.input.id == "solute-filter":
+            self.fill_solutes(event.value)
+
+    def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
+        from ..target import target_from_solute
+
+        self.set_target(self.guard(target_from_solute, self.session.catalog, event.option.id))
+
+    # ---------------------------------------------------------------- typed, structure, bench
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        ids = {"typed-hsp": "use-typed", "typed-name": "use-typed", "smiles": "use-smiles",
+               "bench-path": "use-bench", "bench-good": "use-bench"}
+        if event.input.id in ids:
+            self.press(ids[event.input.id])
+        elif event.input.id == "solute-filter":
+            ol = self.query_one("#solute-list", OptionList)
+            if ol.option_count:
+                ol.highlighted = 0
+                ol.action_select()
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        self.press(event.button.id)
+
+    def press(self, which: str) -> None:
+        if which == "use-typed":
+            self.set_target(self.guard(self.typed_target))
+        elif which == "use-smiles":
+            self.set_target(self.guard(self.smiles_target))
+        elif which == "use-bench":
+            self.set_target(self.guard(self.bench_target))
+
+    def typed_target(self):
+        from ..cli._common import parse_hsp
+        from ..target import target_from_hsp
+
+        name = self.query_one("#typed-name", Input).value.strip() or "typed target"
+        return target_from_hsp(parse_hsp(self.query_one("#typed-hsp", Input).value, "typed HSP"), name=name)
+
+    def smiles_target(self):
+        from ..structure import estimate
+        from ..target import target_from_smiles
+
+        smiles = self.query_one("#smiles", Input).value.strip()
+        target = target_from_smiles(smiles)
+        est = estimate(smiles)
+        t = Text()
+        t.append(f"{est.formula}  {est.chem_class}  method {est.method}\n", style="bold")
+        t.append(f"dD {est.dD:.2f}  dP {est.dP:.2f}  dH {est.dH:.2f} MPa^0.5   Vm "
+                 + ("-" if est.vm_cm3_mol is None else f"{est.vm_cm3_mol:.1f}") + f" cm3/mol ({est.vm_method})\n")
+        u = est.uncertainty or {}
+        if u:
+            t.append("typical error (cross-validated, " + str(u.get("basis", "")) + "): "
+                     + "  ".join(f"{k} {u[k]:.2f}" for k in ("dD", "dP", "dH", "ra") if k in u) + "\n")
+        t.append("groups: " + ", ".join(f"{g.name} x{g.count}" for g in est.groups) + "\n")
+        if est.uncovered_atoms:
+            t.append(f"atoms no group covers: {len(est.uncovered_atoms)}\n", style="bold")
+        for n in est.notes:
+            t.append(f"note: {n}\n", style="dim")
+        self.query_one("#smiles-detail", Static).update(t)
+        return target
+
+    def bench_target(self):
+        from ..errors import InputError
+        from . import bench
+
+        path = self.query_one("#bench-path", Input).value.strip()
+        if not path:
+            raise InputError("bench results: give the path of a CSV file")
+        target, text = bench.fit_from_csv(self.session.catalog, path, self.query_one("#bench-good", Input).value)
+        self.query_one("#bench-detail", Static).update(text)
+        return target
+
+    # ---------------------------------------------------------------- show
+    def set_target(self, target) -> None:
+        if target is None:
+            return
+        self.session.set_target(target)
+        self._seen_version = self.session.version
+        self.on_screen_resume()
+        self.show_target()
+        self.notify(f"target: {target.name}", timeout=3)
+
+    def show_target(self) -> None:
+        t = self.session.target
+        box = self.query_one("#target-summary", Static)
+        if t is None:
+            box.update("No target yet.")
+            return
+        txt = Text()
+        txt.append("Current target\n", style="bold")
+        txt.append(f"{t.name}\n", style="bold")
+        txt.append(f"dD {t.dD:.2f}   dP {t.dP:.2f}   dH {t.dH:.2f}  MPa^0.5\n")
+        txt.append(f"R0 {t.r0:.2f}\n" if t.r0 else "R0 unknown: results rank by Ra, not RED\n")
+        txt.append(f"basis: {t.basis}\n")
+        if t.vm_cm3_mol:
+            txt.append(f"molar volume {t.vm_cm3_mol:.1f} cm3/mol\n")
+        if t.uncertainty:
+            txt.append("uncertainty: " + ", ".join(f"{k} {v:.2f}" for k, v in t.uncertainty.items()
+                                                  if isinstance(v, (int, float)) and k in ("dD", "dP", "dH", "ra")) + "\n")
+        txt.append(f"\n{t.note}\n", style="dim")
+        if t.solute is not None and t.solute.note:
+            txt.append(f"\n{t.solute.note}\n", style="italic")
+        box.update(txt)
+        cautions = []
+        if t.basis in ("estimated", "typed"):
+            cautions.append("The target's HSP are " + ("estimated" if t.basis == "estimated" else "typed")
+                            + ": rankings are screening results; fit a sphere from bench tests before relying on them.")
+        if t.solute is not None and t.solute.category == "active":
+            cautions.append("The legal status of actives in foods differs by jurisdiction and use: "
+                            "check the regulations in force before formulating.")
+        from ..compliance import DEFER
+
+        cautions.append(DEFER)
+        self.query_one("#target-cautions", CautionBox).show(cautions)

@@ -1,0 +1,271 @@
+"""Small widgets of our own: the screen strip, the target line, the cautions box
+and a braille scatter map.
+
+They only lay out what a screen hands them (library results, or plain
+coordinates the screen got from the library); none of them computes a
+property of a substance.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+from rich.text import Text
+from textual.message import Message
+from textual.reactive import reactive
+from textual.widget import Widget
+from textual.widgets import Static
+
+# ----------------------------------------------------------------- screen strip
+
+
+class ScreenStrip(Static):
+    """One line naming every screen with its key; the current one stands out.
+
+    A click on a name posts :class:`ScreenStrip.Chosen`.
+    """
+
+    class Chosen(Message):
+        def __init__(self, mode: str) -> None:
+            super().__init__()
+            self.mode = mode
+
+    def __init__(self, screens: list[tuple[str, str, str]], current: str, **kw) -> None:
+        # screens: (mode, key label, title)
+        super().__init__(**kw)
+        self.screens = screens
+        self.current = current
+
+    def render(self) -> Text:
+        t = Text(no_wrap=True, overflow="ellipsis")
+        t.append(" solvsel ", style="bold reverse")
+        t.append("  ")
+        for mode, key, title in self.screens:
+            style = "bold reverse" if mode == self.current else ""
+            t.append(f" {key} ", style="bold " + ("reverse" if mode == self.current else "underline"))
+            t.append(f"{title} ", style=style)
+            t.append(" ")
+        return t
+
+    def on_click(self, event) -> None:
+        x = event.x
+        pos = len(" solvsel ") + 2
+        for mode, key, title in self.screens:
+            width = len(f" {key} ") + len(f"{title} ") + 1
+            if pos <= x < pos + width:
+                self.post_message(self.Chosen(mode))
+                return
+            pos += width
+
+
+# ----------------------------------------------------------------- target line
+
+
+class TargetLine(Static):
+    """The current target as one line (name, dD/dP/dH, R0 and its basis)."""
+
+    def show(self, target) -> None:
+        if target is None:
+            self.update("No target yet: choose one on the Target screen (F2).")
+            return
+        r0 = f"  R0 {target.r0:.1f}" if target.r0 else "  R0 unknown (no RED)"
+        self.update(
+            Text.assemble(
+                ("Target ", "bold"),
+                (target.name, "bold"),
+                f"   dD {target.dD:.1f}  dP {target.dP:.1f}  dH {target.dH:.1f} MPa^0.5{r0}",
+                ("   basis: ", "dim"),
+                (target.basis, "italic"),
+            )
+        )
+
+
+# ----------------------------------------------------------------- cautions
+
+
+class CautionBox(Static):
+    """The cautions that go with what is on screen, most serious first, each once."""
+
+    def show(self, cautions) -> None:
+        seen: list[str] = []
+        for c in cautions or ():
+            c = str(c).strip()
+            if c and c not in seen:
+                seen.append(c)
+        self.display = bool(seen)
+        t = Text()
+        t.append("Cautions\n", style="bold")
+        for i, c in enumerate(seen):
+            t.append(" ! ", style="bold")
+            t.append(c)
+            if i < len(seen) - 1:
+                t.append("\n")
+        self.update(t)
+        self.cautions = tuple(seen)
+
+
+# ----------------------------------------------------------------- braille map
+
+_DOT = ((0x01, 0x08), (0x02, 0x10), (0x04, 0x20), (0x40, 0x80))  # [row][col] inside a cell
+
+
+@dataclass(frozen=True)
+class MapPoint:
+    x: float
+    y: float
+    kind: str = "liquid"  # "liquid", "top", "target"
+    mark: str = ""  # a character drawn instead of a dot (e.g. the rank)
+    label: str = ""
+
+
+@dataclass(frozen=True)
+class MapData:
+    """What to draw: points, an optional circle (centre, radius), axis names."""
+
+    points: tuple[MapPoint, ...]
+    x_label: str
+    y_label: str
+    circle: tuple[float, float, float] | None = None
+    title: str = ""
+    window: tuple[float, float, float, float] | None = None  # x0, x1, y0, y1 to show (None: everything)
+    extra: dict = field(default_factory=dict)
+
+
+class BrailleMap(Widget):
+    """A scatter map drawn with braille dots, equal units on both axes.
+
+    Liquids are dots, highlighted liquids their mark (their rank), the target a
+    cross, the sphere's section a dotted circle.
+    """
+
+    data: reactive[MapData | None] = reactive(None, layout=False)
+
+    STYLES = {"liquid": "#8a9bb0", "top": "bold #f0c05a", "target": "bold #ff6f61", "circle": "#5fb3a8",
+              "axis": "#6b7280"}
+
+    def _bounds(self, d: MapData):
+        if d.window is not None:
+            return d.window
+        xs = [p.x for p in d.points]
+        ys = [p.y for p in d.points]
+        if d.circle:
+            cx, cy, r = d.circle
+            xs += [cx - r, cx + r]
+            ys += [cy - r, cy + r]
+        if not xs:
+            return 0.0, 1.0, 0.0, 1.0
+        x0, x1 = min(xs), max(xs)
+        y0, y1 = min(ys), max(ys)
+        pad_x = 0.04 * (x1 - x0 or 1.0)
+        pad_y = 0.04 * (y1 - y0 or 1.0)
+        return x0 - pad_x, x1 + pad_x, y0 - pad_y, y1 + pad_y
+
+    def render(self) -> Text:
+        d = self.data
+        width, height = self.size.width, self.size.height
+        if d is None or width < 20 or height < 6:
+            return Text("(no map)")
+        left, bottom = 6, 2
+        cw, ch = width - left - 1, height - bottom
+        pw, ph = cw * 2, ch * 4
+        x0, x1, y0, y1 = self._bounds(d)
+        # equal units on both axes (a braille dot is about square), so circles stay round
+        scale = min(pw / (x1 - x0), ph / (y1 - y0))
+        # centre the data in the spare room of the longer axis
+        spare_x = pw / scale - (x1 - x0)
+        spare_y = ph / scale - (y1 - y0)
+        x0 -= spare_x / 2
+        y0 -= spare_y / 2
+        x1 = x0 + pw / scale
+        y1 = y0 + ph / scale
+
+        bits = [[0] * cw for _ in range(ch)]
+        kinds = [[""] * cw for _ in range(ch)]
+        marks: dict[tuple[int, int], tuple[str, str]] = {}
+
+        def pix(x, y):
+            px = int((x - x0) * scale)
+            py = int((y1 - y) * scale)
+            return px, py
+
+        def dot(px, py, kind):
+            if 0 <= px < pw and 0 <= py < ph:
+                r, c = py // 4, px // 2
+                bits[r][c] |= _DOT[py % 4][px % 2]
+                if kinds[r][c] != "liquid":
+                    kinds[r][c] = kinds[r][c] or kind
+                else:
+                    kinds[r][c] = kind
+
+        if d.circle:
+            cx, cy, r = d.circle
+            n = max(90, int(2 * math.pi * r * scale))
+            for i in range(n):
+                a = 2 * math.pi * i / n
+                dot(*pix(cx + r * math.cos(a), cy + r * math.sin(a)), "circle")
+        for p in d.points:
+            px, py = pix(p.x, p.y)
+            if p.kind == "liquid":
+                dot(px, py, "liquid")
+                dot(px + 1, py, "liquid")
+                dot(px, py + 1, "liquid")
+                dot(px + 1, py + 1, "liquid")
+            elif 0 <= px < pw and 0 <= py < ph:
+                r, c = py // 4, px // 2
+                for dc in (0, 1, -1, 2, -2):  # two marks on one cell: the later one moves aside
+                    if (r, c + dc) not in marks and 0 <= c + dc < cw:
+                        marks[(r, c + dc)] = (p.mark or ("+" if p.kind == "target" else "*"), p.kind)
+                        break
+
+        # y ticks every 'step' units, x ticks likewise
+        step = _nice_step((y1 - y0) / max(2, ch // 4))
+        y_ticks = {}
+        v = math.ceil(y0 / step) * step
+        while v <= y1:
+            row = int((y1 - v) * scale) // 4
+            if 0 <= row < ch:
+                y_ticks[row] = f"{v:g}"
+            v += step
+        out = Text(no_wrap=True)
+        for r in range(ch):
+            out.append(f"{y_ticks.get(r, ''):>{left - 1}}", style=self.STYLES["axis"])
+            out.append("┤" if r in y_ticks else "│", style=self.STYLES["axis"])
+            for c in range(cw):
+                if (r, c) in marks:
+                    m, kind = marks[(r, c)]
+                    out.append(m, style=self.STYLES[kind])
+                elif bits[r][c]:
+                    out.append(chr(0x2800 + bits[r][c]), style=self.STYLES[kinds[r][c] or "liquid"])
+                else:
+                    out.append(" ")
+            out.append("\n")
+        axis = [" "] * cw
+        labels = [" "] * (cw + 8)
+        xstep = _nice_step((x1 - x0) / max(2, cw // 10))
+        v = math.ceil(x0 / xstep) * xstep
+        while v <= x1:
+            col = int((v - x0) * scale) // 2
+            if 0 <= col < cw:
+                axis[col] = "┬"
+                s = f"{v:g}"
+                for i, chr_ in enumerate(s):
+                    if col + i < len(labels):
+                        labels[col + i] = chr_
+            v += xstep
+        out.append(" " * (left - 1) + "└" + "".join(axis).replace(" ", "─") + "\n", style=self.STYLES["axis"])
+        out.append(" " * left + "".join(labels)[:cw], style=self.STYLES["axis"])
+        return out
+
+    def watch_data(self, value) -> None:
+        self.refresh()
+
+
+def _nice_step(raw: float) -> float:
+    if raw <= 0 or not math.isfinite(raw):
+        return 1.0
+    exp = math.floor(math.log10(raw))
+    for m in (1, 2, 5, 10):
+        if m * 10 ** exp >= raw:
+            return m * 10 ** exp
+    return 10 ** (exp + 1)

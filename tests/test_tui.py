@@ -1,0 +1,281 @@
+"""The terminal UI, driven with Textual's Pilot on the demo scenario.
+
+The UI computes nothing itself: each check compares what a screen shows with
+what the library returns for the same input, and the library's numbers with
+the published formula where one is at hand.  Each test drives one app through
+several steps (starting an app costs about a second on a loaded machine).
+"""
+
+from __future__ import annotations
+
+import asyncio
+import math
+
+import pytest
+
+pytest.importorskip("textual")
+
+from solvsel.catalog import load_catalog  # noqa: E402
+from solvsel.tui.app import create_app  # noqa: E402
+
+SIZE = (160, 48)
+
+
+def run(coro):
+    return asyncio.run(coro)
+
+
+async def _settle(app, pilot):
+    from textual.worker import WorkerCancelled
+
+    try:
+        await app.workers.wait_for_complete()
+    except WorkerCancelled:  # a search the user (or a newer search) cancelled
+        pass
+    await pilot.pause()
+
+
+def _cells(grid, row):
+    return [str(c) for c in grid.get_row_at(row)]
+
+
+def test_opens_on_demo_ranking_cautions_and_every_screen_by_key():
+    async def go():
+        from solvsel.compliance import DEFER
+        from solvsel.demo import load_scenario
+        from solvsel.target import rank_solvents, target_from_solute
+
+        cat = load_catalog()
+        app = create_app(catalog=cat)
+        async with app.run_test(size=SIZE) as pilot:
+            await _settle(app, pilot)
+            scenario = load_scenario()
+            c = scenario.carrier
+
+            # opens on the demo scenario: its solute is the target, its carrier constraints fill the form
+            assert app.session.target.name == scenario.target["solute"]
+            assert app.current_mode == "carriers"
+            assert scenario.target["solute"] in str(app.screen.query_one(".target-line").render())
+            assert app.screen.query_one("#jurisdiction").value == c["jurisdiction"]
+            assert app.screen.query_one("#max-components").value == c["max_components"]
+
+            # the ranking shows the best carrier as the library computes it
+            target = target_from_solute(cat, scenario.target["solute"])
+            ref = rank_solvents(cat, target, food=True, use=c["use"], jurisdiction=c["jurisdiction"], top=15)
+            grid = app.screen.query_one("#rank-grid")
+            assert grid.row_count == len(ref.results)
+            first = _cells(grid, 0)
+            assert first[1] == ref.results[0].name
+            assert float(first[2]) == pytest.approx(ref.results[0].ra, abs=0.005)  # shown with 2 decimals
+            # that Ra is Hansen's distance Ra^2 = 4 (dD1-dD2)^2 + (dP1-dP2)^2 + (dH1-dH2)^2
+            # (Hansen 2007, Handbook ch. 1), worked from the table values at 25 C (no temperature shift)
+            s = cat.solvent(ref.results[0].name)
+            by_hand = math.sqrt(4 * (s.dD - target.dD) ** 2 + (s.dP - target.dP) ** 2 + (s.dH - target.dH) ** 2)
+            assert ref.results[0].ra == pytest.approx(by_hand, rel=1e-9)
+
+            # cautions are on the carriers screen: the engine's cautions of the blend shown, and the deferral
+            box = app.screen.query_one("#carrier-cautions")
+            assert box.display
+            best = app.session.blends.results[0]
+            for text in best.cautions:
+                assert text in box.cautions
+            assert DEFER in box.cautions or any("defer to local codes" in t for t in box.cautions)
+            flammable = [b for b in app.session.blends.results if b.hazard_rank > 0]
+            assert flammable, "the demo's best carrier blends include a combustible liquid (benzyl alcohol, ethanol)"
+            app.screen.show_blend(flammable[0])
+            assert any("flammable" in t for t in box.cautions)
+
+            # every screen can be reached by its key
+            expected = {"f1": "TablesScreen", "f2": "TargetScreen", "f4": "MapScreen",
+                        "f5": "EmulsionScreen", "f6": "LimitsScreen", "f3": "CarriersScreen"}
+            for key, name in expected.items():
+                await pilot.press(key)
+                await pilot.pause()
+                assert type(app.screen).__name__ == name, key
+
+    run(go())
+
+
+def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled():
+    async def go():
+        from solvsel.blends import optimise_blends
+        from solvsel.tui.carriers import BlendDone, BlendProgress
+
+        cat = load_catalog()
+        app = create_app(catalog=cat)
+        async with app.run_test(size=SIZE) as pilot:
+            await _settle(app, pilot)
+            screen = app.screen
+            kinds = [type(m) for m in screen.messages]
+            assert BlendProgress in kinds and kinds[-1] is BlendDone
+            assert kinds.index(BlendProgress) < kinds.index(BlendDone)
+            done = screen.messages[-1]
+            assert not done.cancelled and done.result is not None
+            c = app.session.scenario.carrier
+            ref = optimise_blends(cat, app.session.target, use=c["use"], jurisdiction=c["jurisdiction"],
+                                  max_components=c["max_components"], top=10, temp_C=25.0)
+            assert [b.label for b in done.result.results] == [b.label for b in ref.results]
+            assert _cells(screen.query_one("#blend-grid"), 0)[1] == ref.results[0].label
+            assert screen.query_one("#dropped-grid").row_count == len(ref.dropped)
+            assert screen.query_one("#excluded-grid").row_count == len(ref.excluded)
+
+            # the extraction preset (rejects, -20 C, two liquids) runs a second search in the worker
+            await pilot.press("ctrl+e")
+            await _settle(app, pilot)
+            assert type(screen.messages[-1]) is BlendDone
+            res = screen.messages[-1].result
+            x = app.session.scenario.extraction
+            assert res.results and {r.name for r in res.results[0].rejects} == set(x["reject"])
+            assert max(len(b.components) for b in res.results) <= x["max_components"]
+
+            # a search cancelled at once: no crash, no half result on screen
+            n = len(screen.messages)
+            shown = _cells(screen.query_one("#blend-grid"), 0)
+            screen.action_search()
+            screen.action_cancel()
+            await _settle(app, pilot)
+            status = str(screen.query_one("#search-status").render())
+            new = screen.messages[n:]
+            if any(isinstance(m, BlendDone) and not m.cancelled for m in new):
+                pass  # it finished before the cancel reached it
+            else:
+                assert "cancel" in status
+                assert _cells(screen.query_one("#blend-grid"), 0) == shown
+
+    run(go())
+
+
+def test_target_screen_smiles_typed_numbers_dialogs_and_map():
+    async def go():
+        from solvsel.structure import estimate
+        from solvsel.tui.dialogs import ErrorDialog
+
+        app = create_app()
+        async with app.run_test(size=SIZE) as pilot:
+            await _settle(app, pilot)
+            before = app.session.target
+
+            # an unknown reject solute: the error dialog with the closest name, no crash
+            app.screen.query_one("#rejects").value = "chlorophyl"
+            app.screen.action_search()
+            await _settle(app, pilot)
+            assert isinstance(app.screen, ErrorDialog)
+            assert app.screen.error_title == "Unknown name"
+            assert "chlorophyll a" in app.screen.error_message
+            await pilot.press("escape")
+            await pilot.pause()
+
+            # a bad SMILES: the error dialog with the error's title and message; the target stays
+            await pilot.press("f2")
+            await pilot.pause()
+            screen = app.screen
+            screen.query_one("#target-tabs").active = "from-smiles"
+            await pilot.pause()
+            screen.query_one("#smiles").value = "C1CC(("  # unclosed branch and ring: not a molecule
+            await pilot.click("#use-smiles")
+            await pilot.pause()
+            assert isinstance(app.screen, ErrorDialog)
+            assert app.screen.error_title == "Bad input"
+            assert "SMILES" in app.screen.error_message
+            await pilot.press("escape")
+            await pilot.pause()
+            assert app.screen is screen
+            assert app.session.target is before
+
+            # a good SMILES becomes an estimated target, with the estimate's numbers
+            screen.query_one("#smiles").value = "CC1=CCC(CC1)C(=C)C"  # limonene
+            screen.press("use-smiles")
+            await pilot.pause()
+            e = estimate("CC1=CCC(CC1)C(=C)C")
+            t = app.session.target
+            assert t.basis == "estimated" and (t.dD, t.dP, t.dH) == pytest.approx((e.dD, e.dP, e.dH))
+
+            # typed numbers with R0; the map then draws the sphere's section around the target
+            screen.query_one("#typed-hsp").value = "17.0, 3.0, 8.0, 8.0"
+            screen.press("use-typed")
+            await pilot.pause()
+            assert (app.session.target.dD, app.session.target.r0) == (17.0, 8.0)
+            await pilot.press("f4")
+            await _settle(app, pilot)
+            data = app.screen.map_data
+            assert data.circle == (8.0, 3.0, 8.0)  # centre (dH, dP) of the target, radius R0
+            assert any(p.kind == "target" for p in data.points)
+            await pilot.press("v")  # the other view: 2 dD against dH, centre at 2 x 17.0
+            await pilot.pause()
+            assert app.screen.map_data.circle == (8.0, 34.0, 8.0)
+            drawn = str(app.screen.query_one("#hsp-map").render())
+            assert "+" in drawn  # the target's cross
+
+    run(go())
+
+
+def test_tables_filter_uses_the_where_grammar_and_cites_sources():
+    async def go():
+        from solvsel.query import where
+        from solvsel.tui.dialogs import ErrorDialog
+
+        cat = load_catalog()
+        app = create_app(catalog=cat, start="tables")
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            screen = app.screen
+            assert type(screen).__name__ == "TablesScreen"
+            await pilot.press("slash")  # the filter box takes the keys
+            await pilot.pause()
+            assert screen.focused is screen.query_one("#table-filter")
+            screen.query_one("#table-filter").value = "dH > 10 and bp_C < 120"
+            await pilot.press("enter")
+            await pilot.pause()
+            df = cat.solvents
+            assert screen.query_one("#table-grid").row_count == int(where(df, "dH > 10 and bp_C < 120").sum())
+            detail = str(screen.query_one("#row-detail").render()).replace("\n", " ")
+            first = screen.frame.iloc[0]
+            src = cat.source(first["hsp_source"].split(";")[0])
+            assert src["citation"][:30] in detail
+            # a flammable liquid shows its caution beside its values
+            assert any("flammable" in t for t in screen.query_one("#row-cautions").cautions) == bool(
+                cat.solvent(first["cas"] or first["name"]).flammable)
+            screen.load_table("solvents", "dH >> 10")
+            await pilot.pause()
+            assert isinstance(app.screen, ErrorDialog)
+
+    run(go())
+
+
+def test_emulsion_and_limits_screens_show_the_library_results():
+    async def go():
+        from solvsel.cli._common import parse_amounts
+        from solvsel.compliance import check_dose
+        from solvsel.emulsion import design_beverage_emulsion
+        from solvsel.formulation import formula_from_amounts
+
+        cat = load_catalog()
+        app = create_app(catalog=cat, start="emulsion")
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            e = app.session.scenario.emulsion
+            ref = design_beverage_emulsion(cat, list(e["oil"].items()), brix=e["brix"], dilution=e["dilution"],
+                                           droplet_um=e["droplet_um"], jurisdictions=(e["jurisdiction"],))
+            shown = app.screen.design
+            assert shown is not None
+            assert shown.creaming_mm_per_day == pytest.approx(ref.creaming_mm_per_day)
+            assert shown.beverage_density == pytest.approx(ref.beverage_density)
+            assert app.screen.query_one("#em-cautions").display
+            # a bad number: the dialog, not a crash
+            app.screen.query_one("#em-brix").value = "ten"
+            app.screen.compute()
+            await pilot.pause()
+            assert type(app.screen).__name__ == "ErrorDialog"
+            await pilot.press("escape")
+
+            f = app.session.scenario.flavour
+            await pilot.press("f6")
+            await pilot.pause()
+            formula = formula_from_amounts(cat, parse_amounts(",".join(f"{k}={v}" for k, v in f["formula"].items())))
+            ref = check_dose(cat, formula, chain=f["chain"], jurisdiction=f["jurisdiction"], category=f["category"],
+                             dose=f["dose"])
+            assert app.screen.result.max_dose == pytest.approx(ref.max_dose)
+            assert app.screen.query_one("#lim-checks").row_count == len(ref.checks)
+            assert app.screen.query_one("#lim-cautions").display
+
+    run(go())
