@@ -476,10 +476,16 @@ def _lp_lifted_margin(Xs, g, w, lo, hi):
 
 
 def _slsqp_margin(Xs, g, w, c0, lo, hi, classic: bool):
-    """Largest (weighted) margin, or the classic smallest radius, among perfect fits."""
+    """Largest (weighted) margin in RED, or the classic smallest radius, among perfect fits.
+
+    Margin rule: maximise m subject to ``Ra_i <= R0 (1 - w_i m)`` (good) and
+    ``Ra_i >= R0 (1 + w_i m)`` (bad).  A margin in RED (relative to R0), not in
+    MPa^0.5, so that a sphere cannot gain margin by growing without bound
+    toward a side where no liquid was tested.
+    """
     from scipy.optimize import minimize
 
-    sign = np.where(g, 1.0, -1.0)  # good: R - w t - d >= 0 ; bad: d - R - w t >= 0
+    sign = np.where(g, 1.0, -1.0)  # good: R - d - w m R >= 0 ; bad: d - R - w m R >= 0
     wt = np.zeros_like(w) if classic else w
 
     def parts(z):
@@ -489,14 +495,14 @@ def _slsqp_margin(Xs, g, w, c0, lo, hi, classic: bool):
 
     def cons(z):
         _, d = parts(z)
-        return sign * (z[3] - d) - wt * z[4]
+        return sign * (z[3] - d) - wt * z[4] * z[3]
 
     def cons_jac(z):
         diff, d = parts(z)
         J = np.empty((len(d), 5))
         J[:, :3] = -sign[:, None] * diff / d[:, None]
-        J[:, 3] = sign
-        J[:, 4] = -wt
+        J[:, 3] = sign - wt * z[4]
+        J[:, 4] = -wt * z[3]
         return J
 
     if classic:
@@ -878,7 +884,7 @@ def _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bo
         else:
             # R0 that balances the weighted margins of the nearest liquids
             r0 = _balance_r0(d, g, w)
-        margin = (db - dg) / 2.0
+        margin = (db - dg) / (db + dg)  # in RED: nearest liquids at 1 -/+ margin (unweighted)
     elif rule == "classic":
         r0 = r_lo
         margin = 0.0
