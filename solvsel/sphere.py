@@ -21,26 +21,39 @@ distances
 For a fixed centre ``V`` is convex and piecewise linear in ``R0`` with breaks
 at the liquids' distances, so the best R0 is found exactly among them (all at
 once, by sorting).  The centre is searched by multi-start local optimisation
-inside physical bounds.  When the scores can be explained perfectly, a whole
-region of spheres fits; the classic choice is the smallest R0, which is biased
-low.  The default rule here takes the sphere with the largest margin between
-good and bad liquids (each liquid's required margin scaled by its grading
-weight), a rule of our own choosing, compared with the classic one in
-``bench/bench_sphere.py``.
+inside physical bounds.  An optional floor ``lapse`` on each liquid's score,
+``A_i = lapse + (1 - lapse) exp(-v_i)``, keeps one gross bench error (a
+mislabelled vial) from dragging the sphere; the best R0 still lies at a
+liquid's distance (each wrong-side loss is then concave in R0).
 
-Uncertainty.  Reading the desirability as a likelihood (a wrong-side liquid
-costs ``exp(-w_i v_i)``), a profile interval holds every value of a parameter
-for which some sphere has ``V <= V_min + chi2_1(level)/2`` (1.353 at 90 %);
-the level is nominal under that model.
+Choosing one sphere.  When every result can be explained (checked exactly by
+a linear programme in the lifted coordinates (c, R0^2 - |c|^2)), a whole region
+of spheres fits; the classic choice is the smallest R0, which is biased low.
+The default rule (``"margin"``, our choice) takes the sphere whose nearest
+good and bad liquids are farthest from its surface in RED units, each liquid's
+required margin scaled by its grading weight.  When no sphere explains every
+result, its smooth analogue is used: the sphere with a soft surface,
+``P(good) = lapse + (1 - 2 lapse) / (1 + exp((Ra - R0)/s))``, fitted by maximum
+likelihood from the best Hansen spheres as starting points.  Both rules are
+compared in ``bench/bench_sphere.py`` and ``tests/test_sphere.py``.
+
+Uncertainty.  Reading the (floored) desirability as a likelihood, a profile
+interval holds every value of a parameter for which some sphere has
+``V <= V_min + chi2_1(level)/2`` (1.353 at 90 %); the level is nominal under
+that model, and the intervals are wide where the liquids tested leave the
+sphere open.
+
+Next tests.  :func:`suggest_tests` is a heuristic, and says so: untested
+liquids with RED nearest 1 under the current fit, spread over directions.
 
 References
 ----------
 .. [1] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*, 2nd ed.
    CRC Press, 2007, ch. 1 (the sphere-fitting desirability function).
    ISBN 978-0-8493-7248-3.
-.. [2] Vebber, G. C.; Pranke, P.; Pereira, C. N. Calculating Hansen solubility
-   parameters of polymers with genetic algorithms. *J. Appl. Polym. Sci.*
-   131 (2014) 39696. DOI: 10.1002/app.39696.
+.. [2] Vebber, G. C.; Pranke, P.; Pereira, C. N. *J. Appl. Polym. Sci.* 131
+   (2014) 39696 (classic fits bias the radius; solvent-set coverage).
+   DOI: 10.1002/app.39696.
 .. [3] Pawitan, Y. *In All Likelihood: Statistical Modelling and Inference
    Using Likelihood*. Oxford University Press, 2001, ch. 2-3 (profile
    likelihood intervals).
@@ -49,7 +62,7 @@ References
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -132,6 +145,26 @@ class SphereFit:
         bounded by bad liquids on one side only)
     open_direction : tuple of float or None
         unit vector (dD, dP, dH) pointing to where no good liquid was tested
+    open_note : str
+        the same in words
+    rule : str
+        "margin" or "classic"
+    separable : bool
+        True when some sphere explains every result
+    margin : float
+        for separable results, the RED margin ``(Ra_bad - Ra_good)/(Ra_bad + Ra_good)``
+        of the nearest bad and good liquids [-]; 0 otherwise
+    objective : float
+        the (floored) desirability objective V at the reported sphere [-]
+    names, good, weights, red : tuple
+        per liquid: name, result used, weight, RED under the fit
+    at_bound : tuple of str
+        parameters whose value ended on a search bound
+    success, message : bool, str
+        whether the searches converged, and what to know about the fit
+    surface_width : float or None
+        width ``s`` of the soft surface [MPa^0.5] (margin rule, results not
+        all explainable); None otherwise
     """
 
     dD: float
@@ -157,6 +190,7 @@ class SphereFit:
     success: bool
     message: str
     n_evaluations: int = 0
+    surface_width: float | None = None
 
     @property
     def hsp(self) -> np.ndarray:
@@ -195,6 +229,7 @@ class SphereFit:
                 {"name": n, "result": "good" if g else "bad", "weight": w, "red": r}
                 for n, g, w, r in zip(self.names, self.good, self.weights, self.red)
             ],
+            "surface_width": self.surface_width,
             "success": self.success,
             "message": self.message,
         }
@@ -737,11 +772,14 @@ def fit_sphere(
     centre, the centre is found by multi-start local optimisation within
     ``bounds``.  Among equally good spheres ``rule`` picks one:
 
-    - ``"margin"`` (default): the largest margin ``t`` between the surface and
-      the nearest liquids, each liquid's margin scaled by its weight,
-      :math:`R_{a,i} \le R_0 - w_i t` (good), :math:`R_{a,i} \ge R_0 + w_i t` (bad);
-    - ``"classic"``: the smallest R0 (biased low, kept for comparison with
-      published fits).
+    - ``"margin"`` (default): the largest margin ``m`` in RED between the
+      surface and the nearest liquids, each liquid's margin scaled by its
+      weight, :math:`R_{a,i} \le R_0 (1 - w_i m)` (good),
+      :math:`R_{a,i} \ge R_0 (1 + w_i m)` (bad); when no sphere explains every
+      result, the maximum-likelihood sphere with a soft surface (module text);
+    - ``"classic"``: the best desirability with the smallest R0 (biased low,
+      kept for comparison with published fits; use ``lapse=0`` for the
+      handbook's function exactly).
 
     Parameters
     ----------
@@ -834,6 +872,7 @@ def _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bo
     success = True
     n_eval = 0
 
+    width = None
     c_lp, t_lp = _lp_lifted_margin(Xs, g, w, lo, hi)
     separable = bool(c_lp is not None and t_lp > 1e-7)
     if separable:
@@ -953,6 +992,7 @@ def _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bo
         good=tuple(bool(x) for x in g), weights=tuple(float(x) for x in w),
         red=tuple(float(x) for x in redv), at_bound=at_bound,
         success=success, message="; ".join(messages), n_evaluations=int(n_eval),
+        surface_width=width,
     )
 
 
