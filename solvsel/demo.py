@@ -81,7 +81,7 @@ def demo_steps(s: Scenario) -> list[tuple[str, list[str]]]:
           "--reject", ",".join(x["reject"]), "--temp", f"{x['temp_C']:g}",
           "--max-components", str(x["max_components"]), "--top", str(x.get("top", 8))]),
         ("4. Emulsifier pairs for the lemon oil phase",
-         ["hlb", "--oil", _amounts(e["oil"]), "--emulsifiers", ",".join(e["emulsifiers"])]),
+         ["hlb", "--oil", _amounts(e.get("hlb_oil", e["oil"])), "--emulsifiers", ",".join(e["emulsifiers"])]),
         ("5. Weighting, density match and creaming of the emulsion in the drink",
          ["emulsion", "--oil", _amounts(e["oil"]), "--brix", f"{e['brix']:g}", "--dilution", f"{e['dilution']:g}",
           "--droplet-um", f"{e['droplet_um']:g}", "--jurisdiction", e["jurisdiction"]]),
