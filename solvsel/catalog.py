@@ -612,6 +612,9 @@ class Catalog:
             return self.solvent_records()[self.find_index("solvents", name)]
         except UnknownNameError as exc:
             if library:
+                cas = library_cas(name)
+                if cas and normalize_name(cas) in self._name_index("solvents"):
+                    return self.solvent_records()[self._name_index("solvents")[normalize_name(cas)]]
                 found = library_solvent(name)
                 if found is not None:
                     return found
@@ -622,6 +625,11 @@ class Catalog:
         try:
             return self.solute_records()[self.find_index("solutes", name)]
         except UnknownNameError as exc:
+            # a name the reference library knows (e.g. a misspelling it forgives, or
+            # another synonym) that resolves to the CAS of one of our rows: use our row
+            cas = library_cas(name) if library else None
+            if cas and normalize_name(cas) in self._name_index("solutes"):
+                return self.solute_records()[self._name_index("solutes")[normalize_name(cas)]]
             try:
                 s = self.solvent(name, library=library)
             except UnknownNameError:
@@ -695,6 +703,17 @@ def load_catalog(own: Mapping[str, Sequence[str | Path]] | None = None, tables_d
 
 
 # ----------------------------------------------------------------------------- library
+
+
+@lru_cache(maxsize=256)
+def library_cas(name_or_cas: str) -> str | None:
+    """CAS number the reference library ``chemicals`` gives for a name, or None."""
+    try:
+        from chemicals.identifiers import search_chemical
+
+        return search_chemical(name_or_cas.strip()).CASs
+    except Exception:  # unknown to the library (or the library is missing)
+        return None
 
 
 @lru_cache(maxsize=256)

@@ -208,3 +208,11 @@ def test_library_fallback_names_its_dataset():
     assert "Diaz de los Rios" in cat.source(s.hsp_source)["citation"]
     with pytest.raises(UnknownNameError):
         cat.solvent("no such liquid at all", library=True)
+
+
+def test_library_name_resolving_to_our_cas_gives_our_row():
+    """A name only the reference library knows (here 'vanilin', which chemicals resolves to
+    121-33-5) returns the table's own row, with its fusion data, not a bare library record."""
+    cat = load_catalog()
+    v = cat.solute("vanilin")
+    assert v.origin == "bundled" and v.name == "vanillin" and v.dHfus_kJ_mol is not None
