@@ -471,7 +471,9 @@ def rank_solvents(
     elif target.solute is not None:
         notes.append("solubility columns are estimates (ideal solubility x HSP activity coefficient); confirm at the bench")
     if target.basis == "estimated":
-        notes.append("the target's HSP are estimated from structure: a screening result")
+        how = (target.solute.hsp_method if target.solute is not None and target.solute.hsp_method
+               else "from structure")
+        notes.append(f"the target's HSP are estimated ({how}): a screening result; a bench fit (solvsel fit) is better")
     caut = _cautions(results, compliance.DEFER)
     return Ranking(target, float(temp_C), tuple(results), tuple(dropped), tuple(notes), caut, "red" if target.r0 else "ra")
 
