@@ -643,7 +643,8 @@ def _logistic_fit(Xs, g, w, starts, lo, hi, lapse):
     best = None
     nit = 0
     for c0, r0 in starts:
-        res = minimize(nll, np.array([*c0, r0, 0.0]), jac=True, method="L-BFGS-B", bounds=bnds)
+        res = minimize(nll, np.array([*c0, r0, 0.0]), jac=True, method="L-BFGS-B", bounds=bnds,
+                       options={"ftol": 1e-8, "gtol": 1e-4})
         nit += res.nit
         if np.all(np.isfinite(res.x)) and (best is None or res.fun < best.fun):
             best = res
@@ -705,7 +706,7 @@ def _profile_interval(Xs, g, w, c_hat, r_hat, budget, lo, hi, lapse, beta=30.0):
             grad[k] = s
             res = minimize(lambda z, k=k, s=s: s * z[k], z0, jac=lambda z, gr=grad: gr, method="SLSQP",
                            bounds=bnds, constraints=[{"type": "ineq", "fun": cons, "jac": cons_jac}],
-                           options={"maxiter": 200, "ftol": 1e-9})
+                           options={"maxiter": 100, "ftol": 1e-6})
             z = res.x
             if np.all(np.isfinite(z)) and cons(z)[0] >= -1e-6:
                 ends.append(float(z[k]))
