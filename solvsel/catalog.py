@@ -330,8 +330,29 @@ def _tuple(s: str) -> tuple[str, ...]:
     return tuple(v for v in (s or "").split(";") if v)
 
 
+class _Record:
+    """What the solvent and solute records share: HSP as an array, provenance, JSON."""
+
+    @property
+    def hsp(self) -> np.ndarray:
+        return np.array([self.dD, self.dP, self.dH])
+
+    @property
+    def is_user(self) -> bool:
+        return self.origin.startswith("user")
+
+    @property
+    def sources(self) -> tuple[str, ...]:
+        return tuple(dict.fromkeys(_tuple(self.hsp_source) + _tuple(self.props_source)))
+
+    def to_dict(self) -> dict[str, Any]:
+        d = {f.name: getattr(self, f.name) for f in fields(self)}
+        d["sources"] = list(self.sources)
+        return d
+
+
 @dataclass(frozen=True)
-class Solvent:
+class Solvent(_Record):
     """A liquid of the solvents table (or of the user's overlay, or of the reference library).
 
     Numbers are None where unknown; HSP in MPa^0.5 at 25 C.
@@ -362,13 +383,6 @@ class Solvent:
     note: str = ""
     origin: str = "bundled"
 
-    @property
-    def hsp(self) -> np.ndarray:
-        return np.array([self.dD, self.dP, self.dH])
-
-    @property
-    def is_user(self) -> bool:
-        return self.origin.startswith("user")
 
     @property
     def food_use(self) -> bool:
@@ -379,18 +393,9 @@ class Solvent:
         """
         return "carrier" in self.roles or "extraction" in self.roles
 
-    @property
-    def sources(self) -> tuple[str, ...]:
-        return tuple(dict.fromkeys(_tuple(self.hsp_source) + _tuple(self.props_source)))
-
-    def to_dict(self) -> dict[str, Any]:
-        d = {f.name: getattr(self, f.name) for f in fields(self)}
-        d["sources"] = list(self.sources)
-        return d
-
 
 @dataclass(frozen=True)
-class Solute:
+class Solute(_Record):
     """A solute of the solutes table: flavour, active, or a co-extract to reject.
 
     ``r0`` is None where no interaction radius is published.
@@ -416,23 +421,6 @@ class Solute:
     props_source: str = ""
     note: str = ""
     origin: str = "bundled"
-
-    @property
-    def hsp(self) -> np.ndarray:
-        return np.array([self.dD, self.dP, self.dH])
-
-    @property
-    def is_user(self) -> bool:
-        return self.origin.startswith("user")
-
-    @property
-    def sources(self) -> tuple[str, ...]:
-        return tuple(dict.fromkeys(_tuple(self.hsp_source) + _tuple(self.props_source)))
-
-    def to_dict(self) -> dict[str, Any]:
-        d = {f.name: getattr(self, f.name) for f in fields(self)}
-        d["sources"] = list(self.sources)
-        return d
 
 
 def _solvent_from_row(r: Mapping[str, Any]) -> Solvent:
