@@ -771,6 +771,13 @@ OWN_TERMS = [
     ("aromatic rings", "", "special", 0),
     ("rings", "", "special", 0),
     ("H-bond donors", "", "special", 0),
+    # "polar" terms enter the dP fit only: group dipoles add as vectors, so
+    # several polar groups give less than their sum, and symmetric ones cancel
+    # (hexafluorobenzene, tetranitromethane); the counts are of heteroatoms.
+    ("symmetric heteroatoms", "", "polar", 0),
+    ("heteroatom pairs", "", "polar", 0),
+    ("heteroatoms squared", "", "polar", 0),
+    ("sqrt heteroatoms", "", "polar", 0),
 ]
 
 #: McGowan characteristic atom volumes [cm^3/mol] and the bond term (Abraham & McGowan 1987 [5]_).
@@ -811,7 +818,7 @@ def _own_compiled(terms: tuple):
     out = []
     for name, smarts, kind, owned in terms:
         patt = Chem.MolFromSmarts(smarts) if smarts else None
-        if kind != "special" and patt is None:
+        if kind in ("atom", "match") and patt is None:
             raise InputError(f"own-model term '{name}': SMARTS '{smarts}' could not be read")
         out.append((name, patt, kind, int(owned)))
     return tuple(out)
@@ -833,6 +840,7 @@ def own_features(mol, terms=None):
     claimed: set = set()
     counts = np.zeros(len(comp))
     found: dict = {}
+    hetero = None
     for i, (name, patt, kind, owned) in enumerate(comp):
         if kind == "atom":
             for match in mol.GetSubstructMatches(patt, uniquify=True, maxMatches=10000):
@@ -847,6 +855,10 @@ def own_features(mol, terms=None):
             counts[i] = len(ms)
             if ms:
                 found[name] = list(ms)
+        elif kind == "polar":
+            if hetero is None:
+                hetero = _hetero_counts(mol)
+            counts[i] = hetero[name]
         else:
             if name == "aromatic rings":
                 counts[i] = rdMolDescriptors.CalcNumAromaticRings(mol)
@@ -859,6 +871,23 @@ def own_features(mol, terms=None):
             if counts[i]:
                 found[name] = [()] * int(counts[i])
     return counts, mcgowan_volume(mol), _groups_tuple(found), _uncovered(mol, claimed)
+
+
+def _hetero_counts(mol) -> dict:
+    """Counts behind the "polar" terms: heteroatoms, and those with a symmetry-equivalent twin."""
+    from collections import Counter
+
+    Chem = _rdkit()
+    ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False))
+    het = [a.GetIdx() for a in mol.GetAtoms() if a.GetSymbol() != "C"]
+    by_class = Counter(ranks[i] for i in het)
+    n = len(het)
+    return {
+        "symmetric heteroatoms": float(sum(v for v in by_class.values() if v >= 2)),
+        "heteroatom pairs": float(max(n - 1, 0)),
+        "heteroatoms squared": float(n * n),
+        "sqrt heteroatoms": math.sqrt(n),
+    }
 
 
 def own_design(counts, vx):
@@ -1099,7 +1128,7 @@ def load_params(path=None) -> OwnParams:
                 raise TableError(p, "dD, dP, dH must be numbers", row=row_no, column="dD") from None
             kind = row["kind"]
             srcs.update(s for s in (row.get("source") or "").split(";") if s)
-            if kind in ("atom", "match", "special"):
+            if kind in ("atom", "match", "special", "polar"):
                 try:
                     owned = int(row["owned"] or 0)
                 except ValueError:
@@ -1115,7 +1144,8 @@ def load_params(path=None) -> OwnParams:
             elif kind == "meta":
                 continue
             else:
-                raise TableError(p, f"unknown kind '{kind}' (atom, match, special, size, intercept, transform, meta)",
+                raise TableError(p, f"unknown kind '{kind}' (atom, match, special, polar, size, intercept, transform, "
+                                 "meta)",
                                  row=row_no, column="kind")
     if intercept is None or size is None or not terms:
         raise TableError(p, "needs term rows, one 'size' row and one 'intercept' row")
@@ -1266,14 +1296,18 @@ def _fit_one(X, y, intercept):
     return float(r.intercept_) if intercept else 0.0, r.coef_ / sd
 
 
-def _fit(X, Y):
+def _fit(X, Y, terms=None):
+    """Fit dD, dP, dH; the "polar" terms (and only they) are left out of the dD and dH fits."""
     import numpy as np
 
+    terms = terms or OWN_TERMS
+    polar = np.array([t[2] == "polar" for t in terms] + [False])
     icpt = np.zeros(3)
     coef = np.zeros((X.shape[1], 3))
     for j in range(3):
         y = Y[:, j] ** 2 if SQUARE[j] else Y[:, j]
-        icpt[j], coef[:, j] = _fit_one(X, y, INTERCEPT[j])
+        cols = np.ones(X.shape[1], bool) if j == 1 else ~polar
+        icpt[j], coef[cols, j] = _fit_one(X[:, cols], y, INTERCEPT[j])
     return icpt, coef
 
 
@@ -1320,7 +1354,7 @@ def knn_correction(fp, train_fps, residuals, k=KNN_K):
     return delta, idx, sim[idx]
 
 
-def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, knn=True):
+def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, knn=True, terms=None):
     """Grouped k-fold cross-validation of the own model.
 
     Each compound (one structure, see :func:`training_data`) is one group, so
@@ -1352,7 +1386,7 @@ def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, knn=True):
     for k in range(n_folds):
         tr = np.where(fitted & (folds != k) & (folds >= 0))[0]
         te = np.where(folds == k)[0]
-        icpt, coef = _fit(X[tr], Y[tr])
+        icpt, coef = _fit(X[tr], Y[tr], terms)
         base[te] = _predict(X[te], icpt, coef)
         pred[te] = base[te]
         if knn:
@@ -1461,11 +1495,11 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
     say(f"{len(df)} compounds; counting groups")
     X, _, _, covered = dataset_design(df, terms)
     say("cross-validating")
-    folds, cvpred, cvbase = cross_validate(df, X, covered, n_folds, seed)
+    folds, cvpred, cvbase = cross_validate(df, X, covered, n_folds, seed, terms=terms)
     fitted = covered & ~df["conflict"].to_numpy(bool)
     Y = df[["dD", "dP", "dH"]].to_numpy(float)
     say("fitting on every compound")
-    icpt, coef = _fit(X[fitted], Y[fitted])
+    icpt, coef = _fit(X[fitted], Y[fitted], terms)
     resid = np.full((len(df), 3), np.nan)
     resid[fitted] = Y[fitted] - _predict(X[fitted], icpt, coef)
     say("scoring the published method on the same compounds")

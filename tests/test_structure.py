@@ -184,7 +184,7 @@ def _cv_rows():
 
 def test_stored_cv_errors_recomputed_from_the_training_table():
     # The per-compound out-of-fold predictions stored in gc_params_training.csv, scored against the labels:
-    # must reproduce the overall row of gc_params_cv.csv, and stay within what was measured (0.52 / 1.85 /
+    # must reproduce the overall row of gc_params_cv.csv, and stay within what was measured (0.52 / 1.68 /
     # 1.16 MPa^0.5 on 1084 compounds) plus 0.05.
     rows = [r for r in csv.DictReader(open(structure._tables_dir() / "gc_params_training.csv", encoding="utf-8"))
             if r["fitted"] == "yes"]
@@ -193,7 +193,7 @@ def test_stored_cv_errors_recomputed_from_the_training_table():
     mae = np.abs(p - y).mean(axis=0)
     overall = next(r for r in _cv_rows() if r["method"] == "solvsel-gc" and r["class"] == "all")
     assert mae == pytest.approx([float(overall[f"mae_{k}"]) for k in ("dD", "dP", "dH")], abs=2e-3)
-    assert mae[0] <= 0.52 + 0.05 and mae[1] <= 1.85 + 0.05 and mae[2] <= 1.16 + 0.05
+    assert mae[0] <= 0.52 + 0.05 and mae[1] <= 1.68 + 0.05 and mae[2] <= 1.16 + 0.05
 
 
 def test_own_model_beats_the_published_method_on_the_same_compounds():
@@ -367,7 +367,7 @@ def test_cli_params_file_is_used(tmp_path, capsys):
         w = csv.DictWriter(fh, fieldnames=list(rows[0]))
         w.writeheader()
         for r in rows:
-            if r["kind"] in ("atom", "match", "special", "size"):
+            if r["kind"] in ("atom", "match", "special", "polar", "size"):
                 r.update(dD="0", dP="0", dH="0")
             if r["kind"] == "intercept":
                 r.update(dD="17.5", dP="0", dH="0")
