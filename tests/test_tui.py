@@ -109,6 +109,9 @@ def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled():
             kinds = [type(m) for m in screen.messages]
             assert BlendProgress in kinds and kinds[-1] is BlendDone
             assert kinds.index(BlendProgress) < kinds.index(BlendDone)
+            # the engine's callback reported the exact search, up to every combination
+            counted = [m for m in screen.messages if isinstance(m, BlendProgress) and m.total]
+            assert counted and counted[-1].done == counted[-1].total
             done = screen.messages[-1]
             assert not done.cancelled and done.result is not None
             c = app.session.scenario.carrier

@@ -11,7 +11,6 @@ listed with their reasons.
 
 from __future__ import annotations
 
-import inspect
 from dataclasses import dataclass, field
 
 from rich.text import Text
@@ -57,10 +56,6 @@ class BlendFailed(Message):
     def __init__(self, error: BaseException) -> None:
         super().__init__()
         self.error = error
-
-
-class _Cancelled(Exception):
-    pass
 
 
 @dataclass(frozen=True)
@@ -123,7 +118,10 @@ class CarriersScreen(BenchScreen):
         Binding("escape", "cancel", "Cancel search"),
         Binding("ctrl+e", "preset('extraction')", "Extraction preset"),
         Binding("ctrl+l", "preset('carrier')", "Carrier preset"),
+        Binding("ctrl+t", "next_list", "Next list"),
     ]
+
+    LISTS = ("tab-single", "tab-blends", "tab-dropped", "tab-excluded")
 
     def __init__(self) -> None:
         super().__init__()
@@ -181,7 +179,8 @@ class CarriersScreen(BenchScreen):
         self.query_one("#rank-grid", DataTable).add_columns(
             "#", "liquid", "Ra", "RED", "bp C", "flash C", "GHS", "food status", "cost")
         self.query_one("#blend-grid", DataTable).add_columns(
-            "#", "blend (volume fractions)", "Ra", "RED", "one phase", "bp C", "flash C", "flammable", "cost", "reject", "margin")
+            "#", "blend (volume fractions)", "Ra", "RED", "nearest reject", "margin", "one phase", "bp C", "flash C",
+            "flammable", "cost")
         self.query_one("#dropped-grid", DataTable).add_columns("blend (volume fractions)", "Ra", "why it was dropped")
         self.query_one("#excluded-grid", DataTable).add_columns("liquid", "why it is not in the pool")
         self.fill_preset("carrier")
@@ -318,30 +317,28 @@ class CarriersScreen(BenchScreen):
             self.post_message(BlendFailed(exc))
             return
 
-        def progress(done=None, total=None, *rest, **kw):
-            # the engine's callback, when it has one: report, and stop if cancelled
+        def progress(done, total):
+            # the engine calls this after each batch of combinations; False stops it
             if worker.is_cancelled:
-                raise _Cancelled()
-            if done is not None:
-                self.post_message(BlendProgress(done, total, "searching"))
+                return False
+            self.post_message(BlendProgress(done, total, f"exact fractions: {done} of {total} combinations"))
             return True
 
-        extra = {}
-        if "progress" in inspect.signature(optimise_blends).parameters:
-            extra["progress"] = progress
         try:
             res = optimise_blends(self.session.catalog, target, max_components=req.max_components, top=req.top,
-                                  **kwargs, **extra)
-        except _Cancelled:
-            self.post_message(BlendDone(None, cancelled=True))
-            return
+                                  progress=progress, **kwargs)
         except SolvselError as exc:
             self.post_message(BlendFailed(exc))
             return
-        if worker.is_cancelled:
+        if worker.is_cancelled:  # stopped by the callback (a result with success False), or just after
             self.post_message(BlendDone(None, cancelled=True))
             return
         self.post_message(BlendDone(res))
+
+    def action_next_list(self) -> None:
+        tabs = self.query_one("#carrier-tabs", TabbedContent)
+        i = self.LISTS.index(tabs.active) if tabs.active in self.LISTS else 0
+        tabs.active = self.LISTS[(i + 1) % len(self.LISTS)]
 
     def action_cancel(self) -> None:
         if self.worker is not None and self.worker.state in (WorkerState.PENDING, WorkerState.RUNNING):
@@ -392,9 +389,9 @@ class CarriersScreen(BenchScreen):
         for b in res.results:
             grid.add_row(
                 str(b.rank) + ("*" if b.pareto and b.rejects else ""), b.label, _fmt(b.ra), _fmt(b.red),
-                _phase(b), _bp(b), _fmt(b.lowest_flash_C, ".0f"), _short_hazard(b), _fmt(b.cost, ".1f"),
                 _fmt(b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra),
-                _fmt(b.selectivity))
+                _fmt(b.selectivity), _phase(b), _bp(b), _fmt(b.lowest_flash_C, ".0f"), _short_hazard(b),
+                _fmt(b.cost, ".1f"))
         dropped = self.query_one("#dropped-grid", DataTable)
         dropped.clear()
         for d in res.dropped:
@@ -417,6 +414,15 @@ class CarriersScreen(BenchScreen):
             self.show_blend(self.result.results[row])
         elif event.data_table.id == "rank-grid" and self.ranking is not None and 0 <= row < len(self.ranking.results):
             self.show_single(self.ranking.results[row])
+        elif event.data_table.id == "dropped-grid" and self.result is not None and 0 <= row < len(self.result.dropped):
+            d = self.result.dropped[row]
+            label = " + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions))
+            self.query_one("#carrier-detail", Static).update(Text.assemble(
+                ("dropped: ", "bold"), (label + "\n", "bold"), f"Ra {d.ra:.2f}\n", d.reason))
+        elif event.data_table.id == "excluded-grid" and self.result is not None and 0 <= row < len(self.result.excluded):
+            e = self.result.excluded[row]
+            self.query_one("#carrier-detail", Static).update(Text.assemble(
+                ("not in the pool: ", "bold"), (e.name + "\n", "bold"), e.reason))
 
     def show_blend(self, b) -> None:
         t = Text()
@@ -453,8 +459,11 @@ class CarriersScreen(BenchScreen):
                     break
         if selected is not None:
             cautions += list(selected.cautions)
+        # then those of every other liquid or blend on screen, and of the lists as a whole
         for res in (self.result, self.ranking):
             if res is not None:
+                for other in res.results:
+                    cautions += list(other.cautions)
                 cautions += list(res.cautions)
         t = self.session.target
         if t is not None and t.solute is not None and getattr(t.solute, "category", "") == "active" and t.solute.note:

@@ -19,8 +19,10 @@ SHOTS = [
     ("target", "target", ()),
     ("carriers", "carriers", ()),
     ("extraction", "carriers", ("ctrl+e",)),
-    ("dropped", "carriers", ("ctrl+e", "ctrl+d")),
+    ("dropped", "carriers", ("ctrl+e", "ctrl+t")),
     ("map", "map", ()),
+    ("map-sphere", "target", ("typed", "f3", "f4")),
+    ("map-side", "map", ("v",)),
     ("emulsion", "emulsion", ()),
     ("limits", "limits", ()),
     ("error", "target", ("smiles",)),
@@ -43,8 +45,11 @@ async def _shoot(stem: str, mode: str, keys, out: Path) -> Path:
                 await pilot.pause()
                 app.screen.query_one("#smiles").value = "C1CC(("
                 app.screen.press("use-smiles")
-            elif key == "ctrl+d":
-                app.screen.query_one("#carrier-tabs").active = "tab-dropped"
+            elif key == "typed":  # a typed target with a radius: the map draws its sphere's section
+                app.screen.query_one("#target-tabs").active = "from-typed"
+                await pilot.pause()
+                app.screen.query_one("#typed-hsp").value = "17.8, 3.9, 9.9, 6.0"
+                app.screen.press("use-typed")
             else:
                 await pilot.press(key)
             await pilot.pause()

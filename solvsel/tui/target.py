@@ -31,6 +31,8 @@ class TargetScreen(BenchScreen):
             with TabbedContent(id="target-tabs"):
                 with TabPane("From the solutes table", id="from-table"):
                     yield Input(placeholder="type to narrow the list; Enter on a name uses it", id="solute-filter", compact=True)
+                    yield Static(f"  {'solute':<30} {'kind':<8} {'dD':>5} {'dP':>5} {'dH':>5}  basis of the HSP  (MPa^0.5)",
+                                 classes="list-header")
                     yield OptionList(id="solute-list")
                 with TabPane("Typed numbers", id="from-typed"):
                     with Vertical(classes="form"):
@@ -77,6 +79,12 @@ class TargetScreen(BenchScreen):
             mine = "  (yours)" if s.is_user else ""
             ol.add_option(Option(f"{s.name:<30} {s.category:<8} {s.dD:5.1f} {s.dP:5.1f} {s.dH:5.1f}{r0}  {s.hsp_basis}{mine}",
                                  id=s.cas or s.name))
+        t = self.session.target
+        if t is not None and t.solute is not None:
+            for i in range(ol.option_count):
+                if ol.get_option_at_index(i).id == (t.solute.cas or t.solute.name):
+                    ol.highlighted = i
+                    break
 
     def on_input_changed(self, event: Input.Changed) -> None:
         if event.input.id == "solute-filter":
