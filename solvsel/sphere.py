@@ -974,8 +974,8 @@ def _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bo
         budget = max(min(V_min, V) + float(chi2.ppf(level, 1)) / 2.0, V)
         ranges, ok = _profile_interval(Xs, g, w, c, r0, budget, lo, hi, lapse)
         for k, key in enumerate(("dD", "dP", "dH")):
-            iv[key] = (ranges[k][0] / SCALE[k], ranges[k][1] / SCALE[k])
-        iv["r0"] = ranges[3]
+            iv[key] = (round(ranges[k][0] / SCALE[k], 4), round(ranges[k][1] / SCALE[k], 4))
+        iv["r0"] = (round(ranges[3][0], 4), round(ranges[3][1], 4))
         if not ok:
             messages.append("some interval searches did not converge; those ends are kept at the estimate")
     else:
