@@ -75,6 +75,25 @@ def _cautions_for(cat, names):
     return out
 
 
+def _basis_summary(bench, partial: str, partial_weight: float) -> str:
+    """Where the liquids' HSP came from, in words (table, library, blends, the user's values)."""
+    table = [r for r in bench.rows if r.basis == "table"]
+    lib = [r.label for r in bench.rows if r.basis.startswith("library")]
+    blends = [r for r in bench.rows if r.basis.startswith("blend")]
+    own = [r.label for r in bench.rows if r.basis == "your values"]
+    parts = [f"{len(table)} from the table"]
+    if lib:
+        parts.append(f"{len(lib)} from the reference library chemicals ({', '.join(lib)})")
+    if blends:
+        parts.append(f"{len(blends)} blend(s) by volume-fraction average")
+    if own:
+        parts.append(f"{len(own)} with your own dD, dP, dH ({', '.join(own)})")
+    n_partial = sum(r.result == "partial" for r in bench.rows)
+    if n_partial:
+        parts.append(f"{n_partial} partial result(s) counted {partial} at weight {partial_weight:g}")
+    return "; ".join(parts)
+
+
 def run(args) -> int:
     from ..compliance import DEFER
     from ..errors import InputError
@@ -142,6 +161,7 @@ def run(args) -> int:
     print(f"  fit     desirability {fit.fit:.3f}, {100 * fit.explained:.0f} % of results explained "
           f"({fit.rule} rule{', margin %.2f' % fit.margin if fit.separable else ''})")
     print(f"  shape   {fit.open_note}")
+    print(f"  liquids {_basis_summary(bench, args.partial, args.partial_weight)}")
     if fit.message:
         print(f"  note    {fit.message}")
     iv = fit.interval
