@@ -413,10 +413,16 @@ def _best_r0(d, wg, wb, lapse: float = 0.0):
     and highest R0 reaching it (m,).
     """
     if lapse > 0.0:
-        # f[m, k] = sum_i loss(violation of liquid i when R0 = d[m, k])
-        gap = d[:, None, :] - d[:, :, None]  # d_i - R0, R0 = d_k on axis 1
-        # a good liquid is wrong beyond R0 (gap > 0), a bad one inside (gap < 0)
-        f = (np.where(gap > 0.0, wg, wb) * _loss(np.abs(gap), lapse)).sum(axis=2)
+        # f[m, k] = sum_i loss(violation of liquid i when R0 = d[m, k]), in
+        # chunks of centres so that the (m, n, n) table stays small
+        n = d.shape[1]
+        step = max(1, 2_000_000 // (n * n))
+        f = np.empty_like(d)
+        for a in range(0, d.shape[0], step):
+            dc = d[a:a + step]
+            gap = dc[:, None, :] - dc[:, :, None]  # d_i - R0, R0 = d_k on axis 1
+            # a good liquid is wrong beyond R0 (gap > 0), a bad one inside (gap < 0)
+            f[a:a + step] = (np.where(gap > 0.0, wg, wb) * _loss(np.abs(gap), lapse)).sum(axis=2)
         ds = d
     else:
         order = np.argsort(d, axis=1)
