@@ -654,6 +654,8 @@ def _logistic_fit(Xs, g, w, starts, lo, hi, lapse):
         nit += res.nit
         if np.all(np.isfinite(res.x)) and (best is None or res.fun < best.fun):
             best = res
+    if best is None:
+        return None, None, None, None, nit
     return best.x[:3], float(best.x[3]), float(math.exp(best.x[4])), float(best.fun), nit
 
 
@@ -919,6 +921,10 @@ def _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bo
                 starts.append((c0, 0.5 * float(rl[0] + rh[0])))
             c, r_soft, width, _, ne = _logistic_fit(Xs, g, w, starts, lo, hi, lapse)
             n_eval += ne
+            if c is None:  # no finite soft-surface fit: keep the best Hansen sphere
+                c, r_soft = starts[0]
+                success = False
+                messages.append("the soft-surface fit failed; kept the best Hansen sphere of the scan")
 
     d = _distances(Xs, c[None])[0]
     V_c, r_lo, r_hi = _best_r0(d[None], wg, wb, lapse)
