@@ -1082,7 +1082,8 @@ def chemical_class(smiles_or_mol) -> str:
 # --------------------------------------------------------------------------- own model parameters
 
 OWN_METHOD = "solvsel-gc"
-_PARAM_COLUMNS = ["term", "kind", "smarts", "owned", "dD", "dP", "dH", "source"]
+_PARAM_COLUMNS = ["term", "kind", "smarts", "owned", "coef_dD", "coef_dP", "coef_dH", "source"]
+_U = "_MPa05"  # unit suffix of HSP columns in the training and CV tables
 _BUNDLED_PARAMS = "gc_params.csv"
 
 
@@ -1123,9 +1124,9 @@ def load_params(path=None) -> OwnParams:
             raise TableError(p, f"missing columns {', '.join(missing)} (expected {', '.join(_PARAM_COLUMNS)})")
         for row_no, row in enumerate(reader, start=2):
             try:
-                vals = np.array([float(row[c]) for c in ("dD", "dP", "dH")])
+                vals = np.array([float(row[c]) for c in ("coef_dD", "coef_dP", "coef_dH")])
             except ValueError:
-                raise TableError(p, "dD, dP, dH must be numbers", row=row_no, column="dD") from None
+                raise TableError(p, "coef_dD, coef_dP, coef_dH must be numbers", row=row_no, column="coef_dD") from None
             kind = row["kind"]
             srcs.update(s for s in (row.get("source") or "").split(";") if s)
             if kind in ("atom", "match", "special", "polar"):
@@ -1174,14 +1175,15 @@ def _neighbour_data(params_path: str):
     fps, res, info = [], [], []
     with open(tp, newline="", encoding="utf-8") as fh:
         for row in csv.DictReader(fh):
-            if row.get("fitted") != "yes" or not row.get("res_dD"):
+            if row.get("fitted") != "yes" or not row.get("res_dD" + _U):
                 continue
             mol = Chem.MolFromSmiles(row["smiles"])
             if mol is None:
                 continue
             fps.append(fingerprint(mol))
-            res.append([float(row["res_dD"]), float(row["res_dP"]), float(row["res_dH"])])
-            info.append((row["smiles"], row["cas"].split(";")[0], float(row["dD"]), float(row["dP"]), float(row["dH"])))
+            res.append([float(row[f"res_{k}{_U}"]) for k in ("dD", "dP", "dH")])
+            info.append((row["smiles"], row["cas"].split(";")[0],
+                         *(float(row[f"{k}{_U}"]) for k in ("dD", "dP", "dH"))))
     if not fps:
         return None
     return fps, np.array(res), tuple(info)
@@ -1191,7 +1193,7 @@ def _cv_row(row) -> dict:
     out = {"n": int(float(row["n"]))}
     for k, v in row.items():
         if k.startswith(("mae_", "q90_")):
-            out[k] = float(v) if v not in ("", None) else None
+            out[k.removesuffix(_U)] = float(v) if v not in ("", None) else None
     return out
 
 
@@ -1506,8 +1508,9 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
     pub = published_predictions(df)
     preds = {OWN_METHOD: cvpred, OWN_METHOD + " (groups only)": cvbase, **pub}
     rows_cv = error_table(df, {OWN_METHOD: cvpred}, mask=fitted)
-    rows_cv += [dict(r, method=r["method"]) for r in error_table(df, preds, mask=fitted)
-                if r["method"] != OWN_METHOD]
+    # the same-compound comparison (where every method covers the compound)
+    rows_cv += [dict(r, method=r["method"] + (" (same compounds)" if r["method"] == OWN_METHOD else ""))
+                for r in error_table(df, preds, mask=fitted)]
     conflict_rows = error_table(df, {OWN_METHOD: cvpred}, mask=covered & df["conflict"].to_numpy(bool))
     for r in conflict_rows:
         if r["class"] == "all":
@@ -1515,7 +1518,7 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
     src = "derived_gc_fit"
     tmp = [p.with_name(p.name + ".tmp") for p in paths]
     with open(tmp[0], "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh)
+        w = csv.writer(fh, lineterminator="\n")
         w.writerow(_PARAM_COLUMNS)
         for (name, smarts, kind, owned), c in zip(terms, coef[:-1]):
             w.writerow([name, kind, smarts, owned, *(f"{v:.8g}" for v in c), src])
@@ -1527,9 +1530,10 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
                     f"shrink={KNN_SHRINK}; folds={n_folds} seed={seed} fitted={int(fitted.sum())}",
                     "meta", "", 0, 0, 0, 0, src])
     with open(tmp[1], "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh)
-        w.writerow(["key", "smiles", "cas", "dD", "dP", "dH", "n_sources", "max_ra", "conflict", "covered",
-                    "fitted", "fold", "chem_class", "cv_dD", "cv_dP", "cv_dH", "res_dD", "res_dP", "res_dH", "source"])
+        w = csv.writer(fh, lineterminator="\n")
+        w.writerow(["key", "smiles", "cas", "dD" + _U, "dP" + _U, "dH" + _U, "n_sources", "max_ra" + _U, "conflict",
+                    "covered", "fitted", "fold", "chem_class", *(f"cv_{k}{_U}" for k in ("dD", "dP", "dH")),
+                    *(f"res_{k}{_U}" for k in ("dD", "dP", "dH")), "source"])
         for i, r in df.iterrows():
             cvp = ["" if not np.isfinite(v) else f"{v:.3f}" for v in list(cvpred[i]) + list(resid[i])]
             w.writerow([r["key"], r["smiles"], r["cas"], f"{r['dD']:.2f}", f"{r['dP']:.2f}", f"{r['dH']:.2f}",
@@ -1538,8 +1542,8 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
                         r["chem_class"], *cvp, r["source"]])
     cols = ["method", "class", "n", "mae_dD", "mae_dP", "mae_dH", "mae_ra", "q90_dD", "q90_dP", "q90_dH", "q90_ra"]
     with open(tmp[2], "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh)
-        w.writerow(cols + ["source"])
+        w = csv.writer(fh, lineterminator="\n")
+        w.writerow(cols[:3] + [c + _U for c in cols[3:]] + ["source"])
         for r in rows_cv:
             w.writerow([r[c] if isinstance(r[c], str) or c == "n" else f"{r[c]:.3f}" for c in cols] + [src])
     for t, p in zip(tmp, paths):

@@ -82,7 +82,8 @@ def _refit(args) -> int:
     rows = [r for r in res["table"] if r["class"] == "all"]
     print_table(rows, [("method", "method"), ("n", "n"), ("mae_dD", "MAE dD", ".2f"), ("mae_dP", "MAE dP", ".2f"),
                        ("mae_dH", "MAE dH", ".2f"), ("mae_ra", "mean Ra", ".2f")])
-    print("\nCross-validated (grouped 10-fold) mean absolute errors in MPa^0.5, on the compounds each method covers.")
+    print("\nCross-validated (grouped 10-fold) mean absolute errors in MPa^0.5: solvsel-gc on every compound it "
+          "covers, the other rows on the compounds that every method covers.")
     print(f"Use it with: solvsel estimate --params {args.refit} SMILES")
     return 0
 
@@ -127,7 +128,7 @@ def _save(args, est) -> str:
     }
     mode = "a" if exists else "w"
     with open(path, mode, newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh)
+        w = csv.writer(fh, lineterminator="\n")
         if not exists:
             w.writerow(columns)
         w.writerow([values.get(c, "") for c in columns])
