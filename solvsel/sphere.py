@@ -76,6 +76,8 @@ __all__ = [
     "WrongSide",
     "SuggestedTest",
     "fit_sphere",
+    "fit_two_spheres",
+    "TwoSphereFit",
     "desirability",
     "grading_weights",
     "suggest_tests",
@@ -1084,6 +1086,125 @@ def suggest_tests(fit: SphereFit, hsp, names, k: int = 5, exclude=()) -> list[Su
         why = f"RED {redv[j]:.2f}: near the surface, toward " + _describe_direction(vec)
         out.append(SuggestedTest(str(nm[j]), float(redv[j]), *map(float, X[j]), tuple(float(x) for x in vec), why))
     return out
+
+
+# --------------------------------------------------------------------------
+# two populations
+
+
+@dataclass(frozen=True)
+class TwoSphereFit:
+    """Two spheres whose union explains the results (a solute of two populations).
+
+    A liquid is predicted good when it lies inside either sphere.  ``fit`` is
+    Hansen's desirability of the union (a good liquid outside both scores by
+    its distance to the nearer surface; a bad liquid by its depth in each
+    sphere it is inside); ``one_sphere_fit`` is that of the single sphere, for
+    comparison.
+    """
+
+    spheres: tuple
+    members: tuple  # per liquid: 0 or 1, the sphere a good liquid belongs to; -1 for bad
+    fit: float
+    one_sphere_fit: float
+    wrong_side: tuple
+    message: str
+
+    def to_dict(self) -> dict:
+        return {
+            "spheres": [{"dD": f.dD, "dP": f.dP, "dH": f.dH, "r0": f.r0,
+                         "good": [n for n, m in zip(f.names, self.members) if m == i]}
+                        for i, f in enumerate(self.spheres)],
+            "fit": self.fit,
+            "one_sphere_fit": self.one_sphere_fit,
+            "wrong_side": [w.to_dict() for w in self.wrong_side],
+            "message": self.message,
+        }
+
+
+def _union_violations(X, g, spheres):
+    d = np.stack([ra(X, f.hsp) for f in spheres])  # (2, n)
+    r = np.array([f.r0 for f in spheres])[:, None]
+    out_good = np.maximum(d - r, 0.0).min(axis=0)
+    in_bad = np.maximum(r - d, 0.0).sum(axis=0)
+    return np.where(g, out_good, in_bad), d / r
+
+
+def fit_two_spheres(hsp, good, weights=None, *, names=None, n_starts: int = 6, seed: int = 0,
+                    max_rounds: int = 12, **kw) -> TwoSphereFit:
+    """Fit two spheres when the good liquids form two groups (a heuristic search).
+
+    Alternates two steps from several splits of the good liquids: fit each
+    sphere (:func:`fit_sphere`) to its good liquids and all the bad ones, then
+    move each good liquid to the sphere in which its RED is lower; keeps the
+    split with the best desirability of the union.  Each group needs at least
+    2 good liquids.  Worth it only when the union explains clearly more than
+    one sphere (compare ``fit`` with ``one_sphere_fit``).
+
+    Parameters
+    ----------
+    hsp, good, weights, names
+        as for :func:`fit_sphere` (``good`` boolean here) [MPa^0.5, -]
+    n_starts : int
+        splits tried: a split by the farthest pair of good liquids, then random
+        pairs of seeds [-]
+    **kw
+        passed to :func:`fit_sphere` (``rule``, ``lapse``, ``bounds``)
+    """
+    X, g, w, names = _prepare(hsp, np.asarray(good, dtype=bool), weights, names, None, None)
+    gi = np.flatnonzero(g)
+    if len(gi) < 4:
+        raise InputError(f"two spheres need at least 4 good liquids (2 a sphere), got {len(gi)}")
+    kw = dict(kw)
+    kw["interval"] = False
+    one = fit_sphere(X, g, w, names=names, **kw)
+    Xs = scaled(X)
+    rng = np.random.default_rng(seed)
+    D = np.linalg.norm(Xs[gi][:, None] - Xs[gi][None], axis=2)
+    seeds = [np.unravel_index(np.argmax(D), D.shape)]
+    for _ in range(n_starts - 1):
+        seeds.append(tuple(rng.choice(len(gi), size=2, replace=False)))
+    best = None
+    for a, b in seeds:
+        member = np.where(D[:, a] <= D[:, b], 0, 1)
+        for _ in range(max_rounds):
+            if min(np.sum(member == 0), np.sum(member == 1)) < 2:
+                break
+            fits = []
+            for k in (0, 1):
+                mask = ~g.copy()
+                mask[gi[member == k]] = True
+                sub = np.flatnonzero(mask)
+                fits.append(fit_sphere(X[sub], g[sub], w[sub], names=[names[i] for i in sub], **kw))
+            redk = np.stack([ra(X[gi], f.hsp) / f.r0 for f in fits])
+            new = np.argmin(redk, axis=0)
+            v, _ = _union_violations(X, g, fits)
+            score = float(np.sum(w * v))
+            if best is None or score < best[0] - 1e-12:
+                best = (score, fits, member.copy())
+            if np.array_equal(new, member):
+                break
+            member = new
+    if best is None:
+        raise InputError("no split of the good liquids into two groups of at least 2 could be fitted")
+    score, fits, member = best
+    v, redu = _union_violations(X, g, fits)
+    members = np.full(len(X), -1)
+    members[gi] = member
+    wrong = []
+    for i in np.argsort(-v):
+        if v[i] > 1e-6:
+            wrong.append(WrongSide(names[i], bool(g[i]), float(redu[:, i].min()), float(w[i]), *map(float, X[i])))
+    fit = float(np.exp(-score / np.sum(w)))
+    msg = ("the two spheres explain the results better than one" if fit > one.fit + 1e-9
+           else "two spheres explain no more than one: keep the single sphere")
+    full = tuple(
+        SphereFit(**{**f.__dict__, "names": names, "good": tuple(bool(x) for x in g),
+                     "weights": tuple(float(x) for x in w),
+                     "red": tuple(float(x) for x in ra(X, f.hsp) / f.r0)})
+        for f in fits
+    )
+    return TwoSphereFit(full, tuple(int(m) for m in members), fit, one.fit, tuple(wrong), msg)
 
 
 # --------------------------------------------------------------------------

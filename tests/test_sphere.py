@@ -465,3 +465,37 @@ def test_save_keeps_a_users_other_rows(tmp_path, capsys):
     before = narrow.read_bytes()
     assert main(["fit", str(p), "--save-as", "extract D", "--into", str(narrow)]) == 2
     assert "no column" in capsys.readouterr().err and narrow.read_bytes() == before
+
+
+# ---------------------------------------------------------------- two populations
+
+
+def test_two_spheres_recover_two_populations(liquids, capsys):
+    # Truth: a low-polarity sphere (16.0, 3.0, 4.0; R0 4.5) and a
+    # hydrogen-bonding one (16.5, 9.0, 20.0; R0 5.0), results classified with
+    # Hansen's Ra on the table's liquids (made-up spheres, common practice).
+    from solvsel.sphere import fit_two_spheres
+
+    X, names = liquids
+    truths = [(np.array([16.0, 3.0, 4.0]), 4.5), (np.array([16.5, 9.0, 20.0]), 5.0)]
+    g = np.zeros(len(X), dtype=bool)
+    for c, r in truths:
+        g |= ra(X, c) < r
+    two = fit_two_spheres(X, g, names=names)
+    assert two.fit == 1.0 and two.wrong_side == ()
+    assert two.one_sphere_fit < 0.9  # one sphere cannot explain both groups
+    for c, r in truths:  # each true sphere has a fitted one near it
+        err = min(float(np.max(np.abs(np.r_[f.hsp - c, f.r0 - r]))) for f in two.spheres)
+        assert err <= 1.5
+    with pytest.raises(InputError, match="at least 4 good"):
+        fit_two_spheres(X[:8], np.array([True, True, True] + [False] * 5))
+
+
+def test_cli_two_spheres_json(capsys):
+    import json
+
+    assert main(["fit", str(EXAMPLES / "bench_extract.csv"), "--two-spheres", "--next", "0", "--json"]) == 0
+    two = json.loads(capsys.readouterr().out)["two_spheres"]
+    assert len(two["spheres"]) == 2 and two["fit"] >= two["one_sphere_fit"] - 1e-9
+    assert main(["fit", str(EXAMPLES / "bench_graded.csv"), "--good-at-most", "2", "--two-spheres"]) == 2
+    assert "good/partial/bad" in capsys.readouterr().err

@@ -46,6 +46,9 @@ def register(sub):
                    help="propose N untested table liquids to test next (default 5, 0 for none)")
     p.add_argument("--food", action="store_true",
                    help="propose only liquids used on food (carrier or extraction roles) as next tests")
+    p.add_argument("--two-spheres", action="store_true",
+                   help="also fit two spheres whose union explains the results (for a solute of two "
+                   "populations, e.g. an extract of two families of compounds); good/bad results only")
     p.add_argument("--save-as", metavar="NAME", help="save the fitted sphere as a solute named NAME (needs --into)")
     p.add_argument("--into", metavar="MY_SOLUTES_CSV",
                    help="your own solutes CSV to append the sphere to (created if missing; other rows kept)")
@@ -110,6 +113,18 @@ def run(args) -> int:
     fit = fit_bench(bench, partial=args.partial, good_at_most=args.good_at_most, good_at_least=args.good_at_least,
                     rule=args.rule, lapse=args.lapse, level=args.level)
 
+    two = None
+    if args.two_spheres:
+        import numpy as np
+
+        from ..sphere import fit_two_spheres
+
+        if bench.scale != "words":
+            raise InputError("--two-spheres takes good/partial/bad results, not numeric scores")
+        good = np.array([r.result == "good" or (r.result == "partial" and args.partial == "good") for r in bench.rows])
+        two = fit_two_spheres(bench.hsp, good, np.array([r.weight for r in bench.rows]), names=bench.names,
+                              rule=args.rule, lapse=args.lapse)
+
     suggestions = []
     if args.next_tests:
         pool = _next_pool(cat, args.food, bench)
@@ -152,6 +167,8 @@ def run(args) -> int:
             "liquids": [s.to_dict() for s in suggestions],
         }
         out["saved"] = saved
+        if two is not None:
+            out["two_spheres"] = two.to_dict()
         out["cautions"] = list(dict.fromkeys(cautions))
         emit_json(out)
         return 0
@@ -180,6 +197,15 @@ def run(args) -> int:
         )
     else:
         print("\nEvery result is explained (good liquids inside, bad ones outside).")
+    if two is not None:
+        print(f"\nTwo spheres (union): desirability {two.fit:.3f} against {two.one_sphere_fit:.3f} for one; {two.message}")
+        print_table(
+            [{"n": i + 1, "dD": f.dD, "dP": f.dP, "dH": f.dH, "r0": f.r0,
+              "good": ", ".join(n for n, m in zip(bench.names, two.members) if m == i)}
+             for i, f in enumerate(two.spheres)],
+            [("n", "sphere"), ("dD", "dD", ".2f"), ("dP", "dP", ".2f"), ("dH", "dH", ".2f"), ("r0", "R0", ".2f"),
+             ("good", "good liquids in it")],
+        )
     if suggestions:
         print("\nWorth testing next (a heuristic: RED nearest 1, spread over directions):")
         print_table(
