@@ -1068,10 +1068,12 @@ def suggest_tests(fit: SphereFit, hsp, names, k: int = 5, exclude=()) -> list[Su
     norm = np.linalg.norm(u, axis=1)
     u = u / np.where(norm > 0, norm, 1.0)[:, None]
     cost = np.abs(redv - 1.0)
+    toward_open = np.zeros(len(X))
     if fit.open and fit.open_direction is not None:
         od = np.asarray(fit.open_direction) * SCALE
         od = od / np.linalg.norm(od)
-        cost = cost - 0.25 * np.clip(u @ od, 0.0, None)
+        toward_open = np.clip(u @ od, 0.0, None)
+        cost = cost - 0.25 * toward_open
     picked: list[int] = []
     out = []
     for _ in range(min(k, len(nm))):
@@ -1083,7 +1085,13 @@ def suggest_tests(fit: SphereFit, hsp, names, k: int = 5, exclude=()) -> list[Su
         picked.append(j)
         vec = u[j] / SCALE
         vec = vec / (np.linalg.norm(vec) or 1.0)
-        why = f"RED {redv[j]:.2f}: near the surface, toward " + _describe_direction(vec)
+        if abs(redv[j] - 1.0) <= 0.15:
+            where = "near the surface"
+        elif toward_open[j] > 0.5:
+            where = "on the open side"
+        else:
+            where = "a direction not yet covered"
+        why = f"RED {redv[j]:.2f}: {where}, toward " + _describe_direction(vec)
         out.append(SuggestedTest(str(nm[j]), float(redv[j]), *map(float, X[j]), tuple(float(x) for x in vec), why))
     return out
 
