@@ -117,6 +117,15 @@ def accuracy(quick: bool):
     print_rows([r for r in structure.error_table(df, {k: preds[k] for k in ("solvsel-gc", "hoftyzer-van-krevelen",
                                                                               "properties")})
                 if r["class"] == "all"], cols)
+    print("\n-- by size (heavy atoms), same compounds --")
+    from rdkit import Chem
+
+    heavy = np.array([Chem.MolFromSmiles(x).GetNumAtoms() for x in df["smiles"]])
+    for lo, hi in ((1, 4), (5, 9), (10, 200)):
+        sel = (heavy >= lo) & (heavy <= hi)
+        sub = {k: np.where(sel[:, None], preds[k], np.nan) for k in ("solvsel-gc", "hoftyzer-van-krevelen")}
+        rows = [dict(r, **{"class": f"{lo}-{hi} atoms"}) for r in structure.error_table(df, sub) if r["class"] == "all"]
+        print_rows(rows, cols)
     conf = [r for r in cvrows if r["class"] == "conflicting labels"]
     if conf:
         r = conf[0]

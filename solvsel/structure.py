@@ -1183,7 +1183,7 @@ def _neighbour_data(params_path: str):
             fps.append(fingerprint(mol))
             res.append([float(row[f"res_{k}{_U}"]) for k in ("dD", "dP", "dH")])
             info.append((row["smiles"], row["cas"].split(";")[0],
-                         *(float(row[f"{k}{_U}"]) for k in ("dD", "dP", "dH"))))
+                         *(float(row[f"{k}{_U}"]) for k in ("dD", "dP", "dH")), row["key"]))
     if not fps:
         return None
     return fps, np.array(res), tuple(info)
@@ -1237,6 +1237,12 @@ def own_model(smiles_or_mol, params=None, neighbours_on: bool = True) -> MethodE
             {"smiles": info[i][0], "cas": info[i][1], "similarity": round(float(si), 3),
              "dD": info[i][2], "dP": info[i][3], "dH": info[i][4]}
             for i, si in zip(idx[:3], sim[:3]))
+        key = _rdkit().MolToSmiles(mol, isomericSmiles=False)
+        same = [info[i] for i in idx if info[i][5] == key]
+        if same:
+            t = same[0]
+            note = (f"this structure is in the training data (CAS {t[1]}: {t[2]:.1f}, {t[3]:.1f}, {t[4]:.1f} "
+                    "as tabulated); tabulated values win over the estimate")
     elif neighbours_on:
         note = "no training table beside the parameters: neighbour correction not applied"
     return MethodEstimate(OWN_METHOD, float(y[0]), float(y[1]), float(y[2]), None, True, groups, (), note,
