@@ -499,3 +499,18 @@ def test_cli_two_spheres_json(capsys):
     assert len(two["spheres"]) == 2 and two["fit"] >= two["one_sphere_fit"] - 1e-9
     assert main(["fit", str(EXAMPLES / "bench_graded.csv"), "--good-at-most", "2", "--two-spheres"]) == 2
     assert "good/partial/bad" in capsys.readouterr().err
+
+
+def test_order_of_the_rows_does_not_matter(liquids):
+    # A bench file listed in another order is the same experiment (common practice).
+    X, _ = liquids
+    rng = np.random.default_rng(5)
+    for c, r, g, _ in random_truths(X, 3, seed=31):
+        g = g.copy()
+        flip = rng.choice(len(X), size=5, replace=False)
+        g[flip] = ~g[flip]
+        for gg in (ra(X, c) < r, g):
+            a = fit_sphere(X, gg, interval=False)
+            p = rng.permutation(len(X))
+            b = fit_sphere(X[p], gg[p], interval=False)
+            np.testing.assert_allclose(np.r_[a.hsp, a.r0], np.r_[b.hsp, b.r0], atol=1e-3)
