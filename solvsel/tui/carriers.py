@@ -114,11 +114,11 @@ class CarriersScreen(BenchScreen):
 
     MODE = "carriers"
     BINDINGS = [
-        Binding("ctrl+r", "search", "Search blends"),
+        Binding("ctrl+r", "search", "Search blends", priority=True),
         Binding("escape", "cancel", "Cancel search"),
-        Binding("ctrl+e", "preset('extraction')", "Extraction preset"),
-        Binding("ctrl+l", "preset('carrier')", "Carrier preset"),
-        Binding("ctrl+t", "next_list", "Next list"),
+        Binding("f7", "preset('carrier')", "Carrier preset"),
+        Binding("f8", "preset('extraction')", "Extraction preset"),
+        Binding("ctrl+t", "next_list", "Next list", priority=True),
     ]
 
     LISTS = ("tab-single", "tab-blends", "tab-dropped", "tab-excluded")
@@ -129,6 +129,7 @@ class CarriersScreen(BenchScreen):
         self.result = None  # BlendSearch of blends
         self.worker: Worker | None = None
         self.messages: list[Message] = []  # typed messages seen (for the tests and the status line)
+        self._liquid_cautions: dict = {}  # (liquid, use) -> the library's cautions
 
     def compose(self) -> ComposeResult:
         yield from self.compose_frame_top()
@@ -136,8 +137,8 @@ class CarriersScreen(BenchScreen):
             with VerticalScroll(id="constraints"):
                 yield Static("Constraints", classes="pane-title")
                 with Horizontal(classes="preset-row"):
-                    yield Button("Carrier", id="preset-carrier", classes="preset", compact=True)
-                    yield Button("Extraction", id="preset-extraction", classes="preset", compact=True)
+                    yield Button("Carrier F7", id="preset-carrier", classes="preset", compact=True)
+                    yield Button("Extraction F8", id="preset-extraction", classes="preset", compact=True)
                 yield Label("Use")
                 yield Select(USE_CHOICES, value="carrier", allow_blank=False, id="use", compact=True)
                 yield Label("Jurisdiction")
@@ -178,9 +179,6 @@ class CarriersScreen(BenchScreen):
     def on_mount(self) -> None:
         self.query_one("#rank-grid", DataTable).add_columns(
             "#", "liquid", "Ra", "RED", "bp C", "flash C", "GHS", "food status", "cost")
-        self.query_one("#blend-grid", DataTable).add_columns(
-            "#", "blend (volume fractions)", "Ra", "RED", "nearest reject", "margin", "one phase", "bp C", "flash C",
-            "flammable", "cost")
         self.query_one("#dropped-grid", DataTable).add_columns("blend (volume fractions)", "Ra", "why it was dropped")
         self.query_one("#excluded-grid", DataTable).add_columns("liquid", "why it is not in the pool")
         self.fill_preset("carrier")
@@ -271,9 +269,7 @@ class CarriersScreen(BenchScreen):
             grid.add_row(str(i), r.name + (" (yours)" if r.origin.startswith("user") else ""), _fmt(r.ra),
                          _fmt(r.red), _fmt(r.bp_C, ".0f"), _fmt(r.flash_C, ".0f"), r.hazard_code or "no",
                          r.food_status or "-", _fmt(r.cost_class, ".0f"))
-        if res.results:
-            self.show_single(res.results[0])
-        self.show_cautions()
+        self.show_active()
 
     def show_single(self, r) -> None:
         t = Text()
@@ -385,13 +381,19 @@ class CarriersScreen(BenchScreen):
 
     def fill_blends(self, res) -> None:
         grid = self.query_one("#blend-grid", DataTable)
-        grid.clear()
+        grid.clear(columns=True)
+        rejects = any(b.rejects for b in res.results)
+        basis = next((b.selectivity_basis for b in res.results if b.selectivity_basis), "Ra")
+        cols = ["#", "blend (volume fractions)", "Ra", "RED"]
+        if rejects:
+            cols += [f"nearest reject {basis}", "margin"]
+        grid.add_columns(*cols, "one phase", "bp C", "flash C", "flammable", "cost")
         for b in res.results:
-            grid.add_row(
-                str(b.rank) + ("*" if b.pareto and b.rejects else ""), b.label, _fmt(b.ra), _fmt(b.red),
-                _fmt(b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra),
-                _fmt(b.selectivity), _phase(b), _bp(b), _fmt(b.lowest_flash_C, ".0f"), _short_hazard(b),
-                _fmt(b.cost, ".1f"))
+            row = [str(b.rank) + ("*" if b.pareto and rejects else ""), b.label, _fmt(b.ra), _fmt(b.red)]
+            if rejects:
+                row += [_fmt(b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra),
+                        _fmt(b.selectivity)]
+            grid.add_row(*row, _phase(b), _bp(b), _fmt(b.lowest_flash_C, ".0f"), _short_hazard(b), _fmt(b.cost, ".1f"))
         dropped = self.query_one("#dropped-grid", DataTable)
         dropped.clear()
         for d in res.dropped:
@@ -401,25 +403,46 @@ class CarriersScreen(BenchScreen):
         excluded.clear()
         for e in res.excluded:
             excluded.add_row(e.name, e.reason)
-        if res.results:
-            self.show_blend(res.results[0])
+        if res.results or self.query_one("#carrier-tabs", TabbedContent).active != "tab-blends":
+            self.show_active()
         else:
             self.query_one("#carrier-detail", Static).update(f"No blend: {res.message}")
-        self.show_cautions()
+            self.show_cautions()
 
     # ---------------------------------------------------------------- detail and cautions
+    GRID_TAB = {"rank-grid": "tab-single", "blend-grid": "tab-blends", "dropped-grid": "tab-dropped",
+                "excluded-grid": "tab-excluded"}
+
+    def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
+        self.show_active()
+
     def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
-        row = event.cursor_row
-        if event.data_table.id == "blend-grid" and self.result is not None and 0 <= row < len(self.result.results):
+        if self.GRID_TAB.get(event.data_table.id) == self.query_one("#carrier-tabs", TabbedContent).active:
+            self.show_row(event.data_table.id, event.cursor_row)
+
+    def show_active(self) -> None:
+        """Show the highlighted row of the list in front (and the cautions)."""
+        active = self.query_one("#carrier-tabs", TabbedContent).active
+        for grid_id, tab in self.GRID_TAB.items():
+            if tab == active:
+                grid = self.query_one(f"#{grid_id}", DataTable)
+                if grid.row_count:
+                    self.show_row(grid_id, grid.cursor_row)
+                    return
+        self.show_cautions()
+
+    def show_row(self, grid_id: str, row: int) -> None:
+        """Show the liquid, blend or reason behind row ``row`` of a list."""
+        if grid_id == "blend-grid" and self.result is not None and 0 <= row < len(self.result.results):
             self.show_blend(self.result.results[row])
-        elif event.data_table.id == "rank-grid" and self.ranking is not None and 0 <= row < len(self.ranking.results):
+        elif grid_id == "rank-grid" and self.ranking is not None and 0 <= row < len(self.ranking.results):
             self.show_single(self.ranking.results[row])
-        elif event.data_table.id == "dropped-grid" and self.result is not None and 0 <= row < len(self.result.dropped):
+        elif grid_id == "dropped-grid" and self.result is not None and 0 <= row < len(self.result.dropped):
             d = self.result.dropped[row]
             label = " + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions))
             self.query_one("#carrier-detail", Static).update(Text.assemble(
                 ("dropped: ", "bold"), (label + "\n", "bold"), f"Ra {d.ra:.2f}\n", d.reason))
-        elif event.data_table.id == "excluded-grid" and self.result is not None and 0 <= row < len(self.result.excluded):
+        elif grid_id == "excluded-grid" and self.result is not None and 0 <= row < len(self.result.excluded):
             e = self.result.excluded[row]
             self.query_one("#carrier-detail", Static).update(Text.assemble(
                 ("not in the pool: ", "bold"), (e.name + "\n", "bold"), e.reason))
@@ -450,7 +473,10 @@ class CarriersScreen(BenchScreen):
         self.show_cautions(b)
 
     def show_cautions(self, selected=None) -> None:
-        """The selected liquid's or blend's cautions, then those of the whole list shown."""
+        """The selected liquid's or blend's cautions, then each liquid's on screen, then the lists'."""
+        from ..compliance import solvent_cautions
+        from ..errors import SolvselError
+
         cautions: list[str] = []
         if selected is None:
             for res in (self.result, self.ranking):
@@ -459,11 +485,24 @@ class CarriersScreen(BenchScreen):
                     break
         if selected is not None:
             cautions += list(selected.cautions)
-        # then those of every other liquid or blend on screen, and of the lists as a whole
+        names: list[str] = []
+        if self.result is not None:
+            names += [c.name for b in self.result.results for c in b.components]
+        if self.ranking is not None:
+            names += [r.name for r in self.ranking.results]
+        use = self.query_one("#use", Select).value
+        use = None if use == "any" else use
+        cat = self.session.catalog
+        for name in dict.fromkeys(names):
+            key = (name, use)
+            if key not in self._liquid_cautions:
+                try:
+                    self._liquid_cautions[key] = tuple(solvent_cautions(cat.solvent(name), use=use, cat=cat))
+                except SolvselError:
+                    self._liquid_cautions[key] = ()
+            cautions += list(self._liquid_cautions[key])
         for res in (self.result, self.ranking):
             if res is not None:
-                for other in res.results:
-                    cautions += list(other.cautions)
                 cautions += list(res.cautions)
         t = self.session.target
         if t is not None and t.solute is not None and getattr(t.solute, "category", "") == "active" and t.solute.note:
@@ -476,6 +515,8 @@ class CarriersScreen(BenchScreen):
 def _short_hazard(b) -> str:
     if b.hazard_rank == 0:
         return "no"
+    if "category" not in b.hazard:
+        return "yes, class ?" if "flammable" in b.hazard else b.hazard[:16]
     return b.hazard.replace("flammable liquid, GHS ", "").replace("category ", "cat ")
 
 

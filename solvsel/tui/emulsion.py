@@ -40,7 +40,7 @@ class EmulsionScreen(BenchScreen):
     """Design a beverage emulsion concentrate for the drink."""
 
     MODE = "emulsion"
-    BINDINGS = [Binding("ctrl+r", "compute", "Compute")]
+    BINDINGS = [Binding("ctrl+r", "compute", "Compute", priority=True)]
 
     def __init__(self) -> None:
         super().__init__()

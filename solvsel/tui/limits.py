@@ -26,7 +26,7 @@ class LimitsScreen(BenchScreen):
     """Levels along the dilution chain and the limits of the finished product."""
 
     MODE = "limits"
-    BINDINGS = [Binding("ctrl+r", "compute", "Compute")]
+    BINDINGS = [Binding("ctrl+r", "compute", "Compute", priority=True)]
 
     def __init__(self) -> None:
         super().__init__()

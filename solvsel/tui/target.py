@@ -12,6 +12,7 @@ from __future__ import annotations
 
 from rich.text import Text
 from textual.app import ComposeResult
+from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.widgets import Button, Input, Label, OptionList, Static, TabbedContent, TabPane
 from textual.widgets.option_list import Option
@@ -24,6 +25,8 @@ class TargetScreen(BenchScreen):
     """Choose the target: a solute, typed HSP, a SMILES string or a bench fit."""
 
     MODE = "target"
+    BINDINGS = [Binding("ctrl+t", "next_way", "Next way", priority=True)]
+    WAYS = ("from-table", "from-typed", "from-smiles", "from-bench")
 
     def compose(self) -> ComposeResult:
         yield from self.compose_frame_top()
@@ -62,6 +65,18 @@ class TargetScreen(BenchScreen):
 
     def on_mount(self) -> None:
         self.fill_solutes("")
+        self.query_one("#solute-filter", Input).focus()
+
+    FIRST_FIELD = {"from-table": "#solute-filter", "from-typed": "#typed-hsp", "from-smiles": "#smiles",
+                   "from-bench": "#bench-path"}
+
+    def action_next_way(self) -> None:
+        tabs = self.query_one("#target-tabs", TabbedContent)
+        i = self.WAYS.index(tabs.active) if tabs.active in self.WAYS else 0
+        way = self.WAYS[(i + 1) % len(self.WAYS)]
+        tabs.active = way
+        field = self.query_one(self.FIRST_FIELD[way], Input)
+        self.call_after_refresh(field.focus)
 
     def target_changed(self) -> None:
         self.show_target()
