@@ -172,10 +172,13 @@ def test_target_screen_smiles_typed_numbers_dialogs_and_map():
             await pilot.press("f2")
             await pilot.pause()
             screen = app.screen
-            screen.query_one("#target-tabs").active = "from-smiles"
-            await pilot.pause()
-            screen.query_one("#smiles").value = "C1CC(("  # unclosed branch and ring: not a molecule
-            await pilot.click("#use-smiles")
+            for _ in range(2):  # the third way: from a structure
+                await pilot.press("ctrl+t")
+                await pilot.pause()
+            assert screen.query_one("#target-tabs").active == "from-smiles"
+            assert screen.focused is screen.query_one("#smiles")
+            await pilot.press(*"C1CC((")  # unclosed branch and ring: not a molecule
+            await pilot.press("enter")
             await pilot.pause()
             assert isinstance(app.screen, ErrorDialog)
             assert app.screen.error_title == "Bad input"

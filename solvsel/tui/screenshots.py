@@ -41,12 +41,13 @@ async def _shoot(stem: str, mode: str, keys, out: Path) -> Path:
             await pilot.pause()
         for key in keys:
             if key == "smiles":  # a bad structure: the error dialog
-                app.screen.query_one("#target-tabs").active = "from-smiles"
-                await pilot.pause()
+                for _ in range(2):
+                    await pilot.press("ctrl+t")
+                    await pilot.pause()
                 app.screen.query_one("#smiles").value = "C1CC(("
                 app.screen.press("use-smiles")
             elif key == "typed":  # a typed target with a radius: the map draws its sphere's section
-                app.screen.query_one("#target-tabs").active = "from-typed"
+                await pilot.press("ctrl+t")
                 await pilot.pause()
                 app.screen.query_one("#typed-hsp").value = "17.8, 3.9, 9.9, 6.0"
                 app.screen.press("use-typed")
