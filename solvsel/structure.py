@@ -262,8 +262,9 @@ def parse_smiles(smiles: str):
     :class:`OutOfRangeError` for what the HSP methods do not cover: several
     components (salts, mixtures, hydrates), a net charge or separated charges
     (ions, zwitterions; nitro groups and N-oxides are accepted), metals and
-    other non-organic elements, radicals.  Explicit hydrogens, stereo marks and
-    Kekule or aromatic input give the same molecule.
+    other non-organic elements, radicals, dummy atoms (polymer repeat units).
+    Explicit hydrogens, isotope labels, stereo marks and Kekule or aromatic
+    input give the same molecule.
     """
     if not isinstance(smiles, str) or not smiles.strip():
         raise InputError(f"SMILES: expected a non-empty SMILES string, got {smiles!r}")
@@ -281,6 +282,11 @@ def parse_smiles(smiles: str):
             f"SMILES '{smiles}' has {len(frags)} separate components (a salt, hydrate or mixture); "
             "the HSP methods cover one neutral molecule: give the neutral parent compound, and for a mixture "
             "estimate each component and blend them"
+        )
+    if any(a.GetAtomicNum() == 0 for a in mol.GetAtoms()):
+        raise OutOfRangeError(
+            f"SMILES '{smiles}' has a dummy atom (*): repeat units of polymers and fragments with open "
+            "valences are outside the methods; give a whole molecule (for a polymer, an oligomer with end groups)"
         )
     bad = sorted({a.GetSymbol() for a in mol.GetAtoms() if a.GetSymbol() not in ORGANIC_ELEMENTS})
     if bad:
@@ -312,6 +318,8 @@ def parse_smiles(smiles: str):
             )
     if any(a.GetNumRadicalElectrons() for a in mol.GetAtoms()):
         raise OutOfRangeError(f"SMILES '{smiles}' is a radical; the HSP methods cover closed-shell molecules only")
+    for a in mol.GetAtoms():  # isotopes (deuterium, 13C) do not change the group values
+        a.SetIsotope(0)
     mol = Chem.RemoveHs(mol)
     canonical = Chem.MolToSmiles(mol)
     # re-read the canonical form so atom indices follow the canonical SMILES

@@ -266,6 +266,9 @@ def test_same_answer_for_kekule_aromatic_explicit_h_and_stereo():
     b = structure.estimate("CCCCCc1cc(O)c(C2C=C(C)CCC2C(C)=C)c(O)c1", properties=False)
     assert "@" in a.smiles and "@" not in b.smiles
     assert (a.dD, a.dP, a.dH) == (b.dD, b.dP, b.dH)
+    # isotope labels: perdeuterated toluene gives the toluene numbers
+    d = structure.estimate("[2H]c1c([2H])c([2H])c(C([2H])([2H])[2H])c([2H])c1[2H]", properties=False)
+    assert (d.smiles, d.dD, d.dP, d.dH) == (ests[0].smiles, ests[0].dD, ests[0].dP, ests[0].dH)
 
 
 @pytest.mark.parametrize("smiles,err,words", [
@@ -279,6 +282,7 @@ def test_same_answer_for_kekule_aromatic_explicit_h_and_stereo():
     ("CC[Sn](CC)(CC)CC", OutOfRangeError, "metals"),
     ("[Fe]", OutOfRangeError, "metals"),
     ("C[CH2]", OutOfRangeError, "radical"),
+    ("*CC(*)c1ccccc1", OutOfRangeError, "polymers"),
 ])
 def test_refused_with_a_clear_message(smiles, err, words):
     with pytest.raises(err) as exc:
