@@ -664,7 +664,13 @@ def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
         if use in (None, "extraction"):
             out.append("ethanol: never chill it in a household freezer; cold extraction needs rated equipment.")
     if use == "bench":
-        out.append(f"{name}: bench tests only; not for food; use a fume hood and the exposure limits of the lab.")
+        roles = _get(solvent, "roles") or ()
+        if isinstance(roles, str):
+            roles = tuple(r for r in roles.split(";") if r)
+        if "carrier" in roles or "extraction" in roles:
+            out.append(f"{name}: in bench tests, use a fume hood and the exposure limits of the lab.")
+        else:
+            out.append(f"{name}: a lab liquid, not for food; use a fume hood and the exposure limits of the lab.")
     out.append(DEFER)
     return list(dict.fromkeys(out))
 
