@@ -53,11 +53,14 @@ class EmulsionScreen(BenchScreen):
         with Horizontal(id="emulsion-body"):
             with VerticalScroll(id="emulsion-form"):
                 yield Static("Oil phase and drink", classes="pane-title")
-                yield Label("Oil phase, parts by mass (NAME=AMOUNT, ...)")
+                yield Label("Oil phase, parts by mass (NAME=AMOUNT)")
                 yield Input(id="em-oil", compact=True)
+                yield Label("Oils for the required HLB (NAME=AMOUNT)")
+                yield Input(id="em-hlb-oil", compact=True)
+                yield Static("", id="em-hlb-note", classes="hint")
                 yield Label("Emulsifiers to pair (names, commas)")
                 yield Input(id="em-emulsifiers", compact=True)
-                yield Label("Your required HLB values (NAME=HLB, optional)")
+                yield Label("Your own required HLB (NAME=HLB)")
                 yield Input(placeholder="e.g. lemon oil=14", id="em-rhlb", compact=True)
                 yield Label("Sugar, degrees Brix")
                 yield Input(id="em-brix", compact=True)
@@ -82,6 +85,9 @@ class EmulsionScreen(BenchScreen):
     def on_mount(self) -> None:
         e = self.session.scenario_part("emulsion")
         self.query_one("#em-oil", Input).value = _amounts_text(e.get("oil", {}))
+        self.query_one("#em-hlb-oil", Input).value = _amounts_text(e.get("hlb_oil", e.get("oil", {})))
+        self.query_one("#em-hlb-note", Static).update(e.get("hlb_note", "") or
+                                                      "a weighting agent has no required HLB: leave it out here")
         self.query_one("#em-emulsifiers", Input).value = ", ".join(e.get("emulsifiers", []))
         self.query_one("#em-brix", Input).value = f"{e.get('brix', 10):g}"
         self.query_one("#em-dilution", Input).value = f"{e.get('dilution', 500):g}"
@@ -129,8 +135,8 @@ class EmulsionScreen(BenchScreen):
         try:
             rhlb = self.query_one("#em-rhlb", Input).value
             overrides = dict(parse_amounts(rhlb, "your required HLB")) if rhlb.strip() else None
-            phase = H.oil_phase_required_hlb(cat, parse_amounts(self.query_one("#em-oil", Input).value, "oil phase"),
-                                             overrides)
+            oils = self.query_one("#em-hlb-oil", Input).value
+            phase = H.oil_phase_required_hlb(cat, parse_amounts(oils, "oils whose required HLB counts"), overrides)
             self.hlb_result = phase
             names = parse_names(self.query_one("#em-emulsifiers", Input).value, "emulsifiers")
             pairs = H.emulsifier_systems(H.pool_from_catalog(cat, names), phase.required_hlb, 2, 0.0)
@@ -177,7 +183,8 @@ class EmulsionScreen(BenchScreen):
         t = Text()
         t.append("\nWeighting and creaming\n", style="bold")
         t.append(f"drink density {r.beverage_density:.4f} g/cm3 ({r.beverage_density_basis})\n")
-        t.append(f"oil phase density {r.oil_phase_density:.4f} g/cm3, {r.density_difference:+.4f} g/cm3 below the drink\n")
+        side = "below" if r.density_difference >= 0 else "above"
+        t.append(f"oil phase density {r.oil_phase_density:.4f} g/cm3, {abs(r.density_difference):.4f} g/cm3 {side} the drink's\n")
         if r.oil_in_drink_ppm is not None:
             t.append(f"oil phase in the drink {r.oil_in_drink_ppm:.4g} mg/kg ({r.oil_in_concentrate:.1%} of the concentrate, "
                      f"1 part in {r.dilution:g})\n")

@@ -37,11 +37,11 @@ class LimitsScreen(BenchScreen):
         with Horizontal(id="limits-body"):
             with VerticalScroll(id="limits-form"):
                 yield Static("Flavour and use", classes="pane-title")
-                yield Label("Formula, % by mass (NAME=AMOUNT, ...)")
+                yield Label("Formula, % by mass (NAME=AMOUNT)")
                 yield Input(id="lim-formula", compact=True)
                 yield Label("Dose in the first stage (0.15%, 1500ppm)")
                 yield Input(id="lim-dose", compact=True)
-                yield Label("Dilution chain (e.g. syrup 1+5 carbonated water)")
+                yield Label("Dilution chain (syrup 1+5 water ...)")
                 yield Input(id="lim-chain", compact=True)
                 yield Label("Food category as consumed")
                 yield Input(id="lim-category", compact=True)
