@@ -1525,6 +1525,8 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
     # the same-compound comparison (where every method covers the compound)
     rows_cv += [dict(r, method=r["method"] + (" (same compounds)" if r["method"] == OWN_METHOD else ""))
                 for r in error_table(df, preds, mask=fitted)]
+    # the property route on every compound the library has the data for (its own uncertainty)
+    rows_cv += error_table(df, published_predictions(df, ("properties",)), mask=fitted)
     conflict_rows = error_table(df, {OWN_METHOD: cvpred}, mask=covered & df["conflict"].to_numpy(bool))
     for r in conflict_rows:
         if r["class"] == "all":

@@ -82,8 +82,9 @@ def _refit(args) -> int:
     rows = [r for r in res["table"] if r["class"] == "all"]
     print_table(rows, [("method", "method"), ("n", "n"), ("mae_dD", "MAE dD", ".2f"), ("mae_dP", "MAE dP", ".2f"),
                        ("mae_dH", "MAE dH", ".2f"), ("mae_ra", "mean Ra", ".2f")])
-    print("\nCross-validated (grouped 10-fold) mean absolute errors in MPa^0.5: solvsel-gc on every compound it "
-          "covers, the other rows on the compounds that every method covers.")
+    print("\nMean absolute errors in MPa^0.5 against the data sets (the fitted model out of fold, grouped 10-fold "
+          "CV): solvsel-gc on every compound it covers; 'same compounds', 'groups only' and Hoftyzer-Van Krevelen "
+          "on the compounds both group methods cover; properties where the library has the data.")
     print(f"Use it with: solvsel estimate --params {args.refit} SMILES")
     return 0
 
