@@ -26,11 +26,13 @@ def run(coro):
 
 
 async def _settle(app, pilot):
-    from textual.worker import WorkerCancelled
+    from textual.worker import WorkerCancelled, WorkerFailed
 
     try:
         await app.workers.wait_for_complete()
     except WorkerCancelled:  # a search the user (or a newer search) cancelled
+        pass
+    except WorkerFailed:  # a fault in a worker: the screen shows it (checked where expected)
         pass
     await pilot.pause()
 
@@ -96,7 +98,7 @@ def test_opens_on_demo_ranking_cautions_and_every_screen_by_key():
     run(go())
 
 
-def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled():
+def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled(monkeypatch):
     async def go():
         from solvsel.blends import optimise_blends
         from solvsel.tui.carriers import BlendDone, BlendProgress
@@ -144,6 +146,19 @@ def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled():
             else:
                 assert "cancel" in status
                 assert _cells(screen.query_one("#blend-grid"), 0) == shown
+
+            # a fault of the program in the worker is shown in a dialog, not swallowed
+            import solvsel.blends
+
+            def broken(*args, **kwargs):
+                raise RuntimeError("simulated fault")
+
+            monkeypatch.setattr(solvsel.blends, "optimise_blends", broken)
+            screen.action_search()
+            await _settle(app, pilot)
+            await pilot.pause()
+            assert type(app.screen).__name__ == "ErrorDialog"
+            assert "simulated fault" in app.screen.error_message
 
     run(go())
 

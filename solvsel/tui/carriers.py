@@ -346,6 +346,14 @@ class CarriersScreen(BenchScreen):
         if event.worker is self.worker and event.state == WorkerState.CANCELLED:
             self.query_one("#search-progress", ProgressBar).update(total=1, progress=0)
             self.query_one("#search-status", Static).update("search cancelled")
+        elif event.worker is self.worker and event.state == WorkerState.ERROR:
+            # not a user's mistake (those come as BlendFailed): a fault of the program, shown, not hidden
+            from .dialogs import ErrorDialog
+
+            self.query_one("#search-progress", ProgressBar).update(total=1, progress=0)
+            self.query_one("#search-status", Static).update("search failed")
+            err = event.worker.error
+            self.app.push_screen(ErrorDialog("Internal error (please report it)", f"{type(err).__name__}: {err}"))
 
     def on_blend_progress(self, message: BlendProgress) -> None:
         self.messages.append(message)
