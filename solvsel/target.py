@@ -357,7 +357,9 @@ def rank_solvents(
         conditional (:func:`solvsel.compliance.food_status`; "no data" is never
         taken as permission)
     use : {"carrier", "extraction", "bench"}, optional
-        the intended use (default carrier), for food status and cautions
+        the intended use, for food status and cautions (default: with ``food``,
+        a liquid allowed as a carrier or as an extraction solvent is kept; the
+        cautions are those of a carrier)
     jurisdiction : {"EU", "US"}, optional
     top : int, optional
         keep the best ``top``
@@ -399,6 +401,9 @@ def rank_solvents(
         if missing:
             raise MissingDataError(f"no solubility estimate for {sol.name}: the solutes table has no {', '.join(missing)} for it")
         hansen.ideal_solubility(temp_C, sol.mp_C, sol.dHfus_kJ_mol)  # raises above the melting point
+    # with no use given, --food keeps a liquid allowed for either food use (carrier or
+    # extraction solvent), so substitutes for an extraction solvent are not lost
+    uses = (use,) if use else ("carrier", "extraction")
     use = use or "carrier"
     recs = cat.solvent_records() if names is None else [cat.solvent(n) for n in names]
     skip = {cat.solvent(n).name for n in exclude}
@@ -420,14 +425,19 @@ def rank_solvents(
         status = None
         allowed = None
         try:
-            fs = compliance.food_status(cat, s, use=use, jurisdiction=jurisdiction)
+            statuses = [(u, compliance.food_status(cat, s, use=u, jurisdiction=jurisdiction)) for u in uses]
+            ok = [(u, fs) for u, fs in statuses if fs.allowed]
+            u_shown, fs = ok[0] if ok else statuses[0]
             status, allowed = fs.status, fs.allowed
+            if len(uses) > 1:
+                status = f"{status} ({'carrier' if u_shown == 'carrier' else 'extraction'})"
         except (InputError, MissingDataError, LookupError) as exc:
             if food:
                 dropped.append({"name": s.name, "cas": s.cas, "reason": f"food status unknown: {exc}"})
                 continue
         if food and not allowed:
-            dropped.append({"name": s.name, "cas": s.cas, "reason": f"food status as {use}: {status}"})
+            dropped.append({"name": s.name, "cas": s.cas,
+                            "reason": f"food status as {' or '.join(uses)}: {statuses[0][1].status}"})
             continue
         dose_info = None
         row_notes = [n for n in (tnote,) if n]

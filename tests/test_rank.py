@@ -116,8 +116,13 @@ def test_temperature_shifts_solvents_and_drops_boiling_ones(cat):
 def test_food_filter_uses_the_compliance_status(cat):
     from solvsel.compliance import food_status
 
+    # with no use given, a liquid allowed as a carrier or as an extraction solvent is kept
     r = rank_solvents(cat, target_from_hsp((17.0, 3.0, 8.0)), food=True)
     assert r.results
+    for x in r.results:
+        assert food_status(cat, x.name, use="carrier").allowed or food_status(cat, x.name, use="extraction").allowed
+    assert "ethyl acetate" in {x.name for x in r.results}  # an extraction solvent in the EU and US
+    r = rank_solvents(cat, target_from_hsp((17.0, 3.0, 8.0)), food=True, use="carrier")
     for x in r.results:
         assert food_status(cat, x.name, use="carrier").allowed
     names = {x.name for x in r.results}

@@ -89,7 +89,7 @@ def run(args) -> int:
         cols.append(("red", "RED", ".2f"))
     if any(r.solubility for r in result.results):
         cols.append(("sol", "est. g/L", ".3g"))
-    cols += [("bp", "bp C", ".0f"), ("flash", "flash C", ".0f"), ("hazard", "GHS"), ("food", "food status"), ("flag", "notes")]
+    cols += [("bp", "bp C", ".1f"), ("flash", "flash C", ".0f"), ("hazard", "GHS"), ("food", "food status"), ("flag", "notes")]
     if rows:
         print_table(rows, cols)
     else:
