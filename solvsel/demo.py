@@ -72,7 +72,8 @@ def demo_steps(s: Scenario) -> list[tuple[str, list[str]]]:
     c, x, e, f = s.carrier, s.extraction, s.emulsion, s.flavour
     return [
         (f"1. Single food carriers for {s.solute}, ranked by RED",
-         ["rank", "--solute", s.solute, "--food", "--top", str(c.get("top", 8))]),
+         ["rank", "--solute", s.solute, "--food", "--use", c["use"], "--jurisdiction", c["jurisdiction"],
+          "--top", str(c.get("top", 8))]),
         (f"2. Carrier blends of up to {c['max_components']} liquids ({c['jurisdiction']}, {c['use']} use)",
          ["blend", "--solute", s.solute, "--use", c["use"], "--jurisdiction", c["jurisdiction"],
           "--max-components", str(c["max_components"]), "--top", str(c.get("top", 8))]),
