@@ -71,7 +71,7 @@ def demo_steps(s: Scenario) -> list[tuple[str, list[str]]]:
     """(title, argv) of each step of the walk-through, in order."""
     c, x, e, f = s.carrier, s.extraction, s.emulsion, s.flavour
     return [
-        (f"1. Single food carriers for {s.solute}, ranked by RED",
+        (f"1. Single food carriers for {s.solute}, nearest in Hansen space first",
          ["rank", "--solute", s.solute, "--food", "--use", c["use"], "--jurisdiction", c["jurisdiction"],
           "--top", str(c.get("top", 8))]),
         (f"2. Carrier blends of up to {c['max_components']} liquids ({c['jurisdiction']}, {c['use']} use)",
