@@ -627,6 +627,12 @@ def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
                 "classification, ventilation) with listed or engineer-reviewed closed-loop equipment and gas "
                 "detection; permits and quantity limits of the local fire and building codes apply."
             )
+    elif use == "extraction" and hz is not None and hz.kind != "gas under pressure" and (hz.category or 4) <= 3:
+        out.append(
+            f"{name}: extraction with a flammable solvent belongs in equipment and rooms built for it "
+            "(ventilation, no ignition sources, rated electrics, quantity limits) under the local fire and "
+            "building codes."
+        )
     if cas in _LIQUEFIED_GASES and cas != "124-38-9":
         out.append(f"{name}: liquefied gas; vessels, hoses and fittings must be rated for its vapour pressure.")
     if cas == "124-38-9":
