@@ -83,3 +83,11 @@ def test_wheel_ships_the_tables(tmp_path):
     out = subprocess.run([str(py), "-c", code], capture_output=True, text=True, cwd=tmp_path, check=True)
     parent, name, n, cas = out.stdout.split()
     assert (parent, name) == ("solvsel", "tables") and int(n) >= 70 and cas == "57-55-6"
+
+
+def test_readme_library_example_runs():
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    code = re.findall(r"```python\n(.*?)\n```", readme, flags=re.S)
+    assert code, "README has no library example"
+    out = subprocess.run([sys.executable, "-c", code[0]], capture_output=True, text=True, cwd=ROOT)
+    assert out.returncode == 0, out.stderr
