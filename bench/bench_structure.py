@@ -170,7 +170,7 @@ def flavours(params):
         print(f"{name:>30} {'yes' if key in train_keys else 'no':>7} {e.chem_class:>17}  {e.dD:5.1f} {e.dP:5.1f} "
               f"{e.dH:5.1f}   +/-{u['dD']:.1f}/{u['dP']:.1f}/{u['dH']:.1f} ({u['q90_dD']:.1f}/{u['q90_dP']:.1f}/"
               f"{u['q90_dH']:.1f})  {hvs:>16}")
-    print("(in data = the structure is in the training data; then the neighbour correction pulls to its label)")
+    print("(in data = the structure is in the training data; then the similarity correction pulls toward its label)")
 
 
 def speed(params):
