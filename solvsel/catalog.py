@@ -316,14 +316,22 @@ def _expected(spec: ColumnSpec) -> str:
 # ----------------------------------------------------------------------------- records
 
 
-def _num(x) -> float | None:
-    if x is None:
+def number_or_none(x) -> float | None:
+    """A table cell as a float, or None when it is empty, not a number, NaN or infinite.
+
+    >>> number_or_none("1.5"), number_or_none(""), number_or_none(float("nan"))
+    (1.5, None, None)
+    """
+    if x is None or x == "":
         return None
     try:
         x = float(x)
     except (TypeError, ValueError):
         return None
-    return None if math.isnan(x) else x
+    return x if math.isfinite(x) else None
+
+
+_num = number_or_none
 
 
 def _tuple(s: str) -> tuple[str, ...]:

@@ -41,6 +41,7 @@ import re
 from dataclasses import asdict, dataclass, field
 from typing import Any, Iterable, Mapping, Sequence
 
+from .catalog import number_or_none as _number
 from .errors import InputError, MissingDataError, UnknownNameError
 
 __all__ = [
@@ -110,16 +111,6 @@ def _text(v) -> str:
     if isinstance(v, float) and math.isnan(v):
         return ""
     return str(v).strip()
-
-
-def _number(v) -> float | None:
-    if v is None or v == "":
-        return None
-    try:
-        x = float(v)
-    except (TypeError, ValueError):
-        return None
-    return None if math.isnan(x) else x
 
 
 def _norm(s: str) -> str:

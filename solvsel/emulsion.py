@@ -35,6 +35,7 @@ from typing import Mapping, Sequence
 
 import numpy as np
 
+from .catalog import number_or_none as _num
 from .errors import InputError, MissingDataError, OutOfRangeError
 
 __all__ = [
@@ -727,14 +728,6 @@ def _component(cat, name: str, fraction: float, densities: Mapping[str, float]) 
         raise MissingDataError(f"no density on record for '{key}': give it, e.g. --oil-density '{key}=0.85'")
     return OilComponent(key, fraction, dens, str(row.get("ripening") or "unknown"), _num(row.get("water_solubility_mg_L")),
                         str(row.get("cas") or ""), table == "weighting_agents")
-
-
-def _num(x) -> float | None:
-    try:
-        x = float(x)
-    except (TypeError, ValueError):
-        return None
-    return None if math.isnan(x) else x
 
 
 @dataclass(frozen=True)

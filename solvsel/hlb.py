@@ -39,6 +39,7 @@ from typing import Iterable, Mapping, Sequence
 
 import numpy as np
 
+from .catalog import number_or_none as _num
 from .errors import InputError, MissingDataError, OutOfRangeError
 
 __all__ = [
@@ -115,14 +116,6 @@ class Emulsifier:
 
     def to_dict(self) -> dict:
         return asdict(self)
-
-
-def _num(x) -> float | None:
-    try:
-        x = float(x)
-    except (TypeError, ValueError):
-        return None
-    return None if math.isnan(x) else x
 
 
 def emulsifier_from_row(row: Mapping) -> Emulsifier:

@@ -33,6 +33,7 @@ from itertools import combinations
 
 import numpy as np
 
+from .catalog import number_or_none as _num
 from . import hansen
 from .errors import InputError, MissingDataError
 
@@ -227,16 +228,6 @@ def measured_pair(cat, a, b):
         row["cas_a"], row["cas_b"] = row.get("cas_b"), row.get("cas_a")
         row["b_in_a_wt"], row["a_in_b_wt"] = row.get("a_in_b_wt"), row.get("b_in_a_wt")
     return row
-
-
-def _num(v):
-    if v is None:
-        return None
-    try:
-        f = float(v)
-    except (TypeError, ValueError):
-        return None
-    return f if math.isfinite(f) else None
 
 
 def _at_temperature(sa, sb, temp_C):
