@@ -18,6 +18,7 @@ SHOTS = [
     ("tables", "tables", ()),
     ("target", "target", ()),
     ("carriers", "carriers", ()),
+    ("single", "carriers", ("ctrl+t", "ctrl+t", "ctrl+t")),
     ("extraction", "carriers", ("f8",)),
     ("dropped", "carriers", ("f8", "ctrl+t")),
     ("map", "map", ()),
