@@ -76,13 +76,19 @@ def create_app(catalog=None, scenario=None, start: str | None = None) -> Solvsel
     from ..errors import SolvselError
 
     cat = catalog if catalog is not None else load_catalog()
+    problem = None
     if scenario is None:
         from ..demo import load_scenario
 
-        scenario = load_scenario()
+        try:
+            scenario = load_scenario()
+        except SolvselError as exc:  # a broken scenario file: open on the tables, say why
+            problem = exc
     session = Session(catalog=cat, scenario=scenario)
-    part = scenario.get("target") if isinstance(scenario, dict) else getattr(scenario, "target", None)
-    name = (part or {}).get("solute")
+    if problem is not None:
+        session.notes["start_error"] = problem
+    part = session.scenario_part("target")
+    name = part.get("solute")
     if name:
         from ..target import target_from_solute
 
