@@ -302,3 +302,63 @@ def test_emulsion_and_limits_screens_show_the_library_results():
             assert app.screen.query_one("#lim-cautions").display
 
     run(go())
+
+
+def test_bench_fit_target_and_the_users_own_rows(tmp_path):
+    async def go():
+        import csv
+
+        from solvsel.sphere import fit_sphere
+        from solvsel.tui.dialogs import ErrorDialog
+
+        # the user's own solvents file overrides the bundled ethanol row: it shows as theirs
+        src = load_catalog().tables_dir / "solvents.csv"
+        with src.open(newline="", encoding="utf-8") as fh:
+            rows = list(csv.reader(fh))
+        mine = tmp_path / "my_solvents.csv"
+        with mine.open("w", newline="", encoding="utf-8") as fh:
+            w = csv.writer(fh)
+            w.writerow(rows[0])
+            w.writerow(next(r for r in rows[1:] if r[0] == "ethanol"))
+        cat = load_catalog(own={"solvents": [str(mine)]})
+
+        # bench scores of twelve liquids (1 dissolves .. 6 does not; made up for this test, as in the
+        # sphere module's own example): good at a score of at most 2
+        scores = {"n-hexane": 6, "toluene": 2, "acetone": 1, "ethanol": 4, "water": 6, "ethyl acetate": 1,
+                  "methanol": 5, "dichloromethane": 1, "1-butanol": 3, "tetrahydrofuran": 1, "acetonitrile": 4,
+                  "2-butanone": 1}
+        bench = tmp_path / "bench.csv"
+        bench.write_text("solvent,score\n" + "".join(f"{k},{v}\n" for k, v in scores.items()), encoding="utf-8")
+
+        app = create_app(catalog=cat, start="tables")
+        async with app.run_test(size=SIZE) as pilot:
+            await pilot.pause()
+            grid = app.screen.query_one("#table-grid")
+            cols = [str(c.label) for c in grid.columns.values()]
+            row = next(_cells(grid, i) for i in range(grid.row_count) if _cells(grid, i)[0] == "ethanol")
+            assert row[cols.index("origin")] == "yours"
+
+            await pilot.press("f2")
+            await pilot.pause()
+            screen = app.screen
+            for _ in range(3):  # the fourth way: from bench results
+                await pilot.press("ctrl+t")
+                await pilot.pause()
+            assert screen.query_one("#target-tabs").active == "from-bench"
+            screen.query_one("#bench-path").value = str(bench)
+            await pilot.press("enter")
+            await pilot.pause()
+            t = app.session.target
+            recs = [cat.solvent(n) for n in scores]
+            ref = fit_sphere([r.hsp for r in recs], list(scores.values()), names=[r.name for r in recs], good_at_most=2)
+            assert t.basis == "fitted"
+            assert (t.dD, t.dP, t.dH, t.r0) == pytest.approx((ref.dD, ref.dP, ref.dH, ref.r0))
+
+            # a file that is not there: the dialog, and the fitted target stays
+            screen.query_one("#bench-path").value = str(tmp_path / "missing.csv")
+            screen.press("use-bench")
+            await pilot.pause()
+            assert isinstance(app.screen, ErrorDialog)
+            assert app.session.target is t
+
+    run(go())
