@@ -226,8 +226,14 @@ def test_target_screen_smiles_typed_numbers_dialogs_and_map():
             await pilot.press("v")  # the other view: 2 dD against dH, centre at 2 x 17.0
             await pilot.pause()
             assert app.screen.map_data.circle == (8.0, 34.0, 8.0)
-            drawn = str(app.screen.query_one("#hsp-map").render())
+            m = app.screen.query_one("#hsp-map")
+            drawn = str(m.render())
             assert "+" in drawn  # the target's cross
+            # the mouse names what is under it
+            (r, c) = next(k for k, v in m._cell_labels.items() if "typed target" in v)
+            await pilot.hover("#hsp-map", offset=(c + m._left + 1, r + 1))  # +1: the map's border
+            await pilot.pause()
+            assert "typed target" in str(m.tooltip)
 
     run(go())
 

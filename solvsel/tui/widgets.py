@@ -180,6 +180,8 @@ class BrailleMap(Widget):
         x1 = x0 + pw / scale
         y1 = y0 + ph / scale
 
+        self._cell_labels: dict[tuple[int, int], str] = {}
+        self._left = left
         bits = [[0] * cw for _ in range(ch)]
         kinds = [[""] * cw for _ in range(ch)]
         marks: dict[tuple[int, int], tuple[str, str]] = {}
@@ -206,6 +208,10 @@ class BrailleMap(Widget):
                 dot(*pix(cx + r * math.cos(a), cy + r * math.sin(a)), "circle")
         for p in d.points:
             px, py = pix(p.x, p.y)
+            if 0 <= px < pw and 0 <= py < ph and p.label:
+                key = (py // 4, px // 2)
+                old = self._cell_labels.get(key)
+                self._cell_labels[key] = p.label if not old or p.label in old else f"{old}, {p.label}"
             if p.kind == "liquid":
                 dot(px, py, "liquid")
                 dot(px + 1, py, "liquid")
@@ -259,6 +265,20 @@ class BrailleMap(Widget):
 
     def watch_data(self, value) -> None:
         self.refresh()
+
+    def on_mouse_move(self, event) -> None:
+        """Name the liquid under the pointer (or the nearest within a cell)."""
+        labels = getattr(self, "_cell_labels", {})
+        at = event.get_content_offset(self)
+        if at is None:
+            self.tooltip = None
+            return
+        r, c = at.y, at.x - getattr(self, "_left", 6)
+        for dr, dc in ((0, 0), (0, 1), (0, -1), (1, 0), (-1, 0)):
+            if (r + dr, c + dc) in labels:
+                self.tooltip = labels[(r + dr, c + dc)]
+                return
+        self.tooltip = None
 
 
 def _nice_step(raw: float) -> float:
