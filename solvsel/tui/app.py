@@ -36,6 +36,7 @@ class SolvselApp(App):
     TITLE = "solvsel"
     ENABLE_COMMAND_PALETTE = False
     BINDINGS = [Binding(key.lower(), f"switch_mode('{mode}')", title, show=False) for mode, key, title in SCREENS] + [
+        Binding("f9", "toggle_keys", "Keys"),
         Binding("ctrl+q", "quit", "Quit", priority=True),
     ]
 
@@ -56,6 +57,15 @@ class SolvselApp(App):
         self.start_mode: str | None = None
         self.register_theme(THEME)
         self.theme = THEME.name
+
+    def action_toggle_keys(self) -> None:
+        """Show or hide the panel listing every key of the screen in front."""
+        from textual.widgets import HelpPanel
+
+        if self.screen.query(HelpPanel):
+            self.action_hide_help_panel()
+        else:
+            self.action_show_help_panel()
 
     def on_mount(self) -> None:
         self.switch_mode(self.start_mode or ("carriers" if self.session.target is not None else "tables"))

@@ -11,7 +11,7 @@ listed with their reasons.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
 from rich.text import Text
 from textual import work
@@ -72,7 +72,6 @@ class SearchRequest:
     exclude: tuple[str, ...]
     rejects: tuple[str, ...]
     top: int = 10
-    extra: dict = field(default_factory=dict)
 
 
 def _float(text: str, what: str) -> float | None:
