@@ -101,6 +101,12 @@ class LimitsScreen(BenchScreen):
         try:
             r = self.run_check()
         except SolvselError as exc:
+            # no stale numbers under an error: clear what the last check showed
+            self.result = None
+            self.query_one("#lim-checks", DataTable).clear()
+            self.query_one("#lim-stages", DataTable).clear(columns=True)
+            self.query_one("#lim-stages-title", Static).update("")
+            self.query_one("#lim-notes", Static).update("")
             self.query_one("#lim-summary", Static).update(Text.assemble((f"{exc.title}: ", "bold"), str(exc)))
             if interactive:
                 show_error(self.app, exc)
