@@ -96,6 +96,13 @@ def test_opens_on_demo_ranking_cautions_and_every_screen_by_key():
                 await pilot.press(key)
                 await pilot.pause()
                 assert type(app.screen).__name__ == name, key
+            # and by the mouse, on its name in the strip at the top
+            from solvsel.tui.widgets import ScreenStrip
+
+            strip = app.screen.query_one(ScreenStrip)
+            await pilot.click(ScreenStrip, offset=(str(strip.render()).index("F4") + 3, 0))
+            await pilot.pause()
+            assert app.current_mode == "map"
 
     run(go())
 

@@ -84,6 +84,8 @@ class MapScreen(BenchScreen):
                 pts.append(MapPoint(float(p[xi]), float(p[yi]), "top", str(i), r.name))
                 legend.append(f" {i} ", style="bold #f0c05a")
                 legend.append(f"{r.name}  Ra {r.ra:.2f}" + (f"  RED {r.red:.2f}" if r.red is not None else "") + "\n")
+        if not ranked:
+            legend.append("No ranking for this target yet: the Carriers screen (F3) ranks the liquids.\n", style="dim")
         if s.blends is not None and s.blends.results:
             legend.append("\nBest blends\n", style="bold")
             for letter, b in zip(_LETTERS, s.blends.results):
