@@ -1,4 +1,4 @@
-"""The solvsel terminal app: six screens over one session, opened on the demo scenario.
+"""The solvsel terminal app: six screens over one shared state, opened on the demo scenario.
 
 ``create_app`` builds the app for the command line and for the tests alike;
 ``run_app`` runs it.  Each screen lives in its own module; styles in app.tcss.

@@ -12,7 +12,7 @@ from typing import Any
 
 @dataclass
 class Session:
-    """Mutable state of one UI session (the results themselves stay frozen)."""
+    """Mutable state of one run of the app (the results themselves stay frozen)."""
 
     catalog: Any
     scenario: Any = None
