@@ -459,9 +459,11 @@ class CarriersScreen(BenchScreen):
         t.append(f"#{b.rank}  {b.label}\n", style="bold")
         t.append(f"blend HSP  dD {b.dD:.2f}  dP {b.dP:.2f}  dH {b.dH:.2f} MPa^0.5   Ra {b.ra:.2f}"
                  + (f"   RED {b.red:.2f}" if b.red is not None else "   (no R0: RED not given)") + "\n")
+        width = max(len(c.name) for c in b.components)
+        t.append(f"  {'':<{width}}  volume  mass\n", style="dim")
         for c in b.components:
             mf = "-" if c.mass_fraction is None else f"{c.mass_fraction:.3f}"
-            t.append(f"  {c.name:<28} volume {c.volume_fraction:.3f}   mass {mf}\n")
+            t.append(f"  {c.name:<{width}}  {c.volume_fraction:.3f}   {mf}\n")
         if len(b.components) > 1:
             t.append(f"one phase: {_phase(b)}  {b.phase_note}\n", style="dim")
         if b.rejects:
