@@ -790,6 +790,32 @@ def _same(rec, other) -> bool:
     return rec.name == other.name
 
 
+def property_reason(rec, bp_min_C=None, bp_max_C=None, min_flash_C=None, max_cost=None) -> str | None:
+    """Why a liquid fails the property limits of a pool (cost class, boiling window, lowest
+    flash point), or None if it passes.  Shared by the blend search and the single-liquid
+    ranking so both apply a limit the same way; a value not on record fails its limit.
+
+    >>> from solvsel.catalog import load_catalog
+    >>> property_reason(load_catalog().solvent("ethanol"), min_flash_C=60)
+    'flash point 12 C, below 60 C'
+    """
+    if max_cost is not None and rec.cost_class is not None and rec.cost_class > int(max_cost):
+        return f"cost class {rec.cost_class} above {int(max_cost)}"
+    if bp_min_C is not None or bp_max_C is not None:
+        if rec.bp_C is None:
+            return "boiling point not on record"
+        if bp_min_C is not None and rec.bp_C < bp_min_C:
+            return f"boils at {rec.bp_C:g} C, below {bp_min_C:g} C"
+        if bp_max_C is not None and rec.bp_C > bp_max_C:
+            return f"boils at {rec.bp_C:g} C, above {bp_max_C:g} C"
+    if min_flash_C is not None and rec.flammable:
+        if rec.flash_C is None:
+            return "flammable, flash point not on record"
+        if rec.flash_C < min_flash_C:
+            return f"flash point {rec.flash_C:g} C, below {min_flash_C:g} C"
+    return None
+
+
 def optimise_blends(
     cat,
     target,
@@ -982,20 +1008,9 @@ def optimise_blends(
             reason = "excluded by you"
         elif use is not None and use not in rec.roles:
             reason = f"not listed for use as {use} (listed: {', '.join(rec.roles) or 'none'})"
-        elif max_cost is not None and rec.cost_class is not None and rec.cost_class > int(max_cost):
-            reason = f"cost class {rec.cost_class} above {int(max_cost)}"
-        elif bp_min_C is not None or bp_max_C is not None:
-            if rec.bp_C is None:
-                reason = "boiling point not on record"
-            elif bp_min_C is not None and rec.bp_C < bp_min_C:
-                reason = f"boils at {rec.bp_C:g} C, below {bp_min_C:g} C"
-            elif bp_max_C is not None and rec.bp_C > bp_max_C:
-                reason = f"boils at {rec.bp_C:g} C, above {bp_max_C:g} C"
-        if reason is None and min_flash_C is not None and rec.flammable:
-            if rec.flash_C is None:
-                reason = "flammable, flash point not on record"
-            elif rec.flash_C < min_flash_C:
-                reason = f"flash point {rec.flash_C:g} C, below {min_flash_C:g} C"
+        else:
+            reason = property_reason(rec, bp_min_C=bp_min_C, bp_max_C=bp_max_C, min_flash_C=min_flash_C,
+                                     max_cost=max_cost)
         hz_label, hz_rank, hz_cat, hz_flammable = _hazard_of(rec)
         if reason is None and worst_flammable_category is not None:
             if worst_flammable_category == "none" and hz_flammable:

@@ -338,6 +338,10 @@ def rank_solvents(
     keep_over: bool = False,
     exclude=(),
     require_solubility: bool = False,
+    bp_min_C: float | None = None,
+    bp_max_C: float | None = None,
+    min_flash_C: float | None = None,
+    max_cost: int | None = None,
 ) -> Ranking:
     """Rank single solvents for a target by RED (or Ra when R0 is unknown).
 
@@ -370,6 +374,10 @@ def rank_solvents(
         ``keep_over``
     exclude : sequence of str
         names to leave out (e.g. the liquid itself for substitutes)
+    bp_min_C, bp_max_C, min_flash_C, max_cost : optional
+        property limits of the pool, applied as in the blend search
+        (:func:`solvsel.blends.property_reason`); a liquid that fails one is
+        dropped with the reason
     require_solubility : bool
         raise :class:`~solvsel.errors.MissingDataError` (rather than leave the
         column empty) when the target has no fusion data for an estimate, and
@@ -414,8 +422,14 @@ def rank_solvents(
     if target.r0 is None:
         notes.append("the target has no R0: ranked by Ra, RED not given")
     all_cautions: list[str] = []
+    from .blends import property_reason
+
     for s in recs:
         if s.name in skip:
+            continue
+        why = property_reason(s, bp_min_C=bp_min_C, bp_max_C=bp_max_C, min_flash_C=min_flash_C, max_cost=max_cost)
+        if why is not None:
+            dropped.append({"name": s.name, "cas": s.cas, "reason": why})
             continue
         try:
             h, vm, tnote = solvent_at(s, temp_C)
@@ -488,7 +502,8 @@ def rank_solvents(
     return Ranking(target, float(temp_C), tuple(results), tuple(dropped), tuple(notes), caut, "red" if target.r0 else "ra")
 
 
-def nearest_liquids(cat, name: str, k: int = 10, food: bool = False, use: str | None = None, jurisdiction: str | None = None, temp_C: float = 25.0) -> Ranking:
+def nearest_liquids(cat, name: str, k: int = 10, food: bool = False, use: str | None = None,
+                    jurisdiction: str | None = None, temp_C: float = 25.0, **limits) -> Ranking:
     """The liquids nearest to a given liquid in Hansen space (substitutes).
 
     Uses scikit-learn's :class:`~sklearn.neighbors.NearestNeighbors` on the
@@ -513,7 +528,8 @@ def nearest_liquids(cat, name: str, k: int = 10, food: bool = False, use: str | 
         raise InputError(f"--top: expected a whole number of at least 1, got {k}")
     target = Target(me.name, float(me.dD), float(me.dP), float(me.dH), None, "table", None,
                     f"the liquid to replace; HSP source {me.hsp_source}", me.vm_cm3_mol)
-    full = rank_solvents(cat, target, temp_C=temp_C, food=food, use=use, jurisdiction=jurisdiction, exclude=[me.name])
+    full = rank_solvents(cat, target, temp_C=temp_C, food=food, use=use, jurisdiction=jurisdiction, exclude=[me.name],
+                         **limits)
     if not full.results:
         return full
     pts = hansen.scaled(np.array([[r.dD, r.dP, r.dH] for r in full.results]))

@@ -315,3 +315,19 @@ def test_engines_do_not_import_the_ui():
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=Path(__file__).parents[1], check=True)
     assert out.stdout.split() == ["False", "False", "False"]
+
+
+def test_property_limits_apply_as_in_the_blend_search(cat):
+    """--min-flash, --bp-range and --max-cost drop the same liquids in rank as in blend
+    (one shared rule, solvsel.blends.property_reason)."""
+    from solvsel.blends import property_reason
+
+    t = target_from_hsp((17.0, 3.0, 8.0))
+    r = rank_solvents(cat, t, min_flash_C=60.0, bp_min_C=150.0, max_cost=3)
+    assert r.results
+    for x in r.results:
+        rec = cat.solvent(x.name)
+        assert property_reason(rec, bp_min_C=150.0, min_flash_C=60.0, max_cost=3) is None
+        assert rec.bp_C >= 150.0 and (not rec.flammable or rec.flash_C >= 60.0)
+    reasons = {d["name"]: d["reason"] for d in r.dropped}
+    assert "flash point 12 C" in reasons["ethanol"] or "boils at" in reasons["ethanol"]

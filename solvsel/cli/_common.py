@@ -26,6 +26,7 @@ __all__ = [
     "parse_hsp",
     "parse_amounts",
     "parse_percent",
+    "parse_range",
     "open_ui",
 ]
 
@@ -218,6 +219,26 @@ def parse_percent(text: str, what: str = "--dose") -> float:
     if not (0 <= value <= 1):
         raise InputError(f"{what}: must be between 0 and 100 %, got '{text}'")
     return value
+
+
+def parse_range(text: str | None, what: str = "--bp-range") -> tuple[float | None, float | None]:
+    """Parse ``"LO:HI"`` (either side may be empty) into two numbers or None."""
+    if text is None:
+        return None, None
+    t = str(text).strip()
+    if ":" not in t:
+        raise InputError(f"{what}: expected LO:HI in C (either side may be empty), got '{text}'")
+    lo, _, hi = t.partition(":")
+    try:
+        lo_v = float(lo) if lo.strip() else None
+        hi_v = float(hi) if hi.strip() else None
+    except ValueError:
+        raise InputError(f"{what}: expected numbers of C as LO:HI, got '{text}'") from None
+    if lo_v is None and hi_v is None:
+        raise InputError(f"{what}: give at least one side, e.g. 40:100, :120 or 150:")
+    if lo_v is not None and hi_v is not None and lo_v > hi_v:
+        raise InputError(f"{what}: the low end {lo_v:g} is above the high end {hi_v:g}")
+    return lo_v, hi_v
 
 
 def open_ui(args) -> int:

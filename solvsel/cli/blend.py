@@ -9,6 +9,7 @@ from ._common import (
     parse_amounts,
     parse_hsp,
     parse_names,
+    parse_range,
     print_cautions,
     print_table,
 )
@@ -75,25 +76,6 @@ def register(sub):
     return p
 
 
-def _parse_range(text):
-    from ..errors import InputError
-
-    if text is None:
-        return None, None
-    t = str(text).strip()
-    if ":" not in t:
-        raise InputError(f"--bp-range: expected LO:HI in C (either side may be empty), got '{text}'")
-    lo, _, hi = t.partition(":")
-    try:
-        lo_v = float(lo) if lo.strip() else None
-        hi_v = float(hi) if hi.strip() else None
-    except ValueError:
-        raise InputError(f"--bp-range: expected numbers of C as LO:HI, got '{text}'") from None
-    if lo_v is None and hi_v is None:
-        raise InputError("--bp-range: give at least one side, e.g. 40:100, :120 or 150:")
-    return lo_v, hi_v
-
-
 def _rejects(args, cat):
     out = []
     for text in args.reject:
@@ -110,7 +92,7 @@ def search(args, cat):
     from ..blends import optimise_blends
 
     target = target_from_args(args, cat)
-    bp_lo, bp_hi = _parse_range(args.bp_range)
+    bp_lo, bp_hi = parse_range(args.bp_range)
     return optimise_blends(
         cat, target,
         max_components=args.max_components,

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from ._common import add_json_flag, emit_json, get_catalog, parse_names, print_cautions, print_table
+from ._common import add_json_flag, emit_json, get_catalog, parse_names, parse_range, print_cautions, print_table
 from ._target import add_target_arguments, target_from_args
 
 
@@ -24,6 +24,10 @@ def register(sub):
     p.add_argument("--top", type=int, default=15, metavar="N", help="show the best N (default 15)")
     p.add_argument("--all", action="store_true", help="show every ranked liquid")
     p.add_argument("--temp", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
+    p.add_argument("--bp-range", metavar="LO:HI",
+                   help="boiling-point window in C, e.g. 40:100 for a solvent to strip, 150: for one that must stay")
+    p.add_argument("--min-flash", type=float, metavar="C", help="lowest closed-cup flash point allowed in C")
+    p.add_argument("--max-cost", type=int, metavar="CLASS", help="dearest cost class allowed (1 cheap .. 5 dear)")
     p.add_argument("--dose", metavar="DOSE", help="dose of the flavour in the food, e.g. 0.15%% (needs --category and --jurisdiction)")
     p.add_argument("--category", metavar="CATEGORY", help="food category for the dose check (see: solvsel table food_categories)")
     p.add_argument("--solubility", action="store_true",
@@ -41,16 +45,18 @@ def compute(args, cat):
     top = None if args.all else args.top
     if top is not None and top < 1:
         raise InputError(f"--top: expected a whole number of at least 1, got {top}")
+    bp_lo, bp_hi = parse_range(args.bp_range)
+    limits = {"bp_min_C": bp_lo, "bp_max_C": bp_hi, "min_flash_C": args.min_flash, "max_cost": args.max_cost}
     if args.like:
         if args.dose or args.only or args.solubility:
             raise InputError("--like finds substitutes among all liquids: it does not take --dose, --only or --solubility")
         return nearest_liquids(cat, args.like, k=top or 10_000, food=args.food, use=args.use,
-                               jurisdiction=args.jurisdiction, temp_C=args.temp)
+                               jurisdiction=args.jurisdiction, temp_C=args.temp, **limits)
     target = target_from_args(args, cat)
     names = parse_names(args.only, "--only") if args.only else None
     return rank_solvents(cat, target, temp_C=args.temp, names=names, food=args.food, use=args.use,
                          jurisdiction=args.jurisdiction, top=top, dose=args.dose, category=args.category,
-                         keep_over=args.keep_over, require_solubility=args.solubility)
+                         keep_over=args.keep_over, require_solubility=args.solubility, **limits)
 
 
 def _fmt_sol(r):
