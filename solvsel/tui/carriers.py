@@ -257,7 +257,8 @@ class CarriersScreen(BenchScreen):
 
         res = self.guard(rank_solvents, self.session.catalog, self.session.target, temp_C=req.temp_C,
                          food=req.use is not None, use=req.use, jurisdiction=req.jurisdiction, top=15,
-                         exclude=req.exclude)
+                         exclude=req.exclude, min_flash_C=req.min_flash_C, bp_min_C=req.bp_min_C,
+                         bp_max_C=req.bp_max_C)
         if res is None:
             return
         self.ranking = res
@@ -285,7 +286,6 @@ class CarriersScreen(BenchScreen):
         if self.ranking.dropped:
             t.append(f"{len(self.ranking.dropped)} liquids left out of the ranking (e.g. "
                      + "; ".join(f"{d['name']}: {d['reason']}" for d in self.ranking.dropped[:2]) + ")\n", style="dim")
-        t.append("flash point and boiling window bound the blends only", style="dim italic")
         self.query_one("#carrier-detail", Static).update(t)
         self.show_cautions(r)
 
