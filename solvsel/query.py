@@ -30,7 +30,7 @@ import re
 
 from .errors import InputError
 
-__all__ = ["where", "ALIASES"]
+__all__ = ["where", "resolve_column", "ALIASES"]
 
 ALIASES = {
     "dd": "dD_MPa05", "dp": "dP_MPa05", "dh": "dH_MPa05", "r0": "r0_MPa05", "vm": "vm_cm3_mol",
@@ -116,18 +116,10 @@ class _Parser:
         return self.compare()
 
     def column(self, name):
-        cols = list(self.df.columns)
-        if name in cols:
-            return name
-        alias = ALIASES.get(name.lower())
-        if alias in cols:
-            return alias
-        lower = {c.lower(): c for c in cols}
-        if name.lower() in lower:
-            return lower[name.lower()]
-        close = difflib.get_close_matches(name, cols + [a for a, c in ALIASES.items() if c in cols], n=4, cutoff=0.5)
-        hint = f"; closest: {', '.join(close)}" if close else f"; columns: {', '.join(cols)}"
-        self.error(f"unknown column '{name}'{hint}")
+        try:
+            return resolve_column(self.df, name)
+        except InputError as exc:
+            self.error(str(exc))
 
     def compare(self):
         kind, name = self.take()
@@ -170,6 +162,28 @@ class _Parser:
         s = series.astype(str).str.casefold()
         res = s == str(value).casefold()
         return ~res if op == "!=" else res
+
+
+def resolve_column(df, name: str, what: str | None = None) -> str:
+    """The column of ``df`` that ``name`` means (exact, short alias, or case-insensitive).
+
+    >>> import pandas as pd
+    >>> resolve_column(pd.DataFrame(columns=["name", "bp_C"]), "bp")
+    'bp_C'
+    """
+    cols = list(df.columns)
+    if name in cols:
+        return name
+    alias = ALIASES.get(name.lower())
+    if alias in cols:
+        return alias
+    lower = {c.lower(): c for c in cols}
+    if name.lower() in lower:
+        return lower[name.lower()]
+    close = difflib.get_close_matches(name, cols + [a for a, c in ALIASES.items() if c in cols], n=4, cutoff=0.5)
+    hint = f"; closest: {', '.join(close)}" if close else f"; columns: {', '.join(cols)}"
+    prefix = f"{what}: " if what else ""
+    raise InputError(f"{prefix}unknown column '{name}'{hint}")
 
 
 def where(df, text: str):

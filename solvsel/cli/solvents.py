@@ -29,8 +29,7 @@ def register(sub):
 def select(cat, food=False, role=None, search=None, where_text=None, sort=None):
     """The solvents table filtered and sorted as the options say (a DataFrame)."""
     from ..catalog import normalize_name
-    from ..errors import InputError
-    from ..query import where, _Parser
+    from ..query import resolve_column, where
 
     df = cat.solvents
     if food:
@@ -45,7 +44,7 @@ def select(cat, food=False, role=None, search=None, where_text=None, sort=None):
         df = df[where(df, where_text)]
     if sort:
         desc = sort.startswith("-")
-        col = _Parser(df, "x").column(sort.lstrip("-+"))
+        col = resolve_column(df, sort.lstrip("-+"), what="--sort")
         df = df.sort_values(col, ascending=not desc, na_position="last", kind="stable")
     return df
 
