@@ -1,7 +1,7 @@
 """Benchmark of solvsel.structure: cross-validated accuracy by method and class, flavour molecules
 outside the training data with the interval the cross-validation supports, and speed.
 
-    .venv/bin/python bench/bench_structure.py            # full: refits with 10-fold grouped CV (~2 min)
+    .venv/bin/python bench/bench_structure.py            # full: refits with nested grouped 10-fold CV (4-9 min)
     .venv/bin/python bench/bench_structure.py --quick    # stored CV results, flavour table, timings
 
 Errors are mean absolute errors in MPa^0.5 against the median of the three HSP data sets bundled with
@@ -71,7 +71,8 @@ def print_rows(rows, cols, fmt="{:>8.2f}"):
 
 
 def accuracy(quick: bool):
-    print("== cross-validated accuracy (grouped 10-fold; no structure in train and test at once) ==")
+    print("== cross-validated accuracy (nested grouped 10-fold; no structure in train and test at once; the "
+          "fit settings of each fold chosen on inner folds of its training part) ==")
     if quick:
         base = structure._tables_dir() / "gc_params.csv"
         print(f"(stored results of {base.name}; run without --quick to refit)")
@@ -126,6 +127,12 @@ def accuracy(quick: bool):
         sub = {k: np.where(sel[:, None], preds[k], np.nan) for k in ("solvsel-gc", "hoftyzer-van-krevelen")}
         rows = [dict(r, **{"class": f"{lo}-{hi} atoms"}) for r in structure.error_table(df, sub) if r["class"] == "all"]
         print_rows(rows, cols)
+    print("\n-- settings chosen in each outer fold (per parameter dD / dP / dH) and for the final fit --")
+    P = structure.load_params(str(base))
+    for k, fs in enumerate(list(P.fold_settings) + [P.settings]):
+        label = f"fold {k}" if k < len(P.fold_settings) else "final"
+        print(f"{label:>8}: huber epsilon {fs.epsilon}, alpha {fs.alpha}, squared {tuple(int(v) for v in fs.square)}, "
+              f"kernel power {fs.power}, lambda {fs.lam}")
     conf = [r for r in cvrows if r["class"] == "conflicting labels"]
     if conf:
         r = conf[0]

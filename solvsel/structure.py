@@ -6,12 +6,13 @@ does not cover (ions, salts and mixtures, metals, radicals), cuts the molecule
 into the groups of a method by substructure matching, and sums the group
 values.  Three estimates are made where they can be:
 
-* the project's own group-contribution model (``"solvsel-gc"``), a ridge
-  regression on group counts and volume-scaled group counts fitted to the HSP
-  datasets bundled with the ``chemicals`` library, validated by grouped k-fold
-  cross-validation (parameters in ``tables/gc_params.csv``, the training split
-  in ``tables/gc_training.csv``, the cross-validated errors by chemical class in
-  ``tables/gc_cv.csv``);
+* the project's own group-contribution model (``"solvsel-gc"``), a robust
+  (Huber) regression on volume-scaled group counts fitted to the HSP datasets
+  bundled with the ``chemicals`` library, with a similarity correction,
+  validated by nested grouped k-fold cross-validation (parameters in
+  ``tables/gc_params.csv``, the training split in
+  ``tables/gc_params_training.csv``, the cross-validated errors by chemical
+  class in ``tables/gc_params_cv.csv``);
 * the published Hoftyzer-Van Krevelen method (``"hoftyzer-van-krevelen"``) with
   the molar volume of Fedors [2]_, [3]_;
 * where ``chemicals`` knows the compound, an estimate from its physical
@@ -1110,6 +1111,8 @@ class OwnParams:
     square: tuple  # per parameter: fitted as its square?
     cv: dict  # class -> {"n", "mae_dD", ..., "q90_dD", ...}
     source: str
+    settings: object = None  # FitSettings of the final fit (kernel power and penalty used at estimate time)
+    fold_settings: tuple = ()  # FitSettings chosen in each outer fold of the nested CV
 
 
 @lru_cache(maxsize=8)
@@ -1125,6 +1128,7 @@ def load_params(path=None) -> OwnParams:
     if not p.is_file():
         raise InputError(f"--params: file '{p}' not found")
     terms, coefs, intercept, square, size, srcs = [], [], None, (False, False, False), None, set()
+    meta = {}
     with open(p, newline="", encoding="utf-8") as fh:
         reader = csv.DictReader(fh)
         missing = [c for c in _PARAM_COLUMNS if c not in (reader.fieldnames or [])]
@@ -1151,7 +1155,7 @@ def load_params(path=None) -> OwnParams:
             elif kind == "transform":
                 square = tuple(bool(v) for v in vals)
             elif kind == "meta":
-                continue
+                meta[row["term"]] = vals
             else:
                 raise TableError(p, f"unknown kind '{kind}' (atom, match, special, polar, size, intercept, transform, "
                                  "meta)",
@@ -1168,7 +1172,14 @@ def load_params(path=None) -> OwnParams:
                 else:
                     cv[row["class"]] = _cv_row(row)
     _own_compiled(tuple(terms))  # fail early on a bad SMARTS
-    return OwnParams(str(p), tuple(terms), np.vstack(coefs + [size]), intercept, square, cv, ";".join(sorted(srcs)))
+    settings = FitSettings.from_rows(dict(meta, square=square))
+    folds = []
+    while f"fold {len(folds)} huber epsilon" in meta:
+        k = len(folds)
+        folds.append(FitSettings.from_rows({n: meta[f"fold {k} {n}"] for n in FitSettings.ROWS
+                                            if f"fold {k} {n}" in meta}))
+    return OwnParams(str(p), tuple(terms), np.vstack(coefs + [size]), intercept, square, cv, ";".join(sorted(srcs)),
+                     settings, tuple(folds))
 
 
 @lru_cache(maxsize=8)
@@ -1214,7 +1225,7 @@ def own_model(smiles_or_mol, params=None, neighbours_on: bool = True) -> MethodE
     with :math:`n_i` the counts of the scheme's terms, :math:`V_x` the McGowan
     volume [cm^3/mol]; y is dD, dP, or the square of dH (see the ``transform``
     row of the parameter table).  Coefficients are fitted by Huber regression
-    (:func:`refit`).  The fitted residuals of the most similar training
+    (:func:`refit`), with settings chosen by cross-validation (:func:`select_settings`).  The fitted residuals of the most similar training
     compounds are then added through a kernel ridge correction
     (:func:`kernel_correction`); the three nearest are returned in ``neighbours``.
 
@@ -1241,7 +1252,7 @@ def own_model(smiles_or_mol, params=None, neighbours_on: bool = True) -> MethodE
     nd = _neighbour_data(P.path) if neighbours_on else None
     if nd is not None:
         fps, res, info = nd
-        delta, idx, sim = kernel_correction(fingerprint(mol), fps, res, k=10)
+        delta, idx, sim = kernel_correction(fingerprint(mol), fps, res, k=10, power=P.settings.power)
         y = np.clip(y + delta, 0, None)
         neighbours = tuple(
             {"smiles": info[i][0], "cas": info[i][1], "similarity": round(float(si), 3),
@@ -1264,26 +1275,63 @@ def own_model(smiles_or_mol, params=None, neighbours_on: bool = True) -> MethodE
 N_FOLDS = 10
 SEED = 20221  # fixed, so the recorded split can be regenerated
 
-#: Loss and penalty of the fit.  Huber's loss (quadratic within EPSILON
+#: Loss and penalty of the fit.  Huber's loss (quadratic within epsilon
 #: standard deviations, linear beyond) keeps a few doubtful labels from pulling
-#: the group values; ALPHA is its L2 penalty on standardised columns.  Chosen
-#: by the grouped cross-validation of the benchmark (ridge, Huber 1.1 / 1.35,
-#: alpha 0.01 .. 1): Huber lowered the dH error from 1.41 to 1.23 MPa^0.5.
-EPSILON = 1.1
-ALPHA = 0.1
-#: dD is fitted with an intercept; dP and dH^2 without (a molecule of no polar
-#: or hydrogen-bonding group gets ~0, as in the Hoftyzer-Van Krevelen form).
-INTERCEPT = (True, False, False)
-#: dD and dP are fitted as they are, dH as its square (hydrogen-bond cohesive
-#: energy per volume is what adds up by groups).
-SQUARE = (False, False, True)
+#: the group values; alpha is its L2 penalty on standardised columns.  None of
+#: these settings is fixed by hand: for each parameter (dD, dP, dH) the
+#: combination of epsilon, alpha and transform (the parameter or its square)
+#: is chosen from the grids below by an inner grouped cross-validation
+#: (:data:`INNER_FOLDS` folds) on the training compounds only, so the outer
+#: cross-validation that reports the errors is nested and never sees its test
+#: compounds while choosing (see :func:`select_settings`).
+HUBER_GRID = tuple((eps, alpha) for eps in (1.1, 1.35, 2.0) for alpha in (0.1, 1.0))
+#: Transforms tried per parameter: dD as it is; dP and dH as they are or as
+#: their squares (polar and hydrogen-bond cohesive energy per volume is what
+#: adds up by groups, Hoftyzer-Van Krevelen's form).
+SQUARE_CHOICES = ((False,), (False, True), (False, True))
 #: Similarity correction: kernel ridge regression of the group model's
 #: residuals on the training compounds, kernel = Tanimoto similarity of
-#: Morgan radius-2 fingerprints to the power KERNEL_POWER, penalty
-#: KERNEL_LAMBDA.  Chosen in the benchmark's grouped CV (power 1-3, penalty
-#: 0.3-3; a 5-nearest-neighbour mean did nearly as well): dP 1.79 -> 1.64.
+#: Morgan radius-2 fingerprints to a power p, penalty lambda; (p, lambda)
+#: chosen per parameter from this grid by the same inner cross-validation.
+KERNEL_GRID = tuple((p, lam) for p in (1.0, 2.0, 3.0) for lam in (0.1, 0.3, 1.0, 3.0))
+INNER_FOLDS = 5
+#: dD is fitted with an intercept; dP and dH without (a molecule of no polar
+#: or hydrogen-bonding group gets ~0, as in the Hoftyzer-Van Krevelen form).
+INTERCEPT = (True, False, False)
+#: Settings used when none are given (a parameter table written before the
+#: settings were recorded; tests of single fits).
+EPSILON = 1.1
+ALPHA = 0.1
+SQUARE = (False, False, True)
 KERNEL_POWER = 2.0
 KERNEL_LAMBDA = 0.3
+
+
+@dataclass(frozen=True)
+class FitSettings:
+    """Settings of one fit, one value per parameter (dD, dP, dH)."""
+
+    epsilon: tuple = (EPSILON,) * 3
+    alpha: tuple = (ALPHA,) * 3
+    square: tuple = SQUARE
+    power: tuple = (KERNEL_POWER,) * 3
+    lam: tuple = (KERNEL_LAMBDA,) * 3
+
+    ROWS = ("huber epsilon", "huber alpha", "square", "kernel power", "kernel lambda")
+
+    def rows(self):
+        """``(term, values)`` pairs as written to the parameter table."""
+        return list(zip(self.ROWS, (self.epsilon, self.alpha, tuple(int(s) for s in self.square), self.power,
+                                    self.lam)))
+
+    @classmethod
+    def from_rows(cls, rows: dict):
+        """From ``{term: (v_dD, v_dP, v_dH)}``; missing rows keep the defaults."""
+        d = cls()
+        get = lambda name, dflt: tuple(float(v) for v in rows.get(name, dflt))  # noqa: E731
+        return cls(get("huber epsilon", d.epsilon), get("huber alpha", d.alpha),
+                   tuple(bool(v) for v in get("square", d.square)), get("kernel power", d.power),
+                   get("kernel lambda", d.lam))
 
 
 def dataset_design(df, terms=None):
@@ -1304,29 +1352,50 @@ def dataset_design(df, terms=None):
     return own_design(C, V), C, V, np.array(ok)
 
 
-def _fit_one(X, y, intercept):
+def _fit_one(X, y, intercept, epsilon=EPSILON, alpha=ALPHA):
     """Huber regression on scaled columns; returns (intercept, coefficients on the raw columns)."""
-    import numpy as np
     from sklearn.linear_model import HuberRegressor
 
     sd = X.std(axis=0)
     sd[sd == 0] = 1.0
-    r = HuberRegressor(epsilon=EPSILON, alpha=ALPHA, fit_intercept=intercept, max_iter=5000).fit(X / sd, y)
+    r = HuberRegressor(epsilon=epsilon, alpha=alpha, fit_intercept=intercept, max_iter=5000).fit(X / sd, y)
     return float(r.intercept_) if intercept else 0.0, r.coef_ / sd
 
 
-def _fit(X, Y, terms=None):
-    """Fit dD, dP, dH; the "polar" terms (and only they) are left out of the dD and dH fits."""
+def _polar_mask(terms, ncol):
     import numpy as np
 
     terms = terms or OWN_TERMS
-    polar = np.array([t[2] == "polar" for t in terms] + [False])
+    return np.array([t[2] == "polar" for t in terms] + [False] * (ncol - len(terms)))
+
+
+def _fit_param(X, y, j, epsilon, alpha, square, polar):
+    """Fit parameter j (0 dD, 1 dP, 2 dH); the "polar" terms enter the dP fit only."""
+    import numpy as np
+
+    cols = np.ones(X.shape[1], bool) if j == 1 else ~polar
+    coef = np.zeros(X.shape[1])
+    icpt, coef[cols] = _fit_one(X[:, cols], y ** 2 if square else y, INTERCEPT[j], epsilon, alpha)
+    return icpt, coef
+
+
+def _predict_param(X, icpt, coef, square):
+    import numpy as np
+
+    y = icpt + X @ coef
+    return np.sqrt(np.clip(y, 0, None)) if square else np.clip(y, 0, None)
+
+
+def _fit(X, Y, terms=None, settings=None):
+    """Fit dD, dP, dH with ``settings`` (a :class:`FitSettings`; default settings if None)."""
+    import numpy as np
+
+    s = settings or FitSettings()
+    polar = _polar_mask(terms, X.shape[1])
     icpt = np.zeros(3)
     coef = np.zeros((X.shape[1], 3))
     for j in range(3):
-        y = Y[:, j] ** 2 if SQUARE[j] else Y[:, j]
-        cols = np.ones(X.shape[1], bool) if j == 1 else ~polar
-        icpt[j], coef[cols, j] = _fit_one(X[:, cols], y, INTERCEPT[j])
+        icpt[j], coef[:, j] = _fit_param(X, Y[:, j], j, s.epsilon[j], s.alpha[j], s.square[j], polar)
     return icpt, coef
 
 
@@ -1338,6 +1407,7 @@ def _predict(X, icpt, coef, square=SQUARE):
         if square[j]:
             Y[:, j] = np.sqrt(np.clip(Y[:, j], 0, None))
     return np.clip(Y, 0, None)
+
 
 
 def fingerprint(mol):
@@ -1360,28 +1430,37 @@ def similarity_matrix(fps_a, fps_b):
     return np.array([DataStructs.BulkTanimotoSimilarity(f, fps_b) for f in fps_a]).reshape(len(fps_a), len(fps_b))
 
 
-def kernel_dual(K_train, residuals):
+def _per_param(v):
+    return tuple(float(x) for x in v) if hasattr(v, "__len__") else (float(v),) * 3
+
+
+def kernel_dual(K_train, residuals, power=KERNEL_POWER, lam=KERNEL_LAMBDA):
     r"""Dual coefficients of the kernel ridge correction.
 
-    .. math:: a = (K^{\circ p} + \lambda I)^{-1} r
+    .. math:: a_j = (K^{\circ p_j} + \lambda_j I)^{-1} r_j
 
     with :math:`K` the Tanimoto similarities of the training compounds,
-    :math:`\circ p` the element-wise power KERNEL_POWER and
-    :math:`\lambda` = KERNEL_LAMBDA; r the residuals (n, 3) [MPa^0.5].
+    :math:`\circ p_j` the element-wise power and :math:`\lambda_j` the penalty
+    of parameter j (scalars or one per parameter); r the residuals (n, 3)
+    [MPa^0.5].
     """
     import numpy as np
 
     n = K_train.shape[0]
-    return np.linalg.solve(K_train ** KERNEL_POWER + KERNEL_LAMBDA * np.eye(n), residuals)
+    power, lam = _per_param(power), _per_param(lam)
+    out = np.zeros((n, residuals.shape[1]))
+    for j in range(residuals.shape[1]):
+        out[:, j] = np.linalg.solve(K_train ** power[j] + lam[j] * np.eye(n), residuals[:, j])
+    return out
 
 
-def kernel_correction(fp, train_fps, dual, k=3):
+def kernel_correction(fp, train_fps, dual, k=3, power=KERNEL_POWER):
     r"""Correction of the group estimate from the similar training compounds.
 
-    .. math:: \Delta = \sum_j s_j^p a_j
+    .. math:: \Delta_j = \sum_i s_i^{p_j} a_{ij}
 
-    with :math:`s_j` the Tanimoto similarity to training compound j and
-    :math:`a_j` its dual coefficient (:func:`kernel_dual`); a molecule like
+    with :math:`s_i` the Tanimoto similarity to training compound i and
+    :math:`a_{ij}` its dual coefficient (:func:`kernel_dual`); a molecule like
     none of the training compounds gets almost no correction.
 
     Returns ``(delta (3,), indices of the k most similar, their similarities)``.
@@ -1390,29 +1469,105 @@ def kernel_correction(fp, train_fps, dual, k=3):
     from rdkit import DataStructs
 
     sim = np.asarray(DataStructs.BulkTanimotoSimilarity(fp, train_fps))
-    delta = (sim ** KERNEL_POWER) @ dual
+    power = _per_param(power)
+    delta = np.array([(sim ** power[j]) @ dual[:, j] for j in range(dual.shape[1])])
     idx = np.argsort(-sim, kind="stable")[:k]
     return delta, idx, sim[idx]
 
 
-def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, similarity=True, terms=None):
-    """Grouped k-fold cross-validation of the own model.
+def _grouped_folds(keys, n_folds, seed):
+    from sklearn.model_selection import GroupKFold
+
+    import numpy as np
+
+    folds = np.full(len(keys), -1)
+    for k, (_, te) in enumerate(GroupKFold(n_splits=n_folds, shuffle=True, random_state=seed).split(
+            np.arange(len(keys)), groups=keys)):
+        folds[te] = k
+    return folds
+
+
+def select_settings(X, Y, K, keys, terms=None, n_folds=INNER_FOLDS, seed=SEED):
+    """Choose the fit settings by grouped cross-validation on the compounds given (and only those).
+
+    For each parameter, the Huber (epsilon, alpha) and transform of
+    :data:`HUBER_GRID` x :data:`SQUARE_CHOICES` with the lowest mean absolute
+    error of the groups-only out-of-fold prediction is taken; then, with that
+    fit, the kernel (power, lambda) of :data:`KERNEL_GRID` with the lowest
+    error of the corrected prediction.  Ties go to the first in grid order.
+    Called on the training part of each outer fold (nested cross-validation)
+    and on every fitted compound for the final parameters.
+
+    Parameters
+    ----------
+    X : ndarray (n, m) design rows; Y : ndarray (n, 3) labels [MPa^0.5];
+    K : ndarray (n, n) Tanimoto similarities among these compounds;
+    keys : grouping keys (one structure, one key)
+
+    Returns
+    -------
+    FitSettings
+    """
+    import numpy as np
+
+    folds = _grouped_folds(np.asarray(keys), n_folds, seed)
+    polar = _polar_mask(terms, X.shape[1])
+    n = len(Y)
+    chosen = {"epsilon": [], "alpha": [], "square": [], "power": [], "lam": []}
+    eig = {}  # (fold, power) -> eigen-decomposition of the training kernel, shared by the three parameters
+    for j in range(3):
+        configs = [(e, a, sq) for sq in SQUARE_CHOICES[j] for e, a in HUBER_GRID]
+        base = np.zeros((len(configs), n))
+        fits = {}
+        for k in range(n_folds):
+            tr, te = folds != k, folds == k
+            for c, (e, a, sq) in enumerate(configs):
+                icpt, coef = _fit_param(X[tr], Y[tr, j], j, e, a, sq, polar)
+                base[c, te] = _predict_param(X[te], icpt, coef, sq)
+                fits[c, k] = (icpt, coef)
+        best = int(np.argmin(np.abs(base - Y[:, j]).mean(axis=1)))
+        e, a, sq = configs[best]
+        kern = np.zeros((len(KERNEL_GRID), n))
+        for k in range(n_folds):
+            tr, te = np.where(folds != k)[0], np.where(folds == k)[0]
+            icpt, coef = fits[best, k]
+            r = Y[tr, j] - _predict_param(X[tr], icpt, coef, sq)
+            for p in sorted({p for p, _ in KERNEL_GRID}):
+                if (k, p) not in eig:
+                    eig[k, p] = np.linalg.eigh(K[np.ix_(tr, tr)] ** p)
+                w, vec = eig[k, p]
+                proj = vec.T @ r
+                Kte = K[np.ix_(te, tr)] ** p
+                for c, (pp, lam) in enumerate(KERNEL_GRID):
+                    if pp == p:
+                        kern[c, te] = np.clip(base[best, te] + Kte @ (vec @ (proj / (w + lam))), 0, None)
+        kbest = int(np.argmin(np.abs(kern - Y[:, j]).mean(axis=1)))
+        for name, v in zip(("epsilon", "alpha", "square", "power", "lam"), (e, a, sq, *KERNEL_GRID[kbest])):
+            chosen[name].append(v)
+    return FitSettings(**{k: tuple(v) for k, v in chosen.items()})
+
+
+def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, similarity=True, terms=None, K=None, nested=True,
+                   progress=None):
+    """Grouped, nested k-fold cross-validation of the own model.
 
     Each compound (one structure, see :func:`training_data`) is one group, so
     no structure is in the training and the test part of a fold at once.
     Compounds marked ``conflict`` get a fold and an out-of-fold prediction but
-    are never fitted on.  The similarity correction of a test compound uses
-    only that fold's training compounds and their residuals under that fold's
-    fit.
+    are never fitted on.  Within each outer fold the settings are chosen by
+    :func:`select_settings` on that fold's training compounds only (``nested``;
+    else the default settings); the similarity correction of a test compound
+    uses only that fold's training compounds and their residuals under that
+    fold's fit.
 
     Returns
     -------
     folds : ndarray of int (fold of each compound, -1 if not covered)
     pred : ndarray (n, 3) out-of-fold predictions [MPa^0.5] (NaN if not covered)
-    base : ndarray (n, 3) the same without the neighour correction
+    base : ndarray (n, 3) the same without the similarity correction
+    settings : list of FitSettings, one per outer fold
     """
     import numpy as np
-    from sklearn.model_selection import GroupKFold
 
     Chem = _rdkit()
     Y = df[["dD", "dP", "dH"]].to_numpy(float)
@@ -1422,21 +1577,28 @@ def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, similarity=True, 
     pred = np.full((len(df), 3), np.nan)
     base = np.full((len(df), 3), np.nan)
     fitted = covered & ~df["conflict"].to_numpy(bool)
-    if similarity:
+    if K is None and (similarity or nested):
         fps = [fingerprint(Chem.MolFromSmiles(s)) for s in df["smiles"]]
         K = similarity_matrix(fps, fps)
-    for k, (_, te) in enumerate(GroupKFold(n_splits=n_folds, shuffle=True, random_state=seed).split(idx, groups=keys[idx])):
-        folds[idx[te]] = k
+    folds[idx] = _grouped_folds(keys[idx], n_folds, seed)
+    settings = []
     for k in range(n_folds):
         tr = np.where(fitted & (folds != k) & (folds >= 0))[0]
         te = np.where(folds == k)[0]
-        icpt, coef = _fit(X[tr], Y[tr], terms)
-        base[te] = _predict(X[te], icpt, coef)
+        if progress:
+            progress(f"outer fold {k + 1} of {n_folds}")
+        s = select_settings(X[tr], Y[tr], K[np.ix_(tr, tr)], keys[tr], terms, seed=seed + 1 + k) if nested \
+            else FitSettings()
+        settings.append(s)
+        icpt, coef = _fit(X[tr], Y[tr], terms, s)
+        base[te] = _predict(X[te], icpt, coef, s.square)
         pred[te] = base[te]
         if similarity:
-            dual = kernel_dual(K[np.ix_(tr, tr)], Y[tr] - _predict(X[tr], icpt, coef))
-            pred[te] = np.clip(base[te] + (K[np.ix_(te, tr)] ** KERNEL_POWER) @ dual, 0, None)
-    return folds, pred, base
+            dual = kernel_dual(K[np.ix_(tr, tr)], Y[tr] - _predict(X[tr], icpt, coef, s.square), s.power, s.lam)
+            corr = np.column_stack([(K[np.ix_(te, tr)] ** s.power[j]) @ dual[:, j] for j in range(3)])
+            pred[te] = np.clip(base[te] + corr, 0, None)
+    return folds, pred, base, settings
+
 
 
 def error_table(df, preds: dict, mask=None):
@@ -1503,6 +1665,14 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
     Hoftyzer-Van Krevelen on the same compounds).  Never overwrites a file
     unless ``force``.
 
+    The cross-validation is nested: in each of the ``n_folds`` outer folds the
+    settings (Huber epsilon and alpha, transform, kernel power and penalty) are
+    chosen by :func:`select_settings` on that fold's training compounds, and
+    only then is the fold's test part predicted; the settings chosen in each
+    fold are recorded in the parameter table (``fold k ...`` meta rows).  The
+    final parameters use settings chosen the same way on every fitted compound.
+    Takes a few minutes (about 1,700 Huber fits).
+
     Parameters
     ----------
     out : str or Path
@@ -1536,19 +1706,22 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
     df["chem_class"] = [chemical_class(s) for s in df["smiles"]]
     say(f"{len(df)} compounds; counting groups")
     X, _, _, covered = dataset_design(df, terms)
-    say("cross-validating")
-    folds, cvpred, cvbase = cross_validate(df, X, covered, n_folds, seed, terms=terms)
+    fps = [fingerprint(_rdkit().MolFromSmiles(s)) for s in df["smiles"]]
+    K = similarity_matrix(fps, fps)
+    say(f"nested cross-validation ({n_folds} outer folds, settings chosen in {INNER_FOLDS} inner folds)")
+    folds, cvpred, cvbase, fold_settings = cross_validate(df, X, covered, n_folds, seed, terms=terms, K=K,
+                                                          progress=say)
     fitted = covered & ~df["conflict"].to_numpy(bool)
     Y = df[["dD", "dP", "dH"]].to_numpy(float)
-    say("fitting on every compound")
-    icpt, coef = _fit(X[fitted], Y[fitted], terms)
-    resid = np.full((len(df), 3), np.nan)
-    resid[fitted] = Y[fitted] - _predict(X[fitted], icpt, coef)
-    say("similarity correction")
     fi = np.where(fitted)[0]
-    fps = [fingerprint(_rdkit().MolFromSmiles(df["smiles"][i])) for i in fi]
+    say("choosing the settings on every compound and fitting")
+    settings = select_settings(X[fi], Y[fi], K[np.ix_(fi, fi)], df["key"].to_numpy()[fi], terms, seed=seed)
+    icpt, coef = _fit(X[fitted], Y[fitted], terms, settings)
+    resid = np.full((len(df), 3), np.nan)
+    resid[fitted] = Y[fitted] - _predict(X[fitted], icpt, coef, settings.square)
+    say("similarity correction")
     dual = np.full((len(df), 3), np.nan)
-    dual[fi] = kernel_dual(similarity_matrix(fps, fps), resid[fi])
+    dual[fi] = kernel_dual(K[np.ix_(fi, fi)], resid[fi], settings.power, settings.lam)
     say("scoring the published method on the same compounds")
     pub = published_predictions(df)
     preds = {OWN_METHOD: cvpred, OWN_METHOD + " (groups only)": cvbase, **pub}
@@ -1571,10 +1744,17 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
             w.writerow([name, kind, smarts, owned, *(f"{v:.8g}" for v in c), src])
         w.writerow(["100/Vx", "size", "", 0, *(f"{v:.8g}" for v in coef[-1]), src])
         w.writerow(["intercept", "intercept", "", 0, *(f"{v:.8g}" for v in icpt), src])
-        w.writerow(["square", "transform", "", 0, *(int(s) for s in SQUARE), src])
+        w.writerow(["square", "transform", "", 0, *(int(s) for s in settings.square), src])
         w.writerow(["intercept fitted", "meta", "", 0, *(int(v) for v in INTERCEPT), src])
-        w.writerow([f"huber epsilon={EPSILON} alpha={ALPHA}; kernel power={KERNEL_POWER} lambda={KERNEL_LAMBDA}; "
-                    f"folds={n_folds} seed={seed} fitted={int(fitted.sum())}", "meta", "", 0, 0, 0, 0, src])
+        for name, vals in settings.rows():
+            if name != "square":
+                w.writerow([name, "meta", "", 0, *(f"{v:g}" for v in vals), src])
+        w.writerow([f"settings chosen by {INNER_FOLDS}-fold grouped CV from huber (epsilon, alpha) {list(HUBER_GRID)}, "
+                    f"kernel (power, lambda) {list(KERNEL_GRID)}; outer folds={n_folds} seed={seed} "
+                    f"fitted={int(fitted.sum())}", "meta", "", 0, 0, 0, 0, src])
+        for k, fs in enumerate(fold_settings):
+            for name, vals in fs.rows():
+                w.writerow([f"fold {k} {name}", "meta", "", 0, *(f"{v:g}" for v in vals), src])
     with open(tmp[1], "w", newline="", encoding="utf-8") as fh:
         w = csv.writer(fh, lineterminator="\n")
         w.writerow(["key", "smiles", "cas", "dD" + _U, "dP" + _U, "dH" + _U, "n_sources", "max_ra" + _U, "conflict",

@@ -82,8 +82,8 @@ def _refit(args) -> int:
     rows = [r for r in res["table"] if r["class"] == "all"]
     print_table(rows, [("method", "method"), ("n", "n"), ("mae_dD", "MAE dD", ".2f"), ("mae_dP", "MAE dP", ".2f"),
                        ("mae_dH", "MAE dH", ".2f"), ("mae_ra", "mean Ra", ".2f")])
-    print("\nMean absolute errors in MPa^0.5 against the data sets (the fitted model out of fold, grouped 10-fold "
-          "CV): solvsel-gc on every compound it covers; 'same compounds', 'groups only' and Hoftyzer-Van Krevelen "
+    print("\nMean absolute errors in MPa^0.5 against the data sets (the fitted model out of fold, nested grouped "
+          "10-fold CV: settings chosen on inner folds of each training part): solvsel-gc on every compound it covers; 'same compounds', 'groups only' and Hoftyzer-Van Krevelen "
           "on the compounds both group methods cover; properties where the library has the data.")
     print(f"Use it with: solvsel estimate --params {args.refit} SMILES")
     return 0
