@@ -1205,7 +1205,7 @@ def _neighbour_data(params_path: str):
                          *(float(row[f"{k}{_U}"]) for k in ("dD", "dP", "dH")), row["key"]))
     if not fps:
         return None
-    return fps, np.array(res), tuple(info)
+    return ([f[0] for f in fps], [f[1] for f in fps]), np.array(res), tuple(info)
 
 
 def _cv_row(row) -> dict:
@@ -1252,7 +1252,8 @@ def own_model(smiles_or_mol, params=None, neighbours_on: bool = True) -> MethodE
     nd = _neighbour_data(P.path) if neighbours_on else None
     if nd is not None:
         fps, res, info = nd
-        delta, idx, sim = kernel_correction(fingerprint(mol), fps, res, k=10, power=P.settings.power)
+        delta, idx, sim = kernel_correction(fingerprint(mol), fps, res, k=10, power=P.settings.power,
+                                            kind=P.settings.fp)
         y = np.clip(y + delta, 0, None)
         neighbours = tuple(
             {"smiles": info[i][0], "cas": info[i][1], "similarity": round(float(si), 3),
@@ -1291,9 +1292,10 @@ HUBER_GRID = tuple((eps, alpha) for eps in (1.1, 1.35, 2.0) for alpha in (0.1, 1
 SQUARE_CHOICES = ((False,), (False, True), (False, True))
 #: Similarity correction: kernel ridge regression of the group model's
 #: residuals on the training compounds, kernel = Tanimoto similarity of
-#: Morgan radius-2 fingerprints to a power p, penalty lambda; (p, lambda)
-#: chosen per parameter from this grid by the same inner cross-validation.
-KERNEL_GRID = tuple((p, lam) for p in (1.0, 2.0, 3.0) for lam in (0.1, 0.3, 1.0, 3.0))
+#: Morgan radius-2 fingerprints (0: 2048 bits; 1: counts, min-max Tanimoto)
+#: to a power p, penalty lambda; (fingerprint, p, lambda) chosen per parameter
+#: from this grid by the same inner cross-validation.
+KERNEL_GRID = tuple((f, p, lam) for f in (0, 1) for p in (1.0, 2.0, 3.0) for lam in (0.1, 0.3, 1.0, 3.0))
 INNER_FOLDS = 5
 #: dD is fitted with an intercept; dP and dH without (a molecule of no polar
 #: or hydrogen-bonding group gets ~0, as in the Hoftyzer-Van Krevelen form).
@@ -1316,13 +1318,14 @@ class FitSettings:
     square: tuple = SQUARE
     power: tuple = (KERNEL_POWER,) * 3
     lam: tuple = (KERNEL_LAMBDA,) * 3
+    fp: tuple = (0, 0, 0)  # fingerprint of the kernel: 0 bits, 1 counts
 
-    ROWS = ("huber epsilon", "huber alpha", "square", "kernel power", "kernel lambda")
+    ROWS = ("huber epsilon", "huber alpha", "square", "kernel power", "kernel lambda", "kernel fingerprint")
 
     def rows(self):
         """``(term, values)`` pairs as written to the parameter table."""
         return list(zip(self.ROWS, (self.epsilon, self.alpha, tuple(int(s) for s in self.square), self.power,
-                                    self.lam)))
+                                    self.lam, tuple(int(f) for f in self.fp))))
 
     @classmethod
     def from_rows(cls, rows: dict):
@@ -1331,7 +1334,7 @@ class FitSettings:
         get = lambda name, dflt: tuple(float(v) for v in rows.get(name, dflt))  # noqa: E731
         return cls(get("huber epsilon", d.epsilon), get("huber alpha", d.alpha),
                    tuple(bool(v) for v in get("square", d.square)), get("kernel power", d.power),
-                   get("kernel lambda", d.lam))
+                   get("kernel lambda", d.lam), tuple(int(v) for v in get("kernel fingerprint", d.fp)))
 
 
 def dataset_design(df, terms=None):
@@ -1411,7 +1414,7 @@ def _predict(X, icpt, coef, square=SQUARE):
 
 
 def fingerprint(mol):
-    """Morgan radius-2 bit fingerprint (2048 bits) used for the similarity correction."""
+    """Morgan radius-2 fingerprints used for the similarity correction: ``(2048 bits, sparse counts)``."""
     from rdkit.Chem import rdFingerprintGenerator
 
     global _FPGEN
@@ -1419,60 +1422,77 @@ def fingerprint(mol):
         gen = _FPGEN
     except NameError:
         gen = _FPGEN = rdFingerprintGenerator.GetMorganGenerator(radius=2, fpSize=2048)
-    return gen.GetFingerprint(mol)
+    return gen.GetFingerprint(mol), gen.GetSparseCountFingerprint(mol)
 
 
 def similarity_matrix(fps_a, fps_b):
-    """Tanimoto similarities between two lists of fingerprints, shape (len(a), len(b))."""
+    """Tanimoto similarities between two lists of :func:`fingerprint` pairs, shape (2, len(a), len(b)).
+
+    Axis 0 is the fingerprint: 0 bits (Tanimoto), 1 counts (min-max Tanimoto).
+    """
     import numpy as np
     from rdkit import DataStructs
 
-    return np.array([DataStructs.BulkTanimotoSimilarity(f, fps_b) for f in fps_a]).reshape(len(fps_a), len(fps_b))
+    out = np.zeros((2, len(fps_a), len(fps_b)))
+    for f in (0, 1):
+        other = [b[f] for b in fps_b]
+        for i, a in enumerate(fps_a):
+            out[f, i] = DataStructs.BulkTanimotoSimilarity(a[f], other)
+    return out
 
 
 def _per_param(v):
     return tuple(float(x) for x in v) if hasattr(v, "__len__") else (float(v),) * 3
 
 
-def kernel_dual(K_train, residuals, power=KERNEL_POWER, lam=KERNEL_LAMBDA):
+def kernel_dual(K_train, residuals, power=KERNEL_POWER, lam=KERNEL_LAMBDA, fp=(0, 0, 0)):
     r"""Dual coefficients of the kernel ridge correction.
 
-    .. math:: a_j = (K^{\circ p_j} + \lambda_j I)^{-1} r_j
+    .. math:: a_j = (K_{f_j}^{\circ p_j} + \lambda_j I)^{-1} r_j
 
-    with :math:`K` the Tanimoto similarities of the training compounds,
+    with :math:`K_f` the Tanimoto similarities of the training compounds by
+    fingerprint :math:`f_j` (:func:`similarity_matrix`, shape (2, n, n)),
     :math:`\circ p_j` the element-wise power and :math:`\lambda_j` the penalty
     of parameter j (scalars or one per parameter); r the residuals (n, 3)
     [MPa^0.5].
     """
     import numpy as np
 
-    n = K_train.shape[0]
+    n = K_train.shape[-1]
     power, lam = _per_param(power), _per_param(lam)
     out = np.zeros((n, residuals.shape[1]))
     for j in range(residuals.shape[1]):
-        out[:, j] = np.linalg.solve(K_train ** power[j] + lam[j] * np.eye(n), residuals[:, j])
+        out[:, j] = np.linalg.solve(K_train[int(fp[j])] ** power[j] + lam[j] * np.eye(n), residuals[:, j])
     return out
 
 
-def kernel_correction(fp, train_fps, dual, k=3, power=KERNEL_POWER):
+def kernel_correction(fp, train_fps, dual, k=3, power=KERNEL_POWER, kind=(0, 0, 0)):
     r"""Correction of the group estimate from the similar training compounds.
 
-    .. math:: \Delta_j = \sum_i s_i^{p_j} a_{ij}
+    .. math:: \Delta_j = \sum_i s_{f_j, i}^{p_j} a_{ij}
 
-    with :math:`s_i` the Tanimoto similarity to training compound i and
-    :math:`a_{ij}` its dual coefficient (:func:`kernel_dual`); a molecule like
-    none of the training compounds gets almost no correction.
+    with :math:`s_{f,i}` the Tanimoto similarity to training compound i by
+    fingerprint f (0 bits, 1 counts; ``fp`` and ``train_fps`` are
+    :func:`fingerprint` pairs) and :math:`a_{ij}` its dual coefficient
+    (:func:`kernel_dual`); a molecule like none of the training compounds gets
+    almost no correction.
 
-    Returns ``(delta (3,), indices of the k most similar, their similarities)``.
+    ``train_fps`` may also be given as a pair of lists (bits, counts), which is faster.
+
+    Returns ``(delta (3,), indices of the k most similar, their similarities)``
+    (similarity by the bit fingerprint).
     """
     import numpy as np
     from rdkit import DataStructs
 
-    sim = np.asarray(DataStructs.BulkTanimotoSimilarity(fp, train_fps))
+    if not (isinstance(train_fps, tuple) and len(train_fps) == 2 and isinstance(train_fps[0], list)):
+        train_fps = ([t[0] for t in train_fps], [t[1] for t in train_fps])
+    sims = [np.asarray(DataStructs.BulkTanimotoSimilarity(fp[f], train_fps[f]))
+            if f in kind or f == 0 else None for f in (0, 1)]
     power = _per_param(power)
-    delta = np.array([(sim ** power[j]) @ dual[:, j] for j in range(dual.shape[1])])
-    idx = np.argsort(-sim, kind="stable")[:k]
-    return delta, idx, sim[idx]
+    delta = np.array([(sims[int(kind[j])] ** power[j]) @ dual[:, j] for j in range(dual.shape[1])])
+    idx = np.argsort(-sims[0], kind="stable")[:k]
+    return delta, idx, sims[0][idx]
 
 
 def _grouped_folds(keys, n_folds, seed):
@@ -1493,7 +1513,7 @@ def select_settings(X, Y, K, keys, terms=None, n_folds=INNER_FOLDS, seed=SEED):
     For each parameter, the Huber (epsilon, alpha) and transform of
     :data:`HUBER_GRID` x :data:`SQUARE_CHOICES` with the lowest mean absolute
     error of the groups-only out-of-fold prediction is taken; then, with that
-    fit, the kernel (power, lambda) of :data:`KERNEL_GRID` with the lowest
+    fit, the kernel (fingerprint, power, lambda) of :data:`KERNEL_GRID` with the lowest
     error of the corrected prediction.  Ties go to the first in grid order.
     Called on the training part of each outer fold (nested cross-validation)
     and on every fitted compound for the final parameters.
@@ -1501,7 +1521,7 @@ def select_settings(X, Y, K, keys, terms=None, n_folds=INNER_FOLDS, seed=SEED):
     Parameters
     ----------
     X : ndarray (n, m) design rows; Y : ndarray (n, 3) labels [MPa^0.5];
-    K : ndarray (n, n) Tanimoto similarities among these compounds;
+    K : ndarray (2, n, n) Tanimoto similarities among these compounds (:func:`similarity_matrix`);
     keys : grouping keys (one structure, one key)
 
     Returns
@@ -1513,7 +1533,7 @@ def select_settings(X, Y, K, keys, terms=None, n_folds=INNER_FOLDS, seed=SEED):
     folds = _grouped_folds(np.asarray(keys), n_folds, seed)
     polar = _polar_mask(terms, X.shape[1])
     n = len(Y)
-    chosen = {"epsilon": [], "alpha": [], "square": [], "power": [], "lam": []}
+    chosen = {"epsilon": [], "alpha": [], "square": [], "fp": [], "power": [], "lam": []}
     eig = {}  # (fold, power) -> eigen-decomposition of the training kernel, shared by the three parameters
     for j in range(3):
         configs = [(e, a, sq) for sq in SQUARE_CHOICES[j] for e, a in HUBER_GRID]
@@ -1532,17 +1552,17 @@ def select_settings(X, Y, K, keys, terms=None, n_folds=INNER_FOLDS, seed=SEED):
             tr, te = np.where(folds != k)[0], np.where(folds == k)[0]
             icpt, coef = fits[best, k]
             r = Y[tr, j] - _predict_param(X[tr], icpt, coef, sq)
-            for p in sorted({p for p, _ in KERNEL_GRID}):
-                if (k, p) not in eig:
-                    eig[k, p] = np.linalg.eigh(K[np.ix_(tr, tr)] ** p)
-                w, vec = eig[k, p]
+            for f, p in sorted({(f, p) for f, p, _ in KERNEL_GRID}):
+                if (k, f, p) not in eig:
+                    eig[k, f, p] = np.linalg.eigh(K[f][np.ix_(tr, tr)] ** p)
+                w, vec = eig[k, f, p]
                 proj = vec.T @ r
-                Kte = K[np.ix_(te, tr)] ** p
-                for c, (pp, lam) in enumerate(KERNEL_GRID):
-                    if pp == p:
+                Kte = K[f][np.ix_(te, tr)] ** p
+                for c, (ff, pp, lam) in enumerate(KERNEL_GRID):
+                    if (ff, pp) == (f, p):
                         kern[c, te] = np.clip(base[best, te] + Kte @ (vec @ (proj / (w + lam))), 0, None)
         kbest = int(np.argmin(np.abs(kern - Y[:, j]).mean(axis=1)))
-        for name, v in zip(("epsilon", "alpha", "square", "power", "lam"), (e, a, sq, *KERNEL_GRID[kbest])):
+        for name, v in zip(("epsilon", "alpha", "square", "fp", "power", "lam"), (e, a, sq, *KERNEL_GRID[kbest])):
             chosen[name].append(v)
     return FitSettings(**{k: tuple(v) for k, v in chosen.items()})
 
@@ -1587,15 +1607,16 @@ def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, similarity=True, 
         te = np.where(folds == k)[0]
         if progress:
             progress(f"outer fold {k + 1} of {n_folds}")
-        s = select_settings(X[tr], Y[tr], K[np.ix_(tr, tr)], keys[tr], terms, seed=seed + 1 + k) if nested \
+        s = select_settings(X[tr], Y[tr], K[:, tr][:, :, tr], keys[tr], terms, seed=seed + 1 + k) if nested \
             else FitSettings()
         settings.append(s)
         icpt, coef = _fit(X[tr], Y[tr], terms, s)
         base[te] = _predict(X[te], icpt, coef, s.square)
         pred[te] = base[te]
         if similarity:
-            dual = kernel_dual(K[np.ix_(tr, tr)], Y[tr] - _predict(X[tr], icpt, coef, s.square), s.power, s.lam)
-            corr = np.column_stack([(K[np.ix_(te, tr)] ** s.power[j]) @ dual[:, j] for j in range(3)])
+            dual = kernel_dual(K[:, tr][:, :, tr], Y[tr] - _predict(X[tr], icpt, coef, s.square), s.power, s.lam,
+                               s.fp)
+            corr = np.column_stack([(K[s.fp[j]][np.ix_(te, tr)] ** s.power[j]) @ dual[:, j] for j in range(3)])
             pred[te] = np.clip(base[te] + corr, 0, None)
     return folds, pred, base, settings
 
@@ -1715,13 +1736,13 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
     Y = df[["dD", "dP", "dH"]].to_numpy(float)
     fi = np.where(fitted)[0]
     say("choosing the settings on every compound and fitting")
-    settings = select_settings(X[fi], Y[fi], K[np.ix_(fi, fi)], df["key"].to_numpy()[fi], terms, seed=seed)
+    settings = select_settings(X[fi], Y[fi], K[:, fi][:, :, fi], df["key"].to_numpy()[fi], terms, seed=seed)
     icpt, coef = _fit(X[fitted], Y[fitted], terms, settings)
     resid = np.full((len(df), 3), np.nan)
     resid[fitted] = Y[fitted] - _predict(X[fitted], icpt, coef, settings.square)
     say("similarity correction")
     dual = np.full((len(df), 3), np.nan)
-    dual[fi] = kernel_dual(K[np.ix_(fi, fi)], resid[fi], settings.power, settings.lam)
+    dual[fi] = kernel_dual(K[:, fi][:, :, fi], resid[fi], settings.power, settings.lam, settings.fp)
     say("scoring the published method on the same compounds")
     pub = published_predictions(df)
     preds = {OWN_METHOD: cvpred, OWN_METHOD + " (groups only)": cvbase, **pub}
@@ -1750,7 +1771,8 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
             if name != "square":
                 w.writerow([name, "meta", "", 0, *(f"{v:g}" for v in vals), src])
         w.writerow([f"settings chosen by {INNER_FOLDS}-fold grouped CV from huber (epsilon, alpha) {list(HUBER_GRID)}, "
-                    f"kernel (power, lambda) {list(KERNEL_GRID)}; outer folds={n_folds} seed={seed} "
+                    f"kernel (fingerprint 0 bits 1 counts, power, lambda) {list(KERNEL_GRID)}; outer folds={n_folds} "
+                    f"seed={seed} "
                     f"fitted={int(fitted.sum())}", "meta", "", 0, 0, 0, 0, src])
         for k, fs in enumerate(fold_settings):
             for name, vals in fs.rows():
