@@ -39,6 +39,18 @@ async def _settle(app, pilot):
     await pilot.pause()
 
 
+async def _until(pilot, condition, seconds: float = 10.0):
+    """Let the app run until ``condition()`` holds (focus changes and dialogs take a few
+    turns of the event loop, more on a loaded machine); fail with a clear message if not."""
+    import time
+
+    end = time.monotonic() + seconds
+    while not condition():
+        if time.monotonic() > end:
+            raise AssertionError(f"condition not reached within {seconds} s")
+        await pilot.pause(0.05)
+
+
 def _cells(grid, row):
     return [str(c) for c in grid.get_row_at(row)]
 
@@ -199,23 +211,21 @@ def test_target_screen_smiles_typed_numbers_dialogs_and_map():
             for _ in range(2):  # the third way: from a structure
                 await pilot.press("ctrl+t")
                 await pilot.pause()
-            assert screen.query_one("#target-tabs").active == "from-smiles"
-            assert screen.focused is screen.query_one("#smiles")
+            await _until(pilot, lambda: screen.query_one("#target-tabs").active == "from-smiles")
+            await _until(pilot, lambda: screen.focused is screen.query_one("#smiles"))
             await pilot.press(*"C1CC((")  # unclosed branch and ring: not a molecule
             await pilot.press("enter")
-            await pilot.pause()
-            assert isinstance(app.screen, ErrorDialog)
+            await _until(pilot, lambda: isinstance(app.screen, ErrorDialog))
             assert app.screen.error_title == "Bad input"
             assert "SMILES" in app.screen.error_message
             await pilot.press("escape")
-            await pilot.pause()
-            assert app.screen is screen
+            await _until(pilot, lambda: app.screen is screen)
             assert app.session.target is before
 
             # a good SMILES becomes an estimated target, with the estimate's numbers
             screen.query_one("#smiles").value = "CC1=CCC(CC1)C(=C)C"  # limonene
             screen.press("use-smiles")
-            await pilot.pause()
+            await _until(pilot, lambda: app.session.target is not before)
             e = estimate("CC1=CCC(CC1)C(=C)C")
             t = app.session.target
             assert t.basis == "estimated" and (t.dD, t.dP, t.dH) == pytest.approx((e.dD, e.dP, e.dH))
@@ -223,7 +233,7 @@ def test_target_screen_smiles_typed_numbers_dialogs_and_map():
             # typed numbers with R0; the map then draws the sphere's section around the target
             screen.query_one("#typed-hsp").value = "17.0, 3.0, 8.0, 8.0"
             screen.press("use-typed")
-            await pilot.pause()
+            await _until(pilot, lambda: app.session.target.r0 == 8.0)
             assert (app.session.target.dD, app.session.target.r0) == (17.0, 8.0)
             await pilot.press("f4")
             await _settle(app, pilot)
