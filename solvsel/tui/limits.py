@@ -41,7 +41,7 @@ class LimitsScreen(BenchScreen):
                 yield Input(id="lim-formula", compact=True)
                 yield Label("Dose in the first stage (0.15%, 1500ppm)")
                 yield Input(id="lim-dose", compact=True)
-                yield Label("Dilution chain (syrup 1+5 water ...)")
+                yield Label("Dilution chain (syrup d=1.28; drink 1+5v)")
                 yield Input(id="lim-chain", compact=True)
                 yield Label("Food category as consumed")
                 yield Input(id="lim-category", compact=True)
