@@ -75,3 +75,43 @@ def test_demo_scenario_is_marked_demo():
     assert s.source == "demo" and "fictional" in s.company
     load_catalog().solute(s.solute, library=False)
     assert len(demo_steps(s)) == 6
+
+
+# The JSON contract of ../DESIGN.md: the documented examples, with the fields other tools rely on.
+CONTRACT = [
+    (["rank", "--hsp", "17.0,3.0,8.0,8.0", "--temp", "40"], None, {"target", "results"},
+     ("results", {"name", "cas", "ra", "red"})),
+    (["rank", "--like", "n-hexane", "--food"], None, {"target", "results"}, ("results", {"name", "cas", "ra", "red"})),
+    (["blend", "--hsp", "17.5,6.0,10.0", "--max-components", "3", "--only", "ethanol,water,triacetin"], None,
+     {"target", "results"}, ("results", {"components", "dD", "dP", "dH", "ra", "red", "one_phase", "cautions"})),
+    (["miscible", "water", "ethyl acetate"], None, {"liquids", "one_phase", "basis", "window", "chi", "chi_critical"}, None),
+    (["estimate", "CC1=CCC(CC1)C(=C)C"], None, {"smiles", "dD", "dP", "dH", "vm", "method", "groups", "uncertainty"}, None),
+    (["fit", "examples/bench_graded.csv", "--good-at-most", "2"], None, {"dD", "dP", "dH", "r0", "fit", "wrong_side", "interval"}, None),
+    (["hlb", "--oil", "d-limonene=70,medium-chain triglycerides=30", "--emulsifiers", "polysorbate 80,sorbitan monooleate"],
+     None, {"required_hlb", "pairs"}, ("pairs", {"a", "b", "fraction_a", "fraction_b", "hlb"})),
+    (["emulsion", "--oil", "d-limonene=70,sucrose acetate isobutyrate=30", "--brix", "11", "--dilution", "500",
+      "--droplet-um", "0.4"], None,
+     {"beverage_density", "oil_phase_density", "agent_level_ppm", "agent_limit_ppm", "creaming_mm_per_day"}, None),
+    (["dose", "--formula", "propylene glycol=90,vanillin=10", "--dose", "0.15%", "--category", "beverages",
+      "--jurisdiction", "EU"], None, {"stages", "limits", "max_dose"},
+     ("limits", {"rule", "substance", "level", "limit", "unit", "binds", "ok"})),
+]
+
+
+@pytest.mark.parametrize("argv,_,top,inner", CONTRACT, ids=[c[0][0] + "-" + c[0][1] for c in CONTRACT])
+def test_json_contract(capsys, monkeypatch, argv, _, top, inner):
+    from pathlib import Path
+
+    monkeypatch.chdir(Path(__file__).resolve().parents[1])
+    doc = run_json(capsys, argv)
+    assert top <= set(doc), top - set(doc)
+    if inner:
+        key, fields = inner
+        assert doc[key], f"{key} is empty"
+        assert fields <= set(doc[key][0]), fields - set(doc[key][0])
+    if argv[0] == "dose":
+        assert {"name", "levels"} <= set(doc["stages"][0])
+    if argv[0] == "blend":
+        assert {"name", "cas", "volume_fraction", "mass_fraction"} <= set(doc["results"][0]["components"][0])
+    if argv[0] == "miscible":
+        assert doc["one_phase"] in ("yes", "no", "partial") and doc["basis"] in ("measured", "predicted")
