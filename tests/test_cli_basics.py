@@ -79,27 +79,27 @@ def test_demo_scenario_is_marked_demo():
 
 # The JSON contract of ../DESIGN.md: the documented examples, with the fields other tools rely on.
 CONTRACT = [
-    (["rank", "--hsp", "17.0,3.0,8.0,8.0", "--temp", "40"], None, {"target", "results"},
+    (["rank", "--hsp", "17.0,3.0,8.0,8.0", "--temp", "40"], {"target", "results"},
      ("results", {"name", "cas", "ra", "red"})),
-    (["rank", "--like", "n-hexane", "--food"], None, {"target", "results"}, ("results", {"name", "cas", "ra", "red"})),
-    (["blend", "--hsp", "17.5,6.0,10.0", "--max-components", "3", "--only", "ethanol,water,triacetin"], None,
+    (["rank", "--like", "n-hexane", "--food"], {"target", "results"}, ("results", {"name", "cas", "ra", "red"})),
+    (["blend", "--hsp", "17.5,6.0,10.0", "--max-components", "3", "--only", "ethanol,water,triacetin"],
      {"target", "results"}, ("results", {"components", "dD", "dP", "dH", "ra", "red", "one_phase", "cautions"})),
-    (["miscible", "water", "ethyl acetate"], None, {"liquids", "one_phase", "basis", "window", "chi", "chi_critical"}, None),
-    (["estimate", "CC1=CCC(CC1)C(=C)C"], None, {"smiles", "dD", "dP", "dH", "vm", "method", "groups", "uncertainty"}, None),
-    (["fit", "examples/bench_graded.csv", "--good-at-most", "2"], None, {"dD", "dP", "dH", "r0", "fit", "wrong_side", "interval"}, None),
+    (["miscible", "water", "ethyl acetate"], {"liquids", "one_phase", "basis", "window", "chi", "chi_critical"}, None),
+    (["estimate", "CC1=CCC(CC1)C(=C)C"], {"smiles", "dD", "dP", "dH", "vm", "method", "groups", "uncertainty"}, None),
+    (["fit", "examples/bench_graded.csv", "--good-at-most", "2"], {"dD", "dP", "dH", "r0", "fit", "wrong_side", "interval"}, None),
     (["hlb", "--oil", "d-limonene=70,medium-chain triglycerides=30", "--emulsifiers", "polysorbate 80,sorbitan monooleate"],
-     None, {"required_hlb", "pairs"}, ("pairs", {"a", "b", "fraction_a", "fraction_b", "hlb"})),
+     {"required_hlb", "pairs"}, ("pairs", {"a", "b", "fraction_a", "fraction_b", "hlb"})),
     (["emulsion", "--oil", "d-limonene=70,sucrose acetate isobutyrate=30", "--brix", "11", "--dilution", "500",
-      "--droplet-um", "0.4"], None,
+      "--droplet-um", "0.4"],
      {"beverage_density", "oil_phase_density", "agent_level_ppm", "agent_limit_ppm", "creaming_mm_per_day"}, None),
     (["dose", "--formula", "propylene glycol=90,vanillin=10", "--dose", "0.15%", "--category", "beverages",
-      "--jurisdiction", "EU"], None, {"stages", "limits", "max_dose"},
+      "--jurisdiction", "EU"], {"stages", "limits", "max_dose"},
      ("limits", {"rule", "substance", "level", "limit", "unit", "binds", "ok"})),
 ]
 
 
-@pytest.mark.parametrize("argv,_,top,inner", CONTRACT, ids=[c[0][0] + "-" + c[0][1] for c in CONTRACT])
-def test_json_contract(capsys, monkeypatch, argv, _, top, inner):
+@pytest.mark.parametrize("argv,top,inner", CONTRACT, ids=[c[0][0] + "-" + c[0][1] for c in CONTRACT])
+def test_json_contract(capsys, monkeypatch, argv, top, inner):
     from pathlib import Path
 
     monkeypatch.chdir(Path(__file__).resolve().parents[1])
