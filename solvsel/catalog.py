@@ -63,6 +63,9 @@ LIBRARY_HSP_DATASETS = {
 
 _TYPES = ("text", "number", "integer", "cas", "choice", "list", "sources")
 
+#: Short names accepted for tables (``solvsel table agents``).
+TABLE_ALIASES = {"agents": "weighting_agents", "liquids": "solvents", "regs": "regulations", "pairs": "miscibility"}
+
 
 # ----------------------------------------------------------------------------- names
 
@@ -516,7 +519,8 @@ class Catalog:
         """The validated table ``name`` (without .csv) as a DataFrame, with an ``origin`` column."""
         import pandas as pd
 
-        name = name.strip().lower()
+        name = name.strip().lower().replace(" ", "_")
+        name = TABLE_ALIASES.get(name, name)
         if name == "sources":
             return self.sources
         if name in self._tables:
