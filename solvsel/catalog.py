@@ -394,7 +394,6 @@ class Solvent(_Record):
     note: str = ""
     origin: str = "bundled"
 
-
     @property
     def food_use(self) -> bool:
         """True for liquids used on food (flavour carrier or extraction solvent roles).
@@ -598,6 +597,14 @@ class Catalog:
         kind = {"solvents": "liquid", "solutes": "solute"}.get(table, f"entry in table '{table}'")
         raise UnknownNameError(name, kind, tuple(names))
 
+    def _row_by_library_cas(self, table: str, name: str) -> int | None:
+        """Row of ``table`` whose CAS the reference library gives for ``name`` (a misspelling it
+        forgives, or a synonym we do not list), so our own row is used rather than the library's."""
+        cas = library_cas(name)
+        if not cas:
+            return None
+        return self._name_index(table).get(normalize_name(cas))
+
     def find(self, table: str, name: str) -> dict:
         """The row of ``table`` named ``name`` (forgiving match) as a dict."""
         return self.table(table).iloc[self.find_index(table, name)].to_dict()
@@ -612,9 +619,9 @@ class Catalog:
             return self.solvent_records()[self.find_index("solvents", name)]
         except UnknownNameError as exc:
             if library:
-                cas = library_cas(name)
-                if cas and normalize_name(cas) in self._name_index("solvents"):
-                    return self.solvent_records()[self._name_index("solvents")[normalize_name(cas)]]
+                ours = self._row_by_library_cas("solvents", name)
+                if ours is not None:
+                    return self.solvent_records()[ours]
                 found = library_solvent(name)
                 if found is not None:
                     return found
@@ -625,11 +632,9 @@ class Catalog:
         try:
             return self.solute_records()[self.find_index("solutes", name)]
         except UnknownNameError as exc:
-            # a name the reference library knows (e.g. a misspelling it forgives, or
-            # another synonym) that resolves to the CAS of one of our rows: use our row
-            cas = library_cas(name) if library else None
-            if cas and normalize_name(cas) in self._name_index("solutes"):
-                return self.solute_records()[self._name_index("solutes")[normalize_name(cas)]]
+            ours = self._row_by_library_cas("solutes", name) if library else None
+            if ours is not None:
+                return self.solute_records()[ours]
             try:
                 s = self.solvent(name, library=library)
             except UnknownNameError:
