@@ -9,7 +9,13 @@ Prints:
    of the results flipped;
 2. the optimum against a brute-force grid in 0.1 MPa^0.5 steps (Hansen's
    desirability with the classic rule on noisy data; the margin on noise-free
-   data): distance between the optima and the speed ratio;
+   data): distance between the optima and the speed ratio.  The objective is
+   piecewise (it has a kink wherever a liquid crosses the surface), so the
+   best grid point can sit more than half a step from the optimum of its own
+   basin; the grid's best point is therefore also refined by a local search
+   (Nelder-Mead on the grid's own objective, started there, 0.1 simplex) and
+   the distance from our centre to that refined point is the one checked
+   against the goal (within 0.1);
 3. worst-coordinate error of the largest-margin rule and of the classic
    smallest-R0 rule on the same noise-free trials, their ratio, and the
    coverage of the 90 % profile interval.
@@ -104,6 +110,16 @@ def objective_at(X, g, objective, centre):
     return float(-(db - dg) / (db + dg))
 
 
+def refine(X, g, objective, start, step=0.1):
+    """Local search on the grid's own objective from the grid's best point (Nelder-Mead)."""
+    from scipy.optimize import minimize
+
+    start = np.asarray(start, float)
+    return minimize(lambda z: objective_at(X, g, objective, z), start, method="Nelder-Mead",
+                    options={"xatol": 1e-4, "fatol": 1e-10,
+                             "initial_simplex": start + step * np.vstack([np.zeros(3), np.eye(3)])})
+
+
 def timed(fn, *a, **k):
     t0 = time.perf_counter()
     out = fn(*a, **k)
@@ -147,9 +163,13 @@ def main() -> int:
         # the grid point nearest our centre: if it scores like the grid's best,
         # both lie in one flat optimum and the distance between them is that flatness
         v_near = objective_at(Xk, g, obj, np.round(f.hsp, 1))
+        ref = refine(Xk, g, obj, c_grid)
+        dr = float(np.max(np.abs(f.hsp - ref.x)))
         print(f"   {label:36s} ours {ours:8.4f}  grid best {v_grid:8.4f}  grid at ours {v_near:8.4f}"
-              f"  |centre - grid best| {dc:5.2f}  fit {t_fit * 1e3:6.1f} ms  grid {t_grid:6.1f} s"
-              f"  ratio {t_grid / t_fit:7.0f}x")
+              f"  refined grid best {ref.fun:8.4f}")
+        print(f"   {'':36s} |centre - grid best| {dc:5.2f}  |centre - refined grid best| {dr:5.3f}"
+              f" (target <= 0.1)  fit {t_fit * 1e3:6.1f} ms  grid {t_grid:6.1f} s  ratio {t_grid / t_fit:7.0f}x"
+              " (target >= 50x)")
 
     # 3. the margin rule against the classic rule on the same trials
     print("\n3. worst-coordinate error |fit - truth| over dD, dP, dH, R0, noise-free trials")

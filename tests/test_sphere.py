@@ -282,10 +282,12 @@ def test_c60_fullerene_memory_set_classic_rule():
     # at least 1 mg/mL.  Published sphere, Hansen & Smith, Carbon 42 (2004)
     # 1591, also FROM MEMORY: 19.7, 2.9, 2.7, R0 4.0.  The classic fit (plain
     # desirability, smallest R0) with the library's liquid HSP lands within
-    # 0.8 of it on every parameter; the issue's 0.3 is NOT reached with these
-    # recalled data (the authors' own liquid values and solvent list differ),
-    # so the check is at 1.0, the published centre's own spread between the
-    # handbook's editions being unknown to us.
+    # 0.7 of it on every parameter (dP within 0.1); the issue's 0.3 is NOT
+    # reached with these recalled data, and the last checks say why: the
+    # published sphere itself puts 7 of the 40 recalled results on the wrong
+    # side, so the recalled list and scores are not the authors' (their table
+    # is needed to check the 0.3), while our search finds a sphere Hansen's
+    # desirability rates higher on the same data.
     import csv
 
     rows = list(csv.DictReader(ln for ln in (DATA / "bench_c60_memory.csv").open(encoding="utf-8")
@@ -299,13 +301,20 @@ def test_c60_fullerene_memory_set_classic_rule():
         cas = r["note"].split(";")[0].replace("CAS", "").strip()
         key = r["note"].split("HSP")[1].strip()
         assert s.hansen_delta_d(cas, method=key) / 1000 == pytest.approx(x[0], abs=0.051)
+        assert s.hansen_delta_p(cas, method=key) / 1000 == pytest.approx(x[1], abs=0.051)
         assert s.hansen_delta_h(cas, method=key) / 1000 == pytest.approx(x[2], abs=0.051)
     f = fit_sphere(X, good, rule="classic", lapse=0.0, interval=False)
     published = np.array([19.7, 2.9, 2.7, 4.0])
     got = np.array([f.dD, f.dP, f.dH, f.r0])
     assert np.max(np.abs(got - published)) <= 1.0
     # regression pin of this fit (so a change of the search is seen)
-    np.testing.assert_allclose(got, [19.10, 2.30, 3.51, 4.31], atol=0.02)
+    np.testing.assert_allclose(got, [19.00, 2.82, 3.14, 4.48], atol=0.02)
+    # why 0.3 is out of reach with these data: the published sphere misplaces
+    # 7 recalled results, ours 3, and Hansen's desirability prefers ours
+    d_pub = ra(X, published[:3])
+    assert int(np.sum(np.where(good, d_pub > 4.0, d_pub < 4.0))) == 7
+    assert len(f.wrong_side) == 3
+    assert desirability(f.hsp, good, f.r0, X) > desirability(published[:3], good, 4.0, X)
 
 
 # ---------------------------------------------------------------- bench files and the command
