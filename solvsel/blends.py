@@ -642,6 +642,11 @@ class Blend:
     pareto: bool = False
     rank: int = 0
     dose_check: dict | None = None
+    #: other blends with the same fractions of liquids of the same HSP (e.g. one
+    #: vegetable oil for another): the same answer of the model, folded into
+    #: this one; their names, in the order of ``components``.  Cost, hazard and
+    #: food-law status of those liquids may differ: see each liquid.
+    alternatives: tuple[tuple[str, ...], ...] = ()
 
     @property
     def names(self) -> tuple[str, ...]:
@@ -676,6 +681,7 @@ class Blend:
             "regulations": list(self.regulations),
             "pareto": self.pareto,
             "dose_check": self.dose_check,
+            "alternatives": [list(a) for a in self.alternatives],
             "cautions": list(self.cautions),
         }
 
@@ -1058,7 +1064,7 @@ def optimise_blends(
         )
     counts = {"liquids": len(kept), "excluded_liquids": len(excluded), "combinations": 0,
               "bounds_not_met": 0, "same_as_smaller_blend": 0, "checked": 0, "two_phase": 0,
-              "over_limit": 0, "kept": 0}
+              "over_limit": 0, "alike": 0, "kept": 0}
 
     def finish(results, pareto, dropped, success, message):
         return BlendSearch(t_info, tuple(results), tuple(pareto), tuple(dropped), tuple(excluded), counts,
@@ -1166,14 +1172,31 @@ def optimise_blends(
         members = [int(i) for i in IDX[row] if i >= 0]
         return row, [kept[i] for i in members], X[row, : len(members)]
 
+    def signature(j):
+        # liquids of the same HSP at the same fractions give the same blend to the model
+        row = cand[j]
+        return tuple(sorted((tuple(np.round(H[int(i)], 6)), round(float(x), 4))
+                            for i, x in zip(IDX[row], X[row]) if i >= 0))
+
+    seen: dict = {}  # signature -> candidate kept first
+    alike: dict = {}  # that candidate -> the candidates folded into it
+    seen_dropped: set = set()
+
+    def drop(j, recs, xs, reason):
+        sig = signature(j)
+        if sig in seen_dropped:
+            return
+        seen_dropped.add(sig)
+        dropped.append(DroppedBlend(tuple(r.name for r in recs), tuple(float(v) for v in xs), float(RA[cand[j]]),
+                                    reason))
+
     for j in order[:_SCAN_LIMIT]:
         counts["checked"] += 1
         if one_phase_only and screen_ok is not None and not screen_ok[j]:
             if len(kept_rows) < want and len(dropped) < _DROPPED_LISTED:
                 row, recs, xs = members_of(j)
                 ph = _phase(cat, recs, xs, temp_C)
-                dropped.append(DroppedBlend(tuple(r.name for r in recs), tuple(float(v) for v in xs), float(RA[row]),
-                                            f"two phases at these fractions ({ph[1]}): {ph[2]}"))
+                drop(j, recs, xs, f"two phases at these fractions ({ph[1]}): {ph[2]}")
             continue
         dose_info = None
         if dose is not None:
@@ -1182,9 +1205,15 @@ def optimise_blends(
             if dose_info["ok"] is False and not keep_over:
                 counts["over_limit"] += 1
                 if len(kept_rows) < want and len(dropped) < _DROPPED_LISTED:
-                    dropped.append(DroppedBlend(tuple(r.name for r in recs), tuple(float(v) for v in xs),
-                                                float(RA[row]), dose_info["message"]))
+                    drop(j, recs, xs, dose_info["message"])
                 continue
+        sig = signature(j) if K[cand[j]] > 1 else None
+        if sig is not None and sig in seen:
+            counts["alike"] += 1
+            alike.setdefault(seen[sig], []).append(j)
+            continue
+        if sig is not None:
+            seen[sig] = j
         kept_rows.append((j, dose_info))
         if len(kept_rows) >= pool_n:
             break
@@ -1212,6 +1241,25 @@ def optimise_blends(
             b = _with(b, dose_check=dose_info, cautions=tuple(dict.fromkeys(b.cautions + tuple(dose_info["cautions"]))))
         return b
 
+    def with_alike(b, j):
+        # the folded blends' names, in the order of b's components (matched by HSP and fraction)
+        if j not in alike:
+            return b
+        row = cand[j]
+        rep = [(tuple(np.round(H[int(i)], 6)), float(x)) for i, x in zip(IDX[row], X[row]) if i >= 0]
+        out = []
+        for jj in alike[j]:
+            r2 = cand[jj]
+            free = [(tuple(np.round(H[int(i)], 6)), float(x), kept[int(i)].name)
+                    for i, x in zip(IDX[r2], X[r2]) if i >= 0]
+            names = []
+            for h, x in rep:
+                hit = min((p for p in free if p[0] == h), key=lambda p: abs(p[1] - x))
+                free.remove(hit)
+                names.append(hit[2])
+            out.append(tuple(names))
+        return _with(b, alternatives=tuple(out))
+
     F = [ra_c[[j for j, _ in kept_rows]]]
     if rej:
         F.append(-worst_c[[j for j, _ in kept_rows]])
@@ -1224,13 +1272,13 @@ def optimise_blends(
     results = []
     for rank, ((j, dose_info), on_front) in enumerate(zip(kept_rows[:want], front[:want]), start=1):
         b = describe(j, dose_info, rank)
-        b = _with(b, pareto=bool(on_front))
+        b = with_alike(_with(b, pareto=bool(on_front)), j)
         described[j] = b
         results.append(b)
     pareto = []
     for pos, ((j, dose_info), on_front) in enumerate(zip(kept_rows, front)):
         if on_front:
-            pareto.append(described.get(j) or _with(describe(j, dose_info, pos + 1), pareto=True))
+            pareto.append(described.get(j) or with_alike(_with(describe(j, dose_info, pos + 1), pareto=True), j))
     msg = f"{len(results)} blend(s) from {m} liquids; {counts['combinations']} combinations searched"
     return finish(results, pareto, dropped, True, msg)
 

@@ -552,3 +552,32 @@ def test_users_own_liquids_are_marked(tmp_path):
     best = res.results[0]
     assert best.names == ("my carrier X",) and best.ra < 1e-9
     assert best.components[0].origin.startswith("user") and "(yours)" in best.label
+
+
+def test_liquids_of_the_same_hsp_fold_into_one_blend(cat):
+    # The five vegetable oils of the table carry one set of HSP (MANUEL_RUBEN_2022
+    # lists them alike) and benzyl alcohol is miscible with fatty oils (European
+    # Pharmacopoeia monograph, from memory): the blends that differ only in the oil
+    # are one answer of the model, shown once with the others as alternatives.
+    from solvsel.blends import optimise_blends
+
+    res = optimise_blends(cat, cat.solute("cannabidiol"), max_components=2, use="carrier", jurisdiction="EU", top=10)
+    oils = {"sunflower oil", "olive oil", "rapeseed oil", "soybean oil", "corn oil"}
+    hsp = {tuple(cat.solvent(o).hsp) for o in oils}
+    assert len(hsp) == 1
+    with_oil = [b for b in res.results if oils & set(b.names) and "benzyl alcohol" in b.names]
+    assert len(with_oil) == 1
+    b = with_oil[0]
+    assert len(b.alternatives) == 4
+    used = {n for n in b.names if n in oils}
+    swapped = {n for alt in b.alternatives for n in alt if n in oils}
+    assert used | swapped == oils and not used & swapped
+    # each alternative keeps benzyl alcohol in its place in the component order
+    pos = b.names.index("benzyl alcohol")
+    assert all(alt[pos] == "benzyl alcohol" for alt in b.alternatives)
+    assert res.counts["alike"] >= 4
+    assert b.to_dict()["alternatives"] == [list(a) for a in b.alternatives]
+    # no two results are the same blend of the model
+    sigs = [tuple(sorted((tuple(cat.solvent(c.name).hsp), round(c.volume_fraction, 4)) for c in r.components))
+            for r in res.results]
+    assert len(sigs) == len(set(sigs))

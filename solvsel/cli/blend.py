@@ -162,7 +162,8 @@ def print_search(res, file=None) -> None:
         for b in res.results:
             row = {
                 "rank": b.rank,
-                "blend": b.label + (" *" if b.pareto and rejects else ""),
+                "blend": b.label + (" *" if b.pareto and rejects else "") + (f" (+{len(b.alternatives)} alike)"
+                                                                             if b.alternatives else ""),
                 "mass": " / ".join("-" if x.mass_fraction is None else f"{x.mass_fraction:.2f}" for x in b.components),
                 "ra": b.ra, "red": b.red,
                 "phase": _phase_text(b),
@@ -204,6 +205,13 @@ def print_search(res, file=None) -> None:
                          f"(in {basis}); * on the Pareto front (fit, reject distance, cost, hazard, components).")
         for n in notes:
             print("  " + n, file=file)
+        alike = [b for b in res.results if b.alternatives]
+        if alike:
+            print("\nThe same blend with a liquid of the same HSP in place (one answer of the model; cost, hazard and "
+                  "food-law status may differ):", file=file)
+            for b in alike:
+                swaps = sorted({n for alt in b.alternatives for n, m in zip(alt, b.names) if n != m})
+                print(f"  #{b.rank}: also with {', '.join(swaps)}", file=file)
         shown = {b.names for b in res.results}
         extra = [b for b in res.pareto if b.names not in shown]
         if rejects and extra:

@@ -396,7 +396,8 @@ class CarriersScreen(BenchScreen):
             cols += [f"nearest reject {basis}", "margin"]
         grid.add_columns(*cols, "one phase", "bp C", "flash C", "flammable", "cost")
         for b in res.results:
-            row = [str(b.rank) + ("*" if b.pareto and rejects else ""), b.label, _fmt(b.ra), _fmt(b.red)]
+            row = [str(b.rank) + ("*" if b.pareto and rejects else ""),
+                   b.label + (f" (+{len(b.alternatives)} alike)" if b.alternatives else ""), _fmt(b.ra), _fmt(b.red)]
             if rejects:
                 row += [_fmt(b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra),
                         _fmt(b.selectivity)]
@@ -466,6 +467,10 @@ class CarriersScreen(BenchScreen):
             t.append(f"  {c.name:<{width}}  {c.volume_fraction:.3f}   {mf}\n")
         if len(b.components) > 1:
             t.append(f"one phase: {_phase(b)}  {b.phase_note}\n", style="dim")
+        if b.alternatives:
+            swaps = sorted({n for alt in b.alternatives for n, m in zip(alt, b.names) if n != m})
+            t.append(f"the same blend with {', '.join(swaps)} in place (same HSP; cost, hazard and food-law "
+                     "status may differ)\n")
         if b.rejects:
             t.append("kept out: " + ", ".join(
                 f"{r.name} Ra {r.ra:.1f}" + (f" RED {r.red:.2f}" if r.red is not None else "") for r in b.rejects) + "\n")
