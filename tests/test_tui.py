@@ -385,3 +385,30 @@ def test_bench_fit_target_and_the_users_own_rows(tmp_path):
             assert app.session.target is t
 
     run(go())
+
+
+def test_every_table_column_is_as_wide_as_its_widest_cell():
+    # A table filled while its screen was being laid out now and then kept the
+    # header widths and cut the values (Ra "1." for 1.20): every column of every
+    # table on every screen must hold its widest cell.
+    async def go():
+        from rich.cells import cell_len
+        from textual.widgets import DataTable
+
+        app = create_app()
+        async with app.run_test(size=SIZE) as pilot:
+            await _settle(app, pilot)
+            seen = 0
+            for mode in ("carriers", "tables", "emulsion", "limits"):
+                app.switch_mode(mode)
+                await _settle(app, pilot)
+                for grid in app.screen.query(DataTable):
+                    for k, col in enumerate(grid.ordered_columns):
+                        cells = [str(grid.get_row_at(i)[k]) for i in range(grid.row_count)]
+                        widest = max([cell_len(str(col.label))] + [cell_len(c) for c in cells])
+                        # widths set from the cells (the table's own measuring is what failed)
+                        assert not col.auto_width and col.width >= widest, (grid.id, col.label)
+                    seen += grid.row_count > 0
+            assert seen >= 6
+
+    run(go())

@@ -23,7 +23,11 @@ from textual.widgets import Button, DataTable, Input, Label, ProgressBar, Select
 from textual.worker import Worker, WorkerState, get_current_worker
 
 from .base import BenchScreen
-from .widgets import CautionBox
+from .widgets import CautionBox, fill_table
+
+RANK_HEADERS = ("#", "liquid", "Ra", "RED", "bp C", "flash C", "GHS", "food status", "cost")
+DROPPED_HEADERS = ("blend (volume fractions)", "Ra", "why it was dropped")
+EXCLUDED_HEADERS = ("liquid", "why it is not in the pool")
 
 USE_CHOICES = [("carrier (flavour carrier)", "carrier"), ("extraction", "extraction"), ("bench", "bench"),
                ("any liquid of the table", "any")]
@@ -176,10 +180,9 @@ class CarriersScreen(BenchScreen):
         yield from self.compose_frame_bottom()
 
     def on_mount(self) -> None:
-        self.query_one("#rank-grid", DataTable).add_columns(
-            "#", "liquid", "Ra", "RED", "bp C", "flash C", "GHS", "food status", "cost")
-        self.query_one("#dropped-grid", DataTable).add_columns("blend (volume fractions)", "Ra", "why it was dropped")
-        self.query_one("#excluded-grid", DataTable).add_columns("liquid", "why it is not in the pool")
+        fill_table(self.query_one("#rank-grid", DataTable), RANK_HEADERS, [])
+        fill_table(self.query_one("#dropped-grid", DataTable), DROPPED_HEADERS, [])
+        fill_table(self.query_one("#excluded-grid", DataTable), EXCLUDED_HEADERS, [])
         self.fill_preset("carrier")
 
     # ---------------------------------------------------------------- target / presets
@@ -263,12 +266,11 @@ class CarriersScreen(BenchScreen):
             return
         self.ranking = res
         self.session.ranking = res
-        grid = self.query_one("#rank-grid", DataTable)
-        grid.clear()
-        for i, r in enumerate(res.results, 1):
-            grid.add_row(str(i), r.name + (" (yours)" if r.origin.startswith("user") else ""), _fmt(r.ra),
-                         _fmt(r.red), _fmt(r.bp_C, ".0f"), _fmt(r.flash_C, ".0f"), r.hazard_code or "no",
-                         r.food_status or "-", _fmt(r.cost_class, ".0f"))
+        fill_table(self.query_one("#rank-grid", DataTable), RANK_HEADERS, [
+            (str(i), r.name + (" (yours)" if r.origin.startswith("user") else ""), _fmt(r.ra),
+             _fmt(r.red), _fmt(r.bp_C, ".0f"), _fmt(r.flash_C, ".0f"), r.hazard_code or "no",
+             r.food_status or "-", _fmt(r.cost_class, ".0f"))
+            for i, r in enumerate(res.results, 1)])
         self.show_active()
 
     def show_single(self, r) -> None:
@@ -387,30 +389,26 @@ class CarriersScreen(BenchScreen):
         self.fill_blends(res)
 
     def fill_blends(self, res) -> None:
-        grid = self.query_one("#blend-grid", DataTable)
-        grid.clear(columns=True)
         rejects = any(b.rejects for b in res.results)
         basis = next((b.selectivity_basis for b in res.results if b.selectivity_basis), "Ra")
         cols = ["#", "blend (volume fractions)", "Ra", "RED"]
         if rejects:
             cols += [f"nearest reject {basis}", "margin"]
-        grid.add_columns(*cols, "one phase", "bp C", "flash C", "flammable", "cost")
+        cols += ["one phase", "bp C", "flash C", "flammable", "cost"]
+        rows = []
         for b in res.results:
             row = [str(b.rank) + ("*" if b.pareto and rejects else ""),
                    b.label + (f" (+{len(b.alternatives)} alike)" if b.alternatives else ""), _fmt(b.ra), _fmt(b.red)]
             if rejects:
                 row += [_fmt(b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra),
                         _fmt(b.selectivity)]
-            grid.add_row(*row, _phase(b), _bp(b), _fmt(b.lowest_flash_C, ".0f"), _short_hazard(b), _fmt(b.cost, ".1f"))
-        dropped = self.query_one("#dropped-grid", DataTable)
-        dropped.clear()
-        for d in res.dropped:
-            label = " + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions))
-            dropped.add_row(label, _fmt(d.ra), d.reason)
-        excluded = self.query_one("#excluded-grid", DataTable)
-        excluded.clear()
-        for e in res.excluded:
-            excluded.add_row(e.name, e.reason)
+            rows.append(row + [_phase(b), _bp(b), _fmt(b.lowest_flash_C, ".0f"), _short_hazard(b), _fmt(b.cost, ".1f")])
+        fill_table(self.query_one("#blend-grid", DataTable), cols, rows)
+        fill_table(self.query_one("#dropped-grid", DataTable), DROPPED_HEADERS, [
+            (" + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions)), _fmt(d.ra), d.reason)
+            for d in res.dropped])
+        fill_table(self.query_one("#excluded-grid", DataTable), EXCLUDED_HEADERS,
+                   [(e.name, e.reason) for e in res.excluded])
         if res.results or self.query_one("#carrier-tabs", TabbedContent).active != "tab-blends":
             self.show_active()
         else:

@@ -17,7 +17,11 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import Button, DataTable, Input, Label, Static
 
 from .base import BenchScreen
-from .widgets import CautionBox
+from .widgets import CautionBox, fill_table
+
+PAIR_HEADERS = ("emulsifier A", "share A", "emulsifier B", "share B", "blend HLB", "same tail")
+WEIGHTING_HEADERS = ("where", "weighting agent(s)", "in oil phase", "mg/kg in drink", "limit mg/kg", "oil g/cm3",
+                     "verdict")
 
 
 def _amounts_text(d: dict) -> str:
@@ -93,8 +97,8 @@ class EmulsionScreen(BenchScreen):
         self.query_one("#em-dilution", Input).value = f"{e.get('dilution', 500):g}"
         self.query_one("#em-droplet", Input).value = f"{e.get('droplet_um', 0.4):g}"
         self.query_one("#em-jurisdiction", Input).value = e.get("jurisdiction", "EU")
-        self.query_one("#em-pairs", DataTable).add_columns("emulsifier A", "share A", "emulsifier B", "share B", "blend HLB", "same tail")
-        self.query_one("#em-weighting", DataTable).add_columns("where", "weighting agent(s)", "in oil phase", "mg/kg in drink", "limit mg/kg", "oil g/cm3", "verdict")
+        fill_table(self.query_one("#em-pairs", DataTable), PAIR_HEADERS, [])
+        fill_table(self.query_one("#em-weighting", DataTable), WEIGHTING_HEADERS, [])
         self.compute(interactive=False)
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
@@ -130,7 +134,7 @@ class EmulsionScreen(BenchScreen):
         cat = self.session.catalog
         box = self.query_one("#em-hlb", Static)
         grid = self.query_one("#em-pairs", DataTable)
-        grid.clear()
+        fill_table(grid, PAIR_HEADERS, [])
         self.hlb_result, self.pairs = None, ()
         try:
             rhlb = self.query_one("#em-rhlb", Input).value
@@ -151,9 +155,9 @@ class EmulsionScreen(BenchScreen):
             t.append(f"  {c['name']:<32} {c['mass_fraction']:.3f}  HLB {c['rhlb']:.1f}  {c.get('basis', '')}\n", style="dim")
         t.append(f"{len(pairs)} pairs of the chosen emulsifiers hit it:" if pairs else "no pair of the chosen emulsifiers hits it")
         box.update(t)
-        for p in pairs[:12]:
-            grid.add_row(p.names[0], f"{p.fractions[0]:.2f}", p.names[1], f"{p.fractions[1]:.2f}", f"{p.hlb:.1f}",
-                         "yes" if p.same_tail else "no")
+        fill_table(grid, PAIR_HEADERS, [
+            (p.names[0], f"{p.fractions[0]:.2f}", p.names[1], f"{p.fractions[1]:.2f}", f"{p.hlb:.1f}",
+             "yes" if p.same_tail else "no") for p in pairs[:12]])
 
     def compute_design(self) -> None:
         from ..cli._common import parse_amounts, parse_names
@@ -162,7 +166,7 @@ class EmulsionScreen(BenchScreen):
         cat = self.session.catalog
         box = self.query_one("#em-design", Static)
         wgrid = self.query_one("#em-weighting", DataTable)
-        wgrid.clear()
+        fill_table(wgrid, WEIGHTING_HEADERS, [])
         self.design = None
         try:
             q = self.query_one
@@ -199,12 +203,12 @@ class EmulsionScreen(BenchScreen):
         t.append(f"largest droplet that crosses less than {r.height_mm:g} mm in {r.shelf_days:g} days: {r.max_droplet_um:.3g} um\n")
         t.append("\nWays to weight the oil phase to the drink's density:", style="bold")
         box.update(t)
-        for j, opts in r.weighting.items():
-            for o in opts:
-                wgrid.add_row(j, " + ".join(o.agents) or "none needed", " + ".join(f"{x:.1%}" for x in o.fractions),
-                              " + ".join(f"{x:.4g}" for x in o.levels_ppm),
-                              " / ".join("-" if x is None else f"{x:.4g}" for x in o.limits_ppm), f"{o.density:.4f}",
-                              ("matched" if o.matched else "partial") + ("" if o.legal else ", OVER"))
+        fill_table(wgrid, WEIGHTING_HEADERS, [
+            (j, " + ".join(o.agents) or "none needed", " + ".join(f"{x:.1%}" for x in o.fractions),
+             " + ".join(f"{x:.4g}" for x in o.levels_ppm),
+             " / ".join("-" if x is None else f"{x:.4g}" for x in o.limits_ppm), f"{o.density:.4f}",
+             ("matched" if o.matched else "partial") + ("" if o.legal else ", OVER"))
+            for j, opts in r.weighting.items() for o in opts])
         rp = Text()
         for j, msgs in r.weighting_excluded.items():
             for m in msgs:

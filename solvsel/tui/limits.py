@@ -15,7 +15,9 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import Button, DataTable, Input, Label, Static
 
 from .base import BenchScreen
-from .widgets import CautionBox
+from .widgets import CautionBox, fill_table
+
+CHECK_HEADERS = ("rule", "substance", "level", "limit", "unit", "of limit", "ok", "binds", "max dose", "confidence")
 
 
 def _g(x, spec=".4g") -> str:
@@ -64,8 +66,7 @@ class LimitsScreen(BenchScreen):
         self.query_one("#lim-chain", Input).value = str(f.get("chain", ""))
         self.query_one("#lim-category", Input).value = str(f.get("category", "food"))
         self.query_one("#lim-jurisdiction", Input).value = str(f.get("jurisdiction", "EU"))
-        self.query_one("#lim-checks", DataTable).add_columns(
-            "rule", "substance", "level", "limit", "unit", "of limit", "ok", "binds", "max dose", "confidence")
+        fill_table(self.query_one("#lim-checks", DataTable), CHECK_HEADERS, [])
         self.compute(interactive=False)
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
@@ -103,7 +104,7 @@ class LimitsScreen(BenchScreen):
         except SolvselError as exc:
             # no stale numbers under an error: clear what the last check showed
             self.result = None
-            self.query_one("#lim-checks", DataTable).clear()
+            fill_table(self.query_one("#lim-checks", DataTable), CHECK_HEADERS, [])
             self.query_one("#lim-stages", DataTable).clear(columns=True)
             self.query_one("#lim-stages-title", Static).update("")
             self.query_one("#lim-notes", Static).update("")
@@ -131,24 +132,24 @@ class LimitsScreen(BenchScreen):
                  + ("" if r.complete else "; some substances have no data (not a permission)") + "\n",
                  style="bold" if over else "")
         self.query_one("#lim-summary", Static).update(t)
-        grid = self.query_one("#lim-checks", DataTable)
-        grid.clear()
+        check_rows = []
         for c in r.checks:
             md = None if c.max_dose is None else c.max_dose * (100 if frac else 1)
-            grid.add_row(c.rule, c.substance, _g(c.level), _g(c.limit) if c.limit is not None else c.status, c.unit,
-                         "-" if not c.limit or c.level is None else f"{100 * c.level / c.limit:.0f} %",
-                         "ok" if c.ok else "OVER", "binds" if c.binds else "", _g(md), c.confidence)
-        stages = self.query_one("#lim-stages", DataTable)
-        stages.clear(columns=True)
+            check_rows.append((c.rule, c.substance, _g(c.level), _g(c.limit) if c.limit is not None else c.status,
+                               c.unit, "-" if not c.limit or c.level is None else f"{100 * c.level / c.limit:.0f} %",
+                               "ok" if c.ok else "OVER", "binds" if c.binds else "", _g(md), c.confidence))
+        fill_table(self.query_one("#lim-checks", DataTable), CHECK_HEADERS, check_rows)
         rows = [r.stage_table(i) for i in range(len(r.stages))]
         subs = list(dict.fromkeys(row["substance"] for tab in rows for row in tab))
-        stages.add_columns("substance, mg/kg", *[st.name for st in r.stages])
+        stage_rows = []
         for s in subs:
             cells = [s]
             for tab in rows:
                 hit = next((row for row in tab if row["substance"] == s), None)
                 cells.append(_g(hit["mg_per_kg"], ",.6g") if hit else "-")
-            stages.add_row(*cells)
+            stage_rows.append(cells)
+        fill_table(self.query_one("#lim-stages", DataTable), ["substance, mg/kg", *[st.name for st in r.stages]],
+                   stage_rows)
         self.query_one("#lim-stages-title", Static).update(Text("\nLevels along the chain", style="bold"))
         notes = Text()
         for d in r.no_data:

@@ -17,7 +17,7 @@ from textual.widgets import DataTable, Input, OptionList, Static
 from textual.widgets.option_list import Option
 
 from .base import BenchScreen
-from .widgets import CautionBox
+from .widgets import CautionBox, fill_table
 
 #: (table name, title) in the order of the chooser.
 TABLES = [
@@ -132,10 +132,8 @@ class TablesScreen(BenchScreen):
             df = df[mask]
         self.table_name = name
         self.frame = df.reset_index(drop=True)
-        grid = self.query_one("#table-grid", DataTable)
-        grid.clear(columns=True)
         cols = [c for c in GRID_COLUMNS.get(name, list(df.columns)[:8]) if c in df.columns]
-        grid.add_columns(*cols)
+        grid_rows = []
         for _, row in self.frame.iterrows():
             cells = []
             for c in cols:
@@ -143,7 +141,8 @@ class TablesScreen(BenchScreen):
                 if c == "origin" and text.startswith("user"):
                     text = "yours"
                 cells.append(text if len(text) <= 48 else text[:47] + "…")
-            grid.add_row(*cells)
+            grid_rows.append(cells)
+        fill_table(self.query_one("#table-grid", DataTable), cols, grid_rows)
         shown = f"{len(self.frame)} of {full} rows" if condition.strip() else f"{full} rows"
         self.query_one("#table-count", Static).update(f"{dict(TABLES).get(name, name)}: {shown}")
         if len(self.frame):

@@ -289,3 +289,29 @@ def _nice_step(raw: float) -> float:
         if m * 10 ** exp >= raw:
             return m * 10 ** exp
     return 10 ** (exp + 1)
+
+
+# ----------------------------------------------------------------- tables
+
+
+def fill_table(grid, headers, rows) -> None:
+    """Replace a DataTable's columns and rows, each column as wide as its widest cell.
+
+    The widths are set here, from the cells, rather than left to the table's
+    own measuring, which now and then kept the header widths when a table was
+    filled while the screen was still being laid out (cut values such as
+    "Ra 1." for 1.20).
+    """
+    from rich.cells import cell_len
+
+    def width(v) -> int:
+        if isinstance(v, Text):
+            return v.cell_len
+        return max((cell_len(line) for line in str(v).splitlines()), default=0)
+
+    rows = [list(r) for r in rows]
+    grid.clear(columns=True)
+    for i, h in enumerate(headers):
+        grid.add_column(h, width=max([width(h)] + [width(r[i]) for r in rows]))
+    for r in rows:
+        grid.add_row(*r)
