@@ -323,6 +323,19 @@ def test_emulsion_and_limits_screens_show_the_library_results():
             assert app.screen.result.max_dose == pytest.approx(ref.max_dose)
             assert app.screen.query_one("#lim-checks").row_count == len(ref.checks)
             assert app.screen.query_one("#lim-cautions").display
+            # a bad dilution chain: the dialog names the field as the screen labels it, not an option of
+            # the command line, and the same error from the library does name the option
+            from solvsel.errors import SolvselError
+
+            with pytest.raises(SolvselError, match="--chain"):
+                check_dose(cat, formula, chain="syrup d=x", jurisdiction=f["jurisdiction"], category=f["category"],
+                           dose=f["dose"])
+            app.screen.query_one("#lim-chain").value = "syrup d=x"
+            app.screen.compute()
+            await pilot.pause()
+            assert type(app.screen).__name__ == "ErrorDialog"
+            assert "dilution chain" in app.screen.error_message and "--" not in app.screen.error_message
+            await pilot.press("escape")
 
     run(go())
 

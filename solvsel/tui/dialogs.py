@@ -36,7 +36,51 @@ class ErrorDialog(ModalScreen[None]):
         self.dismiss()
 
 
+#: The library's messages name the command-line option a value came from; in
+#: the UI the same value comes from a field, named here as its label says.
+FIELD_NAMES = {
+    "chain": "dilution chain",
+    "dose": "dose",
+    "already": "amount already in the food",
+    "category": "food category",
+    "jurisdiction": "jurisdiction",
+    "temp": "temperature",
+    "max-components": "largest blend (liquids)",
+    "bp-range": "boiling window",
+    "min-flash": "lowest flash point",
+    "exclude": "leave out",
+    "reject": "keep out of solution",
+    "use": "use",
+    "oil": "oil phase",
+    "emulsifiers": "emulsifiers to pair",
+    "rhlb": "your own required HLB",
+    "brix": "sugar (Brix)",
+    "dilution": "dilution",
+    "droplet-um": "droplet diameter",
+    "hsp": "dD, dP, dH (and R0)",
+    "smiles": "SMILES",
+    "good-at-most": "good at a score of at most",
+    "good-at-least": "good at a score of at least",
+    "solute": "target",
+}
+
+
+def plain_message(message: str) -> str:
+    """``message`` with each ``--option`` replaced by the name of the UI field it stands for.
+
+    >>> plain_message("--chain: stage 2 'drink 1+x': expected a number")
+    "dilution chain: stage 2 'drink 1+x': expected a number"
+    """
+    import re
+
+    def field(m):
+        name = m.group(1)
+        return FIELD_NAMES.get(name, name.replace("-", " "))
+
+    return re.sub(r"(?<![\w-])--([a-z][a-z0-9-]*)", field, message)
+
+
 def show_error(app, exc: BaseException) -> None:
-    """Open the error dialog for ``exc`` (its ``title`` and one-paragraph message)."""
+    """Open the error dialog for ``exc`` (its ``title`` and one-paragraph message, in the UI's words)."""
     title = getattr(exc, "title", None) or type(exc).__name__
-    app.push_screen(ErrorDialog(str(title), str(exc)))
+    app.push_screen(ErrorDialog(str(title), plain_message(str(exc))))

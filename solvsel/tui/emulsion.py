@@ -17,6 +17,7 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import Button, DataTable, Input, Label, Static
 
 from .base import BenchScreen
+from .dialogs import plain_message
 from .widgets import CautionBox, fill_table
 
 PAIR_HEADERS = ("emulsifier A", "share A", "emulsifier B", "share B", "blend HLB", "same tail")
@@ -145,7 +146,7 @@ class EmulsionScreen(BenchScreen):
             names = parse_names(self.query_one("#em-emulsifiers", Input).value, "emulsifiers")
             pairs = H.emulsifier_systems(H.pool_from_catalog(cat, names), phase.required_hlb, 2, 0.0)
         except Exception as exc:
-            box.update(Text.assemble(("Emulsifiers (HLB)\n", "bold"), (f"{getattr(exc, 'title', 'Error')}: ", "bold"), str(exc)))
+            box.update(Text.assemble(("Emulsifiers (HLB)\n", "bold"), (f"{getattr(exc, 'title', 'Error')}: ", "bold"), plain_message(str(exc))))
             raise
         self.pairs = tuple(pairs)
         t = Text()
@@ -180,7 +181,7 @@ class EmulsionScreen(BenchScreen):
                 jurisdictions=tuple(j.upper() for j in parse_names(q("#em-jurisdiction", Input).value, "jurisdictions")),
             )
         except Exception as exc:
-            box.update(Text.assemble(("Weighting and creaming\n", "bold"), (f"{getattr(exc, 'title', 'Error')}: ", "bold"), str(exc)))
+            box.update(Text.assemble(("Weighting and creaming\n", "bold"), (f"{getattr(exc, 'title', 'Error')}: ", "bold"), plain_message(str(exc))))
             self.query_one("#em-ripening", Static).update("")
             raise
         self.design = r

@@ -15,6 +15,7 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import Button, DataTable, Input, Label, Static
 
 from .base import BenchScreen
+from .dialogs import plain_message
 from .widgets import CautionBox, fill_table
 
 CHECK_HEADERS = ("rule", "substance", "level", "limit", "unit", "of limit", "ok", "binds", "max dose", "confidence")
@@ -108,7 +109,7 @@ class LimitsScreen(BenchScreen):
             self.query_one("#lim-stages", DataTable).clear(columns=True)
             self.query_one("#lim-stages-title", Static).update("")
             self.query_one("#lim-notes", Static).update("")
-            self.query_one("#lim-summary", Static).update(Text.assemble((f"{exc.title}: ", "bold"), str(exc)))
+            self.query_one("#lim-summary", Static).update(Text.assemble((f"{exc.title}: ", "bold"), plain_message(str(exc))))
             if interactive:
                 show_error(self.app, exc)
             return
