@@ -1198,6 +1198,15 @@ def optimise_blends(
                 ph = _phase(cat, recs, xs, temp_C)
                 drop(j, recs, xs, f"two phases at these fractions ({ph[1]}): {ph[2]}")
             continue
+        if one_phase_only and K[cand[j]] >= 3:
+            # the pairwise screen passed: test the blend as a whole (tangent plane)
+            row, recs, xs = members_of(j)
+            ph = _phase(cat, recs, xs, temp_C)
+            if ph[0] is False:
+                counts["two_phase"] += 1
+                if len(kept_rows) < want and len(dropped) < _DROPPED_LISTED:
+                    drop(j, recs, xs, f"two phases at these fractions ({ph[1]}): {ph[2]}")
+                continue
         dose_info = None
         if dose is not None:
             row, recs, xs = members_of(j)

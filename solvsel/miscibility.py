@@ -435,11 +435,15 @@ def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0) -> BlendPhas
 
     Each pair is checked at its own proportion in the blend,
     :math:`\\phi_b/(\\phi_a + \\phi_b)`, against its one-phase window
-    (measured where tabulated, else predicted).  The test is pairwise: it
-    cannot see a third liquid bringing two immiscible ones together (ethanol
-    bridging water and a citrus oil), so a failing pair with such a co-solvent
-    present is reported as a failure with that possibility noted: check it at
-    the bench (or look for a ternary diagram).
+    (measured where tabulated, else predicted).  A blend of three or more
+    liquids is then tested as a whole by the Flory-Huggins tangent-plane test
+    (:func:`hansen.mixture_stability`, chi made to agree with the measured
+    pairs): a blend whose pairs all mix but which splits as a whole is
+    reported as two phases (predicted).  A failing pair stays a failure even
+    when the whole-blend test finds one phase (a third liquid may bring the two
+    together, ethanol bridging water and a citrus oil, but the model is too
+    rough to promise it): that is noted, check it at the bench (or look for a
+    ternary diagram).
 
     Parameters
     ----------
@@ -477,6 +481,21 @@ def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0) -> BlendPhas
     present = [k for k in range(len(recs)) if f[k] > 0]
     basis = "measured" if all(c.basis == "measured" for c in checks) else "predicted"
     note = "pairwise test of each pair at its proportion in the blend"
+    whole = _whole_blend(recs, f, present, verdicts, temp_C) if len(present) >= 3 else None
+    split = None
+    if whole is not None:
+        if whole.stable:
+            note += "; the whole blend is one phase by the Flory-Huggins tangent-plane test (measured pairs honoured)"
+        elif not failing:
+            trial = ", ".join(f"{recs[k].name} {whole.trial[k]:.2f}" for k in present if whole.trial[k] >= 0.005)
+            split = (f"each pair mixes at its proportion, but the whole blend splits by the Flory-Huggins "
+                     f"tangent-plane test (predicted; a phase near {trial} by volume would separate)")
+            basis = "predicted"
+        else:
+            note += "; the Flory-Huggins tangent-plane test of the whole blend also finds two phases"
+    if split:
+        return BlendPhase(tuple(r.name for r in recs), tuple(float(x) for x in f), False, basis, tuple(checks), split,
+                          note)
     if failing:
         reason = "; ".join(c.reason for c in failing)
         bridging = []
@@ -498,6 +517,48 @@ def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0) -> BlendPhas
     else:
         reason = "every pair is one phase at its proportion"
     return BlendPhase(tuple(r.name for r in recs), tuple(float(x) for x in f), not failing, basis, tuple(checks), reason, note)
+
+
+def _whole_blend(recs, f, present, verdicts, temp_C):
+    """Tangent-plane test of the whole blend (:func:`hansen.mixture_stability`), or None without molar volumes.
+
+    chi of each pair from HSP (at ``temp_C``) on a lattice of the smallest
+    molar volume, made to agree with a measured pair: a pair measured
+    miscible in all proportions gets at most 0.9 of its critical chi, a pair
+    measured immiscible at least 1.1 of it.  A pair with a measured solubility
+    window (partly miscible) is not tested as a whole (None): one chi cannot
+    reproduce both measured solubilities, and the pairwise test of the window
+    stands.
+    """
+    sub = [recs[k] for k in present]
+    if any(getattr(r, "vm_cm3_mol", None) is None or not r.vm_cm3_mol > 0 for r in sub):
+        return None
+    if any(verdicts[(a, b)].basis == "measured" and verdicts[(a, b)].one_phase == "partial"
+           for a, b in combinations(present, 2)):
+        return None  # a measured solubility window that one chi cannot reproduce: the pairwise test stands
+    n = len(sub)
+    H, V = [None] * n, [None] * n
+    for a in range(n):
+        for b in range(a + 1, n):
+            ha, va, hb, vb, _ = _at_temperature(sub[a], sub[b], temp_C)
+            H[a], V[a], H[b], V[b] = ha, va, hb, vb
+    V = np.array(V, dtype=float)
+    vref = V.min()
+    N = V / vref
+    chi = np.zeros((n, n))
+    for a in range(n):
+        for b in range(a + 1, n):
+            c = float(hansen.chi_flory_huggins(H[a], H[b], vref, temp_C))
+            v = verdicts[(present[a], present[b])]
+            if v.basis == "measured":
+                cc = 0.5 * (1.0 / math.sqrt(N[a]) + 1.0 / math.sqrt(N[b])) ** 2
+                c = min(c, 0.9 * cc) if v.one_phase == "yes" else max(c, 1.1 * cc)
+            chi[a, b] = chi[b, a] = c
+    res = hansen.mixture_stability(V, [f[k] / sum(f[j] for j in present) for k in present], chi)
+    trial = [0.0] * len(recs)
+    for a, k in enumerate(present):
+        trial[k] = res.trial[a]
+    return hansen.MixtureStability(tuple(float(x) for x in f), res.stable, res.tpd_min, tuple(trial))
 
 
 @dataclass(frozen=True)

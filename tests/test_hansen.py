@@ -312,3 +312,63 @@ def test_rank_order_matches_brute_force():
     o5, s5 = H.rank_order(t, s, r0=np.full(50, 4.0), k=5)
     assert np.allclose(s5, np.sort(full, axis=1)[:, :5] / 4.0, atol=1e-9)
     assert (o5 == order[:, :5]).mean() > 0.99  # ties aside
+
+
+# ----------------------------------------------------------------------------- whole-mixture stability
+
+
+def _chi(n, value):
+    return value * (np.ones((n, n)) - np.eye(n))
+
+
+@pytest.mark.parametrize("ratio", [1.0, 10.0, 100.0])
+def test_tangent_plane_binary_critical_point(ratio):
+    # Flory (1953) ch. 13: a binary of sizes 1 and N splits first at
+    # chi_c = (1 + N^-0.5)^2 / 2, at phi_c = 1 / (1 + N^0.5) of the larger one
+    v = [50.0, 50.0 * ratio]
+    chi_c = 0.5 * (1 + ratio**-0.5) ** 2
+    phi_c = 1 / (1 + ratio**0.5)
+    at = [1 - phi_c, phi_c]
+    assert H.mixture_stability(v, at, _chi(2, 0.98 * chi_c)).stable
+    assert not H.mixture_stability(v, at, _chi(2, 1.02 * chi_c)).stable
+
+
+@pytest.mark.parametrize("chi, n2", [(3.0, 1.0), (1.6, 4.0), (2.5, 1.0)])
+def test_tangent_plane_binary_agrees_with_the_binodal(chi, n2):
+    # Inside the coexistence range of the common tangent (checked above against
+    # the closed form and the chemical potentials of Flory 1953) the mixture
+    # splits, outside it is stable, and the trial phase found is near the other
+    # coexisting composition.
+    b = H.binodal(chi, 1.0, n2)
+    v = [100.0, 100.0 * n2]
+    for phi, stable in ((0.5 * b.phi_a, True), (b.phi_a + 0.3 * (b.phi_b - b.phi_a), False),
+                        (b.phi_b + 0.5 * (1 - b.phi_b), True)):
+        r = H.mixture_stability(v, [1 - phi, phi], _chi(2, chi))
+        assert r.stable is stable, phi
+    r = H.mixture_stability(v, [1 - b.phi_a * 1.2, b.phi_a * 1.2], _chi(2, chi))
+    assert not r.stable and r.trial[1] == pytest.approx(b.phi_b, abs=0.1)
+
+
+def test_tangent_plane_symmetric_ternary():
+    # Three liquids of one size, one chi for every pair (the symmetric regular
+    # ternary, derived from the Flory-Huggins free energy): at the centroid the
+    # Hessian is (3 - chi) times a positive-definite matrix, so the centroid is
+    # locally unstable above chi = 3 (then surely unstable); each binary edge
+    # splits above chi = 2 (Flory), so at chi = 1.5 nothing splits.
+    v = [80.0] * 3
+    assert not H.mixture_stability(v, [1 / 3] * 3, _chi(3, 3.05)).stable
+    for phi in ([1 / 3] * 3, [0.8, 0.1, 0.1], [0.05, 0.45, 0.5]):
+        assert H.mixture_stability(v, phi, _chi(3, 1.5)).stable
+    # a pair split on an edge stays split with a little of a third liquid that
+    # mixes with both (chi 0): the tangent-plane test sees the whole blend
+    C = np.array([[0, 3.0, 0], [3.0, 0, 0], [0, 0, 0]])
+    assert not H.mixture_stability(v, [0.48, 0.48, 0.04], C).stable
+    # and a lot of it brings them together (the co-solvent effect)
+    assert H.mixture_stability(v, [0.15, 0.15, 0.70], C).stable
+
+
+def test_tangent_plane_rejects_bad_input():
+    with pytest.raises(InputError):
+        H.mixture_stability([100, 100], [0.7, 0.7], _chi(2, 1.0))
+    with pytest.raises(InputError):
+        H.mixture_stability([100, -1], [0.5, 0.5], _chi(2, 1.0))

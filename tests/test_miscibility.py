@@ -250,3 +250,16 @@ def test_graph_edges(cat):
     g = M.graph(cat, names=["water", "ethanol", "n-hexane", "ethyl acetate"])
     assert g.has_edge("water", "ethanol") and not g.has_edge("water", "n-hexane")
     assert g.edges["water", "ethyl acetate"]["one_phase"] == "partial"
+
+
+def test_whole_blend_test_honours_measured_pairs(cat):
+    # Common practice: water, ethanol and propylene glycol mix in all
+    # proportions.  Flory-Huggins from HSP alone would split ethanol-water
+    # (chi 3.4); with chi made to agree with the measured pairs the
+    # tangent-plane test of the whole blend finds one phase.
+    bp = M.blend_phase(cat, ["water", "ethanol", "propylene glycol"], [0.4, 0.3, 0.3])
+    assert bp.one_phase and bp.basis == "measured"
+    assert "one phase by the Flory-Huggins tangent-plane test" in bp.note
+    # a measured solubility window (ethyl acetate in water, partly miscible) is left to the pairwise test
+    bp = M.blend_phase(cat, ["ethyl acetate", "water", "propylene glycol"], [0.066, 0.92, 0.014])
+    assert bp.one_phase and "tangent-plane" not in bp.note
