@@ -119,6 +119,8 @@ def run(args) -> int:
         fr = ", ".join(f"{n} {100 * f:.1f} %" for n, f in zip(b["liquids"], b["volume_fractions"]))
         print(f"\nBlend ({fr} by volume): {'one phase' if b['one_phase'] else 'NOT one phase'} ({b['basis']})")
         print(f"  {b['reason']}")
+        if b.get("note"):
+            print(f"  ({b['note']})")
     elif len(pairs) > 1:
         print(f"\nAll together: {out['one_phase']} ({out['basis']}, pairwise)")
     if "bridges" in out:
