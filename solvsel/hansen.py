@@ -1163,13 +1163,16 @@ def rank_order(targets, solvents, r0=None, k: int | None = None):
     m = d2.shape[1]
     if k is None or k >= m:
         order = np.argsort(d2, axis=1)
+        # sorting the values again is cheaper than gathering them through the order
+        score = np.sort(d2, axis=1)
     else:
         if k < 1:
             raise InputError(f"k: expected at least 1, got {k}")
         part = np.argpartition(d2, k - 1, axis=1)[:, :k]
         sub = np.take_along_axis(d2, part, axis=1)
         order = np.take_along_axis(part, np.argsort(sub, axis=1), axis=1)
-    score = np.sqrt(np.take_along_axis(d2, order, axis=1))
+        score = np.take_along_axis(d2, order, axis=1)
+    np.sqrt(score, out=score)
     if r0 is not None:
         r = np.asarray(r0, dtype=float).reshape(-1, 1)
         if np.any(~(r > 0)):
