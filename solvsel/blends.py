@@ -653,6 +653,11 @@ class Blend:
         return tuple(c.name for c in self.components)
 
     @property
+    def swapped_in(self) -> tuple[str, ...]:
+        """The liquids the :attr:`alternatives` put in place of one of this blend's, sorted."""
+        return tuple(sorted({n for alt in self.alternatives for n, m in zip(alt, self.names) if n != m}))
+
+    @property
     def label(self) -> str:
         """``"ethanol 0.62 + water 0.38"`` (volume fractions); the user's own liquids marked "(yours)"."""
         return " + ".join(
@@ -1172,11 +1177,20 @@ def optimise_blends(
         members = [int(i) for i in IDX[row] if i >= 0]
         return row, [kept[i] for i in members], X[row, : len(members)]
 
+    def hsp_key(i):
+        return tuple(np.round(H[int(i)], 6))
+
     def signature(j):
         # liquids of the same HSP at the same fractions give the same blend to the model
         row = cand[j]
-        return tuple(sorted((tuple(np.round(H[int(i)], 6)), round(float(x), 4))
-                            for i, x in zip(IDX[row], X[row]) if i >= 0))
+        return tuple(sorted((hsp_key(i), round(float(x), 4)) for i, x in zip(IDX[row], X[row]) if i >= 0))
+
+    phase_of: dict = {}  # candidate -> _phase result, so a blend is tested once
+
+    def phase(j, recs, xs):
+        if j not in phase_of:
+            phase_of[j] = (True, "single liquid", "") if len(recs) == 1 else _phase(cat, recs, xs, temp_C)
+        return phase_of[j]
 
     seen: dict = {}  # signature -> candidate kept first
     alike: dict = {}  # that candidate -> the candidates folded into it
@@ -1195,13 +1209,13 @@ def optimise_blends(
         if one_phase_only and screen_ok is not None and not screen_ok[j]:
             if len(kept_rows) < want and len(dropped) < _DROPPED_LISTED:
                 row, recs, xs = members_of(j)
-                ph = _phase(cat, recs, xs, temp_C)
+                ph = phase(j, recs, xs)
                 drop(j, recs, xs, f"two phases at these fractions ({ph[1]}): {ph[2]}")
             continue
         if one_phase_only and K[cand[j]] >= 3:
             # the pairwise screen passed: test the blend as a whole (tangent plane)
             row, recs, xs = members_of(j)
-            ph = _phase(cat, recs, xs, temp_C)
+            ph = phase(j, recs, xs)
             if ph[0] is False:
                 counts["two_phase"] += 1
                 if len(kept_rows) < want and len(dropped) < _DROPPED_LISTED:
@@ -1240,9 +1254,8 @@ def optimise_blends(
         row, recs, xs = members_of(j)
         members = [int(i) for i in IDX[row] if i >= 0]
         xs = xs.copy()  # members: indices into the pool, for the hazards
-        phase = (True, "single liquid", "") if len(recs) == 1 else _phase(cat, recs, xs, temp_C)
         b = _describe_blend(
-            cat, recs, xs, BH[j], float(ra_c[j]), r0, phase, [hazards[i] for i in members],
+            cat, recs, xs, BH[j], float(ra_c[j]), r0, phase(j, recs, xs), [hazards[i] for i in members],
             None if np.isnan(cost_c[j]) else float(cost_c[j]),
             rej, red_basis, solute, t_hsp, temp_C, use, jurisdiction, rank,
         )
@@ -1255,11 +1268,11 @@ def optimise_blends(
         if j not in alike:
             return b
         row = cand[j]
-        rep = [(tuple(np.round(H[int(i)], 6)), float(x)) for i, x in zip(IDX[row], X[row]) if i >= 0]
+        rep = [(hsp_key(i), float(x)) for i, x in zip(IDX[row], X[row]) if i >= 0]
         out = []
         for jj in alike[j]:
             r2 = cand[jj]
-            free = [(tuple(np.round(H[int(i)], 6)), float(x), kept[int(i)].name)
+            free = [(hsp_key(i), float(x), kept[int(i)].name)
                     for i, x in zip(IDX[r2], X[r2]) if i >= 0]
             names = []
             for h, x in rep:

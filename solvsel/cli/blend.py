@@ -210,8 +210,7 @@ def print_search(res, file=None) -> None:
             print("\nThe same blend with a liquid of the same HSP in place (one answer of the model; cost, hazard and "
                   "food-law status may differ):", file=file)
             for b in alike:
-                swaps = sorted({n for alt in b.alternatives for n, m in zip(alt, b.names) if n != m})
-                print(f"  #{b.rank}: also with {', '.join(swaps)}", file=file)
+                print(f"  #{b.rank}: also with {', '.join(b.swapped_in)}", file=file)
         shown = {b.names for b in res.results}
         extra = [b for b in res.pareto if b.names not in shown]
         if rejects and extra:

@@ -466,8 +466,7 @@ class CarriersScreen(BenchScreen):
         if len(b.components) > 1:
             t.append(f"one phase: {_phase(b)}  {b.phase_note}\n", style="dim")
         if b.alternatives:
-            swaps = sorted({n for alt in b.alternatives for n, m in zip(alt, b.names) if n != m})
-            t.append(f"the same blend with {', '.join(swaps)} in place (same HSP; cost, hazard and food-law "
+            t.append(f"the same blend with {', '.join(b.swapped_in)} in place (same HSP; cost, hazard and food-law "
                      "status may differ)\n")
         if b.rejects:
             t.append("kept out: " + ", ".join(
