@@ -1205,7 +1205,7 @@ def _neighbour_data(params_path: str):
                          *(float(row[f"{k}{_U}"]) for k in ("dD", "dP", "dH")), row["key"]))
     if not fps:
         return None
-    return ([f[0] for f in fps], [f[1] for f in fps]), np.array(res), tuple(info)
+    return tuple([f[k] for f in fps] for k in range(3)), np.array(res), tuple(info)
 
 
 def _cv_row(row) -> dict:
@@ -1291,11 +1291,11 @@ HUBER_GRID = tuple((eps, alpha) for eps in (1.1, 1.35, 2.0) for alpha in (0.1, 1
 #: adds up by groups, Hoftyzer-Van Krevelen's form).
 SQUARE_CHOICES = ((False,), (False, True), (False, True))
 #: Similarity correction: kernel ridge regression of the group model's
-#: residuals on the training compounds, kernel = Tanimoto similarity of
-#: Morgan radius-2 fingerprints (0: 2048 bits; 1: counts, min-max Tanimoto)
-#: to a power p, penalty lambda; (fingerprint, p, lambda) chosen per parameter
+#: residuals on the training compounds, kernel = a similarity of
+#: :data:`KERNELS` (0 Morgan bits, 1 Morgan counts, 2 Morgan and feature-Morgan
+#: counts) to a power p, penalty lambda; (kernel, p, lambda) chosen per parameter
 #: from this grid by the same inner cross-validation.
-KERNEL_GRID = tuple((f, p, lam) for f in (0, 1) for p in (1.0, 2.0, 3.0) for lam in (0.1, 0.3, 1.0, 3.0))
+KERNEL_GRID = tuple((f, p, lam) for f in (0, 1, 2) for p in (1.0, 2.0, 3.0) for lam in (0.03, 0.1, 0.3, 1.0))
 INNER_FOLDS = 5
 #: dD is fitted with an intercept; dP and dH without (a molecule of no polar
 #: or hydrogen-bonding group gets ~0, as in the Hoftyzer-Van Krevelen form).
@@ -1318,7 +1318,7 @@ class FitSettings:
     square: tuple = SQUARE
     power: tuple = (KERNEL_POWER,) * 3
     lam: tuple = (KERNEL_LAMBDA,) * 3
-    fp: tuple = (0, 0, 0)  # fingerprint of the kernel: 0 bits, 1 counts
+    fp: tuple = (0, 0, 0)  # kernel of the correction, an index of KERNELS
 
     ROWS = ("huber epsilon", "huber alpha", "square", "kernel power", "kernel lambda", "kernel fingerprint")
 
@@ -1413,31 +1413,59 @@ def _predict(X, icpt, coef, square=SQUARE):
 
 
 
+#: Kernels of the similarity correction, by index: 0 Tanimoto of 2048-bit
+#: Morgan radius-2 fingerprints; 1 min-max Tanimoto of Morgan radius-2 counts;
+#: 2 the mean of kernel 1 and the min-max Tanimoto of feature-Morgan radius-2
+#: counts (atoms typed as donor, acceptor, aromatic, halogen, acidic, basic:
+#: compounds alike in their polar groups count as similar even when their
+#: atoms differ, e.g. a sulfone and a sulfoxide).  The mean of two kernels is
+#: again a kernel.
+KERNELS = ("Morgan bits", "Morgan counts", "Morgan + feature-Morgan counts")
+
+
 def fingerprint(mol):
-    """Morgan radius-2 fingerprints used for the similarity correction: ``(2048 bits, sparse counts)``."""
-    from rdkit.Chem import rdFingerprintGenerator
+    """Fingerprints of the similarity correction: ``(2048 Morgan bits, Morgan counts, feature-Morgan counts)``."""
+    from rdkit.Chem import rdFingerprintGenerator as G
 
     global _FPGEN
     try:
-        gen = _FPGEN
+        gen, feat = _FPGEN
     except NameError:
-        gen = _FPGEN = rdFingerprintGenerator.GetMorganGenerator(radius=2, fpSize=2048)
-    return gen.GetFingerprint(mol), gen.GetSparseCountFingerprint(mol)
+        gen = G.GetMorganGenerator(radius=2, fpSize=2048)
+        feat = G.GetMorganGenerator(radius=2, atomInvariantsGenerator=G.GetMorganFeatureAtomInvGen())
+        _FPGEN = (gen, feat)
+    return gen.GetFingerprint(mol), gen.GetSparseCountFingerprint(mol), feat.GetSparseCountFingerprint(mol)
 
 
-def similarity_matrix(fps_a, fps_b):
-    """Tanimoto similarities between two lists of :func:`fingerprint` pairs, shape (2, len(a), len(b)).
-
-    Axis 0 is the fingerprint: 0 bits (Tanimoto), 1 counts (min-max Tanimoto).
-    """
+def _similarities(fp, train_fps, kinds):
+    """Similarities of one :func:`fingerprint` triple to training lists ``(bits, counts, features)``, by kernel."""
     import numpy as np
     from rdkit import DataStructs
 
-    out = np.zeros((2, len(fps_a), len(fps_b)))
-    for f in (0, 1):
-        other = [b[f] for b in fps_b]
-        for i, a in enumerate(fps_a):
-            out[f, i] = DataStructs.BulkTanimotoSimilarity(a[f], other)
+    raw = {}
+
+    def tanimoto(f):
+        if f not in raw:
+            raw[f] = np.asarray(DataStructs.BulkTanimotoSimilarity(fp[f], train_fps[f]))
+        return raw[f]
+
+    return {k: (tanimoto(1) + tanimoto(2)) / 2 if k == 2 else tanimoto(k) for k in set(kinds)}
+
+
+def similarity_matrix(fps_a, fps_b):
+    """Similarities between two lists of :func:`fingerprint` triples, shape (3, len(a), len(b)).
+
+    Axis 0 is the kernel of :data:`KERNELS`: 0 bits (Tanimoto), 1 counts (min-max
+    Tanimoto), 2 the mean of 1 and the feature-count similarity.
+    """
+    import numpy as np
+
+    other = tuple([b[f] for b in fps_b] for f in range(3))
+    out = np.zeros((3, len(fps_a), len(fps_b)))
+    for i, a in enumerate(fps_a):
+        sims = _similarities(a, other, (0, 1, 2))
+        for k in range(3):
+            out[k, i] = sims[k]
     return out
 
 
@@ -1451,7 +1479,7 @@ def kernel_dual(K_train, residuals, power=KERNEL_POWER, lam=KERNEL_LAMBDA, fp=(0
     .. math:: a_j = (K_{f_j}^{\circ p_j} + \lambda_j I)^{-1} r_j
 
     with :math:`K_f` the Tanimoto similarities of the training compounds by
-    fingerprint :math:`f_j` (:func:`similarity_matrix`, shape (2, n, n)),
+    kernel :math:`f_j` (:func:`similarity_matrix`, shape (3, n, n)),
     :math:`\circ p_j` the element-wise power and :math:`\lambda_j` the penalty
     of parameter j (scalars or one per parameter); r the residuals (n, 3)
     [MPa^0.5].
@@ -1471,24 +1499,22 @@ def kernel_correction(fp, train_fps, dual, k=3, power=KERNEL_POWER, kind=(0, 0, 
 
     .. math:: \Delta_j = \sum_i s_{f_j, i}^{p_j} a_{ij}
 
-    with :math:`s_{f,i}` the Tanimoto similarity to training compound i by
-    fingerprint f (0 bits, 1 counts; ``fp`` and ``train_fps`` are
-    :func:`fingerprint` pairs) and :math:`a_{ij}` its dual coefficient
-    (:func:`kernel_dual`); a molecule like none of the training compounds gets
-    almost no correction.
+    with :math:`s_{f,i}` the similarity to training compound i by kernel f
+    (:data:`KERNELS`; ``fp`` and ``train_fps`` are :func:`fingerprint` triples)
+    and :math:`a_{ij}` its dual coefficient (:func:`kernel_dual`); a molecule
+    like none of the training compounds gets almost no correction.
 
-    ``train_fps`` may also be given as a pair of lists (bits, counts), which is faster.
+    ``train_fps`` may also be given as a triple of lists (bits, counts,
+    features), which is faster.
 
     Returns ``(delta (3,), indices of the k most similar, their similarities)``
     (similarity by the bit fingerprint).
     """
     import numpy as np
-    from rdkit import DataStructs
 
-    if not (isinstance(train_fps, tuple) and len(train_fps) == 2 and isinstance(train_fps[0], list)):
-        train_fps = ([t[0] for t in train_fps], [t[1] for t in train_fps])
-    sims = [np.asarray(DataStructs.BulkTanimotoSimilarity(fp[f], train_fps[f]))
-            if f in kind or f == 0 else None for f in (0, 1)]
+    if not (isinstance(train_fps, tuple) and len(train_fps) == 3 and isinstance(train_fps[0], list)):
+        train_fps = tuple([t[f] for t in train_fps] for f in range(3))
+    sims = _similarities(fp, train_fps, tuple(int(f) for f in kind) + (0,))
     power = _per_param(power)
     delta = np.array([(sims[int(kind[j])] ** power[j]) @ dual[:, j] for j in range(dual.shape[1])])
     idx = np.argsort(-sims[0], kind="stable")[:k]
@@ -1521,7 +1547,7 @@ def select_settings(X, Y, K, keys, terms=None, n_folds=INNER_FOLDS, seed=SEED):
     Parameters
     ----------
     X : ndarray (n, m) design rows; Y : ndarray (n, 3) labels [MPa^0.5];
-    K : ndarray (2, n, n) Tanimoto similarities among these compounds (:func:`similarity_matrix`);
+    K : ndarray (3, n, n) similarities among these compounds by kernel (:func:`similarity_matrix`);
     keys : grouping keys (one structure, one key)
 
     Returns
@@ -1771,7 +1797,7 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
             if name != "square":
                 w.writerow([name, "meta", "", 0, *(f"{v:g}" for v in vals), src])
         w.writerow([f"settings chosen by {INNER_FOLDS}-fold grouped CV from huber (epsilon, alpha) {list(HUBER_GRID)}, "
-                    f"kernel (fingerprint 0 bits 1 counts, power, lambda) {list(KERNEL_GRID)}; outer folds={n_folds} "
+                    f"kernel (fingerprint 0 bits 1 counts 2 counts+features, power, lambda) {list(KERNEL_GRID)}; outer folds={n_folds} "
                     f"seed={seed} "
                     f"fitted={int(fitted.sum())}", "meta", "", 0, 0, 0, 0, src])
         for k, fs in enumerate(fold_settings):

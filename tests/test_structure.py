@@ -185,7 +185,7 @@ def _cv_rows():
 def test_stored_cv_errors_recomputed_from_the_training_table():
     # The per-compound out-of-fold predictions stored in gc_params_training.csv, scored against the labels:
     # must reproduce the overall row of gc_params_cv.csv, and stay within what was measured by nested CV
-    # (0.497 / 1.552 / 1.159 MPa^0.5 on 1084 compounds) plus 0.05.
+    # (0.495 / 1.498 / 1.151 MPa^0.5 on 1084 compounds) plus 0.05.
     rows = [r for r in csv.DictReader(open(structure._tables_dir() / "gc_params_training.csv", encoding="utf-8"))
             if r["fitted"] == "yes"]
     y = np.array([[float(r[f"{k}_MPa05"]) for k in ("dD", "dP", "dH")] for r in rows])
@@ -193,7 +193,7 @@ def test_stored_cv_errors_recomputed_from_the_training_table():
     mae = np.abs(p - y).mean(axis=0)
     overall = next(r for r in _cv_rows() if r["method"] == "solvsel-gc" and r["class"] == "all")
     assert mae == pytest.approx([float(overall[f"mae_{k}_MPa05"]) for k in ("dD", "dP", "dH")], abs=2e-3)
-    assert mae[0] <= 0.497 + 0.05 and mae[1] <= 1.552 + 0.05 and mae[2] <= 1.159 + 0.05
+    assert mae[0] <= 0.495 + 0.05 and mae[1] <= 1.498 + 0.05 and mae[2] <= 1.151 + 0.05
 
 
 def test_own_model_beats_the_published_method_on_the_same_compounds():
