@@ -920,19 +920,44 @@ CAL05_TO_MPA05 = math.sqrt(4.184)
 BEERBOWER_DP = 37.4  # dP [MPa^0.5] = 37.4 mu [D] / V^0.5 [cm3/mol] (Hansen 2007, ch. 1)
 
 
-def _lookup_cas(mol) -> str | None:
-    """CAS number of ``mol`` in the main ``chemicals`` databank (by InChIKey), or None."""
+def _lookup_cas(mol, full: bool = False) -> tuple[str | None, bool]:
+    """CAS number of ``mol`` in the main ``chemicals`` databank by InChIKey: ``(cas or None, exact)``.
+
+    When the exact key is not there, the key of the structure without stereo
+    is tried (``exact`` False): the library often lists only the isomer
+    mixture or the unspecified compound (citral for geranial).  Only the part
+    of the databank loaded by default is searched unless ``full`` (the whole
+    databank takes about 1.3 s to load, once a process; then only when the
+    default part finds nothing).
+    """
     Chem = _rdkit()
-    try:
-        key = Chem.MolToInchiKey(mol)
-    except Exception:  # pragma: no cover
-        return None
-    if not key:
-        return None
     from chemicals.identifiers import pubchem_db
 
-    hit = pubchem_db.search_InChI_key(key, autoload=False)
-    return hit.CASs if hit else None
+    flat = Chem.Mol(mol)
+    Chem.RemoveStereochemistry(flat)
+    keys = []
+    for m, exact in ((mol, True), (flat, False)):
+        try:
+            key = Chem.MolToInchiKey(m)
+        except Exception:  # pragma: no cover
+            continue
+        if key:
+            keys.append((key, exact))
+    for autoload in (False, True) if full else (False,):
+        for key, exact in keys:
+            hit = pubchem_db.search_InChI_key(key, autoload=autoload)
+            if hit:
+                return hit.CASs, exact
+    return None, True
+
+
+STEREO_FREE_NOTE = "matched to the library without stereo: its data may be for another isomer or the mixture"
+
+
+def _not_found_note(full: bool) -> str:
+    if full:
+        return "compound not in the chemicals library"
+    return "compound not in the part of the chemicals library searched by default (a full search finds more, slower)"
 
 
 def liquid_molar_volume(cas: str, T: float = 298.15) -> tuple[float | None, str]:
@@ -960,7 +985,7 @@ def liquid_molar_volume(cas: str, T: float = 298.15) -> tuple[float | None, str]
     return None, ""
 
 
-def properties_estimate(smiles_or_mol, cas: str | None = None) -> MethodEstimate:
+def properties_estimate(smiles_or_mol, cas: str | None = None, full_lookup: bool = False) -> MethodEstimate:
     r"""Hansen parameters from measured physical properties in the ``chemicals`` library.
 
     .. math::
@@ -980,6 +1005,8 @@ def properties_estimate(smiles_or_mol, cas: str | None = None) -> MethodEstimate
     smiles_or_mol : str or rdkit Mol
     cas : str, optional
         CAS number, if known (else looked up by InChIKey)
+    full_lookup : bool
+        search the whole databank of ``chemicals``, not only its default part (slower)
 
     Examples
     --------
@@ -994,9 +1021,11 @@ def properties_estimate(smiles_or_mol, cas: str | None = None) -> MethodEstimate
     mol = _as_mol(smiles_or_mol)
     name = "properties"
     src = "chemicals_lib;koenhen1975_memory;hansen2007"
-    cas = cas or _lookup_cas(mol)
+    exact = True
     if not cas:
-        return MethodEstimate(name, None, None, None, None, False, note="compound not in the chemicals library", source=src)
+        cas, exact = _lookup_cas(mol, full_lookup)
+    if not cas:
+        return MethodEstimate(name, None, None, None, None, False, note=_not_found_note(full_lookup), source=src)
     from chemicals import phase_change
     from chemicals.dipole import dipole_moment
     from chemicals.refractivity import RI
@@ -1034,7 +1063,7 @@ def properties_estimate(smiles_or_mol, cas: str | None = None) -> MethodEstimate
     dD = (KOENHEN_SMOLDERS[0] * n + KOENHEN_SMOLDERS[1]) * CAL05_TO_MPA05
     dP = BEERBOWER_DP * mu / math.sqrt(vm)
     rest = dt2 - dD * dD - dP * dP
-    note = f"CAS {cas}; Vm {vm_route}"
+    note = f"CAS {cas}; Vm {vm_route}" + ("" if exact else f"; {STEREO_FREE_NOTE}")
     if rest < 0:
         note += "; total parameter below dD and dP: dH set to 0"
     return MethodEstimate(name, dD, dP, math.sqrt(max(rest, 0.0)), vm, True, note=note, source=src)
@@ -1851,7 +1880,8 @@ def _uncertainty(P: OwnParams, method: str, cls: str) -> dict:
     }
 
 
-def estimate(smiles: str, method: str | None = None, params=None, properties: bool = True) -> Estimate:
+def estimate(smiles: str, method: str | None = None, params=None, properties: bool = True,
+             full_lookup: bool = False) -> Estimate:
     """Estimate the Hansen parameters and molar volume of one molecule from its SMILES.
 
     Parameters
@@ -1865,6 +1895,9 @@ def estimate(smiles: str, method: str | None = None, params=None, properties: bo
         the own model's parameter table (default the bundled ``tables/gc_params.csv``)
     properties : bool
         also look the compound up in ``chemicals`` for the property-based estimate
+    full_lookup : bool
+        search the whole databank of ``chemicals`` (about 1.3 s more, once a
+        process), not only the part it loads by default
 
     Returns
     -------
@@ -1898,11 +1931,11 @@ def estimate(smiles: str, method: str | None = None, params=None, properties: bo
     P = load_params(str(params) if params else None)
     own = own_model(mol, P)
     hvk = hoftyzer_van_krevelen(mol)
-    cas = _lookup_cas(mol) if properties or method == "properties" else None
+    looked = properties or method == "properties"
+    cas, exact = _lookup_cas(mol, full_lookup) if looked else (None, True)
     prop = properties_estimate(mol, cas) if cas else MethodEstimate(
         "properties", None, None, None, None, False,
-        note="not looked up" if not (properties or method == "properties") else "compound not in the chemicals library",
-        source="chemicals_lib")
+        note=_not_found_note(full_lookup) if looked else "not looked up", source="chemicals_lib")
     by_name = {OWN_METHOD: own, "hoftyzer-van-krevelen": hvk, "properties": prop}
     chosen = by_name[method]
     if not chosen.covered:
@@ -1919,6 +1952,8 @@ def estimate(smiles: str, method: str | None = None, params=None, properties: bo
     notes = []
     if chosen.note:
         notes.append(chosen.note)
+    if cas and not exact:
+        notes.append(f"CAS {cas} {STEREO_FREE_NOTE}")
     # molar volume: the library's liquid value where it has the compound, else Fedors
     vm, vm_method = None, ""
     if cas:

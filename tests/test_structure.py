@@ -156,6 +156,17 @@ def test_properties_estimate_ethanol_against_published():
     assert abs(e.dD - 15.8) < 1.0 and abs(e.dP - 8.8) < 2.0 and abs(e.dH - 19.4) < 1.5
 
 
+def test_library_lookup_without_stereo_and_on_request_in_full():
+    # chemicals' databank lists citral (CAS 5392-40-5, the E/Z mixture, no stereo in its SMILES) but not
+    # geranial: the stereo-free InChIKey finds it, and the estimate says the match ignored stereo. (Without
+    # full_lookup only the part of the databank already loaded is searched, which depends on what the
+    # process has done before, so it is not checked here.)
+    geranial = "CC(C)=CCC/C(C)=C/C=O"
+    e = structure.estimate(geranial, full_lookup=True)
+    assert any(n.startswith("CAS 5392-40-5 matched to the library without stereo") for n in e.notes)
+    assert "COSTALD" in e.vm_method  # the library's volume of citral, not Fedors' estimate
+
+
 def test_training_labels_are_the_library_medians():
     # The stored training table must hold the median of the three chemicals data sets (checked on a sample).
     from chemicals import solubility
@@ -374,6 +385,9 @@ def test_cli_bad_input_exit_2(capsys):
     assert main(["estimate", "C1CC"]) == 2
     assert "could not be read" in capsys.readouterr().err
     assert main(["estimate", "[Na+].[Cl-]"]) == 2
+    capsys.readouterr()
+    assert main(["estimate", "CCO", "--lookup-all", "--no-lookup"]) == 2
+    assert "contradict" in capsys.readouterr().err
 
 
 def test_cli_refit_never_overwrites(tmp_path, capsys):
