@@ -20,6 +20,9 @@ from textual.widgets.option_list import Option
 from .base import BenchScreen
 from .widgets import CautionBox
 
+#: Labels of the error keys of an estimate (Ra is the trade's name of the distance).
+_LABEL = {"dD": "dD", "dP": "dP", "dH": "dH", "ra": "Ra"}
+
 
 class TargetScreen(BenchScreen):
     """Choose the target: a solute, typed HSP, a SMILES string or a bench fit."""
@@ -154,7 +157,7 @@ class TargetScreen(BenchScreen):
         u = est.uncertainty or {}
         if u:
             t.append("typical error (cross-validated, " + str(u.get("basis", "")) + "): "
-                     + "  ".join(f"{k} {u[k]:.2f}" for k in ("dD", "dP", "dH", "ra") if k in u) + "\n")
+                     + "  ".join(f"{_LABEL[k]} {u[k]:.2f}" for k in ("dD", "dP", "dH", "ra") if k in u) + " MPa^0.5\n")
         t.append("groups: " + ", ".join(f"{g.name} x{g.count}" for g in est.groups) + "\n")
         if est.uncovered_atoms:
             t.append(f"atoms no group covers: {len(est.uncovered_atoms)}\n", style="bold")
@@ -199,8 +202,8 @@ class TargetScreen(BenchScreen):
         if t.vm_cm3_mol:
             txt.append(f"molar volume {t.vm_cm3_mol:.1f} cm3/mol\n")
         if t.uncertainty:
-            txt.append("uncertainty: " + ", ".join(f"{k} {v:.2f}" for k, v in t.uncertainty.items()
-                                                  if isinstance(v, (int, float)) and k in ("dD", "dP", "dH", "ra")) + "\n")
+            txt.append("typical error: " + ", ".join(f"{_LABEL[k]} {v:.2f}" for k, v in t.uncertainty.items()
+                                                   if isinstance(v, (int, float)) and k in _LABEL) + " MPa^0.5\n")
         txt.append(f"\n{t.note}\n", style="dim")
         if t.solute is not None and t.solute.note:
             txt.append(f"\n{t.solute.note}\n", style="italic")
