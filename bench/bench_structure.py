@@ -132,7 +132,8 @@ def accuracy(quick: bool):
     for k, fs in enumerate(list(P.fold_settings) + [P.settings]):
         label = f"fold {k}" if k < len(P.fold_settings) else "final"
         print(f"{label:>8}: huber epsilon {fs.epsilon}, alpha {fs.alpha}, squared {tuple(int(v) for v in fs.square)}, "
-              f"kernel power {fs.power}, lambda {fs.lam}")
+              f"kernel {fs.fp} (of {', '.join(f'{i} {n}' for i, n in enumerate(structure.KERNELS))}), "
+              f"power {fs.power}, lambda {fs.lam}")
     conf = [r for r in cvrows if r["class"] == "conflicting labels"]
     if conf:
         r = conf[0]
