@@ -1,7 +1,7 @@
 """Benchmark of solvsel.structure: cross-validated accuracy by method and class, flavour molecules
 outside the training data with the interval the cross-validation supports, and speed.
 
-    .venv/bin/python bench/bench_structure.py            # full: refits with nested grouped 10-fold CV (4-9 min)
+    .venv/bin/python bench/bench_structure.py            # full: refits with nested grouped 10-fold CV (6-11 min)
     .venv/bin/python bench/bench_structure.py --quick    # stored CV results, flavour table, timings
 
 Errors are mean absolute errors in MPa^0.5 against the median of the three HSP data sets bundled with
