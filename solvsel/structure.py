@@ -1445,10 +1445,10 @@ def _predict(X, icpt, coef, square=SQUARE):
 #: Kernels of the similarity correction, by index: 0 Tanimoto of 2048-bit
 #: Morgan radius-2 fingerprints; 1 min-max Tanimoto of Morgan radius-2 counts;
 #: 2 the mean of kernel 1 and the min-max Tanimoto of feature-Morgan radius-2
-#: counts (atoms typed as donor, acceptor, aromatic, halogen, acidic, basic:
-#: compounds alike in their polar groups count as similar even when their
-#: atoms differ, e.g. a sulfone and a sulfoxide).  The mean of two kernels is
-#: again a kernel.
+#: counts (atoms typed only as donor, acceptor, aromatic, halogen, acidic,
+#: basic or none of these: compounds alike in the roles of their atoms count
+#: as similar even when the elements differ, e.g. a chloro and a bromo
+#: compound).  The mean of two kernels is again a kernel.
 KERNELS = ("Morgan bits", "Morgan counts", "Morgan + feature-Morgan counts")
 
 
