@@ -393,7 +393,7 @@ class CarriersScreen(BenchScreen):
         basis = next((b.selectivity_basis for b in res.results if b.selectivity_basis), "Ra")
         cols = ["#", "blend (volume fractions)", "Ra", "RED"]
         if rejects:
-            cols += [f"nearest reject {basis}", "margin"]
+            cols += [f"keep-out {basis}", "margin"]
         cols += ["one phase", "bp C", "flash C", "flammable", "cost"]
         rows = []
         for b in res.results:
@@ -402,7 +402,7 @@ class CarriersScreen(BenchScreen):
             if rejects:
                 row += [_fmt(b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra),
                         _fmt(b.selectivity)]
-            rows.append(row + [_phase(b), _bp(b), _fmt(b.lowest_flash_C, ".0f"), _short_hazard(b), _fmt(b.cost, ".1f")])
+            rows.append(row + [_phase(b, short=True), _bp(b), _fmt(b.lowest_flash_C, ".0f"), _short_hazard(b), _fmt(b.cost, ".1f")])
         fill_table(self.query_one("#blend-grid", DataTable), cols, rows)
         fill_table(self.query_one("#dropped-grid", DataTable), DROPPED_HEADERS, [
             (" + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions)), _fmt(d.ra), d.reason)
@@ -531,12 +531,14 @@ def _short_hazard(b) -> str:
     return b.hazard.replace("flammable liquid, GHS ", "").replace("category ", "cat ")
 
 
-def _phase(b) -> str:
+def _phase(b, short: bool = False) -> str:
+    """One-phase verdict of a blend with its basis ("pred." / "meas." in the table when ``short``)."""
     if len(b.components) == 1:
         return "-"
     if b.one_phase is None:
         return "?"
-    return ("yes" if b.one_phase else "NO") + {"measured": " (measured)", "predicted": " (predicted)"}.get(b.phase_basis, "")
+    basis = {"measured": "meas." if short else "measured", "predicted": "pred." if short else "predicted"}
+    return ("yes" if b.one_phase else "NO") + (f" ({basis[b.phase_basis]})" if b.phase_basis in basis else "")
 
 
 def _bp(b) -> str:
