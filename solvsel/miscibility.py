@@ -230,23 +230,26 @@ def measured_pair(cat, a, b):
     return row
 
 
-def _at_temperature(sa, sb, temp_C):
-    """HSP and molar volumes of two liquids at ``temp_C`` (Hansen-Beerbower), with a note."""
+def _liquid_at(s, temp_C):
+    """HSP and molar volume of one liquid at ``temp_C`` (Hansen-Beerbower), with a note ("" at 25 C)."""
     from .target import solvent_at
 
     if abs(temp_C - 25.0) < 1e-9:
-        return sa.hsp, float(sa.vm_cm3_mol), sb.hsp, float(sb.vm_cm3_mol), ""
-    out, notes = [], []
-    for s in (sa, sb):
-        try:
-            h, v, note = solvent_at(s, temp_C)
-            if note:
-                notes.append(f"{s.name}: {note}")
-        except (InputError, MissingDataError) as exc:
-            h, v = s.hsp, float(s.vm_cm3_mol)
-            notes.append(f"{s.name}: HSP kept at 25 C ({exc})")
-        out += [h, v]
-    return (*out, "; ".join(notes) or f"HSP shifted to {temp_C:g} C (Hansen and Beerbower 1971)")
+        return s.hsp, float(s.vm_cm3_mol), ""
+    try:
+        h, v, note = solvent_at(s, temp_C)
+        return h, v, f"{s.name}: {note}" if note else ""
+    except (InputError, MissingDataError) as exc:
+        return s.hsp, float(s.vm_cm3_mol), f"{s.name}: HSP kept at 25 C ({exc})"
+
+
+def _at_temperature(sa, sb, temp_C):
+    """HSP and molar volumes of two liquids at ``temp_C`` (Hansen-Beerbower), with a note."""
+    (ha, va, na), (hb, vb, nb) = _liquid_at(sa, temp_C), _liquid_at(sb, temp_C)
+    if abs(temp_C - 25.0) < 1e-9:
+        return ha, va, hb, vb, ""
+    notes = "; ".join(n for n in (na, nb) if n)
+    return ha, va, hb, vb, notes or f"HSP shifted to {temp_C:g} C (Hansen and Beerbower 1971)"
 
 
 def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
@@ -537,21 +540,17 @@ def _whole_blend(recs, f, present, verdicts, temp_C):
            for a, b in combinations(present, 2)):
         return None  # a measured solubility window that one chi cannot reproduce: the pairwise test stands
     n = len(sub)
-    H, V = [None] * n, [None] * n
-    for a in range(n):
-        for b in range(a + 1, n):
-            ha, va, hb, vb, _ = _at_temperature(sub[a], sub[b], temp_C)
-            H[a], V[a], H[b], V[b] = ha, va, hb, vb
+    H, V, _ = zip(*(_liquid_at(r, temp_C) for r in sub))
     V = np.array(V, dtype=float)
     vref = V.min()
-    N = V / vref
     chi = np.zeros((n, n))
     for a in range(n):
         for b in range(a + 1, n):
             c = float(hansen.chi_flory_huggins(H[a], H[b], vref, temp_C))
             v = verdicts[(present[a], present[b])]
             if v.basis == "measured":
-                cc = 0.5 * (1.0 / math.sqrt(N[a]) + 1.0 / math.sqrt(N[b])) ** 2
+                # critical chi of the pair, rescaled from liquid a's volume to the lattice site vref
+                cc = float(hansen.chi_critical(V[a], V[b])) * vref / V[a]
                 c = min(c, 0.9 * cc) if v.one_phase == "yes" else max(c, 1.1 * cc)
             chi[a, b] = chi[b, a] = c
     res = hansen.mixture_stability(V, [f[k] / sum(f[j] for j in present) for k in present], chi)
