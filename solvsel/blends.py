@@ -1204,13 +1204,15 @@ def optimise_blends(
         dropped.append(DroppedBlend(tuple(r.name for r in recs), tuple(float(v) for v in xs), float(RA[cand[j]]),
                                     reason))
 
+    def drop_two_phase(j, recs, xs, ph):
+        drop(j, recs, xs, f"two phases at these fractions ({ph[1]}): {ph[2]}")
+
     for j in order[:_SCAN_LIMIT]:
         counts["checked"] += 1
         if one_phase_only and screen_ok is not None and not screen_ok[j]:
             if len(kept_rows) < want and len(dropped) < _DROPPED_LISTED:
                 row, recs, xs = members_of(j)
-                ph = phase(j, recs, xs)
-                drop(j, recs, xs, f"two phases at these fractions ({ph[1]}): {ph[2]}")
+                drop_two_phase(j, recs, xs, phase(j, recs, xs))
             continue
         if one_phase_only and K[cand[j]] >= 3:
             # the pairwise screen passed: test the blend as a whole (tangent plane)
@@ -1219,7 +1221,7 @@ def optimise_blends(
             if ph[0] is False:
                 counts["two_phase"] += 1
                 if len(kept_rows) < want and len(dropped) < _DROPPED_LISTED:
-                    drop(j, recs, xs, f"two phases at these fractions ({ph[1]}): {ph[2]}")
+                    drop_two_phase(j, recs, xs, ph)
                 continue
         dose_info = None
         if dose is not None:
