@@ -1,4 +1,4 @@
-"""Benchmark of the blend optimiser's exact search (solvsel.blends.search_blends).
+"""Benchmark of the blend optimiser's exact search (solvsel.science.blends.search_blends).
 
 Prints:
 1. all blends of up to 3 and up to 4 liquids from a 60-liquid pool (goals:
@@ -27,7 +27,7 @@ import numpy as np
 
 sys.path.insert(0, os.path.join(os.path.dirname(__file__), ".."))
 
-from solvsel.blends import best_fractions, combinations_array, search_blends  # noqa: E402
+from solvsel.science.blends import best_fractions, combinations_array, search_blends  # noqa: E402
 
 TARGET = np.array([17.0, 6.0, 10.0])
 
@@ -131,8 +131,8 @@ def main(argv=None):
         print(f"   {m:>4}  " + "  ".join(cells))
 
     print("\n4. Whole blend search on the bundled table (every check: one-phase screen, hazard, food law)")
-    from solvsel.blends import optimise_blends
-    from solvsel.catalog import load_catalog
+    from solvsel.science.blends import optimise_blends
+    from solvsel.data.catalog import load_catalog
 
     cat = load_catalog()
     optimise_blends(cat, (17.8, 3.9, 9.9), max_components=2)  # warm the pair-matrix cache

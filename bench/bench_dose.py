@@ -10,9 +10,9 @@ from __future__ import annotations
 import sys
 import time
 
-from solvsel.catalog import load_catalog
-from solvsel.compliance import carrier_dose_check, check_dose
-from solvsel.formulation import formula_from_amounts
+from solvsel.data.catalog import load_catalog
+from solvsel.rules.regulations import carrier_dose_check, check_dose
+from solvsel.science.formulation import formula_from_amounts
 
 
 def main(quick: bool = False) -> None:

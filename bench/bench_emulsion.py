@@ -11,9 +11,9 @@ from __future__ import annotations
 import argparse
 import time
 
-from solvsel import emulsion as E
-from solvsel import hlb as H
-from solvsel.catalog import load_catalog
+from solvsel.science import emulsion as E
+from solvsel.science import hlb as H
+from solvsel.data.catalog import load_catalog
 
 
 def timed(fn, repeat: int) -> float:

@@ -1,7 +1,7 @@
 """How well does the Flory-Huggins prediction from HSP do without the table?
 
 For every measured pair of tables/miscibility.csv, the model's verdict
-(:func:`solvsel.miscibility.predict_pair`, which never looks at the table) is
+(:func:`solvsel.science.miscibility.predict_pair`, which never looks at the table) is
 compared with the measurement: the share predicted right as miscible in all
 proportions vs not, by group (pairs with water, other pairs), the confusion
 counts, and for partial pairs with tabulated solubilities the log10 error of
@@ -22,8 +22,8 @@ import numpy as np
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
-from solvsel import miscibility as M  # noqa: E402
-from solvsel.catalog import load_catalog  # noqa: E402
+from solvsel.science import miscibility as M  # noqa: E402
+from solvsel.data.catalog import load_catalog  # noqa: E402
 
 
 def main() -> None:

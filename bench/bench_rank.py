@@ -19,7 +19,7 @@ import numpy as np
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
-from solvsel import hansen  # noqa: E402
+from solvsel.science import hansen  # noqa: E402
 
 
 def best_of(fn, repeats):

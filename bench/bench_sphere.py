@@ -1,4 +1,4 @@
-"""Benchmark of the sphere fit (solvsel.sphere): speed, optimum against a
+"""Benchmark of the sphere fit (solvsel.science.sphere): speed, optimum against a
 brute-force grid, and the largest-margin rule against the classic one.
 
     .venv/bin/python bench/bench_sphere.py [--quick]
@@ -33,9 +33,9 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from solvsel.catalog import load_catalog  # noqa: E402
-from solvsel.hansen import SCALE, ra  # noqa: E402
-from solvsel.sphere import DEFAULT_BOUNDS, _best_r0, fit_sphere  # noqa: E402
+from solvsel.data.catalog import load_catalog  # noqa: E402
+from solvsel.science.hansen import SCALE, ra  # noqa: E402
+from solvsel.science.sphere import DEFAULT_BOUNDS, _best_r0, fit_sphere  # noqa: E402
 
 
 def problems(X, n, seed, k=40, flip=0.0, min_each=6):

@@ -1,4 +1,4 @@
-"""Benchmark of solvsel.structure: cross-validated accuracy by method and class, flavour molecules
+"""Benchmark of solvsel.science.structure: cross-validated accuracy by method and class, flavour molecules
 outside the training data with the interval the cross-validation supports, and speed.
 
     .venv/bin/python bench/bench_structure.py            # full: refits with nested grouped 10-fold CV (6-11 min)
@@ -24,7 +24,7 @@ import numpy as np
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
-from solvsel import structure  # noqa: E402
+from solvsel.science import structure  # noqa: E402
 
 FLAVOURS = [
     ("cannabidiol", "CCCCCc1cc(O)c([C@@H]2C=C(C)CC[C@H]2C(C)=C)c(O)c1"),

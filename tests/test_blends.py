@@ -1,4 +1,4 @@
-"""Tests of the blend optimiser (solvsel.blends) and of ``solvsel blend``.
+"""Tests of the blend optimiser (solvsel.science.blends) and of ``solvsel blend``.
 
 Outside references used here:
 - scipy.optimize SLSQP, a general constrained optimiser, on the same problems
@@ -16,7 +16,7 @@ import itertools
 import numpy as np
 import pytest
 
-from solvsel.blends import (
+from solvsel.science.blends import (
     best_fractions,
     combinations_array,
     kkt_violation,
@@ -24,7 +24,7 @@ from solvsel.blends import (
     search_blends,
 )
 from solvsel.errors import InputError
-from solvsel.hansen import ra
+from solvsel.science.hansen import ra
 
 SLSQP_STARTS = 6
 
@@ -259,13 +259,13 @@ def test_bad_input_raises_input_error():
 
 # ---------------------------------------------------------------- catalog level
 
-from solvsel.blends import FractionBound, optimise_blends, parse_fraction_bound  # noqa: E402
+from solvsel.science.blends import FractionBound, optimise_blends, parse_fraction_bound  # noqa: E402
 from solvsel.errors import UnknownNameError  # noqa: E402
 
 
 @pytest.fixture(scope="module")
 def cat():
-    from solvsel.catalog import load_catalog
+    from solvsel.data.catalog import load_catalog
 
     return load_catalog()
 
@@ -378,7 +378,7 @@ def test_mass_fractions_and_properties(cat):
 
 def test_temperature_shift(cat):
     # Liquids' HSP at 60 C by the Hansen-Beerbower rules of the Hansen engine
-    from solvsel.hansen import shift_temperature
+    from solvsel.science.hansen import shift_temperature
 
     res = optimise_blends(cat, (16.0, 9.0, 18.0), max_components=1, only=["ethanol", "propylene glycol"], temp_C=60)
     for b in res.results:
@@ -492,7 +492,7 @@ def test_engine_does_not_import_textual():
     import subprocess
     import sys
 
-    code = "import sys, solvsel.blends; sys.exit(1 if 'textual' in sys.modules else 0)"
+    code = "import sys, solvsel.science.blends; sys.exit(1 if 'textual' in sys.modules else 0)"
     assert subprocess.run([sys.executable, "-c", code], cwd=str(__import__("pathlib").Path(__file__).parents[1])).returncode == 0
 
 
@@ -534,7 +534,7 @@ def test_users_own_liquids_are_marked(tmp_path):
     # a user's row (same columns as the bundled table) is searched and shown as theirs
     from pathlib import Path
 
-    from solvsel.catalog import load_catalog
+    from solvsel.data.catalog import load_catalog
 
     import csv
 
@@ -559,7 +559,7 @@ def test_liquids_of_the_same_hsp_fold_into_one_blend(cat):
     # lists them alike) and benzyl alcohol is miscible with fatty oils (European
     # Pharmacopoeia monograph, from memory): the blends that differ only in the oil
     # are one answer of the model, shown once with the others as alternatives.
-    from solvsel.blends import optimise_blends
+    from solvsel.science.blends import optimise_blends
 
     res = optimise_blends(cat, cat.solute("cannabidiol"), max_components=2, use="carrier", jurisdiction="EU", top=10)
     oils = {"sunflower oil", "olive oil", "rapeseed oil", "soybean oil", "corn oil"}

@@ -7,7 +7,7 @@ import shutil
 
 import pytest
 
-from solvsel.catalog import TABLES_DIR, Catalog, check_cas, load_catalog, normalize_name
+from solvsel.data.catalog import TABLES_DIR, Catalog, check_cas, load_catalog, normalize_name
 from solvsel.errors import InputError, TableError, UnknownNameError
 
 

@@ -9,7 +9,7 @@ import pytest
 
 from solvsel.cli import main
 from solvsel.errors import InputError
-from solvsel.query import where
+from solvsel.data.query import where
 
 
 def run_json(capsys, argv):
@@ -68,8 +68,8 @@ def test_report_writes_three_files_and_never_overwrites(tmp_path, capsys):
 
 
 def test_demo_scenario_is_marked_demo():
-    from solvsel.catalog import load_catalog
-    from solvsel.demo import demo_steps, load_scenario
+    from solvsel.data.catalog import load_catalog
+    from solvsel.data.scenario import demo_steps, load_scenario
 
     s = load_scenario()
     assert s.source == "demo" and "fictional" in s.company

@@ -13,8 +13,8 @@ from pathlib import Path
 
 import pytest
 
-from solvsel import compliance as cp
-from solvsel.catalog import TABLES_DIR, load_catalog
+from solvsel.rules import regulations as cp
+from solvsel.data.catalog import TABLES_DIR, load_catalog
 from solvsel.errors import InputError, UnknownNameError
 
 
@@ -248,7 +248,7 @@ def test_engines_do_not_import_the_ui_or_heavy_libraries():
     import sys
 
     code = (
-        "import sys, solvsel.compliance, solvsel.formulation, solvsel.cli.dose; "
+        "import sys, solvsel.rules.regulations, solvsel.science.formulation, solvsel.cli.dose; "
         "print(','.join(m for m in ('textual', 'pandas', 'scipy', 'rdkit', 'chemicals') if m in sys.modules))"
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout.strip()

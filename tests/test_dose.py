@@ -13,9 +13,9 @@ import math
 
 import pytest
 
-from solvsel import compliance as cp
-from solvsel import formulation as fm
-from solvsel.catalog import load_catalog
+from solvsel.rules import regulations as cp
+from solvsel.science import formulation as fm
+from solvsel.data.catalog import load_catalog
 from solvsel.cli import main
 from solvsel.errors import InputError, MissingDataError, TableError, UnknownNameError
 

@@ -1,4 +1,4 @@
-"""Tests of solvsel.emulsion and ``solvsel emulsion`` against published tables and worked examples."""
+"""Tests of solvsel.science.emulsion and ``solvsel emulsion`` against published tables and worked examples."""
 
 from __future__ import annotations
 
@@ -10,8 +10,8 @@ import sys
 import numpy as np
 import pytest
 
-from solvsel import emulsion as E
-from solvsel.catalog import load_catalog
+from solvsel.science import emulsion as E
+from solvsel.data.catalog import load_catalog
 from solvsel.errors import InputError, MissingDataError, OutOfRangeError
 
 

@@ -1,4 +1,4 @@
-"""Checks of solvsel.hansen against published values and outside references.
+"""Checks of solvsel.science.hansen against published values and outside references.
 
 Sources named beside each check.  "Hansen (2007)" is Hansen, C. M., *Hansen
 Solubility Parameters: A User's Handbook*, 2nd ed., CRC Press, 2007, Appendix A;
@@ -14,7 +14,7 @@ import math
 import numpy as np
 import pytest
 
-from solvsel import hansen as H
+from solvsel.science import hansen as H
 from solvsel.errors import InputError, MissingDataError, OutOfRangeError
 
 # Hansen (2007) values [MPa^0.5]

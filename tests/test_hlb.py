@@ -1,4 +1,4 @@
-"""Tests of solvsel.hlb and ``solvsel hlb`` against published HLB values and worked examples.
+"""Tests of solvsel.science.hlb and ``solvsel hlb`` against published HLB values and worked examples.
 
 Published values recalled but not re-checked against the paper are marked
 "from memory" beside each check, as in tables/sources.csv.
@@ -13,8 +13,8 @@ import sys
 import numpy as np
 import pytest
 
-from solvsel import hlb as H
-from solvsel.catalog import load_catalog
+from solvsel.science import hlb as H
+from solvsel.data.catalog import load_catalog
 from solvsel.errors import InputError, MissingDataError, OutOfRangeError, UnknownNameError
 
 
@@ -353,7 +353,7 @@ def test_cli_bad_input_exit_2():
 
 def test_engines_import_light():
     # engines never import textual, and RDKit / scipy.optimize load only when used
-    code = ("import sys, solvsel.hlb, solvsel.emulsion; "
+    code = ("import sys, solvsel.science.hlb, solvsel.science.emulsion; "
             "print(any(m.split('.')[0] in ('textual', 'rdkit') or m == 'scipy.optimize' for m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
     assert out.stdout.strip() == "False", out.stderr

@@ -1,4 +1,4 @@
-"""Checks of the miscibility table and engine (solvsel.miscibility).
+"""Checks of the miscibility table and engine (solvsel.science.miscibility).
 
 Facts of the trade are marked "common practice"; published mutual
 solubilities name their compilation.
@@ -12,8 +12,8 @@ from itertools import combinations
 import numpy as np
 import pytest
 
-from solvsel import miscibility as M
-from solvsel.catalog import load_catalog
+from solvsel.science import miscibility as M
+from solvsel.data.catalog import load_catalog
 from solvsel.errors import InputError, UnknownNameError
 
 

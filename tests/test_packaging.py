@@ -76,7 +76,7 @@ def test_wheel_ships_the_tables(tmp_path):
         z.extractall(site)
     Path(site, "deps.pth").write_text(sysconfig.get_paths()["purelib"] + "\n")
     code = (
-        "from solvsel.catalog import load_catalog, TABLES_DIR\n"
+        "from solvsel.data.catalog import load_catalog, TABLES_DIR\n"
         "c = load_catalog()\n"
         "print(TABLES_DIR.parent.name, TABLES_DIR.name, len(c.solvents), c.solvent('PG').cas)\n"
     )

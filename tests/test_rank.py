@@ -16,11 +16,11 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from solvsel import hansen as H
-from solvsel.catalog import load_catalog
+from solvsel.science import hansen as H
+from solvsel.data.catalog import load_catalog
 from solvsel.cli import main
 from solvsel.errors import InputError, OutOfRangeError, UnknownNameError
-from solvsel.target import (
+from solvsel.science.target import (
     Target,
     nearest_liquids,
     rank_solvents,
@@ -114,7 +114,7 @@ def test_temperature_shifts_solvents_and_drops_boiling_ones(cat):
 
 
 def test_food_filter_uses_the_compliance_status(cat):
-    from solvsel.compliance import food_status
+    from solvsel.rules.regulations import food_status
 
     # with no use given, a liquid allowed as a carrier or as an extraction solvent is kept
     r = rank_solvents(cat, target_from_hsp((17.0, 3.0, 8.0)), food=True)
@@ -310,7 +310,7 @@ def test_miscible_blend_and_bridge(capsys):
 
 def test_engines_do_not_import_the_ui():
     code = (
-        "import sys; import solvsel.hansen, solvsel.miscibility, solvsel.target, solvsel.cli.rank, "
+        "import sys; import solvsel.science.hansen, solvsel.science.miscibility, solvsel.science.target, solvsel.cli.rank, "
         "solvsel.cli.miscible; print('textual' in sys.modules, 'sklearn' in sys.modules, 'scipy.optimize' in sys.modules)"
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=Path(__file__).parents[1], check=True)
@@ -319,8 +319,8 @@ def test_engines_do_not_import_the_ui():
 
 def test_property_limits_apply_as_in_the_blend_search(cat):
     """--min-flash, --bp-range and --max-cost drop the same liquids in rank as in blend
-    (one shared rule, solvsel.blends.property_reason)."""
-    from solvsel.blends import property_reason
+    (one shared rule, solvsel.science.blends.property_reason)."""
+    from solvsel.science.blends import property_reason
 
     t = target_from_hsp((17.0, 3.0, 8.0))
     r = rank_solvents(cat, t, min_flash_C=60.0, bp_min_C=150.0, max_cost=3)

@@ -13,11 +13,11 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from solvsel.catalog import load_catalog
+from solvsel.data.catalog import load_catalog
 from solvsel.errors import InputError
-from solvsel.hansen import ra
-from solvsel.sphere import _best_r0, _distances, desirability, fit_sphere, grading_weights, suggest_tests
-from solvsel.hansen import scaled
+from solvsel.science.hansen import ra
+from solvsel.science.sphere import _best_r0, _distances, desirability, fit_sphere, grading_weights, suggest_tests
+from solvsel.science.hansen import scaled
 
 KEYS = ("dD", "dP", "dH", "r0")
 
@@ -363,7 +363,7 @@ def test_c60_fullerene_memory_set_classic_rule():
 
 from solvsel.cli import main  # noqa: E402
 from solvsel.errors import TableError  # noqa: E402
-from solvsel.sphere import read_bench  # noqa: E402
+from solvsel.science.sphere import read_bench  # noqa: E402
 
 EXAMPLES = __import__("pathlib").Path(__file__).parent.parent / "examples"
 
@@ -524,7 +524,7 @@ def test_two_spheres_recover_two_populations(liquids, capsys):
     # Truth: a low-polarity sphere (16.0, 3.0, 4.0; R0 4.5) and a
     # hydrogen-bonding one (16.5, 9.0, 20.0; R0 5.0), results classified with
     # Hansen's Ra on the table's liquids (made-up spheres, common practice).
-    from solvsel.sphere import fit_two_spheres
+    from solvsel.science.sphere import fit_two_spheres
 
     X, names = liquids
     truths = [(np.array([16.0, 3.0, 4.0]), 4.5), (np.array([16.5, 9.0, 20.0]), 5.0)]

@@ -1,4 +1,4 @@
-"""Tests of solvsel.structure (HSP and molar volume from SMILES) and ``solvsel estimate``.
+"""Tests of solvsel.science.structure (HSP and molar volume from SMILES) and ``solvsel estimate``.
 
 Sources of the reference numbers are named beside each check: the HSP data sets
 bundled with the ``chemicals`` library (Diaz de los Rios & Murcia Belmonte 2022,
@@ -18,7 +18,7 @@ import math
 import numpy as np
 import pytest
 
-from solvsel import structure
+from solvsel.science import structure
 from solvsel.errors import InputError, MissingDataError, OutOfRangeError
 
 
@@ -360,7 +360,7 @@ def test_estimate_result_fields():
 
 
 def test_target_from_smiles_uses_the_estimate():
-    from solvsel.target import target_from_smiles
+    from solvsel.science.target import target_from_smiles
 
     t = target_from_smiles("CC(C)=CCCC(C)=CC=O")
     e = structure.estimate("CC(C)=CCCC(C)=CC=O")
@@ -422,7 +422,7 @@ def test_cli_params_file_is_used(tmp_path, capsys):
 
 
 def test_cli_save_to_own_solutes(tmp_path, capsys):
-    from solvsel.catalog import load_catalog
+    from solvsel.data.catalog import load_catalog
     from solvsel.cli import main
 
     path = tmp_path / "my_solutes.csv"

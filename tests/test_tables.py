@@ -17,7 +17,7 @@ import warnings
 import numpy as np
 import pytest
 
-from solvsel.catalog import TABLES_DIR, load_catalog
+from solvsel.data.catalog import TABLES_DIR, load_catalog
 
 warnings.filterwarnings("ignore")
 
@@ -83,7 +83,7 @@ def test_every_source_is_cited_and_used(cat):
     used = set()
     for name in cat.table_names:
         df = cat.table(name)
-        from solvsel.catalog import _load_schema
+        from solvsel.data.catalog import _load_schema
 
         for spec in _load_schema(TABLES_DIR)[name]:
             if spec.type == "sources":
@@ -104,7 +104,7 @@ def test_no_stray_whitespace_or_crlf_in_tables():
 
 
 def test_units_in_numeric_column_names():
-    from solvsel.catalog import _load_schema
+    from solvsel.data.catalog import _load_schema
 
     unitless_ok = {"cost_class"}  # a class, not a quantity
     for table, specs in _load_schema(TABLES_DIR).items():
@@ -288,7 +288,7 @@ def test_total_parameter_against_hildebrand(pure):
 
 def test_every_table_has_a_source_column_filled_on_every_row(cat):
     """Every row that holds a number carries at least one source id (issue 2: a source on every row)."""
-    from solvsel.catalog import _load_schema
+    from solvsel.data.catalog import _load_schema
 
     schema = _load_schema(TABLES_DIR)
     for name in cat.table_names:

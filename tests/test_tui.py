@@ -15,7 +15,7 @@ import pytest
 
 pytest.importorskip("textual")
 
-from solvsel.catalog import load_catalog  # noqa: E402
+from solvsel.data.catalog import load_catalog  # noqa: E402
 from solvsel.tui.app import create_app  # noqa: E402
 
 SIZE = (160, 48)
@@ -57,9 +57,9 @@ def _cells(grid, row):
 
 def test_opens_on_demo_ranking_cautions_and_every_screen_by_key():
     async def go():
-        from solvsel.compliance import DEFER
-        from solvsel.demo import load_scenario
-        from solvsel.target import rank_solvents, target_from_solute
+        from solvsel.rules.regulations import DEFER
+        from solvsel.data.scenario import load_scenario
+        from solvsel.science.target import rank_solvents, target_from_solute
 
         cat = load_catalog()
         app = create_app(catalog=cat)
@@ -121,7 +121,7 @@ def test_opens_on_demo_ranking_cautions_and_every_screen_by_key():
 
 def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled(monkeypatch):
     async def go():
-        from solvsel.blends import optimise_blends
+        from solvsel.science.blends import optimise_blends
         from solvsel.tui.carriers import BlendDone, BlendProgress
 
         cat = load_catalog()
@@ -169,12 +169,12 @@ def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled(monkey
                 assert _cells(screen.query_one("#blend-grid"), 0) == shown
 
             # a fault of the program in the worker is shown in a dialog, not swallowed
-            import solvsel.blends
+            import solvsel.science.blends
 
             def broken(*args, **kwargs):
                 raise RuntimeError("simulated fault")
 
-            monkeypatch.setattr(solvsel.blends, "optimise_blends", broken)
+            monkeypatch.setattr(solvsel.science.blends, "optimise_blends", broken)
             screen.action_search()
             await _settle(app, pilot)
             await pilot.pause()
@@ -186,7 +186,7 @@ def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled(monkey
 
 def test_target_screen_smiles_typed_numbers_dialogs_and_map():
     async def go():
-        from solvsel.structure import estimate
+        from solvsel.science.structure import estimate
         from solvsel.tui.dialogs import ErrorDialog
 
         app = create_app()
@@ -257,7 +257,7 @@ def test_target_screen_smiles_typed_numbers_dialogs_and_map():
 
 def test_tables_filter_uses_the_where_grammar_and_cites_sources():
     async def go():
-        from solvsel.query import where
+        from solvsel.data.query import where
         from solvsel.tui.dialogs import ErrorDialog
 
         cat = load_catalog()
@@ -291,9 +291,9 @@ def test_tables_filter_uses_the_where_grammar_and_cites_sources():
 def test_emulsion_and_limits_screens_show_the_library_results():
     async def go():
         from solvsel.cli._common import parse_amounts
-        from solvsel.compliance import check_dose
-        from solvsel.emulsion import design_beverage_emulsion
-        from solvsel.formulation import formula_from_amounts
+        from solvsel.rules.regulations import check_dose
+        from solvsel.science.emulsion import design_beverage_emulsion
+        from solvsel.science.formulation import formula_from_amounts
 
         cat = load_catalog()
         app = create_app(catalog=cat, start="emulsion")
@@ -344,7 +344,7 @@ def test_bench_fit_target_and_the_users_own_rows(tmp_path):
     async def go():
         import csv
 
-        from solvsel.sphere import fit_sphere
+        from solvsel.science.sphere import fit_sphere
         from solvsel.tui.dialogs import ErrorDialog
 
         # the user's own solvents file overrides the bundled ethanol row: it shows as theirs

@@ -37,7 +37,7 @@ _CATALOG = None
 def get_catalog(args=None):
     """The catalog of bundled tables plus the user's ``--own-*`` overlay files."""
     global _CATALOG
-    from ..catalog import load_catalog
+    from ..data.catalog import load_catalog
 
     own = {}
     if args is not None:

@@ -27,12 +27,12 @@ def add_target_arguments(parser, required: bool = True):
 
 
 def target_from_args(args, cat):
-    """The :class:`~solvsel.target.Target` the options name.
+    """The :class:`~solvsel.science.target.Target` the options name.
 
     Raises :class:`~solvsel.errors.InputError` when none is given (and the
     command needs one) or when the value is malformed.
     """
-    from ..target import target_from_hsp, target_from_smiles, target_from_solute
+    from ..science.target import target_from_hsp, target_from_smiles, target_from_solute
     from ._common import parse_hsp
 
     if getattr(args, "solute", None):

@@ -89,7 +89,7 @@ def _rejects(args, cat):
 
 def search(args, cat):
     """Run the search the options describe (also used by the report command and the UI)."""
-    from ..blends import optimise_blends
+    from ..science.blends import optimise_blends
 
     target = target_from_args(args, cat)
     bp_lo, bp_hi = parse_range(args.bp_range)

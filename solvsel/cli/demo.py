@@ -19,7 +19,7 @@ def register(sub):
 
 
 def run(args) -> int:
-    from ..demo import demo_steps, load_scenario
+    from ..data.scenario import demo_steps, load_scenario
     from ..errors import SolvselError
     from . import main
 

@@ -57,7 +57,7 @@ def register(subparsers):
 
 
 def _formula(cat, args):
-    from ..formulation import formula_from_amounts, formula_from_csv
+    from ..science.formulation import formula_from_amounts, formula_from_csv
 
     text = args.formula.strip()
     if text.lower().endswith(".csv") or (os.path.isfile(text) and "=" not in text):
@@ -72,7 +72,7 @@ def _fmt(x, spec=".4g"):
 
 
 def run(args) -> int:
-    from ..compliance import check_dose
+    from ..rules.regulations import check_dose
     from ..errors import InputError
     from ._common import get_catalog
 

@@ -52,7 +52,7 @@ def register(sub):
 
 
 def run(args) -> int:
-    from ..emulsion import WATER_VISCOSITY_20C, design_beverage_emulsion
+    from ..science.emulsion import WATER_VISCOSITY_20C, design_beverage_emulsion
     from ..errors import InputError
 
     cat = get_catalog(args)

@@ -68,7 +68,7 @@ def _read_lines(path: str, what: str) -> list[str]:
 
 
 def _refit(args) -> int:
-    from .. import structure
+    from ..science import structure
     from ..errors import InputError
 
     if args.smiles or args.file:
@@ -169,7 +169,7 @@ def _print_one(est, show_atoms: bool) -> None:
 
 
 def run(args) -> int:
-    from .. import structure
+    from ..science import structure
     from ..errors import InputError, SolvselError
 
     if args.refit:

@@ -66,7 +66,7 @@ def _next_pool(cat, food: bool, bench):
 
 
 def _cautions_for(cat, names):
-    from ..compliance import DEFER, solvent_cautions
+    from ..rules.regulations import DEFER, solvent_cautions
 
     out = []
     for n in names:
@@ -98,9 +98,9 @@ def _basis_summary(bench, partial: str, partial_weight: float) -> str:
 
 
 def run(args) -> int:
-    from ..compliance import DEFER
+    from ..rules.regulations import DEFER
     from ..errors import InputError
-    from ..sphere import fit_bench, read_bench, save_solute, solute_row, suggest_tests
+    from ..science.sphere import fit_bench, read_bench, save_solute, solute_row, suggest_tests
 
     if (args.save_as is None) != (args.into is None):
         raise InputError("--save-as NAME and --into MY_SOLUTES_CSV go together: give both to save the sphere")
@@ -117,7 +117,7 @@ def run(args) -> int:
     if args.two_spheres:
         import numpy as np
 
-        from ..sphere import fit_two_spheres
+        from ..science.sphere import fit_two_spheres
 
         if bench.scale != "words":
             raise InputError("--two-spheres takes good/partial/bad results, not numeric scores")

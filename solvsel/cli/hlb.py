@@ -72,7 +72,7 @@ def _float_pairs(text: str, what: str) -> list[tuple[float, float]]:
 
 
 def run(args) -> int:
-    from .. import hlb as H
+    from ..science import hlb as H
     from ..errors import InputError
 
     cat = get_catalog(args)
@@ -136,7 +136,7 @@ def run(args) -> int:
         out["fit"] = fit.to_dict()
     if not out:
         raise InputError("nothing to do: give --oil or --target (and --emulsifiers), --smiles, --series or --scores")
-    from ..compliance import DEFER
+    from ..rules.regulations import DEFER
 
     out["cautions"] = cautions + [DEFER]
     if args.json:
@@ -148,7 +148,7 @@ def run(args) -> int:
 
 def _rules(cat, pool, out: dict, args) -> list[dict]:
     """Rules on record for each emulsifier shown; none on record is said, never taken as allowed."""
-    from ..compliance import limits
+    from ..rules.regulations import limits
     from ..errors import InputError
 
     jur = [j.strip().upper() for j in parse_names(args.jurisdiction, "--jurisdiction")]

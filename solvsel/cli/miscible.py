@@ -60,7 +60,7 @@ def compute(args, cat):
     from itertools import combinations
 
     from ..errors import InputError
-    from ..miscibility import blend_phase, bridges, pair
+    from ..science.miscibility import blend_phase, bridges, pair
 
     names = list(args.liquids)
     if len(names) < 2:
@@ -104,7 +104,7 @@ def run(args) -> int:
     if args.json:
         emit_json(out)
         return 0
-    from ..miscibility import PairVerdict
+    from ..science.miscibility import PairVerdict
 
     pairs = out.get("pairs") or [out]
     rows = []

@@ -38,9 +38,9 @@ def register(sub):
 
 
 def compute(args, cat):
-    """The :class:`~solvsel.target.Ranking` the options ask for."""
+    """The :class:`~solvsel.science.target.Ranking` the options ask for."""
     from ..errors import InputError
-    from ..target import nearest_liquids, rank_solvents
+    from ..science.target import nearest_liquids, rank_solvents
 
     top = None if args.all else args.top
     if top is not None and top < 1:

@@ -35,7 +35,7 @@ def _capture(argv):
 
 def run(args) -> int:
     from ..errors import InputError
-    from ..report import write_report
+    from ..jobs.report import write_report
     from ._common import get_catalog
 
     cmd = [a for a in args.cmd if a != "--json"]

@@ -28,8 +28,8 @@ def register(sub):
 
 def select(cat, food=False, role=None, search=None, where_text=None, sort=None):
     """The solvents table filtered and sorted as the options say (a DataFrame)."""
-    from ..catalog import normalize_name
-    from ..query import resolve_column, where
+    from ..data.catalog import normalize_name
+    from ..data.query import resolve_column, where
 
     df = cat.solvents
     if food:

@@ -82,13 +82,13 @@ def create_app(catalog=None, scenario=None, start: str | None = None) -> Solvsel
     The target starts as the scenario's solute.  ``start`` names the first
     screen (``tables``, ``target``, ``carriers``, ``map``, ``emulsion``, ``limits``).
     """
-    from ..catalog import load_catalog
+    from ..data.catalog import load_catalog
     from ..errors import SolvselError
 
     cat = catalog if catalog is not None else load_catalog()
     problem = None
     if scenario is None:
-        from ..demo import load_scenario
+        from ..data.scenario import load_scenario
 
         try:
             scenario = load_scenario()
@@ -100,7 +100,7 @@ def create_app(catalog=None, scenario=None, start: str | None = None) -> Solvsel
     part = session.scenario_part("target")
     name = part.get("solute")
     if name:
-        from ..target import target_from_solute
+        from ..science.target import target_from_solute
 
         try:
             session.set_target(target_from_solute(cat, name))

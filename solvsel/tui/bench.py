@@ -1,4 +1,4 @@
-"""Read a bench-results CSV for the target screen and fit the sphere with :func:`solvsel.sphere.fit_sphere`.
+"""Read a bench-results CSV for the target screen and fit the sphere with :func:`solvsel.science.sphere.fit_sphere`.
 
 The file has a header row with a ``solvent`` (or ``name``) column naming a
 liquid of the catalog, and either a ``score`` column (numbers; a liquid is
@@ -67,8 +67,8 @@ def read_bench_csv(cat, path: str):
 def fit_from_csv(cat, path: str, good_at_most: str):
     """The fitted target and a text summary of the fit."""
     from ..errors import InputError
-    from ..sphere import fit_sphere
-    from ..target import Target
+    from ..science.sphere import fit_sphere
+    from ..science.target import Target
 
     names, hsp, values, numeric = read_bench_csv(cat, path)
     cut = None

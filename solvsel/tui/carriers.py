@@ -3,7 +3,7 @@
 The constraints on the left bound both lists (use, jurisdiction, largest
 blend, lowest flash point, boiling window, temperature, liquids left out,
 solutes to keep out).  The ranking is the library's single-liquid ranking; the
-blend search (:func:`solvsel.blends.optimise_blends`) runs in a cancellable
+blend search (:func:`solvsel.science.blends.optimise_blends`) runs in a cancellable
 thread worker that posts :class:`BlendProgress` and :class:`BlendDone`
 messages.  Blends dropped by a check, and liquids left out of the pool, are
 listed with their reasons.
@@ -256,7 +256,7 @@ class CarriersScreen(BenchScreen):
 
     # ---------------------------------------------------------------- single liquids
     def run_ranking(self, req: SearchRequest) -> None:
-        from ..target import rank_solvents
+        from ..science.target import rank_solvents
 
         res = self.guard(rank_solvents, self.session.catalog, self.session.target, temp_C=req.temp_C,
                          food=req.use is not None, use=req.use, jurisdiction=req.jurisdiction, top=15,
@@ -303,7 +303,7 @@ class CarriersScreen(BenchScreen):
     @work(thread=True, exclusive=True, group="blends", exit_on_error=False)
     def search_worker(self, target, req: SearchRequest) -> None:
         """Look up the reject solutes and run the blend search, off the UI thread."""
-        from ..blends import optimise_blends
+        from ..science.blends import optimise_blends
         from ..errors import SolvselError
 
         worker = get_current_worker()
@@ -485,7 +485,7 @@ class CarriersScreen(BenchScreen):
 
     def show_cautions(self, selected=None) -> None:
         """The selected liquid's or blend's cautions, then each liquid's on screen, then the lists'."""
-        from ..compliance import solvent_cautions
+        from ..rules.regulations import solvent_cautions
         from ..errors import SolvselError
 
         cautions: list[str] = []

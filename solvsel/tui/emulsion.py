@@ -1,10 +1,10 @@
 """Emulsion screen: emulsifiers for the oil phase, weighting and creaming in the drink.
 
 The required HLB of the oil phase and the emulsifier pairs that hit it come
-from :mod:`solvsel.hlb` (``oil_phase_required_hlb``, ``emulsifier_systems``);
+from :mod:`solvsel.science.hlb` (``oil_phase_required_hlb``, ``emulsifier_systems``);
 density match, weighting-agent levels against their legal limits, Stokes
 creaming and the ripening check from
-:func:`solvsel.emulsion.design_beverage_emulsion`.  The form opens on the demo
+:func:`solvsel.science.emulsion.design_beverage_emulsion`.  The form opens on the demo
 scenario's oil, Brix, dilution and droplet size; every field is editable.
 """
 
@@ -129,7 +129,7 @@ class EmulsionScreen(BenchScreen):
             show_error(self.app, errors[0])
 
     def compute_hlb(self) -> None:
-        from .. import hlb as H
+        from ..science import hlb as H
         from ..cli._common import parse_amounts, parse_names
 
         cat = self.session.catalog
@@ -162,7 +162,7 @@ class EmulsionScreen(BenchScreen):
 
     def compute_design(self) -> None:
         from ..cli._common import parse_amounts, parse_names
-        from ..emulsion import design_beverage_emulsion
+        from ..science.emulsion import design_beverage_emulsion
 
         cat = self.session.catalog
         box = self.query_one("#em-design", Static)
@@ -228,7 +228,7 @@ class EmulsionScreen(BenchScreen):
             cautions += list(self.design.cautions)
         if self.hlb_result is not None:
             cautions += list(self.hlb_result.cautions)
-        from .. import hlb as H
+        from ..science import hlb as H
 
         cautions += list(getattr(H, "HLB_CAUTIONS", ()))
         self.query_one("#em-cautions", CautionBox).show(cautions)

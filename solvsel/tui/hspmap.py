@@ -1,7 +1,7 @@
 """Map screen: the liquids of the table around the target, drawn in the terminal.
 
 Two views: dP against dH, and 2 dD against dH (the scaled coordinates of
-:func:`solvsel.hansen.scaled`, in which distance is Ra).  The target is a
+:func:`solvsel.science.hansen.scaled`, in which distance is Ra).  The target is a
 cross; where its R0 is known, the section of its sphere through the target
 is drawn as a circle; the best single liquids of the last ranking carry their
 rank, the best blends of the last search a letter.
@@ -61,7 +61,7 @@ class MapScreen(BenchScreen):
     def redraw(self) -> None:
         import numpy as np
 
-        from ..hansen import scaled
+        from ..science.hansen import scaled
 
         s = self.session
         cat = s.catalog

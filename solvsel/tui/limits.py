@@ -1,7 +1,7 @@
 """Limits screen: a flavour formula along its dilution chain, against the finished-product limits.
 
-Calls :func:`solvsel.compliance.check_dose` with the formula of
-:func:`solvsel.formulation.formula_from_amounts`; shows the level of every
+Calls :func:`solvsel.rules.regulations.check_dose` with the formula of
+:func:`solvsel.science.formulation.formula_from_amounts`; shows the level of every
 substance at every stage, each limit that applies (and the one that binds),
 and the largest dose that keeps them.
 """
@@ -82,9 +82,9 @@ class LimitsScreen(BenchScreen):
 
     def run_check(self):
         from ..cli._common import parse_amounts
-        from ..compliance import check_dose
+        from ..rules.regulations import check_dose
         from ..errors import InputError
-        from ..formulation import formula_from_amounts
+        from ..science.formulation import formula_from_amounts
 
         q = self.query_one
         cat = self.session.catalog

@@ -1,6 +1,6 @@
 """Tables screen: browse every bundled table, filter it, and read one row with its sources.
 
-The filter box takes the grammar of ``--where`` (:func:`solvsel.query.where`);
+The filter box takes the grammar of ``--where`` (:func:`solvsel.data.query.where`);
 the detail pane lists every value of the selected row and the citation of
 each source id it names (:meth:`Catalog.source`).
 """
@@ -119,7 +119,7 @@ class TablesScreen(BenchScreen):
 
     # -- work
     def load_table(self, name: str, condition: str = "") -> None:
-        from ..query import where
+        from ..data.query import where
 
         df = self.guard(self.session.catalog.table, name)
         if df is None:
@@ -181,7 +181,7 @@ class TablesScreen(BenchScreen):
         self.query_one("#row-cautions", CautionBox).show(self.row_cautions(row))
 
     def row_cautions(self, row: dict) -> list[str]:
-        from ..compliance import DEFER, solvent_cautions
+        from ..rules.regulations import DEFER, solvent_cautions
         from ..errors import SolvselError
 
         if self.table_name == "solvents":

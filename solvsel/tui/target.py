@@ -1,10 +1,10 @@
 """Target screen: say what must dissolve, in one of four ways.
 
-From the solutes table (:func:`solvsel.target.target_from_solute`), typed
-numbers (:func:`~solvsel.target.target_from_hsp`), a structure
-(:func:`~solvsel.target.target_from_smiles`, with the groups of
-:func:`solvsel.structure.estimate` shown), or a sphere fitted from bench
-results (:mod:`solvsel.sphere`).  The chosen target drives the carriers and
+From the solutes table (:func:`solvsel.science.target.target_from_solute`), typed
+numbers (:func:`~solvsel.science.target.target_from_hsp`), a structure
+(:func:`~solvsel.science.target.target_from_smiles`, with the groups of
+:func:`solvsel.science.structure.estimate` shown), or a sphere fitted from bench
+results (:mod:`solvsel.science.sphere`).  The chosen target drives the carriers and
 map screens.
 """
 
@@ -109,7 +109,7 @@ class TargetScreen(BenchScreen):
             self.fill_solutes(event.value)
 
     def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
-        from ..target import target_from_solute
+        from ..science.target import target_from_solute
 
         self.set_target(self.guard(target_from_solute, self.session.catalog, event.option.id))
 
@@ -138,14 +138,14 @@ class TargetScreen(BenchScreen):
 
     def typed_target(self):
         from ..cli._common import parse_hsp
-        from ..target import target_from_hsp
+        from ..science.target import target_from_hsp
 
         name = self.query_one("#typed-name", Input).value.strip() or "typed target"
         return target_from_hsp(parse_hsp(self.query_one("#typed-hsp", Input).value, "typed HSP"), name=name)
 
     def smiles_target(self):
-        from ..structure import estimate
-        from ..target import target_from_smiles
+        from ..science.structure import estimate
+        from ..science.target import target_from_smiles
 
         smiles = self.query_one("#smiles", Input).value.strip()
         target = target_from_smiles(smiles)
@@ -215,7 +215,7 @@ class TargetScreen(BenchScreen):
         if t.solute is not None and t.solute.category == "active":
             cautions.append("The legal status of actives in foods differs by jurisdiction and use: "
                             "check the regulations in force before formulating.")
-        from ..compliance import DEFER
+        from ..rules.regulations import DEFER
 
         cautions.append(DEFER)
         self.query_one("#target-cautions", CautionBox).show(cautions)

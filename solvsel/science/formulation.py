@@ -50,7 +50,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Sequence
 
-from .errors import InputError, MissingDataError, TableError, UnknownNameError
+from ..errors import InputError, MissingDataError, TableError, UnknownNameError
 
 __all__ = [
     "WATER_DENSITY_25C",
@@ -218,7 +218,7 @@ def formula_from_amounts(
 ) -> Formula:
     """A formula from ``[(name, percent), ...]`` by mass (default) or by volume.
 
-    A name may also be a catalog record (a :class:`~solvsel.catalog.Solvent`),
+    A name may also be a catalog record (a :class:`~solvsel.data.catalog.Solvent`),
     whose CAS and density are then used as they are.
 
     Percent amounts must not add up to more than 100; below 100 the rest is an
@@ -230,7 +230,7 @@ def formula_from_amounts(
     --------
     90 % propylene glycol and 10 % vanillin by mass:
 
-    >>> from solvsel.catalog import load_catalog
+    >>> from solvsel.data.catalog import load_catalog
     >>> f = formula_from_amounts(load_catalog(), [("propylene glycol", 90), ("vanillin", 10)])
     >>> [round(c.mass_fraction, 3) for c in f.components]
     [0.9, 0.1]
@@ -555,7 +555,7 @@ def stage_levels(formula: Formula, steps: Sequence[Step], formula_density: float
     f = 1.28 / (1.28 + 5 x 0.99705) = 0.204301, so PG in the drink is
     0.9 x 0.005 x 0.204301 = 919.36 mg/kg.
 
-    >>> from solvsel.catalog import load_catalog
+    >>> from solvsel.data.catalog import load_catalog
     >>> f = formula_from_amounts(load_catalog(), [("propylene glycol", 90), ("vanillin", 10)])
     >>> st = stage_levels(f, parse_chain("syrup 0.5% d=1.28; drink 1+5v"))
     >>> round(st[-1].mg_per_kg["57-55-6"], 1)

@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .errors import InputError
+from ..errors import InputError
 
 __all__ = ["SCALE", "as_hsp", "scaled", "ra", "red"]
 
@@ -96,7 +96,7 @@ import functools  # noqa: E402
 import math  # noqa: E402
 from dataclasses import asdict, dataclass  # noqa: E402
 
-from .errors import MissingDataError, OutOfRangeError  # noqa: E402
+from ..errors import MissingDataError, OutOfRangeError  # noqa: E402
 
 __all__ += [
     "R_J_MOL_K",

@@ -16,7 +16,7 @@ solvents (a positive list) a solvent that is not listed is ``"not permitted"``.
 
 The dose arithmetic (levels along a dilution chain, maximum dose, residues,
 claim flags) is in :func:`check_dose` and :func:`carrier_dose_check`; the
-formulation and the chain are modelled in :mod:`solvsel.formulation`.
+formulation and the chain are modelled in :mod:`solvsel.science.formulation`.
 
 Every result is an estimate for planning bench work: the legal texts in force,
 local codes and licensed practice decide.
@@ -41,8 +41,8 @@ import re
 from dataclasses import asdict, dataclass, field
 from typing import Any, Iterable, Mapping, Sequence
 
-from .catalog import number_or_none as _number
-from .errors import InputError, MissingDataError, UnknownNameError
+from ..data.catalog import number_or_none as _number
+from ..errors import InputError, MissingDataError, UnknownNameError
 
 __all__ = [
     "FOOD_JURISDICTIONS",
@@ -99,7 +99,7 @@ _STATUS_ORDER = {"permitted": 3, "conditional": 2, "no data": 1, "not permitted"
 
 def _catalog(cat):
     if cat is None:
-        from .catalog import load_catalog
+        from ..data.catalog import load_catalog
 
         return load_catalog()
     return cat
@@ -1031,7 +1031,7 @@ def claim_rules(cat=None, claim: str | None = None) -> list[dict]:
 
 def _resolve_substance(cat, name: str, what: str) -> tuple[str, str, str]:
     """(key, display name, cas) of a substance given by name or CAS."""
-    from .formulation import _lookup
+    from ..science.formulation import _lookup
 
     try:
         n, cas, _, _, _ = _lookup(cat, name)
@@ -1063,9 +1063,9 @@ def check_dose(
     Parameters
     ----------
     cat : Catalog or None
-    formula : solvsel.formulation.Formula
+    formula : solvsel.science.formulation.Formula
     chain : str or list of Step, optional
-        The chain (syntax in :mod:`solvsel.formulation`); None: the dose goes
+        The chain (syntax in :mod:`solvsel.science.formulation`); None: the dose goes
         straight into the food as consumed.
     jurisdiction : {"EU", "US"}
     category : str
@@ -1102,7 +1102,7 @@ def check_dose(
     limited carriers").  A substance with no rule in the jurisdiction is
     listed in ``no_data`` and the result is not ``complete``.
     """
-    from .formulation import WATER_DENSITY_25C, parse_chain, stage_levels  # noqa: F401
+    from ..science.formulation import WATER_DENSITY_25C, parse_chain, stage_levels  # noqa: F401
 
     cat = _catalog(cat)
     jur = _check_jurisdiction(jurisdiction, FOOD_JURISDICTIONS, "--jurisdiction (food law)")
@@ -1378,7 +1378,7 @@ def carrier_dose_check(cat, solvent_or_formula, dose, jurisdiction: str, categor
         A single carrier (record or name: 100 % of the formula), a blend as
         ``{name: mass_fraction}`` or ``[(name, mass_fraction), ...]`` with
         fractions in 0..1 (the rest, if any, is unspecified), or a
-        :class:`~solvsel.formulation.Formula`.
+        :class:`~solvsel.science.formulation.Formula`.
     dose : str or float
         Dose of the formula in the first stage: "0.15%", "1500ppm" or a mass
         fraction (0.0015).
@@ -1386,7 +1386,7 @@ def carrier_dose_check(cat, solvent_or_formula, dose, jurisdiction: str, categor
     category : str
         Food category of the food as consumed (see ``solvsel table food_categories``).
     chain : str, optional
-        Dilution chain (syntax in :mod:`solvsel.formulation`); the dose fills
+        Dilution chain (syntax in :mod:`solvsel.science.formulation`); the dose fills
         its first step.
 
     Returns
@@ -1416,7 +1416,7 @@ def carrier_dose_check(cat, solvent_or_formula, dose, jurisdiction: str, categor
     >>> round(chk.max_dose * 100, 4), chk.binding.unit
     (0.0962, 'mg/L')
     """
-    from .formulation import Formula, formula_from_amounts
+    from ..science.formulation import Formula, formula_from_amounts
 
     cat = _catalog(cat)
     if isinstance(solvent_or_formula, Formula):

@@ -9,7 +9,7 @@ and homogenises to a droplet size at which creaming is too slow to see.
 Terpene-rich oils also ripen (the small droplets dissolve into the large
 ones through the water), unless an insoluble ripening inhibitor is in the
 oil phase.  This module computes those numbers from plain inputs; the legal
-limits come from :mod:`solvsel.compliance` (one place for them) and are
+limits come from :mod:`solvsel.rules.regulations` (one place for them) and are
 passed in as :class:`AgentLimit` records.
 
 References
@@ -35,8 +35,8 @@ from typing import Mapping, Sequence
 
 import numpy as np
 
-from .catalog import number_or_none as _num
-from .errors import InputError, MissingDataError, OutOfRangeError
+from ..data.catalog import number_or_none as _num
+from ..errors import InputError, MissingDataError, OutOfRangeError
 
 __all__ = [
     "G",
@@ -693,8 +693,8 @@ def sucrose_table(cat) -> tuple[np.ndarray, np.ndarray]:
 
 
 def agent_limits(cat, agent: str, cas: str, jurisdiction: str, category: str, use: str = "weighting") -> list[AgentLimit]:
-    """Rules in force for ``agent`` used as ``use`` ("weighting" or "emulsifier"), from :func:`solvsel.compliance.limits`."""
-    from .compliance import limits
+    """Rules in force for ``agent`` used as ``use`` ("weighting" or "emulsifier"), from :func:`solvsel.rules.regulations.limits`."""
+    from ..rules.regulations import limits
 
     rows = limits(cat, cas=cas or None, substance=None if cas else agent, jurisdiction=jurisdiction,
                   category=category, use=use)
@@ -702,7 +702,7 @@ def agent_limits(cat, agent: str, cas: str, jurisdiction: str, category: str, us
 
 
 def _component(cat, name: str, fraction: float, densities: Mapping[str, float]) -> OilComponent:
-    from .errors import UnknownNameError
+    from ..errors import UnknownNameError
     from .hlb import _oil_row
 
     try:
@@ -918,7 +918,7 @@ def design_beverage_emulsion(
                         "measure both at the storage temperature before trusting a close match.")
     if ripe.warn:
         cautions.append("Ostwald ripening: " + ripe.reason + ". " + ripe.remedy + ".")
-    from .compliance import DEFER
+    from ..rules.regulations import DEFER
 
     cautions.append(DEFER)
     return EmulsionDesign(

@@ -15,7 +15,7 @@ from pathlib import Path
 from typing import Any
 
 from .catalog import TABLES_DIR
-from .errors import InputError
+from ..errors import InputError
 
 __all__ = ["Scenario", "load_scenario", "demo_steps", "SCENARIO_PATH"]
 

@@ -39,8 +39,8 @@ from typing import Iterable, Mapping, Sequence
 
 import numpy as np
 
-from .catalog import number_or_none as _num
-from .errors import InputError, MissingDataError, OutOfRangeError
+from ..data.catalog import number_or_none as _num
+from ..errors import InputError, MissingDataError, OutOfRangeError
 
 __all__ = [
     "HLB_CAUTIONS",
@@ -1111,7 +1111,7 @@ def all_emulsifiers(cat) -> list[Emulsifier]:
 
 def _oil_row(cat, name: str) -> tuple[str, dict]:
     """(table, row) of an oil-phase ingredient: oils first, then weighting agents."""
-    from .errors import UnknownNameError
+    from ..errors import UnknownNameError
 
     try:
         return "oils", cat.find("oils", name)

@@ -15,8 +15,8 @@ import json
 from pathlib import Path
 from typing import Any, Iterable
 
-from . import __version__
-from .errors import InputError
+from .. import __version__
+from ..errors import InputError
 
 __all__ = ["collect_source_ids", "rows_for_csv", "render_markdown", "write_report"]
 

@@ -27,7 +27,7 @@ from typing import Any, Iterable, Mapping, Sequence
 
 import numpy as np
 
-from .errors import InputError, TableError, UnknownNameError
+from ..errors import InputError, TableError, UnknownNameError
 
 __all__ = [
     "TABLES_DIR",
@@ -42,7 +42,7 @@ __all__ = [
 
 
 def _find_tables_dir() -> Path:
-    here = Path(__file__).resolve().parent
+    here = Path(__file__).resolve().parents[1]  # the solvsel package
     for candidate in (here / "tables", here.parent / "tables"):  # installed wheel, then checkout
         if (candidate / "sources.csv").is_file():
             return candidate
@@ -399,7 +399,7 @@ class Solvent(_Record):
         """True for liquids used on food (flavour carrier or extraction solvent roles).
 
         This is the table's role, not a legal status: see
-        :func:`solvsel.compliance.food_status` for that, per use and jurisdiction.
+        :func:`solvsel.rules.regulations.food_status` for that, per use and jurisdiction.
         """
         return "carrier" in self.roles or "extraction" in self.roles
 

@@ -51,7 +51,7 @@ from math import comb
 
 import numpy as np
 
-from .errors import InputError
+from ..errors import InputError
 from .hansen import SCALE, as_hsp
 
 __all__ = [
@@ -806,7 +806,7 @@ def property_reason(rec, bp_min_C=None, bp_max_C=None, min_flash_C=None, max_cos
     flash point), or None if it passes.  Shared by the blend search and the single-liquid
     ranking so both apply a limit the same way; a value not on record fails its limit.
 
-    >>> from solvsel.catalog import load_catalog
+    >>> from solvsel.data.catalog import load_catalog
     >>> property_reason(load_catalog().solvent("ethanol"), min_flash_C=60)
     'flash point 12 C, below 60 C'
     """
@@ -877,7 +877,7 @@ def optimise_blends(
     cat : Catalog
         the catalog (solvents table and the tables the checks need)
     target : Target, Solute or sequence
-        the target: a :class:`solvsel.target.Target`, a solute record, or
+        the target: a :class:`solvsel.science.target.Target`, a solute record, or
         ``(dD, dP, dH[, R0])`` [MPa^0.5]
     max_components : int
         largest blend, 1 to 4
@@ -946,7 +946,7 @@ def optimise_blends(
     of the polymer table of [1]_) is dissolved by neither diethyl ether nor
     ethanol (RED > 1) but by their blend, the classic collodion solvent:
 
-    >>> from solvsel.catalog import load_catalog
+    >>> from solvsel.data.catalog import load_catalog
     >>> res = optimise_blends(load_catalog(), (15.4, 14.7, 8.8, 11.5), max_components=2,
     ...                       only=["diethyl ether", "ethanol"])
     >>> [(b.label, round(b.red, 2)) for b in res.results]
@@ -985,7 +985,7 @@ def optimise_blends(
     if dose is not None and (jurisdiction is None or category is None):
         raise InputError("--dose needs --jurisdiction and --category (the food the blend ends up in)")
     bounds = [b if isinstance(b, FractionBound) else parse_fraction_bound(b) for b in (bounds or ())]
-    from .errors import OutOfRangeError
+    from ..errors import OutOfRangeError
     from .hansen import T_WINDOW_C
 
     temp_C = float(temp_C)
@@ -1058,7 +1058,7 @@ def optimise_blends(
         "keep_over": bool(keep_over),
     }
     t_info["temp_C"] = temp_C
-    from .compliance import DEFER
+    from ..rules.regulations import DEFER
 
     cautions = [_GENERAL_CAUTION, DEFER]
     if jurisdiction is not None and use is None:
@@ -1400,7 +1400,7 @@ def _solubility(solute, t_hsp, recs, xs, bh, temp_C):
         return None
     if any(r.mw_g_mol is None or r.vm_cm3_mol is None or r.density_g_cm3 is None for r in recs):
         return None
-    from .errors import SolvselError
+    from ..errors import SolvselError
     from .hansen import convert_fractions, solid_solubility
 
     try:
@@ -1422,7 +1422,7 @@ def _hazard_of(rec):
     3 category 2, 4 category 1 (or flammable with no flash point on record),
     5 flammable gas.
     """
-    from .compliance import hazard_class
+    from ..rules.regulations import hazard_class
 
     hz = hazard_class(rec.flash_C, rec.bp_C, flammable=rec.flammable)
     if hz is None:
@@ -1440,7 +1440,7 @@ def _not_permitted(cat, rec, use, jurisdiction):
     """Reason a liquid is left out under a jurisdiction's food law for the use, or None."""
     if use == "bench":
         return None  # bench tests are not a food use: no food-law filter
-    from .compliance import food_status
+    from ..rules.regulations import food_status
 
     st = food_status(cat, rec, use=use or "carrier", jurisdiction=jurisdiction)
     if st.allowed:
@@ -1454,7 +1454,7 @@ def _regulations(cat, rec, use, jurisdiction):
     if use == "bench":
         return [{"name": rec.name, "use": "bench", "status": "bench only",
                  "message": f"{rec.name}: bench tests only, not a food use"}]
-    from .compliance import food_status
+    from ..rules.regulations import food_status
 
     st = food_status(cat, rec, use=use or "carrier", jurisdiction=jurisdiction)
     d = st.to_dict()
@@ -1464,7 +1464,7 @@ def _regulations(cat, rec, use, jurisdiction):
 
 def _dose_check(cat, recs, xs, dose, jurisdiction, category, chain, already=None):
     """Carrier limits of the food at ``dose`` for a blend (compliance.carrier_dose_check), as a dict."""
-    from .compliance import carrier_dose_check
+    from ..rules.regulations import carrier_dose_check
     from .hansen import convert_fractions
 
     dens = [r.density_g_cm3 for r in recs]
@@ -1493,7 +1493,7 @@ def _dose_check(cat, recs, xs, dose, jurisdiction, category, chain, already=None
 
 
 def _solvent_cautions(rec, use):
-    from .compliance import solvent_cautions
+    from ..rules.regulations import solvent_cautions
 
     return solvent_cautions(rec, use=use)
 
@@ -1503,7 +1503,7 @@ def _screen(cat, recs, idx, fractions, temp_C):
     try:
         from .miscibility import pair_matrix
     except ModuleNotFoundError as exc:
-        if exc.name == "solvsel.miscibility":
+        if exc.name == "solvsel.science.miscibility":
             return None
         raise
     m = pair_matrix(cat, [r.name for r in recs], temp_C)
@@ -1515,7 +1515,7 @@ def _phase(cat, recs, xs, temp_C):
     try:
         from .miscibility import blend_phase
     except ModuleNotFoundError as exc:
-        if exc.name == "solvsel.miscibility":
+        if exc.name == "solvsel.science.miscibility":
             return None, "not checked", "the miscibility check is not available"
         raise
     res = blend_phase(cat, [r.name for r in recs], [float(v) for v in xs], temp_C)

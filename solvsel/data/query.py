@@ -28,7 +28,7 @@ from __future__ import annotations
 import difflib
 import re
 
-from .errors import InputError
+from ..errors import InputError
 
 __all__ = ["where", "resolve_column", "ALIASES"]
 

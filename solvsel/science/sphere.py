@@ -66,7 +66,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import InputError
+from ..errors import InputError
 from .hansen import SCALE, as_hsp, ra, scaled
 
 __all__ = [
@@ -1299,7 +1299,7 @@ def read_bench(path, cat, partial: str = "good", partial_weight: float = 0.5) ->
     import csv
     from pathlib import Path
 
-    from .errors import TableError, UnknownNameError
+    from ..errors import TableError, UnknownNameError
     from .hansen import mix
 
     if partial not in ("good", "bad"):
@@ -1468,8 +1468,8 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
     import tempfile
     from pathlib import Path
 
-    from .catalog import TABLES_DIR, normalize_name, read_table
-    from .errors import TableError
+    from ..data.catalog import TABLES_DIR, normalize_name, read_table
+    from ..errors import TableError
 
     tdir = Path(tables_dir) if tables_dir is not None else TABLES_DIR
     p = Path(path)
@@ -1500,7 +1500,7 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
         new = old + sep + buf.getvalue().encode("utf-8")
         what = "appended"
     else:
-        from .catalog import _load_schema
+        from ..data.catalog import _load_schema
 
         header = [s.column for s in _load_schema(tdir)["solutes"]]
         buf = io.StringIO()

@@ -9,7 +9,7 @@ certain than its input.
 The ranking of single solvents against a target lives here too
 (:func:`rank_solvents`): Hansen distance at the working temperature, the
 solubility estimate where the solute has fusion data, food status, dose
-limits and cautions from :mod:`solvsel.compliance`; and the nearest liquids
+limits and cautions from :mod:`solvsel.rules.regulations`; and the nearest liquids
 to a given liquid (:func:`nearest_liquids`), for substitutes.
 """
 
@@ -21,7 +21,7 @@ from typing import Any
 
 import numpy as np
 
-from .errors import InputError, OutOfRangeError
+from ..errors import InputError, OutOfRangeError
 
 __all__ = ["Target", "HSP_RANGES", "target_from_solute", "target_from_hsp", "target_from_smiles"]
 
@@ -157,7 +157,7 @@ def target_from_solute(cat, name: str) -> Target:
 
 
 def target_from_smiles(smiles: str) -> Target:
-    """Target estimated from a structure (group contribution, ``solvsel.structure``).
+    """Target estimated from a structure (group contribution, ``solvsel.science.structure``).
 
     The estimate has no interaction radius (R0 None) and carries the method's
     uncertainty.
@@ -189,7 +189,7 @@ def target_from_smiles(smiles: str) -> Target:
 
 from dataclasses import field  # noqa: E402
 
-from .errors import MissingDataError  # noqa: E402
+from ..errors import MissingDataError  # noqa: E402
 
 __all__ += ["RankedSolvent", "Ranking", "rank_solvents", "nearest_liquids", "solvent_at"]
 
@@ -201,7 +201,7 @@ class RankedSolvent:
     ``ra`` and ``red`` are at the ranking temperature (the solvent's HSP
     shifted by Hansen and Beerbower's rules where its expansion coefficient is
     known); ``red`` is None when the target has no R0.  ``solubility`` is an
-    estimate (dict of :class:`~solvsel.hansen.SolubilityEstimate`) where the
+    estimate (dict of :class:`~solvsel.science.hansen.SolubilityEstimate`) where the
     solute has fusion data, else None.
     """
 
@@ -307,7 +307,7 @@ def _solubility(target: Target, h, vm, s, temp_C):
 
 def _hazard_label(s):
     """(label, short code) of the GHS class, e.g. ("flammable liquid, ...", "H225")."""
-    from .compliance import hazard_class
+    from ..rules.regulations import hazard_class
 
     try:
         hz = hazard_class(s.flash_C, s.bp_C, s.flammable)
@@ -351,14 +351,14 @@ def rank_solvents(
     target : Target
     temp_C : float
         temperature [C]; solvents are shifted with
-        :func:`~solvsel.hansen.shift_temperature` (the target's HSP stays at
+        :func:`~solvsel.science.hansen.shift_temperature` (the target's HSP stays at
         25 C: solutes carry no expansion coefficient), solubility estimates use
         it directly; a solvent frozen or boiling there is dropped with the reason
     names : sequence of str, optional
         the pool (default: every solvent of the catalog, the user's included)
     food : bool
         keep only liquids whose food status for ``use`` is permitted or
-        conditional (:func:`solvsel.compliance.food_status`; "no data" is never
+        conditional (:func:`solvsel.rules.regulations.food_status`; "no data" is never
         taken as permission)
     use : {"carrier", "extraction", "bench"}, optional
         the intended use, for food status and cautions (default: with ``food``,
@@ -369,14 +369,14 @@ def rank_solvents(
         keep the best ``top``
     dose, category : optional
         dose of the flavour in the first stage ("0.15%") and the food category:
-        each carrier is checked with :func:`solvsel.compliance.carrier_dose_check`
+        each carrier is checked with :func:`solvsel.rules.regulations.carrier_dose_check`
         (needs ``jurisdiction``); one that breaks a limit is dropped unless
         ``keep_over``
     exclude : sequence of str
         names to leave out (e.g. the liquid itself for substitutes)
     bp_min_C, bp_max_C, min_flash_C, max_cost : optional
         property limits of the pool, applied as in the blend search
-        (:func:`solvsel.blends.property_reason`); a liquid that fails one is
+        (:func:`solvsel.science.blends.property_reason`); a liquid that fails one is
         dropped with the reason
     require_solubility : bool
         raise :class:`~solvsel.errors.MissingDataError` (rather than leave the
@@ -388,7 +388,8 @@ def rank_solvents(
     -------
     Ranking
     """
-    from . import compliance, hansen
+    from ..rules import regulations as compliance
+    from . import hansen
 
     if not (isinstance(temp_C, (int, float)) and math.isfinite(temp_C)):
         raise InputError(f"--temp: expected a temperature in C, got {temp_C}")
@@ -507,7 +508,7 @@ def nearest_liquids(cat, name: str, k: int = 10, food: bool = False, use: str | 
     """The liquids nearest to a given liquid in Hansen space (substitutes).
 
     Uses scikit-learn's :class:`~sklearn.neighbors.NearestNeighbors` on the
-    coordinates (2 dD, dP, dH) of :func:`solvsel.hansen.scaled`, in which
+    coordinates (2 dD, dP, dH) of :func:`solvsel.science.hansen.scaled`, in which
     Euclidean distance equals Ra; for replacing a solvent that is banned,
     toxic or costly.  The pool can be restricted to food-grade liquids
     (``food``); the liquid itself is left out.
@@ -537,6 +538,6 @@ def nearest_liquids(cat, name: str, k: int = 10, food: bool = False, use: str | 
     dist, idx = nn.kneighbors(hansen.scaled(me.hsp)[None, :])
     chosen = [full.results[i] for i in idx[0]]
     notes = full.notes + (f"nearest liquids to {me.name} (Ra in MPa^0.5); similar HSP is not similar toxicity, taste or legal status",)
-    from .compliance import DEFER
+    from ..rules.regulations import DEFER
 
     return Ranking(target, full.temp_C, tuple(chosen), full.dropped, notes, _cautions(chosen, DEFER), "ra")

@@ -33,9 +33,9 @@ from itertools import combinations
 
 import numpy as np
 
-from .catalog import number_or_none as _num
+from ..data.catalog import number_or_none as _num
 from . import hansen
-from .errors import InputError, MissingDataError
+from ..errors import InputError, MissingDataError
 
 __all__ = [
     "FULL",
@@ -260,7 +260,7 @@ def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
         \chi_c = \tfrac12\left(1 + \sqrt{V_a/V_b}\right)^2
 
     Miscible in all proportions when :math:`\chi \le \chi_c`; otherwise the
-    binodal of :func:`solvsel.hansen.binodal` (with :math:`N_b = V_b/V_a`)
+    binodal of :func:`solvsel.science.hansen.binodal` (with :math:`N_b = V_b/V_a`)
     gives the mutual solubilities, and the pair is "no" when both are below
     :data:`IMMISCIBLE_BELOW_WT`.
 
@@ -271,7 +271,7 @@ def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
         density_g_cm3 [g/cm^3]
     temp_C : float
         temperature [C]; away from 25 C both liquids' HSP and molar volumes
-        are shifted first (:func:`solvsel.target.solvent_at`)
+        are shifted first (:func:`solvsel.science.target.solvent_at`)
     """
     ha, va, hb, vb, shift_note = _at_temperature(sa, sb, temp_C)
     chi = float(hansen.chi_flory_huggins(ha, hb, va, temp_C))
@@ -322,7 +322,7 @@ def pair(cat, a, b, temp_C: float = 25.0) -> PairVerdict:
     d-Limonene and ethanol mix in all proportions (common practice), although
     the model alone predicts a split (chi 4.7 against a critical 3.6):
 
-    >>> from solvsel.catalog import load_catalog
+    >>> from solvsel.data.catalog import load_catalog
     >>> v = pair(load_catalog(), "d-limonene", "ethanol")
     >>> v.one_phase, v.basis, v.chi > v.chi_critical
     ('yes', 'measured', True)
@@ -702,7 +702,7 @@ def pair_matrix(cat, names=None, temp_C: float = 25.0) -> PairMatrix:
 
 
 def _food_ok(cat, s, use="carrier") -> bool:
-    from .compliance import food_status
+    from ..rules.regulations import food_status
 
     try:
         return food_status(cat, s, use=use).allowed
@@ -777,7 +777,7 @@ def bridges(cat, a, b, temp_C: float = 25.0, food_only: bool = False, names=None
         temperature [C]
     food_only : bool
         keep only liquids whose food status as a carrier is permitted or
-        conditional (:func:`solvsel.compliance.food_status`)
+        conditional (:func:`solvsel.rules.regulations.food_status`)
     names : sequence of str, optional
         candidate pool (default: every solvent)
     """
@@ -819,7 +819,7 @@ def largest_miscible_sets(cat, food_only: bool = True, temp_C: float = 25.0, nam
     ----------
     food_only : bool
         restrict to liquids whose food status as a carrier is permitted or
-        conditional (:func:`solvsel.compliance.food_status`)
+        conditional (:func:`solvsel.rules.regulations.food_status`)
     measured_only : bool
         use measured pairs only
     top : int

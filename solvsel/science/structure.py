@@ -53,7 +53,7 @@ from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
 
-from .errors import InputError, MissingDataError, OutOfRangeError, TableError
+from ..errors import InputError, MissingDataError, OutOfRangeError, TableError
 
 __all__ = [
     "Group",
@@ -98,7 +98,7 @@ R_J_molK = 8.314462618
 
 
 def _tables_dir() -> Path:
-    here = Path(__file__).resolve().parent
+    here = Path(__file__).resolve().parents[1]  # the solvsel package
     for cand in (here / "tables", here.parent / "tables"):
         if cand.is_dir():
             return cand
@@ -1989,7 +1989,7 @@ def estimate(smiles: str, method: str | None = None, params=None, properties: bo
 
 def estimate_many(smiles_list, method=None, params=None, properties=False):
     """Estimate many SMILES; returns a list of (smiles, Estimate or the error raised)."""
-    from .errors import SolvselError
+    from ..errors import SolvselError
 
     out = []
     for s in smiles_list:
