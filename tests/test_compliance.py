@@ -14,6 +14,7 @@ from pathlib import Path
 import pytest
 
 from solvsel.rules import regulations as cp
+from solvsel.rules import cautions, hazards
 from solvsel.data.catalog import TABLES_DIR, load_catalog
 from solvsel.errors import InputError, UnknownNameError
 
@@ -139,7 +140,7 @@ def test_limits_by_substance_name_and_bad_input(cat):
 def test_ghs_flammable_liquid_boundaries(flash, bp, cat_):
     # GHS Rev. 10, 2.6.2: cat 1 fp < 23 C and ibp <= 35 C; cat 2 fp < 23 C and ibp > 35 C;
     # cat 3 23 <= fp <= 60 C; cat 4 60 < fp <= 93 C
-    hz = cp.hazard_class(flash, bp)
+    hz = hazards.hazard_class(flash, bp)
     assert (hz.category if hz else None) == cat_
 
 
@@ -155,37 +156,37 @@ def test_ghs_class_from_library_properties(cas, statement):
     from chemicals.phase_change import Tb
     from chemicals.safety import T_flash
 
-    hz = cp.hazard_class(T_flash(cas) - 273.15, Tb(cas) - 273.15)
+    hz = hazards.hazard_class(T_flash(cas) - 273.15, Tb(cas) - 273.15)
     assert hz.hazard_statement == statement
 
 
 def test_gases_are_not_flammable_liquids(cat):
     for name in ("propane", "n-butane", "isobutane", "dimethyl ether"):
         s = cat.solvent(name)
-        hz = cp.hazard_class(s.flash_C, s.bp_C, flammable=s.flammable)
+        hz = hazards.hazard_class(s.flash_C, s.bp_C, flammable=s.flammable)
         assert hz.kind == "flammable gas" and "H220" in hz.hazard_statement, name
     co2 = cat.solvent("carbon dioxide")
-    hz = cp.hazard_class(co2.flash_C, co2.bp_C, flammable=co2.flammable, gas=True)
+    hz = hazards.hazard_class(co2.flash_C, co2.bp_C, flammable=co2.flammable, gas=True)
     assert hz.kind == "gas under pressure" and "not flammable" in hz.label
-    assert cp.hazard_class(None, 100.0) is None  # water
+    assert hazards.hazard_class(None, 100.0) is None  # water
 
 
 # ----------------------------------------------------------------------------- cautions
 
 
 def test_cautions(cat):
-    hexane = cp.solvent_cautions(cat.solvent("n-hexane"), use="extraction", cat=cat)
+    hexane = cautions.solvent_cautions(cat.solvent("n-hexane"), use="extraction", cat=cat)
     assert any("gas detection" in c for c in hexane) and any("neurotoxic" in c for c in hexane)
-    assert hexane[-1] == cp.DEFER
-    co2 = " ".join(cp.solvent_cautions(cat.solvent("carbon dioxide"), use="extraction", cat=cat))
+    assert hexane[-1] == cautions.DEFER
+    co2 = " ".join(cautions.solvent_cautions(cat.solvent("carbon dioxide"), use="extraction", cat=cat))
     assert "asphyxiation" in co2 and "flammable liquid" not in co2
-    assert any("toxic" in c for c in cp.solvent_cautions(cat.solvent("methanol"), cat=cat))
-    assert any("chlorinated" in c for c in cp.solvent_cautions(cat.solvent("dichloromethane"), cat=cat))
-    assert any("denatured" in c for c in cp.solvent_cautions(cat.solvent("ethanol 70% v/v"), cat=cat))
-    assert any("ICH Q3C class 2" in c for c in cp.solvent_cautions(cat.solvent("toluene"), use="bench", cat=cat))
-    assert cp.solvent_cautions(cat.solvent("water"), cat=cat) == [cp.DEFER]
+    assert any("toxic" in c for c in cautions.solvent_cautions(cat.solvent("methanol"), cat=cat))
+    assert any("chlorinated" in c for c in cautions.solvent_cautions(cat.solvent("dichloromethane"), cat=cat))
+    assert any("denatured" in c for c in cautions.solvent_cautions(cat.solvent("ethanol 70% v/v"), cat=cat))
+    assert any("ICH Q3C class 2" in c for c in cautions.solvent_cautions(cat.solvent("toluene"), use="bench", cat=cat))
+    assert cautions.solvent_cautions(cat.solvent("water"), cat=cat) == [cautions.DEFER]
     with pytest.raises(InputError):
-        cp.solvent_cautions(cat.solvent("water"), use="cooking")
+        cautions.solvent_cautions(cat.solvent("water"), use="cooking")
 
 
 # ----------------------------------------------------------------------------- food status

@@ -57,7 +57,7 @@ def _cells(grid, row):
 
 def test_opens_on_demo_ranking_cautions_and_every_screen_by_key():
     async def go():
-        from solvsel.rules.regulations import DEFER
+        from solvsel.rules.cautions import DEFER
         from solvsel.data.scenario import load_scenario
         from solvsel.science.target import rank_solvents, target_from_solute
 

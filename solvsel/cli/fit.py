@@ -66,7 +66,7 @@ def _next_pool(cat, food: bool, bench):
 
 
 def _cautions_for(cat, names):
-    from ..rules.regulations import DEFER, solvent_cautions
+    from ..rules.cautions import DEFER, solvent_cautions
 
     out = []
     for n in names:
@@ -98,7 +98,7 @@ def _basis_summary(bench, partial: str, partial_weight: float) -> str:
 
 
 def run(args) -> int:
-    from ..rules.regulations import DEFER
+    from ..rules.cautions import DEFER
     from ..errors import InputError
     from ..science.sphere import fit_bench, read_bench, save_solute, solute_row, suggest_tests
 

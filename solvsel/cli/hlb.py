@@ -136,7 +136,7 @@ def run(args) -> int:
         out["fit"] = fit.to_dict()
     if not out:
         raise InputError("nothing to do: give --oil or --target (and --emulsifiers), --smiles, --series or --scores")
-    from ..rules.regulations import DEFER
+    from ..rules.cautions import DEFER
 
     out["cautions"] = cautions + [DEFER]
     if args.json:

@@ -1,4 +1,4 @@
-"""Food-use status, legal limits, hazard classes and cautions.
+"""Food-use status and legal limits (hazard classes are in :mod:`.hazards`, cautions in :mod:`.cautions`).
 
 This module answers the questions a formulator must settle before a carrier
 or an extraction solvent is worth a bench trial: is it allowed for this use in
@@ -44,20 +44,17 @@ from typing import Any, Iterable, Mapping, Sequence
 from ..data.catalog import number_or_none as _number
 from ..errors import InputError, MissingDataError, UnknownNameError
 
+
 __all__ = [
     "FOOD_JURISDICTIONS",
     "JURISDICTIONS",
-    "DEFER",
     "Limit",
     "FoodCategory",
-    "Hazard",
     "FoodStatus",
     "limits",
     "food_categories",
     "resolve_category",
     "category_lineage",
-    "hazard_class",
-    "solvent_cautions",
     "food_status",
     "LimitCheck",
     "ResidueCheck",
@@ -73,11 +70,6 @@ JURISDICTIONS = ("EU", "US", "ICH")
 #: Jurisdictions with food law in the table.
 FOOD_JURISDICTIONS = ("EU", "US")
 
-#: The closing caution of every result.
-DEFER = (
-    "Estimates for planning bench work, not a safety or regulatory sign-off: defer to local codes, "
-    "the regulations in force and licensed practice."
-)
 
 #: Uses the food-status check knows.
 USES = ("carrier", "extraction", "bench")
@@ -410,146 +402,8 @@ def limits(
     return rows
 
 
-# ----------------------------------------------------------------------------- hazard classes
+# ----------------------------------------------------------------------------- helpers
 
-
-@dataclass(frozen=True)
-class Hazard:
-    """A GHS physical-hazard class derived from flash point and boiling point.
-
-    ``kind`` is "flammable liquid", "flammable gas" or "gas under pressure";
-    ``category`` the GHS category (1-4 for flammable liquids, 1 for flammable
-    gases, None for gases under pressure).
-    """
-
-    kind: str
-    category: int | None
-    hazard_statement: str
-    signal_word: str
-    label: str
-    basis: str
-
-    def to_dict(self) -> dict[str, Any]:
-        return asdict(self)
-
-
-_FL_LIQ = {
-    1: ("H224", "Danger", "Extremely flammable liquid and vapour"),
-    2: ("H225", "Danger", "Highly flammable liquid and vapour"),
-    3: ("H226", "Warning", "Flammable liquid and vapour"),
-    4: ("H227", "Warning", "Combustible liquid"),
-}
-
-
-def hazard_class(flash_C: float | None, bp_C: float | None, flammable: bool | None = None, gas: bool | None = None) -> Hazard | None:
-    """GHS class of a liquid from its closed-cup flash point and initial boiling point.
-
-    Flammable liquids (GHS chapter 2.6) [1]_:
-
-    ====  ===========================================  ==========
-    cat.  criteria                                      statement
-    ====  ===========================================  ==========
-    1     flash point < 23 C and initial bp <= 35 C     H224
-    2     flash point < 23 C and initial bp > 35 C      H225
-    3     23 C <= flash point <= 60 C                   H226
-    4     60 C < flash point <= 93 C                    H227
-    ====  ===========================================  ==========
-
-    Category 4 exists in the GHS but not in the EU CLP Regulation or in
-    transport rules.  A substance that boils at or below 20 C at 101.3 kPa is
-    a gas, not a liquid (GHS chapter 1.2): it is a flammable gas (category 1,
-    H220) when it burns, and in every case a gas under pressure (H280; H281
-    when refrigerated).
-
-    Parameters
-    ----------
-    flash_C : float or None
-        Closed-cup flash point [C]; None when not flammable or not on record.
-    bp_C : float or None
-        Initial (normal) boiling point [C].
-    flammable : bool, optional
-        Whether the substance burns, where the table says so (needed for
-        gases with no flash point on record, e.g. propane vs carbon dioxide).
-    gas : bool, optional
-        Force the gas classification (e.g. carbon dioxide, which sublimes and
-        has no normal boiling point).
-
-    Returns
-    -------
-    Hazard or None
-        None when not flammable and not a gas.  A flammable liquid whose flash
-        point is not on record gets category None and says so.
-
-    Examples
-    --------
-    Ethanol (flash point 12-13 C, bp 78 C) is category 2, H225, as in its
-    harmonised EU classification (from memory); diethyl ether (flash point
-    -45 C, bp 34.6 C) is category 1, H224.
-
-    >>> hazard_class(13.0, 78.4).hazard_statement
-    'H225'
-    >>> hazard_class(-45.0, 34.6).category
-    1
-    >>> hazard_class(99.0, 187.3) is None   # propylene glycol
-    True
-    """
-    if flash_C is not None and not math.isfinite(float(flash_C)):
-        flash_C = None
-    if bp_C is not None and not math.isfinite(float(bp_C)):
-        bp_C = None
-    is_gas = bool(gas) or (bp_C is not None and bp_C <= 20.0)
-    if is_gas:
-        burns = flammable if flammable is not None else flash_C is not None
-        if burns:
-            return Hazard(
-                "flammable gas", 1, "H220; H280", "Danger",
-                "flammable gas (GHS category 1, H220 extremely flammable gas) and gas under pressure (H280)",
-                "boils at or below 20 C: a gas (GHS 1.2); burns",
-            )
-        return Hazard(
-            "gas under pressure", None, "H280", "Warning",
-            "gas under pressure (GHS H280; H281 refrigerated liquefied gas); not flammable; asphyxiant in closed rooms",
-            "a gas at 20 C and 101.3 kPa (GHS 1.2); does not burn",
-        )
-    if flash_C is None:
-        if flammable:
-            return Hazard(
-                "flammable liquid", None, "", "Danger",
-                "flammable liquid (flash point not on record: class not determined; treat as highly flammable)",
-                "the table says it burns but gives no flash point",
-            )
-        return None
-    fp = float(flash_C)
-    if fp < 23.0:
-        if bp_C is None:
-            cat_ = 1
-            basis = f"flash point {fp:g} C < 23 C; boiling point not on record, so the stricter category 1 is given"
-        else:
-            cat_ = 1 if bp_C <= 35.0 else 2
-            basis = f"flash point {fp:g} C < 23 C and initial boiling point {bp_C:g} C {'<=' if cat_ == 1 else '>'} 35 C"
-    elif fp <= 60.0:
-        cat_, basis = 3, f"23 C <= flash point {fp:g} C <= 60 C"
-    elif fp <= 93.0:
-        cat_, basis = 4, f"60 C < flash point {fp:g} C <= 93 C (GHS only; not a class in EU CLP or transport rules)"
-    else:
-        return None
-    h, word, text = _FL_LIQ[cat_]
-    return Hazard("flammable liquid", cat_, h, word, f"flammable liquid, GHS category {cat_} ({h} {text.lower()})", basis)
-
-
-# ----------------------------------------------------------------------------- cautions
-
-# CAS numbers of the families that carry their own cautions.
-_HYDROCARBONS = {
-    "74-98-6": "propane", "106-97-8": "n-butane", "75-28-5": "isobutane", "109-66-0": "n-pentane",
-    "110-54-3": "n-hexane", "142-82-5": "n-heptane", "110-82-7": "cyclohexane", "108-87-2": "methylcyclohexane",
-    "8032-32-4": "petroleum ether",
-}
-_LIQUEFIED_GASES = {"74-98-6", "106-97-8", "75-28-5", "115-10-6", "124-38-9", "10024-97-2", "811-97-2"}
-_CHLORINATED = {
-    "75-09-2", "67-66-3", "56-23-5", "79-01-6", "127-18-4", "107-06-2", "71-55-6", "75-35-4", "540-59-0", "108-90-7",
-}
-_NONFLAMMABLE_GASES = {"124-38-9", "10024-97-2", "811-97-2"}
 _ETHANOL_CAS = "64-17-5"
 _WATER_CAS = "7732-18-5"
 
@@ -564,112 +418,6 @@ def _ethanol_strength(name: str) -> float | None:
     """Volume fraction of ethanol in a table row named like 'ethanol 40% v/v', else None."""
     m = re.match(r"^\s*ethanol\s+(\d+(?:\.\d+)?)\s*%\s*v/v\s*$", str(name or ""), re.I)
     return float(m.group(1)) / 100.0 if m else None
-
-
-def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
-    """The usual cautions for a liquid, most serious first, ending with :data:`DEFER`.
-
-    Parameters
-    ----------
-    solvent : Solvent or mapping
-        Needs ``name`` and ``cas``; uses ``flash_C``, ``bp_C`` and ``flammable``
-        where present.
-    use : {"carrier", "extraction", "bench"}, optional
-        The intended use; extraction adds the equipment and room cautions.
-    cat : Catalog, optional
-        Used to look up the ICH Q3C class of the solvent.
-
-    Examples
-    --------
-    >>> c = solvent_cautions({"name": "n-hexane", "cas": "110-54-3", "flash_C": -22, "bp_C": 68.7}, use="extraction")
-    >>> any("gas detection" in x for x in c) and c[-1] == DEFER
-    True
-    """
-    if use is not None and use not in USES:
-        raise InputError(f"use: expected one of {', '.join(USES)}, got '{use}'")
-    name = _text(_get(solvent, "name")) or "this liquid"
-    cas = _text(_get(solvent, "cas"))
-    strength = _ethanol_strength(name)
-    is_ethanol = cas == _ETHANOL_CAS or strength is not None
-    flash = _number(_get(solvent, "flash_C"))
-    bp = _number(_get(solvent, "bp_C"))
-    flammable = _get(solvent, "flammable")
-    if isinstance(flammable, str):
-        flammable = {"yes": True, "no": False}.get(flammable.lower())
-    if cas in _NONFLAMMABLE_GASES:
-        flammable = False
-    out: list[str] = []
-    hz = hazard_class(flash, bp, flammable=flammable, gas=cas in _LIQUEFIED_GASES or None)
-    if hz is not None:
-        if hz.kind == "gas under pressure":
-            out.append(f"{name}: {hz.label}.")
-        elif hz.category == 4:
-            out.append(f"{name}: {hz.label}; it burns when heated above its flash point: keep hot work and heated "
-                       "vessels away from ignition sources.")
-        else:
-            out.append(
-                f"{name}: {hz.label}; keep from ignition sources, ground and bond containers, store and ship "
-                "as a flammable under the local fire code."
-            )
-    if cas in _HYDROCARBONS or cas == "115-10-6":
-        if use in (None, "extraction"):
-            out.append(
-                f"{name}: hydrocarbon or ether extraction belongs in a code-compliant room (hazardous-location "
-                "classification, ventilation) with listed or engineer-reviewed closed-loop equipment and gas "
-                "detection; permits and quantity limits of the local fire and building codes apply."
-            )
-    elif use == "extraction" and hz is not None and hz.kind != "gas under pressure" and (hz.category or 4) <= 3:
-        out.append(
-            f"{name}: extraction with a flammable solvent belongs in equipment and rooms built for it "
-            "(ventilation, no ignition sources, rated electrics, quantity limits) under the local fire and "
-            "building codes."
-        )
-    if cas in _LIQUEFIED_GASES and cas != "124-38-9":
-        out.append(f"{name}: liquefied gas; vessels, hoses and fittings must be rated for its vapour pressure.")
-    if cas == "124-38-9":
-        out.append(
-            "carbon dioxide: pressure and asphyxiation hazard; rated vessels with relief devices, CO2 monitoring "
-            "and ventilation in the room; never in unrated or household equipment."
-        )
-    if cas == "110-54-3":
-        out.append("n-hexane: neurotoxic on repeated exposure; occupational exposure limits and residue limits apply.")
-    if cas == "67-56-1":
-        out.append(
-            "methanol: toxic by ingestion, inhalation and skin contact; not a food carrier; occupational exposure "
-            "limits and strict residue limits apply."
-        )
-    if cas in _CHLORINATED:
-        out.append(
-            f"{name}: chlorinated solvent; toxic, several are known or suspected carcinogens; exposure limits and "
-            "strict residue limits apply; use only where the rules in force allow it, with fume extraction."
-        )
-    if cas and cas not in _CHLORINATED and cas != "67-56-1":
-        try:
-            ich = [r for r in limits(cat, cas=cas, jurisdiction="ICH") if r.status in ("class 1", "class 2")]
-        except Exception:  # the caution must never hide the result
-            ich = []
-        for r in ich[:1]:
-            out.append(
-                f"{name}: ICH Q3C {r.status} solvent (residual limit {r.limit:g} {r.unit} in pharmaceuticals); "
-                "toxic or restricted: exposure limits apply and residues must be measured."
-            )
-    if is_ethanol:
-        out.append(
-            "ethanol: denatured ethanol may not remain in food or flavour extracts and its denaturant (e.g. "
-            "heptane) leaves a residue; excise rules apply to tax-paid ethanol."
-        )
-        if use in (None, "extraction"):
-            out.append("ethanol: never chill it in a household freezer; cold extraction needs rated equipment.")
-    if use == "bench":
-        roles = _get(solvent, "roles") or ()
-        if isinstance(roles, str):
-            roles = tuple(r for r in roles.split(";") if r)
-        if "carrier" in roles or "extraction" in roles:
-            out.append(f"{name}: in bench tests, use a fume hood and the exposure limits of the lab.")
-        else:
-            out.append(f"{name}: a lab liquid, not for food; use a fume hood and the exposure limits of the lab.")
-    out.append(DEFER)
-    return list(dict.fromkeys(out))
 
 
 # ----------------------------------------------------------------------------- food status
@@ -1266,6 +1014,8 @@ def check_dose(
         )
     if cl:
         cautions.append("Claim rules are examples from tables/claims.csv: verify with your certifier.")
+    from .cautions import DEFER, solvent_cautions  # temporary: the dose job will assemble cautions
+
     for comp in formula.components:
         if comp.origin.startswith("solvents"):
             try:

@@ -1058,7 +1058,7 @@ def optimise_blends(
         "keep_over": bool(keep_over),
     }
     t_info["temp_C"] = temp_C
-    from ..rules.regulations import DEFER
+    from ..rules.cautions import DEFER
 
     cautions = [_GENERAL_CAUTION, DEFER]
     if jurisdiction is not None and use is None:
@@ -1422,7 +1422,7 @@ def _hazard_of(rec):
     3 category 2, 4 category 1 (or flammable with no flash point on record),
     5 flammable gas.
     """
-    from ..rules.regulations import hazard_class
+    from ..rules.hazards import hazard_class
 
     hz = hazard_class(rec.flash_C, rec.bp_C, flammable=rec.flammable)
     if hz is None:
@@ -1493,7 +1493,7 @@ def _dose_check(cat, recs, xs, dose, jurisdiction, category, chain, already=None
 
 
 def _solvent_cautions(rec, use):
-    from ..rules.regulations import solvent_cautions
+    from ..rules.cautions import solvent_cautions
 
     return solvent_cautions(rec, use=use)
 

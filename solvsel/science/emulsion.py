@@ -918,7 +918,7 @@ def design_beverage_emulsion(
                         "measure both at the storage temperature before trusting a close match.")
     if ripe.warn:
         cautions.append("Ostwald ripening: " + ripe.reason + ". " + ripe.remedy + ".")
-    from ..rules.regulations import DEFER
+    from ..rules.cautions import DEFER
 
     cautions.append(DEFER)
     return EmulsionDesign(

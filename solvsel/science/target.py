@@ -307,7 +307,7 @@ def _solubility(target: Target, h, vm, s, temp_C):
 
 def _hazard_label(s):
     """(label, short code) of the GHS class, e.g. ("flammable liquid, ...", "H225")."""
-    from ..rules.regulations import hazard_class
+    from ..rules.hazards import hazard_class
 
     try:
         hz = hazard_class(s.flash_C, s.bp_C, s.flammable)
@@ -389,6 +389,7 @@ def rank_solvents(
     Ranking
     """
     from ..rules import regulations as compliance
+    from ..rules.cautions import DEFER, solvent_cautions
     from . import hansen
 
     if not (isinstance(temp_C, (int, float)) and math.isfinite(temp_C)):
@@ -479,7 +480,7 @@ def rank_solvents(
             sol = _solubility(target, h, vm, s, temp_C)
         except (InputError, MissingDataError):
             sol = None
-        cautions = tuple(compliance.solvent_cautions(s, use=use, cat=cat))
+        cautions = tuple(solvent_cautions(s, use=use, cat=cat))
         all_cautions.extend(cautions)
         if s.is_user:
             row_notes.append(f"your row ({s.origin})")
@@ -499,7 +500,7 @@ def rank_solvents(
         how = (target.solute.hsp_method if target.solute is not None and target.solute.hsp_method
                else "from structure")
         notes.append(f"the target's HSP are estimated ({how}): a screening result; a bench fit (solvsel fit) is better")
-    caut = _cautions(results, compliance.DEFER)
+    caut = _cautions(results, DEFER)
     return Ranking(target, float(temp_C), tuple(results), tuple(dropped), tuple(notes), caut, "red" if target.r0 else "ra")
 
 
@@ -538,6 +539,6 @@ def nearest_liquids(cat, name: str, k: int = 10, food: bool = False, use: str | 
     dist, idx = nn.kneighbors(hansen.scaled(me.hsp)[None, :])
     chosen = [full.results[i] for i in idx[0]]
     notes = full.notes + (f"nearest liquids to {me.name} (Ra in MPa^0.5); similar HSP is not similar toxicity, taste or legal status",)
-    from ..rules.regulations import DEFER
+    from ..rules.cautions import DEFER
 
     return Ranking(target, full.temp_C, tuple(chosen), full.dropped, notes, _cautions(chosen, DEFER), "ra")

@@ -485,7 +485,7 @@ class CarriersScreen(BenchScreen):
 
     def show_cautions(self, selected=None) -> None:
         """The selected liquid's or blend's cautions, then each liquid's on screen, then the lists'."""
-        from ..rules.regulations import solvent_cautions
+        from ..rules.cautions import solvent_cautions
         from ..errors import SolvselError
 
         cautions: list[str] = []

@@ -181,7 +181,7 @@ class TablesScreen(BenchScreen):
         self.query_one("#row-cautions", CautionBox).show(self.row_cautions(row))
 
     def row_cautions(self, row: dict) -> list[str]:
-        from ..rules.regulations import DEFER, solvent_cautions
+        from ..rules.cautions import DEFER, solvent_cautions
         from ..errors import SolvselError
 
         if self.table_name == "solvents":

@@ -215,7 +215,7 @@ class TargetScreen(BenchScreen):
         if t.solute is not None and t.solute.category == "active":
             cautions.append("The legal status of actives in foods differs by jurisdiction and use: "
                             "check the regulations in force before formulating.")
-        from ..rules.regulations import DEFER
+        from ..rules.cautions import DEFER
 
         cautions.append(DEFER)
         self.query_one("#target-cautions", CautionBox).show(cautions)

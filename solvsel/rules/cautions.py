@@ -1,0 +1,142 @@
+"""The usual cautions beside a liquid: flammability, hydrocarbon and gas extraction, toxic or
+restricted solvents (ICH Q3C classes), ethanol; and the closing caution of every result.
+
+They repeat what practitioners and the regulations already say; they do not replace local
+codes, the regulations in force or licensed practice.
+"""
+
+from __future__ import annotations
+
+from ..data.catalog import number_or_none as _number
+from ..errors import InputError
+from .hazards import hazard_class
+from .regulations import USES, _ETHANOL_CAS, _ethanol_strength, _get, _text, limits
+
+__all__ = ["DEFER", "solvent_cautions"]
+
+#: The closing caution of every result.
+DEFER = (
+    "Estimates for planning bench work, not a safety or regulatory sign-off: defer to local codes, "
+    "the regulations in force and licensed practice."
+)
+
+
+# CAS numbers of the families that carry their own cautions.
+_HYDROCARBONS = {
+    "74-98-6": "propane", "106-97-8": "n-butane", "75-28-5": "isobutane", "109-66-0": "n-pentane",
+    "110-54-3": "n-hexane", "142-82-5": "n-heptane", "110-82-7": "cyclohexane", "108-87-2": "methylcyclohexane",
+    "8032-32-4": "petroleum ether",
+}
+_LIQUEFIED_GASES = {"74-98-6", "106-97-8", "75-28-5", "115-10-6", "124-38-9", "10024-97-2", "811-97-2"}
+_CHLORINATED = {
+    "75-09-2", "67-66-3", "56-23-5", "79-01-6", "127-18-4", "107-06-2", "71-55-6", "75-35-4", "540-59-0", "108-90-7",
+}
+_NONFLAMMABLE_GASES = {"124-38-9", "10024-97-2", "811-97-2"}
+
+
+def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
+    """The usual cautions for a liquid, most serious first, ending with :data:`DEFER`.
+
+    Parameters
+    ----------
+    solvent : Solvent or mapping
+        Needs ``name`` and ``cas``; uses ``flash_C``, ``bp_C`` and ``flammable``
+        where present.
+    use : {"carrier", "extraction", "bench"}, optional
+        The intended use; extraction adds the equipment and room cautions.
+    cat : Catalog, optional
+        Used to look up the ICH Q3C class of the solvent.
+
+    Examples
+    --------
+    >>> c = solvent_cautions({"name": "n-hexane", "cas": "110-54-3", "flash_C": -22, "bp_C": 68.7}, use="extraction")
+    >>> any("gas detection" in x for x in c) and c[-1] == DEFER
+    True
+    """
+    if use is not None and use not in USES:
+        raise InputError(f"use: expected one of {', '.join(USES)}, got '{use}'")
+    name = _text(_get(solvent, "name")) or "this liquid"
+    cas = _text(_get(solvent, "cas"))
+    strength = _ethanol_strength(name)
+    is_ethanol = cas == _ETHANOL_CAS or strength is not None
+    flash = _number(_get(solvent, "flash_C"))
+    bp = _number(_get(solvent, "bp_C"))
+    flammable = _get(solvent, "flammable")
+    if isinstance(flammable, str):
+        flammable = {"yes": True, "no": False}.get(flammable.lower())
+    if cas in _NONFLAMMABLE_GASES:
+        flammable = False
+    out: list[str] = []
+    hz = hazard_class(flash, bp, flammable=flammable, gas=cas in _LIQUEFIED_GASES or None)
+    if hz is not None:
+        if hz.kind == "gas under pressure":
+            out.append(f"{name}: {hz.label}.")
+        elif hz.category == 4:
+            out.append(f"{name}: {hz.label}; it burns when heated above its flash point: keep hot work and heated "
+                       "vessels away from ignition sources.")
+        else:
+            out.append(
+                f"{name}: {hz.label}; keep from ignition sources, ground and bond containers, store and ship "
+                "as a flammable under the local fire code."
+            )
+    if cas in _HYDROCARBONS or cas == "115-10-6":
+        if use in (None, "extraction"):
+            out.append(
+                f"{name}: hydrocarbon or ether extraction belongs in a code-compliant room (hazardous-location "
+                "classification, ventilation) with listed or engineer-reviewed closed-loop equipment and gas "
+                "detection; permits and quantity limits of the local fire and building codes apply."
+            )
+    elif use == "extraction" and hz is not None and hz.kind != "gas under pressure" and (hz.category or 4) <= 3:
+        out.append(
+            f"{name}: extraction with a flammable solvent belongs in equipment and rooms built for it "
+            "(ventilation, no ignition sources, rated electrics, quantity limits) under the local fire and "
+            "building codes."
+        )
+    if cas in _LIQUEFIED_GASES and cas != "124-38-9":
+        out.append(f"{name}: liquefied gas; vessels, hoses and fittings must be rated for its vapour pressure.")
+    if cas == "124-38-9":
+        out.append(
+            "carbon dioxide: pressure and asphyxiation hazard; rated vessels with relief devices, CO2 monitoring "
+            "and ventilation in the room; never in unrated or household equipment."
+        )
+    if cas == "110-54-3":
+        out.append("n-hexane: neurotoxic on repeated exposure; occupational exposure limits and residue limits apply.")
+    if cas == "67-56-1":
+        out.append(
+            "methanol: toxic by ingestion, inhalation and skin contact; not a food carrier; occupational exposure "
+            "limits and strict residue limits apply."
+        )
+    if cas in _CHLORINATED:
+        out.append(
+            f"{name}: chlorinated solvent; toxic, several are known or suspected carcinogens; exposure limits and "
+            "strict residue limits apply; use only where the rules in force allow it, with fume extraction."
+        )
+    if cas and cas not in _CHLORINATED and cas != "67-56-1":
+        try:
+            ich = [r for r in limits(cat, cas=cas, jurisdiction="ICH") if r.status in ("class 1", "class 2")]
+        except Exception:  # the caution must never hide the result
+            ich = []
+        for r in ich[:1]:
+            out.append(
+                f"{name}: ICH Q3C {r.status} solvent (residual limit {r.limit:g} {r.unit} in pharmaceuticals); "
+                "toxic or restricted: exposure limits apply and residues must be measured."
+            )
+    if is_ethanol:
+        out.append(
+            "ethanol: denatured ethanol may not remain in food or flavour extracts and its denaturant (e.g. "
+            "heptane) leaves a residue; excise rules apply to tax-paid ethanol."
+        )
+        if use in (None, "extraction"):
+            out.append("ethanol: never chill it in a household freezer; cold extraction needs rated equipment.")
+    if use == "bench":
+        roles = _get(solvent, "roles") or ()
+        if isinstance(roles, str):
+            roles = tuple(r for r in roles.split(";") if r)
+        if "carrier" in roles or "extraction" in roles:
+            out.append(f"{name}: in bench tests, use a fume hood and the exposure limits of the lab.")
+        else:
+            out.append(f"{name}: a lab liquid, not for food; use a fume hood and the exposure limits of the lab.")
+    out.append(DEFER)
+    return list(dict.fromkeys(out))
+
+
