@@ -3,14 +3,28 @@
 Every error a user can cause (a bad table, an unknown liquid, a value out of
 range, fractions that do not sum) is a :class:`SolvselError`.  Each subclass
 also inherits the matching builtin, so ``except KeyError`` still works for
-library users, and each carries a short ``title`` that the command line prints
-as one paragraph (exit code 2) and the terminal UI shows in a dialog.  Anything
-else that escapes is a bug (exit code 1).
+library users, and each carries a short ``title``.
+
+An error caused by one input names it in structured fields, not in its
+wording: ``param`` is the field of the request (``"temp_C"``, ``"dose"``),
+``value`` what was given, ``expected`` what would have been accepted, and
+``path`` / ``row`` / ``column`` the place in a file.  The message itself is
+worded for any front end; each front end names the input its own way
+(:meth:`SolvselError.describe`): the command line by its option
+(``--temp``), the terminal UI by its field label, a notebook user by the
+request field.  The command line prints the result as one paragraph (exit
+code 2), the UI in a dialog.  Anything else that escapes is a bug (exit 1).
+
+>>> e = InputError("expected a number of C, got 'warm'", param="temp_C", value="warm")
+>>> str(e)
+"temp_C: expected a number of C, got 'warm'"
+>>> e.describe({"temp_C": "--temp"})
+"--temp: expected a number of C, got 'warm'"
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from typing import Any, Callable, Mapping
 
 __all__ = [
     "SolvselError",
@@ -19,16 +33,91 @@ __all__ = [
     "UnknownNameError",
     "OutOfRangeError",
     "MissingDataError",
+    "MissingExtraError",
 ]
 
 
 class SolvselError(Exception):
-    """Base of every error a user's input can cause."""
+    """Base of every error a user's input can cause.
+
+    Parameters
+    ----------
+    message : str
+        What is wrong, worded for any front end (no option or field names).
+    param : str, optional
+        The request field the bad input came from (e.g. ``"temp_C"``); front
+        ends map it to their own name for it.
+    value : optional
+        The value given.
+    expected : str, optional
+        What would have been accepted (e.g. ``"a temperature in C, -80 to 200"``).
+    path, row, column : optional
+        Where in a file (row 1 is the header).
+    """
 
     title = "solvsel error"
 
-    def __str__(self) -> str:  # keep the message one paragraph
-        return " ".join(str(a) for a in self.args) if self.args else self.title
+    def __init__(
+        self,
+        message: str = "",
+        *,
+        param: str | None = None,
+        value: Any = None,
+        expected: str | None = None,
+        path: str | None = None,
+        row: int | None = None,
+        column: str | None = None,
+    ) -> None:
+        self.message = str(message)
+        self.param = param
+        self.value = value
+        self.expected = expected
+        self.path = None if path is None else str(path)
+        self.row = row
+        self.column = column
+        super().__init__(self.message)
+
+    def where(self) -> str:
+        """``"FILE, row R, column 'C'"`` for an error in a file, else ``""``."""
+        if self.path is None:
+            return ""
+        out = self.path
+        if self.row is not None:
+            out += f", row {self.row}"
+        if self.column is not None:
+            out += f", column '{self.column}'"
+        return out
+
+    def describe(self, names: Mapping[str, str] | Callable[[str], str] | None = None) -> str:
+        """The message as one paragraph, the input named the way a front end names it.
+
+        ``names`` maps a request field to the front end's name for it (an
+        option such as ``--temp``, a field label); fields it does not know keep
+        their request name.
+        """
+        text = self.message or self.title
+        place = self.where()
+        if place:
+            text = f"{place}: {text}"
+        if self.param:
+            if callable(names):
+                label = names(self.param)
+            else:
+                label = (names or {}).get(self.param, self.param)
+            if label:
+                text = f"{label}: {text}"
+        return text
+
+    def fields(self) -> dict[str, Any]:
+        """The structured fields (for JSON error output and tests)."""
+        return {
+            "title": self.title, "message": self.message, "param": self.param,
+            "value": None if self.value is None else str(self.value), "expected": self.expected,
+            "path": self.path, "row": self.row, "column": self.column,
+        }
+
+    def __str__(self) -> str:
+        return self.describe()
 
 
 class InputError(SolvselError, ValueError):
@@ -49,6 +138,23 @@ class MissingDataError(SolvselError, LookupError):
     title = "Data missing"
 
 
+class MissingExtraError(SolvselError, ImportError):
+    """A part of solvsel needs an optional dependency that is not installed.
+
+    The message names the extra to install (``pip install 'solvsel[structure]'``).
+    """
+
+    title = "Optional part not installed"
+
+    def __init__(self, extra: str, what: str, module: str) -> None:
+        self.extra = extra
+        self.module = module
+        super().__init__(
+            f"{what} needs the package '{module}', which is not installed; install the extra with "
+            f"pip install 'solvsel[{extra}]'"
+        )
+
+
 class TableError(SolvselError, ValueError):
     """A data table (bundled or the user's own) is malformed.
 
@@ -58,17 +164,9 @@ class TableError(SolvselError, ValueError):
 
     title = "Bad table"
 
-    def __init__(self, path, message: str, row: int | None = None, column: str | None = None):
-        self.path = str(path)
-        self.row = row
-        self.column = column
-        self.message = message
-        where = self.path
-        if row is not None:
-            where += f", row {row}"
-        if column is not None:
-            where += f", column '{column}'"
-        super().__init__(f"{where}: {message}")
+    def __init__(self, path, message: str, row: int | None = None, column: str | None = None,
+                 *, param: str | None = None, expected: str | None = None):
+        super().__init__(message, param=param, expected=expected, path=str(path), row=row, column=column)
 
 
 class UnknownNameError(SolvselError, KeyError):
@@ -79,11 +177,13 @@ class UnknownNameError(SolvselError, KeyError):
 
     title = "Unknown name"
 
-    def __init__(self, name: str, kind: str = "substance", suggestions: tuple[str, ...] = ()):
+    def __init__(self, name: str, kind: str = "substance", suggestions: tuple[str, ...] = (),
+                 *, param: str | None = None):
         self.name = name
         self.kind = kind
         self.suggestions = tuple(suggestions)
         msg = f"no {kind} named '{name}'"
         if self.suggestions:
             msg += "; closest: " + ", ".join(f"'{s}'" for s in self.suggestions)
-        super().__init__(msg)
+        super().__init__(msg, param=param, value=name,
+                         expected=f"a known {kind}" + (f" such as '{self.suggestions[0]}'" if self.suggestions else ""))

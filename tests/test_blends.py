@@ -259,7 +259,8 @@ def test_bad_input_raises_input_error():
 
 # ---------------------------------------------------------------- catalog level
 
-from solvsel.science.blends import FractionBound, optimise_blends, parse_fraction_bound  # noqa: E402
+from solvsel.jobs.parse import parse_fraction_bound
+from solvsel.science.blends import FractionBound, optimise_blends  # noqa: E402
 from solvsel.errors import UnknownNameError  # noqa: E402
 
 
@@ -306,7 +307,7 @@ def test_fraction_bounds_are_met(cat):
     # common practice: "ethanol at most 0.3 by volume, water at least 0.1"
     t = (15.8, 8.8, 19.4)  # ethanol's own HSP: pure ethanol would be best
     res = optimise_blends(cat, t, max_components=3, only=CARRIERS,
-                          bounds=["ethanol<=0.3", FractionBound("water", lower=0.1)])
+                          bounds=[parse_fraction_bound("ethanol<=0.3"), FractionBound("water", lower=0.1)])
     assert res.results
     for b in res.results:
         x = {c.name: c.volume_fraction for c in b.components}
@@ -434,15 +435,15 @@ def test_user_mistakes_raise_solvsel_errors(cat):
     with pytest.raises(InputError):
         optimise_blends(cat, (16, 5, 10), max_components=5)
     with pytest.raises(InputError):  # water required but excluded
-        optimise_blends(cat, (16, 5, 10), exclude=["water"], bounds=["water>=0.1"])
+        optimise_blends(cat, (16, 5, 10), exclude=["water"], bounds=[parse_fraction_bound("water>=0.1")])
     with pytest.raises(InputError):
         optimise_blends(cat, (16, 5, 10), use="cleaning")
     with pytest.raises(InputError):
-        optimise_blends(cat, (16, 5, 10), bounds=["water>=0.6", "ethanol>=0.6"])
+        optimise_blends(cat, (16, 5, 10), bounds=[parse_fraction_bound("water>=0.6"), parse_fraction_bound("ethanol>=0.6")])
 
 
 def test_no_blend_is_data_not_an_error(cat):
-    res = optimise_blends(cat, (16, 5, 10), only=["ethanol", "water"], bounds=["ethanol<=0.2", "water<=0.2"],
+    res = optimise_blends(cat, (16, 5, 10), only=["ethanol", "water"], bounds=[parse_fraction_bound("ethanol<=0.2"), parse_fraction_bound("water<=0.2")],
                           max_components=2)
     assert not res.success and not res.results and res.message
 
@@ -524,7 +525,7 @@ def test_required_liquid_below_the_component_minimum_is_kept(cat):
     # water >= 0.02 forces 2 % water, under the 5 % component minimum: such
     # blends are still the answer (the smaller blend without water is not allowed)
     res = optimise_blends(cat, (15.8, 8.8, 19.4), max_components=2, only=["ethanol", "water", "propylene glycol"],
-                          bounds=["water>=0.02"])
+                          bounds=[parse_fraction_bound("water>=0.02")])
     assert res.results
     best = {c.name: c.volume_fraction for c in res.results[0].components}
     assert best == pytest.approx({"ethanol": 0.98, "water": 0.02})

@@ -15,6 +15,7 @@ import pytest
 
 from solvsel.rules import regulations as cp
 from solvsel.science import formulation as fm
+from solvsel.jobs.parse import parse_amount, parse_chain
 from solvsel.data.catalog import load_catalog
 from solvsel.cli import main
 from solvsel.errors import InputError, MissingDataError, TableError, UnknownNameError
@@ -43,7 +44,7 @@ def test_water_density_matches_reference_library():
 
 def test_chain_mass_then_volume_by_hand(cat):
     f = fm.formula_from_amounts(cat, [("propylene glycol", 90), ("vanillin", 10)])
-    st = fm.stage_levels(f, fm.parse_chain("syrup 0.5% d=1.28; drink 1+5v d=1.04"))
+    st = fm.stage_levels(f, parse_chain("syrup 0.5% d=1.28; drink 1+5v d=1.04"))
     # hand: syrup PG = 0.9 * 0.005 = 4500 mg/kg, x 1.28 kg/L = 5760 mg/L
     assert st[1].mg_per_kg["57-55-6"] == pytest.approx(4500, rel=1e-12)
     assert st[1].mg_per_L["57-55-6"] == pytest.approx(5760, rel=1e-12)
@@ -59,15 +60,15 @@ def test_chain_volume_dose_and_per_litre_dose(cat):
     rho_pg = cat.solvent("propylene glycol").density_g_cm3
     # 0.1 % v/v of PG in a drink of 1.04: 1 mL PG (rho_pg g) per litre, so mg/L = 1000 x rho_pg exactly,
     # and mg/kg = that / 1.04
-    st = fm.stage_levels(pg, fm.parse_chain("drink 0.1%v d=1.04"))
+    st = fm.stage_levels(pg, parse_chain("drink 0.1%v d=1.04"))
     assert st[1].mg_per_L["57-55-6"] == pytest.approx(1000 * rho_pg, rel=1e-12)
     assert st[1].mg_per_kg["57-55-6"] == pytest.approx(1000 * rho_pg / 1.04, rel=1e-12)
     # 1.5 g/L into a drink of 1.04: 1500 mg/L by definition, 1442.3 mg/kg
-    st = fm.stage_levels(pg, fm.parse_chain("drink 1.5g/L d=1.04"))
+    st = fm.stage_levels(pg, parse_chain("drink 1.5g/L d=1.04"))
     assert st[1].mg_per_L["57-55-6"] == pytest.approx(1500, rel=1e-12)
     assert st[1].mg_per_kg["57-55-6"] == pytest.approx(1442.3077, rel=1e-6)
     # 1+5 by volume without d=: density by added volumes (1.0326 + 5 x 0.99705) / 6
-    st = fm.stage_levels(pg, fm.parse_chain("drink 1+5v"))
+    st = fm.stage_levels(pg, parse_chain("drink 1+5v"))
     assert st[1].density_g_cm3 == pytest.approx((rho_pg + 5 * 0.99705) / 6, rel=1e-12)
     assert st[1].density_basis.startswith("computed")
 
@@ -85,17 +86,18 @@ def test_formula_by_volume_and_ethanol_strength(cat):
 
 
 def test_parse_chain_and_amount_errors():
-    assert fm.parse_amount("1500ppm") == ("w/w", pytest.approx(1.5e-3))
-    assert fm.parse_amount("250mg/L") == ("g/L", pytest.approx(0.25))
-    for bad in ("0.15", "abc%", "150%", "0+5"):
+    assert parse_amount("1500ppm") == ("w/w", pytest.approx(1.5e-3))
+    assert parse_amount("250mg/L") == ("g/L", pytest.approx(0.25))
+    assert parse_amount("0.0015") == ("w/w", pytest.approx(1.5e-3))  # a plain number is a mass fraction
+    for bad in ("1.5", "abc%", "150%", "0+5"):
         with pytest.raises(InputError):
-            fm.parse_amount(bad)
+            parse_amount(bad)
     with pytest.raises(InputError, match="no amount"):
-        fm.parse_chain("syrup d=1.2; drink d=1.04", dose="0.5%")
+        parse_chain("syrup d=1.2; drink d=1.04", dose="0.5%")
     with pytest.raises(InputError, match="give one"):
-        fm.parse_chain("syrup 0.5%", dose="0.5%")
+        parse_chain("syrup 0.5%", dose="0.5%")
     with pytest.raises(InputError, match="density"):
-        fm.parse_chain("syrup 0.5% d=12")
+        parse_chain("syrup 0.5% d=12")
 
 
 # ----------------------------------------------------------------------------- EU carrier group

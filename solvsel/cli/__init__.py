@@ -16,6 +16,7 @@ import sys
 
 from .. import __version__
 from ..errors import SolvselError
+from ._common import option_name
 
 #: Subcommands in the order ``solvsel --help`` lists them.
 COMMANDS = (
@@ -77,7 +78,9 @@ def main(argv: list[str] | None = None) -> int:
             return open_ui(args)
         return int(args.func(args) or 0)
     except SolvselError as exc:
-        print(f"solvsel: {exc.title}: {exc}", file=sys.stderr)
+        module = getattr(args, "func", None)
+        overrides = getattr(sys.modules.get(getattr(module, "__module__", "")), "OPTION_NAMES", {})
+        print(f"solvsel: {exc.title}: {exc.describe(lambda p: overrides.get(p) or option_name(p))}", file=sys.stderr)
         return 2
     except BrokenPipeError:  # e.g. piped into head
         return 0

@@ -13,7 +13,6 @@ import sys
 from dataclasses import asdict, is_dataclass
 from typing import Any, Iterable, Sequence
 
-from ..errors import InputError
 
 __all__ = [
     "get_catalog",
@@ -22,13 +21,32 @@ __all__ = [
     "to_jsonable",
     "print_table",
     "print_cautions",
-    "parse_names",
-    "parse_hsp",
-    "parse_amounts",
-    "parse_percent",
-    "parse_range",
     "open_ui",
+    "option_name",
 ]
+
+#: Request fields whose command-line option is not ``--`` + the field with dashes
+#: (a command module may add its own in an ``OPTION_NAMES`` dict of the same form).
+OPTION_NAMES = {
+    "temp_C": "--temp",
+    "bp_min_C": "--bp-range",
+    "bp_max_C": "--bp-range",
+    "min_flash_C": "--min-flash",
+    "top": "--top",
+    "bounds": "--fraction",
+    "fractions": "--fraction",
+}
+
+
+def option_name(param: str) -> str:
+    """The option a request field is given with on the command line (``temp_C`` -> ``--temp``).
+
+    >>> option_name("temp_C"), option_name("oil_phase")
+    ('--temp', '--oil-phase')
+    """
+    if param.startswith("-") or param.isupper():  # already an option, or a positional's metavar
+        return param
+    return OPTION_NAMES.get(param) or "--" + param.replace("_", "-")
 
 
 _CATALOG = None
@@ -152,93 +170,6 @@ def print_cautions(cautions: Iterable[str], file=None) -> None:
         print("\nCautions:", file=file)
         for c in seen:
             print(f"  ! {c}", file=file)
-
-
-def parse_names(text: str, what: str = "--only") -> list[str]:
-    """Split a comma-separated list of names (``"ethanol, water"``); quotes allowed."""
-    import csv
-
-    if text is None:
-        return []
-    items = next(csv.reader([text], skipinitialspace=True), [])
-    names = [i.strip() for i in items if i.strip()]
-    if not names:
-        raise InputError(f"{what}: expected a comma-separated list of names, got '{text}'")
-    return names
-
-
-def parse_hsp(text: str, what: str = "--hsp", allow_r0: bool = True) -> tuple[float, ...]:
-    """Parse ``"dD,dP,dH"`` or ``"dD,dP,dH,R0"`` (MPa^0.5)."""
-    parts = [p.strip() for p in str(text).split(",")]
-    want = "dD,dP,dH" + ("[,R0]" if allow_r0 else "")
-    if len(parts) not in ((3, 4) if allow_r0 else (3,)):
-        raise InputError(f"{what}: expected {want} in MPa^0.5, got '{text}'")
-    try:
-        values = tuple(float(p) for p in parts)
-    except ValueError:
-        raise InputError(f"{what}: expected numbers {want} in MPa^0.5, got '{text}'") from None
-    return values
-
-
-def parse_amounts(text: str, what: str = "--oil") -> list[tuple[str, float]]:
-    """Parse ``"d-limonene=70, medium-chain triglycerides=30"`` into (name, amount) pairs."""
-    import csv
-
-    out = []
-    items = next(csv.reader([text or ""], skipinitialspace=True), [])
-    for item in items:
-        if not item.strip():
-            continue
-        if "=" not in item:
-            raise InputError(f"{what}: expected NAME=AMOUNT items separated by commas, got '{item.strip()}'")
-        name, _, amount = item.rpartition("=")
-        try:
-            value = float(amount.strip().rstrip("%"))
-        except ValueError:
-            raise InputError(f"{what}: amount of '{name.strip()}' must be a number, got '{amount.strip()}'") from None
-        if not math.isfinite(value) or value < 0:
-            raise InputError(f"{what}: amount of '{name.strip()}' must be zero or positive, got {amount.strip()}")
-        out.append((name.strip(), value))
-    if not out:
-        raise InputError(f"{what}: expected NAME=AMOUNT items separated by commas, got '{text}'")
-    return out
-
-
-def parse_percent(text: str, what: str = "--dose") -> float:
-    """Parse ``"0.15%"`` (percent) or ``"0.0015"`` (fraction) or ``"1500ppm"`` into a mass fraction."""
-    t = str(text).strip().lower().replace(" ", "")
-    factor = 1.0
-    for suffix, f in (("%", 1e-2), ("ppm", 1e-6), ("mg/kg", 1e-6), ("g/kg", 1e-3)):
-        if t.endswith(suffix):
-            t, factor = t[: -len(suffix)], f
-            break
-    try:
-        value = float(t) * factor
-    except ValueError:
-        raise InputError(f"{what}: expected a fraction (0.0015), a percent (0.15%) or ppm (1500ppm), got '{text}'") from None
-    if not (0 <= value <= 1):
-        raise InputError(f"{what}: must be between 0 and 100 %, got '{text}'")
-    return value
-
-
-def parse_range(text: str | None, what: str = "--bp-range") -> tuple[float | None, float | None]:
-    """Parse ``"LO:HI"`` (either side may be empty) into two numbers or None."""
-    if text is None:
-        return None, None
-    t = str(text).strip()
-    if ":" not in t:
-        raise InputError(f"{what}: expected LO:HI in C (either side may be empty), got '{text}'")
-    lo, _, hi = t.partition(":")
-    try:
-        lo_v = float(lo) if lo.strip() else None
-        hi_v = float(hi) if hi.strip() else None
-    except ValueError:
-        raise InputError(f"{what}: expected numbers of C as LO:HI, got '{text}'") from None
-    if lo_v is None and hi_v is None:
-        raise InputError(f"{what}: give at least one side, e.g. 40:100, :120 or 150:")
-    if lo_v is not None and hi_v is not None and lo_v > hi_v:
-        raise InputError(f"{what}: the low end {lo_v:g} is above the high end {hi_v:g}")
-    return lo_v, hi_v
 
 
 def open_ui(args) -> int:

@@ -33,12 +33,12 @@ def target_from_args(args, cat):
     command needs one) or when the value is malformed.
     """
     from ..science.target import target_from_hsp, target_from_smiles, target_from_solute
-    from ._common import parse_hsp
+    from ..jobs.parse import parse_hsp
 
     if getattr(args, "solute", None):
         return target_from_solute(cat, args.solute)
     if getattr(args, "hsp", None):
-        return target_from_hsp(parse_hsp(args.hsp, "--hsp", allow_r0=True))
+        return target_from_hsp(parse_hsp(args.hsp, "hsp", allow_r0=True))
     if getattr(args, "smiles", None):
         return target_from_smiles(args.smiles)
     if getattr(args, "_target_required", True):

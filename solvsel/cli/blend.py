@@ -2,17 +2,8 @@
 
 from __future__ import annotations
 
-from ._common import (
-    add_json_flag,
-    emit_json,
-    get_catalog,
-    parse_amounts,
-    parse_hsp,
-    parse_names,
-    parse_range,
-    print_cautions,
-    print_table,
-)
+from ..jobs.parse import parse_amounts, parse_fraction_bound, parse_hsp, parse_names, parse_range
+from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 from ._target import add_target_arguments, target_from_args
 
 
@@ -79,10 +70,10 @@ def register(sub):
 def _rejects(args, cat):
     out = []
     for text in args.reject:
-        for name in parse_names(text, "--reject"):
+        for name in parse_names(text, "reject"):
             out.append(cat.solute(name))
     for i, text in enumerate(args.reject_hsp, start=1):
-        v = parse_hsp(text, "--reject-hsp", allow_r0=True)
+        v = parse_hsp(text, "reject_hsp", allow_r0=True)
         out.append((f"reject sphere {i} ({text})", v[:3], v[3] if len(v) == 4 else None))
     return out
 
@@ -96,15 +87,15 @@ def search(args, cat):
     return optimise_blends(
         cat, target,
         max_components=args.max_components,
-        only=parse_names(args.only, "--only") if args.only else None,
-        exclude=parse_names(args.exclude, "--exclude") if args.exclude else None,
+        only=parse_names(args.only, "only") if args.only else None,
+        exclude=parse_names(args.exclude, "exclude") if args.exclude else None,
         use=args.use,
         jurisdiction=args.jurisdiction,
         worst_flammable_category=args.worst_hazard,
         bp_min_C=bp_lo, bp_max_C=bp_hi,
         min_flash_C=args.min_flash,
         max_cost=args.max_cost,
-        bounds=args.fraction,
+        bounds=[parse_fraction_bound(b, "fraction") for b in args.fraction],
         temp_C=args.temp,
         rejects=_rejects(args, cat),
         sort=args.sort,
@@ -114,7 +105,7 @@ def search(args, cat):
         dose=args.dose,
         category=args.category,
         chain=args.chain,
-        already=dict(parse_amounts(args.already, "--already")) if args.already else None,
+        already=dict(parse_amounts(args.already, "already")) if args.already else None,
         keep_over=args.keep_over,
     )
 

@@ -19,7 +19,8 @@ from __future__ import annotations
 import math
 import os
 
-from ._common import add_json_flag, emit_json, parse_amounts, parse_names, print_cautions, print_table
+from ..jobs.parse import parse_amounts, parse_names
+from ._common import add_json_flag, emit_json, print_cautions, print_table
 
 
 def register(subparsers):
@@ -62,7 +63,7 @@ def _formula(cat, args):
     text = args.formula.strip()
     if text.lower().endswith(".csv") or (os.path.isfile(text) and "=" not in text):
         return formula_from_csv(cat, text)
-    return formula_from_amounts(cat, parse_amounts(text, "--formula"), basis=args.by, name="flavour")
+    return formula_from_amounts(cat, parse_amounts(text, "formula"), basis=args.by, name="flavour")
 
 
 def _fmt(x, spec=".4g"):
@@ -82,9 +83,9 @@ def run(args) -> int:
         raise InputError("--dose: give the dose of the formula (e.g. --dose 0.15%) or a --chain with amounts")
     if args.formula_density is not None and not (0.3 <= args.formula_density <= 2.5):
         raise InputError(f"--formula-density: expected 0.3-2.5 g/cm3, got {args.formula_density:g}")
-    already = dict(parse_amounts(args.already, "--already")) if args.already else None
-    residues = dict(parse_amounts(args.residue, "--residue")) if args.residue else None
-    claims = [c for item in args.claim for c in parse_names(item, "--claim")]
+    already = dict(parse_amounts(args.already, "already")) if args.already else None
+    residues = dict(parse_amounts(args.residue, "residue")) if args.residue else None
+    claims = [c for item in args.claim for c in parse_names(item, "claim")]
     result = check_dose(
         cat, formula, chain=args.chain, jurisdiction=args.jurisdiction.upper(), category=args.category or "food",
         dose=args.dose, already=already, residues=residues, claims=claims, formula_density=args.formula_density,

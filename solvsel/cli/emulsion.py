@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import sys
 
-from ._common import add_json_flag, emit_json, get_catalog, parse_amounts, parse_names, parse_percent, print_cautions, print_table
+from ..jobs.parse import parse_amounts, parse_fraction, parse_names
+from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 
 
 def register(sub):
@@ -56,22 +57,22 @@ def run(args) -> int:
     from ..errors import InputError
 
     cat = get_catalog(args)
-    jur = [j.upper() for j in parse_names(args.jurisdiction, "--jurisdiction")]
+    jur = [j.upper() for j in parse_names(args.jurisdiction, "jurisdiction")]
     bad = [j for j in jur if j not in ("US", "EU")]
     if bad:
         raise InputError(f"--jurisdiction: expected US and/or EU, got '{bad[0]}'")
     sizes = None
     if args.sizes:
         sizes = []
-        for name, share in parse_amounts(args.sizes, "--sizes"):
+        for name, share in parse_amounts(args.sizes, "sizes"):
             try:
                 sizes.append((float(name), share))
             except ValueError:
                 raise InputError(f"--sizes: '{name}' is not a diameter in um") from None
-    dens = dict(parse_amounts(args.oil_density, "--oil-density")) if args.oil_density else None
+    dens = dict(parse_amounts(args.oil_density, "oil_density")) if args.oil_density else None
     res = design_beverage_emulsion(
-        cat, parse_amounts(args.oil, "--oil"), brix=args.brix, density=args.density, dilution=args.dilution,
-        oil_in_concentrate=parse_percent(args.oil_phase, "--oil-phase"), droplet_um=args.droplet_um, sizes=sizes,
+        cat, parse_amounts(args.oil, "oil"), brix=args.brix, density=args.density, dilution=args.dilution,
+        oil_in_concentrate=parse_fraction(args.oil_phase, "oil_phase"), droplet_um=args.droplet_um, sizes=sizes,
         viscosity_mpa_s=WATER_VISCOSITY_20C if args.viscosity is None else args.viscosity, height_mm=args.height_mm,
         shelf_days=args.shelf_days, jurisdictions=tuple(jur), category=args.category, oil_densities=dens, nano=args.nano,
         emulsifier=args.emulsifier, emulsifier_ratio=args.emulsifier_ratio,

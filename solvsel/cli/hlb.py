@@ -2,7 +2,8 @@
 
 from __future__ import annotations
 
-from ._common import add_json_flag, emit_json, get_catalog, parse_amounts, parse_names, print_cautions, print_table
+from ..jobs.parse import parse_amounts, parse_names
+from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 
 
 def register(sub):
@@ -95,8 +96,8 @@ def run(args) -> int:
     if args.oil and args.target is not None:
         raise InputError("give --oil or --target, not both")
     if args.oil:
-        overrides = dict(parse_amounts(args.rhlb, "--rhlb")) if args.rhlb else None
-        phase = H.oil_phase_required_hlb(cat, parse_amounts(args.oil, "--oil"), overrides)
+        overrides = dict(parse_amounts(args.rhlb, "rhlb")) if args.rhlb else None
+        phase = H.oil_phase_required_hlb(cat, parse_amounts(args.oil, "oil"), overrides)
         target = phase.required_hlb
         out["oil_phase"] = list(phase.components)
         cautions = list(phase.cautions) + cautions
@@ -104,7 +105,7 @@ def run(args) -> int:
         target = float(args.target)
     if target is not None:
         out["required_hlb"] = target
-        pool = (H.pool_from_catalog(cat, parse_names(args.emulsifiers, "--emulsifiers")) if args.emulsifiers
+        pool = (H.pool_from_catalog(cat, parse_names(args.emulsifiers, "emulsifiers")) if args.emulsifiers
                 else H.all_emulsifiers(cat))
         pairs = H.emulsifier_systems(pool, target, 2, args.min_fraction)
         out["pairs"] = [s.to_dict() for s in pairs[: max(args.top, 0)]]
@@ -117,7 +118,7 @@ def run(args) -> int:
     if args.jurisdiction and (out.get("pairs") or out.get("triples")):
         out["emulsifier_rules"] = _rules(cat, pool, out, args)
     if args.series:
-        names = parse_names(args.series, "--series")
+        names = parse_names(args.series, "series")
         if len(names) != 2:
             raise InputError(f"--series: expected two emulsifiers LOW,HIGH, got {len(names)}")
         low, high = H.pool_from_catalog(cat, names)
@@ -151,7 +152,7 @@ def _rules(cat, pool, out: dict, args) -> list[dict]:
     from ..rules.regulations import limits
     from ..errors import InputError
 
-    jur = [j.strip().upper() for j in parse_names(args.jurisdiction, "--jurisdiction")]
+    jur = [j.strip().upper() for j in parse_names(args.jurisdiction, "jurisdiction")]
     bad = [j for j in jur if j not in ("US", "EU")]
     if bad:
         raise InputError(f"--jurisdiction: expected US and/or EU, got '{bad[0]}'")

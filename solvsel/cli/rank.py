@@ -2,7 +2,8 @@
 
 from __future__ import annotations
 
-from ._common import add_json_flag, emit_json, get_catalog, parse_names, parse_range, print_cautions, print_table
+from ..jobs.parse import parse_names, parse_range
+from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 from ._target import add_target_arguments, target_from_args
 
 
@@ -53,7 +54,7 @@ def compute(args, cat):
         return nearest_liquids(cat, args.like, k=top or 10_000, food=args.food, use=args.use,
                                jurisdiction=args.jurisdiction, temp_C=args.temp, **limits)
     target = target_from_args(args, cat)
-    names = parse_names(args.only, "--only") if args.only else None
+    names = parse_names(args.only, "only") if args.only else None
     return rank_solvents(cat, target, temp_C=args.temp, names=names, food=args.food, use=args.use,
                          jurisdiction=args.jurisdiction, top=top, dose=args.dose, category=args.category,
                          keep_over=args.keep_over, require_solubility=args.solubility, **limits)

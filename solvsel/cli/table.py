@@ -2,7 +2,8 @@
 
 from __future__ import annotations
 
-from ._common import add_json_flag, emit_json, get_catalog, parse_names, print_table
+from ..jobs.parse import parse_names
+from ._common import add_json_flag, emit_json, get_catalog, print_table
 
 
 def register(sub):
@@ -37,7 +38,7 @@ def run(args) -> int:
     if args.columns:
         from ..errors import InputError
 
-        want = parse_names(args.columns, "--columns")
+        want = parse_names(args.columns, "columns")
         bad = [c for c in want if c not in cols]
         if bad:
             raise InputError(f"--columns: table '{args.name}' has no column '{bad[0]}'; its columns: {', '.join(cols)}")

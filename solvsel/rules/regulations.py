@@ -850,7 +850,8 @@ def check_dose(
     limited carriers").  A substance with no rule in the jurisdiction is
     listed in ``no_data`` and the result is not ``complete``.
     """
-    from ..science.formulation import WATER_DENSITY_25C, parse_chain, stage_levels  # noqa: F401
+    from ..jobs.parse import parse_chain  # temporary: the dose job will parse the chain
+    from ..science.formulation import WATER_DENSITY_25C, stage_levels  # noqa: F401
 
     cat = _catalog(cat)
     jur = _check_jurisdiction(jurisdiction, FOOD_JURISDICTIONS, "--jurisdiction (food law)")

@@ -496,7 +496,6 @@ __all__ += [
     "ExcludedLiquid",
     "BlendSearch",
     "FractionBound",
-    "parse_fraction_bound",
     "optimise_blends",
     "USES",
 ]
@@ -528,49 +527,6 @@ class FractionBound:
 
     def to_dict(self) -> dict:
         return {"name": self.name, "lower": self.lower, "upper": self.upper}
-
-
-def parse_fraction_bound(text: str, what: str = "--fraction") -> FractionBound:
-    """Parse ``"ethanol<=0.3"``, ``"water>=10%"``, ``"0.1<=water<=0.5"`` or ``"water=0.2"``.
-
-    Fractions are by volume, as numbers in 0..1 or percents.
-
-    >>> parse_fraction_bound("ethanol<=0.3")
-    FractionBound(name='ethanol', lower=0.0, upper=0.3)
-    >>> parse_fraction_bound("0.1 <= water <= 50%")
-    FractionBound(name='water', lower=0.1, upper=0.5)
-    """
-    import re
-
-    raw = str(text).strip()
-
-    def number(s):
-        s = s.strip()
-        pct = s.endswith("%")
-        try:
-            v = float(s.rstrip("%").strip()) * (0.01 if pct else 1.0)
-        except ValueError:
-            return None
-        return v
-
-    m = re.fullmatch(r"\s*([^<>=]+?)\s*<=\s*([^<>=]+?)\s*<=\s*([^<>=]+?)\s*", raw)
-    if m:
-        lo, name, hi = number(m.group(1)), m.group(2).strip(), number(m.group(3))
-    else:
-        m = re.fullmatch(r"\s*([^<>=]+?)\s*(<=|>=|=)\s*([^<>=]+?)\s*", raw)
-        if not m:
-            raise InputError(f"{what}: expected NAME<=X, NAME>=X, NAME=X or LO<=NAME<=HI (volume fractions), got '{text}'")
-        name, op, v = m.group(1).strip(), m.group(2), number(m.group(3))
-        if v is None and number(name) is not None:
-            raise InputError(f"{what}: put the liquid's name on the left, e.g. 'ethanol<=0.3', got '{text}'")
-        lo, hi = {"<=": (0.0, v), ">=": (v, 1.0), "=": (v, v)}[op]
-    if lo is None or hi is None or not name:
-        raise InputError(f"{what}: expected a liquid's name and volume fractions as numbers (0.3 or 30%), got '{text}'")
-    if not (0 <= lo <= 1 and 0 <= hi <= 1):
-        raise InputError(f"{what}: volume fractions must be between 0 and 1 (0 and 100 %), got '{text}'")
-    if lo > hi:
-        raise InputError(f"{what}: lower bound {lo:g} is above the upper bound {hi:g} in '{text}'")
-    return FractionBound(name=name, lower=float(lo), upper=float(hi))
 
 
 @dataclass(frozen=True)
@@ -984,7 +940,9 @@ def optimise_blends(
     red_basis = bool(rej) and r0 is not None and all(rr is not None for _, _, rr in rej)
     if dose is not None and (jurisdiction is None or category is None):
         raise InputError("--dose needs --jurisdiction and --category (the food the blend ends up in)")
-    bounds = [b if isinstance(b, FractionBound) else parse_fraction_bound(b) for b in (bounds or ())]
+    bounds = list(bounds or ())
+    if not all(isinstance(b, FractionBound) for b in bounds):
+        raise InputError("each fraction bound must be a FractionBound (parse text with solvsel.jobs.parse.parse_fraction_bound)", param="bounds")
     from ..errors import OutOfRangeError
     from .hansen import T_WINDOW_C
 

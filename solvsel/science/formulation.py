@@ -7,13 +7,13 @@ one (flavour into syrup, syrup into drink).  :func:`stage_levels` gives the
 mass fraction of every substance at every stage, from which mg/kg and, with
 the stage's density, mg/L follow.
 
-Chain syntax (``--chain``), steps separated by ``;``, each
+Chain syntax (parsed by :func:`solvsel.jobs.parse.parse_chain`), steps separated by ``;``, each
 ``NAME [AMOUNT] [d=DENSITY] [dil=DENSITY]``:
 
 =============  ==============================================================
 AMOUNT         meaning (the previous stage in this one)
 =============  ==============================================================
-``0.15%``      0.15 g per 100 g (mass fraction, w/w)
+``0.15%``      0.15 g per 100 g (mass fraction, w/w; also ``0.0015``)
 ``0.15%v``     0.15 mL per 100 mL (volume fraction, v/v): needs both densities
 ``1500ppm``    1500 mg per kg (also ``1500mg/kg``, ``1.5g/kg``)
 ``1.5g/L``     1.5 g per litre of this stage (also ``mg/L``): needs its density
@@ -60,8 +60,6 @@ __all__ = [
     "Stage",
     "formula_from_amounts",
     "formula_from_csv",
-    "parse_chain",
-    "parse_amount",
     "stage_levels",
 ]
 
@@ -381,110 +379,6 @@ class Step:
         }
 
 
-_AMOUNT_RE = re.compile(
-    r"^(?:(?P<a>\d+(?:\.\d+)?)\+(?P<b>\d+(?:\.\d+)?)(?P<pv>v)?"
-    r"|(?P<x>\d+(?:\.\d+)?(?:e-?\d+)?)(?P<unit>%v|%|ppm|mg/kg|g/kg|g/l|mg/l))$",
-    re.I,
-)
-
-
-def parse_amount(text: str, what: str = "--dose") -> tuple[str, float | tuple[float, float]]:
-    """Parse a step amount (see the module docstring) into ``(how, amount)``.
-
-    >>> parse_amount("0.15%")
-    ('w/w', 0.0015)
-    >>> parse_amount("1+5v")
-    ('parts by volume', (1.0, 5.0))
-    """
-    t = str(text).strip().replace(" ", "")
-    m = _AMOUNT_RE.match(t)
-    if not m:
-        raise InputError(
-            f"{what}: '{text}' is not an amount; expected e.g. 0.15% (w/w), 0.15%v (v/v), 1500ppm, 1.5g/kg, "
-            "1.5g/L, 1+5 (parts by mass) or 1+5v (parts by volume)"
-        )
-    if m.group("a") is not None:
-        a, b = float(m.group("a")), float(m.group("b"))
-        if a <= 0 or b < 0:
-            raise InputError(f"{what}: '{text}': parts must be positive")
-        return ("parts by volume" if m.group("pv") else "parts by mass"), (a, b)
-    x = float(m.group("x"))
-    unit = m.group("unit").lower()
-    if unit in ("%", "%v"):
-        how, val = ("v/v" if unit == "%v" else "w/w"), x / 100.0
-    elif unit in ("ppm", "mg/kg"):
-        how, val = "w/w", x * 1e-6
-    elif unit == "g/kg":
-        how, val = "w/w", x * 1e-3
-    elif unit == "g/l":
-        how, val = "g/L", x
-    else:  # mg/l
-        how, val = "g/L", x / 1000.0
-    if how in ("w/w", "v/v") and not (0 < val <= 1):
-        raise InputError(f"{what}: '{text}' must be more than 0 and at most 100 %")
-    if how == "g/L" and not (0 < val <= 2500):
-        raise InputError(f"{what}: '{text}' must be more than 0 and at most 2500 g/L")
-    return how, val
-
-
-def _density(text: str, step: str) -> float:
-    try:
-        d = float(text)
-    except ValueError:
-        raise InputError(f"--chain: step '{step}': density '{text}' is not a number (g/cm3)") from None
-    if not (0.3 <= d <= 2.5):
-        raise InputError(f"--chain: step '{step}': density {d:g} g/cm3 is out of range (0.3-2.5)")
-    return d
-
-
-def parse_chain(text: str | None, dose: str | None = None, final_name: str = "food as consumed") -> list[Step]:
-    """Parse ``--chain`` (see the module docstring); ``dose`` fills the first step's amount.
-
-    Without a chain, the dose puts the formula straight into the food as consumed.
-
-    >>> [s.describe() for s in parse_chain("syrup 0.5% d=1.28; drink 1+5v d=1.04")]
-    ['0.5 % w/w', '1+5 by volume']
-    >>> [s.describe() for s in parse_chain("syrup d=1.28; drink 1+5v", dose="0.5%")]
-    ['0.5 % w/w', '1+5 by volume']
-    """
-    if text is None or not str(text).strip():
-        if dose is None:
-            raise InputError("--dose: give the dose of the formula in the product (e.g. 0.15%), or a --chain")
-        how, amount = parse_amount(dose, "--dose")
-        return [Step(final_name, how, amount, text=str(dose))]
-    steps = []
-    parts = [p.strip() for p in str(text).split(";")]
-    if any(not p for p in parts):
-        raise InputError(f"--chain: empty step in '{text}' (steps are separated by ';')")
-    for i, part in enumerate(parts):
-        name_tokens, how, amount, dens, dil = [], None, None, None, None
-        for tok in part.split():
-            low = tok.lower()
-            if low.startswith("d="):
-                dens = _density(tok[2:], part)
-            elif low.startswith("dil="):
-                dil = _density(tok[4:], part)
-            elif _AMOUNT_RE.match(tok.replace(" ", "")) and how is None:
-                how, amount = parse_amount(tok, f"--chain step '{part}'")
-            else:
-                name_tokens.append(tok)
-        name = " ".join(name_tokens) or f"stage {i + 1}"
-        if how is None:
-            if i == 0 and dose is not None:
-                how, amount = parse_amount(dose, "--dose")
-            else:
-                raise InputError(
-                    f"--chain: step '{part}' has no amount (e.g. 0.15%, 1+5v)"
-                    + ("" if i else "; or give --dose for the first step")
-                )
-        elif i == 0 and dose is not None:
-            raise InputError(f"--chain: the first step '{part}' has its own amount and --dose is also given; give one")
-        if dil is not None and how != "parts by volume":
-            raise InputError(f"--chain: step '{part}': dil= applies only to parts by volume (e.g. 1+5v)")
-        steps.append(Step(name, how, amount, dens, dil, text=part))
-    return steps
-
-
 @dataclass(frozen=True)
 class Stage:
     """One stage of the chain: its density, the fraction of the previous stage in it, and the levels."""
@@ -557,6 +451,7 @@ def stage_levels(formula: Formula, steps: Sequence[Step], formula_density: float
 
     >>> from solvsel.data.catalog import load_catalog
     >>> f = formula_from_amounts(load_catalog(), [("propylene glycol", 90), ("vanillin", 10)])
+    >>> from solvsel.jobs.parse import parse_chain
     >>> st = stage_levels(f, parse_chain("syrup 0.5% d=1.28; drink 1+5v"))
     >>> round(st[-1].mg_per_kg["57-55-6"], 1)
     919.4

@@ -103,7 +103,7 @@ def _window(text: str) -> tuple[float | None, float | None]:
 
 
 def _names(text: str, what: str) -> tuple[str, ...]:
-    from ..cli._common import parse_names
+    from ..jobs.parse import parse_names
 
     return tuple(parse_names(text, what)) if (text or "").strip() else ()
 

@@ -130,7 +130,7 @@ class EmulsionScreen(BenchScreen):
 
     def compute_hlb(self) -> None:
         from ..science import hlb as H
-        from ..cli._common import parse_amounts, parse_names
+        from ..jobs.parse import parse_amounts, parse_names
 
         cat = self.session.catalog
         box = self.query_one("#em-hlb", Static)
@@ -161,7 +161,7 @@ class EmulsionScreen(BenchScreen):
              "yes" if p.same_tail else "no") for p in pairs[:12]])
 
     def compute_design(self) -> None:
-        from ..cli._common import parse_amounts, parse_names
+        from ..jobs.parse import parse_amounts, parse_names
         from ..science.emulsion import design_beverage_emulsion
 
         cat = self.session.catalog

@@ -81,7 +81,7 @@ class LimitsScreen(BenchScreen):
         self.compute()
 
     def run_check(self):
-        from ..cli._common import parse_amounts
+        from ..jobs.parse import parse_amounts
         from ..rules.regulations import check_dose
         from ..errors import InputError
         from ..science.formulation import formula_from_amounts

@@ -137,7 +137,7 @@ class TargetScreen(BenchScreen):
             self.set_target(self.guard(self.bench_target))
 
     def typed_target(self):
-        from ..cli._common import parse_hsp
+        from ..jobs.parse import parse_hsp
         from ..science.target import target_from_hsp
 
         name = self.query_one("#typed-name", Input).value.strip() or "typed target"
