@@ -23,6 +23,9 @@ class BenchScreen(Screen):
     """Base of the six screens: adds the frame and redraws when the target changes."""
 
     MODE = ""
+    #: Labels of this screen's fields by the request field they fill (``{"temp_C": "temperature"}``);
+    #: an error about a request field is shown with its label (else :data:`.dialogs.FIELD_NAMES`).
+    FIELD_LABELS: dict[str, str] = {}
 
     def __init__(self) -> None:
         super().__init__()
@@ -60,5 +63,5 @@ class BenchScreen(Screen):
         try:
             return fn(*args, **kwargs)
         except SolvselError as exc:
-            show_error(self.app, exc)
+            show_error(self.app, exc, self.FIELD_LABELS)
             return None

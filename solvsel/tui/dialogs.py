@@ -80,14 +80,15 @@ def plain_message(message: str) -> str:
     return re.sub(r"(?<![\w-])--([a-z][a-z0-9-]*)", field, message)
 
 
-def field_label(param: str) -> str:
-    """The label of the UI field a request field is typed into."""
-    return FIELD_NAMES.get(param) or FIELD_NAMES.get(param.replace("_", "-")) or param.replace("_", " ")
+def field_label(param: str, labels: dict[str, str] | None = None) -> str:
+    """The label of the UI field a request field is typed into (the screen's own labels first)."""
+    return ((labels or {}).get(param) or FIELD_NAMES.get(param) or FIELD_NAMES.get(param.replace("_", "-"))
+            or param.replace("_", " "))
 
 
-def show_error(app, exc: BaseException) -> None:
+def show_error(app, exc: BaseException, labels: dict[str, str] | None = None) -> None:
     """Open the error dialog for ``exc`` (its ``title`` and one-paragraph message, in the UI's words)."""
     title = getattr(exc, "title", None) or type(exc).__name__
     describe = getattr(exc, "describe", None)
-    text = describe(field_label) if describe else str(exc)
+    text = describe(lambda p: field_label(p, labels)) if describe else str(exc)
     app.push_screen(ErrorDialog(str(title), plain_message(text)))
