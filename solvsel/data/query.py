@@ -53,7 +53,7 @@ def _tokens(text: str):
     while pos < len(text):
         m = _TOKEN.match(text, pos)
         if not m or m.end() == pos:
-            raise InputError(f"--where: cannot read '{text[pos:]}' (at character {pos + 1} of '{text}')")
+            raise InputError(f"cannot read '{text[pos:]}' (at character {pos + 1} of '{text}')", param="where", value=text)
         kind = m.lastgroup
         val = m.group(kind)
         if kind in ("sq", "dq"):
@@ -78,7 +78,7 @@ class _Parser:
         return tok
 
     def error(self, msg):
-        raise InputError(f"--where '{self.text}': {msg}")
+        raise InputError(f"'{self.text}': {msg}", param="where", value=self.text)
 
     def parse(self):
         if not self.toks:
@@ -182,8 +182,7 @@ def resolve_column(df, name: str, what: str | None = None) -> str:
         return lower[name.lower()]
     close = difflib.get_close_matches(name, cols + [a for a, c in ALIASES.items() if c in cols], n=4, cutoff=0.5)
     hint = f"; closest: {', '.join(close)}" if close else f"; columns: {', '.join(cols)}"
-    prefix = f"{what}: " if what else ""
-    raise InputError(f"{prefix}unknown column '{name}'{hint}")
+    raise InputError(f"unknown column '{name}'{hint}", param=what.lstrip("-") if what else "where", value=name)
 
 
 def where(df, text: str):

@@ -30,9 +30,9 @@ def as_hsp(values, name: str = "hsp") -> np.ndarray:
     """
     arr = np.asarray(values, dtype=float)
     if arr.shape[-1:] != (3,):
-        raise InputError(f"{name}: expected dD, dP, dH (3 numbers), got shape {arr.shape}")
+        raise InputError(f"expected dD, dP, dH (3 numbers), got shape {arr.shape}", param=name)
     if not np.all(np.isfinite(arr)):
-        raise InputError(f"{name}: HSP values must be finite numbers")
+        raise InputError(f"HSP values must be finite numbers", param=name)
     return arr
 
 
@@ -82,7 +82,7 @@ def red(a, b, r0) -> np.ndarray:
     """
     r0 = np.asarray(r0, dtype=float)
     if np.any(~(r0 > 0)):
-        raise InputError(f"R0 must be a positive number of MPa^0.5, got {r0}")
+        raise InputError(f"R0 must be a positive number of MPa^0.5, got {r0}", param="r0")
     return ra(a, b) / r0
 
 
@@ -161,26 +161,26 @@ def ra_to_surface(hsp, center, r0) -> np.ndarray:
     """
     r0 = np.asarray(r0, dtype=float)
     if np.any(~(r0 > 0)):
-        raise InputError(f"R0 must be a positive number of MPa^0.5, got {r0}")
+        raise InputError(f"R0 must be a positive number of MPa^0.5, got {r0}", param="r0")
     return ra(hsp, center) - r0
 
 
 def _check_fractions(fractions, name: str, n: int | None = None) -> np.ndarray:
     f = np.asarray(fractions, dtype=float)
     if f.ndim == 0:
-        raise InputError(f"{name}: expected one fraction per component, got a single number")
+        raise InputError(f"expected one fraction per component, got a single number", param=name)
     if n is not None and f.shape[-1] != n:
-        raise InputError(f"{name}: expected {n} fractions (one per component), got {f.shape[-1]}")
+        raise InputError(f"expected {n} fractions (one per component), got {f.shape[-1]}", param=name)
     if not np.all(np.isfinite(f)):
-        raise InputError(f"{name}: fractions must be finite numbers")
+        raise InputError(f"fractions must be finite numbers", param=name)
     if np.any(f < 0):
-        raise InputError(f"{name}: fractions must be zero or positive, got {f[f < 0].ravel()[:3].tolist()}")
+        raise InputError(f"fractions must be zero or positive, got {f[f < 0].ravel()[:3].tolist()}", param=name)
     s = f.sum(axis=-1)
     bad = np.abs(s - 1.0) > _FRACTION_TOL
     if np.any(bad):
         raise InputError(
-            f"{name}: fractions must sum to 1 (within {_FRACTION_TOL:g}), got a sum of "
-            f"{float(np.ravel(s)[np.argmax(np.ravel(bad))]):.6g}"
+            f"fractions must sum to 1 (within {_FRACTION_TOL:g}), got a sum of "
+            f"{float(np.ravel(s)[np.argmax(np.ravel(bad))]):.6g}", param=name,
         )
     return f
 
@@ -220,7 +220,7 @@ def mix(hsp, volume_fractions) -> np.ndarray:
     """
     h = as_hsp(hsp)
     if h.ndim < 2:
-        raise InputError(f"hsp: expected one (dD, dP, dH) row per component, got shape {h.shape}")
+        raise InputError(f"expected one (dD, dP, dH) row per component, got shape {h.shape}", param="hsp")
     f = _check_fractions(volume_fractions, "volume_fractions", h.shape[-2])
     return np.einsum("...n,...nk->...k", f, h)
 
@@ -264,7 +264,7 @@ def convert_fractions(fractions, frm: str, to: str, density_g_cm3=None, mw_g_mol
     """
     for label, kind in (("frm", frm), ("to", to)):
         if kind not in _KINDS:
-            raise InputError(f"{label}: expected one of {', '.join(_KINDS)}, got '{kind}'")
+            raise InputError(f"expected one of {', '.join(_KINDS)}, got '{kind}'", param=label)
     f = _check_fractions(fractions, "fractions")
     n = f.shape[-1]
 
@@ -273,9 +273,9 @@ def convert_fractions(fractions, frm: str, to: str, density_g_cm3=None, mw_g_mol
             raise MissingDataError(f"converting {frm} to {to} fractions needs {label} [{unit}] of every component")
         v = np.asarray(values, dtype=float)
         if v.shape[-1:] != (n,):
-            raise InputError(f"{label}: expected {n} values (one per component), got shape {v.shape}")
+            raise InputError(f"expected {n} values (one per component), got shape {v.shape}", param=label)
         if not np.all(np.isfinite(v)) or np.any(v <= 0):
-            raise MissingDataError(f"{label}: every component needs a known positive value [{unit}], got {v.tolist()}")
+            raise MissingDataError(f"every component needs a known positive value [{unit}], got {v.tolist()}", param=label)
         return v
 
     if frm == to:
@@ -300,29 +300,29 @@ def convert_fractions(fractions, frm: str, to: str, density_g_cm3=None, mw_g_mol
 def _check_temperature(temp_C, mp_C=None, bp_C=None, what="temp_C") -> np.ndarray:
     t = np.asarray(temp_C, dtype=float)
     if not np.all(np.isfinite(t)):
-        raise InputError(f"{what}: temperature must be a finite number of C, got {temp_C}")
+        raise InputError(f"temperature must be a finite number of C, got {temp_C}", param=what)
     lo, hi = T_WINDOW_C
     if np.any(t < lo) or np.any(t > hi):
         raise OutOfRangeError(
-            f"{what}: {float(np.ravel(t)[0]):g} C is outside the range of the Hansen-Beerbower "
-            f"temperature rules, {lo:g} to {hi:g} C"
+            f"{float(np.ravel(t)[0]):g} C is outside the range of the Hansen-Beerbower "
+            f"temperature rules, {lo:g} to {hi:g} C", param=what,
         )
     if mp_C is not None:
         mp = np.asarray(mp_C, dtype=float)
         below = np.isfinite(mp) & (t < mp)
         if np.any(below):
             raise OutOfRangeError(
-                f"{what}: {float(np.broadcast_to(t, below.shape)[below][0]):g} C is below the melting point "
-                f"({float(np.broadcast_to(mp, below.shape)[below][0]):g} C): the liquid would freeze"
+                f"{float(np.broadcast_to(t, below.shape)[below][0]):g} C is below the melting point "
+                f"({float(np.broadcast_to(mp, below.shape)[below][0]):g} C): the liquid would freeze", param=what,
             )
     if bp_C is not None:
         bp = np.asarray(bp_C, dtype=float)
         above = np.isfinite(bp) & (t > bp)
         if np.any(above):
             raise OutOfRangeError(
-                f"{what}: {float(np.broadcast_to(t, above.shape)[above][0]):g} C is above the boiling point "
+                f"{float(np.broadcast_to(t, above.shape)[above][0]):g} C is above the boiling point "
                 f"({float(np.broadcast_to(bp, above.shape)[above][0]):g} C at 1 atm): the liquid would boil "
-                "unless held under pressure"
+                "unless held under pressure", param=what,
             )
     return t
 
@@ -406,9 +406,9 @@ def shift_temperature(hsp, alpha_1_K, temp_C, ref_C: float = 25.0, vm_cm3_mol=No
     h = as_hsp(hsp)
     a = np.asarray(alpha_1_K, dtype=float)
     if not np.all(np.isfinite(a)):
-        raise MissingDataError("alpha_1_K: the thermal expansion coefficient is needed to shift HSP with temperature")
+        raise MissingDataError("the thermal expansion coefficient is needed to shift HSP with temperature", param="alpha_1_K")
     if np.any(a < 0) or np.any(a >= 0.01):
-        raise OutOfRangeError(f"alpha_1_K: expected 0 <= alpha < 0.01 1/K for a liquid, got {a.ravel()[:3].tolist()}")
+        raise OutOfRangeError(f"expected 0 <= alpha < 0.01 1/K for a liquid, got {a.ravel()[:3].tolist()}", param="alpha_1_K")
     _check_temperature(ref_C, what="ref_C")
     t = _check_temperature(temp_C, mp_C, bp_C)
     dt = t - ref_C
@@ -461,7 +461,7 @@ def chi_flory_huggins(hsp1, hsp2, vm1_cm3_mol, temp_C=25.0) -> np.ndarray:
     """
     v1 = np.asarray(vm1_cm3_mol, dtype=float)
     if np.any(~(v1 > 0)):
-        raise InputError(f"vm1_cm3_mol: molar volume must be a positive number of cm^3/mol, got {v1}")
+        raise InputError(f"molar volume must be a positive number of cm^3/mol, got {v1}", param="vm1_cm3_mol")
     t = np.asarray(temp_C, dtype=float) + 273.15
     r = ra(hsp1, hsp2)
     return v1 * r * r / (4.0 * R_J_MOL_K * t)
@@ -847,7 +847,7 @@ def ideal_solubility(temp_C, mp_C, dHfus_kJ_mol) -> float:
     if mp_C is None or dHfus_kJ_mol is None or not (math.isfinite(mp_C) and math.isfinite(dHfus_kJ_mol)):
         raise MissingDataError("solid solubility needs the solute's melting point and enthalpy of fusion")
     if dHfus_kJ_mol <= 0:
-        raise InputError(f"dHfus_kJ_mol: enthalpy of fusion must be positive, got {dHfus_kJ_mol}")
+        raise InputError(f"enthalpy of fusion must be positive, got {dHfus_kJ_mol}", param="dHfus_kJ_mol")
     if temp_C >= mp_C:
         raise OutOfRangeError(
             f"temp_C: {temp_C:g} C is at or above the solute's melting point ({mp_C:g} C): it is a liquid "
@@ -1167,7 +1167,7 @@ def rank_order(targets, solvents, r0=None, k: int | None = None):
         score = np.sort(d2, axis=1)
     else:
         if k < 1:
-            raise InputError(f"k: expected at least 1, got {k}")
+            raise InputError(f"expected at least 1, got {k}", param="k")
         part = np.argpartition(d2, k - 1, axis=1)[:, :k]
         sub = np.take_along_axis(d2, part, axis=1)
         order = np.take_along_axis(part, np.argsort(sub, axis=1), axis=1)
@@ -1176,7 +1176,7 @@ def rank_order(targets, solvents, r0=None, k: int | None = None):
     if r0 is not None:
         r = np.asarray(r0, dtype=float).reshape(-1, 1)
         if np.any(~(r > 0)):
-            raise InputError("r0: every radius must be a positive number of MPa^0.5")
+            raise InputError("every radius must be a positive number of MPa^0.5", param="r0")
         score /= r
     return order, score
 

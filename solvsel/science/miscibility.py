@@ -35,7 +35,7 @@ import numpy as np
 
 from ..data.catalog import number_or_none as _num
 from . import hansen
-from ..errors import InputError, MissingDataError
+from ..errors import InputError, MissingDataError, OutOfRangeError
 
 __all__ = [
     "FULL",
@@ -328,9 +328,9 @@ def pair(cat, a, b, temp_C: float = 25.0) -> PairVerdict:
     ('yes', 'measured', True)
     """
     if not (isinstance(temp_C, (int, float)) and math.isfinite(temp_C)):
-        raise InputError(f"--temp (temp_C): expected a temperature in C, got {temp_C}")
+        raise InputError(f"expected a temperature in C, got {temp_C}", param="temp_C")
     if not -80.0 <= temp_C <= 150.0:
-        raise InputError(f"--temp (temp_C): {temp_C:g} C is outside -80 to 150 C, where neither the table nor the model applies")
+        raise OutOfRangeError(f"{temp_C:g} C is outside -80 to 150 C, where neither the table nor the model applies", param="temp_C")
     sa, sb = _solvent(cat, a), _solvent(cat, b)
     if sa.name == sb.name:
         return PairVerdict((sa.name, sb.name), "yes", "measured", {"one_phase_ranges": [[0.0, 1.0]]}, 0.0, None, (), "the same liquid", temp_C, (sa.cas, sb.cas))
