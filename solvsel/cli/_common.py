@@ -34,7 +34,6 @@ OPTION_NAMES = {
     "min_flash_C": "--min-flash",
     "top": "--top",
     "bounds": "--fraction",
-    "fractions": "--fraction",
 }
 
 

@@ -33,6 +33,7 @@ __all__ = [
     "parse_fraction",
     "parse_range",
     "parse_fraction_bound",
+    "parse_fractions",
     "parse_chain",
     "parse_number",
     "AMOUNT_EXAMPLES",
@@ -233,7 +234,7 @@ def parse_range(text: str | None, param: str = "bp_range", unit: str = "C") -> t
     return lo_v, hi_v
 
 
-def parse_fraction_bound(text: str, param: str = "fractions") -> FractionBound:
+def parse_fraction_bound(text: str, param: str = "fraction") -> FractionBound:
     """Parse ``"ethanol<=0.3"``, ``"water>=10%"``, ``"0.1<=water<=0.5"`` or ``"water=0.2"``.
 
     Fractions are by volume, as numbers in 0..1 or percents.
@@ -274,6 +275,30 @@ def parse_fraction_bound(text: str, param: str = "fractions") -> FractionBound:
     if lo > hi:
         raise _fail(param, text, f"the lower bound {lo:g} is above the upper bound {hi:g} in '{text}'", expected)
     return FractionBound(name=name, lower=float(lo), upper=float(hi))
+
+
+def parse_fractions(text: str, n: int, param: str = "fractions") -> tuple[float, ...]:
+    """``n`` volume fractions ``"0.7,0.3"`` summing to 1, or percents ``"70,30"`` summing to 100.
+
+    >>> parse_fractions("70, 30", 2)
+    (0.7, 0.3)
+    """
+    expected = f"{n} numbers separated by commas, summing to 1 (or to 100 %)"
+    parts = [p.strip().rstrip("%") for p in str(text).split(",") if p.strip()]
+    try:
+        vals = [float(p) for p in parts]
+    except ValueError:
+        raise _fail(param, text, f"expected {expected}, got '{text}'", expected) from None
+    if len(vals) != n:
+        raise _fail(param, text, f"expected {n} numbers (one per liquid), got {len(vals)}", expected)
+    if not all(math.isfinite(v) and v >= 0 for v in vals):
+        raise _fail(param, text, "fractions must be zero or positive numbers", expected)
+    total = sum(vals)
+    if n > 1 and abs(total - 100.0) < 1e-6:
+        vals = [v / 100.0 for v in vals]
+    elif abs(total - 1.0) > 1e-6:
+        raise _fail(param, text, f"fractions must sum to 1 (or to 100 %), got {total:g}", expected)
+    return tuple(vals)
 
 
 def _density(text: str, step: str, param: str) -> float:

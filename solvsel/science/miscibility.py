@@ -701,15 +701,6 @@ def pair_matrix(cat, names=None, temp_C: float = 25.0) -> PairMatrix:
 # ----------------------------------------------------------------------------- graph
 
 
-def _food_ok(cat, s, use="carrier") -> bool:
-    from ..rules.regulations import food_status
-
-    try:
-        return food_status(cat, s, use=use).allowed
-    except Exception:  # noqa: BLE001 - no rule is not a permission
-        return False
-
-
 def graph(cat, temp_C: float = 25.0, names=None, predicted: bool = True):
     """Graph of the liquids: an edge for every pair that is not immiscible.
 
@@ -761,7 +752,7 @@ class Bridge:
                 "measured_both": self.measured_both, "closeness": self.closeness, "food": self.food}
 
 
-def bridges(cat, a, b, temp_C: float = 25.0, food_only: bool = False, names=None) -> list[Bridge]:
+def bridges(cat, a, b, temp_C: float = 25.0, names=None) -> list[Bridge]:
     """Liquids miscible in all proportions with both ``a`` and ``b``, best first.
 
     Ranked by the evidence (both pairs measured, then one, then none), then by
@@ -775,11 +766,9 @@ def bridges(cat, a, b, temp_C: float = 25.0, food_only: bool = False, names=None
         the two liquids
     temp_C : float
         temperature [C]
-    food_only : bool
-        keep only liquids whose food status as a carrier is permitted or
-        conditional (:func:`solvsel.rules.regulations.food_status`)
     names : sequence of str, optional
-        candidate pool (default: every solvent)
+        candidate pool (default: every solvent); the miscible job passes the
+        food carriers of its candidate pool here for a food-only search
     """
     sa, sb = _solvent(cat, a), _solvent(cat, b)
     pool = [s.name for s in cat.solvent_records()] if names is None else [_solvent(cat, n).name for n in names]
@@ -795,19 +784,16 @@ def bridges(cat, a, b, temp_C: float = 25.0, food_only: bool = False, names=None
         if m.status[k, ia] != FULL or m.status[k, ib] != FULL:
             continue
         rec = cat.solvent(name)
-        food = _food_ok(cat, rec) if food_only else None
-        if food_only and not food:
-            continue
         ratio = max(m.chi[ia, k] / m.chi_critical[ia, k], m.chi[ib, k] / m.chi_critical[ib, k])
         out.append(Bridge(name, rec.cas, "measured" if m.measured[k, ia] else "predicted",
                           "measured" if m.measured[k, ib] else "predicted",
-                          bool(m.measured[k, ia] and m.measured[k, ib]), float(ratio), food))
+                          bool(m.measured[k, ia] and m.measured[k, ib]), float(ratio)))
     evidence = {True: 0, False: 1}
     out.sort(key=lambda r: (evidence[r.measured_both], (r.basis_a != "measured") + (r.basis_b != "measured"), r.closeness, r.name))
     return out
 
 
-def largest_miscible_sets(cat, food_only: bool = True, temp_C: float = 25.0, names=None, measured_only: bool = False, top: int = 10):
+def largest_miscible_sets(cat, temp_C: float = 25.0, names=None, measured_only: bool = False, top: int = 10):
     """The largest sets of liquids that are all mutually miscible in all proportions.
 
     Maximal cliques of the graph of "yes" edges (networkx ``find_cliques``),
@@ -817,9 +803,8 @@ def largest_miscible_sets(cat, food_only: bool = True, temp_C: float = 25.0, nam
 
     Parameters
     ----------
-    food_only : bool
-        restrict to liquids whose food status as a carrier is permitted or
-        conditional (:func:`solvsel.rules.regulations.food_status`)
+    names : sequence of str, optional
+        the liquids to look among (e.g. the food carriers of a candidate pool)
     measured_only : bool
         use measured pairs only
     top : int
@@ -835,8 +820,6 @@ def largest_miscible_sets(cat, food_only: bool = True, temp_C: float = 25.0, nam
     pool = [s for s in cat.solvent_records()] if names is None else [_solvent(cat, n) for n in names]
     if names is None:  # rows without CAS are blends of other rows (ethanol strengths)
         pool = [s for s in pool if s.cas]
-    if food_only:
-        pool = [s for s in pool if _food_ok(cat, s)]
     if not pool:
         return []
     m = pair_matrix(cat, [s.name for s in pool], temp_C)
