@@ -1,4 +1,4 @@
-"""The solvsel terminal app: six screens over one shared state, opened on the demo scenario.
+"""The solvsel terminal app: seven screens over one shared state, opened on the demo scenario.
 
 ``create_app`` builds the app for the command line and for the tests alike;
 ``run_app`` runs it.  Each screen lives in its own module; styles in app.tcss.
@@ -45,12 +45,14 @@ class SolvselApp(App):
         from .emulsion import EmulsionScreen
         from .hspmap import MapScreen
         from .limits import LimitsScreen
+        from .mixing import MixingScreen
         from .tables import TablesScreen
         from .target import TargetScreen
 
         self.MODES = {
             "tables": TablesScreen, "target": TargetScreen, "carriers": CarriersScreen,
             "map": MapScreen, "emulsion": EmulsionScreen, "limits": LimitsScreen,
+            "mixing": MixingScreen,
         }
         super().__init__()
         self.session = session
@@ -80,7 +82,7 @@ def create_app(catalog=None, scenario=None, start: str | None = None) -> Solvsel
     """The app on ``catalog`` (default: the bundled tables) and ``scenario`` (default: the demo).
 
     The target starts as the scenario's solute.  ``start`` names the first
-    screen (``tables``, ``target``, ``carriers``, ``map``, ``emulsion``, ``limits``).
+    screen (``tables``, ``target``, ``carriers``, ``map``, ``emulsion``, ``limits``, ``mixing``).
     """
     from ..data.catalog import load_catalog
     from ..errors import SolvselError

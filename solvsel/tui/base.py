@@ -16,11 +16,12 @@ SCREENS = [
     ("map", "F4", "Map"),
     ("emulsion", "F5", "Emulsion"),
     ("limits", "F6", "Limits"),
+    ("mixing", "F7", "Mixing"),
 ]
 
 
 class BenchScreen(Screen):
-    """Base of the six screens: adds the frame and redraws when the target changes."""
+    """Base of the screens: adds the frame and redraws when the target changes."""
 
     MODE = ""
     #: Labels of this screen's fields by the request field they fill (``{"temp_C": "temperature"}``);

@@ -1,0 +1,96 @@
+"""The miscible job gives the same answer from the library, the command line and the UI.
+
+The verdicts themselves are checked against published mutual solubilities in
+tests/test_miscibility.py; here the three doors are held to one answer.
+"""
+
+from __future__ import annotations
+
+import asyncio
+import json
+
+import pytest
+
+import solvsel
+from solvsel.cli import main
+from solvsel.errors import InputError
+
+CASES = [
+    # a measured partial pair (water / ethyl acetate), a three-liquid blend at fractions,
+    # and the bridging liquids between a citrus terpene and water among food carriers
+    dict(liquids=("water", "ethyl acetate")),
+    dict(liquids=("water", "ethanol", "d-limonene"), fractions=(0.3, 0.6, 0.1)),
+    dict(liquids=("d-limonene", "water"), bridge=True, food=True),
+]
+
+
+def _argv(case):
+    argv = ["miscible", *case["liquids"], "--json"]
+    if case.get("fractions"):
+        argv += ["--fractions", ",".join(str(f) for f in case["fractions"])]
+    if case.get("bridge"):
+        argv.append("--bridge")
+    if case.get("food"):
+        argv.append("--food")
+    return argv
+
+
+def _essentials(d):
+    out = {"one_phase": d["one_phase"], "basis": d["basis"],
+           "pairs": [(tuple(p["liquids"]), p["one_phase"], p["basis"], p["chi"]) for p in d["pairs"]]}
+    if "blend" in d:
+        out["blend"] = (d["blend"]["one_phase"], d["blend"]["reason"])
+    if "bridges" in d:
+        out["bridges"] = [(b["name"], b["basis_a"], b["basis_b"], round(b["closeness"], 12)) for b in d["bridges"]]
+    return out
+
+
+@pytest.mark.parametrize("case", CASES)
+def test_library_and_command_line_agree(case, capsys):
+    lib = solvsel.miscible(**case).to_dict()
+    assert main(_argv(case)) == 0
+    cli = json.loads(capsys.readouterr().out)
+    assert _essentials(cli) == _essentials(lib)
+    assert cli["cautions"] == lib["cautions"]
+
+
+def test_the_mixing_screen_shows_the_library_answer():
+    pytest.importorskip("textual")
+    from textual.widgets import Checkbox, Input
+
+    from solvsel.tui.app import create_app
+
+    async def go():
+        app = create_app(start="mixing")
+        async with app.run_test(size=(160, 48)) as pilot:
+            await pilot.pause()
+            for case in CASES:
+                screen = app.screen
+                screen.query_one("#mix-liquids", Input).value = ", ".join(case["liquids"])
+                screen.query_one("#mix-fractions", Input).value = ",".join(str(f) for f in case.get("fractions") or ())
+                screen.query_one("#mix-bridge", Checkbox).value = bool(case.get("bridge"))
+                screen.query_one("#mix-food", Checkbox).value = bool(case.get("food"))
+                await pilot.press("ctrl+r")
+                await pilot.pause()
+                assert _essentials(screen.result.to_dict()) == _essentials(solvsel.miscible(**case).to_dict())
+                assert screen.query_one("#mix-pairs").row_count == len(screen.result.pairs)
+            # a mistake opens the dialog with the field's label, not an option of the command line
+            app.screen.query_one("#mix-fractions", Input).value = "50,60"
+            app.screen.query_one("#mix-bridge", Checkbox).value = False
+            app.screen.query_one("#mix-food", Checkbox).value = False
+            app.screen.query_one("#mix-liquids", Input).value = "water, ethanol"
+            await pilot.press("ctrl+r")
+            await pilot.pause()
+            assert type(app.screen).__name__ == "ErrorDialog"
+            assert app.screen.error_message.startswith("volume fractions:") and "--" not in app.screen.error_message
+
+    asyncio.run(go())
+
+
+def test_a_bad_request_names_the_field():
+    with pytest.raises(InputError) as info:
+        solvsel.MiscibleRequest(liquids=("water",))
+    assert info.value.param == "liquids"
+    with pytest.raises(InputError) as info:
+        solvsel.miscible(liquids=("water", "ethanol"), temp_C=400)
+    assert info.value.param == "temp_C"
