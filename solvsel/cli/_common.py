@@ -90,19 +90,16 @@ def to_jsonable(obj: Any) -> Any:
         return obj
     if isinstance(obj, int):
         return obj
-    try:
-        import numpy as np
+    import numpy as np
 
-        if isinstance(obj, np.ndarray):
-            return [to_jsonable(v) for v in obj.tolist()]
-        if isinstance(obj, np.bool_):
-            return bool(obj)
-        if isinstance(obj, np.integer):
-            return int(obj)
-        if isinstance(obj, np.floating):
-            obj = float(obj)
-    except ImportError:  # pragma: no cover
-        pass
+    if isinstance(obj, np.ndarray):
+        return [to_jsonable(v) for v in obj.tolist()]
+    if isinstance(obj, np.bool_):
+        return bool(obj)
+    if isinstance(obj, np.integer):
+        return int(obj)
+    if isinstance(obj, np.floating):
+        obj = float(obj)
     if isinstance(obj, float):
         return obj if math.isfinite(obj) else None
     return str(obj)
@@ -184,10 +181,9 @@ def open_ui(args) -> int:
     if not (sys.stdin.isatty() and sys.stdout.isatty()):
         print("(no terminal: printing the text walk-through of the demo; run `solvsel` in a terminal for the UI)\n")
         return run_demo(Namespace(step=None))
-    try:
-        from ..tui.app import run_app
-    except ModuleNotFoundError as exc:
-        if exc.name and exc.name.startswith("solvsel.tui"):
-            return run_demo(Namespace(step=None))
-        raise
+    from ..extras import need
+
+    need("textual", "ui", "the terminal UI")
+    from ..tui.app import run_app
+
     return run_app(catalog=get_catalog(args))

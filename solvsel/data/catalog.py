@@ -713,11 +713,13 @@ def load_catalog(own: Mapping[str, Sequence[str | Path]] | None = None, tables_d
 @lru_cache(maxsize=256)
 def library_cas(name_or_cas: str) -> str | None:
     """CAS number the reference library ``chemicals`` gives for a name, or None."""
-    try:
-        from chemicals.identifiers import search_chemical
+    from chemicals.identifiers import search_chemical
 
+    if not name_or_cas.strip():
+        return None
+    try:
         return search_chemical(name_or_cas.strip()).CASs
-    except Exception:  # unknown to the library (or the library is missing)
+    except ValueError:  # unknown to the library
         return None
 
 
@@ -729,13 +731,13 @@ def library_solvent(name_or_cas: str) -> Solvent | None:
     Molar volume from the COSTALD correlation at 25 C (an estimate) from the
     library's critical constants; the record says so in its note.
     """
-    try:
-        from chemicals.identifiers import search_chemical
-    except ImportError:  # pragma: no cover
+    from chemicals.identifiers import search_chemical
+
+    if not name_or_cas.strip():
         return None
     try:
         meta = search_chemical(name_or_cas.strip())
-    except Exception:  # unknown to the library
+    except ValueError:  # unknown to the library
         return None
     cas = meta.CASs
     hsp, src = library_hsp(cas)
@@ -751,8 +753,8 @@ def library_solvent(name_or_cas: str) -> Solvent | None:
             v = COSTALD(298.15, tc, vc, omega)  # m3/mol
             vm = v * 1e6
             density = meta.MW / vm
-    except Exception:
-        pass
+    except (ValueError, TypeError, ZeroDivisionError):  # the library's data incomplete for this substance
+        vm = None
     if vm is None:
         return None
     tb, tm, tf = phase_change.Tb(cas), phase_change.Tm(cas), safety.T_flash(cas)

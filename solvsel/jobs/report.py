@@ -16,7 +16,7 @@ from pathlib import Path
 from typing import Any, Iterable
 
 from .. import __version__
-from ..errors import InputError
+from ..errors import InputError, UnknownNameError
 
 __all__ = ["collect_source_ids", "rows_for_csv", "render_markdown", "write_report"]
 
@@ -143,7 +143,7 @@ def write_report(out: str | Path, title: str, command: str, text: str, data: Any
         for sid in collect_source_ids(data):
             try:
                 citations.append(catalog.source(sid))
-            except Exception:  # a user's own free-text source
+            except UnknownNameError:  # a user's own free-text source
                 citations.append({"id": sid, "kind": "user", "citation": "given in your own table", "url": ""})
     paths[0].write_text(render_markdown(title, command, text, data, citations), encoding="utf-8")
     paths[1].write_text(json.dumps(data, indent=2, ensure_ascii=False) + "\n", encoding="utf-8")

@@ -35,7 +35,7 @@ import numpy as np
 
 from ..data.catalog import number_or_none as _num
 from . import hansen
-from ..errors import InputError, MissingDataError, OutOfRangeError
+from ..errors import InputError, MissingDataError, OutOfRangeError, SolvselError, UnknownNameError
 
 __all__ = [
     "FULL",
@@ -184,14 +184,14 @@ def _measured_index(cat_id: int, cat_ref):
     cat = cat_ref()
     try:
         df = cat.table("miscibility")
-    except Exception as exc:  # noqa: BLE001 - a missing table is a data error for the user
+    except SolvselError as exc:  # a missing or malformed table is a data error for the user
         raise MissingDataError(f"the measured miscibility table could not be read: {exc}") from exc
     index = {}
     for row in df.to_dict("records"):
         try:
             a = cat.solvent(row["liquid_a"], library=False)
             b = cat.solvent(row["liquid_b"], library=False)
-        except Exception:  # noqa: BLE001 - a pair naming a liquid not in this catalog is skipped
+        except UnknownNameError:  # a pair naming a liquid not in this catalog is skipped
             continue
         key = frozenset((a.name, b.name))
         index[key] = (a.name, row)
