@@ -34,13 +34,9 @@ are importable too; the jobs are the stable surface.
 from __future__ import annotations
 
 from importlib import import_module
-from importlib.metadata import PackageNotFoundError, version
 from typing import TYPE_CHECKING, Any
 
-try:
-    __version__ = version("solvsel")
-except PackageNotFoundError:  # a checkout used without installing it
-    __version__ = "0+unknown"
+from ._version import __version__
 
 #: Public name -> module that defines it (imported on first use, so ``import solvsel`` stays light).
 _API = {

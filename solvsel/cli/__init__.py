@@ -14,7 +14,7 @@ import argparse
 import importlib
 import sys
 
-from .. import __version__
+from .._version import __version__
 from ..errors import SolvselError
 from ._common import option_name
 

@@ -15,7 +15,7 @@ import json
 from pathlib import Path
 from typing import Any, Iterable
 
-from .. import __version__
+from .._version import __version__
 from ..errors import InputError, UnknownNameError
 
 __all__ = ["collect_source_ids", "rows_for_csv", "render_markdown", "write_report"]
