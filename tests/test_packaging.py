@@ -14,23 +14,44 @@ from pathlib import Path
 import pytest
 
 ROOT = Path(__file__).resolve().parents[1]
-ENGINES = [
-    "catalog", "hansen", "structure", "sphere", "miscibility", "blends", "hlb", "emulsion", "compliance",
-    "report", "query", "target", "formulation",
-]
+#: Every module below the front ends (data, science, rules, jobs).
+CORE = sorted(
+    ".".join(p.relative_to(ROOT).with_suffix("").parts).removesuffix(".__init__")
+    for layer in ("data", "science", "rules", "jobs") for p in (ROOT / "solvsel" / layer).rglob("*.py")
+)
 
 
-def test_engines_do_not_import_textual():
-    present = [m for m in ENGINES if (ROOT / "solvsel" / f"{m}.py").exists() or (ROOT / "solvsel" / m).is_dir()]
+def test_the_core_imports_no_optional_package():
+    """Importing every module below the front ends loads neither Textual (the ``ui`` extra) nor
+    RDKit or scikit-learn (the ``structure`` extra): they are imported where they are used."""
+    assert len(CORE) > 20
     code = (
         "import sys, importlib\n"
-        f"for m in {present!r}:\n"
-        "    importlib.import_module('solvsel.' + m)\n"
-        "bad = [m for m in sys.modules if m.split('.')[0] == 'textual']\n"
+        f"for m in {CORE!r}:\n"
+        "    importlib.import_module(m)\n"
+        "bad = sorted({m.split('.')[0] for m in sys.modules} & {'textual', 'rdkit', 'sklearn'})\n"
         "print(','.join(bad))\n"
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, check=True)
     assert out.stdout.strip() == "", out.stdout
+
+
+@pytest.mark.parametrize("blocked, call, extra", [
+    ("rdkit", "import solvsel; solvsel.estimate(smiles='CCO')", "solvsel[structure]"),
+    ("textual", "from solvsel.extras import need; need('textual', 'ui', 'the terminal UI')", "solvsel[ui]"),
+])
+def test_a_missing_extra_is_named(blocked, call, extra):
+    """Without an optional package, the error names the extra to install (and is a SolvselError)."""
+    code = (
+        f"import sys; sys.modules[{blocked!r}] = None\n"
+        "from solvsel.errors import MissingExtraError\n"
+        "try:\n"
+        f"    {call}\n"
+        "except MissingExtraError as exc:\n"
+        "    print(exc)\n"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT)
+    assert extra in out.stdout, out.stdout + out.stderr
 
 
 def test_cli_import_is_light():
