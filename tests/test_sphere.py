@@ -363,7 +363,8 @@ def test_c60_fullerene_memory_set_classic_rule():
 
 from solvsel.cli import main  # noqa: E402
 from solvsel.errors import TableError  # noqa: E402
-from solvsel.science.sphere import read_bench  # noqa: E402
+from solvsel.data.bench import read_bench  # noqa: E402
+from solvsel.science.sphere import bench_liquids  # noqa: E402
 
 EXAMPLES = __import__("pathlib").Path(__file__).parent.parent / "examples"
 
@@ -392,7 +393,7 @@ def test_read_bench_names_cas_blends_and_own_liquids(tmp_path):
     cat = load_catalog()
     p = write(tmp_path, "# a comment line\nliquid,result,dD,dP,dH,weight\n"
               "64-17-5,bad,,,,\nethanol:water=70:30,bad,,,,\nmy oil,good,16.5,3.0,4.0,\nacetone,partial,,,,2\n")
-    b = read_bench(p, cat)
+    b = bench_liquids(read_bench(p, cat))
     assert [r.row for r in b.rows] == [3, 4, 5, 6]  # file lines, comments counted
     assert b.rows[0].label == "64-17-5" and b.rows[0].dH == pytest.approx(19.4)  # ethanol by CAS
     # 70:30 by volume: volume-fraction average (Hansen 2007, ch. 1)

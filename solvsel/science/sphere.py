@@ -62,6 +62,7 @@ References
 from __future__ import annotations
 
 import math
+from contextlib import contextmanager
 from dataclasses import dataclass
 
 import numpy as np
@@ -298,14 +299,14 @@ def grading_weights(scores, good_at_most: float | None = None, good_at_least: fl
     """
     s = np.asarray(scores, dtype=float)
     if s.ndim != 1 or s.size == 0:
-        raise InputError("scores: expected one number per liquid")
+        raise InputError("expected one number per liquid", param="scores", expected="one score per liquid")
     if not np.all(np.isfinite(s)):
-        raise InputError("scores: every score must be a finite number")
+        raise InputError("every score must be a finite number", param="scores", expected="finite numbers")
     if (good_at_most is None) == (good_at_least is None):
         raise InputError(
-            "graded scores need exactly one cut-off: good_at_most (low is best, e.g. 1-6) "
-            "or good_at_least (high is best, e.g. 0-5)"
-        )
+            "graded scores need exactly one cut-off: good at most N (low is best, e.g. 1-6) "
+            "or good at least N (high is best, e.g. 0-5)", param="good_at_least" if good_at_most is not None
+            else "good_at_most", expected="one cut-off")
     uniq = np.unique(s)
     step = float(np.min(np.diff(uniq))) if uniq.size > 1 else 1.0
     step = min(step, 1.0)
@@ -323,14 +324,15 @@ def grading_weights(scores, good_at_most: float | None = None, good_at_least: fl
 def _prepare(hsp, good, weights, names, good_at_most, good_at_least):
     X = as_hsp(hsp, "hsp")
     if X.ndim != 2:
-        raise InputError(f"hsp: expected one row of dD, dP, dH per liquid, got shape {X.shape}")
+        raise InputError(f"expected one row of dD, dP, dH per liquid, got shape {X.shape}", param="hsp")
     n = X.shape[0]
     g_in = np.asarray(good)
     if g_in.shape != (n,):
-        raise InputError(f"good: expected {n} results (one per liquid), got shape {g_in.shape}")
+        raise InputError(f"expected {n} results (one per liquid), got shape {g_in.shape}", param="good")
     if g_in.dtype == bool:
         if good_at_most is not None or good_at_least is not None:
-            raise InputError("good_at_most / good_at_least apply to numeric scores, not to good/bad results")
+            raise InputError("a score cut-off applies to numeric scores, not to good/bad results",
+                             param="good_at_most" if good_at_most is not None else "good_at_least")
         g = g_in.astype(bool)
         w = np.ones(n)
     else:
@@ -339,39 +341,40 @@ def _prepare(hsp, good, weights, names, good_at_most, good_at_least):
         except (TypeError, ValueError) as exc:
             if isinstance(exc, InputError):
                 raise
-            raise InputError("good: expected booleans or numeric scores") from None
+            raise InputError("expected booleans or numeric scores", param="good") from None
     if weights is not None:
         extra = np.asarray(weights, dtype=float)
         if extra.shape != (n,) or not np.all(np.isfinite(extra)) or np.any(extra <= 0):
-            raise InputError(f"weights: expected {n} positive numbers (one per liquid)")
+            raise InputError(f"expected {n} positive numbers (one per liquid)", param="weights")
         w = w * extra
     if names is None:
         names = tuple(f"liquid {i + 1}" for i in range(n))
     else:
         names = tuple(str(x) for x in names)
         if len(names) != n:
-            raise InputError(f"names: expected {n} names, got {len(names)}")
+            raise InputError(f"expected {n} names, got {len(names)}", param="names")
         seen = {}
         for i, nm in enumerate(names):
             key = nm.strip().lower()
             if key in seen:
-                raise InputError(f"liquid '{nm}' is listed twice (entries {seen[key] + 1} and {i + 1}); keep one result per liquid")
+                raise InputError(f"liquid '{nm}' is listed twice (entries {seen[key] + 1} and {i + 1}); keep one result "
+                                 "per liquid", param="names", value=nm)
             seen[key] = i
     if n < _MIN_LIQUIDS:
         raise InputError(
             f"only {n} liquids: a sphere has 4 unknowns, test at least {_MIN_LIQUIDS} liquids "
-            "(15-30 spread over Hansen space is usual practice)"
+            "(15-30 spread over Hansen space is usual practice)", param="hsp", expected=f"at least {_MIN_LIQUIDS} liquids"
         )
     ng = int(g.sum())
     if ng == n:
         raise InputError(
             f"all {n} liquids are good: nothing bounds the sphere; test liquids that do not "
-            "dissolve the solute (far from the good ones)"
+            "dissolve the solute (far from the good ones)", param="good"
         )
     if ng == 0:
         raise InputError(
             f"all {n} liquids are bad: nothing locates the sphere; test liquids of other "
-            "kinds until at least one dissolves the solute"
+            "kinds until at least one dissolves the solute", param="good"
         )
     return X, g, w, names
 
@@ -379,7 +382,7 @@ def _prepare(hsp, good, weights, names, good_at_most, good_at_least):
 def _check_bounds(bounds):
     b = np.asarray(DEFAULT_BOUNDS if bounds is None else bounds, dtype=float)
     if b.shape != (3, 2) or not np.all(np.isfinite(b)) or np.any(b[:, 0] >= b[:, 1]):
-        raise InputError("bounds: expected ((dD_lo, dD_hi), (dP_lo, dP_hi), (dH_lo, dH_hi)) with lo < hi")
+        raise InputError("expected ((dD_lo, dD_hi), (dP_lo, dP_hi), (dH_lo, dH_hi)) with lo < hi", param="bounds")
     return b
 
 
@@ -760,22 +763,9 @@ def _describe_direction(vec) -> str:
 # the fit
 
 
-def fit_sphere(
-    hsp,
-    good,
-    weights=None,
-    *,
-    names=None,
-    good_at_most: float | None = None,
-    good_at_least: float | None = None,
-    rule: str = "margin",
-    lapse: float = 0.05,
-    bounds=None,
-    interval: bool = True,
-    level: float = 0.90,
-    n_starts: int = 4,
-    seed: int = 0,
-) -> SphereFit:
+def fit_sphere(hsp, good, weights=None, *, names=None, good_at_most: float | None = None,
+               good_at_least: float | None = None, rule: str = "margin", lapse: float = 0.05, bounds=None,
+               interval: bool = True, level: float = 0.90, n_starts: int = 4, seed: int = 0) -> SphereFit:
     r"""Fit a solute's Hansen sphere to bench solubility results.
 
     Maximises Hansen's desirability [1]_ (minimises the weighted sum of
@@ -865,138 +855,38 @@ def fit_sphere(
 
 def _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bounds,
          interval, level, n_starts, seed) -> SphereFit:
-    if rule not in RULES:
-        raise InputError(f"rule: expected one of {', '.join(RULES)}, got '{rule}'")
-    if not (0.0 <= float(lapse) < 1.0):
-        raise InputError(f"lapse: expected a number in [0, 1), got {lapse}")
-    lapse = float(lapse)
-    if not (0.0 < float(level) < 1.0):
-        raise InputError(f"level: expected a number between 0 and 1, got {level}")
+    lapse, level = _check_options(rule, lapse, level)
     X, g, w, names = _prepare(hsp, good, weights, names, good_at_most, good_at_least)
     b = _check_bounds(bounds)
     lo, hi = b[:, 0] * SCALE, b[:, 1] * SCALE
     Xs = scaled(X)
     wg = np.where(g, w, 0.0)
     wb = np.where(g, 0.0, w)
-    rng = np.random.default_rng(seed)
-    messages = []
-    success = True
-    n_eval = 0
-
-    width = None
+    messages: list[str] = []
     c_lp, t_lp = _lp_lifted_margin(Xs, g, w, lo, hi)
     separable = bool(c_lp is not None and t_lp > 1e-7)
     if separable:
-        # every result can be explained: choose among the perfect fits
-        cands = []
-        starts = [c_lp, np.average(Xs, axis=0, weights=wg)]
-        for c0 in starts:
-            c0 = np.clip(c0, lo, hi)
-            c, z, ok, nit = _slsqp_margin(Xs, g, w, c0, lo, hi, classic=(rule == "classic"))
-            n_eval += nit
-            if ok:
-                cands.append((z[3] if rule == "classic" else -z[4], c))
-        if not cands:
-            # keep the exact linear-programme sphere: it explains every result
-            messages.append("local refinement failed; kept the linear-programme sphere")
-            c = c_lp
-        else:
-            c = min(cands, key=lambda t: t[0])[1]
-            # the refinement must not lose the perfect fit found by the LP
-            if _best_r0(_distances(Xs, c[None]), wg, wb, lapse)[0][0] > 1e-9:
-                c = c_lp
-        V_min = 0.0
+        c, n_eval = _perfect_centre(Xs, g, w, wg, wb, c_lp, lo, hi, rule, lapse, messages)
+        V_min, r_soft, width, success = 0.0, None, None, True
     else:
-        if rule == "classic":
-            c, V_min, ne, _ = _hansen_search(Xs, wg, wb, lo, hi, rng, n_starts, lapse)
-            n_eval += ne
-        else:
-            # the Hansen optimum only seeds the soft-surface fit: a looser search
-            # (the plain linear penalty is cheaper to scan and good enough for seeds)
-            _, _, ne, found = _hansen_search(Xs, wg, wb, lo, hi, rng, 6, 0.0, polish=False)
-            n_eval += ne
-            starts = []
-            V_min = np.inf
-            for c0 in found:
-                vm, rl, rh = _best_r0(_distances(Xs, c0[None]), wg, wb, lapse)
-                V_min = min(V_min, float(vm[0]))
-                starts.append((c0, 0.5 * float(rl[0] + rh[0])))
-            c, r_soft, width, _, ne = _logistic_fit(Xs, g, w, starts, lo, hi, lapse)
-            n_eval += ne
-            if c is None:  # no finite soft-surface fit: keep the best Hansen sphere
-                c, r_soft = starts[0]
-                success = False
-                messages.append("the soft-surface fit failed; kept the best Hansen sphere of the scan")
-
+        c, V_min, r_soft, width, n_eval, success = _imperfect_centre(
+            Xs, g, w, wg, wb, lo, hi, np.random.default_rng(seed), n_starts, rule, lapse, messages)
     d = _distances(Xs, c[None])[0]
-    V_c, r_lo, r_hi = _best_r0(d[None], wg, wb, lapse)
-    V_c, r_lo, r_hi = float(V_c[0]), float(r_lo[0]), float(r_hi[0])
-    if separable:
-        dg, db = float(d[g].max()), float(d[~g].min())
-        if rule == "classic":
-            r0 = dg
-        else:
-            # R0 that balances the weighted margins of the nearest liquids
-            r0 = _balance_r0(d, g, w)
-        margin = (db - dg) / (db + dg)  # in RED: nearest liquids at 1 -/+ margin (unweighted)
-    elif rule == "classic":
-        r0 = r_lo
-        margin = 0.0
-    else:
-        r0 = r_soft
-        margin = 0.0
-    r0 = float(r0)
+    r0, margin = _radius(d, g, w, wg, wb, rule, lapse, separable, r_soft)
     V = float(np.sum(w * _loss(_violations(d, g, r0), lapse)))
-    if rule == "classic" and V > V_c + 1e-7:  # cannot happen: r0 lies in the optimal flat interval
-        messages.append("radius not at the optimum of the desirability")
-        success = False
-
     redv = d / r0
-    tol = 1e-6
-    wrong = []
-    for i in np.argsort(-np.abs(redv - 1.0)):
-        if (g[i] and redv[i] > 1 + tol) or (not g[i] and redv[i] < 1 - tol):
-            wrong.append(WrongSide(names[i], bool(g[i]), float(redv[i]), float(w[i]), *map(float, X[i])))
+    wrong = _wrong_side(X, g, w, names, redv)
     explained = 1.0 - float(np.sum(w[[names.index(x.name) for x in wrong]])) / float(np.sum(w)) if wrong else 1.0
     # the trade's number: Hansen's desirability itself (no floor)
     fit = float(np.exp(-np.sum(w * _violations(d, g, r0)) / np.sum(w)))
-
     centre = c / SCALE
     at_bound = tuple(
         _AXES[k] for k in range(3) if min(abs(centre[k] - b[k, 0]), abs(centre[k] - b[k, 1])) < 1e-3
     )
     if at_bound:
         messages.append("centre on the search bound of " + ", ".join(at_bound) + ": the data do not bound it there")
-
-    is_open, u = _open_check(Xs, g, c)
-    open_dir = None
-    open_note = "the good liquids surround the centre"
-    if is_open:
-        vec = u / SCALE
-        vec = vec / np.linalg.norm(vec)
-        open_dir = tuple(float(x) for x in vec)
-        open_note = (
-            "open sphere: no good liquid lies on the side of " + _describe_direction(vec)
-            + " from the centre; test liquids there to close it"
-        )
-
-    iv = {"level": float(level), "method": "profile"}
-    if interval:
-        from scipy.stats import chi2
-
-        # region of spheres whose (floored) desirability is within the level of the best
-        budget = max(min(V_min, V) + float(chi2.ppf(level, 1)) / 2.0, V)
-        ranges, ok = _profile_interval(Xs, g, w, c, r0, budget, lo, hi, lapse)
-        for k, key in enumerate(("dD", "dP", "dH")):
-            iv[key] = (round(ranges[k][0] / SCALE[k], 4), round(ranges[k][1] / SCALE[k], 4))
-        iv["r0"] = (round(ranges[3][0], 4), round(ranges[3][1], 4))
-        if not ok:
-            messages.append("some interval searches did not converge; those ends are kept at the estimate")
-    else:
-        for key in ("dD", "dP", "dH", "r0"):
-            iv[key] = (None, None)
-        iv["method"] = "none"
-
+    is_open, open_dir, open_note = _openness(Xs, g, c)
+    iv = _intervals(Xs, g, w, c, r0, min(V_min, V), V, lo, hi, lapse, level, interval, messages)
     if not messages:
         messages.append("every result explained" if not wrong else f"{len(wrong)} result(s) on the wrong side")
     return SphereFit(
@@ -1009,6 +899,117 @@ def _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bo
         success=success, message="; ".join(messages), n_evaluations=int(n_eval),
         surface_width=width,
     )
+
+
+def _check_options(rule, lapse, level) -> tuple[float, float]:
+    if rule not in RULES:
+        raise InputError(f"expected one of {', '.join(RULES)}, got '{rule}'", param="rule", value=rule,
+                         expected=", ".join(RULES))
+    if not (0.0 <= float(lapse) < 1.0):
+        raise InputError(f"expected a number from 0 up to (not including) 1, got {lapse}", param="lapse", value=lapse)
+    if not (0.0 < float(level) < 1.0):
+        raise InputError(f"expected a number between 0 and 1, got {level}", param="level", value=level)
+    return float(lapse), level
+
+
+def _perfect_centre(Xs, g, w, wg, wb, c_lp, lo, hi, rule, lapse, messages):
+    """Every result can be explained: the centre of the chosen perfect fit, and the evaluations used."""
+    cands = []
+    n_eval = 0
+    for c0 in (c_lp, np.average(Xs, axis=0, weights=wg)):
+        c0 = np.clip(c0, lo, hi)
+        c, z, ok, nit = _slsqp_margin(Xs, g, w, c0, lo, hi, classic=(rule == "classic"))
+        n_eval += nit
+        if ok:
+            cands.append((z[3] if rule == "classic" else -z[4], c))
+    if not cands:
+        # keep the exact linear-programme sphere: it explains every result
+        messages.append("local refinement failed; kept the linear-programme sphere")
+        return c_lp, n_eval
+    c = min(cands, key=lambda t: t[0])[1]
+    # the refinement must not lose the perfect fit found by the LP
+    if _best_r0(_distances(Xs, c[None]), wg, wb, lapse)[0][0] > 1e-9:
+        c = c_lp
+    return c, n_eval
+
+
+def _imperfect_centre(Xs, g, w, wg, wb, lo, hi, rng, n_starts, rule, lapse, messages):
+    """No sphere explains every result: ``(centre, V_min, R0 of the soft fit, surface width, evaluations, ok)``."""
+    if rule == "classic":
+        c, V_min, n_eval, _ = _hansen_search(Xs, wg, wb, lo, hi, rng, n_starts, lapse)
+        return c, V_min, None, None, n_eval, True
+    # the Hansen optimum only seeds the soft-surface fit: a looser search
+    # (the plain linear penalty is cheaper to scan and good enough for seeds)
+    _, _, n_eval, found = _hansen_search(Xs, wg, wb, lo, hi, rng, 6, 0.0, polish=False)
+    starts = []
+    V_min = np.inf
+    for c0 in found:
+        vm, rl, rh = _best_r0(_distances(Xs, c0[None]), wg, wb, lapse)
+        V_min = min(V_min, float(vm[0]))
+        starts.append((c0, 0.5 * float(rl[0] + rh[0])))
+    c, r_soft, width, _, ne = _logistic_fit(Xs, g, w, starts, lo, hi, lapse)
+    n_eval += ne
+    if c is None:  # no finite soft-surface fit: keep the best Hansen sphere
+        c, r_soft = starts[0]
+        messages.append("the soft-surface fit failed; kept the best Hansen sphere of the scan")
+        return c, V_min, r_soft, width, n_eval, False
+    return c, V_min, r_soft, width, n_eval, True
+
+
+def _radius(d, g, w, wg, wb, rule, lapse, separable, r_soft) -> tuple[float, float]:
+    """R0 of the chosen sphere around a centre at distances ``d``, and the margin in RED (0 if not separable)."""
+    if separable:
+        dg, db = float(d[g].max()), float(d[~g].min())
+        # classic: the smallest radius; margin: the R0 that balances the weighted margins of the nearest liquids
+        r0 = dg if rule == "classic" else _balance_r0(d, g, w)
+        return float(r0), (db - dg) / (db + dg)  # in RED: nearest liquids at 1 -/+ margin (unweighted)
+    if rule == "classic":
+        # the lowest R0 of the optimal flat interval of the desirability
+        return float(_best_r0(d[None], wg, wb, lapse)[1][0]), 0.0
+    return float(r_soft), 0.0
+
+
+def _wrong_side(X, g, w, names, redv) -> list[WrongSide]:
+    """Liquids the sphere does not explain, farthest from the surface first."""
+    tol = 1e-6
+    wrong = []
+    for i in np.argsort(-np.abs(redv - 1.0)):
+        if (g[i] and redv[i] > 1 + tol) or (not g[i] and redv[i] < 1 - tol):
+            wrong.append(WrongSide(names[i], bool(g[i]), float(redv[i]), float(w[i]), *map(float, X[i])))
+    return wrong
+
+
+def _openness(Xs, g, c) -> tuple[bool, tuple | None, str]:
+    """Whether the good liquids surround the centre; the open direction (dD, dP, dH) and the note in words."""
+    is_open, u = _open_check(Xs, g, c)
+    if not is_open:
+        return False, None, "the good liquids surround the centre"
+    vec = u / SCALE
+    vec = vec / np.linalg.norm(vec)
+    note = ("open sphere: no good liquid lies on the side of " + _describe_direction(vec)
+            + " from the centre; test liquids there to close it")
+    return True, tuple(float(x) for x in vec), note
+
+
+def _intervals(Xs, g, w, c, r0, V_best, V, lo, hi, lapse, level, interval, messages) -> dict:
+    """Profile intervals of dD, dP, dH and R0 at ``level`` (or none when ``interval`` is False)."""
+    iv = {"level": float(level), "method": "profile"}
+    if not interval:
+        for key in ("dD", "dP", "dH", "r0"):
+            iv[key] = (None, None)
+        iv["method"] = "none"
+        return iv
+    from scipy.stats import chi2
+
+    # region of spheres whose (floored) desirability is within the level of the best
+    budget = max(V_best + float(chi2.ppf(level, 1)) / 2.0, V)
+    ranges, ok = _profile_interval(Xs, g, w, c, r0, budget, lo, hi, lapse)
+    for k, key in enumerate(("dD", "dP", "dH")):
+        iv[key] = (round(ranges[k][0] / SCALE[k], 4), round(ranges[k][1] / SCALE[k], 4))
+    iv["r0"] = (round(ranges[3][0], 4), round(ranges[3][1], 4))
+    if not ok:
+        messages.append("some interval searches did not converge; those ends are kept at the estimate")
+    return iv
 
 
 def _balance_r0(d, g, w) -> float:
@@ -1053,9 +1054,9 @@ def suggest_tests(fit: SphereFit, hsp, names, k: int = 5, exclude=()) -> list[Su
     """
     X = as_hsp(hsp, "hsp")
     if X.ndim != 2 or len(names) != len(X):
-        raise InputError("suggest_tests: expected one name per row of dD, dP, dH")
+        raise InputError("expected one name per row of dD, dP, dH", param="names")
     if k < 1:
-        raise InputError(f"k: expected a positive number of liquids, got {k}")
+        raise InputError(f"expected a positive number of liquids, got {k}", param="k", value=k)
     tested = {n.strip().lower() for n in fit.names} | {n.strip().lower() for n in exclude}
     keep = [i for i, n in enumerate(names) if str(n).strip().lower() not in tested]
     if not keep:
@@ -1162,7 +1163,7 @@ def fit_two_spheres(hsp, good, weights=None, *, names=None, n_starts: int = 6, s
     X, g, w, names = _prepare(hsp, np.asarray(good, dtype=bool), weights, names, None, None)
     gi = np.flatnonzero(g)
     if len(gi) < 4:
-        raise InputError(f"two spheres need at least 4 good liquids (2 a sphere), got {len(gi)}")
+        raise InputError(f"two spheres need at least 4 good liquids (2 a sphere), got {len(gi)}", param="good")
     kw = dict(kw)
     kw["interval"] = False
     one = fit_sphere(X, g, w, names=names, **kw)
@@ -1194,7 +1195,7 @@ def fit_two_spheres(hsp, good, weights=None, *, names=None, n_starts: int = 6, s
                 break
             member = new
     if best is None:
-        raise InputError("no split of the good liquids into two groups of at least 2 could be fitted")
+        raise InputError("no split of the good liquids into two groups of at least 2 could be fitted", param="good")
     score, fits, member = best
     v, redu = _union_violations(X, g, fits)
     members = np.full(len(X), -1)
@@ -1218,14 +1219,13 @@ def fit_two_spheres(hsp, good, weights=None, *, names=None, n_starts: int = 6, s
 # --------------------------------------------------------------------------
 # bench files (the edge: a user's CSV in, a solute row out)
 
-#: Columns of a bench file; ``liquid`` and ``result`` are required.
-BENCH_COLUMNS = ("liquid", "result", "dD", "dP", "dH", "weight", "note")
-WORD_RESULTS = {"good": "good", "partial": "partial", "bad": "bad"}
-
-
 @dataclass(frozen=True)
 class BenchRow:
-    """One liquid of a bench file, resolved to its HSP."""
+    """One liquid of a bench file with its HSP (a blend's by volume-fraction average).
+
+    ``weight`` includes the weight of a partial result; the other fields are
+    those of :class:`solvsel.data.bench.BenchEntry`.
+    """
 
     row: int
     label: str
@@ -1255,183 +1255,98 @@ class BenchData:
     def names(self) -> list[str]:
         return [r.label for r in self.rows]
 
-
-def _parse_blend(text: str):
-    """``"ethanol:water=70:30"`` -> [("ethanol", 70.0), ("water", 30.0)], or None if not a blend."""
-    if "=" not in text or ":" not in text:
-        return None
-    left, _, right = text.rpartition("=")
-    names = [n.strip() for n in left.split(":")]
-    parts = [p.strip() for p in right.split(":")]
-    if len(names) != len(parts) or len(names) < 2 or not all(names):
-        raise ValueError("a blend is written NAME:NAME=PARTS:PARTS, e.g. ethanol:water=70:30 (parts by volume)")
-    try:
-        amounts = [float(p.rstrip("%")) for p in parts]
-    except ValueError:
-        raise ValueError(f"the parts of a blend must be numbers, got '{right.strip()}'") from None
-    if any(not math.isfinite(a) or a < 0 for a in amounts) or sum(amounts) <= 0:
-        raise ValueError(f"the parts of a blend must be zero or positive and not all zero, got '{right.strip()}'")
-    return list(zip(names, amounts))
+    def good(self, partial: str = "good") -> np.ndarray:
+        """The good/bad result of each row of a words file, a partial one counted as ``partial`` says."""
+        return np.array([r.result == "good" or (r.result == "partial" and partial == "good") for r in self.rows])
 
 
-def read_bench(path, cat, partial: str = "good", partial_weight: float = 0.5) -> BenchData:
-    """Read a bench file: one row per liquid tested, with its result.
+def bench_liquids(bench, partial: str = "good", partial_weight: float = 0.5) -> BenchData:
+    """The liquids of a bench file (:func:`solvsel.data.bench.read_bench`) with their HSP.
 
-    Columns: ``liquid`` (a name, synonym or CAS of the solvents table; a blend
-    of table liquids by volume written ``ethanol:water=70:30``; or a liquid of
-    your own with ``dD``, ``dP``, ``dH``), ``result`` (good / partial / bad,
-    or a number on your scale), and optionally ``weight`` (a positive
-    number, default 1) and ``note``.  Lines starting with ``#`` are comments.
-    Every row is either used or reported as an error naming the file, the row
-    and the column: none is dropped silently.
+    A blend's HSP are the volume-fraction average of its liquids' (Hansen 2007,
+    ch. 1); a partial result's weight is multiplied by ``partial_weight``.
 
     Parameters
     ----------
-    path : str or Path
-        the CSV file (UTF-8)
-    cat : Catalog
-        the catalog whose liquids the names refer to
+    bench : BenchFile
+        the rows read from the file
     partial : {"good", "bad"}
-        how a partial result counts
+        how a partial result counts (kept for the fit: see :func:`fit_bench`)
     partial_weight : float
         weight of a partial result, > 0 [-]
     """
-    import csv
-    from pathlib import Path
-
-    from ..errors import TableError, UnknownNameError
     from .hansen import mix
 
     if partial not in ("good", "bad"):
-        raise InputError(f"partial: expected good or bad, got '{partial}'")
+        raise InputError(f"expected good or bad, got '{partial}'", param="partial", value=partial,
+                         expected="good or bad")
     if not (partial_weight > 0 and math.isfinite(partial_weight)):
-        raise InputError(f"partial weight: expected a positive number, got {partial_weight}")
-    p = Path(path)
-    if not p.is_file():
-        raise InputError(f"{p}: no such file (a CSV with columns liquid,result[,dD,dP,dH,weight,note])")
-    try:
-        text = p.read_text(encoding="utf-8-sig")
-    except UnicodeDecodeError:
-        raise TableError(p, "not a UTF-8 text file; save it as CSV UTF-8") from None
-    lines = text.splitlines()
-    numbered = [(i + 1, ln) for i, ln in enumerate(lines) if ln.strip() and not ln.lstrip().startswith("#")]
-    if not numbered:
-        raise TableError(p, "the file is empty; expected a header row liquid,result and one row per liquid")
-    reader = csv.reader([ln for _, ln in numbered], skipinitialspace=True)
-    recs = list(reader)
-    header = [h.strip() for h in recs[0]]
-    hrow = numbered[0][0]
-    for h in header:
-        if h not in BENCH_COLUMNS:
-            raise TableError(p, f"unknown column '{h}'; the columns are {', '.join(BENCH_COLUMNS)}", row=hrow, column=h)
-    for need in ("liquid", "result"):
-        if need not in header:
-            raise TableError(p, f"missing column '{need}' (columns: liquid,result[,dD,dP,dH,weight,note])", row=hrow)
-    own_cols = [c for c in ("dD", "dP", "dH") if c in header]
-    if own_cols and len(own_cols) != 3:
-        raise TableError(p, "give all three of dD, dP, dH (for liquids of your own) or none", row=hrow)
-
-    rows, seen = [], {}
-    kinds = set()
-    for (lineno, _), raw in zip(numbered[1:], recs[1:]):
-        if len(raw) != len(header):
-            raise TableError(p, f"expected {len(header)} fields, found {len(raw)} (quote a value that holds a comma)", row=lineno)
-        rec = {h: v.strip() for h, v in zip(header, raw)}
-        label = rec["liquid"]
-        if not label:
-            raise TableError(p, "empty liquid name", row=lineno, column="liquid")
-        res = rec["result"].lower()
-        if not res:
-            raise TableError(p, "empty result; expected good, partial, bad or a number", row=lineno, column="result")
-        score = None
-        if res in WORD_RESULTS:
-            kinds.add("words")
+        raise InputError(f"expected a positive number, got {partial_weight}", param="partial_weight",
+                         value=partial_weight, expected="a positive number")
+    rows = []
+    for e in bench.entries:
+        if e.blend:
+            hsp = mix(np.array([r.hsp for r, _ in e.blend]), np.array([f for _, f in e.blend]))
         else:
-            try:
-                score = float(res)
-            except ValueError:
-                raise TableError(p, f"'{rec['result']}' is not a result; expected good, partial, bad or a number",
-                                 row=lineno, column="result") from None
-            if not math.isfinite(score):
-                raise TableError(p, f"'{rec['result']}' is not a finite number", row=lineno, column="result")
-            kinds.add("numbers")
-        if len(kinds) > 1:
-            raise TableError(p, "results mix words (good/partial/bad) and numbers; use one scale in a file",
-                             row=lineno, column="result")
-        weight = 1.0
-        if rec.get("weight"):
-            try:
-                weight = float(rec["weight"])
-            except ValueError:
-                weight = math.nan
-            if not (math.isfinite(weight) and weight > 0):
-                raise TableError(p, f"'{rec['weight']}' is not a positive number", row=lineno, column="weight")
-        own = [rec.get(c, "") for c in ("dD", "dP", "dH")] if own_cols else ["", "", ""]
-        if any(own):
-            if not all(own):
-                col = ("dD", "dP", "dH")[[bool(x) for x in own].index(False)]
-                raise TableError(p, "give all three of dD, dP, dH for a liquid of your own", row=lineno, column=col)
-            vals = []
-            for c, v in zip(("dD", "dP", "dH"), own):
-                try:
-                    x = float(v)
-                except ValueError:
-                    raise TableError(p, f"'{v}' is not a number of MPa^0.5", row=lineno, column=c) from None
-                lo_, hi_ = {"dD": (10, 25), "dP": (0, 30), "dH": (0, 45)}[c]
-                if not (lo_ <= x <= hi_):
-                    raise TableError(p, f"{c} = {v} is outside {lo_}-{hi_} MPa^0.5, the range of real liquids",
-                                     row=lineno, column=c)
-                vals.append(x)
-            hsp, key, basis = vals, "own:" + label.strip().lower(), "your values"
-        else:
-            try:
-                blend = _parse_blend(label)
-            except ValueError as exc:
-                raise TableError(p, str(exc), row=lineno, column="liquid") from None
-            try:
-                if blend:
-                    recs_b = [cat.solvent(n) for n, _ in blend]
-                    amounts = np.array([a for _, a in blend])
-                    hsp = mix(np.array([r.hsp for r in recs_b]), amounts / amounts.sum())
-                    key = "blend:" + ";".join(f"{r.name}={a / amounts.sum():.4f}" for r, (_, a) in
-                                              sorted(zip(recs_b, blend), key=lambda t: t[0].name))
-                    basis = "blend of table liquids (volume-fraction average)"
-                else:
-                    r = cat.solvent(label)
-                    hsp, key = r.hsp, "liquid:" + (r.cas or r.name)
-                    basis = "table" if not r.origin.startswith("library") else r.origin
-            except UnknownNameError as exc:
-                raise TableError(p, str(exc) + "; or give dD, dP, dH for a liquid of your own",
-                                 row=lineno, column="liquid") from None
-        if key in seen:
-            raise TableError(p, f"'{label}' is the same liquid as row {seen[key]}; keep one result per liquid "
-                                "(or average repeats into one score)", row=lineno, column="liquid")
-        seen[key] = lineno
-        result = WORD_RESULTS.get(res, "score")
-        if result == "partial":
-            weight *= partial_weight
-        rows.append(BenchRow(lineno, label, key, *map(float, hsp), result, score, weight, basis))
-    if not rows:
-        raise TableError(p, "no liquids: expected one row per liquid tested under the header")
-    return BenchData(str(p), tuple(rows), kinds.pop())
+            hsp = e.hsp
+        weight = e.weight * partial_weight if e.result == "partial" else e.weight
+        rows.append(BenchRow(e.row, e.label, e.key, *map(float, hsp), e.result, e.score, weight, e.basis))
+    return BenchData(bench.path, tuple(rows), bench.scale)
 
 
 def fit_bench(data: BenchData, *, partial: str = "good", good_at_most=None, good_at_least=None, **kw) -> SphereFit:
-    """Fit a sphere to a :class:`BenchData` (see :func:`fit_sphere` for ``kw``)."""
+    """Fit a sphere to a :class:`BenchData` (see :func:`fit_sphere` for ``kw``).
+
+    Words are good or bad (a partial result as ``partial`` says); numbers need
+    exactly one cut-off, ``good_at_most`` or ``good_at_least``.  An error about
+    the set of results (too few liquids, all good, all bad) names the file
+    (``param="path"``).
+    """
     w = np.array([r.weight for r in data.rows])
     if data.scale == "words":
         if good_at_most is not None or good_at_least is not None:
-            raise InputError("--good-at-most / --good-at-least apply to numeric scores; this file has good/partial/bad")
-        good = np.array([r.result == "good" or (r.result == "partial" and partial == "good") for r in data.rows])
-        return fit_sphere(data.hsp, good, w, names=data.names, **kw)
+            raise InputError("a score cut-off applies to numeric scores; this file has good/partial/bad",
+                             param="good_at_most" if good_at_most is not None else "good_at_least",
+                             value=good_at_most if good_at_most is not None else good_at_least,
+                             expected="no cut-off for good/partial/bad results")
+        return _fit_file(data, data.good(partial), w, **kw)
     if good_at_most is None and good_at_least is None:
         raise InputError(
-            f"{data.path}: the results are numbers; say where good ends with --good-at-most N "
-            "(low is best, e.g. 1-6) or --good-at-least N (high is best)"
-        )
+            f"the results in {data.path} are numbers; say where good ends: good at most N (low is best, "
+            "e.g. 1-6) or good at least N (high is best)", param="good_at_most",
+            expected="the score at which good ends")
     scores = np.array([r.score for r in data.rows])
-    return fit_sphere(data.hsp, scores, w, names=data.names, good_at_most=good_at_most,
-                      good_at_least=good_at_least, **kw)
+    return _fit_file(data, scores, w, good_at_most=good_at_most, good_at_least=good_at_least, **kw)
+
+
+#: Inputs of :func:`fit_sphere` that a bench file supplies: an error about them is an error of the file.
+_FILE_PARAMS = ("hsp", "good", "weights", "names")
+
+
+def _fit_file(data: BenchData, good, w, **kw) -> SphereFit:
+    with _errors_of_the_file(data):
+        return fit_sphere(data.hsp, good, w, names=data.names, **kw)
+
+
+@contextmanager
+def _errors_of_the_file(data: BenchData):
+    """Re-raise an error about the liquids or results as one of the bench file (``param="path"``)."""
+    try:
+        yield
+    except InputError as exc:
+        if exc.param not in _FILE_PARAMS:
+            raise
+        raise InputError(exc.message, param="path", value=data.path, path=data.path) from None
+
+
+def fit_bench_two_spheres(data: BenchData, *, partial: str = "good", **kw) -> TwoSphereFit:
+    """Two spheres whose union explains a words file (:func:`fit_two_spheres`; ``kw``: rule, lapse)."""
+    if data.scale != "words":
+        raise InputError("two spheres take good/partial/bad results, not numeric scores", param="two_spheres",
+                         value=True, expected="a file of good/partial/bad results")
+    with _errors_of_the_file(data):
+        return fit_two_spheres(data.hsp, data.good(partial), np.array([r.weight for r in data.rows]),
+                               names=data.names, **kw)
 
 
 def solute_row(fit: SphereFit, name: str, source: str, category: str = "other") -> dict:
@@ -1474,26 +1389,28 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
     tdir = Path(tables_dir) if tables_dir is not None else TABLES_DIR
     p = Path(path)
     if p.exists() and not p.is_file():
-        raise InputError(f"--into {p}: not a file")
+        raise InputError(f"{p} is not a file", param="into", value=str(p))
     if p.exists():
         old = p.read_bytes()
         try:
             text = old.decode("utf-8-sig")
         except UnicodeDecodeError:
-            raise TableError(p, "not a UTF-8 text file; nothing was written") from None
+            raise TableError(p, "not a UTF-8 text file; nothing was written", param="into") from None
         lines = text.splitlines()
         if not lines:
-            raise TableError(p, "the file is empty (no header); delete it or give another --into; nothing was written")
+            raise TableError(p, "the file is empty (no header); delete it or save into another file; nothing was written",
+                             param="into")
         header = next(csv.reader([lines[0]]))
         # the sphere itself must fit; descriptive columns are written where the file has them
         essential = ("name", "category", "dD_MPa05", "dP_MPa05", "dH_MPa05", "r0_MPa05", "hsp_basis")
         missing = [c for c in essential if c not in header]
         if missing:
-            raise TableError(p, f"the file has no column {missing[0]!r} for the fitted sphere; nothing was written", row=1)
+            raise TableError(p, f"the file has no column {missing[0]!r} for the fitted sphere; nothing was written", row=1,
+                             param="into")
         for i, rec in enumerate(csv.DictReader(io.StringIO(text)), start=2):
             if normalize_name(rec.get("name") or "") == normalize_name(row["name"]):
-                raise InputError(f"--save-as {row['name']!r}: {p} already has a solute of that name (row {i}); "
-                                 "choose another name; nothing was written")
+                raise InputError(f"{p} already has a solute of that name, {row['name']!r} (row {i}); "
+                                 "choose another name; nothing was written", param="save_as", value=row["name"])
         buf = io.StringIO()
         csv.DictWriter(buf, fieldnames=header, lineterminator="\n", extrasaction="ignore").writerow(row)
         sep = b"" if old.endswith(b"\n") or not old else b"\n"
@@ -1511,7 +1428,7 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
         what = "created"
     parent = p.resolve().parent
     if not parent.is_dir():
-        raise InputError(f"--into {p}: the folder {parent} does not exist")
+        raise InputError(f"the folder {parent} does not exist", param="into", value=str(p))
     fd, tmp = tempfile.mkstemp(prefix=".solvsel-", suffix=".csv", dir=parent)
     try:
         with os.fdopen(fd, "wb") as fh:
@@ -1520,7 +1437,7 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
             read_table(tmp, "solutes", tables_dir=tdir, user=True)
         except TableError as exc:
             raise TableError(p, f"the file would not be a valid solutes table ({exc.message}); nothing was written",
-                             row=exc.row, column=exc.column) from None
+                             row=exc.row, column=exc.column, param="into") from None
         if p.exists():
             os.chmod(tmp, p.stat().st_mode & 0o777)
         else:

@@ -1,0 +1,272 @@
+"""The fit job: a solute's Hansen sphere from a file of bench results.
+
+The file (read by :func:`solvsel.data.bench.read_bench`) lists the liquids tested
+and their results; the sphere is fitted by :func:`solvsel.science.sphere.fit_bench`
+(Hansen's desirability, the margin or classic rule, profile intervals), untested
+liquids of the tables are proposed as next tests (a heuristic), and the sphere
+can be saved as a solute of the user's own solutes file, so ``rank``, ``blend``
+and the UI can aim at it.
+
+>>> r = fit(path="examples/bench_extract.csv", next_tests=0)
+>>> r.sphere.n_liquids, r.sphere.wrong_side, round(r.sphere.r0, 1)
+(25, (), 8.4)
+>>> r.target.basis
+'fitted'
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from ..data.bench import liquid_key, read_bench
+from ..data.catalog import Catalog
+from ..errors import InputError
+from ..rules.cautions import DEFER, solvent_cautions
+from ..science.sphere import (
+    RULES, BenchData, SphereFit, SuggestedTest, TwoSphereFit, bench_liquids, fit_bench, fit_bench_two_spheres,
+    save_solute, solute_row, suggest_tests,
+)
+from ..science.target import Target
+from ._base import build_request, catalog_or_default, check_choice, check_int, check_number
+
+__all__ = ["SOLUTE_CATEGORIES", "NEXT_TESTS_METHOD", "FitRequest", "FitResult", "fit"]
+
+#: Categories of a solute of the solutes table (``tables/schema.csv``).
+SOLUTE_CATEGORIES = ("flavour", "active", "lipid", "pigment", "sugar", "wax", "other")
+
+#: How the next tests are chosen, in words (part of the JSON).
+NEXT_TESTS_METHOD = "heuristic: untested liquids with RED nearest 1, spread over directions from the centre"
+
+#: Liquids boiling at or below this [C] are gases at room temperature (propane, butanes, CO2): no
+#: test in a vial, so they are never proposed as next tests.
+BENCH_MIN_BP_C = 25.0
+
+_GENERAL_CAUTION = "A sphere fitted to bench results is an estimate: confirm the chosen solvent or blend at the bench."
+_UNEXPLAINED_CAUTION = ("Some results are not explained by any sphere: check those tests (purity, time, "
+                        "temperature, reading) before relying on the fit.")
+_OPEN_CAUTION = "The sphere is open on one side: its centre and radius are poorly bounded there."
+
+
+@dataclass(frozen=True)
+class FitRequest:
+    """What to fit and how.
+
+    Attributes
+    ----------
+    path : str
+        the bench-results CSV (see :mod:`solvsel.data.bench` for its columns)
+    good_at_most, good_at_least : float, optional
+        for numeric scores, the cut-off of a good result: at most (low is best, e.g. 1 dissolved .. 6 no
+        effect) or at least (high is best); exactly one for numbers, none for good/partial/bad [-]
+    partial : {"good", "bad"}
+        how a partial result counts
+    partial_weight : float
+        weight of a partial result against 1 for the others, > 0 [-]
+    rule : {"margin", "classic"}
+        the choice among spheres that fit equally well: the largest margin between good and bad
+        liquids, or the smallest radius (biased low)
+    lapse : float
+        floor of a wrong-side liquid's score, 0 <= lapse < 1 (0: the handbook's desirability) [-]
+    level : float
+        level of the profile intervals, 0 < level < 1 [-]
+    next_tests : int
+        how many untested table liquids to propose for the next bench round (0 for none)
+    food : bool
+        propose only liquids used on food (carrier or extraction roles)
+    two_spheres : bool
+        also fit two spheres whose union explains the results (good/partial/bad only)
+    save_as, into : str, optional
+        save the sphere as a solute named ``save_as`` in the user's solutes CSV ``into``
+        (created if missing, other rows kept); both or neither
+    category : str
+        category of the saved solute, one of :data:`SOLUTE_CATEGORIES`
+    """
+
+    path: str
+    good_at_most: float | None = None
+    good_at_least: float | None = None
+    partial: str = "good"
+    partial_weight: float = 0.5
+    rule: str = "margin"
+    lapse: float = 0.05
+    level: float = 0.90
+    next_tests: int = 5
+    food: bool = False
+    two_spheres: bool = False
+    save_as: str | None = None
+    into: str | None = None
+    category: str = "other"
+
+    def __post_init__(self) -> None:
+        put = object.__setattr__.__get__(self)
+        if not isinstance(self.path, (str, Path)) or not str(self.path).strip():
+            raise InputError("give the path of a bench-results CSV file", param="path", value=self.path,
+                             expected="a path to a CSV file")
+        put("path", str(self.path).strip())
+        put("good_at_most", check_number(self.good_at_most, "good_at_most", allow_none=True))
+        put("good_at_least", check_number(self.good_at_least, "good_at_least", allow_none=True))
+        if self.good_at_most is not None and self.good_at_least is not None:
+            raise InputError("give one cut-off: good at most (low is best) or good at least (high is best)",
+                             param="good_at_least", value=self.good_at_least, expected="one cut-off")
+        put("partial", check_choice(self.partial, "partial", ("good", "bad")))
+        put("partial_weight", check_number(self.partial_weight, "partial_weight", 0.0, None, lo_open=True))
+        put("rule", check_choice(self.rule, "rule", RULES))
+        put("lapse", check_number(self.lapse, "lapse", 0.0, 1.0))
+        if self.lapse >= 1.0:
+            raise InputError(f"expected a number from 0 up to (not including) 1, got {self.lapse:g}", param="lapse",
+                             value=self.lapse, expected="a number from 0 up to (not including) 1")
+        put("level", check_number(self.level, "level", 0.0, 1.0, lo_open=True))
+        if self.level >= 1.0:
+            raise InputError(f"expected a number between 0 and 1, got {self.level:g}", param="level",
+                             value=self.level, expected="a number between 0 and 1")
+        put("next_tests", check_int(self.next_tests, "next_tests", lo=0))
+        put("category", check_choice(self.category, "category", SOLUTE_CATEGORIES))
+        self._check_saving(put)
+
+    def _check_saving(self, put) -> None:
+        if (self.save_as is None) != (self.into is None):
+            missing = "into" if self.into is None else "save_as"
+            raise InputError("a name for the sphere and the solutes file to save it into go together: give both",
+                             param=missing, expected="both save_as and into, or neither")
+        if self.save_as is not None:
+            if not str(self.save_as).strip():
+                raise InputError("expected a name for the fitted solute", param="save_as", value=self.save_as,
+                                 expected="a name")
+            put("save_as", str(self.save_as).strip())
+            put("into", str(self.into))
+
+
+@dataclass(frozen=True)
+class FitResult:
+    """The fitted sphere with what the bench needs next.
+
+    Attributes
+    ----------
+    request : FitRequest
+    sphere : SphereFit
+        centre, R0, fit quality, wrong-side liquids, intervals (see :class:`~solvsel.science.sphere.SphereFit`)
+    bench : BenchData
+        the liquids of the file with their HSP and where those came from
+    suggestions : tuple of SuggestedTest
+        untested liquids worth testing next (a heuristic)
+    two : TwoSphereFit or None
+        the two-sphere fit, when asked
+    saved : dict or None
+        ``{"name", "file", "action"}`` when the sphere was saved ("created" or "appended")
+    cautions : tuple of str
+        what to keep in mind, the closing deferral last
+    """
+
+    request: FitRequest
+    sphere: SphereFit
+    bench: BenchData
+    suggestions: tuple[SuggestedTest, ...] = ()
+    two: TwoSphereFit | None = None
+    saved: dict | None = None
+    cautions: tuple[str, ...] = ()
+
+    @property
+    def target(self) -> Target:
+        """The fitted sphere as a target for ranking and blends (basis "fitted")."""
+        f = self.sphere
+        name = self.request.save_as or f"bench fit ({Path(self.bench.path).name})"
+        note = f"sphere fitted to {f.n_liquids} bench results; fit {f.fit:.2f}" + ("" if f.success else f"; {f.message}")
+        return Target(name, float(f.dD), float(f.dP), float(f.dH), float(f.r0), "fitted", None, note)
+
+    def liquids_summary(self) -> str:
+        """Where the liquids' HSP came from, in words (table, reference library, blends, the user's values)."""
+        rows = self.bench.rows
+        lib = [r.label for r in rows if r.basis.startswith("library")]
+        own = [r.label for r in rows if r.basis == "your values"]
+        parts = [f"{sum(r.basis == 'table' for r in rows)} from the table"]
+        if lib:
+            parts.append(f"{len(lib)} from the reference library chemicals ({', '.join(lib)})")
+        n_blends = sum(r.basis.startswith("blend") for r in rows)
+        if n_blends:
+            parts.append(f"{n_blends} blend(s) by volume-fraction average")
+        if own:
+            parts.append(f"{len(own)} with your own dD, dP, dH ({', '.join(own)})")
+        n_partial = sum(r.result == "partial" for r in rows)
+        if n_partial:
+            parts.append(f"{n_partial} partial result(s) counted {self.request.partial} at weight "
+                         f"{self.request.partial_weight:g}")
+        return "; ".join(parts)
+
+    def to_dict(self) -> dict[str, Any]:
+        """The JSON of ``solvsel fit --json``: the sphere, the input, each liquid, next tests, cautions."""
+        q = self.request
+        out = self.sphere.to_dict()
+        out["input"] = {
+            "file": self.bench.path, "scale": self.bench.scale, "good_at_most": q.good_at_most,
+            "good_at_least": q.good_at_least, "partial": q.partial, "partial_weight": q.partial_weight,
+            "lapse": q.lapse,
+        }
+        for item, row in zip(out["liquids"], self.bench.rows):
+            item["row"] = row.row
+            item["basis"] = row.basis
+            item["given"] = row.result if row.score is None else row.score
+            item["dD"], item["dP"], item["dH"] = row.dD, row.dP, row.dH
+        out["next_tests"] = {"method": NEXT_TESTS_METHOD, "liquids": [s.to_dict() for s in self.suggestions]}
+        out["saved"] = None if self.saved is None else dict(self.saved)
+        if self.two is not None:
+            out["two_spheres"] = self.two.to_dict()
+        out["cautions"] = list(self.cautions)
+        return out
+
+    def to_frame(self):
+        """The liquids of the file as a pandas DataFrame (name, result, weight, RED, where from, HSP)."""
+        from ._base import frame
+
+        return frame(self.to_dict()["liquids"])
+
+
+def fit(request: FitRequest | None = None, *, catalog: Catalog | None = None, **fields) -> FitResult:
+    """Fit a solute's Hansen sphere to a file of bench results (see :class:`FitRequest` for the fields).
+
+    Raises :class:`~solvsel.errors.TableError` (file, row, column) for a malformed file and
+    :class:`~solvsel.errors.InputError` for a bad field or a set of results no sphere can be fitted to.
+    """
+    q = build_request(FitRequest, request, fields)
+    cat = catalog_or_default(catalog)
+    read = read_bench(q.path, cat)
+    bench = bench_liquids(read, partial=q.partial, partial_weight=q.partial_weight)
+    sphere = fit_bench(bench, partial=q.partial, good_at_most=q.good_at_most, good_at_least=q.good_at_least,
+                       rule=q.rule, lapse=q.lapse, level=q.level)
+    two = fit_bench_two_spheres(bench, partial=q.partial, rule=q.rule, lapse=q.lapse) if q.two_spheres else None
+    pool = _next_test_pool(cat, q.food, read.keys) if q.next_tests else []
+    suggestions = _suggest(sphere, pool, q.next_tests)
+    saved = None
+    if q.save_as is not None:
+        row = solute_row(sphere, q.save_as, source=f"bench fit of {bench.path}", category=q.category)
+        saved = {"name": row["name"], "file": q.into, "action": save_solute(row, q.into)}
+    return FitResult(q, sphere, bench, tuple(suggestions), two, saved, _cautions(sphere, suggestions, pool, cat))
+
+
+def _next_test_pool(cat: Catalog, food: bool, tested: frozenset) -> list:
+    """Liquids of the tables worth a bench test: not tested yet, liquid at room temperature, used on food if asked."""
+    return [r for r in cat.solvent_records()
+            if (r.food_use or not food) and (r.bp_C is None or r.bp_C > BENCH_MIN_BP_C) and liquid_key(r) not in tested]
+
+
+def _suggest(sphere: SphereFit, pool: list, k: int) -> list[SuggestedTest]:
+    if not pool:
+        return []
+    import numpy as np
+
+    return suggest_tests(sphere, np.array([r.hsp for r in pool]), [r.name for r in pool], k=k)
+
+
+def _cautions(sphere: SphereFit, suggestions, pool, cat: Catalog) -> tuple[str, ...]:
+    """The fit's own cautions, then those of each liquid proposed for a bench test, the deferral last."""
+    out = [_GENERAL_CAUTION]
+    if not sphere.separable:
+        out.append(_UNEXPLAINED_CAUTION)
+    if sphere.open:
+        out.append(_OPEN_CAUTION)
+    by_name = {r.name: r for r in pool}
+    for s in suggestions:
+        out += [c for c in solvent_cautions(by_name[s.name], use="bench", cat=cat) if c != DEFER]
+    out.append(DEFER)
+    return tuple(dict.fromkeys(out))
