@@ -108,38 +108,38 @@ def test_eu_carrier_group_sums_members(cat):
     # 1 000 mg/L in beverages. 50 % PG / 50 % triacetin at 0.12 % in a drink of 1.00: each 600 mg/L (under
     # alone), together 1 200 mg/L (over).
     f = fm.formula_from_amounts(cat, [("propylene glycol", 50), ("triacetin", 50)])
-    r = cp.check_dose(cat, f, chain="drink 0.12% d=1.00", jurisdiction="EU", category="flavoured drinks")
+    r = cp.check_dose(cat, f, parse_chain("drink 0.12% d=1.00"), "EU", "flavoured drinks")
     c = only(r.checks, "Reg. (EC) No 1333/2008 Annex III Part 4")
     assert set(c.members) == {"propylene glycol", "triacetin"}
     assert c.level == pytest.approx(1200) and c.unit == "mg/L" and not c.ok and c.binds
     assert r.max_dose == pytest.approx(0.001, rel=1e-12) and not r.ok
-    under = cp.check_dose(cat, f, chain="drink 0.08% d=1.00", jurisdiction="EU", category="flavoured drinks")
+    under = cp.check_dose(cat, f, parse_chain("drink 0.08% d=1.00"), "EU", "flavoured drinks")
     assert only(under.checks, c.rule).ok and under.ok
 
 
 def test_eu_pg_flavour_capped_at_03_percent_in_food_and_01_in_drinks(cat):
     # Practice (Reg. (EC) No 1333/2008 Annex III Part 4, secondary source): a flavour that is 100 % PG is capped at
     # 0.3 % in food (3 000 mg/kg) and 0.1 % in beverages (1 000 mg/L, at density 1)
-    food = cp.carrier_dose_check(cat, "propylene glycol", "0.25%", "EU", "confectionery")
+    food = cp.carrier_dose_check(cat, "propylene glycol", parse_chain(None, "0.25%"), "EU", "confectionery")
     assert food.ok and food.max_dose == pytest.approx(0.003, rel=1e-12)
-    over = cp.carrier_dose_check(cat, "propylene glycol", "0.35%", "EU", "confectionery")
+    over = cp.carrier_dose_check(cat, "propylene glycol", parse_chain(None, "0.35%"), "EU", "confectionery")
     assert not over.ok and over.binding.level == pytest.approx(3500)
-    drink = cp.carrier_dose_check(cat, "propylene glycol", "0.05%", "EU", "beverages", chain="drink d=1.0")
+    drink = cp.carrier_dose_check(cat, "propylene glycol", parse_chain("drink d=1.0", "0.05%"), "EU", "beverages")
     assert drink.ok and drink.max_dose == pytest.approx(0.001, rel=1e-12)
 
 
 def test_other_sources_count(cat):
     # from all sources: 2 000 mg/kg PG already in the food leaves 1 000 mg/kg for the flavour (EU 3 000 mg/kg)
-    r = cp.carrier_dose_check(cat, "propylene glycol", "0.05%", "EU", "confectionery", already={"propylene glycol": 2000})
+    r = cp.carrier_dose_check(cat, "propylene glycol", parse_chain(None, "0.05%"), "EU", "confectionery", already={"propylene glycol": 2000})
     assert r.max_dose == pytest.approx(0.001, rel=1e-12)
-    r = cp.carrier_dose_check(cat, "propylene glycol", "0.05%", "EU", "confectionery", already={"E 1518": 3100})
+    r = cp.carrier_dose_check(cat, "propylene glycol", parse_chain(None, "0.05%"), "EU", "confectionery", already={"E 1518": 3100})
     assert r.max_dose == 0 and not r.ok  # triacetin from elsewhere already breaks the group limit
 
 
 def test_level_at_max_dose_equals_limit(cat):
     f = fm.formula_from_amounts(cat, [("propylene glycol", 70), ("triethyl citrate", 20), ("ethanol", 10)])
-    r = cp.check_dose(cat, f, chain="syrup d=1.3; drink 1+5v d=1.045", dose="0.4%", jurisdiction="EU", category="flavoured drinks")
-    again = cp.check_dose(cat, f, chain="syrup d=1.3; drink 1+5v d=1.045", dose=r.max_dose, jurisdiction="EU", category="flavoured drinks")
+    r = cp.check_dose(cat, f, parse_chain("syrup d=1.3; drink 1+5v d=1.045", "0.4%"), "EU", "flavoured drinks")
+    again = cp.check_dose(cat, f, parse_chain("syrup d=1.3; drink 1+5v d=1.045", r.max_dose), "EU", "flavoured drinks")
     b = only(again.checks, r.binding.rule)
     assert b.level == pytest.approx(b.limit, rel=1e-9) and b.ok
 
@@ -149,40 +149,40 @@ def test_level_at_max_dose_equals_limit(cat):
 
 def test_us_propylene_glycol_all_other_foods(cat):
     # 21 CFR 184.1666(c)(6): 2.0 % in all other foods (as served)
-    assert cp.carrier_dose_check(cat, "propylene glycol", "1.9%", "US", "food").ok
-    over = cp.carrier_dose_check(cat, "propylene glycol", "2.1%", "US", "fine bakery wares")
+    assert cp.carrier_dose_check(cat, "propylene glycol", parse_chain(None, "1.9%"), "US", "food").ok
+    over = cp.carrier_dose_check(cat, "propylene glycol", parse_chain(None, "2.1%"), "US", "fine bakery wares")
     assert not over.ok and over.binding.rule == "21 CFR 184.1666" and over.binding.limit == 2.0
     assert over.max_dose == pytest.approx(0.02, rel=1e-12)
     # 21 CFR 184.1666(c)(1): 5 % in alcoholic beverages
-    assert cp.carrier_dose_check(cat, "propylene glycol", "4%", "US", "alcoholic beverages", chain="drink d=0.95").ok
+    assert cp.carrier_dose_check(cat, "propylene glycol", parse_chain("drink d=0.95", "4%"), "US", "alcoholic beverages").ok
 
 
 def test_us_ester_gum_limit(cat):
     # 21 CFR 172.735: glycerol ester of rosin at most 100 ppm of the finished beverage. Concentrate with 24 %
     # ester gum at 1 g/kg: 240 ppm (over); at 0.4 g/kg: 96 ppm (under); max 100/240 g/kg (Practice worked check)
     f = fm.formula_from_amounts(cat, [("glycerol ester of wood rosin", 24), ("water", 76)], cas={"glycerol ester of wood rosin": "8050-30-4"})
-    over = cp.check_dose(cat, f, dose="1g/kg", jurisdiction="US", category="flavoured drinks")
+    over = cp.check_dose(cat, f, parse_chain(None, "1g/kg"), "US", "flavoured drinks")
     c = only(over.checks, "21 CFR 172.735")
     assert c.level == pytest.approx(240) and c.unit == "ppm" and not c.ok
     assert over.max_dose == pytest.approx(100 / 240 * 1e-3, rel=1e-12)
-    assert cp.check_dose(cat, f, dose="0.4g/kg", jurisdiction="US", category="flavoured drinks").ok
+    assert cp.check_dose(cat, f, parse_chain(None, "0.4g/kg"), "US", "flavoured drinks").ok
 
 
 def test_us_saib_limit(cat):
     # 21 CFR 172.833: SAIB at most 300 (mg/L in the table, the stricter reading) in nonalcoholic beverages
     f = fm.formula_from_amounts(cat, [("sucrose acetate isobutyrate", 20), ("water", 80)],
                                 cas={"sucrose acetate isobutyrate": "126-13-6"})
-    under = cp.check_dose(cat, f, chain="drink 0.14% d=1.04", jurisdiction="US", category="flavoured drinks")
+    under = cp.check_dose(cat, f, parse_chain("drink 0.14% d=1.04"), "US", "flavoured drinks")
     c = only(under.checks, "21 CFR 172.833")
     assert c.level == pytest.approx(0.2 * 0.0014 * 1e6 * 1.04) and c.ok  # 291.2 mg/L
-    over = cp.check_dose(cat, f, chain="drink 0.15% d=1.04", jurisdiction="US", category="flavoured drinks")
+    over = cp.check_dose(cat, f, parse_chain("drink 0.15% d=1.04"), "US", "flavoured drinks")
     assert not only(over.checks, "21 CFR 172.833").ok  # 312 mg/L
 
 
 def test_us_bvo_is_not_permitted(cat):
     # 89 FR 55040 (2024) revoked 21 CFR 180.30: any BVO is over, and the maximum dose is zero
     f = fm.formula_from_amounts(cat, [("brominated vegetable oil", 1), ("water", 99)], cas={"brominated vegetable oil": "8016-94-2"})
-    r = cp.check_dose(cat, f, dose="0.1%", jurisdiction="US", category="flavoured drinks")
+    r = cp.check_dose(cat, f, parse_chain(None, "0.1%"), "US", "flavoured drinks")
     assert not r.ok and r.max_dose == 0 and r.binding.status == "not permitted"
 
 
@@ -193,10 +193,10 @@ def test_residual_hexane_eu_flavouring(cat):
     # Dir. 2009/32/EC Annex I Part III: hexane at most 1 mg/kg in the food from a flavouring made with it.
     # 500 ppm in the extract at 0.1 %: 0.5 mg/kg (under); at 0.3 %: 1.5 mg/kg (over); tolerated 1000 ppm at 0.1 %
     f = fm.formula_from_amounts(cat, [("medium-chain triglycerides", 100)])
-    r = cp.check_dose(cat, f, dose="0.1%", jurisdiction="EU", category="flavoured drinks", residues={"n-hexane": 500})
+    r = cp.check_dose(cat, f, parse_chain(None, "0.1%"), "EU", "flavoured drinks", residues={"n-hexane": 500})
     part3 = [x for x in r.residues if x.rule == "Dir. 2009/32/EC Annex I Part III"][0]
     assert part3.level == pytest.approx(0.5) and part3.ok and part3.tolerated_ppm == pytest.approx(1000)
-    r = cp.check_dose(cat, f, dose="0.3%", jurisdiction="EU", category="flavoured drinks", residues={"n-hexane": 500})
+    r = cp.check_dose(cat, f, parse_chain(None, "0.3%"), "EU", "flavoured drinks", residues={"n-hexane": 500})
     part3 = [x for x in r.residues if x.rule == "Dir. 2009/32/EC Annex I Part III"][0]
     assert part3.level == pytest.approx(1.5) and part3.ok is False and not r.ok
     # ICH Q3C is shown as a reference only and does not decide
@@ -206,7 +206,7 @@ def test_residual_hexane_eu_flavouring(cat):
 def test_residue_in_fats_category_and_unlisted_solvent(cat):
     # Dir. 2009/32/EC Annex I Part II: hexane 1 mg/kg in fats and oils; toluene is not in Annex I at all
     f = fm.formula_from_amounts(cat, [("sunflower oil", 100)])
-    r = cp.check_dose(cat, f, dose="100%", jurisdiction="EU", category="fats and oils", residues={"n-hexane": 0.8, "toluene": 1})
+    r = cp.check_dose(cat, f, parse_chain(None, "100%"), "EU", "fats and oils", residues={"n-hexane": 0.8, "toluene": 1})
     part2 = [x for x in r.residues if x.rule == "Dir. 2009/32/EC Annex I Part II" and x.substance == "n-hexane"]
     assert part2 and part2[0].ok and part2[0].limit == 1
     tol = [x for x in r.residues if x.substance == "toluene" and not x.reference_only]
@@ -216,7 +216,7 @@ def test_residue_in_fats_category_and_unlisted_solvent(cat):
 def test_us_chlorinated_residues_are_summed(cat):
     # 21 CFR 173.255 / 173.290: all chlorinated solvent residues in a spice oleoresin together at most 30 ppm
     f = fm.formula_from_amounts(cat, [("medium-chain triglycerides", 100)])
-    r = cp.check_dose(cat, f, dose="0.1%", jurisdiction="US", category="food",
+    r = cp.check_dose(cat, f, parse_chain(None, "0.1%"), "US", "food",
                       residues={"dichloromethane": 20, "trichloroethylene": 15})
     grp = [x for x in r.residues if "group us_173_chlorinated_oleoresin" in x.substance]
     assert len(grp) == 1 and grp[0].level == pytest.approx(35) and grp[0].ok is False
@@ -228,13 +228,13 @@ def test_us_chlorinated_residues_are_summed(cat):
 def test_halal_claim_and_missing_data(cat):
     # claims.csv example (Singapore ruling, secondary source): ethanol at most 0.5 % in the flavouring
     f = fm.formula_from_amounts(cat, [("propylene glycol", 80), ("ethanol", 10), ("vanillin", 10)])
-    r = cp.check_dose(cat, f, dose="0.05%", jurisdiction="EU", category="flavoured drinks", claims=["halal"])
+    r = cp.check_dose(cat, f, parse_chain(None, "0.05%"), "EU", "flavoured drinks", claims=["halal"])
     flav = [c for c in r.claims if c.applies_to == "flavour"][0]
     assert flav.level_percent == pytest.approx(10) and flav.ok is False and not r.ok
     # vanillin has no row for the EU: said so, never treated as allowed
     assert [d["substance"] for d in r.no_data] == ["vanillin"] and not r.complete
     with pytest.raises(UnknownNameError, match="halal"):
-        cp.check_dose(cat, f, dose="0.05%", jurisdiction="EU", category="food", claims=["vegan-ish"])
+        cp.check_dose(cat, f, parse_chain(None, "0.05%"), "EU", "food", claims=["vegan-ish"])
 
 
 def test_bad_input(cat):
@@ -242,14 +242,14 @@ def test_bad_input(cat):
         fm.formula_from_amounts(cat, [("propylene glycol", 90), ("ethanol", 20)])
     f = fm.formula_from_amounts(cat, [("propylene glycol", 100)])
     with pytest.raises(UnknownNameError) as err:
-        cp.check_dose(cat, f, dose="0.1%", jurisdiction="EU", category="sodas")
+        cp.check_dose(cat, f, parse_chain(None, "0.1%"), "EU", "sodas")
     assert "flavoured drinks" in str(err.value) and "confectionery" in str(err.value)
     with pytest.raises(MissingDataError, match="density of 'drink'"):
-        cp.check_dose(cat, f, chain="drink 0.1%v", jurisdiction="EU", category="flavoured drinks")
+        cp.check_dose(cat, f, parse_chain("drink 0.1%v"), "EU", "flavoured drinks")
     with pytest.raises(MissingDataError, match="mg/L"):  # alcoholic beverages have no typical density
-        cp.check_dose(cat, f, dose="0.1%", jurisdiction="EU", category="alcoholic beverages")
+        cp.check_dose(cat, f, parse_chain(None, "0.1%"), "EU", "alcoholic beverages")
     with pytest.raises(InputError, match="EU, US"):
-        cp.check_dose(cat, f, dose="0.1%", jurisdiction="ICH", category="food")
+        cp.check_dose(cat, f, parse_chain(None, "0.1%"), "ICH", "food")
     with pytest.raises(MissingDataError, match="vanillin"):
         fm.formula_from_amounts(cat, [("propylene glycol", 90), ("vanillin", 10)], basis="volume")
 
@@ -296,9 +296,9 @@ def test_records_from_outside_the_tables_are_checked_by_their_own_cas(cat):
     import dataclasses
 
     pg = dataclasses.replace(cat.solvent("propylene glycol"), name="my propylene glycol", origin="user: mine.csv")
-    r = cp.carrier_dose_check(cat, pg, "0.25%", "EU", "confectionery")
+    r = cp.carrier_dose_check(cat, pg, parse_chain(None, "0.25%"), "EU", "confectionery")
     assert r.ok and r.max_dose == pytest.approx(0.003, rel=1e-12)  # Reg. (EC) No 1333/2008 Annex III Part 4
-    blend = cp.carrier_dose_check(cat, [(pg, 0.5), ("triacetin", 0.5)], "0.4%", "EU", "confectionery")
+    blend = cp.carrier_dose_check(cat, [(pg, 0.5), ("triacetin", 0.5)], parse_chain(None, "0.4%"), "EU", "confectionery")
     assert not blend.ok and blend.binding.level == pytest.approx(4000)
 
 
@@ -318,11 +318,11 @@ def test_group_level_is_the_sum_and_max_dose_meets_the_limit(parts, dose, rho):
     names = ["propylene glycol", "triacetin", "triethyl citrate", "water"]
     total = sum(parts)
     f = fm.formula_from_amounts(cat, [(n, 100 * p / total) for n, p in zip(names, parts)])
-    r = cp.check_dose(cat, f, chain=f"drink d={rho!r}", dose=dose, jurisdiction="EU", category="flavoured drinks")
+    r = cp.check_dose(cat, f, parse_chain(f"drink d={rho!r}", dose), "EU", "flavoured drinks")
     grp = only(r.checks, "Reg. (EC) No 1333/2008 Annex III Part 4")
     members = sum(p / total for p in parts[:3])
     assert grp.level == pytest.approx(members * dose * 1e6 * rho, rel=1e-9)
-    at_max = cp.check_dose(cat, f, chain=f"drink d={rho!r}", dose=r.max_dose, jurisdiction="EU", category="flavoured drinks")
+    at_max = cp.check_dose(cat, f, parse_chain(f"drink d={rho!r}", r.max_dose), "EU", "flavoured drinks")
     assert only(at_max.checks, grp.rule).level == pytest.approx(1000, rel=1e-9)
 
 
@@ -330,7 +330,7 @@ def test_practice_worked_check_ester_gum_per_litre(cat):
     # Practice worked check (US 21 CFR 172.735, 100 ppm): a concentrate with 24 % ester gum dosed at 1 g/L puts
     # 240 mg/L in the drink and is limited to about 0.42 g/L (at density 1.00: 100 / 240 g/L = 0.4167 g/L)
     f = fm.formula_from_amounts(cat, [("ester gum", 24), ("water", 76)])
-    r = cp.check_dose(cat, f, chain="drink 1g/L d=1.00", jurisdiction="US", category="flavoured drinks")
+    r = cp.check_dose(cat, f, parse_chain("drink 1g/L d=1.00"), "US", "flavoured drinks")
     assert r.stages[-1].mg_per_L["8050-30-4"] == pytest.approx(240)
     assert r.max_dose == pytest.approx(0.41667, rel=1e-4) and r.max_dose_unit == "g/L"
 
@@ -339,6 +339,6 @@ def test_no_data_points_to_categories_with_rules(cat):
     # EU E 445 is limited in flavoured drinks (1333/2008 Annex II 14.1.4); for "beverages" in general the table
     # has no row, and the result says where it has one instead of treating it as allowed
     f = fm.formula_from_amounts(cat, [("ester gum", 10), ("water", 90)])
-    r = cp.check_dose(cat, f, dose="0.1%", jurisdiction="EU", category="beverages")
+    r = cp.check_dose(cat, f, parse_chain(None, "0.1%"), "EU", "beverages")
     gum = [d for d in r.no_data if d["cas"] == "8050-30-4"]
     assert gum and gum[0]["rules_in_categories"] == ["flavoured drinks"] and not r.complete

@@ -17,10 +17,11 @@ AMOUNT is ``0.15%`` (w/w), ``0.15%v`` (v/v), ``1500ppm``, ``1.5g/kg``, ``1.5g/L`
 from __future__ import annotations
 
 import math
-import os
 
-from ..jobs.parse import parse_amounts, parse_names
-from ._common import add_json_flag, emit_json, print_cautions, print_table
+from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
+
+#: Request fields given otherwise than as --field.
+OPTION_NAMES = {"residues": "--residue", "claims": "--claim"}
 
 
 def register(subparsers):
@@ -57,45 +58,36 @@ def register(subparsers):
     return p
 
 
-def _formula(cat, args):
-    from ..science.formulation import formula_from_amounts, formula_from_csv
-
-    text = args.formula.strip()
-    if text.lower().endswith(".csv") or (os.path.isfile(text) and "=" not in text):
-        return formula_from_csv(cat, text)
-    return formula_from_amounts(cat, parse_amounts(text, "formula"), basis=args.by, name="flavour")
-
-
 def _fmt(x, spec=".4g"):
     if x is None or (isinstance(x, float) and not math.isfinite(x)):
         return "-"
     return format(x, spec)
 
 
-def run(args) -> int:
-    from ..rules.regulations import check_dose
-    from ..errors import InputError
-    from ._common import get_catalog
+def request(args):
+    """The :class:`~solvsel.jobs.dose.DoseRequest` the options ask for."""
+    from ..jobs.dose import DoseRequest
+    from ..jobs.parse import parse_names
 
-    cat = get_catalog(args)
-    formula = _formula(cat, args)
-    if args.dose is None and args.chain is None:
-        raise InputError("--dose: give the dose of the formula (e.g. --dose 0.15%) or a --chain with amounts")
-    if args.formula_density is not None and not (0.3 <= args.formula_density <= 2.5):
-        raise InputError(f"--formula-density: expected 0.3-2.5 g/cm3, got {args.formula_density:g}")
-    already = dict(parse_amounts(args.already, "already")) if args.already else None
-    residues = dict(parse_amounts(args.residue, "residue")) if args.residue else None
-    claims = [c for item in args.claim for c in parse_names(item, "claim")]
-    result = check_dose(
-        cat, formula, chain=args.chain, jurisdiction=args.jurisdiction.upper(), category=args.category or "food",
-        dose=args.dose, already=already, residues=residues, claims=claims, formula_density=args.formula_density,
+    return DoseRequest(
+        formula=args.formula, by=args.by, dose=args.dose, chain=args.chain, category=args.category,
+        jurisdiction=args.jurisdiction, already=args.already, residues=args.residue,
+        claims=tuple(c for item in args.claim for c in parse_names(item, "claims")),
+        formula_density=args.formula_density,
     )
+
+
+def run(args) -> int:
+    from ..jobs.dose import dose
+
+    result = dose(request(args), catalog=get_catalog(args))
     if args.json:
-        emit_json(result)
+        emit_json(result.to_dict())
         return 0
     if args.category is None:
         print("(no --category given: the limits for all foods are used; a specific category may have other limits)\n")
-    _print(result)
+    _print(result.check)
+    print_cautions(result.cautions)
     return 0
 
 
@@ -182,4 +174,3 @@ def _print(r) -> None:
         print("\nAssumptions:")
         for a in r.assumptions:
             print(f"  - {a}")
-    print_cautions(r.cautions)

@@ -1,5 +1,6 @@
 """The usual cautions beside a liquid: flammability, hydrocarbon and gas extraction, toxic or
-restricted solvents (ICH Q3C classes), ethanol; and the closing caution of every result.
+restricted solvents (ICH Q3C classes), ethanol; the cautions that go with a check of legal
+limits; and the closing caution of every result.
 
 They repeat what practitioners and the regulations already say; they do not replace local
 codes, the regulations in force or licensed practice.
@@ -8,11 +9,11 @@ codes, the regulations in force or licensed practice.
 from __future__ import annotations
 
 from ..data.catalog import number_or_none as _number
-from ..errors import InputError
+from ..errors import InputError, SolvselError
 from .hazards import hazard_class
-from .regulations import USES, _ETHANOL_CAS, _ethanol_strength, _get, _text, limits
+from .regulations import USES, _ETHANOL_CAS, DoseCheck, _ethanol_strength, _get, _text, limits
 
-__all__ = ["DEFER", "solvent_cautions"]
+__all__ = ["DEFER", "solvent_cautions", "limit_cautions"]
 
 #: The closing caution of every result.
 DEFER = (
@@ -54,7 +55,8 @@ def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
     True
     """
     if use is not None and use not in USES:
-        raise InputError(f"use: expected one of {', '.join(USES)}, got '{use}'")
+        raise InputError(f"expected one of {', '.join(USES)}, got '{use}'", param="use", value=use,
+                         expected="one of " + ", ".join(USES))
     name = _text(_get(solvent, "name")) or "this liquid"
     cas = _text(_get(solvent, "cas"))
     strength = _ethanol_strength(name)
@@ -114,7 +116,7 @@ def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
     if cas and cas not in _CHLORINATED and cas != "67-56-1":
         try:
             ich = [r for r in limits(cat, cas=cas, jurisdiction="ICH") if r.status in ("class 1", "class 2")]
-        except Exception:  # the caution must never hide the result
+        except SolvselError:  # a broken regulations table: the caution must never hide the result
             ich = []
         for r in ich[:1]:
             out.append(
@@ -140,3 +142,38 @@ def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
     return list(dict.fromkeys(out))
 
 
+def limit_cautions(check: DoseCheck) -> list[str]:
+    """The cautions that go with a check of legal limits (:func:`~solvsel.rules.regulations.check_dose`):
+    limits from all sources, where the rules come from, unconfirmed rows, substances with no data,
+    residues and claims.  The cautions of the formula's liquids and :data:`DEFER` are added by the
+    caller (the ``dose`` job).
+
+    Examples
+    --------
+    >>> from solvsel.science.formulation import Step
+    >>> from solvsel.rules.regulations import carrier_dose_check
+    >>> chk = carrier_dose_check(None, "propylene glycol", [Step("sweet", "w/w", 0.002)], "EU", "confectionery")
+    >>> limit_cautions(chk)[1][:44]
+    "Jurisdiction EU, category 'confectionery': t"
+    """
+    jur, category = check.jurisdiction, check.category
+    out = [
+        "Limits apply to the food as consumed and from all sources: add what other ingredients bring (--already).",
+        f"Jurisdiction {jur}, category '{category}': the rules, sources and checked-on dates are listed with each limit; "
+        "rows marked 'secondary, verify' or 'from memory' are not confirmed against the official text.",
+    ]
+    if any(c.flagged for c in check.checks) or any(r.confidence != "checked" for r in check.residues):
+        out.append("Some limits used here are unconfirmed (secondary source or recalled): verify them before relying on the result.")
+    if check.no_data:
+        out.append(
+            "No data for " + ", ".join(d["substance"] for d in check.no_data)
+            + f" in {jur}: the tool found no rule, which is not a permission."
+        )
+    if check.residues:
+        out.append(
+            "Residual solvents: measured residues come from headspace GC of the actual lot; limits differ by jurisdiction "
+            "and use, and a prediction never replaces the measurement."
+        )
+    if check.claims:
+        out.append("Claim rules are examples from tables/claims.csv: verify with your certifier.")
+    return out

@@ -3,8 +3,7 @@
 This module answers the questions a formulator must settle before a carrier
 or an extraction solvent is worth a bench trial: is it allowed for this use in
 this jurisdiction, under which rule and condition; what limit applies to the
-food as consumed (summed from all sources where the rule says so); what is its
-flammability class; and which cautions go with it.  The rules live in
+food as consumed (summed from all sources where the rule says so).  The rules live in
 ``tables/regulations.csv`` (one row per substance, jurisdiction, rule and use,
 each with its source, confidence and checked-on date), the food categories
 in ``tables/food_categories.csv`` and the example claim rules in
@@ -15,8 +14,9 @@ and jurisdiction has the status ``"no data"``, and for the EU extraction
 solvents (a positive list) a solvent that is not listed is ``"not permitted"``.
 
 The dose arithmetic (levels along a dilution chain, maximum dose, residues,
-claim flags) is in :func:`check_dose` and :func:`carrier_dose_check`; the
-formulation and the chain are modelled in :mod:`solvsel.science.formulation`.
+claim flags) is in :func:`check_dose` and :func:`carrier_dose_check`, which take
+the chain already parsed (:func:`solvsel.jobs.parse.parse_chain` reads it from
+text); the formulation and the chain are modelled in :mod:`solvsel.science.formulation`.
 
 Every result is an estimate for planning bench work: the legal texts in force,
 local codes and licensed practice decide.
@@ -42,7 +42,7 @@ from dataclasses import asdict, dataclass, field
 from typing import Any, Iterable, Mapping, Sequence
 
 from ..data.catalog import number_or_none as _number
-from ..errors import InputError, MissingDataError, UnknownNameError
+from ..errors import InputError, MissingDataError, TableError, UnknownNameError
 
 
 __all__ = [
@@ -109,12 +109,15 @@ def _norm(s: str) -> str:
     return re.sub(r"[\s_]+", " ", str(s).strip().lower())
 
 
-def _check_jurisdiction(jurisdiction, allowed=JURISDICTIONS, what="jurisdiction") -> str | None:
+def _check_jurisdiction(jurisdiction, allowed=JURISDICTIONS) -> str | None:
+    """``jurisdiction`` in upper case if it is one of ``allowed`` (None stays None)."""
     if jurisdiction is None:
         return None
     j = str(jurisdiction).strip().upper()
     if j not in allowed:
-        raise InputError(f"{what}: expected one of {', '.join(allowed)}, got '{jurisdiction}'")
+        expected = "one of " + ", ".join(allowed)
+        raise InputError(f"expected {expected}, got '{jurisdiction}'", param="jurisdiction", value=jurisdiction,
+                         expected=expected)
     return j
 
 
@@ -280,7 +283,8 @@ def resolve_category(cat, name: str) -> FoodCategory:
         return _RESOLVED[ck]
     cats = food_categories(cat)
     if name is None or not str(name).strip():
-        raise InputError("--category: expected a food category, got nothing; known: " + ", ".join(cats))
+        raise InputError("expected a food category, got nothing; known: " + ", ".join(cats), param="category",
+                         value=name, expected="a food category")
     key = _norm(name)
     index = {}
     for fc in cats.values():
@@ -292,7 +296,7 @@ def resolve_category(cat, name: str) -> FoodCategory:
         return _RESOLVED[ck]
     names = list(cats)
     ranked = sorted(names, key=lambda n: -difflib.SequenceMatcher(None, key, _norm(n)).ratio())
-    raise UnknownNameError(str(name), "food category", tuple(ranked))
+    raise UnknownNameError(str(name), "food category", tuple(ranked), param="category")
 
 
 def category_lineage(cat, name: str) -> list[str]:
@@ -303,7 +307,8 @@ def category_lineage(cat, name: str) -> list[str]:
     while cats[out[-1]].parent:
         parent = cats[out[-1]].parent
         if parent in out or parent not in cats:  # a broken tree is a table error, not a loop
-            raise InputError(f"tables/food_categories.csv: parent '{parent}' of '{out[-1]}' is unknown or circular")
+            raise TableError("tables/food_categories.csv", f"parent '{parent}' of '{out[-1]}' is unknown or circular",
+                             column="parent")
         out.append(parent)
     return out
 
@@ -315,12 +320,12 @@ def _cas_of(cat, substance: str) -> str | None:
     """CAS of a name through the catalog's forgiving lookup, else None."""
     try:
         return cat.solvent(substance, library=False).cas or None
-    except Exception:
+    except (UnknownNameError, InputError):  # not a liquid of the tables (or not a name at all)
         pass
     for table in ("solutes", "weighting_agents", "emulsifiers"):
         try:
             row = cat.find(table, substance)
-        except Exception:
+        except (UnknownNameError, InputError):
             continue
         cas = _text(row.get("cas"))
         if cas:
@@ -533,8 +538,9 @@ def food_status(cat, solvent, use: str | None = None, jurisdiction: str | None =
     cat = _catalog(cat)
     use = use or "carrier"
     if use not in USES:
-        raise InputError(f"use: expected one of {', '.join(USES)}, got '{use}'")
-    jur = _check_jurisdiction(jurisdiction, FOOD_JURISDICTIONS, "jurisdiction (food law)")
+        raise InputError(f"expected one of {', '.join(USES)}, got '{use}'", param="use", value=use,
+                         expected="one of " + ", ".join(USES))
+    jur = _check_jurisdiction(jurisdiction, FOOD_JURISDICTIONS)
     if isinstance(solvent, str):
         solvent = cat.solvent(solvent)
     name = _text(_get(solvent, "name"))
@@ -707,7 +713,6 @@ class DoseCheck:
     per_ingredient: tuple[dict, ...]
     ok: bool
     complete: bool
-    cautions: tuple[str, ...]
     assumptions: tuple[str, ...]
 
     def stage_table(self, index: int) -> list[dict]:
@@ -755,7 +760,6 @@ class DoseCheck:
             "per_ingredient": list(self.per_ingredient),
             "ok": self.ok,
             "complete": self.complete,
-            "cautions": list(self.cautions),
             "assumptions": list(self.assumptions),
         }
 
@@ -773,34 +777,216 @@ def claim_rules(cat=None, claim: str | None = None) -> list[dict]:
     hit = [r for r in rows if _norm(r["claim"]) == key]
     if not hit:
         known = sorted({r["claim"] for r in rows})
-        raise UnknownNameError(str(claim), "claim", tuple(known))
+        raise UnknownNameError(str(claim), "claim", tuple(known), param="claims")
     return hit
 
 
-def _resolve_substance(cat, name: str, what: str) -> tuple[str, str, str]:
-    """(key, display name, cas) of a substance given by name or CAS."""
+def _resolve_substance(cat, name: str, param: str) -> tuple[str, str, str]:
+    """(key, display name, cas) of a substance given by name or CAS; ``param`` names the input it came from."""
     from ..science.formulation import _lookup
 
     try:
         n, cas, _, _, _ = _lookup(cat, name)
         return (cas or n), n, cas
-    except UnknownNameError:
+    except UnknownNameError as exc:
         rows = limits(cat, substance=name)
         if rows:
             return (rows[0].cas or rows[0].substance), rows[0].substance, rows[0].cas
-        raise
+        raise UnknownNameError(exc.name, exc.kind, exc.suggestions, param=param) from None
 
 
 _MAX_UNIT = {"w/w": "mass fraction", "v/v": "volume fraction", "g/L": "g/L"}
 
 
+def _food_jurisdiction(jurisdiction) -> str:
+    """The food-law jurisdiction of a dose check ("EU" or "US"); it must be given."""
+    jur = _check_jurisdiction(jurisdiction, FOOD_JURISDICTIONS)
+    if jur is None:
+        raise InputError("give EU or US (limits differ by jurisdiction)", param="jurisdiction",
+                         expected="one of " + ", ".join(FOOD_JURISDICTIONS))
+    return jur
+
+
+def _checked_steps(steps) -> tuple:
+    """The dilution chain as a tuple of :class:`~solvsel.science.formulation.Step` (at least one)."""
+    from ..science.formulation import Step
+
+    if isinstance(steps, (str, bytes)) or not isinstance(steps, Sequence):
+        raise InputError(f"expected the parsed steps of a dilution chain, got {steps!r}", param="chain", value=steps,
+                         expected="a list of Step (solvsel.jobs.parse.parse_chain)")
+    steps = tuple(steps)
+    if not steps:
+        raise InputError("a dilution chain needs at least one step", param="chain", expected="at least one step")
+    for s in steps:
+        if not isinstance(s, Step):
+            raise InputError(f"expected a Step, got {s!r}", param="chain", value=s,
+                             expected="a list of Step (solvsel.jobs.parse.parse_chain)")
+    return steps
+
+
+def _stages_in_category(formula, steps, formula_density: float | None, fc: FoodCategory) -> tuple[list, list[str]]:
+    """Stages of the chain and the assumptions made; a last stage of unknown density takes the
+    typical density of its food category (said so in the assumptions)."""
+    from ..science.formulation import stage_levels
+
+    stages = stage_levels(formula, steps, formula_density)
+    assumptions = list(formula.notes)
+    final = stages[-1]
+    if final.density_g_cm3 is None and fc.typical_density_g_cm3 is not None:
+        stages[-1] = _replace(final, density_g_cm3=fc.typical_density_g_cm3, density_basis="assumed (category)")
+        assumptions.append(
+            f"density of '{final.name}' assumed {fc.typical_density_g_cm3:g} g/cm3 (typical for {fc.name}); "
+            "give d= in the chain for your product"
+        )
+    return stages, assumptions
+
+
+def _other_sources(cat, already: Mapping[str, float] | None, names: dict) -> dict[str, float]:
+    """What other ingredients bring to the food as consumed, ``{key: mg/kg}``; adds their names to ``names``."""
+    other: dict[str, float] = {}
+    for n, v in (already or {}).items():
+        if v is None or not math.isfinite(float(v)) or float(v) < 0:
+            raise InputError(f"the amount of '{n}' must be zero or more mg/kg, got {v}", param="already", value=v,
+                             expected="zero or more mg/kg")
+        key, disp, cas = _resolve_substance(cat, n, "already")
+        other[key] = other.get(key, 0.0) + float(v)
+        names.setdefault(key, (disp, cas))
+    return other
+
+
+@dataclass(frozen=True)
+class _Levels:
+    """Levels in the food as consumed: from the formula (scaled by its fraction in the food) and
+    from other sources, in mg/kg, or in mg/L with the food's density."""
+
+    formula_fractions: Mapping[str, float]  # mass fractions in the formula (stage 0)
+    other: Mapping[str, float]  # mg/kg from other ingredients
+    fraction_of_formula: float  # F: mass fraction of the formula in the food
+    density: float | None  # of the food [g/cm3]
+    stage_name: str
+    category: str
+
+    def of(self, keys: Sequence[str], basis: str | None) -> tuple[float, float]:
+        """(level from the formula, level from other sources) in mg/kg or mg/L."""
+        fp = sum(self.formula_fractions.get(k, 0.0) for k in keys) * self.fraction_of_formula * 1e6
+        bg = sum(self.other.get(k, 0.0) for k in keys)
+        if basis == "volume":
+            if self.density is None:
+                raise MissingDataError(
+                    f"a limit in mg/L applies in '{self.stage_name}' ({self.category}) but its density is not known: "
+                    "give d= in the chain", param="chain"
+                )
+            return fp * self.density, bg * self.density
+        return fp, bg
+
+
+def _rules_of_substances(cat, names: Mapping[str, tuple[str, str]], present: Sequence[str], jur: str,
+                         category: str) -> tuple[dict[str, list[Limit]], list[dict]]:
+    """The finished-food rules of each substance present, and the substances with no rule (never a permission)."""
+    rules_of: dict[str, list[Limit]] = {}
+    no_data = []
+    for k in present:
+        cas = names[k][1]
+        rows = []
+        if cas:
+            rows = [r for r in limits(cat, cas=cas, jurisdiction=jur, category=category, use=FINISHED_FOOD_USES)
+                    if r.applies_to in ("finished food", "status")]
+        if rows:
+            rules_of[k] = rows
+            continue
+        why = "no CAS number, so no rule can be looked up" if not cas else "no rule in the bundled table"
+        elsewhere = sorted({r.food_category for r in limits(cat, cas=cas, jurisdiction=jur, use=FINISHED_FOOD_USES)}) if cas else []
+        hint = f" (the table has {jur} rules for it in: {', '.join(elsewhere)})" if elsewhere else ""
+        no_data.append({
+            "substance": names[k][0], "cas": cas, "jurisdiction": jur, "category": category,
+            "message": f"{names[k][0]}: {why} for {jur} / {category}{hint}; that is not a permission "
+                       "(check the rules in force)",
+            "rules_in_categories": elsewhere,
+        })
+    return rules_of, no_data
+
+
+def _limit_checks(rules_of: Mapping[str, list[Limit]], names, levels: _Levels, x0: float | None) -> list[LimitCheck]:
+    """One check per rule, the level summed over the members of a group; ``max_dose`` is the dose
+    (``x0`` scaled) that keeps the rule, or None when the first step is not scalable (``x0`` None)."""
+    grouped: dict[tuple, dict] = {}
+    for k, rows in rules_of.items():
+        for r in rows:
+            ident = r.group or (r.cas or r.substance)
+            key = (ident, r.rule, r.food_category, r.limit, r.unit, r.status, r.applies_to)
+            entry = grouped.setdefault(key, {"row": r, "members": []})
+            entry["members"].append(k)
+    scalable = x0 is not None
+    checks = []
+    for e in grouped.values():
+        r, members = e["row"], e["members"]
+        label = " + ".join(names[m][0] for m in members)
+        if r.group:
+            label += f" (group {r.group})"
+        base = dict(
+            rule=r.rule, jurisdiction=r.jurisdiction, substance=label, members=tuple(names[m][0] for m in members),
+            cas=tuple(names[m][1] for m in members), unit=r.unit, status=r.status, applies_to=r.applies_to,
+            food_category=r.food_category, condition=r.condition, group=r.group, confidence=r.confidence,
+            checked_on=r.checked_on, source=r.source, note=r.note,
+        )
+        if r.status == "not permitted":
+            fp, bg = levels.of(members, "mass")
+            checks.append(LimitCheck(level=fp + bg, limit=0.0, ok=(fp + bg) == 0, binds=False,
+                                     max_dose=0.0 if scalable else None, **{**base, "unit": "mg/kg"}))
+            continue
+        if r.limit_mg is None:  # GMP: no number to keep
+            checks.append(LimitCheck(level=None, limit=None, ok=True, binds=False, max_dose=None, **base))
+            continue
+        fp, bg = levels.of(members, r.basis)
+        mx = None
+        if scalable:
+            room = r.limit_mg - bg
+            mx = 0.0 if room <= 0 else (math.inf if fp <= 0 else x0 * room / fp)
+        checks.append(LimitCheck(level=(fp + bg) / _UNIT_BASIS[r.unit][1], limit=r.limit,
+                                 ok=(fp + bg) <= r.limit_mg * (1 + 1e-12), binds=False, max_dose=mx, **base))
+    return checks
+
+
+def _binding(checks: list[LimitCheck]) -> tuple[list[LimitCheck], float | None, LimitCheck | None]:
+    """(checks with the binding ones marked, sorted binding first then the broken ones, the maximum dose, the binding check)."""
+    finite = [c.max_dose for c in checks if c.max_dose is not None and math.isfinite(c.max_dose)]
+    max_dose = min(finite) if finite else None
+    binding = None
+    if max_dose is not None:
+        checks = [
+            c if c.max_dose is None or not math.isfinite(c.max_dose) or c.max_dose > max_dose * (1 + 1e-9) + 1e-300
+            else _replace(c, binds=True)
+            for c in checks
+        ]
+        binding = next(c for c in checks if c.binds)
+    checks = [(_replace(c, max_dose=None) if c.max_dose is not None and not math.isfinite(c.max_dose) else c) for c in checks]
+    checks.sort(key=lambda c: (not c.binds, c.ok, -(c.level / c.limit if c.level is not None and c.limit else 0)))
+    return checks, max_dose, binding
+
+
+def _per_ingredient(formula, checks: Sequence[LimitCheck], names, no_data: Sequence[dict]) -> list[dict]:
+    """Per ingredient of the formula: the tightest limit on what it brings."""
+    out = []
+    for comp in formula.components:
+        keys = {s[0] for s in comp.substances}
+        mine = [c for c in checks if c.max_dose is not None and any(names.get(k, ("", ""))[0] in c.members for k in keys)]
+        best = min(mine, key=lambda c: c.max_dose) if mine else None
+        out.append({
+            "name": comp.name, "cas": comp.cas, "mass_fraction": comp.mass_fraction,
+            "max_dose": best.max_dose if best else None,
+            "binding_rule": best.rule if best else None,
+            "binding_substance": best.substance if best else None,
+            "no_data": any(d["substance"] in {names.get(k, ("",))[0] for k in keys} for d in no_data),
+        })
+    return out
+
+
 def check_dose(
     cat,
     formula,
-    chain=None,
-    jurisdiction: str = "EU",
-    category: str = "food",
-    dose: str | float | None = None,
+    steps: Sequence,
+    jurisdiction: str,
+    category: str,
     already: Mapping[str, float] | None = None,
     residues: Mapping[str, float] | None = None,
     claims: Sequence[str] | None = None,
@@ -812,15 +998,13 @@ def check_dose(
     ----------
     cat : Catalog or None
     formula : solvsel.science.formulation.Formula
-    chain : str or list of Step, optional
-        The chain (syntax in :mod:`solvsel.science.formulation`); None: the dose goes
-        straight into the food as consumed.
+    steps : sequence of solvsel.science.formulation.Step
+        The dilution chain, at least one step, the first one carrying the dose
+        of the formula (:func:`solvsel.jobs.parse.parse_chain` reads it from
+        text; a single step into the food as consumed when there is no chain).
     jurisdiction : {"EU", "US"}
     category : str
         Food category of the food as consumed (the last stage).
-    dose : str or float, optional
-        Dose of the formula in the first stage ("0.15%", "1500ppm", "1.5g/L";
-        a float is a mass fraction).
     already : mapping, optional
         What other ingredients already bring to the food as consumed,
         ``{substance: mg/kg}``; added to the formula's share ("from all sources").
@@ -848,190 +1032,50 @@ def check_dose(
     :math:`x_\\max = x\\,(L - B_G\\rho)/(c_G - B_G\\rho)` (Practice: "maximum
     flavour dose = (limit - what other ingredients bring) / share of the
     limited carriers").  A substance with no rule in the jurisdiction is
-    listed in ``no_data`` and the result is not ``complete``.
+    listed in ``no_data`` and the result is not ``complete``.  The cautions
+    that go with the result are in :func:`solvsel.rules.cautions.limit_cautions`.
+
+    Examples
+    --------
+    90 % propylene glycol at 0.15 % in a confection: 1 350 mg/kg against the EU carrier
+    group's 3 000 mg/kg (Reg. (EC) No 1333/2008 Annex III Part 4), so at most
+    0.15 % x 3000 / 1350 = 0.3333 %.
+
+    >>> from solvsel.science.formulation import Step, formula_from_amounts
+    >>> from solvsel.data.catalog import load_catalog
+    >>> f = formula_from_amounts(load_catalog(), [("propylene glycol", 90), ("vanillin", 10)])
+    >>> chk = check_dose(None, f, [Step("sweet", "w/w", 0.0015)], "EU", "confectionery")
+    >>> round(chk.max_dose * 100, 4), chk.binding.rule
+    (0.3333, 'Reg. (EC) No 1333/2008 Annex III Part 4')
     """
-    from ..jobs.parse import parse_chain  # temporary: the dose job will parse the chain
-    from ..science.formulation import WATER_DENSITY_25C, stage_levels  # noqa: F401
-
     cat = _catalog(cat)
-    jur = _check_jurisdiction(jurisdiction, FOOD_JURISDICTIONS, "--jurisdiction (food law)")
-    if jur is None:
-        raise InputError("--jurisdiction: give EU or US (limits differ by jurisdiction)")
+    jur = _food_jurisdiction(jurisdiction)
     fc = resolve_category(cat, category)
-    if isinstance(dose, (int, float)) and not isinstance(dose, bool):
-        if not (0 < float(dose) <= 1):
-            raise InputError(f"--dose: a mass fraction must be more than 0 and at most 1, got {dose}")
-        dose = f"{float(dose) * 100!r}%"
-    steps = parse_chain(chain, dose) if (chain is None or isinstance(chain, str)) else list(chain)
-    if chain is not None and not isinstance(chain, str) and dose is not None:
-        raise InputError("give the dose inside the chain steps or as dose, not both")
-    stages = stage_levels(formula, steps, formula_density)
-    assumptions = list(formula.notes)
-    final = stages[-1]
-    if final.density_g_cm3 is None and fc.typical_density_g_cm3 is not None:
-        from dataclasses import replace
-
-        final = replace(final, density_g_cm3=fc.typical_density_g_cm3, density_basis="assumed (category)")
-        stages[-1] = final
-        assumptions.append(
-            f"density of '{final.name}' assumed {fc.typical_density_g_cm3:g} g/cm3 (typical for {fc.name}); "
-            "give d= in the chain for your product"
-        )
+    steps = _checked_steps(steps)
+    stages, assumptions = _stages_in_category(formula, steps, formula_density, fc)
     names = {k: (v[0], v[1]) for k, v in formula.substance_fractions().items()}
-    # other sources (mg/kg in the food as consumed)
-    other: dict[str, float] = {}
-    for n, v in (already or {}).items():
-        if v is None or not math.isfinite(float(v)) or float(v) < 0:
-            raise InputError(f"--already: amount of '{n}' must be zero or more mg/kg, got {v}")
-        key, disp, cas = _resolve_substance(cat, n, "--already")
-        other[key] = other.get(key, 0.0) + float(v)
-        names.setdefault(key, (disp, cas))
+    other = _other_sources(cat, already, names)
+    final = stages[-1]
+    levels = _Levels(dict(stages[0].mass_fractions), other, final.fraction_of_formula, final.density_g_cm3,
+                     final.name, fc.name)
+    x0 = steps[0].amount if steps[0].scalable else None
+    present = [k for k in names if (levels.formula_fractions.get(k, 0.0) > 0 or other.get(k, 0.0) > 0)]
+    rules_of, no_data = _rules_of_substances(cat, names, present, jur, fc.name)
+    checks, max_dose, binding = _binding(_limit_checks(rules_of, names, levels, x0))
     F = final.fraction_of_formula
-    rho = final.density_g_cm3
-    w0 = dict(stages[0].mass_fractions)
-    scalable = steps[0].scalable
-    x0 = steps[0].amount if scalable else None
-
-    def level(keys: Sequence[str], basis: str | None) -> tuple[float, float]:
-        """(level from the formula, level from other sources) in mg/kg or mg/L."""
-        fp = sum(w0.get(k, 0.0) for k in keys) * F * 1e6
-        bg = sum(other.get(k, 0.0) for k in keys)
-        if basis == "volume":
-            if rho is None:
-                raise MissingDataError(
-                    f"a limit in mg/L applies in '{final.name}' ({fc.name}) but its density is not known: give d= in the chain"
-                )
-            return fp * rho, bg * rho
-        return fp, bg
-
-    # gather the rules of every substance present in the food
-    present = [k for k in names if (w0.get(k, 0.0) > 0 or other.get(k, 0.0) > 0)]
-    rules_of: dict[str, list[Limit]] = {}
-    no_data = []
-    for k in present:
-        cas = names[k][1]
-        rows = []
-        if cas:
-            rows = [r for r in limits(cat, cas=cas, jurisdiction=jur, category=fc.name, use=FINISHED_FOOD_USES)
-                    if r.applies_to in ("finished food", "status")]
-        if rows:
-            rules_of[k] = rows
-        else:
-            why = "no CAS number, so no rule can be looked up" if not cas else "no rule in the bundled table"
-            elsewhere = sorted({r.food_category for r in limits(cat, cas=cas, jurisdiction=jur, use=FINISHED_FOOD_USES)}) if cas else []
-            hint = f" (the table has {jur} rules for it in: {', '.join(elsewhere)})" if elsewhere else ""
-            no_data.append({
-                "substance": names[k][0], "cas": cas, "jurisdiction": jur, "category": fc.name,
-                "message": f"{names[k][0]}: {why} for {jur} / {fc.name}{hint}; that is not a permission "
-                           "(check the rules in force)",
-                "rules_in_categories": elsewhere,
-            })
-    # one check per rule, summed over the members of a group
-    checks_raw: dict[tuple, dict] = {}
-    for k, rows in rules_of.items():
-        for r in rows:
-            ident = r.group or (r.cas or r.substance)
-            key = (ident, r.rule, r.food_category, r.limit, r.unit, r.status, r.applies_to)
-            entry = checks_raw.setdefault(key, {"row": r, "members": []})
-            entry["members"].append(k)
-    checks = []
-    for key, e in checks_raw.items():
-        r, members = e["row"], e["members"]
-        label = " + ".join(names[m][0] for m in members)
-        if r.group:
-            label += f" (group {r.group})"
-        base = dict(
-            rule=r.rule, jurisdiction=r.jurisdiction, substance=label, members=tuple(names[m][0] for m in members),
-            cas=tuple(names[m][1] for m in members), unit=r.unit, status=r.status, applies_to=r.applies_to,
-            food_category=r.food_category, condition=r.condition, group=r.group, confidence=r.confidence,
-            checked_on=r.checked_on, source=r.source, note=r.note,
-        )
-        if r.status == "not permitted":
-            fp, bg = level(members, "mass")
-            checks.append(LimitCheck(level=fp + bg, limit=0.0, ok=(fp + bg) == 0, binds=False,
-                                     max_dose=0.0 if scalable else None, **{**base, "unit": "mg/kg"}))
-            continue
-        if r.limit_mg is None:  # GMP: no number to keep
-            fp, bg = level(members, "mass")
-            checks.append(LimitCheck(level=None, limit=None, ok=True, binds=False, max_dose=None, **base))
-            continue
-        fp, bg = level(members, r.basis)
-        per_unit = _UNIT_BASIS[r.unit][1]
-        lvl = (fp + bg) / per_unit
-        ok = (fp + bg) <= r.limit_mg * (1 + 1e-12)
-        mx = None
-        if scalable:
-            room = r.limit_mg - bg
-            mx = 0.0 if room <= 0 else (math.inf if fp <= 0 else x0 * room / fp)
-        checks.append(LimitCheck(level=lvl, limit=r.limit, ok=ok, binds=False, max_dose=mx, **base))
-    finite = [c.max_dose for c in checks if c.max_dose is not None and math.isfinite(c.max_dose)]
-    max_dose = min(finite) if finite else None
-    binding = None
-    if max_dose is not None:
-        checks = [
-            c if c.max_dose is None or not math.isfinite(c.max_dose) or c.max_dose > max_dose * (1 + 1e-9) + 1e-300
-            else _replace(c, binds=True)
-            for c in checks
-        ]
-        binding = next(c for c in checks if c.binds)
-    checks = [(_replace(c, max_dose=None) if c.max_dose is not None and not math.isfinite(c.max_dose) else c) for c in checks]
-    checks.sort(key=lambda c: (not c.binds, c.ok, -(c.level / c.limit if c.level is not None and c.limit else 0)))
-    max_fraction = None
-    if max_dose is not None and x0:
-        max_fraction = F * max_dose / x0
-    # per ingredient: the tightest limit on what it brings
-    per_ingredient = []
-    for comp in formula.components:
-        keys = {s[0] for s in comp.substances}
-        mine = [c for c in checks if c.max_dose is not None and any(names.get(k, ("", ""))[0] in c.members for k in keys)]
-        best = min(mine, key=lambda c: c.max_dose) if mine else None
-        per_ingredient.append({
-            "name": comp.name, "cas": comp.cas, "mass_fraction": comp.mass_fraction,
-            "max_dose": best.max_dose if best else None,
-            "binding_rule": best.rule if best else None,
-            "binding_substance": best.substance if best else None,
-            "no_data": any(d["substance"] in {names.get(k, ("",))[0] for k in keys} for d in no_data),
-        })
-    res = _residue_checks(cat, residues or {}, jur, fc.name, F, x0, stages)
-    cl = _claim_checks(cat, claims or (), stages, other, names)
+    res = _residue_checks(cat, residues or {}, jur, fc.name, F)
+    cl = _claim_checks(cat, claims or (), stages, other)
     ok = all(c.ok for c in checks) and all(r.ok is not False for r in res if not r.reference_only) and all(
         c.ok is not False for c in cl
     )
-    cautions = [
-        "Limits apply to the food as consumed and from all sources: add what other ingredients bring (--already).",
-        f"Jurisdiction {jur}, category '{fc.name}': the rules, sources and checked-on dates are listed with each limit; "
-        "rows marked 'secondary, verify' or 'from memory' are not confirmed against the official text.",
-    ]
-    if any(c.flagged for c in checks) or any(r.confidence != "checked" for r in res):
-        cautions.append("Some limits used here are unconfirmed (secondary source or recalled): verify them before relying on the result.")
-    if no_data:
-        cautions.append(
-            "No data for " + ", ".join(d["substance"] for d in no_data) + f" in {jur}: the tool found no rule, which is not a permission."
-        )
-    if res:
-        cautions.append(
-            "Residual solvents: measured residues come from headspace GC of the actual lot; limits differ by jurisdiction "
-            "and use, and a prediction never replaces the measurement."
-        )
-    if cl:
-        cautions.append("Claim rules are examples from tables/claims.csv: verify with your certifier.")
-    from .cautions import DEFER, solvent_cautions  # temporary: the dose job will assemble cautions
-
-    for comp in formula.components:
-        if comp.origin.startswith("solvents"):
-            try:
-                rec = cat.solvent(comp.name, library=False)
-            except Exception:
-                continue
-            cautions += [c for c in solvent_cautions(rec, use="carrier", cat=cat) if c != DEFER]
-    cautions.append(DEFER)
     return DoseCheck(
-        formula=formula, jurisdiction=jur, category=fc.name, steps=tuple(steps), stages=tuple(stages),
+        formula=formula, jurisdiction=jur, category=fc.name, steps=steps, stages=tuple(stages),
         other_sources_mg_per_kg=other, names=names, checks=tuple(checks), no_data=tuple(no_data),
         residues=tuple(res), claims=tuple(cl), max_dose=max_dose,
-        max_dose_unit=_MAX_UNIT.get(steps[0].how, steps[0].how), max_fraction_in_food=max_fraction,
-        binding=binding, per_ingredient=tuple(per_ingredient), ok=ok, complete=not no_data,
-        cautions=tuple(dict.fromkeys(cautions)), assumptions=tuple(assumptions),
+        max_dose_unit=_MAX_UNIT.get(steps[0].how, steps[0].how),
+        max_fraction_in_food=F * max_dose / x0 if max_dose is not None and x0 else None,
+        binding=binding, per_ingredient=tuple(_per_ingredient(formula, checks, names, no_data)), ok=ok,
+        complete=not no_data, assumptions=tuple(assumptions),
     )
 
 
@@ -1041,16 +1085,26 @@ def _replace(obj, **kw):
     return replace(obj, **kw)
 
 
-def _residue_checks(cat, residues: Mapping[str, float], jur: str, category: str, F: float, x0, stages) -> list[ResidueCheck]:
-    out: list[ResidueCheck] = []
+def _given_residues(cat, residues: Mapping[str, float]) -> dict[str, tuple[str, str, float]]:
+    """``{cas: (display name, cas, ppm)}`` of the measured residues (each must have a CAS number)."""
     given: dict[str, tuple[str, str, float]] = {}
     for n, ppm in residues.items():
         if ppm is None or not math.isfinite(float(ppm)) or float(ppm) < 0:
-            raise InputError(f"--residue: residue of '{n}' must be zero or more ppm, got {ppm}")
-        key, disp, cas = _resolve_substance(cat, n, "--residue")
+            raise InputError(f"the residue of '{n}' must be zero or more ppm, got {ppm}", param="residues", value=ppm,
+                             expected="zero or more ppm")
+        key, disp, cas = _resolve_substance(cat, n, "residues")
         if not cas:
-            raise InputError(f"--residue: '{n}' has no CAS number; residue rules are looked up by CAS")
+            raise InputError(f"'{n}' has no CAS number; residue rules are looked up by CAS", param="residues", value=n,
+                             expected="a solvent with a CAS number")
         given[cas] = (disp, cas, float(ppm))
+    return given
+
+
+def _residue_checks(cat, residues: Mapping[str, float], jur: str, category: str, F: float) -> list[ResidueCheck]:
+    """Each measured residue against its rules in ``jur`` (and ICH Q3C as a reference); ``F`` is the
+    mass fraction of the formula in the food as consumed."""
+    out: list[ResidueCheck] = []
+    given = _given_residues(cat, residues)
     for cas, (disp, _, ppm) in given.items():
         rows = [r for r in limits(cat, cas=cas, jurisdiction=jur, category=category, use="extraction")]
         ref = [r for r in limits(cat, cas=cas, jurisdiction="ICH") if r.status in ("class 1", "class 2", "class 3")]
@@ -1093,7 +1147,7 @@ def _residue_checks(cat, residues: Mapping[str, float], jur: str, category: str,
     return out
 
 
-def _claim_checks(cat, claims: Sequence[str], stages, other: Mapping[str, float], names) -> list[ClaimCheck]:
+def _claim_checks(cat, claims: Sequence[str], stages, other: Mapping[str, float]) -> list[ClaimCheck]:
     out = []
     first, last = stages[0], stages[-1]
     for claim in claims:
@@ -1119,7 +1173,8 @@ def _claim_checks(cat, claims: Sequence[str], stages, other: Mapping[str, float]
     return out
 
 
-def carrier_dose_check(cat, solvent_or_formula, dose, jurisdiction: str, category: str, chain=None, already=None) -> DoseCheck:
+def carrier_dose_check(cat, solvent_or_formula, steps: Sequence, jurisdiction: str, category: str,
+                       already: Mapping[str, float] | None = None) -> DoseCheck:
     """Check a carrier (or a blend, or a whole formula) at a dose, for ``rank`` and ``blend``.
 
     Parameters
@@ -1130,15 +1185,14 @@ def carrier_dose_check(cat, solvent_or_formula, dose, jurisdiction: str, categor
         ``{name: mass_fraction}`` or ``[(name, mass_fraction), ...]`` with
         fractions in 0..1 (the rest, if any, is unspecified), or a
         :class:`~solvsel.science.formulation.Formula`.
-    dose : str or float
-        Dose of the formula in the first stage: "0.15%", "1500ppm" or a mass
-        fraction (0.0015).
+    steps : sequence of solvsel.science.formulation.Step
+        The dilution chain, the first step carrying the dose (parse a dose and a
+        chain with :func:`solvsel.jobs.parse.parse_chain`).
     jurisdiction : {"EU", "US"}
     category : str
         Food category of the food as consumed (see ``solvsel table food_categories``).
-    chain : str, optional
-        Dilution chain (syntax in :mod:`solvsel.science.formulation`); the dose fills
-        its first step.
+    already : mapping, optional
+        What other ingredients already bring, ``{substance: mg/kg}``.
 
     Returns
     -------
@@ -1146,16 +1200,16 @@ def carrier_dose_check(cat, solvent_or_formula, dose, jurisdiction: str, categor
         ``.ok`` (every limit kept), ``.complete`` (no substance without data),
         ``.max_dose`` (in the unit of the dose, e.g. a mass fraction) and
         ``.binding`` (the limit that sets it), ``.checks`` (every limit with its
-        level), ``.cautions``.
+        level).
 
     Notes
     -----
     How ``rank`` and ``blend`` use it: for each candidate, call
-    ``carrier_dose_check(cat, candidate, args.dose, args.jurisdiction,
-    args.category)``; drop (or flag, with ``--keep-over``) a candidate whose
-    ``ok`` is false, show ``binding.rule`` and ``max_dose`` beside it, and flag
-    one whose ``complete`` is false ("no data": never a permission).  A
-    candidate that is a user's or library liquid without CAS gets ``no_data``.
+    ``carrier_dose_check(cat, candidate, steps, jurisdiction, category)``; drop
+    (or flag, with ``keep_over``) a candidate whose ``ok`` is false, show
+    ``binding.rule`` and ``max_dose`` beside it, and flag one whose
+    ``complete`` is false ("no data": never a permission).  A candidate that
+    is a user's or library liquid without CAS gets ``no_data``.
 
     Examples
     --------
@@ -1163,7 +1217,9 @@ def carrier_dose_check(cat, solvent_or_formula, dose, jurisdiction: str, categor
     group limit of 1 000 mg/L (Reg. (EC) No 1333/2008 Annex III Part 4) caps
     the dose at 1000 / (10^6 x 1.04) = 0.096 % for a drink of density 1.04.
 
-    >>> chk = carrier_dose_check(None, "propylene glycol", "0.05%", "EU", "flavoured drinks", chain="drink d=1.04")
+    >>> from solvsel.science.formulation import Step
+    >>> drink = [Step("drink", "w/w", 0.0005, density_g_cm3=1.04)]
+    >>> chk = carrier_dose_check(None, "propylene glycol", drink, "EU", "flavoured drinks")
     >>> round(chk.max_dose * 100, 4), chk.binding.unit
     (0.0962, 'mg/L')
     """
@@ -1179,4 +1235,4 @@ def carrier_dose_check(cat, solvent_or_formula, dose, jurisdiction: str, categor
     else:
         name = solvent_or_formula if isinstance(solvent_or_formula, str) else _get(solvent_or_formula, "name")
         formula = formula_from_amounts(cat, [(solvent_or_formula, 100.0)], name=str(name))
-    return check_dose(cat, formula, chain=chain, jurisdiction=jurisdiction, category=category, dose=dose, already=already)
+    return check_dose(cat, formula, steps, jurisdiction, category, already=already)

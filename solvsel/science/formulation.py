@@ -147,9 +147,7 @@ def _lookup(cat, name: str):
     for table in ("solutes", "weighting_agents", "emulsifiers"):
         try:
             row = cat.find(table, name)
-        except UnknownNameError:
-            continue
-        except Exception:  # a table not written yet
+        except (UnknownNameError, InputError):  # not in this table (or a table without names)
             continue
         dens = row.get("density_g_cm3")
         try:
@@ -165,7 +163,8 @@ def _ethanol_strength(name: str) -> float | None:
     return float(m.group(1)) / 100.0 if m else None
 
 
-def _component(cat, name, amount, given_cas=None, given_density=None, what="--formula") -> tuple:
+def _component(cat, name, given_cas=None, given_density=None, param="formula", path=None) -> tuple:
+    """(name, cas, density, origin, substances) of one ingredient given by name or as a record."""
     if not isinstance(name, str):
         # a catalog record (e.g. a user's or library liquid): take its own identity and density
         rec = name
@@ -174,17 +173,18 @@ def _component(cat, name, amount, given_cas=None, given_density=None, what="--fo
         if getattr(rec, "origin", "bundled") != "bundled":
             origin += f" ({rec.origin})"
         if not cname:
-            raise InputError(f"{what}: a component record without a name")
+            raise InputError("a component record without a name", param=param, path=path)
         record = rec
     else:
         try:
             cname, cas, dens, origin, record = _lookup(cat, name)
-        except UnknownNameError:
+        except UnknownNameError as exc:
             if not given_cas:
-                raise
+                raise UnknownNameError(exc.name, exc.kind, exc.suggestions, param=param) from None
             cname, cas, dens, origin, record = name, given_cas, None, "given", None
     if given_cas and cas and given_cas != cas:
-        raise InputError(f"{what}: '{name}' has CAS {cas} in the tables, but {given_cas} was given")
+        raise InputError(f"'{name}' has CAS {cas} in the tables, but {given_cas} was given", param=param,
+                         value=given_cas, expected=cas, path=path)
     cas = cas or (given_cas or "")
     if given_density is not None:
         dens, origin = given_density, origin + " (density given)"
@@ -194,10 +194,11 @@ def _component(cat, name, amount, given_cas=None, given_density=None, what="--fo
         # v/v strength -> mass fraction of ethanol: w = phi * rho_ethanol / rho_mixture (definition of v/v)
         try:
             rho_e = cat.solvent("ethanol", library=False).density_g_cm3
-        except Exception:
+        except UnknownNameError:  # a catalog without ethanol
             rho_e = None
         if rho_e is None or dens is None:
-            raise MissingDataError(f"{what}: '{cname}' needs the densities of ethanol and of the mixture to convert % v/v to mass")
+            raise MissingDataError(f"'{cname}' needs the densities of ethanol and of the mixture to convert % v/v to mass",
+                                   param=param, path=path)
         w_e = strength * rho_e / dens
         substances = ((_ETHANOL_CAS, "ethanol", w_e), (_WATER_CAS, "water", 1.0 - w_e))
     else:
@@ -212,12 +213,16 @@ def formula_from_amounts(
     name: str = "flavour",
     cas: dict | None = None,
     densities: dict | None = None,
-    what: str = "--formula",
+    param: str = "formula",
+    path: str | None = None,
 ) -> Formula:
     """A formula from ``[(name, percent), ...]`` by mass (default) or by volume.
 
     A name may also be a catalog record (a :class:`~solvsel.data.catalog.Solvent`),
     whose CAS and density are then used as they are.
+
+    An error names ``param`` (the request field the amounts came from) and
+    ``path`` (the file they were read from, if any).
 
     Percent amounts must not add up to more than 100; below 100 the rest is an
     unspecified component with no limits checked (and a note says so).  By
@@ -234,25 +239,29 @@ def formula_from_amounts(
     [0.9, 0.1]
     """
     if basis not in ("mass", "volume"):
-        raise InputError(f"{what}: basis must be 'mass' or 'volume', got '{basis}'")
+        raise InputError(f"the basis must be 'mass' or 'volume', got '{basis}'", param="by", value=basis,
+                         expected="mass or volume")
     if not amounts:
-        raise InputError(f"{what}: no components given")
+        raise InputError("no components given", param=param, path=path, expected="at least one component")
     cas = cas or {}
     densities = densities or {}
     total = 0.0
     for n, a in amounts:
         if a is None or not math.isfinite(a) or a < 0:
-            raise InputError(f"{what}: amount of '{n}' must be a percentage between 0 and 100, got {a}")
+            raise InputError(f"the amount of '{n}' must be a percentage between 0 and 100, got {a}", param=param,
+                             value=a, expected="a percentage between 0 and 100", path=path)
         total += a
     if total > 100.0 + 1e-6:
         raise InputError(
-            f"{what}: the amounts add up to {total:g} %, more than 100 %; give percentages of the whole formula"
+            f"the amounts add up to {total:g} %, more than 100 %; give percentages of the whole formula",
+            param=param, expected="percentages adding up to at most 100", path=path,
         )
     if total <= 0:
-        raise InputError(f"{what}: the amounts add up to zero")
+        raise InputError("the amounts add up to zero", param=param, expected="percentages adding up to more than 0",
+                         path=path)
     rows = []
     for n, a in amounts:
-        rows.append((_component(cat, n, a, cas.get(n), densities.get(n), what), a / 100.0))
+        rows.append((_component(cat, n, cas.get(n), densities.get(n), param, path), a / 100.0))
     notes = []
     if total < 100.0 - 1e-6:
         rest = (100.0 - total) / 100.0
@@ -262,8 +271,8 @@ def formula_from_amounts(
         missing = [r[0][0] for r in rows if r[0][2] is None]
         if missing:
             raise MissingDataError(
-                f"{what}: amounts by volume need the density of every component; none for: {', '.join(missing)} "
-                "(give it in a formula CSV column density_g_cm3)"
+                f"amounts by volume need the density of every component; none for: {', '.join(missing)} "
+                "(give it in a formula CSV column density_g_cm3)", param=param, path=path,
             )
         mass = [phi * comp[2] for comp, phi in rows]
         tot = sum(mass)
@@ -278,35 +287,37 @@ def formula_from_amounts(
     seen = set()
     for c in comps:
         if c.name in seen:
-            raise InputError(f"{what}: '{c.name}' is given twice")
+            raise InputError(f"'{c.name}' is given twice", param=param, value=c.name, path=path)
         seen.add(c.name)
     return Formula(name=name, components=comps, notes=tuple(notes))
 
 
-def formula_from_csv(cat, path, name: str | None = None) -> Formula:
+def formula_from_csv(cat, path, name: str | None = None, param: str = "formula") -> Formula:
     """A formula from a CSV file.
 
     Columns: ``name`` and one of ``mass_percent`` / ``volume_percent``
     (percent of the whole formula); optional ``cas`` (needed for a component
-    that is in none of the tables) and ``density_g_cm3``.
+    that is in none of the tables) and ``density_g_cm3``.  An error names ``param``
+    (the request field the file was given in), the file, and its row and column.
     """
     path = Path(path)
     if not path.is_file():
-        raise InputError(f"formula file '{path}' does not exist")
+        raise InputError(f"formula file '{path}' does not exist", param=param, value=str(path),
+                         expected="a CSV file with columns name and mass_percent (or volume_percent)")
     with open(path, newline="", encoding="utf-8-sig") as fh:
         reader = csv.DictReader(fh)
         header = [h.strip() for h in (reader.fieldnames or [])]
         rows = list(reader)
     if "name" not in header:
-        raise TableError(path, "missing column 'name' (component name)", row=1, column="name")
+        raise TableError(path, "missing column 'name' (component name)", row=1, column="name", param=param)
     basis_cols = [c for c in ("mass_percent", "volume_percent") if c in header]
     if len(basis_cols) != 1:
-        raise TableError(path, "expected exactly one of the columns 'mass_percent' or 'volume_percent'", row=1)
+        raise TableError(path, "expected exactly one of the columns 'mass_percent' or 'volume_percent'", row=1, param=param)
     col = basis_cols[0]
     known = {"name", "cas", "density_g_cm3", "mass_percent", "volume_percent", "note"}
     for h in header:
         if h not in known:
-            raise TableError(path, f"unknown column '{h}'; expected: {', '.join(sorted(known))}", row=1, column=h)
+            raise TableError(path, f"unknown column '{h}'; expected: {', '.join(sorted(known))}", row=1, column=h, param=param)
     amounts, cas, dens = [], {}, {}
     for i, r in enumerate(rows, start=2):
         r = {(k or "").strip(): (v or "").strip() for k, v in r.items()}
@@ -314,13 +325,13 @@ def formula_from_csv(cat, path, name: str | None = None) -> Formula:
             continue
         n = r.get("name", "")
         if not n:
-            raise TableError(path, "empty component name", row=i, column="name")
+            raise TableError(path, "empty component name", row=i, column="name", param=param)
         try:
             a = float(r.get(col, ""))
         except ValueError:
-            raise TableError(path, f"'{r.get(col, '')}' is not a number; expected a percentage 0-100", row=i, column=col) from None
+            raise TableError(path, f"'{r.get(col, '')}' is not a number; expected a percentage 0-100", row=i, column=col, param=param) from None
         if not (0 <= a <= 100):
-            raise TableError(path, f"{a:g} is out of range; expected a percentage 0-100", row=i, column=col)
+            raise TableError(path, f"{a:g} is out of range; expected a percentage 0-100", row=i, column=col, param=param)
         amounts.append((n, a))
         if r.get("cas"):
             cas[n] = r["cas"]
@@ -328,13 +339,13 @@ def formula_from_csv(cat, path, name: str | None = None) -> Formula:
             try:
                 d = float(r["density_g_cm3"])
             except ValueError:
-                raise TableError(path, f"'{r['density_g_cm3']}' is not a number", row=i, column="density_g_cm3") from None
+                raise TableError(path, f"'{r['density_g_cm3']}' is not a number", row=i, column="density_g_cm3", param=param) from None
             if not (0.3 <= d <= 2.5):
-                raise TableError(path, f"{d:g} is out of range; expected 0.3-2.5 g/cm3", row=i, column="density_g_cm3")
+                raise TableError(path, f"{d:g} is out of range; expected 0.3-2.5 g/cm3", row=i, column="density_g_cm3", param=param)
             dens[n] = d
     return formula_from_amounts(
         cat, amounts, basis="mass" if col == "mass_percent" else "volume", name=name or path.stem,
-        cas=cas, densities=dens, what=str(path),
+        cas=cas, densities=dens, param=param, path=str(path),
     )
 
 
@@ -417,20 +428,23 @@ def _step_fraction(step: Step, rho_prev: float | None, rho_this: float | None, p
             need.append(f"of '{step.name}' (d=)")
         if need:
             raise MissingDataError(
-                f"--chain: step '{step.name}' ({step.describe()}) is by volume and needs the density " + " and ".join(need)
+                f"step '{step.name}' ({step.describe()}) is by volume and needs the density " + " and ".join(need),
+                param="chain",
             )
         return step.amount * rho_prev / rho_this, rho_this, "given"
     if step.how == "g/L":
         if rho_this is None:
             raise MissingDataError(
-                f"--chain: step '{step.name}' ({step.describe()}) is per litre and needs the density of '{step.name}' (d=)"
+                f"step '{step.name}' ({step.describe()}) is per litre and needs the density of '{step.name}' (d=)",
+                param="chain",
             )
         return step.amount / (1000.0 * rho_this), rho_this, "given"
     # parts by volume
     a, b = step.amount
     if rho_prev is None:
         raise MissingDataError(
-            f"--chain: step '{step.name}' ({step.describe()}) is by volume and needs the density of '{prev_name}'"
+            f"step '{step.name}' ({step.describe()}) is by volume and needs the density of '{prev_name}'",
+            param="chain",
         )
     rho_dil = step.diluent_density_g_cm3 or WATER_DENSITY_25C
     f = a * rho_prev / (a * rho_prev + b * rho_dil)
@@ -457,7 +471,7 @@ def stage_levels(formula: Formula, steps: Sequence[Step], formula_density: float
     919.4
     """
     if not steps:
-        raise InputError("a dilution chain needs at least one step")
+        raise InputError("a dilution chain needs at least one step", param="chain", expected="at least one step")
     subs = formula.substance_fractions()
     rho0 = formula_density if formula_density is not None else formula.density_g_cm3
     stages = [
@@ -468,7 +482,8 @@ def stage_levels(formula: Formula, steps: Sequence[Step], formula_density: float
         prev = stages[-1]
         f, rho, basis = _step_fraction(step, prev.density_g_cm3, step.density_g_cm3, prev.name)
         if not (0 < f <= 1):
-            raise InputError(f"--chain: step '{step.name}' gives a fraction of {f:g} of the previous stage; expected 0-1")
+            raise InputError(f"step '{step.name}' gives a fraction of {f:g} of the previous stage; expected 0-1",
+                             param="chain", value=step.text or step.describe(), expected="a fraction from 0 to 1")
         stages.append(
             Stage(step.name, step, rho, basis, f, prev.fraction_of_formula * f,
                   {k: w * f for k, w in prev.mass_fractions.items()})
