@@ -94,3 +94,15 @@ def test_a_bad_request_names_the_field():
     with pytest.raises(InputError) as info:
         solvsel.miscible(liquids=("water", "ethanol"), temp_C=400)
     assert info.value.param == "temp_C"
+
+
+def test_the_entry_point_gives_the_same_json():
+    # one subprocess run of the installed program, the way a script calls it
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    exe = Path(sys.executable).with_name("solvsel")
+    argv = [str(exe)] if exe.exists() else [sys.executable, "-m", "solvsel"]
+    out = subprocess.run(argv + _argv(CASES[1]), capture_output=True, text=True, check=True)
+    assert _essentials(json.loads(out.stdout)) == _essentials(solvsel.miscible(**CASES[1]).to_dict())
