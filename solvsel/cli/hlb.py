@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from ..jobs.parse import parse_amounts, parse_names
+from ..jobs.parse import parse_amounts, parse_names, parse_range
 from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 
 
@@ -41,7 +41,8 @@ def register(sub):
     b.add_argument("--series", metavar="LOW,HIGH",
                    help="lay out a bench series with these two emulsifiers (low HLB first)")
     b.add_argument("--n", type=int, default=9, help="number of blends in the series (default 9)")
-    b.add_argument("--span", metavar="FROM:TO", help="HLB range of the series (default: the pair's full reach)")
+    b.add_argument("--span", metavar="FROM:TO",
+                   help="HLB range of the series; either end may be left out (default: the pair's full reach)")
     b.add_argument("--batch-g", type=float, default=100.0, metavar="G", help="batch size in g (default 100)")
     b.add_argument("--emulsifier-pct", type=float, default=5.0, metavar="PCT",
                    help="total emulsifier in each batch, %% w/w (default 5)")
@@ -55,128 +56,36 @@ def register(sub):
     return p
 
 
-def _float_pairs(text: str, what: str) -> list[tuple[float, float]]:
-    from ..errors import InputError
+#: Request fields whose option is not ``--`` + the field with dashes.
+OPTION_NAMES = {"jurisdictions": "--jurisdiction"}
 
-    out = []
-    for item in [i.strip() for i in (text or "").split(",") if i.strip()]:
-        if "=" not in item:
-            raise InputError(f"{what}: expected HLB=SCORE items separated by commas, got '{item}'")
-        a, _, b = item.partition("=")
-        try:
-            out.append((float(a), float(b)))
-        except ValueError:
-            raise InputError(f"{what}: '{item}' is not two numbers HLB=SCORE") from None
-    if not out:
-        raise InputError(f"{what}: expected HLB=SCORE items separated by commas")
-    return out
+
+def request_from_args(args):
+    """The :class:`~solvsel.jobs.hlb.HlbRequest` the options ask for."""
+    from ..jobs.hlb import HlbRequest
+
+    def given(text, parse, param, *extra):
+        return parse(text, param, *extra) if text else None
+
+    return HlbRequest(
+        oil=given(args.oil, parse_amounts, "oil"), rhlb=given(args.rhlb, parse_amounts, "rhlb"), target=args.target,
+        emulsifiers=given(args.emulsifiers, parse_names, "emulsifiers"), triples=args.triples, top=args.top,
+        min_fraction=args.min_fraction, jurisdictions=given(args.jurisdiction, parse_names, "jurisdictions"),
+        category=args.category, smiles=args.smiles, series=given(args.series, parse_names, "series"), n=args.n,
+        span=given(args.span, parse_range, "span", "HLB"), batch_g=args.batch_g, emulsifier_pct=args.emulsifier_pct,
+        oil_pct=args.oil_pct, scores=given(args.scores, parse_amounts, "scores"), lower_is_better=args.lower_is_better,
+    )
 
 
 def run(args) -> int:
-    from ..science import hlb as H
-    from ..errors import InputError
+    from ..jobs.hlb import hlb
 
-    cat = get_catalog(args)
-    out: dict = {}
-    cautions = list(H.HLB_CAUTIONS)
-    if args.smiles:
-        res = {}
-        try:
-            res["griffin"] = H.griffin_hlb_from_smiles(args.smiles).to_dict()
-        except InputError as exc:
-            res["griffin"] = {"error": str(exc)}
-        try:
-            res["davies"] = H.davies_hlb_from_smiles(args.smiles).to_dict()
-        except Exception as exc:  # a group Davies gave no number for
-            if not isinstance(exc, (InputError, LookupError)):
-                raise
-            res["davies"] = {"error": str(exc)}
-        out["structure"] = res
-    target = None
-    if args.oil and args.target is not None:
-        raise InputError("give --oil or --target, not both")
-    if args.oil:
-        overrides = dict(parse_amounts(args.rhlb, "rhlb")) if args.rhlb else None
-        phase = H.oil_phase_required_hlb(cat, parse_amounts(args.oil, "oil"), overrides)
-        target = phase.required_hlb
-        out["oil_phase"] = list(phase.components)
-        cautions = list(phase.cautions) + cautions
-    elif args.target is not None:
-        target = float(args.target)
-    if target is not None:
-        out["required_hlb"] = target
-        pool = (H.pool_from_catalog(cat, parse_names(args.emulsifiers, "emulsifiers")) if args.emulsifiers
-                else H.all_emulsifiers(cat))
-        pairs = H.emulsifier_systems(pool, target, 2, args.min_fraction)
-        out["pairs"] = [s.to_dict() for s in pairs[: max(args.top, 0)]]
-        if not pairs:
-            out["message"] = (f"no pair of the pool reaches HLB {target:.2f} with every emulsifier at "
-                              f"{args.min_fraction:.0%} or more (lower --min-fraction)")
-        if args.triples:
-            triples = H.emulsifier_systems(pool, target, 3, args.min_fraction)
-            out["triples"] = [s.to_dict() for s in triples[: max(args.top, 0)]]
-    if args.jurisdiction and (out.get("pairs") or out.get("triples")):
-        out["emulsifier_rules"] = _rules(cat, pool, out, args)
-    if args.series:
-        names = parse_names(args.series, "series")
-        if len(names) != 2:
-            raise InputError(f"--series: expected two emulsifiers LOW,HIGH, got {len(names)}")
-        low, high = H.pool_from_catalog(cat, names)
-        span = (None, None)
-        if args.span:
-            try:
-                a, _, b = args.span.partition(":")
-                span = (float(a), float(b))
-            except ValueError:
-                raise InputError(f"--span: expected FROM:TO as two HLB numbers, got '{args.span}'") from None
-        out["series"] = H.bench_series(low, high, args.n, span[0], span[1], args.batch_g, args.emulsifier_pct,
-                                       args.oil_pct).to_dict()
-    if args.scores:
-        pts = _float_pairs(args.scores, "--scores")
-        fit = H.fit_required_hlb([h for h, _ in pts], [s for _, s in pts], "low" if args.lower_is_better else "high")
-        out["fit"] = fit.to_dict()
-    if not out:
-        raise InputError("nothing to do: give --oil or --target (and --emulsifiers), --smiles, --series or --scores")
-    from ..rules.cautions import DEFER
-
-    out["cautions"] = cautions + [DEFER]
+    result = hlb(request_from_args(args), catalog=get_catalog(args))
     if args.json:
-        emit_json(out)
-        return 0
-    _print(out)
+        emit_json(result.to_dict())
+    else:
+        _print(result.to_dict())
     return 0
-
-
-def _rules(cat, pool, out: dict, args) -> list[dict]:
-    """Rules on record for each emulsifier shown; none on record is said, never taken as allowed."""
-    from ..rules.regulations import limits
-    from ..errors import InputError
-
-    jur = [j.strip().upper() for j in parse_names(args.jurisdiction, "jurisdiction")]
-    bad = [j for j in jur if j not in ("US", "EU")]
-    if bad:
-        raise InputError(f"--jurisdiction: expected US and/or EU, got '{bad[0]}'")
-    shown = []
-    for s in out.get("pairs", []) + out.get("triples", []):
-        for c in s["components"]:
-            if c["name"] not in shown:
-                shown.append(c["name"])
-    by_name = {e.name: e for e in pool}
-    rows = []
-    for name in shown:
-        e = by_name[name]
-        for j in jur:
-            found = limits(cat, cas=e.cas or None, substance=None if e.cas else name, jurisdiction=j,
-                           category=args.category, use="emulsifier")
-            if found:
-                for lim in found:
-                    rows.append({"emulsifier": name, "jurisdiction": j, "rule": lim.rule, "limit": lim.limit,
-                                 "unit": lim.unit, "status": lim.status, "text": lim.describe()})
-            else:
-                rows.append({"emulsifier": name, "jurisdiction": j, "rule": None, "limit": None, "unit": None,
-                             "status": "no data",
-                             "text": f"no rule on record for {name} in {j} {args.category}: not treated as allowed"})
-    return rows
 
 
 def _print(out: dict) -> None:

@@ -823,7 +823,7 @@ def design_beverage_emulsion(
     if not (0.0 < float(oil_in_concentrate) <= 1.0):
         raise OutOfRangeError(f"oil phase in the concentrate: expected a mass fraction above 0 and up to 1, got {oil_in_concentrate!r}")
     dens_over = {k.strip().lower(): float(v) for k, v in (oil_densities or {}).items()}
-    w = normalize_fractions([a for _, a in oil], what="--oil")
+    w = normalize_fractions([a for _, a in oil], param="oil")
     comps = tuple(_component(cat, n, float(wi), dens_over) for (n, _), wi in zip(oil, w))
     names = [c.name for c in comps]
     if len(set(names)) != len(names):

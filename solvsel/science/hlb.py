@@ -40,10 +40,9 @@ from typing import Iterable, Mapping, Sequence
 import numpy as np
 
 from ..data.catalog import number_or_none as _num
-from ..errors import InputError, MissingDataError, OutOfRangeError
+from ..errors import InputError, MissingDataError, OutOfRangeError, UnknownNameError
 
 __all__ = [
-    "HLB_CAUTIONS",
     "DAVIES_GROUPS",
     "Emulsifier",
     "GriffinResult",
@@ -74,16 +73,6 @@ __all__ = [
     "all_emulsifiers",
     "oil_phase_required_hlb",
 ]
-
-#: Cautions every HLB result carries (common practice; see the module docstring).
-HLB_CAUTIONS = (
-    "HLB is a starting point for bench work: it ignores temperature, salt, oil chemistry, "
-    "concentration and the emulsifiers' chemical family; confirm the required HLB with a bench series.",
-    "Ethoxylated emulsifiers (polysorbates) lose their balance near their cloud point: hot filling "
-    "or warm storage can break an emulsion that was stable at room temperature.",
-    "Emulsifier use in the finished food or drink is limited by law and differs by jurisdiction: "
-    "check the regulations in force for the product category and country of sale.",
-)
 
 _MASS_OH = 17.007  # [g/mol] an OH group: a cut ester or ether gives back the free acid or alcohol
 
@@ -140,7 +129,7 @@ def emulsifier_from_row(row: Mapping) -> Emulsifier:
 def _check_fraction_pct(value, name: str) -> float:
     x = _num(value)
     if x is None or not (0.0 <= x <= 100.0):
-        raise OutOfRangeError(f"{name}: expected a weight percent between 0 and 100, got {value!r}")
+        raise OutOfRangeError(f"expected a weight percent between 0 and 100, got {value!r}", param=name, value=value)
     return x
 
 
@@ -172,10 +161,12 @@ def griffin_hlb(hydrophilic_mass: float, molar_mass: float) -> float:
     """
     mh, m = _num(hydrophilic_mass), _num(molar_mass)
     if m is None or m <= 0:
-        raise OutOfRangeError(f"molar_mass: expected a positive number in g/mol, got {molar_mass!r}")
+        raise OutOfRangeError(f"expected a positive number in g/mol, got {molar_mass!r}", param="molar_mass",
+                              value=molar_mass)
     if mh is None or not (0 <= mh <= m):
         raise OutOfRangeError(
-            f"hydrophilic_mass: expected a number between 0 and the molar mass {m:g} g/mol, got {hydrophilic_mass!r}"
+            f"expected a number between 0 and the molar mass {m:g} g/mol, got {hydrophilic_mass!r}",
+            param="hydrophilic_mass", value=hydrophilic_mass,
         )
     return 20.0 * mh / m
 
@@ -220,7 +211,8 @@ def griffin_hlb_polyol_ester(e_wt_pct: float, p_wt_pct: float) -> float:
     e = _check_fraction_pct(e_wt_pct, "e_wt_pct")
     p = _check_fraction_pct(p_wt_pct, "p_wt_pct")
     if e + p > 100.0 + 1e-9:
-        raise OutOfRangeError(f"e_wt_pct + p_wt_pct = {e + p:g} %: the two contents cannot exceed 100 %")
+        raise OutOfRangeError(f"E + P = {e + p:g} %: the two contents cannot exceed 100 %",
+                              param="p_wt_pct", value=p_wt_pct)
     return round((e + p) / 5.0, 10)
 
 
@@ -247,11 +239,12 @@ def griffin_hlb_saponification(sap_value: float, acid_value: float) -> float:
     """
     s, a = _num(sap_value), _num(acid_value)
     if a is None or a <= 0:
-        raise OutOfRangeError(f"acid_value: expected a positive acid number in mg KOH/g, got {acid_value!r}")
+        raise OutOfRangeError(f"expected a positive acid number in mg KOH/g, got {acid_value!r}", param="acid_value",
+                              value=acid_value)
     if s is None or not (0 < s <= a):
         raise OutOfRangeError(
-            f"sap_value: expected a saponification number between 0 and the acid number {a:g} mg KOH/g, "
-            f"got {sap_value!r}"
+            f"expected a saponification number between 0 and the acid number {a:g} mg KOH/g, got {sap_value!r}",
+            param="sap_value", value=sap_value,
         )
     return 20.0 * (1.0 - s / a)
 
@@ -271,15 +264,15 @@ class GriffinResult:
         return asdict(self)
 
 
-def _mol(smiles: str, what: str = "smiles"):
+def _mol(smiles: str, param: str = "smiles"):
     from rdkit import Chem, RDLogger
 
     RDLogger.DisableLog("rdApp.*")
     if not isinstance(smiles, str) or not smiles.strip():
-        raise InputError(f"{what}: expected a SMILES string, got {smiles!r}")
+        raise InputError(f"expected a SMILES string, got {smiles!r}", param=param, value=smiles)
     mol = Chem.MolFromSmiles(smiles.strip())
     if mol is None:
-        raise InputError(f"{what}: '{smiles}' is not a valid SMILES string")
+        raise InputError(f"'{smiles}' is not a valid SMILES string", param=param, value=smiles)
     return mol
 
 
@@ -383,10 +376,12 @@ def griffin_hlb_from_smiles(smiles: str) -> GriffinResult:
     if any(a.GetFormalCharge() != 0 for a in mol.GetAtoms()):
         raise InputError(
             f"'{smiles}' is charged: Griffin's formula applies to nonionic emulsifiers; "
-            "use Davies' group numbers (davies_hlb_from_smiles) for ionic ones"
+            "use Davies' group numbers (davies_hlb_from_smiles) for ionic ones",
+            param="smiles", value=smiles,
         )
     if len(Chem.GetMolFrags(mol)) != 1:
-        raise InputError(f"'{smiles}': expected one molecule, got several dot-separated parts")
+        raise InputError(f"'{smiles}': expected one molecule, got several dot-separated parts",
+                         param="smiles", value=smiles)
     m = MolWt(mol)
     lipo_mass = 0.0
     parts = []
@@ -407,11 +402,13 @@ def griffin_hlb_from_smiles(smiles: str) -> GriffinResult:
     if not parts:
         raise InputError(
             f"'{smiles}': no fatty chain (six or more carbons joined to the rest through an ester or ether "
-            "oxygen) was found, so Griffin's structure formula does not apply"
+            "oxygen) was found, so Griffin's structure formula does not apply",
+            param="smiles", value=smiles,
         )
     mh = m - lipo_mass
     if mh <= 0:
-        raise InputError(f"'{smiles}': no hydrophilic part is left once the fatty chains are taken off")
+        raise InputError(f"'{smiles}': no hydrophilic part is left once the fatty chains are taken off",
+                         param="smiles", value=smiles)
     return GriffinResult(
         smiles=smiles, hlb=griffin_hlb(mh, m), molar_mass=m, hydrophilic_mass=mh, lipophilic_parts=tuple(parts)
     )
@@ -462,10 +459,12 @@ def davies_hlb(groups: Mapping[str, float]) -> float:
     total = 7.0
     for key, n in groups.items():
         if key not in DAVIES_GROUPS:
-            raise InputError(f"unknown Davies group '{key}'; known groups: {', '.join(DAVIES_GROUPS)}")
+            raise InputError(f"unknown Davies group '{key}'; known groups: {', '.join(DAVIES_GROUPS)}",
+                             param="groups", value=key)
         count = _num(n)
         if count is None or count < 0:
-            raise InputError(f"count of Davies group '{key}' must be zero or positive, got {n!r}")
+            raise InputError(f"count of Davies group '{key}' must be zero or positive, got {n!r}",
+                             param="groups", value=key)
         total += count * DAVIES_GROUPS[key]
     return total
 
@@ -498,7 +497,8 @@ def davies_groups_from_smiles(smiles: str) -> dict[str, int]:
     patt = Chem.MolFromSmarts
     for m in mol.GetSubstructMatches(patt("[#6][OX2]S(=O)(=O)[OX1-]")):
         if "Na" not in cations:
-            raise MissingDataError(f"'{smiles}': Davies gave a sulfate group number for the sodium salt only")
+            raise MissingDataError(f"'{smiles}': Davies gave a sulfate group number for the sodium salt only",
+                                   param="smiles", value=smiles)
         add("sulfate_na")
         used.update(m[1:])
     for m in mol.GetSubstructMatches(patt("[CX3](=O)[OX1-]")):
@@ -507,7 +507,8 @@ def davies_groups_from_smiles(smiles: str) -> dict[str, int]:
         elif "Na" in cations:
             add("carboxylate_na")
         else:
-            raise MissingDataError(f"'{smiles}': Davies gave carboxylate numbers for sodium and potassium salts only")
+            raise MissingDataError(f"'{smiles}': Davies gave carboxylate numbers for sodium and potassium salts only",
+                                   param="smiles", value=smiles)
         used.update(m)
     for m in mol.GetSubstructMatches(patt("[CX3](=O)[OX2H1]")):
         add("carboxylic_acid")
@@ -528,7 +529,8 @@ def davies_groups_from_smiles(smiles: str) -> dict[str, int]:
             continue
         if sym == "C":
             if a.GetIsAromatic():
-                raise MissingDataError(f"'{smiles}': Davies gave no group number for aromatic rings")
+                raise MissingDataError(f"'{smiles}': Davies gave no group number for aromatic rings",
+                                       param="smiles", value=smiles)
             if i not in eo_carbons:
                 add("ch")
         elif sym == "O":
@@ -541,11 +543,13 @@ def davies_groups_from_smiles(smiles: str) -> dict[str, int]:
                 else:
                     add("ether")
             else:
-                raise MissingDataError(f"'{smiles}': Davies gave no group number for the oxygen at atom {i}")
+                raise MissingDataError(f"'{smiles}': Davies gave no group number for the oxygen at atom {i}",
+                                       param="smiles", value=smiles)
         elif sym == "N" and a.GetFormalCharge() == 0 and a.GetDegree() == 3 and a.GetTotalNumHs() == 0:
             add("tertiary_amine")
         else:
-            raise MissingDataError(f"'{smiles}': Davies gave no group number for the {sym} atom at position {i}")
+            raise MissingDataError(f"'{smiles}': Davies gave no group number for the {sym} atom at position {i}",
+                                   param="smiles", value=smiles)
     return counts
 
 
@@ -580,23 +584,28 @@ def davies_hlb_from_smiles(smiles: str) -> DaviesResult:
 # ----------------------------------------------------------------------------- blends
 
 
-def normalize_fractions(amounts: Sequence[float], what: str = "fractions") -> np.ndarray:
+def normalize_fractions(amounts: Sequence[float], param: str = "fractions") -> np.ndarray:
     """Mass fractions from amounts given as fractions (sum 1) or percent (sum 100).
 
     Any other sum is refused (a typo is likelier than a meaning), with the sum
-    in the message.
+    in the message; ``param`` names the input in the error.
+
+    >>> normalize_fractions([70, 30]).tolist()
+    [0.7, 0.3]
     """
     x = np.asarray([_num(v) if _num(v) is not None else np.nan for v in amounts], dtype=float)
+    expected = "fractions that sum to 1 or percentages that sum to 100"
     if x.size == 0:
-        raise InputError(f"{what}: expected at least one amount")
+        raise InputError("expected at least one amount", param=param, expected=expected)
     if not np.all(np.isfinite(x)) or np.any(x < 0):
-        raise InputError(f"{what}: amounts must be numbers of zero or more, got {list(amounts)}")
+        raise InputError(f"amounts must be numbers of zero or more, got {list(amounts)}", param=param,
+                         value=list(amounts), expected=expected)
     s = float(x.sum())
     if abs(s - 1.0) <= 5e-3:
         return x / s
     if abs(s - 100.0) <= 0.5:
         return x / s
-    raise InputError(f"{what}: amounts sum to {s:g}; give fractions that sum to 1 or percentages that sum to 100")
+    raise InputError(f"amounts sum to {s:g}; give {expected}", param=param, value=list(amounts), expected=expected)
 
 
 def blend_hlb(hlbs: Sequence[float], fractions: Sequence[float]) -> float:
@@ -623,9 +632,9 @@ def blend_hlb(hlbs: Sequence[float], fractions: Sequence[float]) -> float:
     h = np.asarray(hlbs, dtype=float)
     w = normalize_fractions(fractions)
     if h.shape != w.shape:
-        raise InputError(f"blend_hlb: {h.size} HLB values but {w.size} fractions")
+        raise InputError(f"{h.size} HLB values but {w.size} fractions", param="fractions")
     if not np.all(np.isfinite(h)):
-        raise MissingDataError("blend_hlb: every emulsifier needs an HLB value")
+        raise MissingDataError("every emulsifier needs an HLB value", param="hlbs")
     return float(h @ w)
 
 
@@ -663,14 +672,15 @@ def required_hlb(components: Sequence[tuple[str, float, float | None]], basis: S
     12.2
     """
     if not components:
-        raise InputError("required_hlb: the oil phase has no components")
+        raise InputError("the oil phase has no components", param="oil")
     names = [c[0] for c in components]
-    w = normalize_fractions([c[1] for c in components], what="oil phase")
+    w = normalize_fractions([c[1] for c in components], param="oil")
     missing = [n for n, c in zip(names, components) if _num(c[2]) is None]
     if missing:
         raise MissingDataError(
             f"no required HLB on record for {', '.join(repr(m) for m in missing)}: give one "
-            "(e.g. --rhlb 'NAME=12') or measure it with a bench series"
+            "(NAME=HLB, e.g. 'lemon oil=14') or measure it with a bench series",
+            param="rhlb", value=", ".join(missing), expected="a required HLB for each oil",
         )
     r = np.array([float(c[2]) for c in components])
     basis = list(basis) if basis is not None else ["given"] * len(components)
@@ -712,7 +722,8 @@ def required_hlb_vaughan_rice(delta_total_mpa05: float) -> float:
     """
     d = _num(delta_total_mpa05)
     if d is None or not (10.0 <= d <= 40.0):
-        raise OutOfRangeError(f"delta_total_mpa05: expected a solubility parameter of 10-40 MPa^0.5, got {delta_total_mpa05!r}")
+        raise OutOfRangeError(f"expected a solubility parameter of 10-40 MPa^0.5, got {delta_total_mpa05!r}",
+                              param="delta_total_mpa05", value=delta_total_mpa05)
     delta_cal = d / 2.0455
     return ((delta_cal + 7.0) / 8.0) ** 4
 
@@ -720,15 +731,17 @@ def required_hlb_vaughan_rice(delta_total_mpa05: float) -> float:
 # ----------------------------------------------------------------------------- systems
 
 
-def _usable(e: Emulsifier) -> float:
+def _usable(e: Emulsifier, param: str = "emulsifiers") -> float:
     if e.is_biopolymer:
         ratio = f"; it is used at about {e.use_ratio_to_oil:g} g per g of oil instead" if e.use_ratio_to_oil else ""
         raise InputError(
             f"'{e.name}' is a {e.ionic_type}: HLB does not describe it, so it cannot be part of an HLB blend{ratio}. "
-            "Leave it out of the HLB pool (it may still carry the emulsion on its own)."
+            "Leave it out of the HLB pool (it may still carry the emulsion on its own).",
+            param=param, value=e.name, expected="emulsifiers with an HLB",
         )
     if e.hlb is None:
-        raise MissingDataError(f"no HLB on record for '{e.name}': measure it in a bench series or give its value")
+        raise MissingDataError(f"no HLB on record for '{e.name}': measure it in a bench series or give its value",
+                               param=param, value=e.name)
     return float(e.hlb)
 
 
@@ -748,7 +761,8 @@ def pair_fractions(hlb_a: float, hlb_b: float, target: float) -> tuple[float, fl
     a, b, t = float(hlb_a), float(hlb_b), float(target)
     lo, hi = min(a, b), max(a, b)
     if not (lo - 1e-12 <= t <= hi + 1e-12):
-        raise OutOfRangeError(f"target HLB {t:g} is outside what this pair can reach ({lo:g} to {hi:g})")
+        raise OutOfRangeError(f"target HLB {t:g} is outside what this pair can reach ({lo:g} to {hi:g})",
+                              param="target", value=t)
     if a == b:
         return 1.0, 0.0
     wa = (t - b) / (a - b)
@@ -854,19 +868,21 @@ def emulsifier_systems(pool: Sequence[Emulsifier], target: float, size: int = 2,
     (('polysorbate 80', 'sorbitan monooleate'), [0.72, 0.28])
     """
     if size not in (2, 3):
-        raise InputError(f"size: expected 2 (pairs) or 3 (triples), got {size!r}")
+        raise InputError(f"expected 2 (pairs) or 3 (triples), got {size!r}", param="size", value=size)
     t = _num(target)
     if t is None or not (0 <= t <= 40):
-        raise OutOfRangeError(f"target HLB: expected a number between 0 and 40, got {target!r}")
+        raise OutOfRangeError(f"expected a target HLB between 0 and 40, got {target!r}", param="target", value=target)
     hl = [_usable(e) for e in pool]
     if len(pool) < size:
-        raise InputError(f"need at least {size} emulsifiers with an HLB in the pool, got {len(pool)}")
+        raise InputError(f"need at least {size} emulsifiers with an HLB in the pool, got {len(pool)}",
+                         param="emulsifiers", expected=f"at least {size} emulsifiers")
     lo, hi = min(hl), max(hl)
     if not (lo <= t <= hi):
         raise OutOfRangeError(
             f"target HLB {t:g} is outside what the pool can reach ({lo:g} to {hi:g}, "
             f"from '{pool[hl.index(lo)].name}' to '{pool[hl.index(hi)].name}'): add an emulsifier "
-            f"{'below' if t < lo else 'above'} {t:g}"
+            f"{'below' if t < lo else 'above'} {t:g}",
+            param="emulsifiers", value=t,
         )
     out = []
     for idx in itertools.combinations(range(len(pool)), size):
@@ -957,20 +973,23 @@ def bench_series(
     >>> [round(b.hlb, 2) for b in s.blends][:3], round(s.blends[4].fraction_high, 2)
     ([5.37, 6.44, 7.51], 0.5)
     """
-    hl, hh = _usable(low), _usable(high)
+    hl, hh = _usable(low, "series"), _usable(high, "series")
     if hl >= hh:
-        raise InputError(f"'{low.name}' (HLB {hl:g}) must have a lower HLB than '{high.name}' (HLB {hh:g})")
+        raise InputError(f"'{low.name}' (HLB {hl:g}) must have a lower HLB than '{high.name}' (HLB {hh:g})",
+                         param="series", expected="the low-HLB emulsifier first")
     if not isinstance(n, (int, np.integer)) or n < 2 or n > 50:
-        raise InputError(f"n: expected a whole number of blends from 2 to 50, got {n!r}")
+        raise InputError(f"expected a whole number of blends from 2 to 50, got {n!r}", param="n", value=n)
     a = hl if hlb_from is None else float(hlb_from)
     b = hh if hlb_to is None else float(hlb_to)
     if not (hl <= a < b <= hh):
-        raise OutOfRangeError(f"HLB range {a:g}-{b:g} must lie within the pair's reach {hl:g}-{hh:g}, low end first")
+        raise OutOfRangeError(f"HLB range {a:g}-{b:g} must lie within the pair's reach {hl:g}-{hh:g}, low end first",
+                              param="span", value=(a, b), expected=f"a range within {hl:g}-{hh:g}")
     for v, nm in ((batch_g, "batch_g"), (emulsifier_wt_pct, "emulsifier_wt_pct"), (oil_wt_pct, "oil_wt_pct")):
         if _num(v) is None or v <= 0:
-            raise InputError(f"{nm}: expected a positive number, got {v!r}")
+            raise InputError(f"expected a positive number, got {v!r}", param=nm, value=v)
     if emulsifier_wt_pct + oil_wt_pct >= 100:
-        raise InputError(f"emulsifier ({emulsifier_wt_pct:g} %) plus oil ({oil_wt_pct:g} %) leave no water phase")
+        raise InputError(f"emulsifier ({emulsifier_wt_pct:g} %) plus oil ({oil_wt_pct:g} %) leave no water phase",
+                         param="oil_wt_pct", value=oil_wt_pct)
     blends = []
     g_em = batch_g * emulsifier_wt_pct / 100.0
     g_oil = batch_g * oil_wt_pct / 100.0
@@ -993,6 +1012,24 @@ class RequiredHLBFit:
 
     def to_dict(self) -> dict:
         return asdict(self)
+
+
+def _vertex_interval(design: np.ndarray, s: np.ndarray, coef: np.ndarray, vertex: float) -> tuple[float, float] | None:
+    """95 % interval of a fitted parabola's vertex by the delta method (t quantile on n - 3
+    degrees of freedom); None when there are as many blends as parameters."""
+    dof = design.shape[0] - 3
+    if dof <= 0:
+        return None
+    from scipy.stats import t as student_t
+
+    _, c1, c2 = coef
+    resid = s - design @ coef
+    sigma2 = float(resid @ resid) / dof
+    cov = sigma2 * np.linalg.pinv(design.T @ design)
+    grad = np.array([0.0, -1.0 / (2 * c2), c1 / (2 * c2 * c2)])
+    se = math.sqrt(max(float(grad @ cov @ grad), 0.0))
+    q = float(student_t.ppf(0.975, dof))
+    return (vertex - q * se, vertex + q * se)
 
 
 def fit_required_hlb(hlbs: Sequence[float], scores: Sequence[float], better: str = "high") -> RequiredHLBFit:
@@ -1029,15 +1066,16 @@ def fit_required_hlb(hlbs: Sequence[float], scores: Sequence[float], better: str
     (True, 10.2)
     """
     if better not in ("high", "low"):
-        raise InputError(f"better: expected 'high' or 'low', got {better!r}")
+        raise InputError(f"expected 'high' or 'low', got {better!r}", param="better", value=better)
     h = np.asarray(hlbs, dtype=float)
     s = np.asarray(scores, dtype=float)
     if h.shape != s.shape or h.ndim != 1:
-        raise InputError(f"{h.size} HLB values but {s.size} scores: give one score per blend")
+        raise InputError(f"{h.size} HLB values but {s.size} scores: give one score per blend", param="scores")
     if not (np.all(np.isfinite(h)) and np.all(np.isfinite(s))):
-        raise InputError("HLB values and scores must be numbers")
+        raise InputError("HLB values and scores must be numbers", param="scores")
     if h.size < 4 or np.unique(h).size < 4:
-        raise InputError(f"need at least 4 blends at different HLB to fit a required HLB, got {np.unique(h).size}")
+        raise InputError(f"need at least 4 blends at different HLB to fit a required HLB, got {np.unique(h).size}",
+                         param="scores", expected="scores of at least 4 blends at different HLB")
     if better == "low":
         s = -s
     best = float(h[int(np.argmax(s))])
@@ -1057,18 +1095,7 @@ def fit_required_hlb(hlbs: Sequence[float], scores: Sequence[float], better: str
         )
     vertex = -c1 / (2 * c2)
     rhlb = float(vertex + hc)
-    dof = h.size - 3
-    resid = s - design @ coef
-    interval = None
-    if dof > 0:
-        from scipy.stats import t as student_t
-
-        sigma2 = float(resid @ resid) / dof
-        cov = sigma2 * np.linalg.pinv(design.T @ design)
-        grad = np.array([0.0, -1.0 / (2 * c2), c1 / (2 * c2 * c2)])
-        se = math.sqrt(max(float(grad @ cov @ grad), 0.0))
-        q = float(student_t.ppf(0.975, dof))
-        interval = (rhlb - q * se, rhlb + q * se)
+    interval = _vertex_interval(design, s, coef, rhlb)
     if not (lo <= rhlb <= hi):
         edge = "higher" if rhlb > hi else "lower"
         return RequiredHLBFit(
@@ -1085,14 +1112,25 @@ def fit_required_hlb(hlbs: Sequence[float], scores: Sequence[float], better: str
 # ----------------------------------------------------------------------------- catalog edge
 
 
-def pool_from_catalog(cat, names: Sequence[str]) -> list[Emulsifier]:
-    """The emulsifiers named (forgiving lookup in ``tables/emulsifiers.csv``), in the order given."""
+def _find(cat, table: str, name: str, param: str) -> dict:
+    """The row of ``table`` named ``name``; an unknown name is an error about ``param``."""
+    try:
+        return cat.find(table, name)
+    except UnknownNameError as exc:
+        raise UnknownNameError(exc.name, exc.kind, exc.suggestions, param=param) from None
+
+
+def pool_from_catalog(cat, names: Sequence[str], param: str = "emulsifiers") -> list[Emulsifier]:
+    """The emulsifiers named (forgiving lookup in ``tables/emulsifiers.csv``), in the order given.
+
+    ``param`` names the input in an error (an unknown name, one named twice).
+    """
     out = []
     seen = set()
     for n in names:
-        row = cat.find("emulsifiers", n)
+        row = _find(cat, "emulsifiers", n, param)
         if row["name"] in seen:
-            raise InputError(f"--emulsifiers: '{n}' names '{row['name']}' a second time")
+            raise InputError(f"'{n}' names '{row['name']}' a second time", param=param, value=n)
         seen.add(row["name"])
         out.append(emulsifier_from_row(row))
     return out
@@ -1109,10 +1147,8 @@ def all_emulsifiers(cat) -> list[Emulsifier]:
             if e.ionic_type in ("nonionic", "zwitterionic") and e.hlb is not None]
 
 
-def _oil_row(cat, name: str) -> tuple[str, dict]:
+def _oil_row(cat, name: str, param: str = "oil") -> tuple[str, dict]:
     """(table, row) of an oil-phase ingredient: oils first, then weighting agents."""
-    from ..errors import UnknownNameError
-
     try:
         return "oils", cat.find("oils", name)
     except UnknownNameError as first:
@@ -1120,7 +1156,7 @@ def _oil_row(cat, name: str) -> tuple[str, dict]:
             return "weighting_agents", cat.find("weighting_agents", name)
         except UnknownNameError:
             raise UnknownNameError(name, "oil-phase ingredient (tables/oils.csv or tables/weighting_agents.csv)",
-                                   first.suggestions) from None
+                                   first.suggestions, param=param) from None
 
 
 def oil_phase_required_hlb(cat, amounts: Sequence[tuple[str, float]], overrides: Mapping[str, float] | None = None) -> OilPhaseHLB:

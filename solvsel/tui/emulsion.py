@@ -228,7 +228,7 @@ class EmulsionScreen(BenchScreen):
             cautions += list(self.design.cautions)
         if self.hlb_result is not None:
             cautions += list(self.hlb_result.cautions)
-        from ..science import hlb as H
+        from ..jobs.hlb import HLB_CAUTIONS
 
-        cautions += list(getattr(H, "HLB_CAUTIONS", ()))
+        cautions += list(HLB_CAUTIONS)
         self.query_one("#em-cautions", CautionBox).show(cautions)
