@@ -161,44 +161,31 @@ class BrailleMap(Widget):
         pad_y = 0.04 * (y1 - y0 or 1.0)
         return x0 - pad_x, x1 + pad_x, y0 - pad_y, y1 + pad_y
 
-    def render(self) -> Text:
-        d = self.data
-        width, height = self.size.width, self.size.height
-        if d is None or width < 20 or height < 6:
-            return Text("(no map)")
-        left, bottom = 6, 2
-        cw, ch = width - left - 1, height - bottom
-        pw, ph = cw * 2, ch * 4
+    def _frame(self, d: MapData, pw: int, ph: int) -> tuple[float, float, float, float, float]:
+        """(x0, x1, y0, y1, scale): the window drawn, with equal units on both axes (a braille
+        dot is about square, so circles stay round), the data centred in the spare room."""
         x0, x1, y0, y1 = self._bounds(d)
-        # equal units on both axes (a braille dot is about square), so circles stay round
         scale = min(pw / (x1 - x0), ph / (y1 - y0))
-        # centre the data in the spare room of the longer axis
-        spare_x = pw / scale - (x1 - x0)
-        spare_y = ph / scale - (y1 - y0)
-        x0 -= spare_x / 2
-        y0 -= spare_y / 2
-        x1 = x0 + pw / scale
-        y1 = y0 + ph / scale
+        x0 -= (pw / scale - (x1 - x0)) / 2
+        y0 -= (ph / scale - (y1 - y0)) / 2
+        return x0, x0 + pw / scale, y0, y0 + ph / scale, scale
 
-        self._cell_labels: dict[tuple[int, int], str] = {}
-        self._left = left
+    def _plot(self, d: MapData, cw: int, ch: int, frame) -> tuple[list, list, dict]:
+        """Braille bits, the kind of each cell and the marks (characters drawn in a cell)."""
+        x0, _, _, y1, scale = frame
+        pw, ph = cw * 2, ch * 4
         bits = [[0] * cw for _ in range(ch)]
         kinds = [[""] * cw for _ in range(ch)]
         marks: dict[tuple[int, int], tuple[str, str]] = {}
 
         def pix(x, y):
-            px = int((x - x0) * scale)
-            py = int((y1 - y) * scale)
-            return px, py
+            return int((x - x0) * scale), int((y1 - y) * scale)
 
         def dot(px, py, kind):
             if 0 <= px < pw and 0 <= py < ph:
                 r, c = py // 4, px // 2
                 bits[r][c] |= _DOT[py % 4][px % 2]
-                if kinds[r][c] != "liquid":
-                    kinds[r][c] = kinds[r][c] or kind
-                else:
-                    kinds[r][c] = kind
+                kinds[r][c] = kind if kinds[r][c] == "liquid" else (kinds[r][c] or kind)
 
         if d.circle:
             cx, cy, r = d.circle
@@ -208,23 +195,52 @@ class BrailleMap(Widget):
                 dot(*pix(cx + r * math.cos(a), cy + r * math.sin(a)), "circle")
         for p in d.points:
             px, py = pix(p.x, p.y)
-            if 0 <= px < pw and 0 <= py < ph and p.label:
+            inside = 0 <= px < pw and 0 <= py < ph
+            if inside and p.label:
                 key = (py // 4, px // 2)
                 old = self._cell_labels.get(key)
                 self._cell_labels[key] = p.label if not old or p.label in old else f"{old}, {p.label}"
             if p.kind == "liquid":
-                dot(px, py, "liquid")
-                dot(px + 1, py, "liquid")
-                dot(px, py + 1, "liquid")
-                dot(px + 1, py + 1, "liquid")
-            elif 0 <= px < pw and 0 <= py < ph:
+                for ddx, ddy in ((0, 0), (1, 0), (0, 1), (1, 1)):
+                    dot(px + ddx, py + ddy, "liquid")
+            elif inside:
                 r, c = py // 4, px // 2
                 for dc in (0, 1, -1, 2, -2):  # two marks on one cell: the later one moves aside
                     if (r, c + dc) not in marks and 0 <= c + dc < cw:
                         marks[(r, c + dc)] = (p.mark or ("+" if p.kind == "target" else "*"), p.kind)
                         break
+        return bits, kinds, marks
 
-        # y ticks every 'step' units, x ticks likewise
+    def _x_axis(self, out: Text, left: int, cw: int, frame) -> None:
+        x0, x1, _, _, scale = frame
+        axis = [" "] * cw
+        labels = [" "] * (cw + 8)
+        xstep = _nice_step((x1 - x0) / max(2, cw // 10))
+        v = math.ceil(x0 / xstep) * xstep
+        while v <= x1:
+            col = int((v - x0) * scale) // 2
+            if 0 <= col < cw:
+                axis[col] = "┬"
+                for i, chr_ in enumerate(f"{v:g}"):
+                    if col + i < len(labels):
+                        labels[col + i] = chr_
+            v += xstep
+        out.append(" " * (left - 1) + "└" + "".join(axis).replace(" ", "─") + "\n", style=self.STYLES["axis"])
+        out.append(" " * left + "".join(labels)[:cw], style=self.STYLES["axis"])
+
+    def render(self) -> Text:
+        d = self.data
+        width, height = self.size.width, self.size.height
+        if d is None or width < 20 or height < 6:
+            return Text("(no map)")
+        left, bottom = 6, 2
+        cw, ch = width - left - 1, height - bottom
+        frame = self._frame(d, cw * 2, ch * 4)
+        _, _, y0, y1, scale = frame
+        self._cell_labels: dict[tuple[int, int], str] = {}
+        self._left = left
+        bits, kinds, marks = self._plot(d, cw, ch, frame)
+        # y ticks every 'step' units
         step = _nice_step((y1 - y0) / max(2, ch // 4))
         y_ticks = {}
         v = math.ceil(y0 / step) * step
@@ -246,21 +262,7 @@ class BrailleMap(Widget):
                 else:
                     out.append(" ")
             out.append("\n")
-        axis = [" "] * cw
-        labels = [" "] * (cw + 8)
-        xstep = _nice_step((x1 - x0) / max(2, cw // 10))
-        v = math.ceil(x0 / xstep) * xstep
-        while v <= x1:
-            col = int((v - x0) * scale) // 2
-            if 0 <= col < cw:
-                axis[col] = "┬"
-                s = f"{v:g}"
-                for i, chr_ in enumerate(s):
-                    if col + i < len(labels):
-                        labels[col + i] = chr_
-            v += xstep
-        out.append(" " * (left - 1) + "└" + "".join(axis).replace(" ", "─") + "\n", style=self.STYLES["axis"])
-        out.append(" " * left + "".join(labels)[:cw], style=self.STYLES["axis"])
+        self._x_axis(out, left, cw, frame)
         return out
 
     def watch_data(self, value) -> None:
