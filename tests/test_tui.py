@@ -317,9 +317,10 @@ def test_emulsion_and_limits_screens_show_the_library_results():
             f = app.session.scenario.flavour
             await pilot.press("f6")
             await pilot.pause()
+            from solvsel.jobs.parse import parse_chain
+
             formula = formula_from_amounts(cat, parse_amounts(",".join(f"{k}={v}" for k, v in f["formula"].items())))
-            ref = check_dose(cat, formula, chain=f["chain"], jurisdiction=f["jurisdiction"], category=f["category"],
-                             dose=f["dose"])
+            ref = check_dose(cat, formula, parse_chain(f["chain"], f["dose"]), f["jurisdiction"], f["category"])
             assert app.screen.result.max_dose == pytest.approx(ref.max_dose)
             assert app.screen.query_one("#lim-checks").row_count == len(ref.checks)
             assert app.screen.query_one("#lim-cautions").display
@@ -328,8 +329,7 @@ def test_emulsion_and_limits_screens_show_the_library_results():
             from solvsel.errors import SolvselError
 
             with pytest.raises(SolvselError, match="density 'x'") as info:
-                check_dose(cat, formula, chain="syrup d=x", jurisdiction=f["jurisdiction"], category=f["category"],
-                           dose=f["dose"])
+                parse_chain("syrup d=x", f["dose"])
             assert info.value.param == "chain" and "--" not in info.value.message
             app.screen.query_one("#lim-chain").value = "syrup d=x"
             app.screen.compute()

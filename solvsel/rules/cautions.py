@@ -8,12 +8,14 @@ codes, the regulations in force or licensed practice.
 
 from __future__ import annotations
 
+from typing import Any, Mapping
+
 from ..data.catalog import number_or_none as _number
-from ..errors import InputError, SolvselError
+from ..errors import InputError, SolvselError, UnknownNameError
 from .hazards import hazard_class
 from .regulations import USES, _ETHANOL_CAS, DoseCheck, _ethanol_strength, _get, _text, limits
 
-__all__ = ["DEFER", "solvent_cautions", "limit_cautions"]
+__all__ = ["DEFER", "solvent_cautions", "limit_cautions", "row_cautions"]
 
 #: The closing caution of every result.
 DEFER = (
@@ -177,3 +179,26 @@ def limit_cautions(check: DoseCheck) -> list[str]:
     if check.claims:
         out.append("Claim rules are examples from tables/claims.csv: verify with your certifier.")
     return out
+
+
+def row_cautions(cat, table: str, row: Mapping[str, Any]) -> list[str]:
+    """The cautions beside one row of a bundled table: a liquid's own (:func:`solvent_cautions`),
+    an active solute's note, and :data:`DEFER` beside rules, weighting agents and emulsifiers.
+
+    Examples
+    --------
+    >>> from solvsel.data.catalog import load_catalog
+    >>> c = row_cautions(load_catalog(), "solvents", {"name": "ethanol", "cas": "64-17-5"})
+    >>> any("flammable" in x for x in c), c[-1] == DEFER
+    (True, True)
+    """
+    if table == "solvents":
+        try:
+            return solvent_cautions(cat.solvent(row.get("cas") or row.get("name"), library=False), cat=cat)
+        except (UnknownNameError, InputError):  # a row the look-up cannot find again: no caution to add
+            return []
+    if table in ("regulations", "weighting_agents", "emulsifiers"):
+        return [DEFER]
+    if table == "solutes" and str(row.get("category")) == "active":
+        return [str(row.get("note") or ""), DEFER]
+    return []

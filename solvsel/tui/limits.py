@@ -1,9 +1,9 @@
 """Limits screen: a flavour formula along its dilution chain, against the finished-product limits.
 
-Calls :func:`solvsel.rules.regulations.check_dose` with the formula of
-:func:`solvsel.science.formulation.formula_from_amounts`; shows the level of every
-substance at every stage, each limit that applies (and the one that binds),
-and the largest dose that keeps them.
+Builds a :class:`~solvsel.jobs.dose.DoseRequest` from its fields and calls the
+:func:`~solvsel.jobs.dose.dose` job; shows the level of every substance at every
+stage, each limit that applies (and the one that binds), the largest dose that
+keeps them, and the cautions of the result.
 """
 
 from __future__ import annotations
@@ -15,7 +15,7 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import Button, DataTable, Input, Label, Static
 
 from .base import BenchScreen
-from .dialogs import plain_message
+from .dialogs import field_label, plain_message
 from .widgets import CautionBox, fill_table
 
 CHECK_HEADERS = ("rule", "substance", "level", "limit", "unit", "of limit", "ok", "binds", "max dose", "confidence")
@@ -30,6 +30,8 @@ class LimitsScreen(BenchScreen):
 
     MODE = "limits"
     BINDINGS = [Binding("ctrl+r", "compute", "Compute", priority=True)]
+    FIELD_LABELS = {"formula": "formula", "dose": "dose", "chain": "dilution chain", "category": "food category",
+                    "jurisdiction": "jurisdiction"}
 
     def __init__(self) -> None:
         super().__init__()
@@ -80,28 +82,24 @@ class LimitsScreen(BenchScreen):
     def action_compute(self) -> None:
         self.compute()
 
-    def run_check(self):
-        from ..jobs.parse import parse_amounts
-        from ..rules.regulations import check_dose
-        from ..errors import InputError
-        from ..science.formulation import formula_from_amounts
+    def request(self):
+        """The :class:`~solvsel.jobs.dose.DoseRequest` the fields ask for (empty fields: the defaults)."""
+        from ..jobs.dose import DoseRequest
 
-        q = self.query_one
-        cat = self.session.catalog
-        formula = formula_from_amounts(cat, parse_amounts(q("#lim-formula", Input).value, "formula"), name="flavour")
-        dose = q("#lim-dose", Input).value.strip() or None
-        chain = q("#lim-chain", Input).value.strip() or None
-        if dose is None and chain is None:
-            raise InputError("dose: give the dose of the formula (e.g. 0.15%) or a chain with amounts")
-        return check_dose(cat, formula, chain=chain, jurisdiction=q("#lim-jurisdiction", Input).value.strip().upper() or "EU",
-                          category=q("#lim-category", Input).value.strip() or "food", dose=dose)
+        def text(name: str) -> str:
+            return self.query_one(f"#lim-{name}", Input).value.strip()
+
+        return DoseRequest(formula=text("formula"), dose=text("dose") or None, chain=text("chain") or None,
+                           category=text("category") or None, jurisdiction=text("jurisdiction") or "EU")
 
     def compute(self, interactive: bool = True) -> None:
+        """Run the ``dose`` job on the fields and show its result (an error: the dialog when ``interactive``)."""
         from ..errors import SolvselError
+        from ..jobs.dose import dose
         from .dialogs import show_error
 
         try:
-            r = self.run_check()
+            result = dose(self.request(), catalog=self.session.catalog)
         except SolvselError as exc:
             # no stale numbers under an error: clear what the last check showed
             self.result = None
@@ -109,14 +107,17 @@ class LimitsScreen(BenchScreen):
             self.query_one("#lim-stages", DataTable).clear(columns=True)
             self.query_one("#lim-stages-title", Static).update("")
             self.query_one("#lim-notes", Static).update("")
-            self.query_one("#lim-summary", Static).update(Text.assemble((f"{exc.title}: ", "bold"), plain_message(str(exc))))
+            said = plain_message(exc.describe(lambda p: field_label(p, self.FIELD_LABELS)))
+            self.query_one("#lim-summary", Static).update(Text.assemble((f"{exc.title}: ", "bold"), said))
             if interactive:
-                show_error(self.app, exc)
+                show_error(self.app, exc, self.FIELD_LABELS)
             return
-        self.result = r
-        self.show(r)
+        self.result = result
+        self.show(result)
 
-    def show(self, r) -> None:
+    def show(self, result) -> None:
+        """Show a :class:`~solvsel.jobs.dose.DoseResult`."""
+        r = result.check
         frac = r.max_dose_unit.endswith("fraction")
         t = Text()
         t.append(f"Formula '{r.formula.name}': " + ", ".join(f"{c.name} {c.mass_fraction * 100:.4g} %" for c in r.formula.components) + "\n")
@@ -158,4 +159,4 @@ class LimitsScreen(BenchScreen):
         for a in r.assumptions:
             notes.append(f"assumed: {a}\n", style="dim")
         self.query_one("#lim-notes", Static).update(notes)
-        self.query_one("#lim-cautions", CautionBox).show(r.cautions)
+        self.query_one("#lim-cautions", CautionBox).show(result.cautions)

@@ -65,6 +65,7 @@ class TablesScreen(BenchScreen):
     """Browse the bundled tables (and the user's own rows, marked as theirs)."""
 
     MODE = "tables"
+    FIELD_LABELS = {"where": "filter"}
     BINDINGS = [
         Binding("slash", "focus_filter", "Filter"),
         Binding("escape", "clear_filter", "Clear filter"),
@@ -181,16 +182,6 @@ class TablesScreen(BenchScreen):
         self.query_one("#row-cautions", CautionBox).show(self.row_cautions(row))
 
     def row_cautions(self, row: dict) -> list[str]:
-        from ..rules.cautions import DEFER, solvent_cautions
-        from ..errors import SolvselError
+        from ..rules.cautions import row_cautions
 
-        if self.table_name == "solvents":
-            try:
-                return solvent_cautions(self.session.catalog.solvent(row["cas"] or row["name"]), cat=self.session.catalog)
-            except SolvselError:
-                return []
-        if self.table_name in ("regulations", "weighting_agents", "emulsifiers"):
-            return [DEFER]
-        if self.table_name == "solutes" and str(row.get("category")) == "active":
-            return [str(row.get("note") or ""), DEFER]
-        return []
+        return self.guard(row_cautions, self.session.catalog, self.table_name, row) or []
