@@ -123,11 +123,13 @@ def test_revoked_rows_are_history_only(cat):
 def test_limits_by_substance_name_and_bad_input(cat):
     by_name = cp.limits(cat, substance="propane-1,2-diol", jurisdiction="US", category="sugar")
     assert [r.rule for r in by_name] == ["21 CFR 184.1666"]
-    with pytest.raises(InputError, match="jurisdiction"):
+    with pytest.raises(InputError, match="jurisdiction") as err:
         cp.limits(cat, cas="57-55-6", jurisdiction="Mars")
+    assert err.value.param == "jurisdiction" and "--" not in err.value.message
     with pytest.raises(UnknownNameError) as err:
         cp.limits(cat, cas="57-55-6", category="soft drinkz")
     assert "flavoured drinks" in str(err.value) and "confectionery" in str(err.value)
+    assert err.value.param == "category"
 
 
 # ----------------------------------------------------------------------------- GHS
@@ -185,8 +187,31 @@ def test_cautions(cat):
     assert any("denatured" in c for c in cautions.solvent_cautions(cat.solvent("ethanol 70% v/v"), cat=cat))
     assert any("ICH Q3C class 2" in c for c in cautions.solvent_cautions(cat.solvent("toluene"), use="bench", cat=cat))
     assert cautions.solvent_cautions(cat.solvent("water"), cat=cat) == [cautions.DEFER]
-    with pytest.raises(InputError):
+    with pytest.raises(InputError) as err:
         cautions.solvent_cautions(cat.solvent("water"), use="cooking")
+    assert err.value.param == "use"
+    # a row of a table gets the cautions of what it is: a liquid its own, a rule the closing caution
+    assert cautions.row_cautions(cat, "solvents", {"name": "n-hexane", "cas": "110-54-3"}) == \
+        cautions.solvent_cautions(cat.solvent("n-hexane"), cat=cat)
+    assert cautions.row_cautions(cat, "regulations", {"substance": "hexane"}) == [cautions.DEFER]
+
+
+def test_limit_cautions_follow_the_check(cat):
+    from solvsel.jobs.parse import parse_chain
+    from solvsel.science.formulation import formula_from_amounts
+
+    # the EU carrier group row (Reg. (EC) No 1333/2008 Annex III Part 4) is from a secondary source, and
+    # vanillin has no EU row: both are said; the closing caution is left to the job that shows the result
+    f = formula_from_amounts(cat, [("propylene glycol", 90), ("vanillin", 10)])
+    chk = cp.check_dose(cat, f, parse_chain(None, "0.1%"), "EU", "confectionery")
+    said = cautions.limit_cautions(chk)
+    assert any("from all sources" in c for c in said) and any("unconfirmed" in c for c in said)
+    assert any(c.startswith("No data for vanillin in EU") for c in said) and cautions.DEFER not in said
+    assert not any("Residual solvents" in c or "Claim rules" in c for c in said)
+    with_residue = cp.check_dose(cat, f, parse_chain(None, "0.1%"), "EU", "confectionery", residues={"n-hexane": 1},
+                                 claims=["halal"])
+    said = cautions.limit_cautions(with_residue)
+    assert any("Residual solvents" in c for c in said) and any("Claim rules" in c for c in said)
 
 
 # ----------------------------------------------------------------------------- food status

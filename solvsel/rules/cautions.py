@@ -61,17 +61,30 @@ def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
                          expected="one of " + ", ".join(USES))
     name = _text(_get(solvent, "name")) or "this liquid"
     cas = _text(_get(solvent, "cas"))
-    strength = _ethanol_strength(name)
-    is_ethanol = cas == _ETHANOL_CAS or strength is not None
-    flash = _number(_get(solvent, "flash_C"))
-    bp = _number(_get(solvent, "bp_C"))
+    out = _fire_and_pressure_cautions(solvent, name, cas, use) + _toxicity_cautions(name, cas, cat)
+    if cas == _ETHANOL_CAS or _ethanol_strength(name) is not None:
+        out.append(
+            "ethanol: denatured ethanol may not remain in food or flavour extracts and its denaturant (e.g. "
+            "heptane) leaves a residue; excise rules apply to tax-paid ethanol."
+        )
+        if use in (None, "extraction"):
+            out.append("ethanol: never chill it in a household freezer; cold extraction needs rated equipment.")
+    if use == "bench":
+        out.append(_bench_caution(solvent, name))
+    out.append(DEFER)
+    return list(dict.fromkeys(out))
+
+
+def _fire_and_pressure_cautions(solvent, name: str, cas: str, use: str | None) -> list[str]:
+    """Flammability (GHS class), the rooms and equipment of solvent and gas extraction, pressure."""
     flammable = _get(solvent, "flammable")
     if isinstance(flammable, str):
         flammable = {"yes": True, "no": False}.get(flammable.lower())
     if cas in _NONFLAMMABLE_GASES:
         flammable = False
     out: list[str] = []
-    hz = hazard_class(flash, bp, flammable=flammable, gas=cas in _LIQUEFIED_GASES or None)
+    hz = hazard_class(_number(_get(solvent, "flash_C")), _number(_get(solvent, "bp_C")), flammable=flammable,
+                      gas=cas in _LIQUEFIED_GASES or None)
     if hz is not None:
         if hz.kind == "gas under pressure":
             out.append(f"{name}: {hz.label}.")
@@ -103,6 +116,12 @@ def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
             "carbon dioxide: pressure and asphyxiation hazard; rated vessels with relief devices, CO2 monitoring "
             "and ventilation in the room; never in unrated or household equipment."
         )
+    return out
+
+
+def _toxicity_cautions(name: str, cas: str, cat) -> list[str]:
+    """Toxic or restricted solvents: n-hexane, methanol, chlorinated solvents, ICH Q3C class 1 and 2."""
+    out: list[str] = []
     if cas == "110-54-3":
         out.append("n-hexane: neurotoxic on repeated exposure; occupational exposure limits and residue limits apply.")
     if cas == "67-56-1":
@@ -125,23 +144,17 @@ def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
                 f"{name}: ICH Q3C {r.status} solvent (residual limit {r.limit:g} {r.unit} in pharmaceuticals); "
                 "toxic or restricted: exposure limits apply and residues must be measured."
             )
-    if is_ethanol:
-        out.append(
-            "ethanol: denatured ethanol may not remain in food or flavour extracts and its denaturant (e.g. "
-            "heptane) leaves a residue; excise rules apply to tax-paid ethanol."
-        )
-        if use in (None, "extraction"):
-            out.append("ethanol: never chill it in a household freezer; cold extraction needs rated equipment.")
-    if use == "bench":
-        roles = _get(solvent, "roles") or ()
-        if isinstance(roles, str):
-            roles = tuple(r for r in roles.split(";") if r)
-        if "carrier" in roles or "extraction" in roles:
-            out.append(f"{name}: in bench tests, use a fume hood and the exposure limits of the lab.")
-        else:
-            out.append(f"{name}: a lab liquid, not for food; use a fume hood and the exposure limits of the lab.")
-    out.append(DEFER)
-    return list(dict.fromkeys(out))
+    return out
+
+
+def _bench_caution(solvent, name: str) -> str:
+    """The fume hood and the lab's exposure limits, for a food liquid or a lab liquid."""
+    roles = _get(solvent, "roles") or ()
+    if isinstance(roles, str):
+        roles = tuple(r for r in roles.split(";") if r)
+    if "carrier" in roles or "extraction" in roles:
+        return f"{name}: in bench tests, use a fume hood and the exposure limits of the lab."
+    return f"{name}: a lab liquid, not for food; use a fume hood and the exposure limits of the lab."
 
 
 def limit_cautions(check: DoseCheck) -> list[str]:
