@@ -1,4 +1,5 @@
-"""Tests of solvsel.science.emulsion and ``solvsel emulsion`` against published tables and worked examples."""
+"""Tests of solvsel.science.emulsion, the ``emulsion`` job and ``solvsel emulsion`` against published tables and
+worked examples."""
 
 from __future__ import annotations
 
@@ -11,6 +12,7 @@ import numpy as np
 import pytest
 
 from solvsel.science import emulsion as E
+from solvsel.jobs.emulsion import agent_limits, emulsion
 from solvsel.data.catalog import load_catalog
 from solvsel.errors import InputError, MissingDataError, OutOfRangeError
 
@@ -110,7 +112,7 @@ def test_agent_level_and_legal_refusal(cat):
     # drink, over the US maximum of 100 ppm of the finished beverage, 21 CFR 172.735 (by hand)
     level = E.agent_level_ppm(0.88, 0.15, 500)
     assert level == pytest.approx(264.0)
-    rules = E.agent_limits(cat, "glycerol ester of wood rosin", "8050-30-4", "US", "flavoured drinks")
+    rules = agent_limits(cat, "glycerol ester of wood rosin", "8050-30-4", "US", "flavoured drinks")
     chk = E.check_agent("glycerol ester of wood rosin", "8050-30-4", "US", level, 1.045, rules)
     assert not chk.ok and chk.rule == "21 CFR 172.735" and chk.limit_ppm == 100
     assert "over the legal maximum" in chk.message
@@ -121,7 +123,7 @@ def test_agent_level_and_legal_refusal(cat):
 def test_mg_per_litre_limits_compare_in_the_drink(cat):
     # a limit in mg/L (SAIB, 21 CFR 172.833 as on record) applies to mg per litre of drink: at density
     # 1.045, 300 mg/L is 287.1 mg/kg (arithmetic)
-    rules = E.agent_limits(cat, "sucrose acetate isobutyrate", "126-13-6", "US", "flavoured drinks")
+    rules = agent_limits(cat, "sucrose acetate isobutyrate", "126-13-6", "US", "flavoured drinks")
     chk = E.check_agent("sucrose acetate isobutyrate", "126-13-6", "US", 290.0, 1.045, rules)
     assert chk.limit_ppm == pytest.approx(300 / 1.045) and not chk.ok
 
@@ -129,9 +131,10 @@ def test_mg_per_litre_limits_compare_in_the_drink(cat):
 def test_no_limit_on_record_is_not_allowed(cat):
     # damar gum has no row for US drinks: never treated as allowed; BVO is not permitted in the US
     # (authorisation revoked, 89 FR 55040, 2024)
-    dam = E.check_agent("damar gum", "9000-16-2", "US", 10.0, 1.04, E.agent_limits(cat, "damar gum", "9000-16-2", "US", "flavoured drinks"))
+    dam = E.check_agent("damar gum", "9000-16-2", "US", 10.0, 1.04,
+                        agent_limits(cat, "damar gum", "9000-16-2", "US", "flavoured drinks"))
     assert not dam.ok and "no limit on record" in dam.message
-    bvo_rules = E.agent_limits(cat, "brominated vegetable oil", "8016-94-2", "US", "flavoured drinks")
+    bvo_rules = agent_limits(cat, "brominated vegetable oil", "8016-94-2", "US", "flavoured drinks")
     bvo = E.check_agent("brominated vegetable oil", "8016-94-2", "US", 5.0, 1.04, bvo_rules)
     assert not bvo.ok and "not permitted" in bvo.message
 
@@ -213,8 +216,8 @@ def test_ripening_warning_and_inhibitor():
 
 
 def test_design_of_issue_example(cat):
-    r = E.design_beverage_emulsion(cat, [("d-limonene", 70), ("sucrose acetate isobutyrate", 30)], brix=11,
-                                   dilution=500, droplet_um=0.4)
+    r = emulsion(catalog=cat, oil=[("d-limonene", 70), ("sucrose acetate isobutyrate", 30)], brix=11,
+                 dilution=500, droplet_um=0.4)
     assert r.beverage_density == pytest.approx(E.sucrose_solution_density(11, *E.sucrose_table(cat)))
     assert r.oil_phase_density == pytest.approx(1 / (0.7 / 0.838 + 0.3 / 1.146))
     assert r.agent_level_ppm == pytest.approx(0.3 * 0.10 * 1e6 / 500)  # 60 mg/kg
@@ -224,19 +227,20 @@ def test_design_of_issue_example(cat):
 
 
 def test_design_refuses_over_limit_agent(cat):
-    r = E.design_beverage_emulsion(cat, [("orange oil", 12), ("ester gum", 88)], density=1.045, dilution=500,
-                                   oil_in_concentrate=0.15, jurisdictions=("US",))
+    r = emulsion(catalog=cat, oil=[("orange oil", 12), ("ester gum", 88)], density=1.045, dilution=500,
+                 oil_phase=0.15, jurisdictions=("US",))
     assert not r.ok and any("21 CFR 172.735" in m for m in r.refusals)
 
 
 def test_design_bad_input(cat):
     with pytest.raises(InputError, match="one of the two"):
-        E.design_beverage_emulsion(cat, [("d-limonene", 100)], brix=11, density=1.04)
+        emulsion(catalog=cat, oil=[("d-limonene", 100)], brix=11, density=1.04)
     with pytest.raises(InputError, match="sum to 90"):
-        E.design_beverage_emulsion(cat, [("d-limonene", 60), ("sunflower oil", 30)], brix=11)
+        emulsion(catalog=cat, oil=[("d-limonene", 60), ("sunflower oil", 30)], brix=11)
     with pytest.raises(MissingDataError, match="no density on record"):
-        E.design_beverage_emulsion(cat, [("citrus unshiu peel oil", 100)], brix=11)
-    r = E.design_beverage_emulsion(cat, [("citrus unshiu peel oil", 100)], brix=11, oil_densities={"citrus unshiu peel oil": 0.85})
+        emulsion(catalog=cat, oil=[("citrus unshiu peel oil", 100)], brix=11)
+    r = emulsion(catalog=cat, oil=[("citrus unshiu peel oil", 100)], brix=11,
+                 oil_density={"citrus unshiu peel oil": 0.85})
     assert r.oil_phase_density == pytest.approx(0.85)
 
 
@@ -276,20 +280,20 @@ def test_emulsifier_level_checked_against_limits(cat):
     # gum arabic is permitted at GMP in EU flavoured drinks (Reg. (EC) No 1333/2008 Annex II, group I, as on
     # record) - allowed; quillaia extract at 1 g per g of oil in a 10 % oil phase dosed 1 in 250 puts
     # 400 mg/kg in the drink, over 200 mg/L (Annex II cat. 14.1.4, as on record) - refused
-    ga = E.design_beverage_emulsion(cat, [("orange oil", 100)], brix=11, dilution=250, emulsifier="gum arabic",
-                                    jurisdictions=("EU",))
-    assert ga.emulsifier["level_ppm"] == pytest.approx(400.0) and all(c["ok"] for c in ga.emulsifier["checks"])
-    q = E.design_beverage_emulsion(cat, [("orange oil", 100)], brix=11, dilution=250, emulsifier="quillaia extract",
-                                   emulsifier_ratio=1.0, jurisdictions=("EU",))
+    ga = emulsion(catalog=cat, oil=[("orange oil", 100)], brix=11, dilution=250, emulsifier="gum arabic",
+                  jurisdictions=("EU",))
+    assert ga.emulsifier.level_ppm == pytest.approx(400.0) and all(c.ok for c in ga.emulsifier_checks)
+    q = emulsion(catalog=cat, oil=[("orange oil", 100)], brix=11, dilution=250, emulsifier="quillaia extract",
+                 emulsifier_ratio=1.0, jurisdictions=("EU",))
     assert not q.ok and any("quillaia extract" in m and "200 mg/L" in m for m in q.refusals)
     with pytest.raises(MissingDataError, match="no use ratio"):
-        E.design_beverage_emulsion(cat, [("orange oil", 100)], brix=11, dilution=250, emulsifier="polysorbate 80")
+        emulsion(catalog=cat, oil=[("orange oil", 100)], brix=11, dilution=250, emulsifier="polysorbate 80")
 
 
 def test_flavour_solvent_in_the_oil_phase(cat):
     # a liquid of the solvents table that is not in the oils table (benzyl alcohol, partly water-miscible):
     # its density comes from the solvents table and it counts as ripening-prone (it leaves the droplets)
-    r = E.design_beverage_emulsion(cat, [("d-limonene", 90), ("benzyl alcohol", 10)], brix=11)
+    r = emulsion(catalog=cat, oil=[("d-limonene", 90), ("benzyl alcohol", 10)], brix=11)
     ba = cat.solvent("benzyl alcohol", library=False)
     assert r.oil_phase[1].density == ba.density_g_cm3 and r.oil_phase[1].ripening == "prone"
     assert r.oil_phase_density == pytest.approx(1 / (0.9 / 0.838 + 0.1 / ba.density_g_cm3))

@@ -292,7 +292,7 @@ def test_emulsion_and_limits_screens_show_the_library_results():
     async def go():
         from solvsel.jobs.parse import parse_amounts
         from solvsel.rules.regulations import check_dose
-        from solvsel.science.emulsion import design_beverage_emulsion
+        from solvsel.jobs.emulsion import emulsion
         from solvsel.science.formulation import formula_from_amounts
 
         cat = load_catalog()
@@ -300,8 +300,8 @@ def test_emulsion_and_limits_screens_show_the_library_results():
         async with app.run_test(size=SIZE) as pilot:
             await pilot.pause()
             e = app.session.scenario.emulsion
-            ref = design_beverage_emulsion(cat, list(e["oil"].items()), brix=e["brix"], dilution=e["dilution"],
-                                           droplet_um=e["droplet_um"], jurisdictions=(e["jurisdiction"],))
+            ref = emulsion(catalog=cat, oil=list(e["oil"].items()), brix=e["brix"], dilution=e["dilution"],
+                           droplet_um=e["droplet_um"], jurisdictions=(e["jurisdiction"],))
             shown = app.screen.design
             assert shown is not None
             assert shown.creaming_mm_per_day == pytest.approx(ref.creaming_mm_per_day)

@@ -52,33 +52,33 @@ def register(sub):
     return p
 
 
-def run(args) -> int:
-    from ..science.emulsion import WATER_VISCOSITY_20C, design_beverage_emulsion
-    from ..errors import InputError
+#: Request fields whose option is not ``--`` + the field with dashes.
+OPTION_NAMES = {"jurisdictions": "--jurisdiction", "viscosity_mPa_s": "--viscosity"}
 
-    cat = get_catalog(args)
-    jur = [j.upper() for j in parse_names(args.jurisdiction, "jurisdiction")]
-    bad = [j for j in jur if j not in ("US", "EU")]
-    if bad:
-        raise InputError(f"--jurisdiction: expected US and/or EU, got '{bad[0]}'")
-    sizes = None
-    if args.sizes:
-        sizes = []
-        for name, share in parse_amounts(args.sizes, "sizes"):
-            try:
-                sizes.append((float(name), share))
-            except ValueError:
-                raise InputError(f"--sizes: '{name}' is not a diameter in um") from None
-    dens = dict(parse_amounts(args.oil_density, "oil_density")) if args.oil_density else None
-    res = design_beverage_emulsion(
-        cat, parse_amounts(args.oil, "oil"), brix=args.brix, density=args.density, dilution=args.dilution,
-        oil_in_concentrate=parse_fraction(args.oil_phase, "oil_phase"), droplet_um=args.droplet_um, sizes=sizes,
-        viscosity_mpa_s=WATER_VISCOSITY_20C if args.viscosity is None else args.viscosity, height_mm=args.height_mm,
-        shelf_days=args.shelf_days, jurisdictions=tuple(jur), category=args.category, oil_densities=dens, nano=args.nano,
+
+def request_from_args(args):
+    """The :class:`~solvsel.jobs.emulsion.EmulsionRequest` the options ask for."""
+    from ..jobs.emulsion import EmulsionRequest
+    from ..science.emulsion import WATER_VISCOSITY_20C
+
+    return EmulsionRequest(
+        oil=parse_amounts(args.oil, "oil"), brix=args.brix, density=args.density, dilution=args.dilution,
+        oil_phase=parse_fraction(args.oil_phase, "oil_phase"), droplet_um=args.droplet_um,
+        sizes=parse_amounts(args.sizes, "sizes") if args.sizes else None,
+        viscosity_mPa_s=WATER_VISCOSITY_20C if args.viscosity is None else args.viscosity,
+        height_mm=args.height_mm, shelf_days=args.shelf_days,
+        jurisdictions=parse_names(args.jurisdiction, "jurisdictions"), category=args.category,
+        oil_density=parse_amounts(args.oil_density, "oil_density") if args.oil_density else None, nano=args.nano,
         emulsifier=args.emulsifier, emulsifier_ratio=args.emulsifier_ratio,
     )
+
+
+def run(args) -> int:
+    from ..jobs.emulsion import emulsion
+
+    res = emulsion(request_from_args(args), catalog=get_catalog(args))
     if args.json:
-        emit_json(res)
+        emit_json(res.to_dict())
     else:
         _print(res)
     if not res.ok:
@@ -130,10 +130,10 @@ def _print(r) -> None:
             print(f"  left out: {msg}")
     if r.emulsifier is not None:
         e = r.emulsifier
-        print(f"\nEmulsifier: {e['name']} at {e['ratio_to_oil']:g} g per g of oil phase ({e['ratio_basis']}), "
-              f"{e['in_concentrate']:.1%} of the concentrate")
-        for c in e["checks"]:
-            print(f"  {'ok  ' if c['ok'] else 'OVER'} {c['message']}")
+        print(f"\nEmulsifier: {e.name} at {e.ratio_to_oil:g} g per g of oil phase ({e.ratio_basis}), "
+              f"{e.in_concentrate:.1%} of the concentrate")
+        for c in r.emulsifier_checks:
+            print(f"  {'ok  ' if c.ok else 'OVER'} {c.message}")
     print(f"\nOstwald ripening: {'WARNING' if r.ripening.warn else 'no warning'}: {r.ripening.reason}")
     if r.ripening.remedy:
         print(f"  remedy: {r.ripening.remedy}")

@@ -9,8 +9,8 @@ and homogenises to a droplet size at which creaming is too slow to see.
 Terpene-rich oils also ripen (the small droplets dissolve into the large
 ones through the water), unless an insoluble ripening inhibitor is in the
 oil phase.  This module computes those numbers from plain inputs; the legal
-limits come from :mod:`solvsel.rules.regulations` (one place for them) and are
-passed in as :class:`AgentLimit` records.
+limits are data passed in (:class:`AgentLimit` records, or limits in mg/kg),
+looked up by the ``emulsion`` job in :mod:`solvsel.rules.regulations`.
 
 References
 ----------
@@ -30,18 +30,18 @@ from __future__ import annotations
 
 import itertools
 import math
-from dataclasses import asdict, dataclass, field
+from dataclasses import asdict, dataclass
 from typing import Mapping, Sequence
 
 import numpy as np
 
 from ..data.catalog import number_or_none as _num
-from ..errors import InputError, MissingDataError, OutOfRangeError
+from ..errors import InputError, MissingDataError, OutOfRangeError, UnknownNameError
 
 __all__ = [
     "G",
     "WATER_VISCOSITY_20C",
-    "EMULSION_CAUTIONS",
+    "DRINK_DENSITY_RANGE",
     "sucrose_solution_density",
     "oil_phase_density",
     "weighting_fraction",
@@ -62,9 +62,10 @@ __all__ = [
     "check_agent",
     "RIPENING_INHIBITOR_THRESHOLDS",
     "sucrose_table",
-    "agent_limits",
-    "EmulsionDesign",
-    "design_beverage_emulsion",
+    "drink_density",
+    "oil_phase_components",
+    "EmulsifierUse",
+    "emulsifier_use",
 ]
 
 #: Standard gravity [m/s2].
@@ -73,15 +74,6 @@ G = 9.80665
 WATER_VISCOSITY_20C = 1.002
 _SECONDS_PER_DAY = 86400.0
 
-#: Cautions every emulsion result carries (common practice).
-EMULSION_CAUTIONS = (
-    "Weighting-agent and emulsifier limits apply to the drink as consumed, from all sources, and differ by "
-    "jurisdiction and product category: check the regulations in force where the drink is sold.",
-    "Stokes' law gives the creaming rate of single droplets in a still liquid: accelerated tests (centrifuge, "
-    "heat) rank formulas only; real-time storage of the finished drink decides shelf life.",
-    "A formula density-matched for a sugared drink is mismatched in its diet version (near the density of "
-    "water): check each version.",
-)
 
 
 # ----------------------------------------------------------------------------- densities
@@ -91,9 +83,11 @@ def _pos(x, name: str, unit: str) -> float:
     try:
         v = float(x)
     except (TypeError, ValueError):
-        raise InputError(f"{name}: expected a number in {unit}, got {x!r}") from None
+        raise InputError(f"expected a number in {unit}, got {x!r}", param=name, value=x,
+                         expected=f"a positive number in {unit}") from None
     if not math.isfinite(v) or v <= 0:
-        raise OutOfRangeError(f"{name}: expected a positive number in {unit}, got {x!r}")
+        raise OutOfRangeError(f"expected a positive number in {unit}, got {x!r}", param=name, value=x,
+                              expected=f"a positive number in {unit}")
     return v
 
 
@@ -129,13 +123,17 @@ def sucrose_solution_density(brix: float, table_brix: Sequence[float], table_den
     x = np.asarray(table_brix, dtype=float)
     y = np.asarray(table_density, dtype=float)
     if x.ndim != 1 or x.size < 2 or x.shape != y.shape or np.any(np.diff(x) <= 0):
-        raise InputError("sucrose table: expected two columns of equal length with Brix strictly ascending")
+        raise InputError("the sucrose table needs two columns of equal length with Brix strictly ascending",
+                         param="table_brix")
+    expected = f"degrees Brix from {x[0]:g} to {x[-1]:g}"
     try:
         b = float(brix)
     except (TypeError, ValueError):
-        raise InputError(f"brix: expected a number of degrees Brix, got {brix!r}") from None
+        raise InputError(f"expected a number of degrees Brix, got {brix!r}", param="brix", value=brix,
+                         expected=expected) from None
     if not (x[0] <= b <= x[-1]):
-        raise OutOfRangeError(f"brix: {brix!r} is outside the sucrose density table ({x[0]:g} to {x[-1]:g} degrees Brix)")
+        raise OutOfRangeError(f"{brix!r} is outside the sucrose density table ({x[0]:g} to {x[-1]:g} degrees Brix)",
+                              param="brix", value=brix, expected=expected)
     return float(np.interp(b, x, y))
 
 
@@ -162,11 +160,12 @@ def oil_phase_density(mass_fractions: Sequence[float], densities: Sequence[float
     w = np.asarray(mass_fractions, dtype=float)
     rho = np.asarray(densities, dtype=float)
     if w.shape != rho.shape or w.size == 0:
-        raise InputError(f"oil phase: {w.size} fractions but {rho.size} densities")
+        raise InputError(f"{w.size} fractions but {rho.size} densities", param="densities")
     if not np.all(np.isfinite(rho)) or np.any(rho <= 0):
-        raise MissingDataError("oil phase: every component needs a positive density in g/cm3")
+        raise MissingDataError("every component of the oil phase needs a positive density in g/cm3", param="densities")
     if np.any(w < 0) or abs(w.sum() - 1.0) > 1e-6:
-        raise InputError(f"oil phase: mass fractions must be zero or more and sum to 1, they sum to {w.sum():g}")
+        raise InputError(f"mass fractions must be zero or more and sum to 1, they sum to {w.sum():g}",
+                         param="mass_fractions", value=list(w))
     return float(1.0 / np.sum(w / rho))
 
 
@@ -210,7 +209,8 @@ def weighting_fraction(oil_density: float, agent_density: float, target_density:
     if ra <= rt:
         raise OutOfRangeError(
             f"a weighting agent of density {ra:g} g/cm3 cannot raise the oil phase to {rt:g} g/cm3: "
-            "the agent must be denser than the target"
+            "the agent must be denser than the target",
+            param="agent_density", value=ra,
         )
     return (1.0 / ro - 1.0 / rt) / (1.0 / ro - 1.0 / ra)
 
@@ -242,10 +242,11 @@ def agent_level_ppm(agent_in_oil: float, oil_in_concentrate: float, dilution: fl
     """
     for v, n in ((agent_in_oil, "agent_in_oil"), (oil_in_concentrate, "oil_in_concentrate")):
         if not (0.0 <= float(v) <= 1.0):
-            raise OutOfRangeError(f"{n}: expected a mass fraction between 0 and 1, got {v!r}")
+            raise OutOfRangeError(f"expected a mass fraction between 0 and 1, got {v!r}", param=n, value=v)
     d = _pos(dilution, "dilution", "parts of drink per part of concentrate")
     if d < 1:
-        raise OutOfRangeError(f"dilution: expected 1 or more parts of drink per part of concentrate, got {dilution!r}")
+        raise OutOfRangeError(f"expected 1 or more parts of drink per part of concentrate, got {dilution!r}",
+                              param="dilution", value=dilution)
     return round(float(agent_in_oil) * float(oil_in_concentrate) * 1e6 / d, 9)
 
 
@@ -283,7 +284,8 @@ def stokes_velocity(radius_m: float, density_difference_kg_m3: float, viscosity_
     eta = _pos(viscosity_pa_s, "viscosity_pa_s", "Pa s")
     drho = float(density_difference_kg_m3)
     if not math.isfinite(drho):
-        raise InputError(f"density_difference_kg_m3: expected a number, got {density_difference_kg_m3!r}")
+        raise InputError(f"expected a number, got {density_difference_kg_m3!r}", param="density_difference_kg_m3",
+                         value=density_difference_kg_m3)
     return 2.0 * G * r * r * drho / (9.0 * eta)
 
 
@@ -389,12 +391,13 @@ def creaming_of_distribution(
     d = np.asarray(diameters_um, dtype=float)
     w = np.asarray(volume_fractions, dtype=float)
     if d.shape != w.shape or d.size == 0:
-        raise InputError(f"size distribution: {d.size} diameters but {w.size} volume fractions")
+        raise InputError(f"{d.size} diameters but {w.size} volume fractions", param="volume_fractions")
     if np.any(~np.isfinite(d)) or np.any(d <= 0):
-        raise InputError("size distribution: diameters must be positive numbers in um")
+        raise InputError("diameters must be positive numbers in um", param="diameters_um")
     s = w.sum()
     if np.any(w < 0) or not (abs(s - 1) <= 5e-3 or abs(s - 100) <= 0.5):
-        raise InputError(f"size distribution: volume fractions sum to {s:g}; give fractions summing to 1 or percent summing to 100")
+        raise InputError(f"volume fractions sum to {s:g}; give fractions summing to 1 or percent summing to 100",
+                         param="volume_fractions", value=list(w))
     w = w / s
     v = np.array([creaming_mm_per_day(di, continuous_density, droplet_density, viscosity_mpa_s) for di in d])
     travelled = np.abs(v) * float(shelf_days)
@@ -558,7 +561,7 @@ def weighting_options(
     ro = _pos(oil_density, "oil_density", "g/cm3")
     rt = _pos(beverage_density, "beverage_density", "g/cm3")
     c_oil = _pos(oil_in_drink_ppm, "oil_in_drink_ppm", "mg/kg")
-    usable = [(n, _pos(d, f"density of {n}", "g/cm3"), lim) for n, d, lim in agents if lim is not None]
+    usable = [(n, _pos(d, "agents", "g/cm3"), lim) for n, d, lim in agents if lim is not None]
     if ro >= rt:
         return [WeightingOption((), (), (), (), ro, True, True, None, "the oil phase is already as dense as the drink")]
     need = 1.0 / ro - 1.0 / rt
@@ -577,6 +580,13 @@ def weighting_options(
     if singles_legal:
         over = [o for o in out if not o.legal]
         return sorted(singles_legal, key=lambda o: o.levels_ppm[0] / o.limits_ppm[0]) + over
+    return _pair_options(usable, ro, rt, c_oil) + sorted(out, key=lambda o: o.levels_ppm[0] / o.limits_ppm[0])
+
+
+def _pair_options(usable: Sequence[tuple[str, float, float]], ro: float, rt: float, c_oil: float) -> list[WeightingOption]:
+    """Every pair of agents, the denser-per-gram one filled to its limit first (the least total
+    agent), the pairs that reach the drink's density first."""
+    need = 1.0 / ro - 1.0 / rt
     pairs: list[WeightingOption] = []
     for (n1, d1, l1), (n2, d2, l2) in itertools.combinations(usable, 2):
         a = {n1: 1.0 / ro - 1.0 / d1, n2: 1.0 / ro - 1.0 / d2}
@@ -604,7 +614,7 @@ def weighting_options(
             max_oil = None
         pairs.append(WeightingOption(names, tuple(x[n] for n in names), levels, (l1, l2), dens, matched, True, max_oil, msg))
     pairs.sort(key=lambda o: (not o.matched, -o.density, sum(o.fractions)))
-    return pairs + sorted(out, key=lambda o: o.levels_ppm[0] / o.limits_ppm[0])
+    return pairs
 
 
 # ----------------------------------------------------------------------------- ripening
@@ -692,21 +702,37 @@ def sucrose_table(cat) -> tuple[np.ndarray, np.ndarray]:
     return df["sucrose_wt_pct"].to_numpy(float), df["density_20C_g_cm3"].to_numpy(float)
 
 
-def agent_limits(cat, agent: str, cas: str, jurisdiction: str, category: str, use: str = "weighting") -> list[AgentLimit]:
-    """Rules in force for ``agent`` used as ``use`` ("weighting" or "emulsifier"), from :func:`solvsel.rules.regulations.limits`."""
-    from ..rules.regulations import limits
+#: Densities a finished drink may have [g/cm3] (water to a heavy syrup).
+DRINK_DENSITY_RANGE = (0.95, 1.4)
 
-    rows = limits(cat, cas=cas or None, substance=None if cas else agent, jurisdiction=jurisdiction,
-                  category=category, use=use)
-    return [AgentLimit(agent, r.jurisdiction, r.rule, r.limit_mg, r.basis, r.status, r.flagged, r.note) for r in rows]
+
+def drink_density(cat, brix: float | None = None, density: float | None = None) -> tuple[float, str]:
+    """The finished drink's density [g/cm3] and where it comes from: from its Brix (the bundled
+    sucrose table at 20 C) or as given (one of the two).
+
+    >>> from solvsel.data.catalog import load_catalog
+    >>> drink_density(load_catalog(), brix=11)
+    (1.0423, 'sucrose solution of 11 degrees Brix at 20 C (bundled table, interpolated)')
+    """
+    if (brix is None) == (density is None):
+        raise InputError("give the drink's sugar content (Brix) or its density, one of the two", param="brix",
+                         expected="a Brix or a density")
+    if brix is not None:
+        rho = sucrose_solution_density(brix, *sucrose_table(cat))
+        return rho, f"sucrose solution of {float(brix):g} degrees Brix at 20 C (bundled table, interpolated)"
+    rho = _pos(density, "density", "g/cm3")
+    lo, hi = DRINK_DENSITY_RANGE
+    if not (lo <= rho <= hi):
+        raise OutOfRangeError(f"{density!r} g/cm3 is not the density of a drink (expected {lo:g}-{hi:g})",
+                              param="density", value=density, expected=f"{lo:g} to {hi:g} g/cm3")
+    return rho, "given"
 
 
 def _component(cat, name: str, fraction: float, densities: Mapping[str, float]) -> OilComponent:
-    from ..errors import UnknownNameError
     from .hlb import _oil_row
 
     try:
-        table, row = _oil_row(cat, name)
+        table, row = _oil_row(cat, name, "oil")
     except UnknownNameError as not_an_oil:
         # a flavour solvent of the solvents table (e.g. benzyl alcohol): its density, and whether it
         # dissolves in water (then it leaves the droplets and ripens)
@@ -725,211 +751,73 @@ def _component(cat, name: str, fraction: float, densities: Mapping[str, float]) 
     if dens is None:
         dens = _num(row.get("density_g_cm3"))
     if dens is None:
-        raise MissingDataError(f"no density on record for '{key}': give it, e.g. --oil-density '{key}=0.85'")
+        raise MissingDataError(f"no density on record for '{key}': give it in g/cm3 (e.g. '{key}=0.85')",
+                               param="oil_density", value=key, expected="a density in g/cm3")
     return OilComponent(key, fraction, dens, str(row.get("ripening") or "unknown"), _num(row.get("water_solubility_mg_L")),
                         str(row.get("cas") or ""), table == "weighting_agents")
 
 
-@dataclass(frozen=True)
-class EmulsionDesign:
-    """Everything :func:`design_beverage_emulsion` found, JSON-ready through ``to_dict``."""
+def oil_phase_components(cat, oil: Sequence[tuple[str, float]],
+                         densities: Mapping[str, float] | None = None) -> tuple[OilComponent, ...]:
+    """The oil phase's ingredients with their mass fractions, densities and ripening behaviour.
 
-    beverage_density: float
-    beverage_density_basis: str
-    oil_phase: tuple[OilComponent, ...]
-    oil_phase_density: float
-    density_difference: float
-    oil_in_concentrate: float
-    dilution: float | None
-    oil_in_drink_ppm: float | None
-    agent_level_ppm: float | None
-    agent_limit_ppm: float | None
-    agents: tuple[AgentCheck, ...]
-    droplet_diameter_um: float | None
-    viscosity_mPa_s: float
-    creaming_mm_per_day: float | None
-    height_mm: float
-    shelf_days: float
-    time_to_cream_days: float | None
-    max_droplet_um: float
-    distribution: DistributionCreaming | None
-    weighting: dict
-    weighting_excluded: dict
-    emulsifier: dict | None
-    ripening: RipeningCheck
-    jurisdictions: tuple[str, ...]
-    category: str
-    ok: bool
-    refusals: tuple[str, ...]
-    cautions: tuple[str, ...]
+    ``oil`` is (name, amount) pairs, amounts as fractions (sum 1) or percent
+    (sum 100); a name is an oil, a weighting agent, or a flavour solvent of the
+    solvents table.  ``densities`` (g/cm3 by name) fill or replace the densities
+    on record.
 
-    def to_dict(self) -> dict:
-        d = {f: getattr(self, f) for f in self.__dataclass_fields__}
-        d["oil_phase"] = [c.to_dict() for c in self.oil_phase]
-        d["agents"] = [a.to_dict() for a in self.agents]
-        d["distribution"] = self.distribution.to_dict() if self.distribution else None
-        d["weighting"] = {j: [o.to_dict() for o in opts] for j, opts in self.weighting.items()}
-        d["ripening"] = self.ripening.to_dict()
-        d["refusals"] = list(self.refusals)
-        d["cautions"] = list(self.cautions)
-        d["jurisdictions"] = list(self.jurisdictions)
-        return d
-
-
-def design_beverage_emulsion(
-    cat,
-    oil: Sequence[tuple[str, float]],
-    brix: float | None = None,
-    density: float | None = None,
-    dilution: float | None = None,
-    oil_in_concentrate: float = 0.10,
-    droplet_um: float | None = None,
-    sizes: Sequence[tuple[float, float]] | None = None,
-    viscosity_mpa_s: float = WATER_VISCOSITY_20C,
-    height_mm: float = 100.0,
-    shelf_days: float = 180.0,
-    jurisdictions: Sequence[str] = ("US", "EU"),
-    category: str = "flavoured drinks",
-    oil_densities: Mapping[str, float] | None = None,
-    nano: bool = False,
-    emulsifier: str | None = None,
-    emulsifier_ratio: float | None = None,
-) -> EmulsionDesign:
-    """Density match, legal check of the weighting agents, creaming and ripening of a beverage emulsion.
-
-    ``oil`` names the oil phase (oils and weighting agents, amounts as
-    fractions or percent); the drink's density comes from ``brix`` (the
-    bundled sucrose table, 20 C) or is given as ``density``; ``dilution`` is
-    the parts of finished drink made from one part of concentrate (mass), and
-    ``oil_in_concentrate`` the oil phase's mass fraction of the concentrate.
-    Over-limit agents are data (``ok`` False, ``refusals``), not exceptions.
-    With ``emulsifier`` (a row of the emulsifiers table) its amount follows
-    from its usual use ratio to oil (or ``emulsifier_ratio``, g per g of oil
-    phase) and its level in the drink is checked like the agents'.
+    >>> from solvsel.data.catalog import load_catalog
+    >>> [(c.name, c.mass_fraction, c.is_agent) for c in oil_phase_components(
+    ...     load_catalog(), [("d-limonene", 70), ("sucrose acetate isobutyrate", 30)])]
+    [('d-limonene', 0.7, False), ('sucrose acetate isobutyrate', 0.3, True)]
     """
     from .hlb import normalize_fractions
 
-    if (brix is None) == (density is None):
-        raise InputError("give the drink's sugar content (--brix) or its density (--density), one of the two")
-    if brix is not None:
-        bx, by = sucrose_table(cat)
-        rho_b = sucrose_solution_density(brix, bx, by)
-        basis = f"sucrose solution of {float(brix):g} degrees Brix at 20 C (bundled table, interpolated)"
-    else:
-        rho_b = _pos(density, "density", "g/cm3")
-        if not (0.95 <= rho_b <= 1.4):
-            raise OutOfRangeError(f"density: {density!r} g/cm3 is not the density of a drink (expected 0.95-1.4)")
-        basis = "given"
-    if not (0.0 < float(oil_in_concentrate) <= 1.0):
-        raise OutOfRangeError(f"oil phase in the concentrate: expected a mass fraction above 0 and up to 1, got {oil_in_concentrate!r}")
-    dens_over = {k.strip().lower(): float(v) for k, v in (oil_densities or {}).items()}
+    dens = {k.strip().lower(): float(v) for k, v in (densities or {}).items()}
     w = normalize_fractions([a for _, a in oil], param="oil")
-    comps = tuple(_component(cat, n, float(wi), dens_over) for (n, _), wi in zip(oil, w))
+    comps = tuple(_component(cat, n, float(wi), dens) for (n, _), wi in zip(oil, w))
     names = [c.name for c in comps]
     if len(set(names)) != len(names):
-        raise InputError(f"--oil names the same ingredient twice: {', '.join(names)}")
-    rho_o = oil_phase_density([c.mass_fraction for c in comps], [c.density for c in comps])
-    drho = rho_b - rho_o
-    oil_ppm = None
-    if dilution is not None:
-        oil_ppm = agent_level_ppm(1.0, float(oil_in_concentrate), dilution)
-    checks, refusals, notes = [], [], []
-    total_agent = None
-    binding = None
-    for c in comps:
-        if not c.is_agent:
-            continue
-        if oil_ppm is None:
-            notes.append(f"{c.name} is a weighting agent: give the dilution of the concentrate to check its level "
-                         "in the drink against the legal maximum")
-            continue
-        level = c.mass_fraction * oil_ppm
-        total_agent = (total_agent or 0.0) + level
-        for j in jurisdictions:
-            chk = check_agent(c.name, c.cas, j, level, rho_b, agent_limits(cat, c.name, c.cas, j, category))
-            checks.append(chk)
-            if not chk.ok:
-                refusals.append(chk.message)
-            if chk.limit_ppm is not None:
-                head = chk.limit_ppm - chk.level_ppm
-                if binding is None or head < binding[0]:
-                    binding = (head, chk.limit_ppm)
-    v = None
-    t_cream = None
-    if droplet_um is not None:
-        v = creaming_mm_per_day(droplet_um, rho_b, rho_o, viscosity_mpa_s)
-        t_cream = time_to_cream_days(height_mm, v)
-    d_max = max_droplet_diameter_um(height_mm, shelf_days, rho_b, rho_o, viscosity_mpa_s)
-    dist = None
-    if sizes:
-        dist = creaming_of_distribution([s for s, _ in sizes], [f for _, f in sizes], rho_b, rho_o, viscosity_mpa_s, height_mm, shelf_days)
-    # weighting options for the flavour part of the oil phase (agents taken out)
-    base = [c for c in comps if not c.is_agent]
-    weighting: dict = {}
-    excluded: dict = {}
-    if base and oil_ppm is not None:
-        wb = np.array([c.mass_fraction for c in base])
-        rho_base = oil_phase_density(wb / wb.sum(), [c.density for c in base])
-        agents_tab = cat.table("weighting_agents").to_dict("records")
-        for j in jurisdictions:
-            cands = []
-            for r in agents_tab:
-                rules = agent_limits(cat, r["name"], str(r.get("cas") or ""), j, category)
-                chk = check_agent(r["name"], str(r.get("cas") or ""), j, 1.0, rho_b, rules)
-                cands.append((r["name"], float(r["density_g_cm3"]), chk.limit_ppm))
-                if chk.limit_ppm is None:
-                    excluded.setdefault(j, []).append(chk.message)
-            weighting[j] = weighting_options(rho_base, rho_b, oil_ppm, cands)
-    emul = None
-    if emulsifier is not None:
-        erow = cat.find("emulsifiers", emulsifier)
-        ratio = _num(emulsifier_ratio) if emulsifier_ratio is not None else _num(erow.get("use_ratio_to_oil"))
-        if ratio is None or ratio <= 0:
-            raise MissingDataError(f"no use ratio to oil on record for '{erow['name']}': give it (g per g of oil phase)")
-        emul = {"name": erow["name"], "cas": str(erow.get("cas") or ""), "ratio_to_oil": ratio,
-                "ratio_basis": "given" if emulsifier_ratio is not None else "table (usual use ratio)",
-                "in_concentrate": ratio * float(oil_in_concentrate), "level_ppm": None, "checks": []}
-        if emul["in_concentrate"] >= 1.0 - float(oil_in_concentrate):
-            raise InputError(f"{erow['name']} at {ratio:g} g per g of oil leaves no water in the concentrate")
-        if oil_ppm is not None:
-            level = ratio * oil_ppm
-            emul["level_ppm"] = level
-            for j in jurisdictions:
-                chk = check_agent(erow["name"], emul["cas"], j, level, rho_b,
-                                  agent_limits(cat, erow["name"], emul["cas"], j, category, use="emulsifier"))
-                emul["checks"].append(chk.to_dict())
-                if not chk.ok:
-                    refusals.append(chk.message)
-                    checks.append(chk)
-    ripe = ripening_check(comps, nano=nano)
-    cautions = notes + list(EMULSION_CAUTIONS)
-    if brix is not None:
-        cautions.append("Drink density is that of a pure sucrose solution at 20 C: acids, other sugars, "
-                        "sweeteners and carbonation shift it; measure the finished drink where it matters.")
-    if abs(viscosity_mpa_s - WATER_VISCOSITY_20C) < 1e-12:
-        cautions.append("Creaming uses the viscosity of water at 20 C; a sugared drink is more viscous, "
-                        "so the true rate is lower (give --viscosity for the drink).")
-    if any(chk.message.endswith("verify)") or "verify" in chk.message for chk in checks):
-        cautions.append("Some legal limits on record are not confirmed against the official text: verify them "
-                        "in the regulations in force before relying on the check.")
-    if abs(drho) < 0.01:
-        cautions.append("The oil phase is within 0.01 g/cm3 of the drink: oil densities on record are mostly at 25 C "
-                        "and the sucrose table at 20 C, and oils expand about twice as fast as water with heat; "
-                        "measure both at the storage temperature before trusting a close match.")
-    if ripe.warn:
-        cautions.append("Ostwald ripening: " + ripe.reason + ". " + ripe.remedy + ".")
-    from ..rules.cautions import DEFER
+        raise InputError(f"the oil phase names the same ingredient twice: {', '.join(names)}", param="oil",
+                         value=", ".join(names), expected="each ingredient once")
+    return comps
 
-    cautions.append(DEFER)
-    return EmulsionDesign(
-        beverage_density=rho_b, beverage_density_basis=basis, oil_phase=comps, oil_phase_density=rho_o,
-        density_difference=drho, oil_in_concentrate=float(oil_in_concentrate),
-        dilution=None if dilution is None else float(dilution), oil_in_drink_ppm=oil_ppm,
-        agent_level_ppm=total_agent, agent_limit_ppm=None if binding is None else binding[1], agents=tuple(checks),
-        droplet_diameter_um=None if droplet_um is None else float(droplet_um), viscosity_mPa_s=float(viscosity_mpa_s),
-        creaming_mm_per_day=v, height_mm=float(height_mm), shelf_days=float(shelf_days), time_to_cream_days=t_cream,
-        max_droplet_um=d_max, distribution=dist, weighting=weighting, weighting_excluded=excluded, emulsifier=emul,
-        ripening=ripe,
-        jurisdictions=tuple(jurisdictions), category=category, ok=not any(not c.ok for c in checks),
-        refusals=tuple(refusals), cautions=tuple(cautions),
-    )
+
+@dataclass(frozen=True)
+class EmulsifierUse:
+    """How much of an emulsifier the concentrate holds, from its use ratio to the oil phase."""
+
+    name: str
+    cas: str
+    ratio_to_oil: float  # g of emulsifier per g of oil phase
+    ratio_basis: str  # "given" or "table (usual use ratio)"
+    in_concentrate: float  # mass fraction of the concentrate [-]
+    level_ppm: float | None  # in the finished drink [mg/kg], None without a dilution
+
+    def to_dict(self) -> dict:
+        return asdict(self)
+
+
+def emulsifier_use(cat, emulsifier: str, oil_in_concentrate: float, ratio: float | None = None,
+                   oil_in_drink_ppm: float | None = None) -> EmulsifierUse:
+    """An emulsifier of ``tables/emulsifiers.csv`` at its usual use ratio to oil (or ``ratio``,
+    g per g of oil phase): its share of the concentrate and its level in the drink.
+
+    >>> from solvsel.data.catalog import load_catalog
+    >>> u = emulsifier_use(load_catalog(), "gum arabic", 0.10, oil_in_drink_ppm=400)
+    >>> u.ratio_to_oil, u.in_concentrate, u.level_ppm
+    (1.0, 0.1, 400.0)
+    """
+    from .hlb import _find
+
+    row = _find(cat, "emulsifiers", emulsifier, "emulsifier")
+    r = _num(ratio) if ratio is not None else _num(row.get("use_ratio_to_oil"))
+    if r is None or r <= 0:
+        raise MissingDataError(f"no use ratio to oil on record for '{row['name']}': give it (g per g of oil phase)",
+                               param="emulsifier_ratio", value=row["name"], expected="g per g of oil phase")
+    share = r * float(oil_in_concentrate)
+    if share >= 1.0 - float(oil_in_concentrate):
+        raise InputError(f"{row['name']} at {r:g} g per g of oil leaves no water in the concentrate",
+                         param="emulsifier_ratio", value=r)
+    return EmulsifierUse(row["name"], str(row.get("cas") or ""), r, "given" if ratio is not None else
+                         "table (usual use ratio)", share, None if oil_in_drink_ppm is None else r * oil_in_drink_ppm)

@@ -1,11 +1,11 @@
 """Emulsion screen: emulsifiers for the oil phase, weighting and creaming in the drink.
 
-The required HLB of the oil phase and the emulsifier pairs that hit it come
-from :mod:`solvsel.science.hlb` (``oil_phase_required_hlb``, ``emulsifier_systems``);
-density match, weighting-agent levels against their legal limits, Stokes
-creaming and the ripening check from
-:func:`solvsel.science.emulsion.design_beverage_emulsion`.  The form opens on the demo
-scenario's oil, Brix, dilution and droplet size; every field is editable.
+Builds an :class:`~solvsel.jobs.hlb.HlbRequest` (the required HLB of the oil
+phase and the emulsifier pairs that hit it) and an
+:class:`~solvsel.jobs.emulsion.EmulsionRequest` (density match, weighting-agent
+levels against their legal limits, Stokes creaming, the ripening check) from
+its fields, calls the two jobs and shows their results.  The form opens on the
+demo scenario's oil, Brix, dilution and droplet size; every field is editable.
 """
 
 from __future__ import annotations
@@ -17,28 +17,18 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import Button, DataTable, Input, Label, Static
 
 from .base import BenchScreen
-from .dialogs import plain_message
+from .dialogs import field_label, plain_message
 from .widgets import CautionBox, fill_table
 
 PAIR_HEADERS = ("emulsifier A", "share A", "emulsifier B", "share B", "blend HLB", "same tail")
 WEIGHTING_HEADERS = ("where", "weighting agent(s)", "in oil phase", "mg/kg in drink", "limit mg/kg", "oil g/cm3",
                      "verdict")
+#: Pairs shown in the table (the text above it counts all that hit the required HLB).
+PAIRS_SHOWN = 12
 
 
 def _amounts_text(d: dict) -> str:
     return ", ".join(f"{k}={v:g}" for k, v in d.items())
-
-
-def _num(text: str, what: str, default=None):
-    from ..errors import InputError
-
-    t = (text or "").strip()
-    if not t:
-        return default
-    try:
-        return float(t)
-    except ValueError:
-        raise InputError(f"{what}: expected a number, got '{text}'") from None
 
 
 class EmulsionScreen(BenchScreen):
@@ -46,6 +36,13 @@ class EmulsionScreen(BenchScreen):
 
     MODE = "emulsion"
     BINDINGS = [Binding("ctrl+r", "compute", "Compute", priority=True)]
+    #: Labels of the fields by the field of the emulsion request they fill.
+    FIELD_LABELS = {"oil": "oil phase", "oil_density": "oil phase", "brix": "sugar, degrees Brix",
+                    "dilution": "dilution", "oil_phase": "oil phase in the concentrate",
+                    "droplet_um": "droplet diameter", "jurisdictions": "jurisdictions"}
+    #: The same for the HLB request (its oil phase is the oils whose required HLB counts).
+    HLB_FIELD_LABELS = {"oil": "oils for the required HLB", "emulsifiers": "emulsifiers to pair",
+                        "rhlb": "your own required HLB"}
 
     def __init__(self) -> None:
         super().__init__()
@@ -71,8 +68,8 @@ class EmulsionScreen(BenchScreen):
                 yield Input(id="em-brix", compact=True)
                 yield Label("Dilution, 1 part in")
                 yield Input(id="em-dilution", compact=True)
-                yield Label("Oil phase in the concentrate, %")
-                yield Input(value="10", id="em-oil-pct", compact=True)
+                yield Label("Oil phase in the concentrate (10% or 0.1)")
+                yield Input(value="10%", id="em-oil-pct", compact=True)
                 yield Label("Droplet diameter, um")
                 yield Input(id="em-droplet", compact=True)
                 yield Label("Jurisdictions (EU, US)")
@@ -112,79 +109,113 @@ class EmulsionScreen(BenchScreen):
     def action_compute(self) -> None:
         self.compute()
 
+    # ---------------------------------------------------------------- requests
+    def _text(self, name: str) -> str:
+        return self.query_one(f"#em-{name}", Input).value.strip()
+
+    def hlb_request(self):
+        """The :class:`~solvsel.jobs.hlb.HlbRequest` of the HLB fields (no emulsifiers named: the default pool)."""
+        from ..jobs.hlb import HlbRequest
+        from ..jobs.parse import parse_amounts, parse_names
+
+        rhlb, names = self._text("rhlb"), self._text("emulsifiers")
+        return HlbRequest(oil=parse_amounts(self._text("hlb-oil"), "oil"),
+                          rhlb=parse_amounts(rhlb, "rhlb") if rhlb else None,
+                          emulsifiers=parse_names(names, "emulsifiers") if names else None,
+                          min_fraction=0.0, top=PAIRS_SHOWN)
+
+    def emulsion_request(self):
+        """The :class:`~solvsel.jobs.emulsion.EmulsionRequest` of the oil phase and drink fields."""
+        from ..jobs.emulsion import EmulsionRequest
+        from ..jobs.parse import parse_amounts, parse_fraction, parse_names, parse_number
+
+        def number(name: str, param: str, unit: str):
+            text = self._text(name)
+            return parse_number(text, param, unit) if text else None
+
+        fields = {"oil": parse_amounts(self._text("oil"), "oil"), "brix": number("brix", "brix", "degrees Brix"),
+                  "dilution": number("dilution", "dilution", "parts of drink per part of concentrate"),
+                  "droplet_um": number("droplet", "droplet_um", "um"),
+                  "jurisdictions": parse_names(self._text("jurisdiction"), "jurisdictions")}
+        if self._text("oil-pct"):  # else the request's default
+            fields["oil_phase"] = parse_fraction(self._text("oil-pct"), "oil_phase")
+        return EmulsionRequest(**fields)
+
     # ---------------------------------------------------------------- work
     def compute(self, interactive: bool = True) -> None:
-        """Run both engines; a user's mistake shows in its block (and in a dialog when asked for)."""
+        """Run both jobs; a user's mistake shows in its block (and in a dialog when asked for)."""
         from ..errors import SolvselError
         from .dialogs import show_error
 
         errors = []
-        for part in (self.compute_hlb, self.compute_design):
+        for part, labels in ((self.compute_hlb, self.HLB_FIELD_LABELS), (self.compute_design, self.FIELD_LABELS)):
             try:
                 part()
             except SolvselError as exc:
-                errors.append(exc)
+                errors.append((exc, labels))
         self.show_cautions()
         if errors and interactive:
-            show_error(self.app, errors[0])
+            show_error(self.app, *errors[0])
+
+    @staticmethod
+    def _error_text(title: str, exc, labels: dict) -> Text:
+        said = plain_message(exc.describe(lambda p: field_label(p, labels)))
+        return Text.assemble((title, "bold"), (f"{exc.title}: ", "bold"), said)
 
     def compute_hlb(self) -> None:
-        from ..science import hlb as H
-        from ..jobs.parse import parse_amounts, parse_names
+        """The ``hlb`` job on the HLB fields: the required HLB and the pairs that hit it."""
+        from ..errors import SolvselError
+        from ..jobs.hlb import hlb
 
-        cat = self.session.catalog
         box = self.query_one("#em-hlb", Static)
         grid = self.query_one("#em-pairs", DataTable)
         fill_table(grid, PAIR_HEADERS, [])
         self.hlb_result, self.pairs = None, ()
         try:
-            rhlb = self.query_one("#em-rhlb", Input).value
-            overrides = dict(parse_amounts(rhlb, "your required HLB")) if rhlb.strip() else None
-            oils = self.query_one("#em-hlb-oil", Input).value
-            phase = H.oil_phase_required_hlb(cat, parse_amounts(oils, "oils whose required HLB counts"), overrides)
-            self.hlb_result = phase
-            names = parse_names(self.query_one("#em-emulsifiers", Input).value, "emulsifiers")
-            pairs = H.emulsifier_systems(H.pool_from_catalog(cat, names), phase.required_hlb, 2, 0.0)
-        except Exception as exc:
-            box.update(Text.assemble(("Emulsifiers (HLB)\n", "bold"), (f"{getattr(exc, 'title', 'Error')}: ", "bold"), plain_message(str(exc))))
+            r = hlb(self.hlb_request(), catalog=self.session.catalog)
+        except SolvselError as exc:
+            box.update(self._error_text("Emulsifiers (HLB)\n", exc, self.HLB_FIELD_LABELS))
             raise
-        self.pairs = tuple(pairs)
+        self.hlb_result, self.pairs = r, r.pairs
         t = Text()
         t.append("Emulsifiers (HLB)\n", style="bold")
-        t.append(f"required HLB of the oil phase {phase.required_hlb:.1f}\n")
-        for c in phase.components:
+        t.append(f"required HLB of the oil phase {r.required_hlb:.1f}\n")
+        for c in r.oil_phase:
             t.append(f"  {c['name']:<32} {c['mass_fraction']:.3f}  HLB {c['rhlb']:.1f}  {c.get('basis', '')}\n", style="dim")
-        t.append(f"{len(pairs)} pairs of the chosen emulsifiers hit it:" if pairs else "no pair of the chosen emulsifiers hits it")
+        t.append(f"{r.pairs_found} pairs of the chosen emulsifiers hit it:" if r.pairs_found
+                 else "no pair of the chosen emulsifiers hits it")
         box.update(t)
         fill_table(grid, PAIR_HEADERS, [
             (p.names[0], f"{p.fractions[0]:.2f}", p.names[1], f"{p.fractions[1]:.2f}", f"{p.hlb:.1f}",
-             "yes" if p.same_tail else "no") for p in pairs[:12]])
+             "yes" if p.same_tail else "no") for p in r.pairs])
 
     def compute_design(self) -> None:
-        from ..jobs.parse import parse_amounts, parse_names
-        from ..science.emulsion import design_beverage_emulsion
+        """The ``emulsion`` job on the oil phase and drink fields."""
+        from ..errors import SolvselError
+        from ..jobs.emulsion import emulsion
 
-        cat = self.session.catalog
         box = self.query_one("#em-design", Static)
         wgrid = self.query_one("#em-weighting", DataTable)
         fill_table(wgrid, WEIGHTING_HEADERS, [])
         self.design = None
         try:
-            q = self.query_one
-            oil_pct = _num(q("#em-oil-pct", Input).value, "oil phase in the concentrate", 10.0)
-            r = design_beverage_emulsion(
-                cat, parse_amounts(q("#em-oil", Input).value, "oil phase"),
-                brix=_num(q("#em-brix", Input).value, "Brix"),
-                dilution=_num(q("#em-dilution", Input).value, "dilution"),
-                oil_in_concentrate=oil_pct / 100.0,
-                droplet_um=_num(q("#em-droplet", Input).value, "droplet diameter"),
-                jurisdictions=tuple(j.upper() for j in parse_names(q("#em-jurisdiction", Input).value, "jurisdictions")),
-            )
-        except Exception as exc:
-            box.update(Text.assemble(("Weighting and creaming\n", "bold"), (f"{getattr(exc, 'title', 'Error')}: ", "bold"), plain_message(str(exc))))
+            r = emulsion(self.emulsion_request(), catalog=self.session.catalog)
+        except SolvselError as exc:
+            box.update(self._error_text("Weighting and creaming\n", exc, self.FIELD_LABELS))
             self.query_one("#em-ripening", Static).update("")
             raise
         self.design = r
+        box.update(self._design_text(r))
+        fill_table(wgrid, WEIGHTING_HEADERS, [
+            (j, " + ".join(o.agents) or "none needed", " + ".join(f"{x:.1%}" for x in o.fractions),
+             " + ".join(f"{x:.4g}" for x in o.levels_ppm),
+             " / ".join("-" if x is None else f"{x:.4g}" for x in o.limits_ppm), f"{o.density:.4f}",
+             ("matched" if o.matched else "partial") + ("" if o.legal else ", OVER"))
+            for j, opts in r.weighting.items() for o in opts])
+        self.query_one("#em-ripening", Static).update(self._ripening_text(r))
+
+    @staticmethod
+    def _design_text(r) -> Text:
         t = Text()
         t.append("\nWeighting and creaming\n", style="bold")
         t.append(f"drink density {r.beverage_density:.4f} g/cm3 ({r.beverage_density_basis})\n")
@@ -203,13 +234,10 @@ class EmulsionScreen(BenchScreen):
                      f"{r.time_to_cream_days:.4g} days to cross {r.height_mm:g} mm\n")
         t.append(f"largest droplet that crosses less than {r.height_mm:g} mm in {r.shelf_days:g} days: {r.max_droplet_um:.3g} um\n")
         t.append("\nWays to weight the oil phase to the drink's density:", style="bold")
-        box.update(t)
-        fill_table(wgrid, WEIGHTING_HEADERS, [
-            (j, " + ".join(o.agents) or "none needed", " + ".join(f"{x:.1%}" for x in o.fractions),
-             " + ".join(f"{x:.4g}" for x in o.levels_ppm),
-             " / ".join("-" if x is None else f"{x:.4g}" for x in o.limits_ppm), f"{o.density:.4f}",
-             ("matched" if o.matched else "partial") + ("" if o.legal else ", OVER"))
-            for j, opts in r.weighting.items() for o in opts])
+        return t
+
+    @staticmethod
+    def _ripening_text(r) -> Text:
         rp = Text()
         for j, msgs in r.weighting_excluded.items():
             for m in msgs:
@@ -220,15 +248,12 @@ class EmulsionScreen(BenchScreen):
             rp.append(f"remedy: {r.ripening.remedy}\n", style="italic")
         for ref in r.refusals:
             rp.append(f"over the legal maximum: {ref}\n", style="bold")
-        self.query_one("#em-ripening", Static).update(rp)
+        return rp
 
     def show_cautions(self) -> None:
-        cautions = []
-        if self.design is not None:
-            cautions += list(self.design.cautions)
-        if self.hlb_result is not None:
-            cautions += list(self.hlb_result.cautions)
+        """The cautions of both results (those of HLB work even when the HLB part failed)."""
         from ..jobs.hlb import HLB_CAUTIONS
 
-        cautions += list(HLB_CAUTIONS)
+        cautions = list(self.design.cautions) if self.design is not None else []
+        cautions += list(self.hlb_result.cautions) if self.hlb_result is not None else list(HLB_CAUTIONS)
         self.query_one("#em-cautions", CautionBox).show(cautions)
