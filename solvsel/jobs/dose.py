@@ -17,7 +17,7 @@ from __future__ import annotations
 
 import os
 from dataclasses import dataclass
-from typing import Any, Mapping, Sequence
+from typing import Any, Mapping
 
 from ..data.catalog import Catalog
 from ..errors import InputError, UnknownNameError
@@ -84,7 +84,22 @@ def _dose_field(value) -> str | None:
     return text
 
 
+def _mg_per_kg_field(value, param: str) -> tuple[tuple[str, float], ...] | None:
+    """``(name, mg/kg)`` pairs, a name given twice keeping its last amount; None for nothing."""
+    if value is None or (isinstance(value, str) and not value.strip()):
+        return None
+    return tuple(dict(_amount_pairs(value, param, "mg/kg")).items())
+
+
+def _claims_field(value) -> tuple[str, ...]:
+    """Claim names from ``"halal, kosher"`` or a list."""
+    if isinstance(value, str):
+        return tuple(parse_names(value, "claims"))
+    return check_names(value, "claims", allow_none=False) if value else ()
+
+
 def _optional_text(value, param: str) -> str | None:
+    """Stripped text, or None for nothing."""
     if value is None:
         return None
     if not isinstance(value, str):
@@ -144,24 +159,22 @@ class DoseRequest:
     formula_density: float | None = None
 
     def __post_init__(self) -> None:
-        put = lambda name, value: object.__setattr__(self, name, value)  # noqa: E731
-        put("formula", _formula_field(self.formula))
-        put("jurisdiction", check_choice(self.jurisdiction, "jurisdiction", FOOD_JURISDICTIONS))
-        put("by", check_choice(self.by, "by", ("mass", "volume")))
-        put("dose", _dose_field(self.dose))
-        put("chain", _optional_text(self.chain, "chain"))
-        put("category", _optional_text(self.category, "category"))
-        for name in ("already", "residues"):
-            value = getattr(self, name)
-            if isinstance(value, str) and not value.strip():
-                value = None
-            put(name, None if value is None else tuple(dict(_amount_pairs(value, name, "mg/kg")).items()))
-        claims = self.claims
-        put("claims", tuple(parse_names(claims, "claims")) if isinstance(claims, str)
-            else check_names(claims, "claims", allow_none=False) if claims else ())
-        put("formula_density", check_number(self.formula_density, "formula_density", *FORMULA_DENSITY_RANGE,
-                                            unit="g/cm3", allow_none=True))
-        self.steps()  # the dose and the chain read as a chain
+        checked = {
+            "formula": _formula_field(self.formula),
+            "jurisdiction": check_choice(self.jurisdiction, "jurisdiction", FOOD_JURISDICTIONS),
+            "by": check_choice(self.by, "by", ("mass", "volume")),
+            "dose": _dose_field(self.dose),
+            "chain": _optional_text(self.chain, "chain"),
+            "category": _optional_text(self.category, "category"),
+            "already": _mg_per_kg_field(self.already, "already"),
+            "residues": _mg_per_kg_field(self.residues, "residues"),
+            "claims": _claims_field(self.claims),
+            "formula_density": check_number(self.formula_density, "formula_density", *FORMULA_DENSITY_RANGE,
+                                            unit="g/cm3", allow_none=True),
+        }
+        for name, value in checked.items():
+            object.__setattr__(self, name, value)
+        self.steps()  # the dose and the chain must read as a chain
 
     def steps(self) -> list[Step]:
         """The dilution chain as steps, the dose in the first one."""

@@ -39,7 +39,7 @@ import difflib
 import math
 import re
 from dataclasses import asdict, dataclass, field
-from typing import Any, Iterable, Mapping, Sequence
+from typing import Any, Mapping, Sequence
 
 from ..data.catalog import number_or_none as _number
 from ..errors import InputError, MissingDataError, TableError, UnknownNameError
