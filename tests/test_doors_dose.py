@@ -56,11 +56,15 @@ def _essentials(d):
 
 @pytest.mark.parametrize("case", CASES)
 def test_library_and_command_line_agree(case, capsys):
-    lib = solvsel.dose(**case).to_dict()
+    result = solvsel.dose(**case)
+    lib = result.to_dict()
     assert main(_argv(case)) == 0
     cli = json.loads(capsys.readouterr().out)
     assert _essentials(cli) == _essentials(lib)
     assert cli["max_dose"] == pytest.approx(lib["max_dose"], rel=1e-12)
+    # the table form holds the same limits
+    table = result.to_frame()
+    assert list(table["rule"]) == [c["rule"] for c in cli["limits"]] and list(table["binds"]) == [c["binds"] for c in cli["limits"]]
 
 
 def test_readme_lemon_flavour_max_dose_by_hand():
