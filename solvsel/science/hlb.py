@@ -12,7 +12,7 @@ required HLB back from the stability scores of that series.
 
 HLB is a planning number: it ignores temperature, salt, the chemistry of the
 oil and the concentration, and it does not describe biopolymers (gum arabic,
-OSA starch, proteins) or saponins.  The results carry that caution.
+OSA starch, proteins) or saponins.  The ``hlb`` job's results carry that caution.
 
 References
 ----------
@@ -34,8 +34,8 @@ from __future__ import annotations
 
 import itertools
 import math
-from dataclasses import asdict, dataclass, field
-from typing import Iterable, Mapping, Sequence
+from dataclasses import asdict, dataclass
+from typing import Mapping, Sequence
 
 import numpy as np
 
