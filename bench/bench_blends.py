@@ -7,7 +7,7 @@ Prints:
    starts), with the per-combination speed ratio (goal: at least 50x) and the
    largest difference in Ra between the two optima;
 3. a table of time against pool size (20, 40, 80, 120) and blend size (2, 3, 4);
-4. the whole catalog-level search (optimise_blends) on the bundled table.
+4. the whole ``blend`` job (solvsel.jobs.blend) on the bundled table.
 
 The pools are random liquids spread over the range of food and bench solvents
 (dD 14-20, dP 0-20, dH 0-42 MPa^0.5) with a fixed seed, so runs compare.
@@ -131,13 +131,13 @@ def main(argv=None):
         print(f"   {m:>4}  " + "  ".join(cells))
 
     print("\n4. Whole blend search on the bundled table (every check: one-phase screen, hazard, food law)")
-    from solvsel.science.blends import optimise_blends
     from solvsel.data.catalog import load_catalog
+    from solvsel.jobs.blend import blend
 
     cat = load_catalog()
-    optimise_blends(cat, (17.8, 3.9, 9.9), max_components=2)  # warm the pair-matrix cache
+    blend(hsp=(17.8, 3.9, 9.9), max_components=2, catalog=cat)  # warm the pair-matrix cache
     for k_max in (3, 4):
-        t, res = timed(lambda: optimise_blends(cat, (17.8, 3.9, 9.9), max_components=k_max), 1 if args.quick else 3)
+        t, res = timed(lambda: blend(hsp=(17.8, 3.9, 9.9), max_components=k_max, catalog=cat), 1 if args.quick else 3)
         print(f"   {res.counts['liquids']} liquids, up to {k_max}: {res.counts['combinations']:>8} combinations "
               f"in {t:.3f} s")
 

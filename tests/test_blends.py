@@ -1,4 +1,4 @@
-"""Tests of the blend optimiser (solvsel.science.blends) and of ``solvsel blend``.
+"""Tests of the blend optimiser (solvsel.science.blends), the ``blend`` job and ``solvsel blend``.
 
 Outside references used here:
 - scipy.optimize SLSQP, a general constrained optimiser, on the same problems
@@ -259,9 +259,17 @@ def test_bad_input_raises_input_error():
 
 # ---------------------------------------------------------------- catalog level
 
-from solvsel.jobs.parse import parse_fraction_bound
-from solvsel.science.blends import FractionBound, optimise_blends  # noqa: E402
+from solvsel.jobs.blend import blend  # noqa: E402
+from solvsel.jobs.parse import parse_fraction_bound  # noqa: E402
+from solvsel.science.blends import FractionBound  # noqa: E402
 from solvsel.errors import UnknownNameError  # noqa: E402
+
+
+def _blend(cat, target, **fields):
+    """The ``blend`` job for a target given as typed HSP (dD, dP, dH[, R0]) or by a solute's name."""
+    if isinstance(target, str):
+        return blend(solute=target, catalog=cat, **fields)
+    return blend(hsp=tuple(float(v) for v in np.ravel(target)), catalog=cat, **fields)
 
 
 @pytest.fixture(scope="module")
@@ -282,7 +290,7 @@ def test_round_trip_table_liquids(cat):
     # three liquids, fractions within 0.01 (a blend is made up to about 1 % at the bench).
     made = {"ethanol": 0.5, "water": 0.3, "glycerol": 0.2}
     t = sum(x * cat.solvent(n).hsp for n, x in made.items())
-    res = optimise_blends(cat, t, max_components=3, only=CARRIERS)
+    res = _blend(cat, t, max_components=3, only=CARRIERS)
     best = res.results[0]
     assert best.ra < 1e-6
     found = {c.name: c.volume_fraction for c in best.components}
@@ -296,7 +304,7 @@ def test_two_non_solvents_found_from_the_table(cat):
     # Collodion: nitrocellulose dissolves in diethyl ether + ethanol though in
     # neither alone (Hansen 2007, ch. 1, two-non-solvent effect). Sphere
     # (15.4, 14.7, 8.8), R0 11.5 from memory of the handbook's polymer table.
-    res = optimise_blends(cat, (15.4, 14.7, 8.8, 11.5), max_components=2, only=["diethyl ether", "ethanol"])
+    res = _blend(cat, (15.4, 14.7, 8.8, 11.5), max_components=2, only=["diethyl ether", "ethanol"])
     singles = {b.names[0]: b.red for b in res.results if len(b.components) == 1}
     assert singles["diethyl ether"] > 1 and singles["ethanol"] > 1
     best = res.results[0]
@@ -306,7 +314,7 @@ def test_two_non_solvents_found_from_the_table(cat):
 def test_fraction_bounds_are_met(cat):
     # common practice: "ethanol at most 0.3 by volume, water at least 0.1"
     t = (15.8, 8.8, 19.4)  # ethanol's own HSP: pure ethanol would be best
-    res = optimise_blends(cat, t, max_components=3, only=CARRIERS,
+    res = _blend(cat, t, max_components=3, only=CARRIERS,
                           bounds=[parse_fraction_bound("ethanol<=0.3"), FractionBound("water", lower=0.1)])
     assert res.results
     for b in res.results:
@@ -319,7 +327,7 @@ def test_fraction_bounds_are_met(cat):
 
 def test_pool_constraints_leave_liquids_out_with_reasons(cat):
     t = (16.5, 6.0, 12.0)
-    res = optimise_blends(cat, t, max_components=2, use="carrier", worst_flammable_category="none",
+    res = _blend(cat, t, max_components=2, use="carrier", worst_flammable_category="none",
                           bp_min_C=150, max_cost=3)
     reasons = {e.name: e.reason for e in res.excluded}
     assert "not listed for use as carrier" in reasons["n-hexane"]
@@ -329,7 +337,7 @@ def test_pool_constraints_leave_liquids_out_with_reasons(cat):
             rec = cat.solvent(c.name)
             assert "carrier" in rec.roles and rec.bp_C >= 150 and rec.cost_class <= 3
         assert b.hazard_rank == 0
-    res = optimise_blends(cat, t, max_components=2, only=CARRIERS, min_flash_C=60)
+    res = _blend(cat, t, max_components=2, only=CARRIERS, min_flash_C=60)
     names = {c.name for b in res.results for c in b.components}
     assert "ethanol" not in names and "ethyl acetate" not in names
     assert any("flash point" in e.reason for e in res.excluded)
@@ -338,7 +346,7 @@ def test_pool_constraints_leave_liquids_out_with_reasons(cat):
 def test_jurisdiction_filters_by_food_law(cat):
     # Directive 2009/32/EC Annex I (bundled regulations table): ethanol is a GMP
     # extraction solvent; a liquid absent from the positive list is left out.
-    res = optimise_blends(cat, (17.8, 3.9, 9.9), max_components=2, use="extraction", jurisdiction="EU")
+    res = _blend(cat, (17.8, 3.9, 9.9), max_components=2, use="extraction", jurisdiction="EU")
     names = {c.name for b in res.results for c in b.components}
     excluded = {e.name: e.reason for e in res.excluded}
     assert "n-heptane" in excluded and "not permitted" in excluded["n-heptane"]
@@ -350,18 +358,18 @@ def test_two_phase_blends_are_dropped_with_reason(cat):
     # Water and triacetin are only partly miscible (measured pair of the
     # miscibility table): the fit-optimal water/triacetin blend is dropped.
     t = 0.3 * cat.solvent("water").hsp + 0.7 * cat.solvent("triacetin").hsp
-    res = optimise_blends(cat, t, max_components=3, only=["ethanol", "water", "triacetin"])
+    res = _blend(cat, t, max_components=3, only=["ethanol", "water", "triacetin"])
     dropped = {tuple(sorted(d.names)): d.reason for d in res.dropped}
     assert ("triacetin", "water") in dropped and "two phases" in dropped[("triacetin", "water")]
     assert all(b.one_phase for b in res.results)
     assert res.counts["two_phase"] >= 1
-    kept = optimise_blends(cat, t, max_components=3, only=["ethanol", "water", "triacetin"], one_phase_only=False)
+    kept = _blend(cat, t, max_components=3, only=["ethanol", "water", "triacetin"], one_phase_only=False)
     flagged = [b for b in kept.results if set(b.names) == {"water", "triacetin"}]
     assert flagged and flagged[0].one_phase is False
 
 
 def test_mass_fractions_and_properties(cat):
-    res = optimise_blends(cat, (16.0, 12.0, 30.0), max_components=2, only=["ethanol", "water"])
+    res = _blend(cat, (16.0, 12.0, 30.0), max_components=2, only=["ethanol", "water"])
     b = next(b for b in res.results if len(b.components) == 2)
     rho = {"ethanol": 0.7852, "water": 0.9971}  # table densities at 25 C
     m = {c.name: c.volume_fraction * rho[c.name] for c in b.components}
@@ -381,12 +389,12 @@ def test_temperature_shift(cat):
     # Liquids' HSP at 60 C by the Hansen-Beerbower rules of the Hansen engine
     from solvsel.science.hansen import shift_temperature
 
-    res = optimise_blends(cat, (16.0, 9.0, 18.0), max_components=1, only=["ethanol", "propylene glycol"], temp_C=60)
+    res = _blend(cat, (16.0, 9.0, 18.0), max_components=1, only=["ethanol", "propylene glycol"], temp_C=60)
     for b in res.results:
         rec = cat.solvent(b.names[0])
         np.testing.assert_allclose([b.dD, b.dP, b.dH], shift_temperature(rec.hsp, rec.alpha_1_K, 60.0), atol=1e-12)
     # water freezes at -40 C: left out with the reason
-    res = optimise_blends(cat, (16.0, 9.0, 18.0), max_components=2, only=["ethanol", "water"], temp_C=-40)
+    res = _blend(cat, (16.0, 9.0, 18.0), max_components=2, only=["ethanol", "water"], temp_C=-40)
     assert [e.name for e in res.excluded] == ["water"]
 
 
@@ -394,8 +402,8 @@ def test_selectivity_ranks_the_trade_off_front_first(cat):
     # Typed target and reject spheres (RED basis): every result dissolves the
     # target better than the nearest reject, and the first is non-dominated.
     target = (17.8, 3.9, 9.9, 6.0)
-    rejects = [("sugar-like", (17.0, 18.5, 30.0), 8.0), ("wax-like", (16.0, 1.2, 2.4), 4.0)]
-    res = optimise_blends(cat, target, max_components=2, only=CARRIERS, rejects=rejects)
+    rejects = [(17.0, 18.5, 30.0, 8.0), (16.0, 1.2, 2.4, 4.0)]  # sugar-like, wax-like
+    res = _blend(cat, target, max_components=2, only=CARRIERS, reject_hsp=rejects)
     assert res.results and res.results[0].pareto
     for b in res.results:
         assert b.selectivity_basis == "RED"
@@ -416,7 +424,7 @@ def test_selectivity_ranks_the_trade_off_front_first(cat):
         if not b.pareto:
             assert any(dominates(p, b) for p in res.pareto)
     # rejects without radius: Ra basis
-    res = optimise_blends(cat, (17.8, 3.9, 9.9), max_components=2, only=CARRIERS, rejects=[cat.solute("sucrose")])
+    res = _blend(cat, (17.8, 3.9, 9.9), max_components=2, only=CARRIERS, rejects=["sucrose"])
     assert res.results[0].selectivity_basis == "Ra" and res.results[0].worst_reject_red is None
 
 
@@ -431,19 +439,19 @@ def test_parse_fraction_bound():
 
 def test_user_mistakes_raise_solvsel_errors(cat):
     with pytest.raises(UnknownNameError):
-        optimise_blends(cat, (16, 5, 10), only=["ethanool"])
+        _blend(cat, (16, 5, 10), only=["ethanool"])
     with pytest.raises(InputError):
-        optimise_blends(cat, (16, 5, 10), max_components=5)
+        _blend(cat, (16, 5, 10), max_components=5)
     with pytest.raises(InputError):  # water required but excluded
-        optimise_blends(cat, (16, 5, 10), exclude=["water"], bounds=[parse_fraction_bound("water>=0.1")])
+        _blend(cat, (16, 5, 10), exclude=["water"], bounds=[parse_fraction_bound("water>=0.1")])
     with pytest.raises(InputError):
-        optimise_blends(cat, (16, 5, 10), use="cleaning")
+        _blend(cat, (16, 5, 10), use="cleaning")
     with pytest.raises(InputError):
-        optimise_blends(cat, (16, 5, 10), bounds=[parse_fraction_bound("water>=0.6"), parse_fraction_bound("ethanol>=0.6")])
+        _blend(cat, (16, 5, 10), bounds=[parse_fraction_bound("water>=0.6"), parse_fraction_bound("ethanol>=0.6")])
 
 
 def test_no_blend_is_data_not_an_error(cat):
-    res = optimise_blends(cat, (16, 5, 10), only=["ethanol", "water"], bounds=[parse_fraction_bound("ethanol<=0.2"), parse_fraction_bound("water<=0.2")],
+    res = _blend(cat, (16, 5, 10), only=["ethanol", "water"], bounds=[parse_fraction_bound("ethanol<=0.2"), parse_fraction_bound("water<=0.2")],
                           max_components=2)
     assert not res.success and not res.results and res.message
 
@@ -502,7 +510,7 @@ def test_dose_limits_drop_carriers_over_the_limit(cat):
     # No 1333/2008 Annex III Part 4, bundled regulations table; secondary
     # source, verify): a flavour of pure PG at 0.15 % in a drink is over it,
     # ethanol (a food, no carrier limit) is not.
-    res = optimise_blends(cat, (16.8, 10.4, 21.3), max_components=2, only=["propylene glycol", "ethanol"],
+    res = _blend(cat, (16.8, 10.4, 21.3), max_components=2, only=["propylene glycol", "ethanol"],
                           dose="0.15%", jurisdiction="EU", category="flavoured drinks")
     dropped = {d.names: d.reason for d in res.dropped}
     assert ("propylene glycol",) in dropped and "over a limit" in dropped[("propylene glycol",)]
@@ -510,21 +518,21 @@ def test_dose_limits_drop_carriers_over_the_limit(cat):
     for b in res.results:
         assert b.dose_check["ok"] is True
     with pytest.raises(InputError):
-        optimise_blends(cat, (16.8, 10.4, 21.3), only=["ethanol"], dose="0.15%")
+        _blend(cat, (16.8, 10.4, 21.3), only=["ethanol"], dose="0.15%")
 
 
 def test_progress_and_cancel(cat):
     seen = []
-    res = optimise_blends(cat, (16, 5, 10), max_components=3, progress=lambda d, t: seen.append((d, t)))
+    res = _blend(cat, (16, 5, 10), max_components=3, progress=lambda d, t: seen.append((d, t)))
     assert res.success and seen and seen[-1][0] == seen[-1][1] == res.counts["combinations"]
-    res = optimise_blends(cat, (16, 5, 10), max_components=3, progress=lambda d, t: False)
+    res = _blend(cat, (16, 5, 10), max_components=3, progress=lambda d, t: False)
     assert not res.success and "cancelled" in res.message
 
 
 def test_required_liquid_below_the_component_minimum_is_kept(cat):
     # water >= 0.02 forces 2 % water, under the 5 % component minimum: such
     # blends are still the answer (the smaller blend without water is not allowed)
-    res = optimise_blends(cat, (15.8, 8.8, 19.4), max_components=2, only=["ethanol", "water", "propylene glycol"],
+    res = _blend(cat, (15.8, 8.8, 19.4), max_components=2, only=["ethanol", "water", "propylene glycol"],
                           bounds=[parse_fraction_bound("water>=0.02")])
     assert res.results
     best = {c.name: c.volume_fraction for c in res.results[0].components}
@@ -549,7 +557,7 @@ def test_users_own_liquids_are_marked(tmp_path):
         w.writeheader()
         w.writerow(row)
     cat = load_catalog(own={"solvents": [str(own)]})
-    res = optimise_blends(cat, (16.5, 4.5, 9.1), max_components=2, only=["my carrier X", "ethanol"])
+    res = _blend(cat, (16.5, 4.5, 9.1), max_components=2, only=["my carrier X", "ethanol"])
     best = res.results[0]
     assert best.names == ("my carrier X",) and best.ra < 1e-9
     assert best.components[0].origin.startswith("user") and "(yours)" in best.label
@@ -560,9 +568,7 @@ def test_liquids_of_the_same_hsp_fold_into_one_blend(cat):
     # lists them alike) and benzyl alcohol is miscible with fatty oils (European
     # Pharmacopoeia monograph, from memory): the blends that differ only in the oil
     # are one answer of the model, shown once with the others as alternatives.
-    from solvsel.science.blends import optimise_blends
-
-    res = optimise_blends(cat, cat.solute("cannabidiol"), max_components=2, use="carrier", jurisdiction="EU", top=10)
+    res = _blend(cat, "cannabidiol", max_components=2, use="carrier", jurisdiction="EU", top=10)
     oils = {"sunflower oil", "olive oil", "rapeseed oil", "soybean oil", "corn oil"}
     hsp = {tuple(cat.solvent(o).hsp) for o in oils}
     assert len(hsp) == 1

@@ -20,10 +20,8 @@ from solvsel.science import hansen as H
 from solvsel.data.catalog import load_catalog
 from solvsel.cli import main
 from solvsel.errors import InputError, OutOfRangeError, UnknownNameError
+from solvsel.jobs.rank import rank
 from solvsel.science.target import (
-    Target,
-    nearest_liquids,
-    rank_solvents,
     target_from_hsp,
     target_from_smiles,
     target_from_solute,
@@ -81,7 +79,7 @@ def test_ranking_matches_ra_worked_by_hand(cat):
     # Ra of every ranked liquid equals the hand formula on its table row
     # (Hansen 2007 definition); the order is by RED = Ra / R0
     t = target_from_hsp((17.0, 3.0, 8.0, 8.0))
-    r = rank_solvents(cat, t)
+    r = rank(target=t, all=True, catalog=cat)
     assert r.sorted_by == "red" and len(r.results) == len(cat.solvent_records())
     for x in r.results:
         s = cat.solvent(x.name)
@@ -93,15 +91,15 @@ def test_ranking_matches_ra_worked_by_hand(cat):
 
 def test_ranking_of_a_nonpolar_target_puts_hydrocarbons_first_and_water_last(cat):
     # common practice: like dissolves like
-    r = rank_solvents(cat, target_from_hsp((15.0, 0.5, 0.5)))
+    r = rank(hsp=(15.0, 0.5, 0.5), all=True, catalog=cat)
     assert r.results[0].name in {"n-hexane", "n-heptane", "n-pentane", "isobutane", "n-butane", "cyclohexane"}
     assert r.results[-1].name in {"water", "formamide", "glycerol"}
 
 
 def test_temperature_shifts_solvents_and_drops_boiling_ones(cat):
     t = target_from_hsp((17.0, 3.0, 8.0, 8.0))
-    r40 = rank_solvents(cat, t, temp_C=40.0)
-    dropped = {d["name"]: d["reason"] for d in r40.dropped}
+    r40 = rank(target=t, temp_C=40.0, all=True, catalog=cat)
+    dropped = {d.name: d.reason for d in r40.dropped}
     # diethyl ether boils at 34.6 C (CRC Handbook, from memory)
     assert "diethyl ether" in dropped and "boil" in dropped["diethyl ether"]
     eth = next(x for x in r40.results if x.name == "ethanol")
@@ -110,19 +108,19 @@ def test_temperature_shifts_solvents_and_drops_boiling_ones(cat):
     assert [eth.dD, eth.dP, eth.dH] == pytest.approx(expected.tolist())
     assert any("shifted" in n for n in r40.notes)
     with pytest.raises(OutOfRangeError):
-        rank_solvents(cat, t, temp_C=500.0)
+        rank(target=t, temp_C=500.0, catalog=cat)
 
 
 def test_food_filter_uses_the_compliance_status(cat):
     from solvsel.rules.regulations import food_status
 
     # with no use given, a liquid allowed as a carrier or as an extraction solvent is kept
-    r = rank_solvents(cat, target_from_hsp((17.0, 3.0, 8.0)), food=True)
+    r = rank(hsp=(17.0, 3.0, 8.0), food=True, all=True, catalog=cat)
     assert r.results
     for x in r.results:
         assert food_status(cat, x.name, use="carrier").allowed or food_status(cat, x.name, use="extraction").allowed
     assert "ethyl acetate" in {x.name for x in r.results}  # an extraction solvent in the EU and US
-    r = rank_solvents(cat, target_from_hsp((17.0, 3.0, 8.0)), food=True, use="carrier")
+    r = rank(hsp=(17.0, 3.0, 8.0), food=True, use="carrier", all=True, catalog=cat)
     for x in r.results:
         assert food_status(cat, x.name, use="carrier").allowed
     names = {x.name for x in r.results}
@@ -134,23 +132,25 @@ def test_dose_check_drops_carriers_over_the_limit(cat):
     # at most 1 000 mg/L in beverages, so a flavour that is all glycol cannot
     # be dosed at 0.15 % (1 500 mg/kg) in a drink
     t = target_from_hsp((17.0, 9.0, 18.0))
-    r = rank_solvents(cat, t, food=True, dose="0.15%", category="flavoured drinks", jurisdiction="EU")
-    assert "propylene glycol" in {d["name"] for d in r.dropped}
-    kept = rank_solvents(cat, t, food=True, dose="0.15%", category="flavoured drinks", jurisdiction="EU", keep_over=True)
+    r = rank(target=t, food=True, dose="0.15%", category="flavoured drinks", jurisdiction="EU", all=True, catalog=cat)
+    assert "propylene glycol" in {d.name for d in r.dropped}
+    assert {d.filter for d in r.dropped if d.name == "propylene glycol"} == {"dose"}
+    kept = rank(target=t, food=True, dose="0.15%", category="flavoured drinks", jurisdiction="EU", keep_over=True,
+                all=True, catalog=cat)
     pg = next(x for x in kept.results if x.name == "propylene glycol")
     assert pg.dose["ok"] is False
     with pytest.raises(InputError, match="jurisdiction"):
-        rank_solvents(cat, t, dose="0.15%", category="flavoured drinks")
+        rank(target=t, dose="0.15%", category="flavoured drinks", catalog=cat)
 
 
 def test_substitutes_for_hexane_are_nearest_in_hansen_space(cat):
     # scikit-learn neighbours in the scaled space must equal a brute-force Ra sort
-    near = nearest_liquids(cat, "n-hexane", k=6)
+    near = rank(like="n-hexane", top=6, catalog=cat)
     assert "n-hexane" not in [x.name for x in near.results]
     hexane = cat.solvent("n-hexane").hsp
     brute = sorted((float(H.ra(s.hsp, hexane)), s.name) for s in cat.solvent_records() if s.name != "n-hexane")
     assert [round(x.ra, 9) for x in near.results] == [round(b[0], 9) for b in brute[:6]]
-    food = nearest_liquids(cat, "n-hexane", k=3, food=True)
+    food = rank(like="n-hexane", top=3, food=True, catalog=cat)
     assert all(x.food_allowed for x in food.results)
 
 
@@ -319,15 +319,14 @@ def test_engines_do_not_import_the_ui():
 
 def test_property_limits_apply_as_in_the_blend_search(cat):
     """--min-flash, --bp-range and --max-cost drop the same liquids in rank as in blend
-    (one shared rule, solvsel.science.blends.property_reason)."""
-    from solvsel.science.blends import property_reason
+    (one shared rule, solvsel.jobs.pool.property_reason)."""
+    from solvsel.jobs.pool import property_reason
 
-    t = target_from_hsp((17.0, 3.0, 8.0))
-    r = rank_solvents(cat, t, min_flash_C=60.0, bp_min_C=150.0, max_cost=3)
+    r = rank(hsp=(17.0, 3.0, 8.0), min_flash_C=60.0, bp_min_C=150.0, max_cost=3, all=True, catalog=cat)
     assert r.results
     for x in r.results:
         rec = cat.solvent(x.name)
         assert property_reason(rec, bp_min_C=150.0, min_flash_C=60.0, max_cost=3) is None
         assert rec.bp_C >= 150.0 and (not rec.flammable or rec.flash_C >= 60.0)
-    reasons = {d["name"]: d["reason"] for d in r.dropped}
+    reasons = {d.name: d.reason for d in r.dropped}
     assert "flash point 12 C" in reasons["ethanol"] or "boils at" in reasons["ethanol"]

@@ -59,7 +59,8 @@ def test_opens_on_demo_ranking_cautions_and_every_screen_by_key():
     async def go():
         from solvsel.rules.cautions import DEFER
         from solvsel.data.scenario import load_scenario
-        from solvsel.science.target import rank_solvents, target_from_solute
+        from solvsel.jobs.rank import rank
+        from solvsel.science.target import target_from_solute
 
         cat = load_catalog()
         app = create_app(catalog=cat)
@@ -77,7 +78,7 @@ def test_opens_on_demo_ranking_cautions_and_every_screen_by_key():
 
             # the ranking shows the best carrier as the library computes it
             target = target_from_solute(cat, scenario.target["solute"])
-            ref = rank_solvents(cat, target, food=True, use=c["use"], jurisdiction=c["jurisdiction"], top=15)
+            ref = rank(target=target, food=True, use=c["use"], jurisdiction=c["jurisdiction"], top=15, catalog=cat)
             grid = app.screen.query_one("#rank-grid")
             assert grid.row_count == len(ref.results)
             first = _cells(grid, 0)
@@ -121,7 +122,7 @@ def test_opens_on_demo_ranking_cautions_and_every_screen_by_key():
 
 def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled(monkeypatch):
     async def go():
-        from solvsel.science.blends import optimise_blends
+        from solvsel.jobs.blend import blend
         from solvsel.tui.carriers import BlendDone, BlendProgress
 
         cat = load_catalog()
@@ -138,8 +139,8 @@ def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled(monkey
             done = screen.messages[-1]
             assert not done.cancelled and done.result is not None
             c = app.session.scenario.carrier
-            ref = optimise_blends(cat, app.session.target, use=c["use"], jurisdiction=c["jurisdiction"],
-                                  max_components=c["max_components"], top=10, temp_C=25.0)
+            ref = blend(target=app.session.target, use=c["use"], jurisdiction=c["jurisdiction"],
+                        max_components=c["max_components"], top=10, temp_C=25.0, catalog=cat)
             assert [b.label for b in done.result.results] == [b.label for b in ref.results]
             assert _cells(screen.query_one("#blend-grid"), 0)[1] == ref.results[0].label
             assert screen.query_one("#dropped-grid").row_count == len(ref.dropped)
@@ -169,12 +170,12 @@ def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled(monkey
                 assert _cells(screen.query_one("#blend-grid"), 0) == shown
 
             # a fault of the program in the worker is shown in a dialog, not swallowed
-            import solvsel.science.blends
+            import solvsel.jobs.blend
 
             def broken(*args, **kwargs):
                 raise RuntimeError("simulated fault")
 
-            monkeypatch.setattr(solvsel.science.blends, "optimise_blends", broken)
+            monkeypatch.setattr(solvsel.jobs.blend, "blend", broken)
             screen.action_search()
             await _settle(app, pilot)
             await pilot.pause()

@@ -2,9 +2,17 @@
 
 from __future__ import annotations
 
-from ..jobs.parse import parse_amounts, parse_fraction_bound, parse_hsp, parse_names, parse_range
+from ..jobs.parse import parse_amounts, parse_fraction_bound, parse_names, parse_range
 from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
-from ._target import add_target_arguments, target_from_args
+from ._target import add_target_arguments, target_fields
+
+#: Request fields whose option is not ``--`` + the field's name.
+OPTION_NAMES = {
+    "worst_flammable_category": "--worst-hazard",
+    "rejects": "--reject",
+    "one_phase_only": "--keep-two-phase",
+    "target": "--solute",
+}
 
 
 def register(sub):
@@ -28,6 +36,8 @@ def register(sub):
                    help="intended use: keeps liquids listed for it (and, with --jurisdiction, permitted for it)")
     g.add_argument("--jurisdiction", choices=("EU", "US"),
                    help="leave out liquids the bundled food-law table does not permit for the use there")
+    g.add_argument("--food", action="store_true",
+                   help="only liquids whose food status for the use is permitted or conditional (in EU or US)")
     g.add_argument("--fraction", metavar="BOUND", action="append", default=[],
                    help="volume-fraction bound on a liquid, e.g. \"ethanol<=0.3\", \"water>=0.1\" (the liquid is then "
                    "in every blend), \"0.2<=triacetin<=0.6\"; repeat for several")
@@ -67,45 +77,25 @@ def register(sub):
     return p
 
 
-def _rejects(args, cat):
-    out = []
-    for text in args.reject:
-        for name in parse_names(text, "reject"):
-            out.append(cat.solute(name))
-    for i, text in enumerate(args.reject_hsp, start=1):
-        v = parse_hsp(text, "reject_hsp", allow_r0=True)
-        out.append((f"reject sphere {i} ({text})", v[:3], v[3] if len(v) == 4 else None))
-    return out
+def request(args):
+    """The :class:`~solvsel.jobs.blend.BlendRequest` the options describe."""
+    from ..jobs.blend import BlendRequest
 
-
-def search(args, cat):
-    """Run the search the options describe (also used by the report command and the UI)."""
-    from ..science.blends import optimise_blends
-
-    target = target_from_args(args, cat)
-    bp_lo, bp_hi = parse_range(args.bp_range)
-    return optimise_blends(
-        cat, target,
+    bp_lo, bp_hi = parse_range(args.bp_range, "bp_min_C")
+    return BlendRequest(
+        **target_fields(args),
         max_components=args.max_components,
         only=parse_names(args.only, "only") if args.only else None,
-        exclude=parse_names(args.exclude, "exclude") if args.exclude else None,
-        use=args.use,
-        jurisdiction=args.jurisdiction,
-        worst_flammable_category=args.worst_hazard,
-        bp_min_C=bp_lo, bp_max_C=bp_hi,
-        min_flash_C=args.min_flash,
-        max_cost=args.max_cost,
-        bounds=[parse_fraction_bound(b, "fraction") for b in args.fraction],
+        exclude=parse_names(args.exclude, "exclude") if args.exclude else (),
+        use=args.use, food=args.food, jurisdiction=args.jurisdiction, worst_flammable_category=args.worst_hazard,
+        bp_min_C=bp_lo, bp_max_C=bp_hi, min_flash_C=args.min_flash, max_cost=args.max_cost,
+        bounds=tuple(parse_fraction_bound(b, "bounds") for b in args.fraction),
         temp_C=args.temp,
-        rejects=_rejects(args, cat),
-        sort=args.sort,
-        one_phase_only=not args.keep_two_phase,
-        min_fraction=args.min_fraction,
-        top=args.top,
-        dose=args.dose,
-        category=args.category,
-        chain=args.chain,
-        already=dict(parse_amounts(args.already, "already")) if args.already else None,
+        rejects=tuple(n for text in args.reject for n in parse_names(text, "rejects")),
+        reject_hsp=tuple(args.reject_hsp),
+        sort=args.sort, one_phase_only=not args.keep_two_phase, min_fraction=args.min_fraction, top=args.top,
+        dose=args.dose, category=args.category, chain=args.chain,
+        already=tuple(parse_amounts(args.already, "already")) if args.already else None,
         keep_over=args.keep_over,
     )
 
@@ -194,6 +184,7 @@ def print_search(res, file=None) -> None:
         if rejects:
             notes.append("reject: distance of the nearest reject solute; margin: how much further it is than the target "
                          f"(in {basis}); * on the Pareto front (fit, reject distance, cost, hazard, components).")
+        notes += [f"#{b.rank}: {n}" for b in res.results for n in b.notes]
         for n in notes:
             print("  " + n, file=file)
         alike = [b for b in res.results if b.alternatives]
@@ -236,8 +227,7 @@ def print_search(res, file=None) -> None:
     if res.excluded:
         reasons = {}
         for e in res.excluded:
-            key = e.reason.split(":")[0] if "not permitted" in e.reason or "no data" in e.reason else e.reason
-            key = "not listed for that use" if key.startswith("not listed for use") else key
+            key = {"food law": e.reason.split(":")[0], "use": "not listed for that use"}.get(e.filter, e.reason)
             reasons.setdefault(key, []).append(e.name)
         print(f"\nLeft out of the pool: {len(res.excluded)} liquids", file=file)
         for key, names in list(reasons.items())[:8]:
@@ -251,10 +241,11 @@ def print_search(res, file=None) -> None:
 
 
 def run(args) -> int:
-    cat = get_catalog(args)
-    res = search(args, cat)
+    from ..jobs.blend import blend
+
+    res = blend(request(args), catalog=get_catalog(args))
     if args.json:
-        emit_json(res)
+        emit_json(res.to_dict())
     else:
         print_search(res)
     return 0

@@ -4,7 +4,14 @@ from __future__ import annotations
 
 from ..jobs.parse import parse_names, parse_range
 from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
-from ._target import add_target_arguments, target_from_args
+from ._target import add_target_arguments, target_fields
+
+#: Request fields whose option is not ``--`` + the field's name.
+OPTION_NAMES = {
+    "require_solubility": "--solubility",
+    "worst_flammable_category": "--worst-hazard",
+    "target": "--solute",
+}
 
 
 def register(sub):
@@ -22,6 +29,10 @@ def register(sub):
     p.add_argument("--use", choices=("carrier", "extraction", "bench"), default=None, help="intended use (default carrier)")
     p.add_argument("--jurisdiction", choices=("EU", "US"), help="food law to apply (default: most permissive of EU and US)")
     p.add_argument("--only", metavar="NAMES", help="rank only these liquids (comma-separated)")
+    p.add_argument("--exclude", metavar="NAMES", help="leave these liquids out (comma-separated)")
+    p.add_argument("--worst-hazard", metavar="CAT", choices=("1", "2", "3", "4", "none"),
+                   help="most hazardous GHS flammable-liquid category allowed: 1..4, or 'none' for non-flammable "
+                   "liquids only")
     p.add_argument("--top", type=int, default=15, metavar="N", help="show the best N (default 15)")
     p.add_argument("--all", action="store_true", help="show every ranked liquid")
     p.add_argument("--temp", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
@@ -31,6 +42,7 @@ def register(sub):
     p.add_argument("--max-cost", type=int, metavar="CLASS", help="dearest cost class allowed (1 cheap .. 5 dear)")
     p.add_argument("--dose", metavar="DOSE", help="dose of the flavour in the food, e.g. 0.15%% (needs --category and --jurisdiction)")
     p.add_argument("--category", metavar="CATEGORY", help="food category for the dose check (see: solvsel table food_categories)")
+    p.add_argument("--chain", metavar="CHAIN", help="dilution chain from the flavour to the food as consumed")
     p.add_argument("--solubility", action="store_true",
                    help="require the solubility estimate (error if the solute has no fusion data)")
     p.add_argument("--keep-over", action="store_true", help="keep carriers that break a limit at the dose (flagged) instead of dropping them")
@@ -38,26 +50,21 @@ def register(sub):
     return p
 
 
-def compute(args, cat):
-    """The :class:`~solvsel.science.target.Ranking` the options ask for."""
-    from ..errors import InputError
-    from ..science.target import nearest_liquids, rank_solvents
+def request(args):
+    """The :class:`~solvsel.jobs.rank.RankRequest` the options describe."""
+    from ..jobs.rank import RankRequest
 
-    top = None if args.all else args.top
-    if top is not None and top < 1:
-        raise InputError(f"--top: expected a whole number of at least 1, got {top}")
-    bp_lo, bp_hi = parse_range(args.bp_range)
-    limits = {"bp_min_C": bp_lo, "bp_max_C": bp_hi, "min_flash_C": args.min_flash, "max_cost": args.max_cost}
-    if args.like:
-        if args.dose or args.only or args.solubility:
-            raise InputError("--like finds substitutes among all liquids: it does not take --dose, --only or --solubility")
-        return nearest_liquids(cat, args.like, k=top or 10_000, food=args.food, use=args.use,
-                               jurisdiction=args.jurisdiction, temp_C=args.temp, **limits)
-    target = target_from_args(args, cat)
-    names = parse_names(args.only, "only") if args.only else None
-    return rank_solvents(cat, target, temp_C=args.temp, names=names, food=args.food, use=args.use,
-                         jurisdiction=args.jurisdiction, top=top, dose=args.dose, category=args.category,
-                         keep_over=args.keep_over, require_solubility=args.solubility, **limits)
+    bp_lo, bp_hi = parse_range(args.bp_range, "bp_min_C")
+    return RankRequest(
+        **target_fields(args), like=args.like,
+        only=parse_names(args.only, "only") if args.only else None,
+        exclude=parse_names(args.exclude, "exclude") if args.exclude else (),
+        use=args.use, food=args.food, jurisdiction=args.jurisdiction, worst_flammable_category=args.worst_hazard,
+        bp_min_C=bp_lo, bp_max_C=bp_hi, min_flash_C=args.min_flash, max_cost=args.max_cost,
+        temp_C=args.temp, top=args.top, all=args.all,
+        dose=args.dose, category=args.category, chain=args.chain, keep_over=args.keep_over,
+        require_solubility=args.solubility,
+    )
 
 
 def _fmt_sol(r):
@@ -68,10 +75,11 @@ def _fmt_sol(r):
 
 
 def run(args) -> int:
-    cat = get_catalog(args)
-    result = compute(args, cat)
+    from ..jobs.rank import rank
+
+    result = rank(request(args), catalog=get_catalog(args))
     if args.json:
-        emit_json(result)
+        emit_json(result.to_dict())
         return 0
     t = result.target
     head = f"Target: {t.name} ({t.basis})  dD {t.dD:.1f}  dP {t.dP:.1f}  dH {t.dH:.1f}"
@@ -104,7 +112,9 @@ def run(args) -> int:
     if result.dropped:
         print(f"\nLeft out: {len(result.dropped)} liquid(s)", end="")
         shown = result.dropped[:5]
-        print(": " + "; ".join(f"{d['name']} ({d['reason']})" for d in shown) + (" ..." if len(result.dropped) > 5 else ""))
+        # a food-law reason is shown by its first clause ("no data as carrier in EU"); the rest is in --json
+        print(": " + "; ".join(f"{d.name} ({d.reason.split(':')[0] if d.filter == 'food law' else d.reason})"
+                               for d in shown) + (" ..." if len(result.dropped) > 5 else ""))
     for n in result.notes:
         print(f"Note: {n}")
     print_cautions(result.cautions)

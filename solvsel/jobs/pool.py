@@ -29,14 +29,15 @@ from typing import Sequence
 import numpy as np
 
 from ..data.catalog import Catalog, Solvent
-from ..errors import InputError, MissingDataError
+from ..errors import InputError, MissingDataError, UnknownNameError
 from ..rules.hazards import Hazard, hazard_class
 from ..rules.regulations import FOOD_JURISDICTIONS, FoodStatus, food_status
 from ..science.hansen import T_WINDOW_C
 from ..science.target import solvent_at
 from ._base import check_choice, check_int, check_names, check_number
 
-__all__ = ["USES", "PoolFilters", "Candidate", "LeftOut", "Pool", "build_pool", "property_reason", "hazard_rank"]
+__all__ = ["USES", "PoolFilters", "Candidate", "LeftOut", "Pool", "build_pool", "property_reason", "hazard_rank",
+           "solvent_named"]
 
 #: Uses a liquid can be searched for.
 USES = ("carrier", "extraction", "bench")
@@ -158,11 +159,13 @@ class LeftOut:
 
 @dataclass(frozen=True)
 class Pool:
-    """The candidates (in table order) and the liquids left out, with the filters used."""
+    """The candidates (in table order) and the liquids left out, with the filters used;
+    ``order`` names every liquid considered, in the order considered."""
 
     filters: PoolFilters
     candidates: tuple[Candidate, ...]
     left_out: tuple[LeftOut, ...]
+    order: tuple[str, ...] = ()
 
     @property
     def names(self) -> list[str]:
@@ -224,8 +227,8 @@ def _hazard_reason(hz: Hazard | None, worst) -> str | None:
 
 def _food(cat: Catalog, rec: Solvent, filters: PoolFilters) -> tuple[FoodStatus | None, str | None, str | None]:
     """(status shown, its use, reason to leave the liquid out or None)."""
-    if filters.use == "bench":
-        return None, None, None
+    if filters.use == "bench":  # not a food use: shown as such, never a reason to leave a liquid out
+        return food_status(cat, rec, use="bench", jurisdiction=filters.jurisdiction), "bench", None
     statuses = []
     for use in filters.food_uses:
         try:
@@ -242,6 +245,15 @@ def _food(cat: Catalog, rec: Solvent, filters: PoolFilters) -> tuple[FoodStatus 
     return status, use, None
 
 
+def solvent_named(cat: Catalog, name: str, param: str) -> Solvent:
+    """The liquid ``name`` of the catalog; an unknown name is an error about the request field ``param``."""
+    try:
+        return cat.solvent(name)
+    except UnknownNameError as exc:
+        exc.param = exc.param or param
+        raise
+
+
 def _same(rec: Solvent, other: Solvent) -> bool:
     if rec.cas and other.cas:
         return rec.cas == other.cas
@@ -252,7 +264,7 @@ def _records(cat: Catalog, filters: PoolFilters, records: Sequence[Solvent] | No
     if records is not None:
         recs = list(records)
     elif filters.only:
-        recs = [cat.solvent(n) for n in filters.only]
+        recs = [solvent_named(cat, n, "only") for n in filters.only]
     else:
         recs = list(cat.solvent_records())
     unique: list[Solvent] = []
@@ -292,9 +304,10 @@ def build_pool(cat: Catalog, filters: PoolFilters | None = None, records: Sequen
     True
     """
     filters = filters or PoolFilters()
-    dropped = [cat.solvent(n) for n in filters.exclude]
+    dropped = [solvent_named(cat, n, "exclude") for n in filters.exclude]
     kept, left = [], []
-    for rec in _records(cat, filters, records):
+    recs = _records(cat, filters, records)
+    for rec in recs:
         hz = hazard_class(rec.flash_C, rec.bp_C, flammable=rec.flammable)
         why = _reason(cat, rec, filters, dropped, hz)
         status, use, legal_why = (None, None, None) if why else _food(cat, rec, filters)
@@ -309,4 +322,4 @@ def build_pool(cat: Catalog, filters: PoolFilters | None = None, records: Sequen
             left.append(LeftOut(rec.name, rec.cas, *why))
             continue
         kept.append(Candidate(rec, np.asarray(h, dtype=float), float(vm), note, hz, status, use))
-    return Pool(filters, tuple(kept), tuple(left))
+    return Pool(filters, tuple(kept), tuple(left), tuple(r.name for r in recs))

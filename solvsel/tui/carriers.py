@@ -2,16 +2,14 @@
 
 The constraints on the left bound both lists (use, jurisdiction, largest
 blend, lowest flash point, boiling window, temperature, liquids left out,
-solutes to keep out).  The ranking is the library's single-liquid ranking; the
-blend search (:func:`solvsel.science.blends.optimise_blends`) runs in a cancellable
-thread worker that posts :class:`BlendProgress` and :class:`BlendDone`
-messages.  Blends dropped by a check, and liquids left out of the pool, are
-listed with their reasons.
+solutes to keep out): the form becomes a request of the ``rank`` job
+(:mod:`solvsel.jobs.rank`) and one of the ``blend`` job (:mod:`solvsel.jobs.blend`);
+the blend search runs in a cancellable thread worker that posts
+:class:`BlendProgress` and :class:`BlendDone` messages.  Blends dropped by a
+check, and liquids left out of the pool, are listed with their reasons.
 """
 
 from __future__ import annotations
-
-from dataclasses import dataclass
 
 from rich.text import Text
 from textual import work
@@ -46,7 +44,7 @@ class BlendProgress(Message):
 
 
 class BlendDone(Message):
-    """The blend search finished (``result`` a BlendSearch) or was cancelled (``result`` None)."""
+    """The blend search finished (``result`` a BlendResult) or was cancelled (``result`` None)."""
 
     def __init__(self, result, cancelled: bool = False) -> None:
         super().__init__()
@@ -62,50 +60,10 @@ class BlendFailed(Message):
         self.error = error
 
 
-@dataclass(frozen=True)
-class SearchRequest:
-    """The constraints read from the form, as the blend engine takes them."""
-
-    use: str | None
-    jurisdiction: str | None
-    max_components: int
-    min_flash_C: float | None
-    bp_min_C: float | None
-    bp_max_C: float | None
-    temp_C: float
-    exclude: tuple[str, ...]
-    rejects: tuple[str, ...]
-    top: int = 10
-
-
-def _float(text: str, what: str) -> float | None:
-    from ..errors import InputError
-
-    t = (text or "").strip()
-    if not t:
-        return None
-    try:
-        return float(t)
-    except ValueError:
-        raise InputError(f"{what}: expected a number, got '{text}'") from None
-
-
-def _window(text: str) -> tuple[float | None, float | None]:
-    from ..errors import InputError
-
-    t = (text or "").strip()
-    if not t:
-        return None, None
-    if ":" not in t:
-        raise InputError(f"boiling window: expected LO:HI in C (either side may be empty), got '{text}'")
-    lo, _, hi = t.partition(":")
-    return _float(lo, "boiling window, lowest"), _float(hi, "boiling window, highest")
-
-
-def _names(text: str, what: str) -> tuple[str, ...]:
-    from ..jobs.parse import parse_names
-
-    return tuple(parse_names(text, what)) if (text or "").strip() else ()
+def _text(screen, selector: str) -> str | None:
+    """The stripped text of an input, or None when it is empty."""
+    t = (screen.query_one(selector, Input).value or "").strip()
+    return t or None
 
 
 def _fmt(x, spec=".2f") -> str:
@@ -116,6 +74,12 @@ class CarriersScreen(BenchScreen):
     """Ranked single liquids and optimised blends for the current target."""
 
     MODE = "carriers"
+    #: The form's labels of the request fields (an error about a field names it by its label).
+    FIELD_LABELS = {
+        "temp_C": "temperature", "min_flash_C": "lowest flash point", "bp_min_C": "boiling window",
+        "bp_max_C": "boiling window", "exclude": "leave out", "rejects": "keep out of solution",
+        "use": "use", "jurisdiction": "jurisdiction", "max_components": "largest blend (liquids)",
+    }
     BINDINGS = [
         Binding("ctrl+r", "search", "Search blends", priority=True),
         Binding("escape", "cancel", "Cancel search"),
@@ -128,11 +92,10 @@ class CarriersScreen(BenchScreen):
 
     def __init__(self) -> None:
         super().__init__()
-        self.ranking = None  # BlendSearch of single liquids
-        self.result = None  # BlendSearch of blends
+        self.ranking = None  # RankResult: the single liquids
+        self.result = None  # BlendResult: the blends
         self.worker: Worker | None = None
         self.messages: list[Message] = []  # typed messages seen (for the tests and the status line)
-        self._liquid_cautions: dict = {}  # (liquid, use) -> the library's cautions
 
     def compose(self) -> ComposeResult:
         yield from self.compose_frame_top()
@@ -193,11 +156,11 @@ class CarriersScreen(BenchScreen):
         if self.session.target is None:
             self.query_one("#carrier-detail", Static).update("No target: choose one on the Target screen (F2).")
             return
-        request = self.guard(self.read_form)
-        if request is None:
+        requests = self.guard(self.read_form)
+        if requests is None:
             return
-        self.run_ranking(request)
-        self.start_search(request)
+        self.run_ranking(requests[0])
+        self.start_search(requests[1])
 
     def fill_preset(self, key: str) -> None:
         part = self.session.scenario_part(key)
@@ -226,42 +189,37 @@ class CarriersScreen(BenchScreen):
     def action_search(self) -> None:
         self.refresh_all()
 
-    def read_form(self) -> SearchRequest:
-        from ..errors import InputError
+    def read_form(self):
+        """The ``rank`` and ``blend`` requests the form describes (text parsed by :mod:`solvsel.jobs.parse`)."""
+        from ..jobs.blend import BlendRequest
+        from ..jobs.parse import parse_names, parse_number, parse_range
+        from ..jobs.rank import RankRequest
 
         use = self.query_one("#use", Select).value
         jur = self.query_one("#jurisdiction", Select).value
-        temp = _float(self.query_one("#temp", Input).value, "temperature")
-        lo, hi = _window(self.query_one("#bp-window", Input).value)
-        if temp is None:
-            raise InputError("temperature: expected a number of C, got nothing")
-        return SearchRequest(
-            use=None if use == "any" else use,
+        flash, window = _text(self, "#min-flash"), _text(self, "#bp-window")
+        exclude, rejects = _text(self, "#exclude"), _text(self, "#rejects")
+        lo, hi = parse_range(window, "bp_min_C") if window else (None, None)
+        common = dict(
+            target=self.session.target, use=None if use == "any" else use,
             jurisdiction=None if jur == "none" else jur,
-            max_components=int(self.query_one("#max-components", Select).value),
-            min_flash_C=_float(self.query_one("#min-flash", Input).value, "lowest flash point"),
-            bp_min_C=lo, bp_max_C=hi, temp_C=temp,
-            exclude=_names(self.query_one("#exclude", Input).value, "leave out"),
-            rejects=_names(self.query_one("#rejects", Input).value, "keep out of solution"),
+            min_flash_C=None if flash is None else parse_number(flash, "min_flash_C", "C"),
+            bp_min_C=lo, bp_max_C=hi,
+            temp_C=parse_number(self.query_one("#temp", Input).value, "temp_C", "C"),
+            exclude=tuple(parse_names(exclude, "exclude")) if exclude else (),
         )
-
-    def engine_kwargs(self, req: SearchRequest) -> dict:
-        cat = self.session.catalog
-        return dict(
-            use=req.use, jurisdiction=req.jurisdiction, min_flash_C=req.min_flash_C,
-            bp_min_C=req.bp_min_C, bp_max_C=req.bp_max_C, temp_C=req.temp_C,
-            exclude=list(req.exclude) or None,
-            rejects=[cat.solute(n) for n in req.rejects],
+        return (
+            RankRequest(**common, food=common["use"] is not None, top=15),
+            BlendRequest(**common, max_components=int(self.query_one("#max-components", Select).value),
+                         rejects=tuple(parse_names(rejects, "rejects")) if rejects else (), top=10),
         )
 
     # ---------------------------------------------------------------- single liquids
-    def run_ranking(self, req: SearchRequest) -> None:
-        from ..science.target import rank_solvents
+    def run_ranking(self, req) -> None:
+        """Rank the single liquids (the ``rank`` job) and show them."""
+        from ..jobs.rank import rank
 
-        res = self.guard(rank_solvents, self.session.catalog, self.session.target, temp_C=req.temp_C,
-                         food=req.use is not None, use=req.use, jurisdiction=req.jurisdiction, top=15,
-                         exclude=req.exclude, min_flash_C=req.min_flash_C, bp_min_C=req.bp_min_C,
-                         bp_max_C=req.bp_max_C)
+        res = self.guard(rank, req, catalog=self.session.catalog)
         if res is None:
             return
         self.ranking = res
@@ -287,32 +245,27 @@ class CarriersScreen(BenchScreen):
             t.append(f"note: {n}\n", style="dim")
         if self.ranking.dropped:
             t.append(f"{len(self.ranking.dropped)} liquids left out of the ranking (e.g. "
-                     + "; ".join(f"{d['name']}: {d['reason']}" for d in self.ranking.dropped[:2]) + ")\n", style="dim")
+                     + "; ".join(f"{d.name}: {d.reason}" for d in self.ranking.dropped[:2]) + ")\n", style="dim")
         self.query_one("#carrier-detail", Static).update(t)
         self.show_cautions(r)
 
     # ---------------------------------------------------------------- blends (worker)
-    def start_search(self, req: SearchRequest) -> None:
+    def start_search(self, req) -> None:
         if self.worker is not None and self.worker.state in (WorkerState.PENDING, WorkerState.RUNNING):
             self.worker.cancel()
         bar = self.query_one("#search-progress", ProgressBar)
         bar.update(total=None, progress=0)
         self.query_one("#search-status", Static).update("searching blends ... (Esc cancels)")
-        self.worker = self.search_worker(self.session.target, req)
+        self.worker = self.search_worker(req)
 
     @work(thread=True, exclusive=True, group="blends", exit_on_error=False)
-    def search_worker(self, target, req: SearchRequest) -> None:
-        """Look up the reject solutes and run the blend search, off the UI thread."""
-        from ..science.blends import optimise_blends
+    def search_worker(self, req) -> None:
+        """Run the ``blend`` job off the UI thread (its name look-ups may reach the reference library)."""
         from ..errors import SolvselError
+        from ..jobs import blend as blend_job
 
         worker = get_current_worker()
         self.post_message(BlendProgress(0, None, f"pool and constraints; blends of up to {req.max_components} liquids"))
-        try:
-            kwargs = self.engine_kwargs(req)  # name lookups may reach the reference library: not on the UI thread
-        except SolvselError as exc:
-            self.post_message(BlendFailed(exc))
-            return
 
         def progress(done, total):
             # the engine calls this after each batch of combinations; False stops it
@@ -322,8 +275,7 @@ class CarriersScreen(BenchScreen):
             return True
 
         try:
-            res = optimise_blends(self.session.catalog, target, max_components=req.max_components, top=req.top,
-                                  progress=progress, **kwargs)
+            res = blend_job.blend(req, catalog=self.session.catalog, progress=progress)
         except SolvselError as exc:
             self.post_message(BlendFailed(exc))
             return
@@ -368,7 +320,7 @@ class CarriersScreen(BenchScreen):
         self.query_one("#search-status", Static).update("search stopped: see the message")
         from .dialogs import show_error
 
-        show_error(self.app, message.error)
+        show_error(self.app, message.error, self.FIELD_LABELS)
 
     def on_blend_done(self, message: BlendDone) -> None:
         self.messages.append(message)
@@ -484,37 +436,16 @@ class CarriersScreen(BenchScreen):
         self.show_cautions(b)
 
     def show_cautions(self, selected=None) -> None:
-        """The selected liquid's or blend's cautions, then each liquid's on screen, then the lists'."""
-        from ..rules.cautions import solvent_cautions
-        from ..errors import SolvselError
-
-        cautions: list[str] = []
+        """The selected liquid's or blend's cautions, then those of every blend and liquid on screen,
+        then the lists' (all from the jobs' results)."""
+        lists = [res for res in (self.result, self.ranking) if res is not None]
         if selected is None:
-            for res in (self.result, self.ranking):
-                if res is not None and res.results:
-                    selected = res.results[0]
-                    break
-        if selected is not None:
-            cautions += list(selected.cautions)
-        names: list[str] = []
-        if self.result is not None:
-            names += [c.name for b in self.result.results for c in b.components]
-        if self.ranking is not None:
-            names += [r.name for r in self.ranking.results]
-        use = self.query_one("#use", Select).value
-        use = None if use == "any" else use
-        cat = self.session.catalog
-        for name in dict.fromkeys(names):
-            key = (name, use)
-            if key not in self._liquid_cautions:
-                try:
-                    self._liquid_cautions[key] = tuple(solvent_cautions(cat.solvent(name), use=use, cat=cat))
-                except SolvselError:
-                    self._liquid_cautions[key] = ()
-            cautions += list(self._liquid_cautions[key])
-        for res in (self.result, self.ranking):
-            if res is not None:
-                cautions += list(res.cautions)
+            selected = next((res.results[0] for res in lists if res.results), None)
+        cautions = list(selected.cautions) if selected is not None else []
+        for res in lists:
+            cautions += [c for item in res.results for c in item.cautions]
+        for res in lists:
+            cautions += list(res.cautions)
         t = self.session.target
         if t is not None and t.solute is not None and getattr(t.solute, "category", "") == "active" and t.solute.note:
             cautions.append(t.solute.note)
