@@ -1,4 +1,4 @@
-"""Benchmark of solvsel.science.structure: cross-validated accuracy by method and class, flavour molecules
+"""Benchmark of solvsel.science.structure and structure_training: cross-validated accuracy by method and class, flavour molecules
 outside the training data with the interval the cross-validation supports, and speed.
 
     .venv/bin/python bench/bench_structure.py            # full: refits with nested grouped 10-fold CV (6-11 min)
@@ -24,7 +24,7 @@ import numpy as np
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
-from solvsel.science import structure  # noqa: E402
+from solvsel.science import structure, structure_training  # noqa: E402
 
 FLAVOURS = [
     ("cannabidiol", "CCCCCc1cc(O)c([C@@H]2C=C(C)CC[C@H]2C(C)=C)c(O)c1"),
@@ -81,7 +81,7 @@ def accuracy(quick: bool):
     else:
         tmp = Path(tempfile.mkdtemp())
         t = time.perf_counter()
-        res = structure.refit(tmp / "bench.csv", progress=lambda m: print("  ...", m, flush=True))
+        res = structure_training.refit(tmp / "bench.csv", progress=lambda m: print("  ...", m, flush=True))
         print(f"  refit with CV: {time.perf_counter() - t:.1f} s")
         train = read_csv(tmp / "bench_training.csv")
         cvrows = read_csv(tmp / "bench_cv.csv")
@@ -96,7 +96,7 @@ def accuracy(quick: bool):
     n_all = len(df)
     own = df[["cv_dD", "cv_dP", "cv_dH"]].to_numpy(float)
     t = time.perf_counter()
-    pub = structure.published_predictions(df, ("hoftyzer-van-krevelen", "properties"))
+    pub = structure_training.published_predictions(df, ("hoftyzer-van-krevelen", "properties"))
     t_pub = time.perf_counter() - t
     preds = {"solvsel-gc": own, **pub}
     # the issue's anchor: plain ridge on first-order group counts (no volume scaling), same folds
@@ -109,13 +109,13 @@ def accuracy(quick: bool):
     print("\n-- every compound each method covers (class 'all') --")
     rows = []
     for m, P in preds.items():
-        rows += [r for r in structure.error_table(df, {m: P}) if r["class"] == "all"]
+        rows += [r for r in structure_training.error_table(df, {m: P}) if r["class"] == "all"]
     print_rows(rows, cols)
     print("\n-- own model against Hoftyzer-Van Krevelen and the ridge anchor, on the same compounds, by class --")
     sub = {k: preds[k] for k in ("solvsel-gc", "hoftyzer-van-krevelen", "ridge on counts")}
-    print_rows(structure.error_table(df, sub), cols)
+    print_rows(structure_training.error_table(df, sub), cols)
     print("\n-- on the compounds the property route covers (all methods on the same compounds) --")
-    print_rows([r for r in structure.error_table(df, {k: preds[k] for k in ("solvsel-gc", "hoftyzer-van-krevelen",
+    print_rows([r for r in structure_training.error_table(df, {k: preds[k] for k in ("solvsel-gc", "hoftyzer-van-krevelen",
                                                                               "properties")})
                 if r["class"] == "all"], cols)
     print("\n-- by size (heavy atoms), same compounds --")
@@ -125,7 +125,7 @@ def accuracy(quick: bool):
     for lo, hi in ((1, 4), (5, 9), (10, 200)):
         sel = (heavy >= lo) & (heavy <= hi)
         sub = {k: np.where(sel[:, None], preds[k], np.nan) for k in ("solvsel-gc", "hoftyzer-van-krevelen")}
-        rows = [dict(r, **{"class": f"{lo}-{hi} atoms"}) for r in structure.error_table(df, sub) if r["class"] == "all"]
+        rows = [dict(r, **{"class": f"{lo}-{hi} atoms"}) for r in structure_training.error_table(df, sub) if r["class"] == "all"]
         print_rows(rows, cols)
     print("\n-- settings chosen in each outer fold (per parameter dD / dP / dH) and for the final fit --")
     P = structure.load_params(str(base))
@@ -137,7 +137,7 @@ def accuracy(quick: bool):
     conf = [r for r in cvrows if r["class"] == "conflicting labels"]
     if conf:
         r = conf[0]
-        print(f"\ncompounds whose data sets disagree by Ra > {structure.CONFLICT_RA} (not fitted, scored against "
+        print(f"\ncompounds whose data sets disagree by Ra > {structure_training.CONFLICT_RA} (not fitted, scored against "
               f"the median): n {r['n']}, MAE {float(r['mae_dD_MPa05']):.2f} / {float(r['mae_dP_MPa05']):.2f} / "
               f"{float(r['mae_dH_MPa05']):.2f}")
     return base

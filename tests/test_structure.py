@@ -18,7 +18,7 @@ import math
 import numpy as np
 import pytest
 
-from solvsel.science import structure
+from solvsel.science import structure, structure_training
 from solvsel.errors import InputError, MissingDataError, OutOfRangeError
 
 
@@ -178,7 +178,7 @@ def test_training_labels_are_the_library_medians():
     for r in rng.choice(rows, 40, replace=False):
         vals = []
         for cas in r["cas"].split(";"):
-            for key in structure.HSP_DATASETS:
+            for key in structure_training.HSP_DATASETS:
                 df = solubility.solubility_sources[key]
                 if cas in df.index:
                     vals.append(df.loc[cas, ["HANSEN_DELTA_D", "HANSEN_DELTA_P", "HANSEN_DELTA_H"]].to_numpy() / 1000)
@@ -220,8 +220,8 @@ def test_own_model_beats_the_published_method_on_the_same_compounds():
 
 @pytest.fixture(scope="module")
 def dataset():
-    df = structure.training_data()
-    X, _, _, covered = structure.dataset_design(df)
+    df = structure_training.training_data()
+    X, _, _, covered = structure_training.dataset_design(df)
     return df, X, covered
 
 
@@ -240,13 +240,13 @@ def test_one_fold_refit_reproduces_the_stored_out_of_fold_predictions(dataset):
     # the settings the nested CV chose on fold 0's training compounds (recorded in gc_params.csv; choosing
     # them again takes the inner CV, which the full refit of the benchmark reruns)
     fs = structure.load_params().fold_settings[0]
-    icpt, coef = structure._fit(X[tr], Y[tr], settings=fs)
+    icpt, coef = structure_training._fit(X[tr], Y[tr], settings=fs)
     res = Y[tr] - structure._predict(X[tr], icpt, coef, fs.square)
     from rdkit import Chem
 
     fps = [structure.fingerprint(Chem.MolFromSmiles(s)) for s in df["smiles"]]
     tr_fps = [fps[i] for i in tr]
-    dual = structure.kernel_dual(structure.similarity_matrix(tr_fps, tr_fps), res, fs.power, fs.lam, fs.fp)
+    dual = structure_training.kernel_dual(structure_training.similarity_matrix(tr_fps, tr_fps), res, fs.power, fs.lam, fs.fp)
     base = structure._predict(X[te], icpt, coef, fs.square)
     for n, i in enumerate(te):
         p = np.clip(base[n] + structure.kernel_correction(fps[i], tr_fps, dual, power=fs.power,
@@ -271,8 +271,8 @@ def test_fold_settings_are_chosen_on_the_fold_training_part_only(dataset):
 
     fps = [structure.fingerprint(Chem.MolFromSmiles(df["smiles"][i])) for i in tr]
     Y = df[["dD", "dP", "dH"]].to_numpy(float)
-    got = structure.select_settings(X[tr], Y[tr], structure.similarity_matrix(fps, fps), df["key"].to_numpy()[tr],
-                                    seed=structure.SEED + 1 + 3)
+    got = structure_training.select_settings(X[tr], Y[tr], structure_training.similarity_matrix(fps, fps), df["key"].to_numpy()[tr],
+                                    seed=structure_training.SEED + 1 + 3)
     assert got == structure.load_params().fold_settings[3]
 
 

@@ -384,6 +384,7 @@ def test_bench_fit_target_and_the_users_own_rows(tmp_path):
                 await pilot.pause()
             assert screen.query_one("#target-tabs").active == "from-bench"
             screen.query_one("#bench-path").value = str(bench)
+            screen.query_one("#bench-good").value = "2"
             await pilot.press("enter")
             await pilot.pause()
             t = app.session.target
@@ -391,6 +392,30 @@ def test_bench_fit_target_and_the_users_own_rows(tmp_path):
             ref = fit_sphere([r.hsp for r in recs], list(scores.values()), names=[r.name for r in recs], good_at_most=2)
             assert t.basis == "fitted"
             assert (t.dD, t.dP, t.dH, t.r0) == pytest.approx((ref.dD, ref.dP, ref.dH, ref.r0))
+
+            # the example files of the command line fit here too, with the same numbers as `solvsel fit`
+            from solvsel.jobs.fit import fit
+
+            examples = __import__("pathlib").Path(__file__).parent.parent / "examples"
+            for name, cut in (("bench_extract.csv", ""), ("bench_graded.csv", "2")):
+                screen.query_one("#bench-path").value = str(examples / name)
+                screen.query_one("#bench-good").value = cut
+                screen.press("use-bench")
+                await pilot.pause()
+                ref = fit(path=str(examples / name), good_at_most=cut or None, catalog=cat).sphere
+                got = app.session.target
+                assert got.basis == "fitted" and name in got.name
+                assert (got.dD, got.dP, got.dH, got.r0) == pytest.approx((ref.dD, ref.dP, ref.dH, ref.r0))
+            # a score file without its cut-off: the dialog names the field, the target stays
+            screen.query_one("#bench-good").value = ""
+            screen.press("use-bench")
+            await pilot.pause()
+            assert isinstance(app.screen, ErrorDialog)
+            assert "good at a score of at most" in app.screen.error_message
+            assert app.session.target is got
+            await pilot.press("escape")
+            await _until(pilot, lambda: app.screen is screen)
+            t = got
 
             # a file that is not there: the dialog, and the fitted target stays
             screen.query_one("#bench-path").value = str(tmp_path / "missing.csv")

@@ -9,14 +9,12 @@ from __future__ import annotations
 
 import sys
 
+from ..jobs.estimate import METHODS
+from ..jobs.fit import SOLUTE_CATEGORIES
 from ._common import add_json_flag, emit_json, print_cautions, print_table
 
-METHOD_CHOICES = ("solvsel-gc", "hoftyzer-van-krevelen", "properties")
-
-CAUTION = (
-    "Group-contribution HSP are screening estimates (see the error by class above): confirm solubility at "
-    "the bench before relying on them; measured values win."
-)
+#: Request fields given by another option than ``--`` + the field.
+OPTION_NAMES = {"smiles": "SMILES", "lookup": "--no-lookup"}
 
 
 def register(sub):
@@ -31,7 +29,7 @@ def register(sub):
     )
     p.add_argument("smiles", nargs="*", metavar="SMILES", help="one or more SMILES strings (quote them)")
     p.add_argument("--file", metavar="FILE", help="read SMILES from FILE, one a line (text after a space is a label)")
-    p.add_argument("--method", choices=METHOD_CHOICES, default=None,
+    p.add_argument("--method", choices=METHODS, default=None,
                    help="method whose numbers are reported (default solvsel-gc)")
     p.add_argument("--params", metavar="CSV", help="parameter table of the own model from --refit (default: bundled)")
     p.add_argument("--no-lookup", action="store_true",
@@ -50,36 +48,15 @@ def register(sub):
                    "--own-solutes CSV)")
     p.add_argument("--name", metavar="NAME", help="with --save-to: the solute's name")
     p.add_argument("--category", default="other",
-                   choices=("flavour", "active", "lipid", "pigment", "sugar", "wax", "other"),
+                   choices=SOLUTE_CATEGORIES,
                    help="with --save-to: the solute's category (default other)")
     add_json_flag(p)
     return p
 
 
-def _read_lines(path: str, what: str) -> list[str]:
-    from ..errors import InputError
-
-    try:
-        with open(path, encoding="utf-8") as fh:
-            lines = [ln.strip() for ln in fh]
-    except OSError as exc:
-        raise InputError(f"{what}: cannot read '{path}': {exc.strerror}") from None
-    return [ln for ln in lines if ln and not ln.startswith("#")]
-
-
-def _refit(args) -> int:
-    from ..science import structure
-    from ..errors import InputError
-
-    if args.smiles or args.file:
-        raise InputError("--refit fits the model; give SMILES to estimate in a separate call with --params")
-    exclude = _read_lines(args.exclude, "--exclude") if args.exclude else []
-    say = None if args.json else (lambda msg: print(f"... {msg}", file=sys.stderr))
-    res = structure.refit(args.refit, exclude=exclude, force=args.force, progress=say)
-    if args.json:
-        emit_json({k: v for k, v in res.items()})
-        return 0
-    print(f"Fitted on {res['fitted']} of {res['compounds']} compounds ({len(exclude)} CAS numbers excluded).")
+def _refit_text(result) -> None:
+    res, out = result.refit, result.request.refit
+    print(f"Fitted on {res['fitted']} of {res['compounds']} compounds ({len(result.excluded)} CAS numbers excluded).")
     print("Written: " + ", ".join(res["paths"]))
     print()
     rows = [r for r in res["table"] if r["class"] == "all"]
@@ -88,55 +65,7 @@ def _refit(args) -> int:
     print("\nMean absolute errors in MPa^0.5 against the data sets (the fitted model out of fold, nested grouped "
           "10-fold CV: settings chosen on inner folds of each training part): solvsel-gc on every compound it covers; 'same compounds', 'groups only' and Hoftyzer-Van Krevelen "
           "on the compounds both group methods cover; properties where the library has the data.")
-    print(f"Use it with: solvsel estimate --params {args.refit} SMILES")
-    return 0
-
-
-def _save(args, est) -> str:
-    """Append the estimate to the user's solutes CSV (never rewriting what is there)."""
-    import csv
-    import os
-
-    from ..errors import InputError
-
-    if not args.name:
-        raise InputError("--save-to needs --name NAME for the solute")
-    columns = ["name", "synonyms", "cas", "category", "dD_MPa05", "dP_MPa05", "dH_MPa05", "r0_MPa05", "hsp_basis",
-               "hsp_method", "hsp_source", "mw_g_mol", "mp_C", "dHfus_kJ_mol", "vm_cm3_mol", "smiles",
-               "props_source", "note"]
-    path = args.save_to
-    exists = os.path.exists(path) and os.path.getsize(path) > 0
-    if exists:
-        with open(path, newline="", encoding="utf-8") as fh:
-            rows = list(csv.reader(fh))
-        header = rows[0] if rows else []
-        missing = [c for c in ("name", "dD_MPa05", "dP_MPa05", "dH_MPa05") if c not in header]
-        if missing:
-            raise InputError(f"--save-to: '{path}' is not a solutes table (no column {', '.join(missing)}); "
-                             "nothing was written")
-        names = {r[header.index("name")].strip().lower() for r in rows[1:] if r}
-        if args.name.strip().lower() in names and not args.force:
-            raise InputError(f"--save-to: '{path}' already has a solute named '{args.name}'; choose another name "
-                             "(or --force to add a second row)")
-        columns = header
-    u = est.uncertainty
-    values = {
-        "name": args.name.strip(), "category": args.category,
-        "dD_MPa05": f"{est.dD:.2f}", "dP_MPa05": f"{est.dP:.2f}", "dH_MPa05": f"{est.dH:.2f}",
-        "hsp_basis": "estimated", "hsp_method": est.method, "hsp_source": "derived_gc_fit" if est.method == "solvsel-gc" else est.method,
-        "mw_g_mol": f"{est.mw_g_mol:.3f}" if est.mw_g_mol else "",
-        "vm_cm3_mol": f"{est.vm_cm3_mol:.1f}" if est.vm_cm3_mol else "", "smiles": est.smiles,
-        "props_source": "derived_gc_fit",
-        "note": f"estimated from structure by solvsel estimate ({est.method}); expected error for "
-                f"{u.get('basis')}: dD {u.get('dD') or 0:.2f}, dP {u.get('dP') or 0:.2f}, dH {u.get('dH') or 0:.2f} MPa^0.5",
-    }
-    mode = "a" if exists else "w"
-    with open(path, mode, newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh, lineterminator="\n")
-        if not exists:
-            w.writerow(columns)
-        w.writerow([values.get(c, "") for c in columns])
-    return path
+    print(f"Use it with: solvsel estimate --params {out} SMILES")
 
 
 def _print_one(est, show_atoms: bool) -> None:
@@ -168,59 +97,41 @@ def _print_one(est, show_atoms: bool) -> None:
         print(f"note: {n}")
 
 
-def run(args) -> int:
-    from ..science import structure
-    from ..errors import InputError, SolvselError
+def _print_many(result) -> None:
+    from ..errors import SolvselError
 
-    if args.refit:
-        return _refit(args)
-    if args.exclude:
-        raise InputError("--exclude goes with --refit")
-    items = list(args.smiles)
-    if args.file:
-        items += [ln.split()[0] for ln in _read_lines(args.file, "--file")]
-    if not items:
-        raise InputError("estimate: give a SMILES string (e.g. solvsel estimate \"CC(C)=CCCC(C)=CC=O\") or --file FILE")
-    if args.save_to and len(items) != 1:
-        raise InputError("--save-to saves one estimate: give exactly one SMILES")
-    lookup = not args.no_lookup
-    if args.lookup_all and args.no_lookup:
-        raise InputError("--lookup-all and --no-lookup contradict each other: give one")
-    full = bool(args.lookup_all)
-    if len(items) == 1:
-        est = structure.estimate(items[0], method=args.method, params=args.params, properties=lookup,
-                                 full_lookup=full)
-        saved = _save(args, est) if args.save_to else None
-        if args.json:
-            d = est.to_dict()
-            if saved:
-                d["saved_to"] = saved
-            emit_json(d)
-            return 0
-        _print_one(est, args.groups)
-        if saved:
-            print(f"\nSaved as '{args.name}' to {saved} (use it with --own-solutes {saved}).")
-        print_cautions([CAUTION])
-        return 0
-    results = []
-    for s in items:
-        try:
-            results.append(structure.estimate(s, method=args.method, params=args.params, properties=lookup,
-                                              full_lookup=full))
-        except SolvselError as exc:
-            results.append({"smiles": s, "error": str(exc)})
-    if args.json:
-        emit_json(results)
-        return 0 if all(not isinstance(r, dict) for r in results) else 2
     rows = []
-    for r in results:
-        if isinstance(r, dict):
-            rows.append({"smiles": r["smiles"], "note": r["error"]})
+    for s, r in zip(result.items, result.estimates):
+        if isinstance(r, SolvselError):
+            rows.append({"smiles": s, "note": str(r)})
             continue
         u = r.uncertainty
         rows.append({"smiles": r.smiles, "dD": r.dD, "dP": r.dP, "dH": r.dH, "vm": r.vm_cm3_mol,
                      "class": r.chem_class, "err": u.get("ra"), "note": "; ".join(r.notes)})
     print_table(rows, [("smiles", "SMILES"), ("dD", "dD", ".1f"), ("dP", "dP", ".1f"), ("dH", "dH", ".1f"),
                        ("vm", "Vm", ".0f"), ("class", "class"), ("err", "CV Ra", ".1f"), ("note", "note")])
-    print_cautions([CAUTION])
-    return 0 if all(not isinstance(r, dict) for r in results) else 2
+
+
+def run(args) -> int:
+    from ..jobs.estimate import estimate
+
+    say = None if args.json else (lambda msg: print(f"... {msg}", file=sys.stderr))
+    result = estimate(
+        smiles=tuple(args.smiles), file=args.file, method=args.method, params=args.params,
+        lookup=not args.no_lookup, lookup_all=args.lookup_all, refit=args.refit, exclude=args.exclude,
+        force=args.force, save_to=args.save_to, name=args.name, category=args.category, progress=say,
+    )
+    if args.json:
+        emit_json(result.to_dict())
+        return 0 if result.ok else 2
+    if result.refit is not None:
+        _refit_text(result)
+        return 0
+    if len(result.items) == 1:
+        _print_one(result.estimates[0], args.groups)
+        if result.saved_to:
+            print(f"\nSaved as '{args.name}' to {result.saved_to} (use it with --own-solutes {result.saved_to}).")
+    else:
+        _print_many(result)
+    print_cautions(result.cautions)
+    return 0 if result.ok else 2

@@ -26,6 +26,12 @@ never a silently wrong number.  The uncertainty given with an estimate is the
 cross-validated mean absolute error of the model for the molecule's chemical
 class, not a promise.
 
+This module estimates; fitting the own model (training data, nested
+cross-validation, refit) is in :mod:`solvsel.science.structure_training`.
+RDKit comes with the ``structure`` extra and is imported in one place
+(:func:`_rd`): without it an estimate raises
+:class:`~solvsel.errors.MissingExtraError` naming the extra.
+
 References
 ----------
 .. [1] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*, 2nd ed.
@@ -52,8 +58,9 @@ import math
 from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
+from types import SimpleNamespace
 
-from ..errors import InputError, MissingDataError, OutOfRangeError, TableError
+from ..errors import InputError, MissingDataError, MissingExtraError, OutOfRangeError, TableError
 
 __all__ = [
     "Group",
@@ -246,11 +253,27 @@ class Estimate:
 # --------------------------------------------------------------------------- SMILES
 
 
-def _rdkit():
-    from rdkit import Chem, RDLogger
+@lru_cache(maxsize=None)
+def _rd() -> SimpleNamespace:
+    """The parts of RDKit used here, imported in this one place (RDKit comes with the ``structure`` extra).
 
+    Attributes ``Chem``, ``DataStructs``, ``Descriptors``, ``rdMolDescriptors`` and
+    ``rdFingerprintGenerator``.  Raises :class:`~solvsel.errors.MissingExtraError` when RDKit
+    is not installed.
+    """
+    try:
+        from rdkit import Chem, DataStructs, RDLogger
+        from rdkit.Chem import Descriptors, rdFingerprintGenerator, rdMolDescriptors
+    except ImportError:
+        raise MissingExtraError("structure", "estimating HSP from a structure", "rdkit") from None
     RDLogger.DisableLog("rdApp.*")
-    return Chem
+    return SimpleNamespace(Chem=Chem, DataStructs=DataStructs, Descriptors=Descriptors,
+                           rdMolDescriptors=rdMolDescriptors, rdFingerprintGenerator=rdFingerprintGenerator)
+
+
+def _rdkit():
+    """RDKit's ``Chem`` module (see :func:`_rd`)."""
+    return _rd().Chem
 
 
 _NITRO = None
@@ -268,7 +291,8 @@ def parse_smiles(smiles: str):
     input give the same molecule.
     """
     if not isinstance(smiles, str) or not smiles.strip():
-        raise InputError(f"SMILES: expected a non-empty SMILES string, got {smiles!r}")
+        raise InputError(f"expected a non-empty SMILES string, got {smiles!r}", param="smiles", value=smiles,
+                         expected="a SMILES string")
     text = smiles.strip()
     if any(c.isspace() for c in text):
         # a SMILES may carry a name after a space; only the first word is the structure
@@ -276,34 +300,35 @@ def parse_smiles(smiles: str):
     Chem = _rdkit()
     mol = Chem.MolFromSmiles(text)
     if mol is None:
-        raise InputError(f"SMILES '{smiles}' could not be read (check brackets, ring-closure digits and valences)")
+        raise InputError(f"SMILES '{smiles}' could not be read (check brackets, ring-closure digits and valences)",
+                         param="smiles", value=smiles, expected="a SMILES string")
     frags = Chem.GetMolFrags(mol)
     if len(frags) > 1:
         raise OutOfRangeError(
             f"SMILES '{smiles}' has {len(frags)} separate components (a salt, hydrate or mixture); "
             "the HSP methods cover one neutral molecule: give the neutral parent compound, and for a mixture "
-            "estimate each component and blend them"
+            "estimate each component and blend them", param="smiles", value=smiles
         )
     if any(a.GetAtomicNum() == 0 for a in mol.GetAtoms()):
         raise OutOfRangeError(
             f"SMILES '{smiles}' has a dummy atom (*): repeat units of polymers and fragments with open "
-            "valences are outside the methods; give a whole molecule (for a polymer, an oligomer with end groups)"
-        )
+            "valences are outside the methods; give a whole molecule (for a polymer, an oligomer with end groups)",
+            param="smiles", value=smiles)
     bad = sorted({a.GetSymbol() for a in mol.GetAtoms() if a.GetSymbol() not in ORGANIC_ELEMENTS})
     if bad:
         raise OutOfRangeError(
             f"SMILES '{smiles}' contains {', '.join(bad)}: metals, metal complexes and inorganic elements are "
             "outside the HSP group-contribution methods (they cover neutral organic molecules of C, H, N, O, S, "
-            "halogens)"
+            "halogens)", param="smiles", value=smiles
         )
     if mol.GetNumAtoms() == 0:
-        raise InputError(f"SMILES '{smiles}' holds no atoms")
+        raise InputError(f"SMILES '{smiles}' holds no atoms", param="smiles", value=smiles)
     net = sum(a.GetFormalCharge() for a in mol.GetAtoms())
     if net != 0:
         raise OutOfRangeError(
             f"SMILES '{smiles}' is an ion (net charge {net:+d}); the HSP methods do not cover ions or ionic "
-            "liquids: give the neutral form (acid or base), whose parameters the methods do estimate"
-        )
+            "liquids: give the neutral form (acid or base), whose parameters the methods do estimate",
+            param="smiles", value=smiles)
     charged = [a.GetIdx() for a in mol.GetAtoms() if a.GetFormalCharge() != 0]
     if charged:
         global _NITRO
@@ -315,10 +340,10 @@ def parse_smiles(smiles: str):
         if set(charged) - ok:
             raise OutOfRangeError(
                 f"SMILES '{smiles}' has separated charges (a zwitterion or inner salt); the HSP methods do not "
-                "cover ionic species: give an uncharged structure"
-            )
+                "cover ionic species: give an uncharged structure", param="smiles", value=smiles)
     if any(a.GetNumRadicalElectrons() for a in mol.GetAtoms()):
-        raise OutOfRangeError(f"SMILES '{smiles}' is a radical; the HSP methods cover closed-shell molecules only")
+        raise OutOfRangeError(f"SMILES '{smiles}' is a radical; the HSP methods cover closed-shell molecules only",
+                              param="smiles", value=smiles)
     for a in mol.GetAtoms():  # isotopes (deuterium, 13C) do not change the group values
         a.SetIsotope(0)
     mol = Chem.RemoveHs(mol)
@@ -537,7 +562,7 @@ def _ring_conjugated_double_bonds(mol) -> int:
     kek = Chem.Mol(mol)
     try:
         Chem.Kekulize(kek, clearAromaticFlags=True)
-    except Exception:  # pragma: no cover - RDKit parsed it, so it kekulises
+    except Chem.KekulizeException:  # pragma: no cover - RDKit parsed it, so it kekulises
         return 0
     Chem.SetConjugation(kek)
     n = 0
@@ -614,90 +639,6 @@ def hoftyzer_van_krevelen(smiles_or_mol) -> MethodEstimate:
     )
 
 
-# --------------------------------------------------------------------------- training data
-
-#: The ``chemicals`` HSP datasets the own model is fitted on (and no others).
-HSP_DATASETS = ("MANUEL_RUBEN_2022", "ALSHERI_HANSEN", "WDR_SCHRIER")
-DATASET_SOURCE = {"MANUEL_RUBEN_2022": "hsp_mr2022", "ALSHERI_HANSEN": "hsp_alshehri2022",
-                  "WDR_SCHRIER": "hsp_schrier2020"}
-
-#: Two datasets that give a compound HSP more than this far apart (Ra, MPa^0.5)
-#: make its label doubtful: it is kept out of fitting and reported apart.
-CONFLICT_RA = 4.0
-
-
-def training_data(exclude=()):
-    """The HSP training set: the three ``chemicals`` datasets merged by structure.
-
-    Each CAS number's values are the per-parameter median over the datasets
-    that list it; CAS numbers with the same structure (stereoisomers, duplicate
-    numbers: same canonical SMILES without stereo) are merged the same way, so
-    one structure is one compound and never sits on both sides of a
-    cross-validation split.  A compound whose datasets disagree by more than
-    :data:`CONFLICT_RA` is marked ``conflict`` (not fitted; errors on it are
-    reported apart).  Compounds that RDKit or the checks of
-    :func:`parse_smiles` refuse (salts, ions, metals) are dropped.
-
-    Parameters
-    ----------
-    exclude : iterable of str
-        CAS numbers to leave out (a user's hold-out set)
-
-    Returns
-    -------
-    pandas.DataFrame
-        columns key (canonical SMILES without stereo), smiles, cas (``;``
-        joined), dD, dP, dH [MPa^0.5], n_sources, max_ra (largest
-        disagreement between datasets), conflict (bool), source (ids of the
-        datasets that list it)
-    """
-    import numpy as np
-    import pandas as pd
-    from chemicals import solubility
-    from chemicals.identifiers import search_chemical
-
-    solubility._load_solubility_data()
-    exclude = {c.strip() for c in exclude if c and c.strip()}
-    rows, sets = {}, {}
-    for key in HSP_DATASETS:
-        df = solubility.solubility_sources[key]
-        for cas, r in df.iterrows():
-            if cas in exclude:
-                continue
-            rows.setdefault(cas, []).append(
-                (r["HANSEN_DELTA_D"] / 1000.0, r["HANSEN_DELTA_P"] / 1000.0, r["HANSEN_DELTA_H"] / 1000.0)
-            )
-            sets.setdefault(cas, set()).add(DATASET_SOURCE[key])
-    Chem = _rdkit()
-    by_key: dict = {}
-    for cas in sorted(rows):
-        try:
-            smi = search_chemical(cas).smiles
-        except Exception:
-            continue
-        if not smi:
-            continue
-        try:
-            mol, canonical = parse_smiles(smi)
-        except InputError:
-            continue
-        key = Chem.MolToSmiles(mol, isomericSmiles=False)
-        entry = by_key.setdefault(key, {"cas": [], "values": [], "smiles": canonical, "sets": set()})
-        entry["cas"].append(cas)
-        entry["sets"].update(sets[cas])
-        entry["values"].extend(rows[cas])
-    out = []
-    for key, e in by_key.items():
-        v = np.array(e["values"], dtype=float)
-        med = np.median(v, axis=0)
-        d = (v[:, None, :] - v[None, :, :]) * np.array([2.0, 1.0, 1.0])
-        max_ra = float(np.sqrt((d * d).sum(-1)).max())
-        out.append({
-            "key": key, "smiles": e["smiles"], "cas": ";".join(e["cas"]),
-            "dD": med[0], "dP": med[1], "dH": med[2], "n_sources": len(v),
-            "max_ra": max_ra, "conflict": max_ra > CONFLICT_RA, "source": ";".join(sorted(e["sets"])),
-        })
-    return pd.DataFrame(out).sort_values("key").reset_index(drop=True)
 
 
 # --------------------------------------------------------------------------- the own model
@@ -828,7 +769,7 @@ def _own_compiled(terms: tuple):
     for name, smarts, kind, owned in terms:
         patt = Chem.MolFromSmarts(smarts) if smarts else None
         if kind in ("atom", "match") and patt is None:
-            raise InputError(f"own-model term '{name}': SMARTS '{smarts}' could not be read")
+            raise InputError(f"own-model term '{name}': SMARTS '{smarts}' could not be read", param="params")
         out.append((name, patt, kind, int(owned)))
     return tuple(out)
 
@@ -842,8 +783,7 @@ def own_features(mol, terms=None):
     """
     import numpy as np
 
-    from rdkit.Chem import rdMolDescriptors
-
+    rdMolDescriptors = _rd().rdMolDescriptors
     terms = tuple(tuple(t) for t in (terms or OWN_TERMS))
     comp = _own_compiled(terms)
     claimed: set = set()
@@ -876,7 +816,7 @@ def own_features(mol, terms=None):
             elif name == "H-bond donors":
                 counts[i] = rdMolDescriptors.CalcNumHBD(mol)
             else:
-                raise InputError(f"own-model term '{name}': unknown special term")
+                raise InputError(f"own-model term '{name}': unknown special term", param="params")
             if counts[i]:
                 found[name] = [()] * int(counts[i])
     return counts, mcgowan_volume(mol), _groups_tuple(found), _uncovered(mol, claimed)
@@ -939,7 +879,7 @@ def _lookup_cas(mol, full: bool = False) -> tuple[str | None, bool]:
     for m, exact in ((mol, True), (flat, False)):
         try:
             key = Chem.MolToInchiKey(m)
-        except Exception:  # pragma: no cover
+        except (ValueError, RuntimeError):  # pragma: no cover - RDKit's InChI layer refused the molecule
             continue
         if key:
             keys.append((key, exact))
@@ -1155,26 +1095,29 @@ def load_params(path=None) -> OwnParams:
 
     p = Path(path) if path else _tables_dir() / _BUNDLED_PARAMS
     if not p.is_file():
-        raise InputError(f"--params: file '{p}' not found")
+        raise InputError(f"file '{p}' not found", param="params", value=str(p),
+                         expected="a parameter table from a refit")
     terms, coefs, intercept, square, size, srcs = [], [], None, (False, False, False), None, set()
     meta = {}
     with open(p, newline="", encoding="utf-8") as fh:
         reader = csv.DictReader(fh)
         missing = [c for c in _PARAM_COLUMNS if c not in (reader.fieldnames or [])]
         if missing:
-            raise TableError(p, f"missing columns {', '.join(missing)} (expected {', '.join(_PARAM_COLUMNS)})")
+            raise TableError(p, f"missing columns {', '.join(missing)} (expected {', '.join(_PARAM_COLUMNS)})",
+                             param="params")
         for row_no, row in enumerate(reader, start=2):
             try:
                 vals = np.array([float(row[c]) for c in ("coef_dD", "coef_dP", "coef_dH")])
             except ValueError:
-                raise TableError(p, "coef_dD, coef_dP, coef_dH must be numbers", row=row_no, column="coef_dD") from None
+                raise TableError(p, "coef_dD, coef_dP, coef_dH must be numbers", row=row_no, column="coef_dD",
+                                 param="params") from None
             kind = row["kind"]
             srcs.update(s for s in (row.get("source") or "").split(";") if s)
             if kind in ("atom", "match", "special", "polar"):
                 try:
                     owned = int(row["owned"] or 0)
                 except ValueError:
-                    raise TableError(p, "expected an integer", row=row_no, column="owned") from None
+                    raise TableError(p, "expected an integer", row=row_no, column="owned", param="params") from None
                 terms.append((row["term"], row["smarts"], kind, owned))
                 coefs.append(vals)
             elif kind == "size":
@@ -1188,9 +1131,9 @@ def load_params(path=None) -> OwnParams:
             else:
                 raise TableError(p, f"unknown kind '{kind}' (atom, match, special, polar, size, intercept, transform, "
                                  "meta)",
-                                 row=row_no, column="kind")
+                                 row=row_no, column="kind", param="params")
     if intercept is None or size is None or not terms:
-        raise TableError(p, "needs term rows, one 'size' row and one 'intercept' row")
+        raise TableError(p, "needs term rows, one 'size' row and one 'intercept' row", param="params")
     cv = {}
     cvp = _sibling(p, "cv")
     if cvp.is_file():
@@ -1254,7 +1197,8 @@ def own_model(smiles_or_mol, params=None, neighbours_on: bool = True) -> MethodE
     with :math:`n_i` the counts of the scheme's terms, :math:`V_x` the McGowan
     volume [cm^3/mol]; y is dD, dP, or the square of dH (see the ``transform``
     row of the parameter table).  Coefficients are fitted by Huber regression
-    (:func:`refit`), with settings chosen by cross-validation (:func:`select_settings`).  The fitted residuals of the most similar training
+    (:func:`solvsel.science.structure_training.refit`), with settings chosen by cross-validation
+    (:func:`~solvsel.science.structure_training.select_settings`).  The fitted residuals of the most similar training
     compounds are then added through a kernel ridge correction
     (:func:`kernel_correction`); the three nearest are returned in ``neighbours``.
 
@@ -1262,7 +1206,7 @@ def own_model(smiles_or_mol, params=None, neighbours_on: bool = True) -> MethodE
     ----------
     smiles_or_mol : str or rdkit Mol
     params : str or Path or OwnParams, optional
-        a parameter table from :func:`refit` (default: the bundled one)
+        a parameter table from :func:`~solvsel.science.structure_training.refit` (default: the bundled one)
     neighbours_on : bool
         apply the similarity correction (needs ``<stem>_training.csv`` beside the parameters)
     """
@@ -1299,36 +1243,6 @@ def own_model(smiles_or_mol, params=None, neighbours_on: bool = True) -> MethodE
     return MethodEstimate(OWN_METHOD, float(y[0]), float(y[1]), float(y[2]), None, True, groups, (), note,
                           P.source, neighbours)
 
-
-# --------------------------------------------------------------------------- fitting and cross-validation
-
-N_FOLDS = 10
-SEED = 20221  # fixed, so the recorded split can be regenerated
-
-#: Loss and penalty of the fit.  Huber's loss (quadratic within epsilon
-#: standard deviations, linear beyond) keeps a few doubtful labels from pulling
-#: the group values; alpha is its L2 penalty on standardised columns.  None of
-#: these settings is fixed by hand: for each parameter (dD, dP, dH) the
-#: combination of epsilon, alpha and transform (the parameter or its square)
-#: is chosen from the grids below by an inner grouped cross-validation
-#: (:data:`INNER_FOLDS` folds) on the training compounds only, so the outer
-#: cross-validation that reports the errors is nested and never sees its test
-#: compounds while choosing (see :func:`select_settings`).
-HUBER_GRID = tuple((eps, alpha) for eps in (1.1, 1.35, 2.0) for alpha in (0.1, 1.0))
-#: Transforms tried per parameter: dD as it is; dP and dH as they are or as
-#: their squares (polar and hydrogen-bond cohesive energy per volume is what
-#: adds up by groups, Hoftyzer-Van Krevelen's form).
-SQUARE_CHOICES = ((False,), (False, True), (False, True))
-#: Similarity correction: kernel ridge regression of the group model's
-#: residuals on the training compounds, kernel = a similarity of
-#: :data:`KERNELS` (0 Morgan bits, 1 Morgan counts, 2 Morgan and feature-Morgan
-#: counts) to a power p, penalty lambda; (kernel, p, lambda) chosen per parameter
-#: from this grid by the same inner cross-validation.
-KERNEL_GRID = tuple((f, p, lam) for f in (0, 1, 2) for p in (1.0, 2.0, 3.0) for lam in (0.03, 0.1, 0.3, 1.0))
-INNER_FOLDS = 5
-#: dD is fitted with an intercept; dP and dH without (a molecule of no polar
-#: or hydrogen-bonding group gets ~0, as in the Hoftyzer-Van Krevelen form).
-INTERCEPT = (True, False, False)
 #: Settings used when none are given (a parameter table written before the
 #: settings were recorded; tests of single fits).
 EPSILON = 1.1
@@ -1366,69 +1280,6 @@ class FitSettings:
                    get("kernel lambda", d.lam), tuple(int(v) for v in get("kernel fingerprint", d.fp)))
 
 
-def dataset_design(df, terms=None):
-    """Features of every compound of :func:`training_data`: ``(X, counts, vx, covered)``."""
-    import numpy as np
-
-    Chem = _rdkit()
-    terms = tuple(tuple(t) for t in (terms or OWN_TERMS))
-    C, V, ok = [], [], []
-    for smi in df["smiles"]:
-        mol = Chem.MolFromSmiles(smi)
-        counts, vx, _, unc = own_features(mol, terms)
-        C.append(counts)
-        V.append(vx)
-        ok.append(not unc)
-    C = np.array(C)
-    V = np.array(V)
-    return own_design(C, V), C, V, np.array(ok)
-
-
-def _fit_one(X, y, intercept, epsilon=EPSILON, alpha=ALPHA):
-    """Huber regression on scaled columns; returns (intercept, coefficients on the raw columns)."""
-    from sklearn.linear_model import HuberRegressor
-
-    sd = X.std(axis=0)
-    sd[sd == 0] = 1.0
-    r = HuberRegressor(epsilon=epsilon, alpha=alpha, fit_intercept=intercept, max_iter=5000).fit(X / sd, y)
-    return float(r.intercept_) if intercept else 0.0, r.coef_ / sd
-
-
-def _polar_mask(terms, ncol):
-    import numpy as np
-
-    terms = terms or OWN_TERMS
-    return np.array([t[2] == "polar" for t in terms] + [False] * (ncol - len(terms)))
-
-
-def _fit_param(X, y, j, epsilon, alpha, square, polar):
-    """Fit parameter j (0 dD, 1 dP, 2 dH); the "polar" terms enter the dP fit only."""
-    import numpy as np
-
-    cols = np.ones(X.shape[1], bool) if j == 1 else ~polar
-    coef = np.zeros(X.shape[1])
-    icpt, coef[cols] = _fit_one(X[:, cols], y ** 2 if square else y, INTERCEPT[j], epsilon, alpha)
-    return icpt, coef
-
-
-def _predict_param(X, icpt, coef, square):
-    import numpy as np
-
-    y = icpt + X @ coef
-    return np.sqrt(np.clip(y, 0, None)) if square else np.clip(y, 0, None)
-
-
-def _fit(X, Y, terms=None, settings=None):
-    """Fit dD, dP, dH with ``settings`` (a :class:`FitSettings`; default settings if None)."""
-    import numpy as np
-
-    s = settings or FitSettings()
-    polar = _polar_mask(terms, X.shape[1])
-    icpt = np.zeros(3)
-    coef = np.zeros((X.shape[1], 3))
-    for j in range(3):
-        icpt[j], coef[:, j] = _fit_param(X, Y[:, j], j, s.epsilon[j], s.alpha[j], s.square[j], polar)
-    return icpt, coef
 
 
 def _predict(X, icpt, coef, square=SQUARE):
@@ -1454,8 +1305,7 @@ KERNELS = ("Morgan bits", "Morgan counts", "Morgan + feature-Morgan counts")
 
 def fingerprint(mol):
     """Fingerprints of the similarity correction: ``(2048 Morgan bits, Morgan counts, feature-Morgan counts)``."""
-    from rdkit.Chem import rdFingerprintGenerator as G
-
+    G = _rd().rdFingerprintGenerator
     global _FPGEN
     try:
         gen, feat = _FPGEN
@@ -1469,8 +1319,8 @@ def fingerprint(mol):
 def _similarities(fp, train_fps, kinds):
     """Similarities of one :func:`fingerprint` triple to training lists ``(bits, counts, features)``, by kernel."""
     import numpy as np
-    from rdkit import DataStructs
 
+    DataStructs = _rd().DataStructs
     raw = {}
 
     def tanimoto(f):
@@ -1481,46 +1331,12 @@ def _similarities(fp, train_fps, kinds):
     return {k: (tanimoto(1) + tanimoto(2)) / 2 if k == 2 else tanimoto(k) for k in set(kinds)}
 
 
-def similarity_matrix(fps_a, fps_b):
-    """Similarities between two lists of :func:`fingerprint` triples, shape (3, len(a), len(b)).
-
-    Axis 0 is the kernel of :data:`KERNELS`: 0 bits (Tanimoto), 1 counts (min-max
-    Tanimoto), 2 the mean of 1 and the feature-count similarity.
-    """
-    import numpy as np
-
-    other = tuple([b[f] for b in fps_b] for f in range(3))
-    out = np.zeros((3, len(fps_a), len(fps_b)))
-    for i, a in enumerate(fps_a):
-        sims = _similarities(a, other, (0, 1, 2))
-        for k in range(3):
-            out[k, i] = sims[k]
-    return out
 
 
 def _per_param(v):
     return tuple(float(x) for x in v) if hasattr(v, "__len__") else (float(v),) * 3
 
 
-def kernel_dual(K_train, residuals, power=KERNEL_POWER, lam=KERNEL_LAMBDA, fp=(0, 0, 0)):
-    r"""Dual coefficients of the kernel ridge correction.
-
-    .. math:: a_j = (K_{f_j}^{\circ p_j} + \lambda_j I)^{-1} r_j
-
-    with :math:`K_f` the Tanimoto similarities of the training compounds by
-    kernel :math:`f_j` (:func:`similarity_matrix`, shape (3, n, n)),
-    :math:`\circ p_j` the element-wise power and :math:`\lambda_j` the penalty
-    of parameter j (scalars or one per parameter); r the residuals (n, 3)
-    [MPa^0.5].
-    """
-    import numpy as np
-
-    n = K_train.shape[-1]
-    power, lam = _per_param(power), _per_param(lam)
-    out = np.zeros((n, residuals.shape[1]))
-    for j in range(residuals.shape[1]):
-        out[:, j] = np.linalg.solve(K_train[int(fp[j])] ** power[j] + lam[j] * np.eye(n), residuals[:, j])
-    return out
 
 
 def kernel_correction(fp, train_fps, dual, k=3, power=KERNEL_POWER, kind=(0, 0, 0)):
@@ -1530,7 +1346,7 @@ def kernel_correction(fp, train_fps, dual, k=3, power=KERNEL_POWER, kind=(0, 0, 
 
     with :math:`s_{f,i}` the similarity to training compound i by kernel f
     (:data:`KERNELS`; ``fp`` and ``train_fps`` are :func:`fingerprint` triples)
-    and :math:`a_{ij}` its dual coefficient (:func:`kernel_dual`); a molecule
+    and :math:`a_{ij}` its dual coefficient (:func:`~solvsel.science.structure_training.kernel_dual`); a molecule
     like none of the training compounds gets almost no correction.
 
     ``train_fps`` may also be given as a triple of lists (bits, counts,
@@ -1550,314 +1366,6 @@ def kernel_correction(fp, train_fps, dual, k=3, power=KERNEL_POWER, kind=(0, 0, 
     return delta, idx, sims[0][idx]
 
 
-def _grouped_folds(keys, n_folds, seed):
-    from sklearn.model_selection import GroupKFold
-
-    import numpy as np
-
-    folds = np.full(len(keys), -1)
-    for k, (_, te) in enumerate(GroupKFold(n_splits=n_folds, shuffle=True, random_state=seed).split(
-            np.arange(len(keys)), groups=keys)):
-        folds[te] = k
-    return folds
-
-
-def select_settings(X, Y, K, keys, terms=None, n_folds=INNER_FOLDS, seed=SEED):
-    """Choose the fit settings by grouped cross-validation on the compounds given (and only those).
-
-    For each parameter, the Huber (epsilon, alpha) and transform of
-    :data:`HUBER_GRID` x :data:`SQUARE_CHOICES` with the lowest mean absolute
-    error of the groups-only out-of-fold prediction is taken; then, with that
-    fit, the kernel (fingerprint, power, lambda) of :data:`KERNEL_GRID` with the lowest
-    error of the corrected prediction.  Ties go to the first in grid order.
-    Called on the training part of each outer fold (nested cross-validation)
-    and on every fitted compound for the final parameters.
-
-    Parameters
-    ----------
-    X : ndarray (n, m) design rows; Y : ndarray (n, 3) labels [MPa^0.5];
-    K : ndarray (3, n, n) similarities among these compounds by kernel (:func:`similarity_matrix`);
-    keys : grouping keys (one structure, one key)
-
-    Returns
-    -------
-    FitSettings
-    """
-    import numpy as np
-
-    folds = _grouped_folds(np.asarray(keys), n_folds, seed)
-    polar = _polar_mask(terms, X.shape[1])
-    n = len(Y)
-    chosen = {"epsilon": [], "alpha": [], "square": [], "fp": [], "power": [], "lam": []}
-    eig = {}  # (fold, power) -> eigen-decomposition of the training kernel, shared by the three parameters
-    for j in range(3):
-        configs = [(e, a, sq) for sq in SQUARE_CHOICES[j] for e, a in HUBER_GRID]
-        base = np.zeros((len(configs), n))
-        fits = {}
-        for k in range(n_folds):
-            tr, te = folds != k, folds == k
-            for c, (e, a, sq) in enumerate(configs):
-                icpt, coef = _fit_param(X[tr], Y[tr, j], j, e, a, sq, polar)
-                base[c, te] = _predict_param(X[te], icpt, coef, sq)
-                fits[c, k] = (icpt, coef)
-        best = int(np.argmin(np.abs(base - Y[:, j]).mean(axis=1)))
-        e, a, sq = configs[best]
-        kern = np.zeros((len(KERNEL_GRID), n))
-        for k in range(n_folds):
-            tr, te = np.where(folds != k)[0], np.where(folds == k)[0]
-            icpt, coef = fits[best, k]
-            r = Y[tr, j] - _predict_param(X[tr], icpt, coef, sq)
-            for f, p in sorted({(f, p) for f, p, _ in KERNEL_GRID}):
-                if (k, f, p) not in eig:
-                    eig[k, f, p] = np.linalg.eigh(K[f][np.ix_(tr, tr)] ** p)
-                w, vec = eig[k, f, p]
-                proj = vec.T @ r
-                Kte = K[f][np.ix_(te, tr)] ** p
-                for c, (ff, pp, lam) in enumerate(KERNEL_GRID):
-                    if (ff, pp) == (f, p):
-                        kern[c, te] = np.clip(base[best, te] + Kte @ (vec @ (proj / (w + lam))), 0, None)
-        kbest = int(np.argmin(np.abs(kern - Y[:, j]).mean(axis=1)))
-        for name, v in zip(("epsilon", "alpha", "square", "fp", "power", "lam"), (e, a, sq, *KERNEL_GRID[kbest])):
-            chosen[name].append(v)
-    return FitSettings(**{k: tuple(v) for k, v in chosen.items()})
-
-
-def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, similarity=True, terms=None, K=None, nested=True,
-                   progress=None):
-    """Grouped, nested k-fold cross-validation of the own model.
-
-    Each compound (one structure, see :func:`training_data`) is one group, so
-    no structure is in the training and the test part of a fold at once.
-    Compounds marked ``conflict`` get a fold and an out-of-fold prediction but
-    are never fitted on.  Within each outer fold the settings are chosen by
-    :func:`select_settings` on that fold's training compounds only (``nested``;
-    else the default settings); the similarity correction of a test compound
-    uses only that fold's training compounds and their residuals under that
-    fold's fit.
-
-    Returns
-    -------
-    folds : ndarray of int (fold of each compound, -1 if not covered)
-    pred : ndarray (n, 3) out-of-fold predictions [MPa^0.5] (NaN if not covered)
-    base : ndarray (n, 3) the same without the similarity correction
-    settings : list of FitSettings, one per outer fold
-    """
-    import numpy as np
-
-    Chem = _rdkit()
-    Y = df[["dD", "dP", "dH"]].to_numpy(float)
-    keys = df["key"].to_numpy()
-    idx = np.where(covered)[0]
-    folds = np.full(len(df), -1)
-    pred = np.full((len(df), 3), np.nan)
-    base = np.full((len(df), 3), np.nan)
-    fitted = covered & ~df["conflict"].to_numpy(bool)
-    if K is None and (similarity or nested):
-        fps = [fingerprint(Chem.MolFromSmiles(s)) for s in df["smiles"]]
-        K = similarity_matrix(fps, fps)
-    folds[idx] = _grouped_folds(keys[idx], n_folds, seed)
-    settings = []
-    for k in range(n_folds):
-        tr = np.where(fitted & (folds != k) & (folds >= 0))[0]
-        te = np.where(folds == k)[0]
-        if progress:
-            progress(f"outer fold {k + 1} of {n_folds}")
-        s = select_settings(X[tr], Y[tr], K[:, tr][:, :, tr], keys[tr], terms, seed=seed + 1 + k) if nested \
-            else FitSettings()
-        settings.append(s)
-        icpt, coef = _fit(X[tr], Y[tr], terms, s)
-        base[te] = _predict(X[te], icpt, coef, s.square)
-        pred[te] = base[te]
-        if similarity:
-            dual = kernel_dual(K[:, tr][:, :, tr], Y[tr] - _predict(X[tr], icpt, coef, s.square), s.power, s.lam,
-                               s.fp)
-            corr = np.column_stack([(K[s.fp[j]][np.ix_(te, tr)] ** s.power[j]) @ dual[:, j] for j in range(3)])
-            pred[te] = np.clip(base[te] + corr, 0, None)
-    return folds, pred, base, settings
-
-
-
-def error_table(df, preds: dict, mask=None):
-    """Mean absolute errors by class for each method, on the compounds every method covers.
-
-    ``preds`` maps method name to an (n, 3) array (NaN where not covered).
-    Returns rows ``{method, class, n, mae_dD, mae_dP, mae_dH, mae_ra, q90_*}``;
-    the class ``all`` is over every compound.
-    """
-    import numpy as np
-
-    Y = df[["dD", "dP", "dH"]].to_numpy(float)
-    common = np.ones(len(df), bool) if mask is None else np.asarray(mask, bool).copy()
-    for P in preds.values():
-        common &= np.isfinite(P).all(axis=1)
-    classes = df["chem_class"].to_numpy()
-    rows = []
-    for method, P in preds.items():
-        err = np.abs(P - Y)
-        ra = np.sqrt(4 * err[:, 0] ** 2 + err[:, 1] ** 2 + err[:, 2] ** 2)
-        for cls in ("all",) + CLASSES:
-            m = common if cls == "all" else common & (classes == cls)
-            if not m.any():
-                continue
-            row = {"method": method, "class": cls, "n": int(m.sum())}
-            for j, p in enumerate(("dD", "dP", "dH")):
-                row[f"mae_{p}"] = float(err[m, j].mean())
-            row["mae_ra"] = float(ra[m].mean())
-            for j, p in enumerate(("dD", "dP", "dH")):
-                row[f"q90_{p}"] = float(np.quantile(err[m, j], 0.9))
-            row["q90_ra"] = float(np.quantile(ra[m], 0.9))
-            rows.append(row)
-    return rows
-
-
-def published_predictions(df, methods=("hoftyzer-van-krevelen",)):
-    """Predictions of the published (and property) methods for every compound of ``df``."""
-    import numpy as np
-
-    Chem = _rdkit()
-    out = {}
-    for method in methods:
-        P = np.full((len(df), 3), np.nan)
-        for i, (smi, cas) in enumerate(zip(df["smiles"], df["cas"])):
-            mol = Chem.MolFromSmiles(smi)
-            if method == "hoftyzer-van-krevelen":
-                e = hoftyzer_van_krevelen(mol)
-            elif method == "properties":
-                e = properties_estimate(mol, cas=cas.split(";")[0])
-            else:
-                raise InputError(f"method '{method}': expected one of {', '.join(METHODS)}")
-            if e.covered:
-                P[i] = (e.dD, e.dP, e.dH)
-        out[method] = P
-    return out
-
-
-def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, progress=None):
-    """Fit the own model on the ``chemicals`` datasets and write its parameter table.
-
-    Writes ``out`` (parameters), ``<stem>_training.csv`` (every compound with
-    its values, fold, whether it was fitted, and its out-of-fold prediction)
-    and ``<stem>_cv.csv`` (cross-validated errors by class, the own model and
-    Hoftyzer-Van Krevelen on the same compounds).  Never overwrites a file
-    unless ``force``.
-
-    The cross-validation is nested: in each of the ``n_folds`` outer folds the
-    settings (Huber epsilon and alpha, transform, kernel power and penalty) are
-    chosen by :func:`select_settings` on that fold's training compounds, and
-    only then is the fold's test part predicted; the settings chosen in each
-    fold are recorded in the parameter table (``fold k ...`` meta rows).  The
-    final parameters use settings chosen the same way on every fitted compound.
-    Takes a few minutes (about 1,700 Huber fits).
-
-    Parameters
-    ----------
-    out : str or Path
-        the parameter table to write (``.csv``)
-    exclude : iterable of str
-        CAS numbers held out of everything (fitting and validation)
-    force : bool
-        overwrite existing files
-
-    Returns
-    -------
-    dict
-        paths written, number of compounds, cross-validated errors (class ``all``), the error table
-    """
-    import numpy as np
-
-    out = Path(out)
-    if out.suffix.lower() != ".csv":
-        raise InputError(f"--refit: the parameter file must end in .csv, got '{out}'")
-    paths = [out, _sibling(out, "training"), _sibling(out, "cv")]
-    if not force:
-        exist = [str(p) for p in paths if p.exists()]
-        if exist:
-            raise InputError(f"--refit: {', '.join(exist)} already exist; choose another name or add --force")
-    if not out.parent.is_dir():
-        raise InputError(f"--refit: folder '{out.parent}' does not exist")
-    terms = tuple(tuple(t) for t in (terms or OWN_TERMS))
-    say = progress or (lambda msg: None)
-    say("reading the HSP datasets of chemicals")
-    df = training_data(exclude)
-    df["chem_class"] = [chemical_class(s) for s in df["smiles"]]
-    say(f"{len(df)} compounds; counting groups")
-    X, _, _, covered = dataset_design(df, terms)
-    fps = [fingerprint(_rdkit().MolFromSmiles(s)) for s in df["smiles"]]
-    K = similarity_matrix(fps, fps)
-    say(f"nested cross-validation ({n_folds} outer folds, settings chosen in {INNER_FOLDS} inner folds)")
-    folds, cvpred, cvbase, fold_settings = cross_validate(df, X, covered, n_folds, seed, terms=terms, K=K,
-                                                          progress=say)
-    fitted = covered & ~df["conflict"].to_numpy(bool)
-    Y = df[["dD", "dP", "dH"]].to_numpy(float)
-    fi = np.where(fitted)[0]
-    say("choosing the settings on every compound and fitting")
-    settings = select_settings(X[fi], Y[fi], K[:, fi][:, :, fi], df["key"].to_numpy()[fi], terms, seed=seed)
-    icpt, coef = _fit(X[fitted], Y[fitted], terms, settings)
-    resid = np.full((len(df), 3), np.nan)
-    resid[fitted] = Y[fitted] - _predict(X[fitted], icpt, coef, settings.square)
-    say("similarity correction")
-    dual = np.full((len(df), 3), np.nan)
-    dual[fi] = kernel_dual(K[:, fi][:, :, fi], resid[fi], settings.power, settings.lam, settings.fp)
-    say("scoring the published method on the same compounds")
-    pub = published_predictions(df)
-    preds = {OWN_METHOD: cvpred, OWN_METHOD + " (groups only)": cvbase, **pub}
-    rows_cv = error_table(df, {OWN_METHOD: cvpred}, mask=fitted)
-    # the same-compound comparison (where every method covers the compound)
-    rows_cv += [dict(r, method=r["method"] + (" (same compounds)" if r["method"] == OWN_METHOD else ""))
-                for r in error_table(df, preds, mask=fitted)]
-    # the property route on every compound the library has the data for (its own uncertainty)
-    rows_cv += error_table(df, published_predictions(df, ("properties",)), mask=fitted)
-    conflict_rows = error_table(df, {OWN_METHOD: cvpred}, mask=covered & df["conflict"].to_numpy(bool))
-    for r in conflict_rows:
-        if r["class"] == "all":
-            rows_cv.append(dict(r, **{"class": "conflicting labels"}))
-    src = "derived_gc_fit"
-    tmp = [p.with_name(p.name + ".tmp") for p in paths]
-    with open(tmp[0], "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh, lineterminator="\n")
-        w.writerow(_PARAM_COLUMNS)
-        for (name, smarts, kind, owned), c in zip(terms, coef[:-1]):
-            w.writerow([name, kind, smarts, owned, *(f"{v:.8g}" for v in c), src])
-        w.writerow(["100/Vx", "size", "", 0, *(f"{v:.8g}" for v in coef[-1]), src])
-        w.writerow(["intercept", "intercept", "", 0, *(f"{v:.8g}" for v in icpt), src])
-        w.writerow(["square", "transform", "", 0, *(int(s) for s in settings.square), src])
-        w.writerow(["intercept fitted", "meta", "", 0, *(int(v) for v in INTERCEPT), src])
-        for name, vals in settings.rows():
-            if name != "square":
-                w.writerow([name, "meta", "", 0, *(f"{v:g}" for v in vals), src])
-        w.writerow([f"settings chosen by {INNER_FOLDS}-fold grouped CV from huber (epsilon, alpha) {list(HUBER_GRID)}, "
-                    f"kernel (fingerprint 0 bits 1 counts 2 counts+features, power, lambda) {list(KERNEL_GRID)}; outer folds={n_folds} "
-                    f"seed={seed} "
-                    f"fitted={int(fitted.sum())}", "meta", "", 0, 0, 0, 0, src])
-        for k, fs in enumerate(fold_settings):
-            for name, vals in fs.rows():
-                w.writerow([f"fold {k} {name}", "meta", "", 0, *(f"{v:g}" for v in vals), src])
-    with open(tmp[1], "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh, lineterminator="\n")
-        w.writerow(["key", "smiles", "cas", "dD" + _U, "dP" + _U, "dH" + _U, "n_sources", "max_ra" + _U, "conflict",
-                    "covered", "fitted", "fold", "chem_class", *(f"cv_{k}{_U}" for k in ("dD", "dP", "dH")),
-                    *(f"res_{k}{_U}" for k in ("dD", "dP", "dH")), *(f"dual_{k}{_U}" for k in ("dD", "dP", "dH")),
-                    "source"])
-        for i, r in df.iterrows():
-            cvp = ["" if not np.isfinite(v) else f"{v:.3f}" for v in list(cvpred[i]) + list(resid[i])]
-            cvp += ["" if not np.isfinite(v) else f"{v:.8g}" for v in dual[i]]
-            w.writerow([r["key"], r["smiles"], r["cas"], f"{r['dD']:.2f}", f"{r['dP']:.2f}", f"{r['dH']:.2f}",
-                        r["n_sources"], f"{r['max_ra']:.2f}", "yes" if r["conflict"] else "no",
-                        "yes" if covered[i] else "no", "yes" if fitted[i] else "no", int(folds[i]),
-                        r["chem_class"], *cvp, r["source"]])
-    cols = ["method", "class", "n", "mae_dD", "mae_dP", "mae_dH", "mae_ra", "q90_dD", "q90_dP", "q90_dH", "q90_ra"]
-    with open(tmp[2], "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh, lineterminator="\n")
-        w.writerow(cols[:3] + [c + _U for c in cols[3:]] + ["source"])
-        for r in rows_cv:
-            w.writerow([r[c] if isinstance(r[c], str) or c == "n" else f"{r[c]:.3f}" for c in cols] + [src])
-    for t, p in zip(tmp, paths):
-        t.replace(p)
-    load_params.cache_clear()
-    _neighbour_data.cache_clear()
-    overall = next(r for r in rows_cv if r["method"] == OWN_METHOD and r["class"] == "all")
-    return {"paths": [str(p) for p in paths], "compounds": int(len(df)), "fitted": int(fitted.sum()),
-            "cv": overall, "table": rows_cv}
 
 
 # --------------------------------------------------------------------------- the public entry point
@@ -1925,54 +1433,25 @@ def estimate(smiles: str, method: str | None = None, params=None, properties: bo
     import numpy as np
 
     if method is not None and method not in METHODS:
-        raise InputError(f"method '{method}': expected one of {', '.join(METHODS)}")
+        raise InputError(f"expected one of {', '.join(METHODS)}, got '{method}'", param="method", value=method,
+                         expected=", ".join(METHODS))
     method = method or OWN_METHOD
     mol, canonical = parse_smiles(smiles)
     P = load_params(str(params) if params else None)
-    own = own_model(mol, P)
-    hvk = hoftyzer_van_krevelen(mol)
     looked = properties or method == "properties"
     cas, exact = _lookup_cas(mol, full_lookup) if looked else (None, True)
     prop = properties_estimate(mol, cas) if cas else MethodEstimate(
         "properties", None, None, None, None, False,
         note=_not_found_note(full_lookup) if looked else "not looked up", source="chemicals_lib")
-    by_name = {OWN_METHOD: own, "hoftyzer-van-krevelen": hvk, "properties": prop}
+    by_name = {OWN_METHOD: own_model(mol, P), "hoftyzer-van-krevelen": hoftyzer_van_krevelen(mol), "properties": prop}
     chosen = by_name[method]
     if not chosen.covered:
-        Chem = _rdkit()
-        if chosen.uncovered_atoms:
-            what = ", ".join(f"{mol.GetAtomWithIdx(i).GetSymbol()}{i}" for i in chosen.uncovered_atoms)
-            raise MissingDataError(
-                f"method '{method}' has no group for atom(s) {what} of '{canonical}'; the estimate is refused "
-                "rather than guessed (try another method with --method)")
-        raise MissingDataError(f"method '{method}' cannot estimate '{canonical}': {chosen.note}")
-    from rdkit.Chem import Descriptors, rdMolDescriptors
-
+        raise _refusal(mol, canonical, method, chosen)
     cls = chemical_class(mol)
-    notes = []
-    if chosen.note:
-        notes.append(chosen.note)
-    if cas and not exact:
-        notes.append(f"CAS {cas} {STEREO_FREE_NOTE}")
-    # molar volume: the library's liquid value where it has the compound, else Fedors
-    vm, vm_method = None, ""
-    if cas:
-        v, route = liquid_molar_volume(cas)
-        if v:
-            vm, vm_method = float(v), f"chemicals: {route}"
-    if vm is None:
-        fv = fedors_volume(mol)[0]
-        if fv:
-            vm, vm_method = float(fv), "Fedors 1974 group contribution"
-    if vm is None:
-        notes.append("no molar volume: Fedors has no group for some atom")
-    heavy = mol.GetNumAtoms()
-    if heavy < 3:
-        notes.append("very small molecule: group contributions are least reliable here")
-    mw = float(Descriptors.MolWt(mol))
-    if mw > 600:
-        notes.append("molecule larger than most of the training data (MW > 600): treat the estimate as rough")
-    covered = [e for e in (own, hvk, prop) if e.covered]
+    vm, vm_method = _molar_volume(mol, cas)
+    mw = float(_rd().Descriptors.MolWt(mol))
+    notes = _estimate_notes(mol, chosen, cas, exact, vm, mw)
+    covered = [e for e in by_name.values() if e.covered]
     spread = {}
     if len(covered) > 1:
         arr = np.array([e.hsp for e in covered])
@@ -1983,8 +1462,47 @@ def estimate(smiles: str, method: str | None = None, params=None, properties: bo
         vm_cm3_mol=vm, vm_method=vm_method, method=method, groups=chosen.groups,
         uncovered_atoms=chosen.uncovered_atoms, chem_class=cls, uncertainty=_uncertainty(P, method, cls),
         others=others, spread=spread, notes=tuple(notes), mw_g_mol=mw,
-        formula=rdMolDescriptors.CalcMolFormula(mol), neighbours=chosen.neighbours,
+        formula=_rd().rdMolDescriptors.CalcMolFormula(mol), neighbours=chosen.neighbours,
     )
+
+
+def _refusal(mol, canonical: str, method: str, chosen: MethodEstimate) -> MissingDataError:
+    """The error of a method that cannot estimate the molecule (atoms without a group, data missing)."""
+    if chosen.uncovered_atoms:
+        what = ", ".join(f"{mol.GetAtomWithIdx(i).GetSymbol()}{i}" for i in chosen.uncovered_atoms)
+        return MissingDataError(
+            f"method '{method}' has no group for atom(s) {what} of '{canonical}'; the estimate is refused "
+            "rather than guessed (try another method)", param="method", value=method)
+    return MissingDataError(f"method '{method}' cannot estimate '{canonical}': {chosen.note}", param="method",
+                            value=method)
+
+
+def _molar_volume(mol, cas: str | None) -> tuple[float | None, str]:
+    """Molar volume [cm^3/mol] and its route: the library's liquid value where it has the compound, else Fedors."""
+    if cas:
+        v, route = liquid_molar_volume(cas)
+        if v:
+            return float(v), f"chemicals: {route}"
+    fv = fedors_volume(mol)[0]
+    if fv:
+        return float(fv), "Fedors 1974 group contribution"
+    return None, ""
+
+
+def _estimate_notes(mol, chosen: MethodEstimate, cas: str | None, exact: bool, vm, mw: float) -> list[str]:
+    """What to know about an estimate: the method's note, a stereo-free match, the size of the molecule."""
+    notes = []
+    if chosen.note:
+        notes.append(chosen.note)
+    if cas and not exact:
+        notes.append(f"CAS {cas} {STEREO_FREE_NOTE}")
+    if vm is None:
+        notes.append("no molar volume: Fedors has no group for some atom")
+    if mol.GetNumAtoms() < 3:
+        notes.append("very small molecule: group contributions are least reliable here")
+    if mw > 600:
+        notes.append("molecule larger than most of the training data (MW > 600): treat the estimate as rough")
+    return notes
 
 
 def estimate_many(smiles_list, method=None, params=None, properties=False):

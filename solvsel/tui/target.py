@@ -1,11 +1,11 @@
 """Target screen: say what must dissolve, in one of four ways.
 
 From the solutes table (:func:`solvsel.science.target.target_from_solute`), typed
-numbers (:func:`~solvsel.science.target.target_from_hsp`), a structure
-(:func:`~solvsel.science.target.target_from_smiles`, with the groups of
-:func:`solvsel.science.structure.estimate` shown), or a sphere fitted from bench
-results (:mod:`solvsel.science.sphere`).  The chosen target drives the carriers and
-map screens.
+numbers (:func:`~solvsel.science.target.target_from_hsp`), a structure (the
+estimate job :func:`solvsel.jobs.estimate.estimate`, with the groups shown), or a
+sphere fitted from a file of bench results (the fit job :func:`solvsel.jobs.fit.fit`,
+which reads every bench-file format the command line reads).  The chosen target
+drives the carriers and map screens.
 """
 
 from __future__ import annotations
@@ -28,6 +28,8 @@ class TargetScreen(BenchScreen):
     """Choose the target: a solute, typed HSP, a SMILES string or a bench fit."""
 
     MODE = "target"
+    FIELD_LABELS = {"smiles": "SMILES", "path": "bench results file", "good_at_most": "good at a score of at most",
+                    "hsp": "dD, dP, dH, R0"}
     BINDINGS = [Binding("ctrl+t", "next_way", "Next way", priority=True)]
     WAYS = ("from-table", "from-typed", "from-smiles", "from-bench")
 
@@ -55,10 +57,11 @@ class TargetScreen(BenchScreen):
                         yield Static("", id="smiles-detail")
                 with TabPane("From bench results", id="from-bench"):
                     with Vertical(classes="form"):
-                        yield Label("CSV of bench tests (one row a liquid, with its score)")
+                        yield Label("CSV of bench tests (one row a liquid: good / partial / bad, or a score)")
                         yield Input(placeholder="path/to/bench.csv", id="bench-path", compact=True)
-                        yield Label("a liquid counts as a good solvent at a score of at most")
-                        yield Input(value="2", id="bench-good", compact=True)
+                        yield Label("for scores: a liquid counts as a good solvent at a score of at most")
+                        yield Input(placeholder="e.g. 2 (leave empty for good / partial / bad)", id="bench-good",
+                                    compact=True)
                         yield Button("Fit the sphere and use it", id="use-bench", variant="primary", compact=True)
                         yield Static("", id="bench-detail")
             with VerticalScroll(id="target-summary-pane"):
@@ -141,15 +144,17 @@ class TargetScreen(BenchScreen):
         from ..science.target import target_from_hsp
 
         name = self.query_one("#typed-name", Input).value.strip() or "typed target"
-        return target_from_hsp(parse_hsp(self.query_one("#typed-hsp", Input).value, "typed HSP"), name=name)
+        return target_from_hsp(parse_hsp(self.query_one("#typed-hsp", Input).value, "hsp"), name=name)
+
+    #: The last results of the structure and bench ways (what the screen shows).
+    smiles_result = None
+    bench_result = None
 
     def smiles_target(self):
-        from ..science.structure import estimate
-        from ..science.target import target_from_smiles
+        from ..jobs.estimate import estimate
 
-        smiles = self.query_one("#smiles", Input).value.strip()
-        target = target_from_smiles(smiles)
-        est = estimate(smiles)
+        self.smiles_result = estimate(smiles=self.query_one("#smiles", Input).value.strip())
+        est = self.smiles_result.estimates[0]
         t = Text()
         t.append(f"{est.formula}  {est.chem_class}  method {est.method}\n", style="bold")
         t.append(f"dD {est.dD:.2f}  dP {est.dP:.2f}  dH {est.dH:.2f} MPa^0.5   Vm "
@@ -164,18 +169,16 @@ class TargetScreen(BenchScreen):
         for n in est.notes:
             t.append(f"note: {n}\n", style="dim")
         self.query_one("#smiles-detail", Static).update(t)
-        return target
+        return self.smiles_result.target
 
     def bench_target(self):
-        from ..errors import InputError
-        from . import bench
+        from ..jobs.fit import fit
 
-        path = self.query_one("#bench-path", Input).value.strip()
-        if not path:
-            raise InputError("bench results: give the path of a CSV file")
-        target, text = bench.fit_from_csv(self.session.catalog, path, self.query_one("#bench-good", Input).value)
-        self.query_one("#bench-detail", Static).update(text)
-        return target
+        self.bench_result = fit(path=self.query_one("#bench-path", Input).value,
+                                good_at_most=self.query_one("#bench-good", Input).value.strip() or None,
+                                catalog=self.session.catalog)
+        self.query_one("#bench-detail", Static).update(_fit_text(self.bench_result))
+        return self.bench_result.target
 
     # ---------------------------------------------------------------- show
     def set_target(self, target) -> None:
@@ -209,6 +212,8 @@ class TargetScreen(BenchScreen):
             txt.append(f"\n{t.solute.note}\n", style="italic")
         box.update(txt)
         cautions = []
+        if self.bench_result is not None and t == self.bench_result.target:
+            cautions += self.bench_result.cautions  # the fit's, and those of the liquids proposed for tests
         if t.basis in ("estimated", "typed"):
             cautions.append("The target's HSP are " + ("estimated" if t.basis == "estimated" else "typed")
                             + ": rankings are screening results; fit a sphere from bench tests before relying on them.")
@@ -219,3 +224,22 @@ class TargetScreen(BenchScreen):
 
         cautions.append(DEFER)
         self.query_one("#target-cautions", CautionBox).show(cautions)
+
+
+def _fit_text(result) -> Text:
+    """The fitted sphere in a few lines: centre, R0, fit, intervals, wrong side, open side, next tests."""
+    fit = result.sphere
+    t = Text()
+    t.append(f"dD {fit.dD:.2f}  dP {fit.dP:.2f}  dH {fit.dH:.2f}  R0 {fit.r0:.2f}   fit {fit.fit:.2f}\n", style="bold")
+    t.append(f"{fit.n_liquids} liquids ({fit.n_good} good): {result.liquids_summary()}\n", style="dim")
+    for k in ("dD", "dP", "dH", "r0"):
+        lo, hi = fit.interval.get(k, (None, None))
+        if lo is not None:
+            t.append(f"  {k} interval {lo:.2f} to {hi:.2f}\n")
+    if fit.wrong_side:
+        t.append("on the wrong side: " + ", ".join(w.name for w in fit.wrong_side) + "\n")
+    if fit.open:
+        t.append(f"{fit.open_note}\n", style="bold")
+    if result.suggestions:
+        t.append("worth testing next: " + ", ".join(f"{s.name} (RED {s.red:.2f})" for s in result.suggestions) + "\n")
+    return t
