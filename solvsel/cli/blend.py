@@ -124,94 +124,94 @@ def _phase_text(b) -> str:
     return ("yes" if b.one_phase else "NO") + (" (m)" if b.phase_basis == "measured" else " (p)" if b.phase_basis == "predicted" else "")
 
 
-def print_search(res, file=None) -> None:
-    import sys
+def _row(b, rejects: bool) -> dict:
+    """One blend as a row of the text table."""
+    row = {
+        "rank": b.rank,
+        "blend": b.label + (" *" if b.pareto and rejects else "") + (f" (+{len(b.alternatives)} alike)"
+                                                                     if b.alternatives else ""),
+        "mass": " / ".join("-" if x.mass_fraction is None else f"{x.mass_fraction:.2f}" for x in b.components),
+        "ra": b.ra, "red": b.red,
+        "phase": _phase_text(b),
+        "bp": ("-" if b.bp_min_C is None else (f"{b.bp_min_C:g}" if b.bp_min_C == b.bp_max_C
+                                               else f"{b.bp_min_C:g} to {b.bp_max_C:g}"))
+        + ("" if b.bp_complete else " (+?)"),
+        "flash": b.lowest_flash_C,
+        "hazard": _short_hazard(b),
+        "cost": b.cost,
+    }
+    if rejects:
+        row["near"] = b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra
+        row["sel"] = b.selectivity
+    if b.solubility:
+        row["sol"] = b.solubility.get("g_per_L")
+    if b.dose_check:
+        dc = b.dose_check
+        row["dose"] = "no data" if dc["ok"] is None else ("ok" if dc["ok"] else "OVER")
+        if dc.get("max_dose") is not None and dc.get("max_dose_unit") == "mass fraction":
+            row["dose"] += f", max {100 * dc['max_dose']:.3g}%"
+    return row
 
-    file = file or sys.stdout
-    t = res.target
-    r0 = f", R0 {t['r0']:g}" if t.get("r0") else " (no R0: RED not given)"
-    print(f"Target: {t['name']}  dD {t['dD']:.1f}  dP {t['dP']:.1f}  dH {t['dH']:.1f}{r0}  at {t['temp_C']:g} C",
-          file=file)
+
+def _print_blends(res, file) -> None:
+    """The table of the blends shown, its key, and the blends folded into them."""
+    rejects = bool(res.results[0].rejects)
+    rows = [_row(b, rejects) for b in res.results]
+    cols = [("rank", "#"), ("blend", "blend (volume fractions)"), ("mass", "mass fr."),
+            ("ra", "Ra", ".2f"), ("red", "RED", ".2f"), ("phase", "1 phase"), ("bp", "bp C"),
+            ("flash", "flash C", ".0f"), ("hazard", "flammable"), ("cost", "cost", ".1f")]
+    basis = res.results[0].selectivity_basis
+    if rejects:
+        cols += [("near", "reject " + ("RED" if basis == "RED" else "Ra"), ".2f"), ("sel", "margin", ".2f")]
+    if any("sol" in r for r in rows):
+        cols.append(("sol", "sol. g/L", ".3g"))
+    if any("dose" in r for r in rows):
+        cols.append(("dose", "at dose"))
+    print(file=file)
+    print_table(rows, cols, file=file)
+    notes = ["Ra, RED: distance to the target [MPa^0.5]; 1 phase: (m) measured pair data, (p) predicted, ? not checked; "
+             "bp: normal boiling points of the components, (+?) some not on record; "
+             "cost: volume-weighted cost class (1 cheap .. 5 dear)."]
+    if rejects:
+        notes.append("reject: distance of the nearest reject solute; margin: how much further it is than the target "
+                     f"(in {basis}); * on the Pareto front (fit, reject distance, cost, hazard, components).")
+    notes += [f"#{b.rank}: {n}" for b in res.results for n in b.notes]
+    for n in notes:
+        print("  " + n, file=file)
+    alike = [b for b in res.results if b.alternatives]
+    if alike:
+        print("\nThe same blend with a liquid of the same HSP in place (one answer of the model; cost, hazard and "
+              "food-law status may differ):", file=file)
+        for b in alike:
+            print(f"  #{b.rank}: also with {', '.join(b.swapped_in)}", file=file)
+
+
+def _print_front_and_law(res, file) -> None:
+    """More of the trade-off front (with rejects), and the food-law status of the liquids shown."""
+    shown = {b.names for b in res.results}
+    extra = [b for b in res.pareto if b.names not in shown]
+    if res.results[0].rejects and extra:
+        print(f"\nAlso on the trade-off front ({len(extra)} more; see --json):", file=file)
+        for b in extra[:5]:
+            near = b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra
+            print(f"  {b.label}: Ra {b.ra:.2f}, nearest reject {near:.2f}, cost {b.cost or 0:.1f}, "
+                  f"{_short_hazard(b)}", file=file)
+    regs = {}
+    for b in res.results:
+        for rg in b.regulations:
+            regs.setdefault(rg["name"], rg)
+    if regs:
+        print("\nFood-law status of the liquids shown (bundled table; check the regulations in force):", file=file)
+        for name, rg in regs.items():
+            line = f"  {name}: {rg['status']}"
+            if rg.get("conditions"):
+                line += " - " + "; ".join(rg["conditions"][:2]) + (" ..." if len(rg["conditions"]) > 2 else "")
+            print(line, file=file)
+
+
+def _print_left_out(res, file) -> None:
+    """The blends dropped by a check and the liquids the pool left out, with their reasons."""
     c = res.counts
-    print(f"Pool: {c['liquids']} liquids ({c['excluded_liquids']} left out); {c['combinations']} combinations "
-          f"searched with exact fractions", file=file)
-    if not res.results:
-        print(f"\nNo blend found: {res.message}", file=file)
-    else:
-        rejects = bool(res.results[0].rejects)
-        rows = []
-        for b in res.results:
-            row = {
-                "rank": b.rank,
-                "blend": b.label + (" *" if b.pareto and rejects else "") + (f" (+{len(b.alternatives)} alike)"
-                                                                             if b.alternatives else ""),
-                "mass": " / ".join("-" if x.mass_fraction is None else f"{x.mass_fraction:.2f}" for x in b.components),
-                "ra": b.ra, "red": b.red,
-                "phase": _phase_text(b),
-                "bp": ("-" if b.bp_min_C is None else (f"{b.bp_min_C:g}" if b.bp_min_C == b.bp_max_C
-                                                       else f"{b.bp_min_C:g} to {b.bp_max_C:g}"))
-                + ("" if b.bp_complete else " (+?)"),
-                "flash": b.lowest_flash_C,
-                "hazard": _short_hazard(b),
-                "cost": b.cost,
-            }
-            if rejects:
-                row["near"] = b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra
-                row["sel"] = b.selectivity
-            if b.solubility:
-                row["sol"] = b.solubility.get("g_per_L")
-            if b.dose_check:
-                dc = b.dose_check
-                row["dose"] = "no data" if dc["ok"] is None else ("ok" if dc["ok"] else "OVER")
-                if dc.get("max_dose") is not None and dc.get("max_dose_unit") == "mass fraction":
-                    row["dose"] += f", max {100 * dc['max_dose']:.3g}%"
-            rows.append(row)
-        cols = [("rank", "#"), ("blend", "blend (volume fractions)"), ("mass", "mass fr."),
-                ("ra", "Ra", ".2f"), ("red", "RED", ".2f"), ("phase", "1 phase"), ("bp", "bp C"),
-                ("flash", "flash C", ".0f"), ("hazard", "flammable"), ("cost", "cost", ".1f")]
-        if rejects:
-            basis = res.results[0].selectivity_basis
-            cols += [("near", "reject " + ("RED" if basis == "RED" else "Ra"), ".2f"), ("sel", "margin", ".2f")]
-        if any("sol" in r for r in rows):
-            cols.append(("sol", "sol. g/L", ".3g"))
-        if any("dose" in r for r in rows):
-            cols.append(("dose", "at dose"))
-        print(file=file)
-        print_table(rows, cols, file=file)
-        notes = ["Ra, RED: distance to the target [MPa^0.5]; 1 phase: (m) measured pair data, (p) predicted, ? not checked; "
-                 "bp: normal boiling points of the components, (+?) some not on record; "
-                 "cost: volume-weighted cost class (1 cheap .. 5 dear)."]
-        if rejects:
-            notes.append("reject: distance of the nearest reject solute; margin: how much further it is than the target "
-                         f"(in {basis}); * on the Pareto front (fit, reject distance, cost, hazard, components).")
-        notes += [f"#{b.rank}: {n}" for b in res.results for n in b.notes]
-        for n in notes:
-            print("  " + n, file=file)
-        alike = [b for b in res.results if b.alternatives]
-        if alike:
-            print("\nThe same blend with a liquid of the same HSP in place (one answer of the model; cost, hazard and "
-                  "food-law status may differ):", file=file)
-            for b in alike:
-                print(f"  #{b.rank}: also with {', '.join(b.swapped_in)}", file=file)
-        shown = {b.names for b in res.results}
-        extra = [b for b in res.pareto if b.names not in shown]
-        if rejects and extra:
-            print(f"\nAlso on the trade-off front ({len(extra)} more; see --json):", file=file)
-            for b in extra[:5]:
-                near = b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra
-                print(f"  {b.label}: Ra {b.ra:.2f}, nearest reject {near:.2f}, cost {b.cost or 0:.1f}, "
-                      f"{_short_hazard(b)}", file=file)
-        regs = {}
-        for b in res.results:
-            for rg in b.regulations:
-                regs.setdefault(rg["name"], rg)
-        if regs:
-            print("\nFood-law status of the liquids shown (bundled table; check the regulations in force):", file=file)
-            for name, rg in regs.items():
-                line = f"  {name}: {rg['status']}"
-                if rg.get("conditions"):
-                    line += " - " + "; ".join(rg["conditions"][:2]) + (" ..." if len(rg["conditions"]) > 2 else "")
-                print(line, file=file)
     dropped_n = c.get("two_phase", 0)
     if res.dropped or dropped_n or c.get("bounds_not_met") or c.get("same_as_smaller_blend"):
         over = f"{c['over_limit']} over a dose limit; " if c.get("over_limit") else ""
@@ -233,10 +233,27 @@ def print_search(res, file=None) -> None:
         for key, names in list(reasons.items())[:8]:
             shown = ", ".join(names[:6]) + (f" and {len(names) - 6} more" if len(names) > 6 else "")
             print(f"  {key}: {shown}", file=file)
-    cautions = []
-    for b in res.results[:3]:
-        cautions.extend(b.cautions)
-    cautions.extend(res.cautions)
+
+
+def print_search(res, file=None) -> None:
+    """The text form of a :class:`~solvsel.jobs.blend.BlendResult`."""
+    import sys
+
+    file = file or sys.stdout
+    t = res.target
+    r0 = f", R0 {t['r0']:g}" if t.get("r0") else " (no R0: RED not given)"
+    print(f"Target: {t['name']}  dD {t['dD']:.1f}  dP {t['dP']:.1f}  dH {t['dH']:.1f}{r0}  at {t['temp_C']:g} C",
+          file=file)
+    c = res.counts
+    print(f"Pool: {c['liquids']} liquids ({c['excluded_liquids']} left out); {c['combinations']} combinations "
+          f"searched with exact fractions", file=file)
+    if not res.results:
+        print(f"\nNo blend found: {res.message}", file=file)
+    else:
+        _print_blends(res, file)
+        _print_front_and_law(res, file)
+    _print_left_out(res, file)
+    cautions = [x for b in res.results[:3] for x in b.cautions] + list(res.cautions)
     print_cautions(cautions, file=file)
 
 

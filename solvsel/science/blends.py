@@ -46,7 +46,6 @@ References
 from __future__ import annotations
 
 import itertools
-import math
 from dataclasses import dataclass
 from math import comb
 
@@ -184,6 +183,46 @@ def _broadcast_bounds(bound, n, k, default, name):
     return arr
 
 
+def _solve_face(pat, q, lo_r, hi_r):
+    """The best point of one face of the bounded simplex, for a batch of combinations.
+
+    ``pat`` gives each fraction's state (0 free, 1 at its lower bound, 2 at its
+    upper); ``q[i][c]`` is coordinate c of liquid i (scaled, centred on the
+    target) over the batch.  The free fractions solve a least-squares problem
+    on the differences of their points (:func:`_solve_gram`).  Returns the
+    fractions ``x`` (one array per liquid), the blend point ``y`` (one array per
+    coordinate) and where the solution is well-conditioned and within the bounds.
+    """
+    k = len(pat)
+    free = [i for i, st in enumerate(pat) if st == 0]
+    fixed = [i for i, st in enumerate(pat) if st != 0]
+    x = [None] * k
+    for i in fixed:
+        x[i] = hi_r[i] if pat[i] == 2 else lo_r[i]
+    s = 1.0 - sum(x[i] for i in fixed) if fixed else 1.0
+    y = [sum(x[i] * q[i][c] for i in fixed) if fixed else 0.0 for c in range(3)]
+    if free:
+        f0 = free[0]
+        y = [y[c] + s * q[f0][c] for c in range(3)]
+        E = [[q[j][c] - q[f0][c] for c in range(3)] for j in free[1:]]
+        G = [[E[a][0] * E[b][0] + E[a][1] * E[b][1] + E[a][2] * E[b][2]
+              for b in range(len(E))] for a in range(len(E))]
+        rhs = [-(E[a][0] * y[0] + E[a][1] * y[1] + E[a][2] * y[2]) for a in range(len(E))]
+        z, ok = _solve_gram(G, rhs)
+        x[f0] = s - sum(z) if z else s + 0.0 * q[f0][0]
+        for j, zj in zip(free[1:], z):
+            x[j] = zj
+        for zj, Ej in zip(z, E):
+            y = [y[c] + zj * Ej[c] for c in range(3)]
+        if ok is None:
+            ok = np.ones(q.shape[2], dtype=bool)
+    else:
+        ok = np.abs(s) <= _FEAS_TOL
+    for i in free:
+        ok &= (x[i] >= lo_r[i] - _FEAS_TOL) & (x[i] <= hi_r[i] + _FEAS_TOL)
+    return x, y, ok
+
+
 def best_fractions(hsp, target, lower=None, upper=None) -> FractionBatch:
     r"""Exact volume fractions minimising Ra to a target, for a batch of combinations.
 
@@ -258,8 +297,7 @@ def best_fractions(hsp, target, lower=None, upper=None) -> FractionBatch:
     best_x = np.full((k, n), np.nan)
     best_free = np.zeros(n, dtype=int)
     for pat in _patterns(k, with_upper):
-        free = [i for i, st in enumerate(pat) if st == 0]
-        fixed = [i for i, st in enumerate(pat) if st != 0]
+        n_free = sum(1 for st in pat if st == 0)
         at_hi = [i for i, st in enumerate(pat) if st == 2]
         if at_hi:
             rows = rows_feasible[np.all(upper_binds[rows_feasible][:, at_hi], axis=1)]
@@ -273,30 +311,7 @@ def best_fractions(hsp, target, lower=None, upper=None) -> FractionBatch:
             q, lo_r, hi_r = Qc, loc, hic
         else:
             q, lo_r, hi_r = Qc[:, :, rows], loc[:, rows], hic[:, rows]
-        x = [None] * k
-        for i in fixed:
-            x[i] = hi_r[i] if pat[i] == 2 else lo_r[i]
-        s = 1.0 - sum(x[i] for i in fixed) if fixed else 1.0
-        y = [sum(x[i] * q[i][c] for i in fixed) if fixed else 0.0 for c in range(3)]
-        if free:
-            f0 = free[0]
-            y = [y[c] + s * q[f0][c] for c in range(3)]
-            E = [[q[j][c] - q[f0][c] for c in range(3)] for j in free[1:]]
-            G = [[E[a][0] * E[b][0] + E[a][1] * E[b][1] + E[a][2] * E[b][2]
-                  for b in range(len(E))] for a in range(len(E))]
-            rhs = [-(E[a][0] * y[0] + E[a][1] * y[1] + E[a][2] * y[2]) for a in range(len(E))]
-            z, ok = _solve_gram(G, rhs)
-            x[f0] = s - sum(z) if z else s + 0.0 * q[f0][0]
-            for j, zj in zip(free[1:], z):
-                x[j] = zj
-            for zj, Ej in zip(z, E):
-                y = [y[c] + zj * Ej[c] for c in range(3)]
-            if ok is None:
-                ok = np.ones(q.shape[2], dtype=bool)
-        else:
-            ok = np.abs(s) <= _FEAS_TOL
-        for i in free:
-            ok &= (x[i] >= lo_r[i] - _FEAS_TOL) & (x[i] <= hi_r[i] + _FEAS_TOL)
+        x, y, ok = _solve_face(pat, q, lo_r, hi_r)
         obj = y[0] * y[0] + y[1] * y[1] + y[2] * y[2]
         if rows is None:
             better = ok & (obj < best_obj - _TIE_TOL)
@@ -308,7 +323,7 @@ def best_fractions(hsp, target, lower=None, upper=None) -> FractionBatch:
             best_obj[r] = obj[better]
             for i in range(k):
                 best_x[i][r] = x[i][better]
-            best_free[r] = len(free)
+            best_free[r] = n_free
     best_x = best_x.T
 
     found = np.isfinite(best_obj)
