@@ -565,3 +565,28 @@ def test_order_of_the_rows_does_not_matter(liquids):
             p = rng.permutation(len(X))
             b = fit_sphere(X[p], gg[p], interval=False)
             np.testing.assert_allclose(np.r_[a.hsp, a.r0], np.r_[b.hsp, b.r0], atol=1e-3)
+
+
+def test_the_fit_needs_neither_rdkit_nor_scikit_learn():
+    # RDKit and scikit-learn are the optional "structure" extra: the sphere fit (numpy and scipy) must run
+    # without them, through the library and the command line.
+    import subprocess
+    import sys
+
+    code = (
+        "import sys\n"
+        "class Block:\n"
+        "    def find_spec(self, name, path=None, target=None):\n"
+        "        if name.split('.')[0] in ('rdkit', 'sklearn'):\n"
+        "            raise ImportError('blocked: ' + name)\n"
+        "sys.meta_path.insert(0, Block())\n"
+        "from solvsel.jobs.fit import fit\n"
+        f"r = fit(path={str(EXAMPLES / 'bench_extract.csv')!r}, next_tests=2)\n"
+        "from solvsel.cli import main\n"
+        f"assert main(['fit', {str(EXAMPLES / 'bench_graded.csv')!r}, '--good-at-most', '2', '--json']) == 0\n"
+        "assert not [m for m in sys.modules if m.split('.')[0] in ('rdkit', 'sklearn')]\n"
+        "print(round(r.sphere.r0, 2))\n"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120)
+    assert out.returncode == 0, out.stderr
+    assert out.stdout.strip().splitlines()[-1] == "8.44"  # the R0 of `solvsel fit examples/bench_extract.csv`

@@ -442,3 +442,42 @@ def test_cli_many(capsys):
     assert main(["estimate", "CCO", "Oc1ccccc1", "--no-lookup"]) == 0
     out = capsys.readouterr().out
     assert "CCO" in out and "Oc1ccccc1" in out and "Cautions" in out
+
+
+# --------------------------------------------------------------------------- the optional extra
+
+
+def test_without_rdkit_an_estimate_names_the_extra(monkeypatch, capsys):
+    import sys
+
+    from solvsel.errors import MissingExtraError
+
+    monkeypatch.setitem(sys.modules, "rdkit", None)  # as if RDKit were not installed
+    structure._rd.cache_clear()
+    try:
+        with pytest.raises(MissingExtraError) as exc:
+            structure.estimate("CCO", properties=False)
+        assert exc.value.module == "rdkit" and "solvsel[structure]" in str(exc.value)
+        from solvsel.cli import main
+
+        assert main(["estimate", "CCO", "--no-lookup"]) == 2
+        assert "pip install 'solvsel[structure]'" in capsys.readouterr().err
+    finally:
+        monkeypatch.undo()
+        structure._rd.cache_clear()
+
+
+def test_without_scikit_learn_a_refit_names_the_extra(monkeypatch):
+    import sys
+
+    from solvsel.errors import MissingExtraError
+
+    monkeypatch.setitem(sys.modules, "sklearn", None)
+    structure_training._sklearn.cache_clear()
+    try:
+        with pytest.raises(MissingExtraError) as exc:
+            structure_training._grouped_folds(np.array(["a", "b", "c"]), 3, 0)
+        assert exc.value.module == "scikit-learn" and "solvsel[structure]" in str(exc.value)
+    finally:
+        monkeypatch.undo()
+        structure_training._sklearn.cache_clear()
