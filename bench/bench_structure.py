@@ -1,5 +1,5 @@
-"""Benchmark of solvsel.science.structure and structure_training: cross-validated accuracy by method and class, flavour molecules
-outside the training data with the interval the cross-validation supports, and speed.
+"""Benchmark of solvsel.science.structure and structure_training: cross-validated accuracy by method and class,
+flavour molecules outside the training data with the interval the cross-validation supports, and speed.
 
     .venv/bin/python bench/bench_structure.py            # full: refits with nested grouped 10-fold CV (6-11 min)
     .venv/bin/python bench/bench_structure.py --quick    # stored CV results, flavour table, timings

@@ -24,7 +24,8 @@ def register(sub):
         "header row and one row per liquid: liquid (a name or CAS of the solvents table, a blend of them by "
         "volume written ethanol:water=70:30, or a liquid of your own with dD, dP, dH), result (good, partial, "
         "bad, or a number on your scale with --good-at-most / --good-at-least), and optional weight and note "
-        "columns. Lines starting with # are comments. The fit is an estimate for planning bench work.",
+        "columns. Lines starting with # are comments; the older headers solvent (or name) with score, or with a yes/no "
+        "good column, are read too. The fit is an estimate for planning bench work.",
     )
     p.add_argument("file", metavar="BENCH_CSV", help="the bench results (CSV, UTF-8)")
     cut = p.add_mutually_exclusive_group()

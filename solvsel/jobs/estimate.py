@@ -246,7 +246,7 @@ def _read_lines(path: str, param: str) -> list[str]:
         with open(path, encoding="utf-8") as fh:
             lines = [ln.strip() for ln in fh]
     except OSError as exc:
-        raise InputError(f"cannot read '{path}': {exc.strerror}", param=param, value=path, path=path) from None
+        raise InputError(f"cannot read the file: {exc.strerror}", param=param, value=path, path=path) from None
     return [ln for ln in lines if ln and not ln.startswith("#")]
 
 

@@ -172,7 +172,9 @@ class FitResult:
         """The fitted sphere as a target for ranking and blends (basis "fitted")."""
         f = self.sphere
         name = self.request.save_as or f"bench fit ({Path(self.bench.path).name})"
-        note = f"sphere fitted to {f.n_liquids} bench results; fit {f.fit:.2f}" + ("" if f.success else f"; {f.message}")
+        note = f"sphere fitted to {f.n_liquids} bench results; fit {f.fit:.2f}"
+        if not f.success:
+            note += f"; {f.message}"
         return Target(name, float(f.dD), float(f.dP), float(f.dH), float(f.r0), "fitted", None, note)
 
     def liquids_summary(self) -> str:

@@ -357,13 +357,14 @@ def _prepare(hsp, good, weights, names, good_at_most, good_at_least):
         for i, nm in enumerate(names):
             key = nm.strip().lower()
             if key in seen:
-                raise InputError(f"liquid '{nm}' is listed twice (entries {seen[key] + 1} and {i + 1}); keep one result "
-                                 "per liquid", param="names", value=nm)
+                raise InputError(f"liquid '{nm}' is listed twice (entries {seen[key] + 1} and {i + 1}); "
+                                 "keep one result per liquid", param="names", value=nm)
             seen[key] = i
     if n < _MIN_LIQUIDS:
         raise InputError(
             f"only {n} liquids: a sphere has 4 unknowns, test at least {_MIN_LIQUIDS} liquids "
-            "(15-30 spread over Hansen space is usual practice)", param="hsp", expected=f"at least {_MIN_LIQUIDS} liquids"
+            "(15-30 spread over Hansen space is usual practice)", param="hsp",
+            expected=f"at least {_MIN_LIQUIDS} liquids"
         )
     ng = int(g.sum())
     if ng == n:
@@ -1398,15 +1399,15 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
             raise TableError(p, "not a UTF-8 text file; nothing was written", param="into") from None
         lines = text.splitlines()
         if not lines:
-            raise TableError(p, "the file is empty (no header); delete it or save into another file; nothing was written",
-                             param="into")
+            raise TableError(p, "the file is empty (no header); delete it or save into another file; "
+                             "nothing was written", param="into")
         header = next(csv.reader([lines[0]]))
         # the sphere itself must fit; descriptive columns are written where the file has them
         essential = ("name", "category", "dD_MPa05", "dP_MPa05", "dH_MPa05", "r0_MPa05", "hsp_basis")
         missing = [c for c in essential if c not in header]
         if missing:
-            raise TableError(p, f"the file has no column {missing[0]!r} for the fitted sphere; nothing was written", row=1,
-                             param="into")
+            raise TableError(p, f"the file has no column {missing[0]!r} for the fitted sphere; nothing was written",
+                             row=1, param="into")
         for i, rec in enumerate(csv.DictReader(io.StringIO(text)), start=2):
             if normalize_name(rec.get("name") or "") == normalize_name(row["name"]):
                 raise InputError(f"{p} already has a solute of that name, {row['name']!r} (row {i}); "

@@ -450,7 +450,7 @@ def published_predictions(df, methods=("hoftyzer-van-krevelen",)):
             elif method == "properties":
                 e = properties_estimate(mol, cas=cas.split(";")[0])
             else:
-                raise InputError(f"method '{method}': expected one of {', '.join(METHODS)}")
+                raise InputError(f"expected one of {', '.join(METHODS)}, got '{method}'", param="method", value=method)
             if e.covered:
                 P[i] = (e.dD, e.dP, e.dH)
         out[method] = P
@@ -535,7 +535,8 @@ _REFIT_SOURCE = "derived_gc_fit"
 
 
 def _refit_paths(out, force: bool) -> list[Path]:
-    """The three files a refit writes, checked: a .csv name, an existing folder, nothing overwritten unless ``force``."""
+    """The three files a refit writes, checked: a .csv name, an existing folder, no file overwritten
+    unless ``force``."""
     out = Path(out)
     if out.suffix.lower() != ".csv":
         raise InputError(f"the parameter file must end in .csv, got '{out}'", param="refit", value=str(out),
