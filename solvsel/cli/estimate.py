@@ -98,12 +98,10 @@ def _print_one(est, show_atoms: bool) -> None:
 
 
 def _print_many(result) -> None:
-    from ..errors import SolvselError
-
     rows = []
-    for s, r in zip(result.items, result.estimates):
-        if isinstance(r, SolvselError):
-            rows.append({"smiles": s, "note": str(r)})
+    for s, r, d in zip(result.items, result.estimates, result.to_dict()):
+        if "error" in d:
+            rows.append({"smiles": s, "note": d["error"]})
             continue
         u = r.uncertainty
         rows.append({"smiles": r.smiles, "dD": r.dD, "dP": r.dP, "dH": r.dH, "vm": r.vm_cm3_mol,

@@ -183,7 +183,7 @@ class EstimateResult:
             if self.saved_to:
                 d["saved_to"] = self.saved_to
             return d
-        return [{"smiles": s, "error": str(e)} if isinstance(e, SolvselError) else e.to_dict()
+        return [{"smiles": s, "error": _error_text(e)} if isinstance(e, SolvselError) else e.to_dict()
                 for s, e in zip(self.items, self.estimates)]
 
     def to_frame(self):
@@ -193,11 +193,16 @@ class EstimateResult:
         rows = []
         for s, e in zip(self.items, self.estimates):
             if isinstance(e, SolvselError):
-                rows.append({"smiles": s, "error": str(e)})
+                rows.append({"smiles": s, "error": _error_text(e)})
             else:
                 rows.append({"smiles": e.smiles, "dD": e.dD, "dP": e.dP, "dH": e.dH, "vm": e.vm_cm3_mol,
                              "chem_class": e.chem_class, "method": e.method, "error": None})
         return frame(rows, ["smiles", "dD", "dP", "dH", "vm", "chem_class", "method", "error"])
+
+
+def _error_text(exc: SolvselError) -> str:
+    """The error of one SMILES of several, in words for any door (the SMILES itself is named beside it)."""
+    return exc.describe(lambda param: "")
 
 
 def estimate(request: EstimateRequest | None = None, *, catalog: Catalog | None = None,
