@@ -227,7 +227,7 @@ def _print_left_out(res, file) -> None:
     if res.excluded:
         reasons = {}
         for e in res.excluded:
-            key = {"food law": e.reason.split(":")[0], "use": "not listed for that use"}.get(e.filter, e.reason)
+            key = "not listed for that use" if e.filter == "use" else e.brief
             reasons.setdefault(key, []).append(e.name)
         print(f"\nLeft out of the pool: {len(res.excluded)} liquids", file=file)
         for key, names in list(reasons.items())[:8]:

@@ -112,9 +112,7 @@ def run(args) -> int:
     if result.dropped:
         print(f"\nLeft out: {len(result.dropped)} liquid(s)", end="")
         shown = result.dropped[:5]
-        # a food-law reason is shown by its first clause ("no data as carrier in EU"); the rest is in --json
-        print(": " + "; ".join(f"{d.name} ({d.reason.split(':')[0] if d.filter == 'food law' else d.reason})"
-                               for d in shown) + (" ..." if len(result.dropped) > 5 else ""))
+        print(": " + "; ".join(f"{d.name} ({d.brief})" for d in shown) + (" ..." if len(result.dropped) > 5 else ""))
     for n in result.notes:
         print(f"Note: {n}")
     print_cautions(result.cautions)

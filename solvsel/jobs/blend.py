@@ -255,6 +255,9 @@ class BlendResult:
     pool left out (with filter and reason); ``counts`` how many combinations
     were searched and why the others went; ``success`` False (with
     ``message``) when no blend meets the constraints or the search was cancelled.
+    ``cautions`` are those of every search; ``liquid_cautions`` those of the
+    liquids of the blends shown, each once, the closing deferral last (each
+    blend carries its own in ``Blend.cautions``).
     """
 
     target: dict
@@ -267,6 +270,7 @@ class BlendResult:
     cautions: tuple[str, ...]
     success: bool
     message: str
+    liquid_cautions: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         return {
@@ -280,6 +284,7 @@ class BlendResult:
             "cautions": list(self.cautions),
             "success": self.success,
             "message": self.message,
+            "liquid_cautions": list(self.liquid_cautions),
         }
 
     def to_frame(self):
@@ -345,10 +350,17 @@ class _Search:
         ph = self.phase(j)
         self.drop(j, f"two phases at these fractions ({ph[1]}): {ph[2]}")
 
+    def liquid_cautions(self, recs: list[Candidate]) -> list[str]:
+        """The cautions of liquids for the use (:func:`solvsel.rules.cautions.solvent_cautions`)."""
+        return [t for c in recs for t in solvent_cautions(c.record, use=self.req.use, cat=self.cat)]
+
     def finish(self, results=(), pareto=(), success: bool = False, message: str = "") -> BlendResult:
+        by_name = {c.name: c for c in self.pool.candidates}
+        names = dict.fromkeys(c.name for b in results for c in b.components)
+        shown = dict.fromkeys(t for t in self.liquid_cautions([by_name[n] for n in names]) if t != DEFER)
         return BlendResult({**self.target.to_dict(), "temp_C": self.req.temp_C}, tuple(results), tuple(pareto),
                            tuple(self.dropped), self.pool.left_out, self.counts, _constraints(self.req),
-                           _cautions(self.req), success, message)
+                           _cautions(self.req), success, message, tuple(shown) + (DEFER,))
 
 
 @dataclass(frozen=True)
@@ -539,7 +551,7 @@ def _regulations(c: Candidate, req: BlendRequest) -> list[dict]:
 
 def _blend_cautions(s: _Search, recs: list[Candidate], phase) -> list[str]:
     """The cautions of a blend: those of its liquids, its flash point and a predicted phase."""
-    out = [t for c in recs for t in solvent_cautions(c.record, use=s.req.use, cat=s.cat)]
+    out = s.liquid_cautions(recs)
     flashes = [c.record.flash_C for c in recs if c.record.flammable and c.record.flash_C is not None]
     if len(recs) > 1 and flashes:
         out.append(f"Lowest flash point of a component {min(flashes):g} C: the blend's flash point is not the "

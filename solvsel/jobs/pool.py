@@ -123,8 +123,8 @@ class Candidate:
 
     ``hsp`` [MPa^0.5] and ``vm_cm3_mol`` are at the pool's temperature;
     ``note`` says how (e.g. "no expansion coefficient: HSP kept at 25 C");
-    ``food`` is its food status for the use shown (None when not asked for
-    and not known), ``food_use`` that use.
+    ``food`` is its food status for the use shown ("bench only" for the
+    bench; None when not asked for and not known), ``food_use`` that use.
     """
 
     record: Solvent
@@ -152,6 +152,11 @@ class LeftOut:
     cas: str
     filter: str
     reason: str
+
+    @property
+    def brief(self) -> str:
+        """The reason in a few words: a food-law reason without the rule's message ("no data as carrier in EU")."""
+        return self.reason.split(":")[0] if self.filter == "food law" else self.reason
 
     def to_dict(self) -> dict:
         return {"name": self.name, "cas": self.cas, "filter": self.filter, "reason": self.reason}

@@ -245,7 +245,7 @@ class CarriersScreen(BenchScreen):
             t.append(f"note: {n}\n", style="dim")
         if self.ranking.dropped:
             t.append(f"{len(self.ranking.dropped)} liquids left out of the ranking (e.g. "
-                     + "; ".join(f"{d.name}: {d.reason}" for d in self.ranking.dropped[:2]) + ")\n", style="dim")
+                     + "; ".join(f"{d.name}: {d.brief}" for d in self.ranking.dropped[:2]) + ")\n", style="dim")
         self.query_one("#carrier-detail", Static).update(t)
         self.show_cautions(r)
 
@@ -436,14 +436,16 @@ class CarriersScreen(BenchScreen):
         self.show_cautions(b)
 
     def show_cautions(self, selected=None) -> None:
-        """The selected liquid's or blend's cautions, then those of every blend and liquid on screen,
-        then the lists' (all from the jobs' results)."""
+        """The selected liquid's or blend's cautions, then those of every liquid on screen, then the
+        lists' (all from the jobs' results)."""
         lists = [res for res in (self.result, self.ranking) if res is not None]
         if selected is None:
             selected = next((res.results[0] for res in lists if res.results), None)
         cautions = list(selected.cautions) if selected is not None else []
-        for res in lists:
-            cautions += [c for item in res.results for c in item.cautions]
+        if self.result is not None:
+            cautions += list(self.result.liquid_cautions)
+        if self.ranking is not None:
+            cautions += [c for r in self.ranking.results for c in r.cautions]
         for res in lists:
             cautions += list(res.cautions)
         t = self.session.target
