@@ -155,7 +155,7 @@ def _solve_gram(G, b):
             (c01 * b[0] + c11 * b[1] + c12 * b[2]) * inv,
             (c02 * b[0] + c12 * b[1] + c22 * b[2]) * inv,
         ], ok
-    raise InputError(f"at most {MAX_COMPONENTS} components per blend, got {m + 1}")
+    raise InputError(f"at most {MAX_COMPONENTS} components per blend, got {m + 1}", param="max_components")
 
 
 def _patterns(k: int, with_upper: bool):
@@ -177,9 +177,10 @@ def _broadcast_bounds(bound, n, k, default, name):
     try:
         arr = np.broadcast_to(arr, (n, k))
     except ValueError:
-        raise InputError(f"{name}: expected one bound per liquid ({k}) or per combination, got shape {arr.shape}") from None
+        raise InputError(f"expected one bound per liquid ({k}) or per combination, got shape {arr.shape}",
+                         param=name) from None
     if np.any(np.isnan(arr)):
-        raise InputError(f"{name}: bounds must be numbers between 0 and 1")
+        raise InputError("bounds must be numbers between 0 and 1", param=name)
     return arr
 
 
@@ -268,15 +269,15 @@ def best_fractions(hsp, target, lower=None, upper=None) -> FractionBatch:
     if P.ndim == 2:
         P = P[None]
     if P.ndim != 3:
-        raise InputError(f"hsp: expected shape (n, k, 3) or (k, 3), got {np.shape(hsp)}")
+        raise InputError(f"expected shape (n, k, 3) or (k, 3), got {np.shape(hsp)}", param="hsp")
     n, k, _ = P.shape
     if not 1 <= k <= MAX_COMPONENTS:
-        raise InputError(f"blends of 1 to {MAX_COMPONENTS} liquids only, got {k}")
+        raise InputError(f"blends of 1 to {MAX_COMPONENTS} liquids only, got {k}", param="hsp")
     T = np.broadcast_to(as_hsp(target, "target"), (n, 3))
     lo = _broadcast_bounds(lower, n, k, 0.0, "lower")
     hi = _broadcast_bounds(upper, n, k, 1.0, "upper")
     if np.any(lo < -_FEAS_TOL) or np.any(hi > 1 + _FEAS_TOL) or np.any(lo > hi + _FEAS_TOL):
-        raise InputError("fraction bounds must satisfy 0 <= lower <= upper <= 1")
+        raise InputError("fraction bounds must satisfy 0 <= lower <= upper <= 1", param="lower")
 
     # Scaled coordinates centred on the target (the objective is |y|^2), laid
     # out coordinate-major: Qc[i][c] is coordinate c of liquid i over the batch.
@@ -436,14 +437,14 @@ def search_blends(pool_hsp, target, max_components: int = 3, lower=None, upper=N
     """
     H = as_hsp(pool_hsp, "pool_hsp")
     if H.ndim != 2:
-        raise InputError(f"pool_hsp: expected shape (m, 3), got {H.shape}")
+        raise InputError(f"expected shape (m, 3), got {H.shape}", param="pool_hsp")
     m = H.shape[0]
     if not 1 <= int(max_components) <= MAX_COMPONENTS:
-        raise InputError(f"max_components: expected 1 to {MAX_COMPONENTS}, got {max_components}")
+        raise InputError(f"expected 1 to {MAX_COMPONENTS}, got {max_components}", param="max_components")
     lo = np.zeros(m) if lower is None else np.asarray(lower, dtype=float)
     hi = np.ones(m) if upper is None else np.asarray(upper, dtype=float)
     if lo.shape != (m,) or hi.shape != (m,):
-        raise InputError(f"lower/upper: expected one bound per pool liquid ({m})")
+        raise InputError(f"expected one bound per pool liquid ({m})", param="lower")
     required = np.flatnonzero(lo > 0)
     sizes = list(sizes or range(1, int(max_components) + 1))
     total = sum(comb(m - len(required), k - len(required)) if k >= len(required) else 0 for k in sizes)
@@ -477,7 +478,7 @@ def pareto_front(objectives) -> np.ndarray:
     """
     F = np.asarray(objectives, dtype=float)
     if F.ndim != 2:
-        raise InputError("objectives: expected a 2-D array (rows = candidates)")
+        raise InputError("expected a 2-D array (rows = candidates)", param="objectives")
     F = np.where(np.isnan(F), np.inf, F)
     n = F.shape[0]
     keep = np.ones(n, dtype=bool)
