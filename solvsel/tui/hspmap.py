@@ -4,7 +4,9 @@ Two views: dP against dH, and 2 dD against dH (the scaled coordinates of
 :func:`solvsel.science.hansen.scaled`, in which distance is Ra).  The target is a
 cross; where its R0 is known, the section of its sphere through the target
 is drawn as a circle; the best single liquids of the last ranking carry their
-rank, the best blends of the last search a letter.
+rank, the best blends of the last search a letter.  Both are the results the
+``rank`` and ``blend`` jobs gave the carriers screen (kept in the session): the
+map draws them and computes nothing of its own.
 """
 
 from __future__ import annotations
