@@ -177,7 +177,10 @@ class BlendRequest:
         set_(self, "bounds", tuple(b if isinstance(b, FractionBound) else parse_fraction_bound(b, "bounds")
                                    for b in (self.bounds or ())))
         set_(self, "rejects", check_names(self.rejects or (), "rejects") if self.rejects else ())
-        set_(self, "reject_hsp", tuple(self.reject_hsp or ()))
+        spheres = self.reject_hsp or ()
+        if isinstance(spheres, str) or (len(spheres) and isinstance(spheres[0], (int, float))):
+            spheres = (spheres,)  # one sphere given on its own
+        set_(self, "reject_hsp", tuple(spheres))
         self.reject_spheres  # checks the typed rejects
         self._check_sort()
         self._check_dose()
@@ -222,7 +225,11 @@ class BlendRequest:
         """The typed rejects as ``(label, (dD, dP, dH), R0 or None)``."""
         out = []
         for i, item in enumerate(self.reject_hsp, start=1):
-            text = item if isinstance(item, str) else ",".join(f"{float(v):g}" for v in item)
+            try:
+                text = item if isinstance(item, str) else ",".join(f"{float(v):g}" for v in item)
+            except (TypeError, ValueError):
+                raise InputError(f"expected dD,dP,dH[,R0] in MPa^0.5, got {item!r}", param="reject_hsp", value=item,
+                                 expected="dD,dP,dH[,R0] in MPa^0.5") from None
             v = parse_hsp(text, "reject_hsp", allow_r0=True)
             out.append((f"reject sphere {i} ({text})", _reject_hsp(v[:3], text), _reject_r0(v, text)))
         return out
