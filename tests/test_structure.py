@@ -13,7 +13,6 @@ from __future__ import annotations
 
 import csv
 import json
-import math
 
 import numpy as np
 import pytest
@@ -472,7 +471,8 @@ def test_without_scikit_learn_a_refit_names_the_extra(monkeypatch):
 
     from solvsel.errors import MissingExtraError
 
-    monkeypatch.setitem(sys.modules, "sklearn", None)
+    for name in ("sklearn", "sklearn.linear_model", "sklearn.model_selection"):  # as if not installed
+        monkeypatch.setitem(sys.modules, name, None)
     structure_training._sklearn.cache_clear()
     try:
         with pytest.raises(MissingExtraError) as exc:
