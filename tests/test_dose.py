@@ -9,7 +9,6 @@ confirmed).
 from __future__ import annotations
 
 import json
-import math
 
 import pytest
 

@@ -20,7 +20,6 @@ def register(sub):
 
 def run(args) -> int:
     from ..data.scenario import demo_steps, load_scenario
-    from ..errors import SolvselError
     from . import main
 
     s = load_scenario()

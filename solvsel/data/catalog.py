@@ -20,7 +20,7 @@ import difflib
 import math
 import re
 import unicodedata
-from dataclasses import dataclass, field, fields
+from dataclasses import dataclass, fields
 from functools import lru_cache
 from pathlib import Path
 from typing import Any, Iterable, Mapping, Sequence
@@ -516,8 +516,6 @@ class Catalog:
 
     def table(self, name: str):
         """The validated table ``name`` (without .csv) as a DataFrame, with an ``origin`` column."""
-        import pandas as pd
-
         name = name.strip().lower().replace(" ", "_")
         name = TABLE_ALIASES.get(name, name)
         if name == "sources":

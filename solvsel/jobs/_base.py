@@ -14,10 +14,11 @@ from __future__ import annotations
 
 import math
 from dataclasses import fields as dc_fields
-from typing import Any, Iterable, Sequence, TypeVar
+from typing import Any, Iterable, Mapping, Sequence, TypeVar
 
 from ..data.catalog import Catalog, load_catalog
-from ..errors import InputError, OutOfRangeError
+from ..errors import InputError, OutOfRangeError, UnknownNameError
+from ..rules.regulations import FOOD_JURISDICTIONS, resolve_category
 from ..science.target import Target, target_from_hsp, target_from_smiles, target_from_solute
 
 __all__ = [
@@ -28,6 +29,9 @@ __all__ = [
     "check_choice",
     "check_names",
     "check_fraction",
+    "check_pairs",
+    "check_jurisdictions",
+    "check_category",
     "target_of",
     "frame",
     "TEMP_RANGE_C",
@@ -142,6 +146,65 @@ def check_names(value, param: str, allow_none: bool = True) -> tuple[str, ...] |
 def check_fraction(value, param: str, allow_none: bool = False, allow_zero: bool = True) -> float | None:
     """A fraction from 0 to 1 (0 excluded unless ``allow_zero``)."""
     return check_number(value, param, 0.0, 1.0, allow_none=allow_none, lo_open=not allow_zero)
+
+
+def check_pairs(value, param: str, *, numeric_keys: bool = False, lo: float | None = None, hi: float | None = None,
+                lo_open: bool = False, unit: str = "", allow_none: bool = True) -> tuple[tuple[Any, float], ...] | None:
+    """``(key, number)`` pairs from a mapping or a sequence of pairs (``NAME=AMOUNT`` lists).
+
+    Keys are non-empty names, or numbers above 0 with ``numeric_keys`` (a
+    diameter, an HLB); each number is checked against ``lo..hi``.
+
+    >>> check_pairs({"d-limonene": 70, "medium-chain triglycerides": 30}, "oil", lo=0)
+    (('d-limonene', 70.0), ('medium-chain triglycerides', 30.0))
+    >>> check_pairs([("0.3", 85), ("1.5", 15)], "sizes", numeric_keys=True, lo=0)
+    ((0.3, 85.0), (1.5, 15.0))
+    """
+    if value is None and allow_none:
+        return None
+    expected = ("NUMBER=" if numeric_keys else "NAME=") + "NUMBER pairs"
+    items = list(value.items()) if isinstance(value, Mapping) else value
+    try:
+        items = [tuple(item) for item in items]
+    except TypeError:
+        raise InputError(f"expected {expected}, got {value!r}", param=param, value=value, expected=expected) from None
+    if not items or any(len(item) != 2 or isinstance(item[0], bytes) for item in items):
+        raise InputError(f"expected {expected}, got {value!r}", param=param, value=value, expected=expected)
+    out = []
+    for key, number in items:
+        if numeric_keys:
+            key = check_number(key, param, 0.0, None, unit=unit, lo_open=True)
+        else:
+            key = str(key).strip()
+            if not key:
+                raise InputError(f"an amount ({number}) has no name", param=param, value=value, expected=expected)
+        out.append((key, check_number(number, param, lo, hi, unit=unit, lo_open=lo_open)))
+    return tuple(out)
+
+
+def check_jurisdictions(value, param: str = "jurisdictions", allow_none: bool = False) -> tuple[str, ...] | None:
+    """Food-law jurisdictions (US, EU), upper-cased, in the order given.
+
+    >>> check_jurisdictions(["eu", "US"])
+    ('EU', 'US')
+    """
+    names = check_names(value, param, allow_none=allow_none)
+    if names is None:
+        return None
+    out = tuple(n.upper() for n in names)
+    bad = [j for j in out if j not in FOOD_JURISDICTIONS]
+    if bad:
+        expected = " and/or ".join(FOOD_JURISDICTIONS)
+        raise InputError(f"expected {expected}, got '{bad[0]}'", param=param, value=bad[0], expected=expected)
+    return tuple(dict.fromkeys(out))
+
+
+def check_category(cat: Catalog, name: str, param: str = "category") -> str:
+    """The food category ``name`` as the tables name it; an unknown one is an error about ``param``."""
+    try:
+        return resolve_category(cat, name).name
+    except UnknownNameError as exc:
+        raise UnknownNameError(exc.name, exc.kind, exc.suggestions, param=param) from None
 
 
 def target_of(catalog: Catalog, *, target: Target | None = None, solute: str | None = None,

@@ -47,8 +47,17 @@ from ..science.emulsion import (
     weighting_options,
 )
 from ..science.hlb import normalize_fractions
-from ._base import build_request, catalog_or_default, check_fraction, check_names, check_number, frame
-from .hlb import check_category, check_jurisdictions, check_pairs
+from ._base import (
+    build_request,
+    catalog_or_default,
+    check_category,
+    check_fraction,
+    check_jurisdictions,
+    check_names,
+    check_number,
+    check_pairs,
+    frame,
+)
 
 __all__ = ["EmulsionRequest", "EmulsionResult", "emulsion", "agent_limits", "EMULSION_CAUTIONS"]
 

@@ -17,12 +17,12 @@ Every result carries the cautions of HLB work and the closing caution.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any, Mapping, Sequence
+from typing import Any, Sequence
 
 from ..data.catalog import Catalog
-from ..errors import InputError, UnknownNameError
+from ..errors import InputError
 from ..rules.cautions import DEFER
-from ..rules.regulations import FOOD_JURISDICTIONS, limits, resolve_category
+from ..rules.regulations import limits
 from ..science.hlb import (
     BenchSeries,
     Emulsifier,
@@ -38,16 +38,24 @@ from ..science.hlb import (
     oil_phase_required_hlb,
     pool_from_catalog,
 )
-from ._base import build_request, catalog_or_default, check_fraction, check_int, check_names, check_number, frame
+from ._base import (
+    build_request,
+    catalog_or_default,
+    check_category,
+    check_fraction,
+    check_int,
+    check_jurisdictions,
+    check_names,
+    check_number,
+    check_pairs,
+    frame,
+)
 
 __all__ = [
     "HlbRequest",
     "HlbResult",
     "hlb",
     "HLB_CAUTIONS",
-    "check_pairs",
-    "check_jurisdictions",
-    "check_category",
 ]
 
 #: Cautions every HLB result carries (common practice; see :mod:`solvsel.science.hlb`).
@@ -65,65 +73,6 @@ HLB_MAX = 40.0
 
 
 # ----------------------------------------------------------------------------- checks shared with emulsion
-
-
-def check_pairs(value, param: str, *, numeric_keys: bool = False, lo: float | None = None, hi: float | None = None,
-                lo_open: bool = False, unit: str = "", allow_none: bool = True) -> tuple[tuple[Any, float], ...] | None:
-    """``(key, number)`` pairs from a mapping or a sequence of pairs (``NAME=AMOUNT`` lists).
-
-    Keys are non-empty names, or numbers above 0 with ``numeric_keys`` (a
-    diameter, an HLB); each number is checked against ``lo..hi``.
-
-    >>> check_pairs({"d-limonene": 70, "medium-chain triglycerides": 30}, "oil", lo=0)
-    (('d-limonene', 70.0), ('medium-chain triglycerides', 30.0))
-    >>> check_pairs([("0.3", 85), ("1.5", 15)], "sizes", numeric_keys=True, lo=0)
-    ((0.3, 85.0), (1.5, 15.0))
-    """
-    if value is None and allow_none:
-        return None
-    expected = ("NUMBER=" if numeric_keys else "NAME=") + "NUMBER pairs"
-    items = list(value.items()) if isinstance(value, Mapping) else value
-    try:
-        items = [tuple(item) for item in items]
-    except TypeError:
-        raise InputError(f"expected {expected}, got {value!r}", param=param, value=value, expected=expected) from None
-    if not items or any(len(item) != 2 or isinstance(item[0], bytes) for item in items):
-        raise InputError(f"expected {expected}, got {value!r}", param=param, value=value, expected=expected)
-    out = []
-    for key, number in items:
-        if numeric_keys:
-            key = check_number(key, param, 0.0, None, unit=unit, lo_open=True)
-        else:
-            key = str(key).strip()
-            if not key:
-                raise InputError(f"an amount ({number}) has no name", param=param, value=value, expected=expected)
-        out.append((key, check_number(number, param, lo, hi, unit=unit, lo_open=lo_open)))
-    return tuple(out)
-
-
-def check_jurisdictions(value, param: str = "jurisdictions", allow_none: bool = False) -> tuple[str, ...] | None:
-    """Food-law jurisdictions (US, EU), upper-cased, in the order given.
-
-    >>> check_jurisdictions(["eu", "US"])
-    ('EU', 'US')
-    """
-    names = check_names(value, param, allow_none=allow_none)
-    if names is None:
-        return None
-    out = tuple(n.upper() for n in names)
-    bad = [j for j in out if j not in FOOD_JURISDICTIONS]
-    if bad:
-        expected = " and/or ".join(FOOD_JURISDICTIONS)
-        raise InputError(f"expected {expected}, got '{bad[0]}'", param=param, value=bad[0], expected=expected)
-    return tuple(dict.fromkeys(out))
-
-
-def check_category(cat: Catalog, name: str, param: str = "category") -> str:
-    """The food category ``name`` as the tables name it; an unknown one is an error about ``param``."""
-    try:
-        return resolve_category(cat, name).name
-    except UnknownNameError as exc:
-        raise UnknownNameError(exc.name, exc.kind, exc.suggestions, param=param) from None
 
 
 # ----------------------------------------------------------------------------- request

@@ -13,7 +13,6 @@ import math
 from dataclasses import asdict, dataclass
 from typing import Any
 
-from ..errors import InputError
 
 __all__ = ["Hazard", "hazard_class"]
 

@@ -174,14 +174,13 @@ def _component(cat, name, given_cas=None, given_density=None, param="formula", p
             origin += f" ({rec.origin})"
         if not cname:
             raise InputError("a component record without a name", param=param, path=path)
-        record = rec
     else:
         try:
-            cname, cas, dens, origin, record = _lookup(cat, name)
+            cname, cas, dens, origin, _ = _lookup(cat, name)
         except UnknownNameError as exc:
             if not given_cas:
                 raise UnknownNameError(exc.name, exc.kind, exc.suggestions, param=param) from None
-            cname, cas, dens, origin, record = name, given_cas, None, "given", None
+            cname, cas, dens, origin = name, given_cas, None, "given"
     if given_cas and cas and given_cas != cas:
         raise InputError(f"'{name}' has CAS {cas} in the tables, but {given_cas} was given", param=param,
                          value=given_cas, expected=cas, path=path)

@@ -32,7 +32,7 @@ def as_hsp(values, name: str = "hsp") -> np.ndarray:
     if arr.shape[-1:] != (3,):
         raise InputError(f"expected dD, dP, dH (3 numbers), got shape {arr.shape}", param=name)
     if not np.all(np.isfinite(arr)):
-        raise InputError(f"HSP values must be finite numbers", param=name)
+        raise InputError("HSP values must be finite numbers", param=name)
     return arr
 
 
@@ -168,11 +168,11 @@ def ra_to_surface(hsp, center, r0) -> np.ndarray:
 def _check_fractions(fractions, name: str, n: int | None = None) -> np.ndarray:
     f = np.asarray(fractions, dtype=float)
     if f.ndim == 0:
-        raise InputError(f"expected one fraction per component, got a single number", param=name)
+        raise InputError("expected one fraction per component, got a single number", param=name)
     if n is not None and f.shape[-1] != n:
         raise InputError(f"expected {n} fractions (one per component), got {f.shape[-1]}", param=name)
     if not np.all(np.isfinite(f)):
-        raise InputError(f"fractions must be finite numbers", param=name)
+        raise InputError("fractions must be finite numbers", param=name)
     if np.any(f < 0):
         raise InputError(f"fractions must be zero or positive, got {f[f < 0].ravel()[:3].tolist()}", param=name)
     s = f.sum(axis=-1)
