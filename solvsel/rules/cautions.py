@@ -173,7 +173,7 @@ def limit_cautions(check: DoseCheck) -> list[str]:
     """
     jur, category = check.jurisdiction, check.category
     out = [
-        "Limits apply to the food as consumed and from all sources: add what other ingredients bring (--already).",
+        "Limits apply to the food as consumed and from all sources: add what the other ingredients already bring to the food.",
         f"Jurisdiction {jur}, category '{category}': the rules, sources and checked-on dates are listed with each limit; "
         "rows marked 'secondary, verify' or 'from memory' are not confirmed against the official text.",
     ]

@@ -36,54 +36,38 @@ class ErrorDialog(ModalScreen[None]):
         self.dismiss()
 
 
-#: The library's messages name the command-line option a value came from; in
-#: the UI the same value comes from a field, named here as its label says.
+#: Labels of request fields for screens that do not name a field in their own ``FIELD_LABELS``.
 FIELD_NAMES = {
     "chain": "dilution chain",
     "dose": "dose",
     "already": "amount already in the food",
     "category": "food category",
     "jurisdiction": "jurisdiction",
-    "temp": "temperature",
-    "max-components": "largest blend (liquids)",
-    "bp-range": "boiling window",
-    "min-flash": "lowest flash point",
+    "temp_C": "temperature",
+    "max_components": "largest blend (liquids)",
+    "bp_min_C": "boiling window",
+    "bp_max_C": "boiling window",
+    "min_flash_C": "lowest flash point",
     "exclude": "leave out",
-    "reject": "keep out of solution",
+    "rejects": "keep out of solution",
     "use": "use",
     "oil": "oil phase",
     "emulsifiers": "emulsifiers to pair",
     "rhlb": "your own required HLB",
     "brix": "sugar (Brix)",
     "dilution": "dilution",
-    "droplet-um": "droplet diameter",
+    "droplet_um": "droplet diameter",
     "hsp": "dD, dP, dH (and R0)",
     "smiles": "SMILES",
-    "good-at-most": "good at a score of at most",
-    "good-at-least": "good at a score of at least",
+    "good_at_most": "good at a score of at most",
+    "good_at_least": "good at a score of at least",
     "solute": "target",
 }
 
 
-def plain_message(message: str) -> str:
-    """``message`` with each ``--option`` replaced by the name of the UI field it stands for.
-
-    >>> plain_message("--chain: stage 2 'drink 1+x': expected a number")
-    "dilution chain: stage 2 'drink 1+x': expected a number"
-    """
-    import re
-
-    def field(m):
-        name = m.group(1)
-        return FIELD_NAMES.get(name, name.replace("-", " "))
-
-    return re.sub(r"(?<![\w-])--([a-z][a-z0-9-]*)", field, message)
-
-
 def field_label(param: str, labels: dict[str, str] | None = None) -> str:
     """The label of the UI field a request field is typed into (the screen's own labels first)."""
-    return ((labels or {}).get(param) or FIELD_NAMES.get(param) or FIELD_NAMES.get(param.replace("_", "-"))
-            or param.replace("_", " "))
+    return (labels or {}).get(param) or FIELD_NAMES.get(param) or param.replace("_", " ")
 
 
 def show_error(app, exc: BaseException, labels: dict[str, str] | None = None) -> None:
@@ -91,4 +75,4 @@ def show_error(app, exc: BaseException, labels: dict[str, str] | None = None) ->
     title = getattr(exc, "title", None) or type(exc).__name__
     describe = getattr(exc, "describe", None)
     text = describe(lambda p: field_label(p, labels)) if describe else str(exc)
-    app.push_screen(ErrorDialog(str(title), plain_message(text)))
+    app.push_screen(ErrorDialog(str(title), text))

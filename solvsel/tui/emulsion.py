@@ -17,7 +17,7 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import Button, DataTable, Input, Label, Static
 
 from .base import BenchScreen
-from .dialogs import field_label, plain_message
+from .dialogs import field_label
 from .widgets import CautionBox, fill_table
 
 PAIR_HEADERS = ("emulsifier A", "share A", "emulsifier B", "share B", "blend HLB", "same tail")
@@ -159,7 +159,7 @@ class EmulsionScreen(BenchScreen):
 
     @staticmethod
     def _error_text(title: str, exc, labels: dict) -> Text:
-        said = plain_message(exc.describe(lambda p: field_label(p, labels)))
+        said = exc.describe(lambda p: field_label(p, labels))
         return Text.assemble((title, "bold"), (f"{exc.title}: ", "bold"), said)
 
     def compute_hlb(self) -> None:

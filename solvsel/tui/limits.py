@@ -15,7 +15,7 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import Button, DataTable, Input, Label, Static
 
 from .base import BenchScreen
-from .dialogs import field_label, plain_message
+from .dialogs import field_label
 from .widgets import CautionBox, fill_table
 
 CHECK_HEADERS = ("rule", "substance", "level", "limit", "unit", "of limit", "ok", "binds", "max dose", "confidence")
@@ -107,7 +107,7 @@ class LimitsScreen(BenchScreen):
             self.query_one("#lim-stages", DataTable).clear(columns=True)
             self.query_one("#lim-stages-title", Static).update("")
             self.query_one("#lim-notes", Static).update("")
-            said = plain_message(exc.describe(lambda p: field_label(p, self.FIELD_LABELS)))
+            said = exc.describe(lambda p: field_label(p, self.FIELD_LABELS))
             self.query_one("#lim-summary", Static).update(Text.assemble((f"{exc.title}: ", "bold"), said))
             if interactive:
                 show_error(self.app, exc, self.FIELD_LABELS)
