@@ -278,7 +278,7 @@ def _ranked(cat: Catalog, target: Target, c: Candidate, req: RankRequest, steps)
         c.vm_cm3_mol, s.bp_C, s.flash_C, None if hz is None else (hz.label or hz.kind),
         None if hz is None else (hz.hazard_statement or hz.kind), status, allowed, s.cost_class,
         s.water_miscibility, solubility_in(target, s, c.hsp, c.vm_cm3_mol, req.temp_C), dose,
-        tuple(solvent_cautions(s, use=req.use or "carrier", cat=cat)), tuple(notes), s.origin, tuple(s.sources),
+        tuple(solvent_cautions(s, use=req.use or c.food_use, cat=cat)), tuple(notes), s.origin, tuple(s.sources),
     )
 
 
@@ -350,12 +350,9 @@ def _cautions(results: Sequence[RankedSolvent]) -> tuple[str, ...]:
 
 
 def _nearest(cat: Catalog, req: RankRequest) -> RankResult:
-    """The liquids nearest to ``req.like`` in Hansen space (scikit-learn neighbours in the scaled
-    coordinates, where Euclidean distance is Ra); the liquid itself is left out."""
-    import numpy as np
-    from sklearn.neighbors import NearestNeighbors
-
-    from ..science.hansen import scaled
+    """The liquids nearest to ``req.like`` in Hansen space (smallest Ra first; every liquid kept
+    has its Ra to the liquid, so the nearest are a sort, no neighbour search); the liquid itself
+    is left out."""
 
     me = solvent_named(cat, req.like, "like")
     target = Target(me.name, float(me.dD), float(me.dP), float(me.dH), None, "table", None,
@@ -364,10 +361,8 @@ def _nearest(cat: Catalog, req: RankRequest) -> RankResult:
     results, dropped = _rank_pool(cat, target, req, others)
     notes = _notes(target, req.temp_C) + _closing_notes(target)
     if results:
-        pts = scaled(np.array([[r.dD, r.dP, r.dH] for r in results]))
-        k = len(pts) if req.all or req.top is None else min(req.top, len(pts))
-        _, idx = NearestNeighbors(n_neighbors=k).fit(pts).kneighbors(scaled(me.hsp)[None, :])
-        results = [results[i] for i in idx[0]]
+        k = len(results) if req.all or req.top is None else min(req.top, len(results))
+        results = sorted(results, key=lambda r: (r.ra, r.name))[:k]
         notes.append(f"nearest liquids to {me.name} (Ra in MPa^0.5); similar HSP is not similar toxicity, "
                      "taste or legal status")
     return RankResult(target, req.temp_C, tuple(results), tuple(dropped), tuple(notes), _cautions(results), "ra")

@@ -40,6 +40,7 @@ from typing import Mapping, Sequence
 import numpy as np
 
 from ..data.catalog import number_or_none as _num
+from ..extras import need
 from ..errors import InputError, MissingDataError, OutOfRangeError, UnknownNameError
 
 __all__ = [
@@ -264,10 +265,14 @@ class GriffinResult:
         return asdict(self)
 
 
-def _mol(smiles: str, param: str = "smiles"):
-    from rdkit import Chem, RDLogger
+def _chem():
+    """RDKit's ``Chem`` (the ``structure`` extra), or an error naming the extra to install."""
+    need("rdkit.RDLogger", "structure", "HLB from a structure").DisableLog("rdApp.*")
+    return need("rdkit.Chem", "structure", "HLB from a structure")
 
-    RDLogger.DisableLog("rdApp.*")
+
+def _mol(smiles: str, param: str = "smiles"):
+    Chem = _chem()
     if not isinstance(smiles, str) or not smiles.strip():
         raise InputError(f"expected a SMILES string, got {smiles!r}", param=param, value=smiles)
     mol = Chem.MolFromSmiles(smiles.strip())
@@ -313,7 +318,7 @@ def _lipophilic_side(mol, carbon: int, atoms: set[int]) -> bool:
 
 def _as_free_acid_or_alcohol(mol, carbon: int, oxygen: int, side: set[int]) -> str:
     """SMILES of the chain cut off at ``carbon``, with the cut O kept as OH."""
-    from rdkit import Chem
+    Chem = _chem()
 
     keep = sorted(side | {oxygen})
     rw = Chem.RWMol(mol)
@@ -369,8 +374,8 @@ def griffin_hlb_from_smiles(smiles: str) -> GriffinResult:
     >>> round(griffin_hlb_from_smiles(ps20).hlb, 1)
     16.7
     """
-    from rdkit import Chem
-    from rdkit.Chem.Descriptors import MolWt
+    Chem = _chem()
+    MolWt = need("rdkit.Chem.Descriptors", "structure", "HLB from a structure").MolWt
 
     mol = _mol(smiles)
     if any(a.GetFormalCharge() != 0 for a in mol.GetAtoms()):
@@ -484,7 +489,7 @@ def davies_groups_from_smiles(smiles: str) -> dict[str, int]:
     >>> davies_groups_from_smiles("CCCCCCCC/C=C\\\\CCCCCCCC(=O)[O-].[Na+]")
     {'carboxylate_na': 1, 'ch': 17}
     """
-    from rdkit import Chem
+    Chem = _chem()
 
     mol = _mol(smiles)
     counts: dict[str, int] = {}
