@@ -29,7 +29,7 @@ solvent:
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, fields as dc_fields, replace
+from dataclasses import dataclass, field, replace
 from typing import Any, Callable, Mapping
 
 import numpy as np
@@ -59,7 +59,7 @@ from ..science.hansen import SCALE, as_hsp, convert_fractions
 from ..science.target import Target, target_from_hsp
 from ._base import build_request, catalog_or_default, check_choice, check_int, check_names, check_number, frame, target_of
 from .parse import parse_amounts, parse_chain, parse_fraction_bound, parse_hsp
-from .pool import Candidate, LeftOut, Pool, PoolFilters, build_pool, hazard_rank, solvent_named
+from .pool import Candidate, LeftOut, Pool, PoolRequest, build_pool, hazard_rank, solvent_named
 
 __all__ = ["BlendRequest", "BlendResult", "blend", "SORTS", "GENERAL_CAUTION"]
 
@@ -77,11 +77,10 @@ _SCAN_LIMIT = 20000
 #: Dropped blends listed individually (the rest are counted).
 _DROPPED_LISTED = 30
 #: Fields of a request that are the pool's filters.
-_POOL_FIELDS = tuple(f.name for f in dc_fields(PoolFilters))
 
 
 @dataclass(frozen=True)
-class BlendRequest:
+class BlendRequest(PoolRequest):
     """What to search: the target, the pool, the bounds and checks, and what to show.
 
     Attributes
@@ -157,9 +156,7 @@ class BlendRequest:
 
     def __post_init__(self) -> None:
         set_ = object.__setattr__
-        filters = self.filters
-        for name in _POOL_FIELDS:
-            set_(self, name, getattr(filters, name))
+        self.check_pool_fields()
         given = [k for k in ("solute", "hsp", "smiles", "target") if getattr(self, k) is not None]
         if len(given) != 1:
             raise InputError("no target: give a solute of the tables, typed HSP (dD, dP, dH[, R0]) or a SMILES"
@@ -207,11 +204,6 @@ class BlendRequest:
             raise InputError("the dose check needs the jurisdiction and the food category of the food the "
                              "blend ends up in", param=param, expected="EU or US, and a food category")
         self.steps  # parses the dose and the chain
-
-    @property
-    def filters(self) -> PoolFilters:
-        """The pool filters of this request."""
-        return PoolFilters(**{name: getattr(self, name) for name in _POOL_FIELDS})
 
     @property
     def steps(self) -> list[Step] | None:

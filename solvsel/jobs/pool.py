@@ -23,7 +23,7 @@ Liquids that are the same substance (same CAS) are kept once.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, fields
 from typing import Sequence
 
 import numpy as np
@@ -36,7 +36,7 @@ from ..science.hansen import T_WINDOW_C
 from ..science.target import solvent_at
 from ._base import check_choice, check_int, check_names, check_number
 
-__all__ = ["USES", "PoolFilters", "Candidate", "LeftOut", "Pool", "build_pool", "property_reason", "hazard_rank",
+__all__ = ["USES", "PoolFilters", "PoolRequest", "Candidate", "LeftOut", "Pool", "build_pool", "property_reason", "hazard_rank",
            "solvent_named"]
 
 #: Uses a liquid can be searched for.
@@ -115,6 +115,29 @@ class PoolFilters:
     def food_uses(self) -> tuple[str, ...]:
         """The uses whose food status counts (either food use when none is given)."""
         return (self.use,) if self.use in ("carrier", "extraction") else ("carrier", "extraction")
+
+
+#: The fields of :class:`PoolFilters`, which a :class:`PoolRequest` carries too.
+POOL_FIELDS = tuple(f.name for f in fields(PoolFilters))
+
+
+class PoolRequest:
+    """Mixin of a job's request that carries the pool filters as fields of its own (the same names
+    as :class:`PoolFilters`), so a notebook user passes them flat: ``rank(food=True, use="carrier")``.
+
+    ``filters`` checks them; ``check_pool_fields`` (called from ``__post_init__``) stores the
+    checked values back on the request.
+    """
+
+    @property
+    def filters(self) -> PoolFilters:
+        """The pool filters of this request (checked on construction)."""
+        return PoolFilters(**{name: getattr(self, name) for name in POOL_FIELDS})
+
+    def check_pool_fields(self) -> None:
+        filters = self.filters
+        for name in POOL_FIELDS:
+            object.__setattr__(self, name, getattr(filters, name))
 
 
 @dataclass(frozen=True)

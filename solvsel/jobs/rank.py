@@ -16,7 +16,7 @@ lists the liquids nearest to a given liquid instead (substitutes).
 
 from __future__ import annotations
 
-from dataclasses import dataclass, fields as dc_fields
+from dataclasses import dataclass
 from typing import Any, Sequence
 
 from ..data.catalog import Catalog
@@ -27,16 +27,15 @@ from ..science.formulation import Step
 from ..science.target import Target, solubility_in, target_from_hsp
 from ._base import build_request, catalog_or_default, check_int, frame, target_of
 from .parse import parse_chain
-from .pool import Candidate, LeftOut, PoolFilters, build_pool, solvent_named
+from .pool import Candidate, LeftOut, PoolRequest, build_pool, solvent_named
 
 __all__ = ["RankRequest", "RankedSolvent", "RankResult", "rank"]
 
 #: Fields of a request that are the pool's filters (:class:`~solvsel.jobs.pool.PoolFilters`).
-_POOL_FIELDS = tuple(f.name for f in dc_fields(PoolFilters))
 
 
 @dataclass(frozen=True)
-class RankRequest:
+class RankRequest(PoolRequest):
     """What to rank, for which target, under which filters.
 
     Attributes
@@ -101,9 +100,7 @@ class RankRequest:
 
     def __post_init__(self) -> None:
         set_ = object.__setattr__
-        filters = self.filters  # checks every filter field
-        for name in _POOL_FIELDS:
-            set_(self, name, getattr(filters, name))
+        self.check_pool_fields()
         given = [k for k in ("solute", "hsp", "smiles", "target", "like") if getattr(self, k) is not None]
         if not given:
             raise InputError("no target: give a solute of the tables, typed HSP (dD, dP, dH[, R0]), a SMILES, "
@@ -134,11 +131,6 @@ class RankRequest:
             raise InputError("the dose check needs the jurisdiction (EU or US): limits differ by jurisdiction",
                              param="jurisdiction", expected="EU or US")
         self.steps  # parses the dose and the chain
-
-    @property
-    def filters(self) -> PoolFilters:
-        """The pool filters of this request."""
-        return PoolFilters(**{name: getattr(self, name) for name in _POOL_FIELDS})
 
     @property
     def steps(self) -> list[Step] | None:
