@@ -30,7 +30,7 @@ from typing import Any, Callable
 from ..data.catalog import Catalog
 from ..errors import InputError, SolvselError
 from ..science import structure
-from ..science.target import Target
+from ..science.target import Target, target_from_estimate
 from ._base import build_request, check_choice
 from .fit import SOLUTE_CATEGORIES
 
@@ -169,9 +169,7 @@ class EstimateResult:
         e = self.estimates[0]
         if isinstance(e, SolvselError):
             raise e
-        note = f"estimated from structure ({e.method}); a screening estimate, confirm at the bench"
-        return Target(e.smiles, float(e.dD), float(e.dP), float(e.dH), None, "estimated", None, note,
-                      e.vm_cm3_mol, dict(e.uncertainty))
+        return target_from_estimate(e)
 
     def to_dict(self) -> dict[str, Any] | list[dict[str, Any]]:
         """The JSON of ``solvsel estimate --json``: the estimate of one SMILES (with ``saved_to`` when saved),

@@ -21,7 +21,7 @@ import numpy as np
 
 from ..errors import InputError, OutOfRangeError
 
-__all__ = ["Target", "HSP_RANGES", "target_from_solute", "target_from_hsp", "target_from_smiles", "solvent_at",
+__all__ = ["Target", "HSP_RANGES", "target_from_solute", "target_from_hsp", "target_from_smiles", "target_from_estimate", "solvent_at",
            "solubility_in"]
 
 #: Accepted ranges of typed HSP [MPa^0.5]: they span every liquid and solute in
@@ -163,6 +163,19 @@ def target_from_solute(cat, name: str) -> Target:
     return Target(s.name, float(s.dD), float(s.dP), float(s.dH), s.r0, basis, s, note, s.vm_cm3_mol)
 
 
+def target_from_estimate(e) -> Target:
+    """Target from a structure estimate (:class:`~solvsel.science.structure.Estimate`): basis
+    "estimated", no interaction radius (R0 None), the method's uncertainty."""
+    for k in ("dD", "dP", "dH"):
+        v = getattr(e, k)
+        if v is None or not math.isfinite(v):
+            raise InputError(f"no estimate of {k} for '{e.smiles}'", param="smiles", value=e.smiles)
+    unc = getattr(e, "uncertainty", None)
+    note = f"estimated from structure ({e.method}); a screening estimate, confirm at the bench"
+    return Target(e.smiles, float(e.dD), float(e.dP), float(e.dH), None, "estimated", None, note,
+                  e.vm_cm3_mol, dict(unc) if isinstance(unc, dict) else None)
+
+
 def target_from_smiles(smiles: str) -> Target:
     """Target estimated from a structure (group contribution, ``solvsel.science.structure``).
 
@@ -174,18 +187,7 @@ def target_from_smiles(smiles: str) -> Target:
                          expected="a SMILES string")
     from .structure import estimate
 
-    e = estimate(str(smiles).strip())
-    for k in ("dD", "dP", "dH"):
-        v = getattr(e, k)
-        if v is None or not math.isfinite(v):
-            raise InputError(f"no estimate of {k} for '{smiles}'", param="smiles", value=smiles)
-    unc = getattr(e, "uncertainty", None)
-    method = getattr(e, "method", "group contribution")
-    note = f"estimated from structure ({method}); a screening estimate, confirm at the bench"
-    return Target(
-        getattr(e, "smiles", smiles), float(e.dD), float(e.dP), float(e.dH), None, "estimated", None, note,
-        getattr(e, "vm_cm3_mol", None), dict(unc) if isinstance(unc, dict) else None,
-    )
+    return target_from_estimate(estimate(str(smiles).strip()))
 
 
 # ----------------------------------------------------------------------------- one liquid at a temperature
