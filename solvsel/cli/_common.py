@@ -157,11 +157,13 @@ def print_table(
 
 
 def print_cautions(cautions: Iterable[str], file=None) -> None:
+    """Print each caution once, in order, the closing deferral to local codes and the rules in force last."""
+    from ..rules.cautions import DEFER
+
     file = file or sys.stdout
-    seen = []
-    for c in cautions:
-        if c and c not in seen:
-            seen.append(c)
+    seen = list(dict.fromkeys(c for c in cautions if c))
+    if DEFER in seen:
+        seen = [c for c in seen if c != DEFER] + [DEFER]
     if seen:
         print("\nCautions:", file=file)
         for c in seen:
