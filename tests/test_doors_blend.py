@@ -102,7 +102,7 @@ def test_the_carriers_screen_shows_the_library_result(library, cat):
                 b.label + (f" (+{len(b.alternatives)} alike)" if b.alternatives else "") for b in library.results]
 
             # the extraction preset (rejects at -20 C) gives the library's answer to the same request
-            await pilot.press("f8")
+            await pilot.press("ctrl+g")
             await _settle(app, pilot)
             x = app.session.scenario.extraction
             ref = blend(solute="cannabidiol", use=x["use"], jurisdiction=x["jurisdiction"], temp_C=x["temp_C"],

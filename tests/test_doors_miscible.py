@@ -56,9 +56,10 @@ def test_library_and_command_line_agree(case, capsys):
 
 def test_the_mixing_screen_shows_the_library_answer():
     pytest.importorskip("textual")
-    from textual.widgets import Checkbox, Input
+    from textual.widgets import Input
 
     from solvsel.tui.app import create_app
+    from solvsel.tui.widgets import Tick
 
     async def go():
         app = create_app(start="mixing")
@@ -68,16 +69,16 @@ def test_the_mixing_screen_shows_the_library_answer():
                 screen = app.screen
                 screen.query_one("#mix-liquids", Input).value = ", ".join(case["liquids"])
                 screen.query_one("#mix-fractions", Input).value = ",".join(str(f) for f in case.get("fractions") or ())
-                screen.query_one("#mix-bridge", Checkbox).value = bool(case.get("bridge"))
-                screen.query_one("#mix-food", Checkbox).value = bool(case.get("food"))
+                screen.query_one("#mix-bridge", Tick).value = bool(case.get("bridge"))
+                screen.query_one("#mix-food", Tick).value = bool(case.get("food"))
                 await pilot.press("ctrl+r")
                 await pilot.pause()
                 assert _essentials(screen.result.to_dict()) == _essentials(solvsel.miscible(**case).to_dict())
                 assert screen.query_one("#mix-pairs").row_count == len(screen.result.pairs)
             # a mistake opens the dialog with the field's label, not an option of the command line
             app.screen.query_one("#mix-fractions", Input).value = "50,60"
-            app.screen.query_one("#mix-bridge", Checkbox).value = False
-            app.screen.query_one("#mix-food", Checkbox).value = False
+            app.screen.query_one("#mix-bridge", Tick).value = False
+            app.screen.query_one("#mix-food", Tick).value = False
             app.screen.query_one("#mix-liquids", Input).value = "water, ethanol"
             await pilot.press("ctrl+r")
             await pilot.pause()

@@ -147,7 +147,7 @@ def test_blend_search_worker_posts_progress_and_done_and_can_be_cancelled(monkey
             assert screen.query_one("#excluded-grid").row_count == len(ref.excluded)
 
             # the extraction preset (rejects, -20 C, two liquids) runs a second search in the worker
-            await pilot.press("f8")
+            await pilot.press("ctrl+g")
             await _settle(app, pilot)
             assert type(screen.messages[-1]) is BlendDone
             res = screen.messages[-1].result

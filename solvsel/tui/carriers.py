@@ -83,8 +83,8 @@ class CarriersScreen(BenchScreen):
     BINDINGS = [
         Binding("ctrl+r", "search", "Search blends", priority=True),
         Binding("escape", "cancel", "Cancel search"),
-        Binding("f7", "preset('carrier')", "Carrier preset"),
-        Binding("f8", "preset('extraction')", "Extraction preset"),
+        Binding("ctrl+f", "preset('carrier')", "Carrier preset", priority=True),
+        Binding("ctrl+g", "preset('extraction')", "Extraction preset", priority=True),
         Binding("ctrl+t", "next_list", "Next list", priority=True),
     ]
 
@@ -103,8 +103,8 @@ class CarriersScreen(BenchScreen):
             with VerticalScroll(id="constraints"):
                 yield Static("Constraints", classes="pane-title")
                 with Horizontal(classes="preset-row"):
-                    yield Button("Carrier F7", id="preset-carrier", classes="preset", compact=True)
-                    yield Button("Extraction F8", id="preset-extraction", classes="preset", compact=True)
+                    yield Button("Carrier ^F", id="preset-carrier", classes="preset", compact=True)
+                    yield Button("Extraction ^G", id="preset-extraction", classes="preset", compact=True)
                 yield Label("Use")
                 yield Select(USE_CHOICES, value="carrier", allow_blank=False, id="use", compact=True)
                 yield Label("Jurisdiction")

@@ -12,10 +12,10 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, VerticalScroll
-from textual.widgets import Button, Checkbox, DataTable, Input, Label, Static
+from textual.widgets import Button, DataTable, Input, Label, Static
 
 from .base import BenchScreen
-from .widgets import CautionBox, fill_table
+from .widgets import CautionBox, Tick, fill_table
 
 PAIR_HEADERS = ("liquid a", "liquid b", "one phase", "basis", "chi / chi crit")
 BRIDGE_HEADERS = ("#", "mixes with both", "with a", "with b", "max chi/chi crit")
@@ -50,8 +50,8 @@ class MixingScreen(BenchScreen):
                 yield Input("25", id="mix-temp", compact=True)
                 yield Label("Volume fractions (optional: 70,30)")
                 yield Input(id="mix-fractions", compact=True)
-                yield Checkbox("Bridging liquids (two liquids)", id="mix-bridge", compact=True)
-                yield Checkbox("Food carriers only", id="mix-food", compact=True)
+                yield Tick("Bridging liquids (two liquids)", id="mix-bridge", compact=True)
+                yield Tick("Food carriers only", id="mix-food", compact=True)
                 yield Button("Check  ^R", id="mix-compute", variant="primary", compact=True)
             with VerticalScroll(id="mixing-results"):
                 yield Static("", id="mix-summary", classes="result-block")
@@ -88,7 +88,7 @@ class MixingScreen(BenchScreen):
         text = q("#mix-fractions", Input).value.strip()
         fractions = parse_fractions(text, len(liquids)) if text else None
         return MiscibleRequest(liquids=liquids, temp_C=temp, fractions=fractions,
-                               bridge=q("#mix-bridge", Checkbox).value, food=q("#mix-food", Checkbox).value)
+                               bridge=q("#mix-bridge", Tick).value, food=q("#mix-food", Tick).value)
 
     def compute(self) -> None:
         from ..jobs.miscible import miscible

@@ -19,13 +19,14 @@ SHOTS = [
     ("target", "target", ()),
     ("carriers", "carriers", ()),
     ("single", "carriers", ("ctrl+t", "ctrl+t", "ctrl+t")),
-    ("extraction", "carriers", ("f8",)),
-    ("dropped", "carriers", ("f8", "ctrl+t")),
+    ("extraction", "carriers", ("ctrl+g",)),
+    ("dropped", "carriers", ("ctrl+g", "ctrl+t")),
     ("map", "map", ()),
     ("map-sphere", "target", ("typed", "f3", "f4")),
     ("map-side", "map", ("v",)),
     ("emulsion", "emulsion", ()),
     ("limits", "limits", ()),
+    ("mixing", "mixing", ("ctrl+r",)),
     ("error", "target", ("smiles",)),
 ]
 

@@ -15,7 +15,8 @@ from rich.text import Text
 from textual.message import Message
 from textual.reactive import reactive
 from textual.widget import Widget
-from textual.widgets import Static
+from textual.content import Content
+from textual.widgets import Checkbox, Static
 
 # ----------------------------------------------------------------- screen strip
 
@@ -294,6 +295,16 @@ def _nice_step(raw: float) -> float:
 
 
 # ----------------------------------------------------------------- tables
+
+
+class Tick(Checkbox):
+    """A checkbox drawn ``[x]`` when ticked and ``[ ]`` when not (Textual's own shows an X in both
+    states, told apart by colour only)."""
+
+    @property
+    def _button(self) -> Content:
+        style = self.get_visual_style("toggle--button")
+        return Content.assemble(("[", style), ("x" if self.value else " ", style), ("]", style))
 
 
 def fill_table(grid, headers, rows) -> None:
