@@ -695,6 +695,68 @@ def _fh_parts(u, chi, n1, n2):
     return p, q, g, g1, g - p * g1, g2
 
 
+def _binodal_start(chi: float, n1: float, n2: float, chic: float) -> np.ndarray | None:
+    """A start ``(u_a, u_b)`` (logits of the two phases' phi) for the common-tangent Newton
+    iteration of :func:`binodal`, or None just above the critical point (no two-phase region).
+
+    Where an end sits deep in a phase the solubility is tiny, and the strong-segregation limit
+    gives the start: ln phi_a ~ N2/N1 - 1 - chi N2 and ln(1 - phi_b) ~ N1/N2 - 1 - chi N1.
+    Near the critical point the spinodal roots s1 < s2 bound the concave region; the double
+    tangent's slope m lies between g'(s2) and g'(s1), and for a trial slope each convex branch
+    touches the line g - m phi at its minimum: bisect on m until both minima are equal (a
+    vectorised stand-in for the convex hull).
+    """
+    if chi > 2.5 * chic:  # well split: the strong-segregation limit is a good start
+        x = np.array([n2 / n1 - 1.0 - chi * n2, -(n1 / n2 - 1.0 - chi * n1)], dtype=float)
+        x = np.minimum(x, [-0.5, np.inf])
+        return np.maximum(x, [-np.inf, 0.5])
+    qa = 2.0 * chi * n1 * n2
+    qb = n2 - n1 - qa
+    disc = qb * qb - 4.0 * qa * n1
+    if disc <= 0:
+        return None
+    s1 = (-qb - math.sqrt(disc)) / (2.0 * qa)
+    s2 = (-qb + math.sqrt(disc)) / (2.0 * qa)
+    reach = max(40.0, 1.5 * chi * max(n1, n2) + 10.0)
+    us1 = math.log(s1) - math.log1p(-s1)
+    us2 = math.log(s2) - math.log1p(-s2)
+    offsets = np.geomspace(1e-4 * (us2 - us1), reach, 400)  # fine next to the spinodal
+    ul = (us1 - offsets)[::-1]
+    ur = us2 + offsets
+    pl, _, gl, _, _, _ = _fh_parts(ul, chi, n1, n2)
+    pr, _, gr, _, _, _ = _fh_parts(ur, chi, n1, n2)
+    lo = float(_fh_parts(ur[0], chi, n1, n2)[3])
+    hi = float(_fh_parts(ul[-1], chi, n1, n2)[3])
+    for _ in range(32):  # a start for Newton: 2^-32 of the bracket is plenty
+        m = 0.5 * (lo + hi)
+        if (gl - m * pl).min() - (gr - m * pr).min() > 0:
+            hi = m
+        else:
+            lo = m
+    m = 0.5 * (lo + hi)
+    return np.array([ul[np.argmin(gl - m * pl)], ur[np.argmin(gr - m * pr)]], dtype=float)
+
+
+def _common_tangent(x: np.ndarray, chi: float, n1: float, n2: float) -> tuple[np.ndarray, bool]:
+    """Newton's method on the common tangent (equal slope and intercept of g at both phases), in
+    the logits ``x``; returns the polished ``x`` and whether it converged."""
+    for _ in range(100):
+        pa, qa, _, g1a, ha, g2a = _fh_parts(x[0], chi, n1, n2)
+        pb, qb, _, g1b, hb, g2b = _fh_parts(x[1], chi, n1, n2)
+        f = np.array([g1a - g1b, ha - hb])
+        sa, sb = pa * qa, pb * qb  # d phi / d u
+        jac = np.array([[g2a * sa, -g2b * sb], [-pa * g2a * sa, pb * g2b * sb]])
+        try:
+            step = np.linalg.solve(jac, -f)
+        except np.linalg.LinAlgError:
+            return x, False
+        step = np.clip(step, -2.0, 2.0)
+        x = x + step
+        if np.max(np.abs(step)) < 1e-11:
+            return x, True
+    return x, False
+
+
 def binodal(chi, n1=1.0, n2=1.0) -> Binodal:
     r"""Mutual solubilities of a Flory-Huggins binary by the common tangent.
 
@@ -745,68 +807,15 @@ def binodal(chi, n1=1.0, n2=1.0) -> Binodal:
     n1 = float(n1)
     n2 = float(n2)
     if not (math.isfinite(chi) and n1 > 0 and n2 > 0):
-        raise InputError(f"binodal: expected a finite chi and positive sizes, got chi={chi}, n1={n1}, n2={n2}")
+        raise InputError(f"expected a finite chi and positive sizes, got chi={chi}, n1={n1}, n2={n2}", param="chi")
     chic = 0.5 * (1.0 / math.sqrt(n1) + 1.0 / math.sqrt(n2)) ** 2
     nan = float("nan")
     if chi <= chic * (1 + 1e-9):
         return Binodal(chi, chic, False, nan, nan, True, "miscible in all proportions (chi <= chi_c)")
-    # lower convex hull of g on a uniform grid in phi: the hull edge that skips
-    # most grid points bridges the concave region; its ends approximate the
-    # binodal.  Where an end sits on the last grid point the solubility is below
-    # the grid, and the strong-segregation limit gives the starting point:
-    # ln phi_a ~ N2/N1 - 1 - chi N2 and ln(1 - phi_b) ~ N1/N2 - 1 - chi N1.
-    x = None
-    if chi > 2.5 * chic:  # well split: the strong-segregation limit is a good start
-        x = np.array([n2 / n1 - 1.0 - chi * n2, -(n1 / n2 - 1.0 - chi * n1)], dtype=float)
-        x = np.minimum(x, [-0.5, np.inf])
-        x = np.maximum(x, [-np.inf, 0.5])
-    else:
-        # near the critical point: the spinodal roots s1 < s2 bound the
-        # concave region; the double tangent's slope m lies between g'(s2)
-        # and g'(s1), and for a trial slope each convex branch touches the
-        # line g - m phi at its minimum.  Bisect on m until both minima are
-        # equal (a vectorised stand-in for the convex hull), then polish.
-        qa = 2.0 * chi * n1 * n2
-        qb = n2 - n1 - qa
-        disc = qb * qb - 4.0 * qa * n1
-        if disc <= 0:
-            return Binodal(chi, chic, True, nan, nan, False, "no two-phase region found (just above critical)")
-        s1 = (-qb - math.sqrt(disc)) / (2.0 * qa)
-        s2 = (-qb + math.sqrt(disc)) / (2.0 * qa)
-        reach = max(40.0, 1.5 * chi * max(n1, n2) + 10.0)
-        us1 = math.log(s1) - math.log1p(-s1)
-        us2 = math.log(s2) - math.log1p(-s2)
-        offsets = np.geomspace(1e-4 * (us2 - us1), reach, 400)  # fine next to the spinodal
-        ul = (us1 - offsets)[::-1]
-        ur = us2 + offsets
-        pl, _, gl, _, _, _ = _fh_parts(ul, chi, n1, n2)
-        pr, _, gr, _, _, _ = _fh_parts(ur, chi, n1, n2)
-        lo = float(_fh_parts(ur[0], chi, n1, n2)[3])
-        hi = float(_fh_parts(ul[-1], chi, n1, n2)[3])
-        for _ in range(32):  # a start for Newton: 2^-32 of the bracket is plenty
-            m = 0.5 * (lo + hi)
-            if (gl - m * pl).min() - (gr - m * pr).min() > 0:
-                hi = m
-            else:
-                lo = m
-        m = 0.5 * (lo + hi)
-        x = np.array([ul[np.argmin(gl - m * pl)], ur[np.argmin(gr - m * pr)]], dtype=float)
-    ok = False
-    for _ in range(100):
-        pa, qa, _, g1a, ha, g2a = _fh_parts(x[0], chi, n1, n2)
-        pb, qb, _, g1b, hb, g2b = _fh_parts(x[1], chi, n1, n2)
-        f = np.array([g1a - g1b, ha - hb])
-        sa, sb = pa * qa, pb * qb  # d phi / d u
-        jac = np.array([[g2a * sa, -g2b * sb], [-pa * g2a * sa, pb * g2b * sb]])
-        try:
-            step = np.linalg.solve(jac, -f)
-        except np.linalg.LinAlgError:
-            break
-        step = np.clip(step, -2.0, 2.0)
-        x = x + step
-        if np.max(np.abs(step)) < 1e-11:
-            ok = True
-            break
+    x = _binodal_start(chi, n1, n2, chic)
+    if x is None:
+        return Binodal(chi, chic, True, nan, nan, False, "no two-phase region found (just above critical)")
+    x, ok = _common_tangent(x, chi, n1, n2)
     pa = float(1.0 / (1.0 + np.exp(-x[0])))
     pb = float(1.0 / (1.0 + np.exp(-x[1])))
     if not ok or not (pb - pa > 1e-6):
