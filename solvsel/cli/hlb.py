@@ -73,8 +73,13 @@ def request_from_args(args):
         min_fraction=args.min_fraction, jurisdictions=given(args.jurisdiction, parse_names, "jurisdictions"),
         category=args.category, smiles=args.smiles, series=given(args.series, parse_names, "series"), n=args.n,
         span=given(args.span, parse_range, "span", "HLB"), batch_g=args.batch_g, emulsifier_pct=args.emulsifier_pct,
-        oil_pct=args.oil_pct, scores=given(args.scores, parse_amounts, "scores"), lower_is_better=args.lower_is_better,
+        oil_pct=args.oil_pct, scores=given(args.scores, parse_scores, "scores"), lower_is_better=args.lower_is_better,
     )
+
+
+def parse_scores(text: str, param: str):
+    """``HLB=SCORE`` pairs; a score may be negative (the user's own scale)."""
+    return parse_amounts(text, param, allow_negative=True)
 
 
 def run(args) -> int:

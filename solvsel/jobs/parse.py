@@ -99,10 +99,11 @@ def parse_hsp(text: str, param: str = "hsp", allow_r0: bool = True) -> tuple[flo
     return values
 
 
-def parse_amounts(text: str | None, param: str = "oil") -> list[tuple[str, float]]:
+def parse_amounts(text: str | None, param: str = "oil", allow_negative: bool = False) -> list[tuple[str, float]]:
     """Parse ``"d-limonene=70, medium-chain triglycerides=30"`` into ``(name, amount)`` pairs.
 
-    Amounts are plain numbers (a trailing ``%`` is allowed); they need not sum to 100.
+    Amounts are plain numbers (a trailing ``%`` is allowed); they need not sum to 100.  With
+    ``allow_negative`` a number may be below zero (scores on the user's own scale).
 
     >>> parse_amounts("d-limonene=70, medium-chain triglycerides=30%")
     [('d-limonene', 70.0), ('medium-chain triglycerides', 30.0)]
@@ -121,7 +122,7 @@ def parse_amounts(text: str | None, param: str = "oil") -> list[tuple[str, float
             value = float(amount.rstrip("%"))
         except ValueError:
             raise _fail(param, text, f"the amount of '{name}' must be a number, got '{amount}'", expected) from None
-        if not math.isfinite(value) or value < 0:
+        if not math.isfinite(value) or (value < 0 and not allow_negative):
             raise _fail(param, text, f"the amount of '{name}' must be zero or positive, got {amount}", expected)
         if not name:
             raise _fail(param, text, f"an amount ({amount}) has no name before '='", expected)
