@@ -17,7 +17,7 @@ from dataclasses import fields as dc_fields
 from typing import Any, Iterable, Mapping, Sequence, TypeVar
 
 from ..data.catalog import Catalog, load_catalog
-from ..errors import InputError, OutOfRangeError, UnknownNameError
+from ..errors import InputError, OutOfRangeError, SolvselError, UnknownNameError
 from ..rules.regulations import FOOD_JURISDICTIONS, resolve_category
 from ..science.target import Target, target_from_hsp, target_from_smiles, target_from_solute
 
@@ -217,12 +217,17 @@ def target_of(catalog: Catalog, *, target: Target | None = None, solute: str | N
                          expected="one of solute, hsp, smiles or target")
     if target is not None:
         return target
-    if solute is not None:
-        return target_from_solute(catalog, solute)
-    if hsp is not None:
-        return target_from_hsp(tuple(hsp))
-    if smiles is not None:
-        return target_from_smiles(smiles)
+    try:
+        if solute is not None:
+            return target_from_solute(catalog, solute)
+        if hsp is not None:
+            return target_from_hsp(tuple(hsp))
+        if smiles is not None:
+            return target_from_smiles(smiles)
+    except SolvselError as exc:  # name the request field the target came from
+        if exc.param is None:
+            exc.param = given[0]
+        raise
     if required:
         raise InputError("no target: give a solute of the tables, typed HSP (dD, dP, dH[, R0]) or a SMILES",
                          param="solute", expected="one of solute, hsp, smiles or target")
