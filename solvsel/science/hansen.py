@@ -545,6 +545,22 @@ GRID_STEPS = {2: 100, 3: 50, 4: 50}
 POLISH_STARTS = 2
 
 
+def _trial_compositions(m: int) -> np.ndarray:
+    """Trial phases of the tangent-plane test for ``m`` liquids: a grid of the composition
+    simplex and, next to each pure liquid, log-spaced traces (1e-9 to 0.1) of each other liquid
+    (where a poor solvent's small solubility lies)."""
+    grid = _simplex_grid(m, GRID_STEPS[min(m, 4)] if m <= 4 else 12)
+    edge = []
+    for i in range(m):
+        for j in range(m):
+            if i != j:
+                for t in np.logspace(-9, -1, 33):
+                    y = np.zeros(m)
+                    y[i], y[j] = 1.0 - t, t
+                    edge.append(y)
+    return np.vstack([grid, np.array(edge)])
+
+
 def mixture_stability(vm_cm3_mol, phi, chi, tol: float = 1e-7) -> MixtureStability:
     r"""Is a multicomponent Flory-Huggins mixture one phase at volume fractions ``phi``?
 
@@ -602,15 +618,14 @@ def mixture_stability(vm_cm3_mol, phi, chi, tol: float = 1e-7) -> MixtureStabili
     C = np.asarray(chi, dtype=float)
     n = v.size
     if n < 2 or x.shape != (n,) or C.shape != (n, n):
-        raise InputError(f"mixture_stability: expected n >= 2 molar volumes, n fractions and an n x n chi, got "
-                         f"{v.shape}, {x.shape}, {C.shape}")
+        raise InputError(f"expected n >= 2 molar volumes, n fractions and an n x n chi, got {v.shape}, {x.shape}, "
+                         f"{C.shape}", param="chi")
     if np.any(~(v > 0)) or np.any(x < 0) or abs(x.sum() - 1.0) > 1e-6 or not np.all(np.isfinite(C)):
-        raise InputError("mixture_stability: molar volumes must be positive, fractions >= 0 summing to 1, chi finite")
+        raise InputError("molar volumes must be positive, fractions >= 0 summing to 1, chi finite", param="phi")
     C = 0.5 * (C + C.T)
     np.fill_diagonal(C, 0.0)
     N = v / v.min()
-    # components absent from the blend do not take part
-    keep = x > 0
+    keep = x > 0  # components absent from the blend do not take part
     if keep.sum() < 2:
         return MixtureStability(tuple(float(t) for t in x), True, 0.0, tuple(float(t) for t in x))
     N, C, xs = N[keep], C[np.ix_(keep, keep)], x[keep] / x[keep].sum()
@@ -621,16 +636,7 @@ def mixture_stability(vm_cm3_mol, phi, chi, tol: float = 1e-7) -> MixtureStabili
     def tpd(Y):
         return _fh_g(Y, N, C) - g0 - (Y - xs) @ mu
 
-    grid = _simplex_grid(m, GRID_STEPS[min(m, 4)] if m <= 4 else 12)
-    edge = []
-    for i in range(m):
-        for j in range(m):
-            if i != j:
-                for t in np.logspace(-9, -1, 33):
-                    y = np.zeros(m)
-                    y[i], y[j] = 1.0 - t, t
-                    edge.append(y)
-    Y = np.vstack([grid, np.array(edge)])
+    Y = _trial_compositions(m)
     D = tpd(Y)
     order = np.argsort(D)
     best_d, best_y = float(D[order[0]]), Y[order[0]]
@@ -931,6 +937,25 @@ class SolubilityEstimate:
         return asdict(self)
 
 
+def _first_root(f, lo: float, hi: float, n: int = 241) -> float:
+    """The first point where the vectorised ``f`` turns from negative to zero or positive on
+    ``lo..hi``: a scan of ``n`` points, then bisection (no scipy import: keeps the CLI fast).
+    ``lo`` when ``f`` is already non-negative there, ``hi`` when it never turns."""
+    grid = np.linspace(lo, hi, n)
+    idx = np.nonzero(f(grid) >= 0)[0]
+    j = int(idx[0]) if idx.size else len(grid) - 1
+    if j == 0:
+        return float(grid[0])
+    a, b = float(grid[j - 1]), float(grid[j])
+    for _ in range(60):
+        mid = 0.5 * (a + b)
+        if f(mid) >= 0:
+            b = mid
+        else:
+            a = mid
+    return 0.5 * (a + b)
+
+
 def solid_solubility(
     solute_hsp,
     vm2_cm3_mol,
@@ -1009,24 +1034,8 @@ def solid_solubility(
     def f(lnx):
         return lnx + ln_gamma_hansen(np.exp(lnx), solute_hsp, vm2_cm3_mol, solvent_hsp, vm1_cm3_mol, temp_C, combinatorial) - lnxid
 
-    # f -> -inf as x -> 0 and f = -ln x_id >= 0 at x = 1: scan (vectorised) for
-    # the first sign change, then bisect (no scipy import: keeps the CLI fast)
-    grid = np.linspace(-60.0, 0.0, 241)
-    vals = f(grid)
-    idx = np.nonzero(vals >= 0)[0]
-    j = int(idx[0]) if idx.size else len(grid) - 1
-    if j == 0:
-        lnx = float(grid[0])
-    else:
-        lo, hi = float(grid[j - 1]), float(grid[j])
-        for _ in range(60):
-            mid = 0.5 * (lo + hi)
-            if f(mid) >= 0:
-                hi = mid
-            else:
-                lo = mid
-        lnx = 0.5 * (lo + hi)
-    x = math.exp(lnx)
+    # f -> -inf as x -> 0 and f = -ln x_id >= 0 at x = 1
+    x = math.exp(_first_root(f, -60.0, 0.0))
     gamma = xid / x
     m2 = x * mw2_g_mol
     m1 = (1 - x) * mw1_g_mol
