@@ -224,6 +224,24 @@ def _solve_face(pat, q, lo_r, hi_r):
     return x, y, ok
 
 
+def _batch(hsp, target, lower, upper):
+    """The checked arrays of a batch: HSP ``(n, k, 3)``, target ``(n, 3)``, bounds ``(n, k)``."""
+    P = as_hsp(hsp, "hsp")
+    if P.ndim == 2:
+        P = P[None]
+    if P.ndim != 3:
+        raise InputError(f"expected shape (n, k, 3) or (k, 3), got {np.shape(hsp)}", param="hsp")
+    n, k, _ = P.shape
+    if not 1 <= k <= MAX_COMPONENTS:
+        raise InputError(f"blends of 1 to {MAX_COMPONENTS} liquids only, got {k}", param="hsp")
+    T = np.broadcast_to(as_hsp(target, "target"), (n, 3))
+    lo = _broadcast_bounds(lower, n, k, 0.0, "lower")
+    hi = _broadcast_bounds(upper, n, k, 1.0, "upper")
+    if np.any(lo < -_FEAS_TOL) or np.any(hi > 1 + _FEAS_TOL) or np.any(lo > hi + _FEAS_TOL):
+        raise InputError("fraction bounds must satisfy 0 <= lower <= upper <= 1", param="lower")
+    return P, T, lo, hi
+
+
 def best_fractions(hsp, target, lower=None, upper=None) -> FractionBatch:
     r"""Exact volume fractions minimising Ra to a target, for a batch of combinations.
 
@@ -265,19 +283,8 @@ def best_fractions(hsp, target, lower=None, upper=None) -> FractionBatch:
     >>> np.round(res.fractions, 6).tolist()
     [[0.5, 0.5]]
     """
-    P = as_hsp(hsp, "hsp")
-    if P.ndim == 2:
-        P = P[None]
-    if P.ndim != 3:
-        raise InputError(f"expected shape (n, k, 3) or (k, 3), got {np.shape(hsp)}", param="hsp")
+    P, T, lo, hi = _batch(hsp, target, lower, upper)
     n, k, _ = P.shape
-    if not 1 <= k <= MAX_COMPONENTS:
-        raise InputError(f"blends of 1 to {MAX_COMPONENTS} liquids only, got {k}", param="hsp")
-    T = np.broadcast_to(as_hsp(target, "target"), (n, 3))
-    lo = _broadcast_bounds(lower, n, k, 0.0, "lower")
-    hi = _broadcast_bounds(upper, n, k, 1.0, "upper")
-    if np.any(lo < -_FEAS_TOL) or np.any(hi > 1 + _FEAS_TOL) or np.any(lo > hi + _FEAS_TOL):
-        raise InputError("fraction bounds must satisfy 0 <= lower <= upper <= 1", param="lower")
 
     # Scaled coordinates centred on the target (the objective is |y|^2), laid
     # out coordinate-major: Qc[i][c] is coordinate c of liquid i over the batch.
