@@ -35,12 +35,14 @@ References
 
 from __future__ import annotations
 
+import csv
 import difflib
 import math
 import re
 from dataclasses import asdict, dataclass, field
-from typing import Any, Mapping, Sequence
+from typing import Any, Iterable, Mapping, Sequence
 
+from ..data.catalog import TABLES_DIR
 from ..data.catalog import number_or_none as _number
 from ..errors import InputError, MissingDataError, TableError, UnknownNameError
 
@@ -48,10 +50,17 @@ from ..errors import InputError, MissingDataError, TableError, UnknownNameError
 __all__ = [
     "FOOD_JURISDICTIONS",
     "JURISDICTIONS",
+    "NOT_FOR_PURPOSE",
     "Limit",
+    "Purpose",
     "FoodCategory",
     "FoodStatus",
     "limits",
+    "jurisdictions",
+    "food_jurisdictions",
+    "check_food_jurisdiction",
+    "purposes",
+    "check_purpose",
     "food_categories",
     "resolve_category",
     "category_lineage",
@@ -65,10 +74,33 @@ __all__ = [
     "claim_rules",
 ]
 
-#: Jurisdictions in tables/regulations.csv (ICH is a pharmaceutical guideline, shown as a reference).
-JURISDICTIONS = ("EU", "US", "ICH")
-#: Jurisdictions with food law in the table.
-FOOD_JURISDICTIONS = ("EU", "US")
+#: Uses of a rule that make its jurisdiction food law.  A jurisdiction whose rows have only other
+#: uses (ICH Q3C: "residual", a pharmaceutical guideline) is a reference shown beside food law.
+FOOD_RULE_USES = ("carrier", "extraction", "weighting", "emulsifier")
+
+
+def _jurisdictions_of(pairs: Iterable[tuple[str, str]]) -> tuple[tuple[str, ...], tuple[str, ...]]:
+    """(every jurisdiction, the food-law ones), sorted, from ``(jurisdiction, use)`` of the rows."""
+    every, food = set(), set()
+    for jur, use in pairs:
+        if jur:
+            every.add(jur)
+            if use in FOOD_RULE_USES:
+                food.add(jur)
+    return tuple(sorted(every)), tuple(sorted(food))
+
+
+def _bundled_jurisdictions() -> tuple[tuple[str, ...], tuple[str, ...]]:
+    """The jurisdictions of the bundled ``tables/regulations.csv`` (read with the csv module: no pandas at import)."""
+    with open(TABLES_DIR / "regulations.csv", encoding="utf-8-sig", newline="") as fh:
+        return _jurisdictions_of(((r.get("jurisdiction") or "").strip(), (r.get("use") or "").strip())
+                                 for r in csv.DictReader(fh))
+
+
+#: Jurisdictions of the bundled tables/regulations.csv, and those of them with food law (rows for a
+#: food use; ICH is a pharmaceutical guideline shown as a reference).  A catalog of other tables
+#: has its own: :func:`jurisdictions`, :func:`food_jurisdictions`.
+JURISDICTIONS, FOOD_JURISDICTIONS = _bundled_jurisdictions()
 
 
 #: Uses the food-status check knows.
@@ -83,7 +115,23 @@ POSITIVE_LISTS = {
 #: Rule uses that set limits in the food as consumed (carriers, additives).
 FINISHED_FOOD_USES = ("carrier", "weighting", "emulsifier")
 
-_STATUS_ORDER = {"permitted": 3, "conditional": 2, "no data": 1, "not permitted": 0, "bench only": -1}
+#: The status of a liquid whose rules allow it only for other purposes than the one asked for.
+NOT_FOR_PURPOSE = "not allowed for this purpose"
+
+#: Purpose id of a row that authorises every purpose.
+ALL_PURPOSES = "all"
+
+_STATUS_ORDER = {"permitted": 3, "conditional": 2, "no data": 1, NOT_FOR_PURPOSE: 0.5, "not permitted": 0,
+                 "bench only": -1}
+
+#: Where a limit is measured (the ``applies_to`` column), in words.
+MEASURED_IN = {
+    "finished food": "in the food as consumed",
+    "food residue": "residue in the food as consumed",
+    "flavouring residue": "residue in the flavouring",
+    "extract residue": "residue in the extract",
+    "status": "",
+}
 
 
 # ----------------------------------------------------------------------------- tables
@@ -109,7 +157,7 @@ def _norm(s: str) -> str:
     return re.sub(r"[\s_]+", " ", str(s).strip().lower())
 
 
-def _check_jurisdiction(jurisdiction, allowed=JURISDICTIONS) -> str | None:
+def _check_jurisdiction(jurisdiction, allowed: Sequence[str]) -> str | None:
     """``jurisdiction`` in upper case if it is one of ``allowed`` (None stays None)."""
     if jurisdiction is None:
         return None
@@ -132,7 +180,9 @@ class Limit:
     ``limit`` is in ``unit`` (mg/kg, ppm = mg/kg, %w/w, or mg/L); use
     :attr:`basis` and :attr:`limit_mg` for the comparison basis.  ``flagged``
     is true when the row is not confirmed against the official text
-    (confidence "secondary, verify" or "from memory").
+    (confidence "secondary, verify" or "from memory").  ``purposes`` are the
+    ids of tables/purposes.csv the row authorises the substance for ("all":
+    every purpose; none for reference rows and rows that permit nothing).
     """
 
     substance: str
@@ -153,6 +203,7 @@ class Limit:
     source: tuple[str, ...]
     note: str
     origin: str = "bundled"
+    purposes: tuple[str, ...] = ()
 
     @property
     def basis(self) -> str | None:
@@ -174,22 +225,50 @@ class Limit:
     def in_force(self) -> bool:
         return self.status != "revoked"
 
+    @property
+    def measured_in(self) -> str:
+        """Where the limit is measured, in words ("residue in the extract"; empty for a status row)."""
+        return MEASURED_IN.get(self.applies_to, self.applies_to)
+
+    def authorises(self, purpose: str) -> bool:
+        """True when the row authorises the substance for ``purpose`` (or for every purpose)."""
+        return self.status != "not permitted" and (ALL_PURPOSES in self.purposes or purpose in self.purposes)
+
     def describe(self) -> str:
-        """One line: rule, condition, limit and how far it is confirmed."""
+        """One line: rule, limit, where it is measured, the condition, the purposes and how far it is confirmed."""
         if self.limit is not None:
             value = f"{self.limit:g} {self.unit}"
         else:
             value = self.status
         where = self.food_category if self.food_category != "food" else "all foods"
         flag = "" if not self.flagged else f" [{self.confidence}]"
-        return f"{self.jurisdiction} {self.rule}: {value} ({self.applies_to}, {where}; {self.condition}){flag}"
+        place = ", ".join(p for p in (self.measured_in, where) if p)
+        purposes = f"; for {purposes_text(self.purposes)}" if self.purposes else ""
+        return f"{self.jurisdiction} {self.rule}: {value} ({place}; {self.condition}{purposes}){flag}"
 
     def to_dict(self) -> dict[str, Any]:
         d = asdict(self)
         d["source"] = list(self.source)
+        d["purposes"] = list(self.purposes)
         d["basis"] = self.basis
         d["flagged"] = self.flagged
+        d["measured_in"] = self.measured_in
         return d
+
+
+def purposes_text(ids: Sequence[str]) -> str:
+    """Purpose ids as words: "any purpose" for "all", else the ids joined ("no purpose recorded" for none).
+
+    >>> purposes_text(("all",)), purposes_text(("fats_oils", "natural_flavouring")), purposes_text(())
+    ('any purpose', 'fats_oils, natural_flavouring', 'no purpose recorded')
+    """
+    if ALL_PURPOSES in ids:
+        return "any purpose"
+    return ", ".join(ids) if ids else "no purpose recorded"
+
+
+def _split(v) -> tuple[str, ...]:
+    return tuple(x.strip() for x in _text(v).split(";") if x.strip())
 
 
 def _limit_from_row(r: Mapping[str, Any]) -> Limit:
@@ -209,9 +288,10 @@ def _limit_from_row(r: Mapping[str, Any]) -> Limit:
         group=_text(r.get("group")),
         checked_on=_text(r.get("checked_on")),
         confidence=_text(r.get("confidence")),
-        source=tuple(s for s in _text(r.get("source")).split(";") if s),
+        source=_split(r.get("source")),
         note=_text(r.get("note")),
         origin=_text(r.get("origin")) or "bundled",
+        purposes=_split(r.get("purposes")),
     )
 
 
@@ -227,6 +307,86 @@ def _all_limits(cat) -> tuple[Limit, ...]:
         df = cat.table("regulations")
         _ROWS_CACHE[key] = tuple(_limit_from_row(r) for r in df.to_dict("records"))
     return _ROWS_CACHE[key]
+
+
+def jurisdictions(cat=None) -> tuple[str, ...]:
+    """Every jurisdiction of the catalog's regulations table, sorted (the bundled: EU, ICH, US)."""
+    return _jurisdictions_of((r.jurisdiction, r.use) for r in _all_limits(cat))[0]
+
+
+def food_jurisdictions(cat=None) -> tuple[str, ...]:
+    """The jurisdictions of the catalog's regulations table with food law (a row for a food use).
+
+    A jurisdiction is added by its rows in tables/regulations.csv alone:
+
+    >>> food_jurisdictions()
+    ('EU', 'US')
+    """
+    return _jurisdictions_of((r.jurisdiction, r.use) for r in _all_limits(cat))[1]
+
+
+def check_food_jurisdiction(cat, jurisdiction, param: str = "jurisdiction", required: bool = False) -> str | None:
+    """``jurisdiction`` (upper case) if the catalog has food law for it; None stays None unless ``required``."""
+    allowed = food_jurisdictions(cat)
+    if jurisdiction is None and required:
+        raise InputError(f"give one of {', '.join(allowed)} (limits differ by jurisdiction)", param=param,
+                         expected="one of " + ", ".join(allowed))
+    try:
+        return _check_jurisdiction(jurisdiction, allowed)
+    except InputError as exc:
+        exc.param = param
+        raise
+
+
+# ----------------------------------------------------------------------------- purposes
+
+
+@dataclass(frozen=True)
+class Purpose:
+    """A purpose of the product (tables/purposes.csv): what the rules authorise a substance for."""
+
+    id: str
+    label: str
+    description: str
+    source: tuple[str, ...]
+
+    def to_dict(self) -> dict[str, Any]:
+        return {"id": self.id, "label": self.label, "description": self.description, "source": list(self.source)}
+
+
+_PURPOSES_CACHE: dict[int, dict[str, Purpose]] = {}
+
+
+def purposes(cat=None) -> dict[str, Purpose]:
+    """The purposes of the catalog's tables/purposes.csv by id, in table order (none without that table).
+
+    >>> purposes()["natural_flavouring"].label
+    'flavouring from natural source materials'
+    """
+    cat = _catalog(cat)
+    if id(cat) not in _PURPOSES_CACHE:
+        try:
+            rows = cat.table("purposes").to_dict("records")
+        except UnknownNameError:  # a tables folder without purposes: no purpose can be asked for
+            rows = []
+        _PURPOSES_CACHE[id(cat)] = {
+            _text(r["id"]): Purpose(_text(r["id"]), _text(r.get("label")), _text(r.get("description")),
+                                    _split(r.get("source")))
+            for r in rows
+        }
+    return dict(_PURPOSES_CACHE[id(cat)])
+
+
+def check_purpose(cat, purpose, param: str = "purpose") -> str | None:
+    """``purpose`` if it is an id of the catalog's purposes (case and spacing forgiven); None stays None."""
+    if purpose is None:
+        return None
+    known = purposes(cat)
+    key = _text(purpose).lower().replace(" ", "_").replace("-", "_")
+    if key in known:
+        return key
+    expected = "one of " + ", ".join(known) if known else "a purpose of tables/purposes.csv (none in these tables)"
+    raise InputError(f"expected {expected}, got '{purpose}'", param=param, value=purpose, expected=expected)
 
 
 # ----------------------------------------------------------------------------- food categories
@@ -342,6 +502,7 @@ def limits(
     applies_to: str | Sequence[str] | None = None,
     use: str | Sequence[str] | None = None,
     include_revoked: bool = False,
+    purpose: str | None = None,
 ) -> list[Limit]:
     """Rows of tables/regulations.csv that apply, as :class:`Limit` records.
 
@@ -354,7 +515,8 @@ def limits(
     substance : str, optional
         Name of the substance; matched against the table's names and, through
         the catalog, against the names and synonyms of the other tables.
-    jurisdiction : {"EU", "US", "ICH"}, optional
+    jurisdiction : str, optional
+        One of :func:`jurisdictions` (the bundled: EU, US and ICH).
     category : str, optional
         Food category of tables/food_categories.csv.  A row for a parent
         category applies to its children, but where the same rule has a row
@@ -365,6 +527,9 @@ def limits(
         Filters on those columns.
     include_revoked : bool
         Also return rows whose status is "revoked" (history, never checked).
+    purpose : str, optional
+        A purpose of tables/purposes.csv: only the rows that authorise it (or
+        every purpose), and the rows that permit nothing ("not permitted").
 
     Examples
     --------
@@ -375,8 +540,11 @@ def limits(
     [('21 CFR 184.1666', 2.0, '%w/w')]
     """
     cat = _catalog(cat)
-    jur = _check_jurisdiction(jurisdiction)
+    jur = _check_jurisdiction(jurisdiction, jurisdictions(cat))
     rows = [r for r in _all_limits(cat) if include_revoked or r.in_force]
+    if purpose is not None:
+        purpose = check_purpose(cat, purpose)
+        rows = [r for r in rows if r.status == "not permitted" or r.authorises(purpose)]
     if cas is None and substance is not None:
         # the rule's own name, or any name / synonym the other tables know for its CAS
         key = _norm(substance)
@@ -430,14 +598,18 @@ def _ethanol_strength(name: str) -> float | None:
 
 @dataclass(frozen=True)
 class FoodStatus:
-    """Food-law status of one liquid for one use.
+    """Food-law status of one liquid for one use (and, when given, one purpose of the product).
 
     ``status`` is "permitted" (good manufacturing practice, no number),
     "conditional" (limits or conditions apply: see ``conditions``),
-    "not permitted", "no data" (the table has no rule: never a permission) or,
-    for ``use="bench"``, "bench only".  With ``jurisdiction=None`` both EU and
-    US are evaluated: ``status`` is the most permissive of the two and
-    ``per_jurisdiction`` holds each.
+    "not permitted", "not allowed for this purpose" (its rules allow it only for
+    other purposes, named in ``message``), "no data" (the table has no rule:
+    never a permission) or, for ``use="bench"``, "bench only".  ``purposes``
+    lists the purposes of tables/purposes.csv its rules allow it for ("all":
+    every purpose) in the jurisdictions judged; without a ``purpose`` an allowed
+    liquid is shown with them (:attr:`status_text`), never as a bare "allowed".  With ``jurisdiction=None``
+    every food-law jurisdiction is evaluated: ``status`` is the most permissive
+    and ``per_jurisdiction`` holds each.
     """
 
     name: str
@@ -450,18 +622,28 @@ class FoodStatus:
     message: str
     flagged: bool
     per_jurisdiction: dict = field(default_factory=dict)
+    purpose: str | None = None
+    purposes: tuple[str, ...] = ()
 
     @property
     def allowed(self) -> bool:
         """True for "permitted" and "conditional" (check the conditions)."""
         return self.status in ("permitted", "conditional")
 
+    @property
+    def status_text(self) -> str:
+        """The status with what it is for: "conditional for natural_flavouring", "permitted for any purpose"."""
+        if not self.allowed:
+            return self.status
+        return f"{self.status} for {self.purpose or purposes_text(self.purposes)}"
+
     def to_dict(self) -> dict[str, Any]:
         return {
             "name": self.name, "cas": self.cas, "use": self.use, "jurisdiction": self.jurisdiction,
             "status": self.status, "allowed": self.allowed, "conditions": list(self.conditions),
             "rules": [r.to_dict() for r in self.rules], "message": self.message, "flagged": self.flagged,
-            "per_jurisdiction": dict(self.per_jurisdiction),
+            "per_jurisdiction": dict(self.per_jurisdiction), "purpose": self.purpose,
+            "purposes": list(self.purposes), "status_text": self.status_text,
         }
 
 
@@ -476,12 +658,35 @@ def _constituents(solvent) -> list[tuple[str, str]]:
     return []
 
 
-def _status_one(cat, cas: str, name: str, use: str, jur: str, category: str | None) -> tuple[str, list[str], list[Limit], str]:
-    rows = limits(cat, cas=cas, jurisdiction=jur, use=use, category=category)
-    if not rows:
-        if (jur, use) in POSITIVE_LISTS:
-            return ("not permitted", [], [], f"{name} is not in {POSITIVE_LISTS[(jur, use)]} as bundled; verify")
-        return ("no data", [], [], f"no {jur} rule for {name} as {use} in the bundled table (that is not a permission)")
+def _purposes_of(rows: Sequence[Limit]) -> tuple[str, ...]:
+    """The purposes the rows authorise, in order ("all" alone when one of them authorises every purpose)."""
+    ids = tuple(dict.fromkeys(p for r in rows if r.status != "not permitted" for p in r.purposes))
+    return (ALL_PURPOSES,) if ALL_PURPOSES in ids else ids
+
+
+def _meet(a: tuple[str, ...] | None, b: tuple[str, ...]) -> tuple[str, ...]:
+    """The purposes both allow (a mixture is allowed for what each of its parts is allowed for)."""
+    if a is None or ALL_PURPOSES in a:
+        return b
+    return a if ALL_PURPOSES in b else tuple(p for p in a if p in b)
+
+
+def _other_purposes(name: str, use: str, jur: str, purpose: str, rows: Sequence[Limit]) -> tuple[str, str]:
+    """(status, message) of a liquid whose rules allow none of them for ``purpose``: each rule named
+    with the purposes it does allow; rules that name no purpose are no data."""
+    by_rule: dict[str, dict] = {}
+    for r in rows:
+        if r.purposes and r.status != "not permitted":
+            by_rule.setdefault(r.rule, {}).update(dict.fromkeys(r.purposes))
+    if not by_rule:
+        return "no data", (f"the {jur} rules for {name} as {use} in the bundled table name no purpose, so none is "
+                           f"known to allow {purpose} (that is not a permission)")
+    others = "; ".join(f"{rule} allows it for {', '.join(ids)} only" for rule, ids in by_rule.items())
+    return NOT_FOR_PURPOSE, f"{name}: not allowed for {purpose} as {use} in {jur}; {others}"
+
+
+def _verdict(name: str, use: str, jur: str, rows: Sequence[Limit], specific: bool) -> tuple[str, list[str], str]:
+    """(status, conditions, message) from the rows that apply: a ban, limits, or good manufacturing practice."""
     conds, banned, gmp, limited = [], [], [], []
     for r in rows:
         if r.status == "not permitted":
@@ -493,16 +698,45 @@ def _status_one(cat, cas: str, name: str, use: str, jur: str, category: str | No
             gmp.append(r)
             if r.condition:
                 conds.append(r.describe())
-    specific = category is not None
     if banned and (specific or not (limited or gmp)):
-        return ("not permitted", [r.describe() for r in banned], rows, f"{name}: not permitted as {use} in {jur}")
+        return "not permitted", [r.describe() for r in banned], f"{name}: not permitted as {use} in {jur}"
     if limited or (banned and not specific):
-        return ("conditional", conds + [r.describe() for r in banned], rows, f"{name}: {use} in {jur} under conditions")
-    return ("permitted", conds, rows, f"{name}: {use} in {jur} under good manufacturing practice")
+        return "conditional", conds + [r.describe() for r in banned], f"{name}: {use} in {jur} under conditions"
+    return "permitted", conds, f"{name}: {use} in {jur} under good manufacturing practice"
 
 
-def food_status(cat, solvent, use: str | None = None, jurisdiction: str | None = None, category: str | None = None) -> FoodStatus:
-    """Food-law status of a liquid for a use, with the rules that apply.
+@dataclass(frozen=True)
+class _One:
+    """The status of one substance in one jurisdiction."""
+
+    status: str
+    conditions: tuple[str, ...]
+    rows: tuple[Limit, ...]
+    message: str
+    purposes: tuple[str, ...]
+
+
+def _status_one(cat, cas: str, name: str, use: str, jur: str, category: str | None, purpose: str | None) -> _One:
+    rows = tuple(limits(cat, cas=cas, jurisdiction=jur, use=use, category=category))
+    if not rows:
+        if (jur, use) in POSITIVE_LISTS:
+            return _One("not permitted", (), (), f"{name} is not in {POSITIVE_LISTS[(jur, use)]} as bundled; verify", ())
+        return _One("no data", (), (), f"no {jur} rule for {name} as {use} in the bundled table (that is not a permission)",
+                    ())
+    ids = _purposes_of(rows)
+    judged = rows if purpose is None else tuple(r for r in rows if r.status == "not permitted" or r.authorises(purpose))
+    if not judged:
+        status, message = _other_purposes(name, use, jur, purpose, rows)
+        return _One(status, (), rows, message, ids)
+    status, conds, message = _verdict(name, use, jur, judged, category is not None)
+    if status in ("permitted", "conditional"):
+        message += f", for {purpose or purposes_text(ids)}"
+    return _One(status, tuple(conds), rows, message, ids)
+
+
+def food_status(cat, solvent, use: str | None = None, jurisdiction: str | None = None, category: str | None = None,
+                purpose: str | None = None) -> FoodStatus:
+    """Food-law status of a liquid for a use (and a purpose of the product), with the rules that apply.
 
     Parameters
     ----------
@@ -511,36 +745,47 @@ def food_status(cat, solvent, use: str | None = None, jurisdiction: str | None =
         A catalog record (needs ``name`` and ``cas``) or a name / CAS to look up.
     use : {"carrier", "extraction", "bench"}
         Flavour carrier (default), extraction solvent, or bench test (not for food).
-    jurisdiction : {"EU", "US"} or None
-        None evaluates both and reports the most permissive status, with each
-        one in ``per_jurisdiction``.
+    jurisdiction : str or None
+        A food-law jurisdiction of the tables (:func:`food_jurisdictions`: EU, US);
+        None evaluates every one and reports the most permissive status, with
+        each one in ``per_jurisdiction``.
     category : str, optional
         Food category; restricts conditional rules to the ones that apply there.
+    purpose : str, optional
+        What the product is (an id of tables/purposes.csv, e.g. "food_ingredient"):
+        the liquid is allowed only where a rule authorises that purpose (or every
+        purpose); otherwise its status is "not allowed for this purpose" and the
+        message names the rules that allow it for other purposes.  Without a
+        purpose, ``purposes`` lists what its rules allow it for.
 
     Notes
     -----
     For the rank and blend commands: keep a liquid when ``status.allowed``,
-    show ``status.conditions`` beside it (a conditional carrier has a dose
-    limit: run :func:`carrier_dose_check` at the intended dose), and never
-    treat "no data" as allowed.  A mixture row of the solvents table without
-    CAS (ethanol-water strengths) gets the worst status of its constituents.
+    show ``status.status_text`` and ``status.conditions`` beside it (a
+    conditional carrier has a dose limit: run :func:`carrier_dose_check` at the
+    intended dose), and never treat "no data" as allowed.  A mixture row of the
+    solvents table without CAS (ethanol-water strengths) gets the worst status
+    of its constituents, and the purposes all of them are allowed for.
 
     Examples
     --------
-    Ethanol is a GMP extraction solvent under Directive 2009/32/EC Annex I Part I;
-    n-hexane is conditional (residue limits by use, Part II / III).
+    Ethanol is a GMP extraction solvent for any purpose under Directive 2009/32/EC
+    Annex I Part I; 1-butanol only for flavourings from natural source materials
+    (Part III), so not for a food ingredient.
 
-    >>> food_status(None, "ethanol", use="extraction", jurisdiction="EU").status
-    'permitted'
-    >>> food_status(None, "n-hexane", use="extraction", jurisdiction="EU").status
-    'conditional'
+    >>> food_status(None, "ethanol", use="extraction", jurisdiction="EU").status_text
+    'permitted for any purpose'
+    >>> st = food_status(None, "1-butanol", use="extraction", jurisdiction="EU", purpose="food_ingredient")
+    >>> st.status, st.message.split("; ")[1]
+    ('not allowed for this purpose', 'Dir. 2009/32/EC Annex I Part III allows it for natural_flavouring only')
     """
     cat = _catalog(cat)
     use = use or "carrier"
     if use not in USES:
         raise InputError(f"expected one of {', '.join(USES)}, got '{use}'", param="use", value=use,
                          expected="one of " + ", ".join(USES))
-    jur = _check_jurisdiction(jurisdiction, FOOD_JURISDICTIONS)
+    jur = check_food_jurisdiction(cat, jurisdiction)
+    purpose = check_purpose(cat, purpose)
     if isinstance(solvent, str):
         solvent = cat.solvent(solvent)
     name = _text(_get(solvent, "name"))
@@ -548,38 +793,48 @@ def food_status(cat, solvent, use: str | None = None, jurisdiction: str | None =
     if category is not None:
         resolve_category(cat, category)
     if use == "bench":
-        return FoodStatus(name, cas, use, jur, "bench only", (), (), f"{name}: bench tests only, not a food use", False)
+        return FoodStatus(name, cas, use, jur, "bench only", (), (), f"{name}: bench tests only, not a food use", False,
+                          purpose=purpose)
     parts = _constituents(solvent)
     if not parts:
         return FoodStatus(
             name, cas, use, jur, "no data", (), (),
             f"{name} has no CAS number and is not a known mixture: no rule can be looked up (not a permission)", False,
+            purpose=purpose,
         )
-    jurs = (jur,) if jur else FOOD_JURISDICTIONS
+    return _combined(cat, name, cas, use, jur, category, purpose, parts)
+
+
+def _combined(cat, name: str, cas: str, use: str, jur: str | None, category: str | None, purpose: str | None,
+              parts: Sequence[tuple[str, str]]) -> FoodStatus:
+    """The status of a liquid from those of its constituents (the worst) in each jurisdiction (the most
+    permissive when none is given)."""
+    jurs = (jur,) if jur else food_jurisdictions(cat)
     per: dict[str, str] = {}
-    all_rows: list[Limit] = []
-    all_conds: list[str] = []
+    rows: list[Limit] = []
+    conds: list[str] = []
     msgs: list[str] = []
+    allowed_for: dict[str, None] = {}
     for j in jurs:
-        worst = None
+        worst, ids = None, None
         for pcas, pname in parts:
-            st, conds, rows, msg = _status_one(cat, pcas, pname, use, j, category)
-            all_rows += rows
-            all_conds += conds
-            msgs.append(msg)
-            if worst is None or _STATUS_ORDER[st] < _STATUS_ORDER[worst]:
-                worst = st
+            one = _status_one(cat, pcas, pname, use, j, category, purpose)
+            rows += one.rows
+            conds += one.conditions
+            msgs.append(one.message)
+            ids = _meet(ids, one.purposes)
+            if worst is None or _STATUS_ORDER[one.status] < _STATUS_ORDER[worst]:
+                worst = one.status
         per[j] = worst
-    if jur:
-        status = per[jur]
-    else:
-        status = max(per.values(), key=lambda s: _STATUS_ORDER[s])
-    rows_t = tuple(dict.fromkeys(all_rows))
-    flagged = any(r.flagged for r in rows_t)
+        allowed_for.update(dict.fromkeys(ids or ()))
+    status = per[jur] if jur else max(per.values(), key=lambda s: _STATUS_ORDER[s])
+    rows_t = tuple(dict.fromkeys(rows))
     message = "; ".join(dict.fromkeys(msgs))
     if not jur:
         message = ", ".join(f"{j}: {s}" for j, s in per.items()) + " — " + message
-    return FoodStatus(name, cas, use, jur, status, tuple(dict.fromkeys(all_conds)), rows_t, message, flagged, per)
+    ids = (ALL_PURPOSES,) if ALL_PURPOSES in allowed_for else tuple(allowed_for)
+    return FoodStatus(name, cas, use, jur, status, tuple(dict.fromkeys(conds)), rows_t, message,
+                      any(r.flagged for r in rows_t), per, purpose, ids)
 
 
 # ----------------------------------------------------------------------------- dose checks
@@ -617,6 +872,8 @@ class LimitCheck:
     checked_on: str
     source: tuple[str, ...]
     note: str
+    purposes: tuple[str, ...] = ()
+    measured_in: str = ""
 
     @property
     def flagged(self) -> bool:
@@ -624,7 +881,7 @@ class LimitCheck:
 
     def to_dict(self) -> dict[str, Any]:
         d = asdict(self)
-        for k in ("members", "cas", "source"):
+        for k in ("members", "cas", "source", "purposes"):
             d[k] = list(d[k])
         d["flagged"] = self.flagged
         d["checked_on"] = self.checked_on or None
@@ -635,9 +892,13 @@ class LimitCheck:
 class ResidueCheck:
     """A measured solvent residue in the formula (extract) against one rule.
 
-    ``level`` is in ``unit``: the residue in the food (food residue rows) or in
-    the extract (extract residue rows).  ``tolerated_ppm`` is the residue in the
-    extract that the rule would tolerate at this dose and chain.
+    ``level`` is in ``unit``, where the rule measures it (``measured_in``): the
+    residue in the food as consumed (food residue rows), or in the formula
+    itself (extract and flavouring residue rows).  ``tolerated_ppm`` is the
+    residue in the formula that the rule would tolerate at this dose and chain.
+    ``purposes`` are those the rule authorises the solvent for; a solvent whose
+    rules allow it only for other purposes than the one asked for has the status
+    "not allowed for this purpose" (``ok`` False).
     """
 
     substance: str
@@ -657,11 +918,16 @@ class ResidueCheck:
     confidence: str
     source: tuple[str, ...]
     note: str
+    checked_on: str = ""
+    purposes: tuple[str, ...] = ()
+    measured_in: str = ""
 
     def to_dict(self) -> dict[str, Any]:
         d = asdict(self)
         d["source"] = list(d["source"])
+        d["purposes"] = list(d["purposes"])
         d["flagged"] = self.confidence != "checked"
+        d["checked_on"] = self.checked_on or None
         return d
 
 
@@ -714,6 +980,13 @@ class DoseCheck:
     ok: bool
     complete: bool
     assumptions: tuple[str, ...]
+    purpose: str | None = None
+
+    @property
+    def rules(self) -> tuple:
+        """The limit and residue checks made (each names its rule, jurisdiction, checked-on date, confidence and
+        sources: the rules this answer applied)."""
+        return tuple(self.checks) + tuple(self.residues)
 
     def stage_table(self, index: int) -> list[dict]:
         """Rows ``{substance, cas, mg_per_kg, mg_per_L}`` of one stage, largest first."""
@@ -761,6 +1034,7 @@ class DoseCheck:
             "ok": self.ok,
             "complete": self.complete,
             "assumptions": list(self.assumptions),
+            "purpose": self.purpose,
         }
 
 
@@ -796,15 +1070,6 @@ def _resolve_substance(cat, name: str, param: str) -> tuple[str, str, str]:
 
 
 _MAX_UNIT = {"w/w": "mass fraction", "v/v": "volume fraction", "g/L": "g/L"}
-
-
-def _food_jurisdiction(jurisdiction) -> str:
-    """The food-law jurisdiction of a dose check ("EU" or "US"); it must be given."""
-    jur = _check_jurisdiction(jurisdiction, FOOD_JURISDICTIONS)
-    if jur is None:
-        raise InputError("give EU or US (limits differ by jurisdiction)", param="jurisdiction",
-                         expected="one of " + ", ".join(FOOD_JURISDICTIONS))
-    return jur
 
 
 def _checked_steps(steps) -> tuple:
@@ -927,7 +1192,7 @@ def _limit_checks(rules_of: Mapping[str, list[Limit]], names, levels: _Levels, x
             rule=r.rule, jurisdiction=r.jurisdiction, substance=label, members=tuple(names[m][0] for m in members),
             cas=tuple(names[m][1] for m in members), unit=r.unit, status=r.status, applies_to=r.applies_to,
             food_category=r.food_category, condition=r.condition, group=r.group, confidence=r.confidence,
-            checked_on=r.checked_on, source=r.source, note=r.note,
+            checked_on=r.checked_on, source=r.source, note=r.note, purposes=r.purposes, measured_in=r.measured_in,
         )
         if r.status == "not permitted":
             fp, bg = levels.of(members, "mass")
@@ -991,6 +1256,7 @@ def check_dose(
     residues: Mapping[str, float] | None = None,
     claims: Sequence[str] | None = None,
     formula_density: float | None = None,
+    purpose: str | None = None,
 ) -> DoseCheck:
     """Levels of a formula along a dilution chain, checked against every limit that applies.
 
@@ -1002,7 +1268,8 @@ def check_dose(
         The dilution chain, at least one step, the first one carrying the dose
         of the formula (:func:`solvsel.jobs.parse.parse_chain` reads it from
         text; a single step into the food as consumed when there is no chain).
-    jurisdiction : {"EU", "US"}
+    jurisdiction : str
+        A food-law jurisdiction of the tables (:func:`food_jurisdictions`: EU, US).
     category : str
         Food category of the food as consumed (the last stage).
     already : mapping, optional
@@ -1014,6 +1281,12 @@ def check_dose(
         Claims to check with tables/claims.csv (e.g. "halal").
     formula_density : float, optional
         Density of the formula [g/cm3]; default from its components.
+    purpose : str, optional
+        What the formula is (an id of tables/purposes.csv): its measured residues
+        are judged by the rules that authorise that purpose only (a solvent
+        allowed only for other purposes is "not allowed for this purpose");
+        without it every residue rule is shown, each with its purposes.  The
+        limits in the food as consumed apply whatever the purpose.
 
     Notes
     -----
@@ -1049,7 +1322,8 @@ def check_dose(
     (0.3333, 'Reg. (EC) No 1333/2008 Annex III Part 4')
     """
     cat = _catalog(cat)
-    jur = _food_jurisdiction(jurisdiction)
+    jur = check_food_jurisdiction(cat, jurisdiction, required=True)
+    purpose = check_purpose(cat, purpose)
     fc = resolve_category(cat, category)
     steps = _checked_steps(steps)
     stages, assumptions = _stages_in_category(formula, steps, formula_density, fc)
@@ -1063,7 +1337,7 @@ def check_dose(
     rules_of, no_data = _rules_of_substances(cat, names, present, jur, fc.name)
     checks, max_dose, binding = _binding(_limit_checks(rules_of, names, levels, x0))
     F = final.fraction_of_formula
-    res = _residue_checks(cat, residues or {}, jur, fc.name, F)
+    res = _residue_checks(cat, residues or {}, jur, fc.name, F, purpose)
     cl = _claim_checks(cat, claims or (), stages, other)
     ok = all(c.ok for c in checks) and all(r.ok is not False for r in res if not r.reference_only) and all(
         c.ok is not False for c in cl
@@ -1075,7 +1349,7 @@ def check_dose(
         max_dose_unit=_MAX_UNIT.get(steps[0].how, steps[0].how),
         max_fraction_in_food=F * max_dose / x0 if max_dose is not None and x0 else None,
         binding=binding, per_ingredient=tuple(_per_ingredient(formula, checks, names, no_data)), ok=ok,
-        complete=not no_data, assumptions=tuple(assumptions),
+        complete=not no_data, assumptions=tuple(assumptions), purpose=purpose,
     )
 
 
@@ -1100,50 +1374,89 @@ def _given_residues(cat, residues: Mapping[str, float]) -> dict[str, tuple[str, 
     return given
 
 
-def _residue_checks(cat, residues: Mapping[str, float], jur: str, category: str, F: float) -> list[ResidueCheck]:
-    """Each measured residue against its rules in ``jur`` (and ICH Q3C as a reference); ``F`` is the
-    mass fraction of the formula in the food as consumed."""
+def _unlisted_residue(disp: str, cas: str, ppm: float, jur: str) -> ResidueCheck:
+    """A measured residue of a solvent with no extraction rule in ``jur``: not permitted on a positive
+    list, else no data (never a permission)."""
+    listed = (jur, "extraction") in POSITIVE_LISTS
+    return ResidueCheck(
+        disp, cas, ppm, POSITIVE_LISTS.get((jur, "extraction"), "no rule"), jur, "status",
+        "not listed" if listed else "no data", None, None, "", False if listed else None, None,
+        "not permitted" if listed else "no data", False, "checked" if listed else "from memory", (),
+        (f"{disp} is not a permitted extraction solvent in the {jur} (not in the bundled positive list; verify)"
+         if listed else f"no {jur} residue rule for {disp} in the bundled table: not a permission"),
+    )
+
+
+def _residue_not_for_purpose(disp: str, cas: str, ppm: float, jur: str, purpose: str,
+                             rows: Sequence[Limit]) -> ResidueCheck:
+    """A measured residue of a solvent whose rules allow it only for other purposes than ``purpose``."""
+    status, message = _other_purposes(disp, "extraction", jur, purpose, rows)
+    return ResidueCheck(disp, cas, ppm, "; ".join(dict.fromkeys(r.rule for r in rows)), jur, "status",
+                        f"not authorised for {purpose}", None, None, "", False if status == NOT_FOR_PURPOSE else None,
+                        None, status, False, min((r.confidence for r in rows), key=_CONFIDENCE_ORDER.index),
+                        tuple(dict.fromkeys(x for r in rows for x in r.source)), message,
+                        purposes=_purposes_of(rows))
+
+
+#: Confidence of a row, most doubtful last (a check resting on several rows takes the most doubtful).
+_CONFIDENCE_ORDER = ["checked", "secondary, verify", "from memory"]
+
+
+def _residue_against(r: Limit, disp: str, cas: str, ppm: float, given, cat, F: float) -> ResidueCheck | None:
+    """One measured residue (summed over its group where the rule has one) against rule ``r``; None for
+    a group already reported at its first member."""
+    members = [cas]
+    if r.group:
+        members = [c for c in given if any(x.group == r.group for x in limits(cat, cas=c, jurisdiction=r.jurisdiction))]
+        if members[0] != cas:  # report a group once, at its first member
+            return None
+    total = sum(given[c][2] for c in members)
+    common = dict(checked_on=r.checked_on, purposes=r.purposes, measured_in=r.measured_in)
+    reference = r.jurisdiction not in food_jurisdictions(cat)
+    if r.limit is None:
+        ok = r.status != "not permitted"
+        return ResidueCheck(disp, cas, ppm, r.rule, r.jurisdiction, r.applies_to, r.condition, None, None, "",
+                            ok, None, r.status, reference, r.confidence, r.source,
+                            r.note or ("good manufacturing practice: technically unavoidable residues only" if ok else ""),
+                            **common)
+    per = _UNIT_BASIS[r.unit][1]
+    if r.applies_to == "food residue":
+        lvl_mg = total * F
+        tol = r.limit_mg / F if F > 0 else None
+    else:  # residue in the formula itself (the extract or the flavouring)
+        lvl_mg = total
+        tol = r.limit_mg
+    if r.group and tol is not None:
+        tol = tol - (total - ppm)
+    label = disp if not r.group else " + ".join(given[c][0] for c in members) + f" (group {r.group})"
+    return ResidueCheck(label, cas, ppm, r.rule, r.jurisdiction, r.applies_to, r.condition, lvl_mg / per,
+                        r.limit, r.unit, lvl_mg <= r.limit_mg * (1 + 1e-12), tol, r.status, reference,
+                        r.confidence, r.source, r.note, **common)
+
+
+def _residue_checks(cat, residues: Mapping[str, float], jur: str, category: str, F: float,
+                    purpose: str | None = None) -> list[ResidueCheck]:
+    """Each measured residue against its rules in ``jur`` (and the numeric limits of the reference
+    guidelines, ICH Q3C, shown beside them); ``F`` is the mass fraction of the formula in the food as
+    consumed.  With a ``purpose`` only the rules that authorise it count; a solvent whose rules allow
+    it only for other purposes is reported as such."""
     out: list[ResidueCheck] = []
     given = _given_residues(cat, residues)
+    food = food_jurisdictions(cat)
     for cas, (disp, _, ppm) in given.items():
-        rows = [r for r in limits(cat, cas=cas, jurisdiction=jur, category=category, use="extraction")]
-        ref = [r for r in limits(cat, cas=cas, jurisdiction="ICH") if r.status in ("class 1", "class 2", "class 3")]
+        rows = limits(cat, cas=cas, jurisdiction=jur, category=category, use="extraction")
+        ref = [r for r in limits(cat, cas=cas) if r.jurisdiction not in food and r.limit is not None]
         if not rows:
-            listed = (jur, "extraction") in POSITIVE_LISTS
-            out.append(ResidueCheck(
-                disp, cas, ppm, POSITIVE_LISTS.get((jur, "extraction"), "no rule"), jur, "status",
-                "not listed" if listed else "no data", None, None, "", False if listed else None, None,
-                "not permitted" if listed else "no data", False, "checked" if listed else "from memory", (),
-                (f"{disp} is not a permitted extraction solvent in the {jur} (not in the bundled positive list; verify)"
-                 if listed else f"no {jur} residue rule for {disp} in the bundled table: not a permission"),
-            ))
+            out.append(_unlisted_residue(disp, cas, ppm, jur))
+        elif purpose is not None:
+            judged = [r for r in rows if r.status == "not permitted" or r.authorises(purpose)]
+            if not judged:
+                out.append(_residue_not_for_purpose(disp, cas, ppm, jur, purpose, rows))
+            rows = judged
         for r in rows + ref:
-            reference = r.jurisdiction == "ICH"
-            members = [cas]
-            if r.group:
-                members = [c for c in given if any(x.group == r.group for x in limits(cat, cas=c, jurisdiction=r.jurisdiction))]
-                if members[0] != cas:  # report a group once, at its first member
-                    continue
-            total = sum(given[c][2] for c in members)
-            if r.limit is None:
-                ok = r.status != "not permitted"
-                out.append(ResidueCheck(disp, cas, ppm, r.rule, r.jurisdiction, r.applies_to, r.condition, None, None, "",
-                                        ok, None, r.status, reference, r.confidence, r.source,
-                                        r.note or ("good manufacturing practice: technically unavoidable residues only" if ok else "")))
-                continue
-            per = _UNIT_BASIS[r.unit][1]
-            if r.applies_to == "food residue":
-                lvl_mg = total * F
-                tol = r.limit_mg / F if F > 0 else None
-            else:  # residue in the extract itself
-                lvl_mg = total
-                tol = r.limit_mg
-            if r.group and tol is not None:
-                tol = tol - (total - ppm)
-            label = disp if not r.group else " + ".join(given[c][0] for c in members) + f" (group {r.group})"
-            out.append(ResidueCheck(label, cas, ppm, r.rule, r.jurisdiction, r.applies_to, r.condition, lvl_mg / per,
-                                    r.limit, r.unit, lvl_mg <= r.limit_mg * (1 + 1e-12), tol, r.status, reference,
-                                    r.confidence, r.source, r.note))
+            chk = _residue_against(r, disp, cas, ppm, given, cat, F)
+            if chk is not None:
+                out.append(chk)
     return out
 
 
@@ -1188,7 +1501,8 @@ def carrier_dose_check(cat, solvent_or_formula, steps: Sequence, jurisdiction: s
     steps : sequence of solvsel.science.formulation.Step
         The dilution chain, the first step carrying the dose (parse a dose and a
         chain with :func:`solvsel.jobs.parse.parse_chain`).
-    jurisdiction : {"EU", "US"}
+    jurisdiction : str
+        A food-law jurisdiction of the tables (:func:`food_jurisdictions`: EU, US).
     category : str
         Food category of the food as consumed (see ``solvsel table food_categories``).
     already : mapping, optional
