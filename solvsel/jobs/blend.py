@@ -35,6 +35,7 @@ from typing import Any, Callable, Mapping
 import numpy as np
 
 from ..data.catalog import Catalog
+from ..data.provenance import audit_block
 from ..errors import InputError, UnknownNameError
 from ..rules.cautions import DEFER, solvent_cautions
 from ..rules.regulations import carrier_dose_check
@@ -90,8 +91,9 @@ class BlendRequest(PoolRequest):
         ``(dD, dP, dH[, R0])`` [MPa^0.5]; a SMILES; a ready :class:`~solvsel.science.target.Target`
     max_components : int
         largest blend, 1 to 4 (default 3)
-    only, exclude, use, food, jurisdiction, worst_flammable_category, bp_min_C, bp_max_C, min_flash_C, max_cost
-        the filters of the candidate pool (:class:`~solvsel.jobs.pool.PoolFilters`)
+    only, exclude, use, food, jurisdiction, purpose, worst_flammable_category, bp_min_C, bp_max_C, min_flash_C, max_cost
+        the filters of the candidate pool (:class:`~solvsel.jobs.pool.PoolFilters`; ``purpose``: what the
+        product is, an id of tables/purposes.csv)
     bounds : tuple of FractionBound (or text such as "ethanol<=0.3")
         volume-fraction bounds [-] on single liquids; a lower bound above 0 puts
         the liquid in every blend
@@ -135,6 +137,7 @@ class BlendRequest(PoolRequest):
     use: str | None = None
     food: bool = False
     jurisdiction: str | None = None
+    purpose: str | None = None
     worst_flammable_category: int | str | None = None
     bp_min_C: float | None = None
     bp_max_C: float | None = None
@@ -270,6 +273,7 @@ class BlendResult:
     success: bool
     message: str
     liquid_cautions: tuple[str, ...] = ()
+    audit: dict = field(default_factory=dict)
 
     def to_dict(self) -> dict:
         return {
@@ -284,6 +288,7 @@ class BlendResult:
             "success": self.success,
             "message": self.message,
             "liquid_cautions": list(self.liquid_cautions),
+            "audit": self.audit,
         }
 
     def to_frame(self):
@@ -359,7 +364,8 @@ class _Search:
         shown = dict.fromkeys(t for t in self.liquid_cautions([by_name[n] for n in names]) if t != DEFER)
         return BlendResult({**self.target.to_dict(), "temp_C": self.req.temp_C}, tuple(results), tuple(pareto),
                            tuple(self.dropped), self.pool.left_out, self.counts, _constraints(self.req),
-                           _cautions(self.req), success, message, tuple(shown) + (DEFER,))
+                           _cautions(self.req), success, message, tuple(shown) + (DEFER,),
+                           audit_block(self.pool.rules, self.cat.tables_dir))
 
 
 @dataclass(frozen=True)
@@ -545,7 +551,7 @@ def _regulations(c: Candidate, req: BlendRequest) -> list[dict]:
         return []
     d = c.food.to_dict()
     return [{k: d[k] for k in ("name", "cas", "use", "jurisdiction", "status", "allowed", "conditions", "message",
-                               "flagged", "per_jurisdiction")}]
+                               "flagged", "per_jurisdiction", "purpose", "purposes", "status_text")}]
 
 
 def _blend_cautions(s: _Search, recs: list[Candidate], phase) -> list[str]:
@@ -648,6 +654,7 @@ def _shown(s: _Search, sc: _Scores, kept: list) -> tuple[list[Blend], list[Blend
 def _constraints(req: BlendRequest) -> dict:
     return {
         "max_components": req.max_components, "use": req.use, "food": req.food, "jurisdiction": req.jurisdiction,
+        "purpose": req.purpose,
         "only": list(req.only) if req.only else None, "exclude": list(req.exclude) if req.exclude else None,
         "worst_flammable_category": req.worst_flammable_category, "bp_min_C": req.bp_min_C,
         "bp_max_C": req.bp_max_C, "min_flash_C": req.min_flash_C, "max_cost": req.max_cost,

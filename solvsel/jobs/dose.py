@@ -16,16 +16,18 @@ the chain and the amounts are read by :mod:`solvsel.jobs.parse`.
 from __future__ import annotations
 
 import os
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Any, Mapping
 
 from ..data.catalog import Catalog
+from ..data.provenance import audit_block
 from ..errors import InputError, UnknownNameError
 from ..rules.cautions import DEFER, limit_cautions, solvent_cautions
-from ..rules.regulations import FOOD_JURISDICTIONS, DoseCheck, check_dose
+from ..rules.regulations import DoseCheck, check_dose
 from ..science.formulation import Formula, Step, formula_from_amounts, formula_from_csv
 from ._base import build_request, catalog_or_default, check_choice, check_names, check_number, frame
 from .parse import parse_amount, parse_amounts, parse_chain, parse_names
+from .pool import check_jurisdiction_text, check_purpose_text
 
 __all__ = ["DoseRequest", "DoseResult", "dose", "dose_cautions"]
 
@@ -118,8 +120,8 @@ class DoseRequest:
         ``[("propylene glycol", 90), ("vanillin", 10)]`` or a dict), or the path of a CSV file
         with columns ``name`` and ``mass_percent`` (or ``volume_percent``), optional ``cas``
         and ``density_g_cm3``; percentages adding up to less than 100 leave an unspecified rest
-    jurisdiction : {"EU", "US"}
-        whose limits apply
+    jurisdiction : str
+        whose limits apply: a food-law jurisdiction of the tables (EU, US)
     by : {"mass", "volume"}
         whether the percentages of ``formula`` are by mass (default) or by volume (a CSV file says
         it by its column)
@@ -140,6 +142,10 @@ class DoseRequest:
         claims to check with ``tables/claims.csv`` (``"halal"``, ``"kosher, organic"``)
     formula_density : float, optional
         density of the formula [g/cm3], 0.3 to 2.5; default from its components
+    purpose : str, optional
+        what the formula is, an id of tables/purposes.csv (``flavouring``, ``spice_oleoresin`` ...): its
+        measured residues are judged by the rules that authorise that purpose only; without it every residue
+        rule is shown with the purposes it applies to
 
     Examples
     --------
@@ -157,11 +163,12 @@ class DoseRequest:
     residues: tuple[tuple[str, float], ...] | None = None
     claims: tuple[str, ...] = ()
     formula_density: float | None = None
+    purpose: str | None = None
 
     def __post_init__(self) -> None:
         checked = {
             "formula": _formula_field(self.formula),
-            "jurisdiction": check_choice(self.jurisdiction, "jurisdiction", FOOD_JURISDICTIONS),
+            "jurisdiction": check_jurisdiction_text(self.jurisdiction),
             "by": check_choice(self.by, "by", ("mass", "volume")),
             "dose": _dose_field(self.dose),
             "chain": _optional_text(self.chain, "chain"),
@@ -171,6 +178,7 @@ class DoseRequest:
             "claims": _claims_field(self.claims),
             "formula_density": check_number(self.formula_density, "formula_density", *FORMULA_DENSITY_RANGE,
                                             unit="g/cm3", allow_none=True),
+            "purpose": None if self.purpose is None else check_purpose_text(self.purpose),
         }
         for name, value in checked.items():
             object.__setattr__(self, name, value)
@@ -202,12 +210,14 @@ class DoseResult:
 
     ``check`` holds the numbers (:class:`~solvsel.rules.regulations.DoseCheck`: ``stages``,
     ``checks``, ``max_dose`` in ``max_dose_unit``, ``binding``, ``no_data``, ``residues``,
-    ``claims``, ``ok``, ``complete``); ``cautions`` the notes that go with them.
+    ``claims``, ``ok``, ``complete``); ``cautions`` the notes that go with them; ``audit`` the
+    version, the tables' checksum and the rules applied (:func:`~solvsel.data.provenance.audit_block`).
     """
 
     request: DoseRequest
     check: DoseCheck
     cautions: tuple[str, ...]
+    audit: dict = field(default_factory=dict)
 
     @property
     def formula(self) -> Formula:
@@ -227,7 +237,7 @@ class DoseResult:
         """The JSON of ``solvsel dose --json``."""
         out = self.check.to_dict()
         assumptions = out.pop("assumptions")
-        return {**out, "cautions": list(self.cautions), "assumptions": assumptions}
+        return {**out, "cautions": list(self.cautions), "assumptions": assumptions, "audit": self.audit}
 
     def to_frame(self):
         """One row per limit: rule, substance, level, limit, unit, ok, binds, max dose."""
@@ -259,6 +269,7 @@ def dose(request: DoseRequest | None = None, *, catalog: Catalog | None = None, 
     check = check_dose(
         cat, _formula(cat, req), req.steps(), req.jurisdiction, req.category or "food",
         already=dict(req.already) if req.already else None, residues=dict(req.residues) if req.residues else None,
-        claims=list(req.claims), formula_density=req.formula_density,
+        claims=list(req.claims), formula_density=req.formula_density, purpose=req.purpose,
     )
-    return DoseResult(request=req, check=check, cautions=dose_cautions(cat, check))
+    return DoseResult(request=req, check=check, cautions=dose_cautions(cat, check),
+                      audit=audit_block(check.rules, cat.tables_dir))

@@ -10,10 +10,13 @@ same filters in the same order, each leaving a liquid out with its reason:
 3. property limits: cost class, boiling window, lowest flash point (a value not
    on record fails its limit);
 4. hazard: the most hazardous GHS flammable-liquid category allowed;
-5. food law: with ``food`` or a ``jurisdiction`` (and a food use), the liquid's
-   status for the use (either food use when none is given) must be permitted or
-   conditional, in the jurisdiction (or the more permissive of EU and US when
-   none is given); no data is never read as permission;
+5. food law: with ``food``, a ``jurisdiction`` or a ``purpose`` (and a food
+   use), the liquid's status for the use (either food use when none is given)
+   must be permitted or conditional, in the jurisdiction (or the most
+   permissive of the food-law jurisdictions of the tables when none is given),
+   and for the purpose of the product when one is given (a liquid its rules
+   allow only for other purposes is left out, the rules named); no data is
+   never read as permission;
 6. temperature: the liquid's HSP and molar volume at ``temp_C`` by Hansen and
    Beerbower's rules; a liquid frozen or boiling there is left out; one without
    an expansion coefficient keeps its 25 C values, with a note.
@@ -31,16 +34,37 @@ import numpy as np
 from ..data.catalog import Catalog, Solvent
 from ..errors import InputError, MissingDataError, UnknownNameError
 from ..rules.hazards import Hazard, hazard_class
-from ..rules.regulations import FOOD_JURISDICTIONS, FoodStatus, food_status
+from ..rules.regulations import FoodStatus, Limit, check_food_jurisdiction, check_purpose, food_status, purpose_key
 from ..science.hansen import T_WINDOW_C
 from ..science.target import solvent_at
 from ._base import check_choice, check_int, check_names, check_number
 
-__all__ = ["USES", "PoolFilters", "PoolRequest", "Candidate", "LeftOut", "Pool", "build_pool", "property_reason", "hazard_rank",
+__all__ = ["USES", "check_id", "check_jurisdiction_text", "check_purpose_text", "PoolFilters", "PoolRequest", "Candidate", "LeftOut", "Pool", "build_pool", "property_reason", "hazard_rank",
            "solvent_named"]
 
 #: Uses a liquid can be searched for.
 USES = ("carrier", "extraction", "bench")
+
+
+def check_id(value, param: str, expected: str) -> str:
+    """A short name given as text (a jurisdiction, a purpose), stripped; anything else is an error about ``param``.
+
+    Which jurisdictions and purposes exist is the tables' business: the job checks the name against
+    its catalog (:func:`~solvsel.rules.regulations.check_food_jurisdiction`,
+    :func:`~solvsel.rules.regulations.check_purpose`)."""
+    if not isinstance(value, str) or not value.strip():
+        raise InputError(f"expected {expected}, got {value!r}", param=param, value=value, expected=expected)
+    return value.strip()
+
+
+def check_jurisdiction_text(value, param: str = "jurisdiction") -> str:
+    """A jurisdiction as given, upper case (``"eu"`` -> ``"EU"``)."""
+    return check_id(value, param, "a jurisdiction such as EU or US").upper()
+
+
+def check_purpose_text(value, param: str = "purpose") -> str:
+    """A purpose id as given, lower case with underscores (``"Food ingredient"`` -> ``"food_ingredient"``)."""
+    return purpose_key(check_id(value, param, "a purpose such as food_ingredient"))
 
 
 @dataclass(frozen=True)
@@ -57,9 +81,13 @@ class PoolFilters:
         the liquid's role; with a food use, only liquids the table lists for it
     food : bool
         keep only liquids whose food status for the use is permitted or conditional
-    jurisdiction : {"EU", "US"}, optional
-        the food law applied (implies the food-law filter); None: the more
-        permissive of EU and US
+    jurisdiction : str, optional
+        the food law applied (implies the food-law filter): a food-law
+        jurisdiction of the tables (EU, US); None: the most permissive of them
+    purpose : str, optional
+        what the product is, an id of tables/purposes.csv (``food_ingredient``,
+        ``natural_flavouring`` ...; implies the food-law filter): only liquids
+        a rule allows for that purpose are kept
     worst_flammable_category : int or "none", optional
         most hazardous GHS flammable-liquid category allowed (1 to 4); "none"
         keeps only liquids that are not flammable
@@ -77,6 +105,7 @@ class PoolFilters:
     use: str | None = None
     food: bool = False
     jurisdiction: str | None = None
+    purpose: str | None = None
     worst_flammable_category: int | str | None = None
     bp_min_C: float | None = None
     bp_max_C: float | None = None
@@ -89,7 +118,9 @@ class PoolFilters:
         set_(self, "only", check_names(self.only, "only"))
         set_(self, "exclude", check_names(self.exclude or (), "exclude") if self.exclude else ())
         set_(self, "use", check_choice(self.use, "use", USES, allow_none=True))
-        set_(self, "jurisdiction", check_choice(self.jurisdiction, "jurisdiction", FOOD_JURISDICTIONS, allow_none=True))
+        # which jurisdictions and purposes exist is the tables' business: checked against them in build_pool
+        set_(self, "jurisdiction", None if self.jurisdiction is None else check_jurisdiction_text(self.jurisdiction))
+        set_(self, "purpose", None if self.purpose is None else check_purpose_text(self.purpose))
         if self.worst_flammable_category is not None and str(self.worst_flammable_category).lower() != "none":
             set_(self, "worst_flammable_category", check_int(self.worst_flammable_category, "worst_flammable_category", 1, 4))
         elif self.worst_flammable_category is not None:
@@ -109,7 +140,7 @@ class PoolFilters:
     @property
     def legal(self) -> bool:
         """True when the food-law filter applies."""
-        return (self.food or self.jurisdiction is not None) and self.use != "bench"
+        return (self.food or self.jurisdiction is not None or self.purpose is not None) and self.use != "bench"
 
     @property
     def food_uses(self) -> tuple[str, ...]:
@@ -188,12 +219,14 @@ class LeftOut:
 @dataclass(frozen=True)
 class Pool:
     """The candidates (in table order) and the liquids left out, with the filters used;
-    ``order`` names every liquid considered, in the order considered."""
+    ``order`` names every liquid considered, in the order considered; ``rules`` the rows of
+    the regulations table the food-law statuses were judged by (for the answer's audit)."""
 
     filters: PoolFilters
     candidates: tuple[Candidate, ...]
     left_out: tuple[LeftOut, ...]
     order: tuple[str, ...] = ()
+    rules: tuple[Limit, ...] = ()
 
     @property
     def names(self) -> list[str]:
@@ -253,24 +286,37 @@ def _hazard_reason(hz: Hazard | None, worst) -> str | None:
     return None
 
 
-def _food(cat: Catalog, rec: Solvent, filters: PoolFilters) -> tuple[FoodStatus | None, str | None, str | None]:
-    """(status shown, its use, reason to leave the liquid out or None)."""
+@dataclass(frozen=True)
+class _Food:
+    """A liquid's food-law status as the pool shows it: the status, its use, the reason to leave the
+    liquid out (None: kept) and the rules of every use judged."""
+
+    status: FoodStatus | None = None
+    use: str | None = None
+    reason: str | None = None
+    rules: tuple[Limit, ...] = ()
+
+
+def _food(cat: Catalog, rec: Solvent, filters: PoolFilters) -> _Food:
+    """The food-law status of ``rec`` for the pool's use(s), jurisdiction and purpose."""
     if filters.use == "bench":  # not a food use: shown as such, never a reason to leave a liquid out
-        return food_status(cat, rec, use="bench", jurisdiction=filters.jurisdiction), "bench", None
+        return _Food(food_status(cat, rec, use="bench", jurisdiction=filters.jurisdiction), "bench")
     statuses = []
     for use in filters.food_uses:
         try:
-            statuses.append((use, food_status(cat, rec, use=use, jurisdiction=filters.jurisdiction)))
+            statuses.append((use, food_status(cat, rec, use=use, jurisdiction=filters.jurisdiction,
+                                              purpose=filters.purpose)))
         except (InputError, MissingDataError, LookupError) as exc:
-            if filters.legal:
-                return None, None, f"food status unknown: {exc}"
-            return None, None, None
+            return _Food(reason=f"food status unknown: {exc}" if filters.legal else None)
+    rules = tuple(r for _, st in statuses for r in st.rules)
     allowed = [(u, st) for u, st in statuses if st.allowed]
-    use, status = allowed[0] if allowed else statuses[0]
+    # shown: the first use it is allowed for, else the first status that rests on rules (the most telling)
+    use, status = allowed[0] if allowed else next(((u, st) for u, st in statuses if st.rules), statuses[0])
     if filters.legal and not allowed:
         where = f" in {filters.jurisdiction}" if filters.jurisdiction else ""
-        return status, use, f"{status.status} as {' or '.join(filters.food_uses)}{where}: {status.message}"
-    return status, use, None
+        return _Food(status, use, f"{status.status} as {' or '.join(filters.food_uses)}{where}: {status.message}",
+                     rules)
+    return _Food(status, use, None, rules)
 
 
 def solvent_named(cat: Catalog, name: str, param: str) -> Solvent:
@@ -332,15 +378,18 @@ def build_pool(cat: Catalog, filters: PoolFilters | None = None, records: Sequen
     True
     """
     filters = filters or PoolFilters()
+    check_food_jurisdiction(cat, filters.jurisdiction)
+    check_purpose(cat, filters.purpose)
     dropped = [solvent_named(cat, n, "exclude") for n in filters.exclude]
-    kept, left = [], []
+    kept, left, rules = [], [], {}
     recs = _records(cat, filters, records)
     for rec in recs:
         hz = hazard_class(rec.flash_C, rec.bp_C, flammable=rec.flammable)
         why = _reason(cat, rec, filters, dropped, hz)
-        status, use, legal_why = (None, None, None) if why else _food(cat, rec, filters)
-        if why is None and legal_why is not None:
-            why = ("food law", legal_why)
+        food = _Food() if why else _food(cat, rec, filters)
+        rules.update(dict.fromkeys(food.rules))
+        if why is None and food.reason is not None:
+            why = ("food law", food.reason)
         if why is None:
             try:
                 h, vm, note = solvent_at(rec, filters.temp_C)
@@ -349,5 +398,5 @@ def build_pool(cat: Catalog, filters: PoolFilters | None = None, records: Sequen
         if why is not None:
             left.append(LeftOut(rec.name, rec.cas, *why))
             continue
-        kept.append(Candidate(rec, np.asarray(h, dtype=float), float(vm), note, hz, status, use))
-    return Pool(filters, tuple(kept), tuple(left), tuple(r.name for r in recs))
+        kept.append(Candidate(rec, np.asarray(h, dtype=float), float(vm), note, hz, food.status, food.use))
+    return Pool(filters, tuple(kept), tuple(left), tuple(r.name for r in recs), tuple(rules))

@@ -16,10 +16,11 @@ lists the liquids nearest to a given liquid instead (substitutes).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Any, Sequence
 
 from ..data.catalog import Catalog
+from ..data.provenance import audit_block
 from ..errors import InputError, MissingDataError
 from ..rules.cautions import DEFER, solvent_cautions
 from ..rules.regulations import carrier_dose_check
@@ -48,10 +49,11 @@ class RankRequest(PoolRequest):
     like : str, optional
         instead of a target: list the liquids nearest to this liquid in Hansen
         space (substitutes); takes no ``only``, dose or solubility
-    only, exclude, use, food, jurisdiction, worst_flammable_category, bp_min_C, bp_max_C, min_flash_C, max_cost
+    only, exclude, use, food, jurisdiction, purpose, worst_flammable_category, bp_min_C, bp_max_C, min_flash_C, max_cost
         the filters of the candidate pool (:class:`~solvsel.jobs.pool.PoolFilters`:
-        names [-], use, food law, GHS category, boiling window [C], lowest
-        flash point [C], dearest cost class 1..5)
+        names [-], use, food law, the product's purpose (an id of
+        tables/purposes.csv), GHS category, boiling window [C], lowest flash
+        point [C], dearest cost class 1..5)
     temp_C : float
         working temperature [C] (default 25); the liquids' HSP are shifted to
         it, the target's stay at 25 C
@@ -84,6 +86,7 @@ class RankRequest(PoolRequest):
     use: str | None = None
     food: bool = False
     jurisdiction: str | None = None
+    purpose: str | None = None
     worst_flammable_category: int | str | None = None
     bp_min_C: float | None = None
     bp_max_C: float | None = None
@@ -173,6 +176,7 @@ class RankedSolvent:
     notes: tuple[str, ...]
     origin: str
     sources: tuple[str, ...] = ()
+    food_purposes: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         return {
@@ -184,7 +188,7 @@ class RankedSolvent:
             "cost_class": self.cost_class, "water_miscibility": self.water_miscibility,
             "solubility": self.solubility, "dose": self.dose,
             "cautions": list(self.cautions), "notes": list(self.notes),
-            "origin": self.origin, "sources": list(self.sources),
+            "origin": self.origin, "sources": list(self.sources), "food_purposes": list(self.food_purposes),
         }
 
 
@@ -205,6 +209,7 @@ class RankResult:
     notes: tuple[str, ...] = ()
     cautions: tuple[str, ...] = ()
     sorted_by: str = "ra"
+    audit: dict = field(default_factory=dict)
 
     def to_dict(self) -> dict:
         return {
@@ -215,6 +220,7 @@ class RankResult:
             "dropped": [d.to_dict() for d in self.dropped],
             "notes": list(self.notes),
             "cautions": list(self.cautions),
+            "audit": self.audit,
         }
 
     def to_frame(self):
@@ -237,10 +243,11 @@ def _dose_info(cat: Catalog, c: Candidate, req: RankRequest, steps: list[Step]) 
 
 
 def _food_text(c: Candidate, req: RankRequest) -> tuple[str | None, bool | None]:
-    """(food status as shown, allowed) of a candidate; with no use given, the use it was found for."""
+    """(food status as shown, allowed) of a candidate, with the purposes it is allowed for (or the purpose
+    asked for); with no use given, the use it was found for."""
     if c.food is None:
         return None, None
-    status = c.food.status + (f" ({c.food_use})" if req.use is None else "")
+    status = c.food.status_text + (f" ({c.food_use})" if req.use is None else "")
     return status, c.food.allowed
 
 
@@ -271,11 +278,12 @@ def _ranked(cat: Catalog, target: Target, c: Candidate, req: RankRequest, steps)
         None if hz is None else (hz.hazard_statement or hz.kind), status, allowed, s.cost_class,
         s.water_miscibility, solubility_in(target, s, c.hsp, c.vm_cm3_mol, req.temp_C), dose,
         tuple(solvent_cautions(s, use=req.use or c.food_use, cat=cat)), tuple(notes), s.origin, tuple(s.sources),
+        c.food.purposes if c.food is not None else (),
     )
 
 
 def _rank_pool(cat: Catalog, target: Target, req: RankRequest, records=None):
-    """Every candidate of the pool ranked (best first) and the liquids left out."""
+    """Every candidate of the pool ranked (best first), the liquids left out, and the rules judged by."""
     pool = build_pool(cat, req.filters, records)
     steps = req.steps
     results, dropped = [], list(pool.left_out)
@@ -285,7 +293,7 @@ def _rank_pool(cat: Catalog, target: Target, req: RankRequest, records=None):
     results.sort(key=lambda x: (x.ra, x.name))
     position = {name: i for i, name in enumerate(pool.order)}
     dropped.sort(key=lambda d: position[d.name])  # the dose check's among the pool's, in table order
-    return results, dropped
+    return results, dropped, pool.rules
 
 
 # ----------------------------------------------------------------------------- the job
@@ -350,14 +358,15 @@ def _nearest(cat: Catalog, req: RankRequest) -> RankResult:
     target = Target(me.name, float(me.dD), float(me.dP), float(me.dH), None, "table", None,
                     f"the liquid to replace; HSP source {me.hsp_source}", me.vm_cm3_mol)
     others = [r for r in cat.solvent_records() if r.name != me.name]
-    results, dropped = _rank_pool(cat, target, req, others)
+    results, dropped, rules = _rank_pool(cat, target, req, others)
     notes = _notes(target, req.temp_C) + _closing_notes(target)
     if results:
         k = len(results) if req.all or req.top is None else min(req.top, len(results))
         results = sorted(results, key=lambda r: (r.ra, r.name))[:k]
         notes.append(f"nearest liquids to {me.name} (Ra in MPa^0.5); similar HSP is not similar toxicity, "
                      "taste or legal status")
-    return RankResult(target, req.temp_C, tuple(results), tuple(dropped), tuple(notes), _cautions(results), "ra")
+    return RankResult(target, req.temp_C, tuple(results), tuple(dropped), tuple(notes), _cautions(results), "ra",
+                      audit_block(rules, cat.tables_dir))
 
 
 def rank(request: RankRequest | None = None, *, catalog: Catalog | None = None, **fields: Any) -> RankResult:
@@ -390,9 +399,9 @@ def rank(request: RankRequest | None = None, *, catalog: Catalog | None = None, 
     target = target_of(cat, target=req.target, solute=req.solute, hsp=req.hsp, smiles=req.smiles)
     if req.require_solubility:
         _check_solubility(target, req.temp_C)
-    results, dropped = _rank_pool(cat, target, req)
+    results, dropped, rules = _rank_pool(cat, target, req)
     if not req.all and req.top is not None:
         results = results[:req.top]
     notes = _notes(target, req.temp_C) + _closing_notes(target)
     return RankResult(target, req.temp_C, tuple(results), tuple(dropped), tuple(notes), _cautions(results),
-                      "red" if target.r0 else "ra")
+                      "red" if target.r0 else "ra", audit_block(rules, cat.tables_dir))

@@ -60,6 +60,9 @@ __all__ = [
     "food_jurisdictions",
     "check_food_jurisdiction",
     "purposes",
+    "purpose_key",
+    "bundled_purposes",
+    "describe_purposes",
     "check_purpose",
     "food_categories",
     "resolve_category",
@@ -377,12 +380,38 @@ def purposes(cat=None) -> dict[str, Purpose]:
     return dict(_PURPOSES_CACHE[id(cat)])
 
 
+def purpose_key(text) -> str:
+    """A purpose as typed, in the form of the table's ids (``"Food ingredient"`` -> ``"food_ingredient"``)."""
+    return _text(text).lower().replace(" ", "_").replace("-", "_")
+
+
+def bundled_purposes() -> dict[str, str]:
+    """``{id: label}`` of the bundled tables/purposes.csv, read with the csv module (the command line's
+    choices; a catalog's own purposes are :func:`purposes`)."""
+    path = TABLES_DIR / "purposes.csv"
+    if not path.is_file():
+        return {}
+    with open(path, encoding="utf-8-sig", newline="") as fh:
+        return {(r.get("id") or "").strip(): (r.get("label") or "").strip() for r in csv.DictReader(fh)
+                if (r.get("id") or "").strip()}
+
+
+def describe_purposes(ids: Mapping[str, str] | None = None) -> str:
+    """The purposes as one line, ``id (label)`` each (default: the bundled ones).
+
+    >>> describe_purposes({"sugar": "sugar production", "hop_extract": "hop extract"})
+    'sugar (sugar production), hop_extract (hop extract)'
+    """
+    ids = bundled_purposes() if ids is None else ids
+    return ", ".join(f"{k} ({v})" if v and v != k else k for k, v in ids.items())
+
+
 def check_purpose(cat, purpose, param: str = "purpose") -> str | None:
     """``purpose`` if it is an id of the catalog's purposes (case and spacing forgiven); None stays None."""
     if purpose is None:
         return None
     known = purposes(cat)
-    key = _text(purpose).lower().replace(" ", "_").replace("-", "_")
+    key = purpose_key(purpose)
     if key in known:
         return key
     expected = "one of " + ", ".join(known) if known else "a purpose of tables/purposes.csv (none in these tables)"
@@ -1177,8 +1206,10 @@ def _limit_checks(rules_of: Mapping[str, list[Limit]], names, levels: _Levels, x
     grouped: dict[tuple, dict] = {}
     for k, rows in rules_of.items():
         for r in rows:
+            # a group's members are summed under one limit even where their rows name different
+            # categories of the lineage (a drinks row of one member, the all-foods row of another)
             ident = r.group or (r.cas or r.substance)
-            key = (ident, r.rule, r.food_category, r.limit, r.unit, r.status, r.applies_to)
+            key = (ident, r.rule, r.limit, r.unit, r.status, r.applies_to)
             entry = grouped.setdefault(key, {"row": r, "members": []})
             entry["members"].append(k)
     scalable = x0 is not None
@@ -1388,18 +1419,34 @@ def _unlisted_residue(disp: str, cas: str, ppm: float, jur: str) -> ResidueCheck
 
 
 def _residue_not_for_purpose(disp: str, cas: str, ppm: float, jur: str, purpose: str,
-                             rows: Sequence[Limit]) -> ResidueCheck:
-    """A measured residue of a solvent whose rules allow it only for other purposes than ``purpose``."""
-    status, message = _other_purposes(disp, "extraction", jur, purpose, rows)
-    return ResidueCheck(disp, cas, ppm, "; ".join(dict.fromkeys(r.rule for r in rows)), jur, "status",
-                        f"not authorised for {purpose}", None, None, "", False if status == NOT_FOR_PURPOSE else None,
-                        None, status, False, min((r.confidence for r in rows), key=_CONFIDENCE_ORDER.index),
-                        tuple(dict.fromkeys(x for r in rows for x in r.source)), message,
-                        purposes=_purposes_of(rows))
+                             rows: Sequence[Limit]) -> list[ResidueCheck]:
+    """A measured residue of a solvent whose rules allow it only for other purposes than ``purpose``:
+    one check per rule, naming the purposes it does allow (a rule that names none is no data)."""
+    by_rule: dict[str, list[Limit]] = {}
+    for r in rows:
+        by_rule.setdefault(r.rule, []).append(r)
+    out = []
+    for rule, mine in by_rule.items():
+        ids = _purposes_of(mine)
+        status = NOT_FOR_PURPOSE if ids else "no data"
+        said = (f"{disp}: not allowed for {purpose} as an extraction solvent in {jur}; {rule} allows it for "
+                f"{', '.join(ids)} only" if ids else
+                f"{disp}: {rule} names no purpose, so it is not known to allow {purpose} (that is not a permission)")
+        worst = max(mine, key=_doubt)
+        out.append(ResidueCheck(disp, cas, ppm, rule, jur, "status", f"not authorised for {purpose}", None, None, "",
+                                False if ids else None, None, status, False, worst.confidence,
+                                tuple(dict.fromkeys(x for r in mine for x in r.source)), said,
+                                checked_on=worst.checked_on, purposes=ids))
+    return out
 
 
 #: Confidence of a row, most doubtful last (a check resting on several rows takes the most doubtful).
-_CONFIDENCE_ORDER = ["checked", "secondary, verify", "from memory"]
+_CONFIDENCE_ORDER = ("checked", "secondary, verify", "from memory")
+
+
+def _doubt(r: Limit) -> int:
+    """How doubtful a row is (0 checked; an unknown confidence is the most doubtful)."""
+    return _CONFIDENCE_ORDER.index(r.confidence) if r.confidence in _CONFIDENCE_ORDER else len(_CONFIDENCE_ORDER)
 
 
 def _residue_against(r: Limit, disp: str, cas: str, ppm: float, given, cat, F: float) -> ResidueCheck | None:
@@ -1451,7 +1498,7 @@ def _residue_checks(cat, residues: Mapping[str, float], jur: str, category: str,
         elif purpose is not None:
             judged = [r for r in rows if r.status == "not permitted" or r.authorises(purpose)]
             if not judged:
-                out.append(_residue_not_for_purpose(disp, cas, ppm, jur, purpose, rows))
+                out += _residue_not_for_purpose(disp, cas, ppm, jur, purpose, rows)
             rows = judged
         for r in rows + ref:
             chk = _residue_against(r, disp, cas, ppm, given, cat, F)
