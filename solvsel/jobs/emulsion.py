@@ -14,15 +14,16 @@ allowed), and the Ostwald ripening check.  The physics is
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-from typing import Any
+from dataclasses import dataclass, field
+from typing import Any, Sequence
 
 import numpy as np
 
 from ..data.catalog import Catalog
+from ..data.provenance import audit_block
 from ..errors import InputError, OutOfRangeError
 from ..rules.cautions import DEFER
-from ..rules.regulations import limits
+from ..rules.regulations import Limit, check_purpose, limits, not_for_purpose, rows_for_purpose
 from ..science.emulsion import (
     DRINK_DENSITY_RANGE,
     WATER_VISCOSITY_20C,
@@ -58,6 +59,7 @@ from ._base import (
     check_pairs,
     frame,
 )
+from .pool import check_purpose_text
 
 __all__ = ["EmulsionRequest", "EmulsionResult", "emulsion", "agent_limits", "EMULSION_CAUTIONS"]
 
@@ -72,18 +74,37 @@ EMULSION_CAUTIONS = (
 )
 
 
+def _agent_rows(cat: Catalog, agent: str, cas: str, jurisdiction: str, category: str, use: str) -> list[Limit]:
+    """The rows in force for ``agent`` used as ``use`` in a drink of ``category``."""
+    return limits(cat, cas=cas or None, substance=None if cas else agent, jurisdiction=jurisdiction,
+                  category=category, use=use)
+
+
+def _as_agent_limits(agent: str, jurisdiction: str, use: str, rows: Sequence[Limit],
+                     purpose: str | None) -> list[AgentLimit]:
+    """Rows as the engine's :class:`AgentLimit`; with a ``purpose``, only the rows that authorise it, and
+    an agent whose rows allow it only for other purposes is refused, the rules named."""
+    judged = rows_for_purpose(rows, purpose)
+    if rows and not judged:
+        status, message = not_for_purpose(agent, use, jurisdiction, purpose, rows)
+        if status != "no data":  # rules naming no purpose: no limit on record, never allowed
+            return [AgentLimit(agent, jurisdiction, "; ".join(dict.fromkeys(r.rule for r in rows)), None, None,
+                               "not permitted", any(r.flagged for r in rows), message)]
+    return [AgentLimit(agent, r.jurisdiction, r.rule, r.limit_mg, r.basis, r.status, r.flagged, r.note) for r in judged]
+
+
 def agent_limits(cat: Catalog, agent: str, cas: str, jurisdiction: str, category: str,
-                 use: str = "weighting") -> list[AgentLimit]:
+                 use: str = "weighting", purpose: str | None = None) -> list[AgentLimit]:
     """The rules in force for ``agent`` used as ``use`` ("weighting" or "emulsifier") in a drink of
-    ``category``, from :func:`solvsel.rules.regulations.limits`, as the engine's :class:`AgentLimit`.
+    ``category`` (for the product's ``purpose`` when given), from
+    :func:`solvsel.rules.regulations.limits`, as the engine's :class:`AgentLimit`.
 
     >>> [(r.rule, r.limit_mg, r.basis) for r in agent_limits(None, "glycerol ester of wood rosin", "8050-30-4",
     ...                                                       "US", "flavoured drinks")]
     [('21 CFR 172.735', 100.0, 'mass')]
     """
-    rows = limits(cat, cas=cas or None, substance=None if cas else agent, jurisdiction=jurisdiction,
-                  category=category, use=use)
-    return [AgentLimit(agent, r.jurisdiction, r.rule, r.limit_mg, r.basis, r.status, r.flagged, r.note) for r in rows]
+    rows = _agent_rows(cat, agent, cas, jurisdiction, category, use)
+    return _as_agent_limits(agent, jurisdiction, use, rows, check_purpose(cat, purpose))
 
 
 # ----------------------------------------------------------------------------- request
@@ -131,6 +152,9 @@ class EmulsionRequest:
         ratio to oil, its level in the drink checked against the rules on record
     emulsifier_ratio : float, optional
         grams of emulsifier per gram of oil phase [g/g] (default the table's usual ratio)
+    purpose : str, optional
+        what the product is, an id of tables/purposes.csv (e.g. ``finished_food``): an agent or
+        emulsifier is legal only where a rule authorises it for that purpose
 
     >>> EmulsionRequest(oil={"d-limonene": 70, "sucrose acetate isobutyrate": 30}, brix=11).oil_phase
     0.1
@@ -152,6 +176,7 @@ class EmulsionRequest:
     nano: bool = False
     emulsifier: str | None = None
     emulsifier_ratio: float | None = None
+    purpose: str | None = None
 
     def __post_init__(self) -> None:
         put = object.__setattr__
@@ -175,6 +200,7 @@ class EmulsionRequest:
             put(self, "emulsifier", check_names(self.emulsifier, "emulsifier", allow_none=False)[0])
         put(self, "emulsifier_ratio", check_number(self.emulsifier_ratio, "emulsifier_ratio", 0.0, None, unit="g/g",
                                                    lo_open=True, allow_none=True))
+        put(self, "purpose", None if self.purpose is None else check_purpose_text(self.purpose))
 
     def _check_drink(self) -> None:
         if (self.brix is None) == (self.density is None):
@@ -236,6 +262,8 @@ class EmulsionResult:
     ok: bool
     refusals: tuple[str, ...]
     cautions: tuple[str, ...]
+    purpose: str | None = None
+    audit: dict = field(default_factory=dict)
 
     def to_dict(self) -> dict[str, Any]:
         """The JSON of ``solvsel emulsion --json``."""
@@ -263,16 +291,20 @@ class EmulsionResult:
 
 
 class _Rules:
-    """The rules on record for the drink's category, each substance and jurisdiction looked up once."""
+    """The rules on record for the drink's category (and the product's purpose), each substance and
+    jurisdiction looked up once; ``rows`` keeps every row consulted (the answer's audit)."""
 
-    def __init__(self, cat: Catalog, category: str) -> None:
-        self.cat, self.category, self._seen = cat, category, {}
+    def __init__(self, cat: Catalog, category: str, purpose: str | None = None) -> None:
+        self.cat, self.category, self.purpose, self._seen = cat, category, check_purpose(cat, purpose), {}
+        self.rows: dict[Limit, None] = {}
 
     def check(self, name: str, cas: str, jurisdiction: str, level_ppm: float, rho: float,
               use: str = "weighting") -> AgentCheck:
         key = (name, cas, jurisdiction, use)
         if key not in self._seen:
-            self._seen[key] = agent_limits(self.cat, name, cas, jurisdiction, self.category, use)
+            rows = _agent_rows(self.cat, name, cas, jurisdiction, self.category, use)
+            self.rows.update(dict.fromkeys(rows))
+            self._seen[key] = _as_agent_limits(name, jurisdiction, use, rows, self.purpose)
         return check_agent(name, cas, jurisdiction, level_ppm, rho, self._seen[key])
 
 
@@ -374,7 +406,7 @@ def emulsion(request: EmulsionRequest | None = None, *, catalog: Catalog | None 
     """
     req = build_request(EmulsionRequest, request, fields)
     cat = catalog_or_default(catalog)
-    rules = _Rules(cat, check_category(cat, req.category))
+    rules = _Rules(cat, check_category(cat, req.category), req.purpose)
     rho_b, basis = drink_density(cat, req.brix, req.density)
     comps = oil_phase_components(cat, req.oil, dict(req.oil_density or ()))
     rho_o = oil_phase_density([c.mass_fraction for c in comps], [c.density for c in comps])
@@ -393,4 +425,5 @@ def emulsion(request: EmulsionRequest | None = None, *, catalog: Catalog | None 
         jurisdictions=req.jurisdictions, category=req.category, ok=all(c.ok for c in checks),
         refusals=tuple(c.message for c in checks if not c.ok),
         cautions=_cautions(req, agents["notes"], checks, rho_b - rho_o, ripe),
+        purpose=rules.purpose, audit=audit_block(rules.rows, cat.tables_dir),
     )

@@ -16,13 +16,14 @@ Every result carries the cautions of HLB work and the closing caution.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Any, Sequence
 
 from ..data.catalog import Catalog
+from ..data.provenance import audit_block
 from ..errors import InputError
 from ..rules.cautions import DEFER
-from ..rules.regulations import limits
+from ..rules.regulations import Limit, check_purpose, limits, not_for_purpose, rows_for_purpose
 from ..science.hlb import (
     BenchSeries,
     Emulsifier,
@@ -50,6 +51,7 @@ from ._base import (
     check_pairs,
     frame,
 )
+from .pool import check_purpose_text
 
 __all__ = [
     "HlbRequest",
@@ -106,6 +108,9 @@ class HlbRequest:
         US and/or EU: the legal rules on record for the emulsifiers returned
     category : str
         food category for those rules (default "flavoured drinks")
+    purpose : str, optional
+        what the product is, an id of tables/purposes.csv (e.g. ``finished_food``): an emulsifier's
+        rule counts only where it authorises that purpose
     smiles : str, optional
         a structure whose HLB is wanted by Griffin (nonionic) and Davies
     series : (str, str), optional
@@ -139,6 +144,7 @@ class HlbRequest:
     min_fraction: float = 0.05
     jurisdictions: tuple[str, ...] | None = None
     category: str = "flavoured drinks"
+    purpose: str | None = None
     smiles: str | None = None
     series: tuple[str, str] | None = None
     n: int = 9
@@ -164,6 +170,7 @@ class HlbRequest:
         put(self, "min_fraction", check_fraction(self.min_fraction, "min_fraction"))
         put(self, "jurisdictions", check_jurisdictions(self.jurisdictions, allow_none=True))
         put(self, "category", check_names(self.category, "category", allow_none=False)[0])
+        put(self, "purpose", None if self.purpose is None else check_purpose_text(self.purpose))
         if self.smiles is not None and not str(self.smiles).strip():
             raise InputError("expected a SMILES string, got nothing", param="smiles", value=self.smiles)
         self._check_series()
@@ -209,8 +216,10 @@ class HlbResult:
     ``pairs`` (and ``triples``) are the best ``top`` systems, best first;
     ``pairs_found`` counts every pair that reaches the target.
     ``emulsifier_rules`` lists, per emulsifier shown and jurisdiction, the
-    rule on record or "no data" (never taken as allowed).  ``structure`` holds
-    Griffin's and Davies' results for a SMILES (or why a method does not apply).
+    rule on record or "no data" (never taken as allowed), or "not allowed for
+    this purpose" (naming what its rules allow it for).  ``structure`` holds
+    Griffin's and Davies' results for a SMILES (or why a method does not apply);
+    ``audit`` the version, the tables' checksum and the rules applied.
     """
 
     required_hlb: float | None = None
@@ -224,6 +233,7 @@ class HlbResult:
     series: BenchSeries | None = None
     fit: RequiredHLBFit | None = None
     cautions: tuple[str, ...] = ()
+    audit: dict = field(default_factory=dict)
 
     def to_dict(self) -> dict[str, Any]:
         """The JSON of ``solvsel hlb --json``: the parts asked for, then the cautions."""
@@ -241,6 +251,7 @@ class HlbResult:
         }
         out = {k: v for k, v in parts.items() if v is not None}
         out["cautions"] = list(self.cautions)
+        out["audit"] = self.audit
         return out
 
     def to_frame(self):
@@ -277,24 +288,34 @@ def _systems(cat: Catalog, req: HlbRequest, target: float) -> tuple[list[Emulsif
 
 
 def _emulsifier_rules(cat: Catalog, req: HlbRequest, pool: Sequence[Emulsifier],
-                      systems: Sequence[EmulsifierSystem]) -> tuple[dict, ...]:
-    """Rules on record for each emulsifier shown; none on record is said, never taken as allowed."""
+                      systems: Sequence[EmulsifierSystem], consulted: dict[Limit, None]) -> tuple[dict, ...]:
+    """Rules on record for each emulsifier shown (for the product's purpose when given); none on record
+    is said, never taken as allowed; every row consulted is added to ``consulted``."""
     category = check_category(cat, req.category)
+    purpose = check_purpose(cat, req.purpose)
     shown = list(dict.fromkeys(n for s in systems for n in s.names))
     by_name = {e.name: e for e in pool}
     rows = []
     for name in shown:
         e = by_name[name]
         for j in req.jurisdictions:
-            found = limits(cat, cas=e.cas or None, substance=None if e.cas else name, jurisdiction=j,
+            every = limits(cat, cas=e.cas or None, substance=None if e.cas else name, jurisdiction=j,
                            category=category, use="emulsifier")
+            consulted.update(dict.fromkeys(every))
+            found = rows_for_purpose(every, purpose)
             for lim in found:
                 rows.append({"emulsifier": name, "jurisdiction": j, "rule": lim.rule, "limit": lim.limit,
-                             "unit": lim.unit, "status": lim.status, "text": lim.describe()})
-            if not found:
+                             "unit": lim.unit, "status": lim.status, "text": lim.describe(),
+                             "purposes": list(lim.purposes)})
+            if every and not found:
+                status, text = not_for_purpose(name, "emulsifier", j, purpose, every)
+                rows.append({"emulsifier": name, "jurisdiction": j, "rule": "; ".join(dict.fromkeys(r.rule for r in every)),
+                             "limit": None, "unit": None, "status": status, "text": text, "purposes": []})
+            elif not every:
                 rows.append({"emulsifier": name, "jurisdiction": j, "rule": None, "limit": None, "unit": None,
                              "status": "no data",
-                             "text": f"no rule on record for {name} in {j} {req.category}: not treated as allowed"})
+                             "text": f"no rule on record for {name} in {j} {req.category}: not treated as allowed",
+                             "purposes": []})
     return tuple(rows)
 
 
@@ -320,8 +341,10 @@ def hlb(request: HlbRequest | None = None, *, catalog: Catalog | None = None, **
     """
     req = build_request(HlbRequest, request, fields)
     cat = catalog_or_default(catalog)
+    check_purpose(cat, req.purpose)
     parts: dict = {"structure": _structure(req.smiles) if req.smiles is not None else None}
     cautions: list[str] = []
+    consulted: dict[Limit, None] = {}
     target = req.target
     if req.oil is not None:
         phase = oil_phase_required_hlb(cat, req.oil, dict(req.rhlb) if req.rhlb else None)
@@ -334,10 +357,11 @@ def hlb(request: HlbRequest | None = None, *, catalog: Catalog | None = None, **
         parts.update(systems)
         shown = systems["pairs"] + systems.get("triples", ())
         if req.jurisdictions and shown:
-            parts["emulsifier_rules"] = _emulsifier_rules(cat, req, pool, shown)
+            parts["emulsifier_rules"] = _emulsifier_rules(cat, req, pool, shown, consulted)
     if req.series is not None:
         parts["series"] = _series(cat, req)
     if req.scores is not None:
         parts["fit"] = fit_required_hlb([h for h, _ in req.scores], [s for _, s in req.scores],
                                         "low" if req.lower_is_better else "high")
-    return HlbResult(**parts, cautions=tuple(cautions) + HLB_CAUTIONS + (DEFER,))
+    return HlbResult(**parts, cautions=tuple(cautions) + HLB_CAUTIONS + (DEFER,),
+                     audit=audit_block(consulted, cat.tables_dir))

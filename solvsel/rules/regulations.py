@@ -64,6 +64,8 @@ __all__ = [
     "bundled_purposes",
     "describe_purposes",
     "check_purpose",
+    "rows_for_purpose",
+    "not_for_purpose",
     "food_categories",
     "resolve_category",
     "category_lineage",
@@ -571,9 +573,7 @@ def limits(
     cat = _catalog(cat)
     jur = _check_jurisdiction(jurisdiction, jurisdictions(cat))
     rows = [r for r in _all_limits(cat) if include_revoked or r.in_force]
-    if purpose is not None:
-        purpose = check_purpose(cat, purpose)
-        rows = [r for r in rows if r.status == "not permitted" or r.authorises(purpose)]
+    rows = rows_for_purpose(rows, check_purpose(cat, purpose))
     if cas is None and substance is not None:
         # the rule's own name, or any name / synonym the other tables know for its CAS
         key = _norm(substance)
@@ -700,9 +700,22 @@ def _meet(a: tuple[str, ...] | None, b: tuple[str, ...]) -> tuple[str, ...]:
     return a if ALL_PURPOSES in b else tuple(p for p in a if p in b)
 
 
-def _other_purposes(name: str, use: str, jur: str, purpose: str, rows: Sequence[Limit]) -> tuple[str, str]:
-    """(status, message) of a liquid whose rules allow none of them for ``purpose``: each rule named
-    with the purposes it does allow; rules that name no purpose are no data."""
+def rows_for_purpose(rows: Iterable[Limit], purpose: str | None) -> list[Limit]:
+    """The rows that judge a substance for ``purpose``: those that authorise it (or every purpose) and
+    those that permit nothing; every row when no purpose is given."""
+    rows = list(rows)
+    return rows if purpose is None else [r for r in rows if r.status == "not permitted" or r.authorises(purpose)]
+
+
+def not_for_purpose(name: str, use: str, jur: str, purpose: str, rows: Sequence[Limit]) -> tuple[str, str]:
+    """(status, message) of a substance none of whose ``rows`` allows it for ``purpose``: "not allowed
+    for this purpose", each rule named with the purposes it does allow; "no data" when the rules name
+    no purpose (never a permission).
+
+    >>> rows = limits(cas="71-36-3", jurisdiction="EU", use="extraction")
+    >>> not_for_purpose("1-butanol", "extraction", "EU", "food_ingredient", rows)[1]
+    '1-butanol: not allowed for food_ingredient as extraction in EU; Dir. 2009/32/EC Annex I Part III allows it for natural_flavouring only'
+    """
     by_rule: dict[str, dict] = {}
     for r in rows:
         if r.purposes and r.status != "not permitted":
@@ -753,9 +766,9 @@ def _status_one(cat, cas: str, name: str, use: str, jur: str, category: str | No
         return _One("no data", (), (), f"no {jur} rule for {name} as {use} in the bundled table (that is not a permission)",
                     ())
     ids = _purposes_of(rows)
-    judged = rows if purpose is None else tuple(r for r in rows if r.status == "not permitted" or r.authorises(purpose))
+    judged = rows_for_purpose(rows, purpose)
     if not judged:
-        status, message = _other_purposes(name, use, jur, purpose, rows)
+        status, message = not_for_purpose(name, use, jur, purpose, rows)
         return _One(status, (), rows, message, ids)
     status, conds, message = _verdict(name, use, jur, judged, category is not None)
     if status in ("permitted", "conditional"):
@@ -1427,16 +1440,12 @@ def _residue_not_for_purpose(disp: str, cas: str, ppm: float, jur: str, purpose:
         by_rule.setdefault(r.rule, []).append(r)
     out = []
     for rule, mine in by_rule.items():
-        ids = _purposes_of(mine)
-        status = NOT_FOR_PURPOSE if ids else "no data"
-        said = (f"{disp}: not allowed for {purpose} as an extraction solvent in {jur}; {rule} allows it for "
-                f"{', '.join(ids)} only" if ids else
-                f"{disp}: {rule} names no purpose, so it is not known to allow {purpose} (that is not a permission)")
+        status, said = not_for_purpose(disp, "extraction", jur, purpose, mine)
         worst = max(mine, key=_doubt)
         out.append(ResidueCheck(disp, cas, ppm, rule, jur, "status", f"not authorised for {purpose}", None, None, "",
-                                False if ids else None, None, status, False, worst.confidence,
+                                False if status == NOT_FOR_PURPOSE else None, None, status, False, worst.confidence,
                                 tuple(dict.fromkeys(x for r in mine for x in r.source)), said,
-                                checked_on=worst.checked_on, purposes=ids))
+                                checked_on=worst.checked_on, purposes=_purposes_of(mine)))
     return out
 
 
@@ -1496,7 +1505,7 @@ def _residue_checks(cat, residues: Mapping[str, float], jur: str, category: str,
         if not rows:
             out.append(_unlisted_residue(disp, cas, ppm, jur))
         elif purpose is not None:
-            judged = [r for r in rows if r.status == "not permitted" or r.authorises(purpose)]
+            judged = rows_for_purpose(rows, purpose)
             if not judged:
                 out += _residue_not_for_purpose(disp, cas, ppm, jur, purpose, rows)
             rows = judged
