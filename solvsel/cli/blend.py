@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from ..jobs.parse import parse_amounts, parse_fraction_bound, parse_names, parse_range
+from ..rules.regulations import FOOD_JURISDICTIONS, bundled_purposes, describe_purposes
 from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 from ._target import add_target_arguments, target_fields
 
@@ -34,8 +35,10 @@ def register(sub):
     g.add_argument("--exclude", metavar="NAMES", help="leave these liquids out (comma-separated)")
     g.add_argument("--use", choices=("carrier", "extraction", "bench"),
                    help="intended use: keeps liquids listed for it (and, with --jurisdiction, permitted for it)")
-    g.add_argument("--jurisdiction", choices=("EU", "US"),
+    g.add_argument("--jurisdiction", choices=FOOD_JURISDICTIONS,
                    help="leave out liquids the bundled food-law table does not permit for the use there")
+    g.add_argument("--purpose", choices=tuple(bundled_purposes()), metavar="PURPOSE",
+                   help="what the product is; only liquids a rule allows for it are kept: " + describe_purposes())
     g.add_argument("--food", action="store_true",
                    help="only liquids whose food status for the use is permitted or conditional (in EU or US)")
     g.add_argument("--fraction", metavar="BOUND", action="append", default=[],
@@ -87,7 +90,8 @@ def request(args):
         max_components=args.max_components,
         only=parse_names(args.only, "only") if args.only else None,
         exclude=parse_names(args.exclude, "exclude") if args.exclude else (),
-        use=args.use, food=args.food, jurisdiction=args.jurisdiction, worst_flammable_category=args.worst_hazard,
+        use=args.use, food=args.food, jurisdiction=args.jurisdiction, purpose=args.purpose,
+        worst_flammable_category=args.worst_hazard,
         bp_min_C=bp_lo, bp_max_C=bp_hi, min_flash_C=args.min_flash, max_cost=args.max_cost,
         bounds=tuple(parse_fraction_bound(b, "bounds") for b in args.fraction),
         temp_C=args.temp,
@@ -203,7 +207,7 @@ def _print_front_and_law(res, file) -> None:
     if regs:
         print("\nFood-law status of the liquids shown (bundled table; check the regulations in force):", file=file)
         for name, rg in regs.items():
-            line = f"  {name}: {rg['status']}"
+            line = f"  {name}: {rg.get('status_text', rg['status'])}"
             if rg.get("conditions"):
                 line += " - " + "; ".join(rg["conditions"][:2]) + (" ..." if len(rg["conditions"]) > 2 else "")
             print(line, file=file)

@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import math
 
+from ..rules.regulations import FOOD_JURISDICTIONS, bundled_purposes, describe_purposes
 from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 
 #: Request fields given otherwise than as --field.
@@ -46,7 +47,10 @@ def register(subparsers):
     p.add_argument("--chain", metavar="STEPS", help="dilution chain (see above); without it the dose goes into the food as consumed")
     p.add_argument("--category", default=None, help="food category of the food as consumed (default: food, i.e. all foods); "
                    "see 'solvsel table food_categories'")
-    p.add_argument("--jurisdiction", required=True, type=str.upper, choices=("EU", "US"), help="whose limits to apply")
+    p.add_argument("--jurisdiction", required=True, type=str.upper, choices=FOOD_JURISDICTIONS, help="whose limits to apply")
+    p.add_argument("--purpose", choices=tuple(bundled_purposes()), metavar="PURPOSE",
+                   help="what the formula is; its residues are judged by the rules for that purpose only (without it "
+                   "every residue rule is shown with the purposes it applies to): " + describe_purposes())
     p.add_argument("--already", metavar="NAME=MG_PER_KG,...",
                    help="what other ingredients already bring to the food as consumed [mg/kg]")
     p.add_argument("--residue", metavar="SOLVENT=PPM,...",
@@ -64,6 +68,11 @@ def _fmt(x, spec=".4g"):
     return format(x, spec)
 
 
+def _purposes(ids) -> str:
+    """The purposes a rule allows, as the tables show them ("-" for a rule that names none)."""
+    return "any purpose" if "all" in ids else (", ".join(ids) or "-")
+
+
 def request(args):
     """The :class:`~solvsel.jobs.dose.DoseRequest` the options ask for."""
     from ..jobs.dose import DoseRequest
@@ -73,7 +82,7 @@ def request(args):
         formula=args.formula, by=args.by, dose=args.dose, chain=args.chain, category=args.category,
         jurisdiction=args.jurisdiction, already=args.already, residues=args.residue,
         claims=tuple(c for item in args.claim for c in parse_names(item, "claims")),
-        formula_density=args.formula_density,
+        formula_density=args.formula_density, purpose=args.purpose,
     )
 
 
@@ -94,7 +103,8 @@ def run(args) -> int:
 def _print(r) -> None:
     comps = ", ".join(f"{c.name} {c.mass_fraction * 100:.4g} %" for c in r.formula.components)
     print(f"Formula '{r.formula.name}' (by mass): {comps}")
-    print(f"Limits of: {r.jurisdiction}; food as consumed: {r.category}")
+    print(f"Limits of: {r.jurisdiction}; food as consumed: {r.category}"
+          + (f"; the formula is for: {r.purpose}" if r.purpose else ""))
     for i, st in enumerate(r.stages):
         head = f"\nStage {i}: {st.name}"
         if st.step is not None:
@@ -116,11 +126,13 @@ def _print(r) -> None:
                 "ok": "ok" if c.ok else "OVER", "binds": "binds" if c.binds else "",
                 "max_dose": _fmt(None if c.max_dose is None else c.max_dose * (100 if r.max_dose_unit.endswith("fraction") else 1)),
                 "confidence": c.confidence, "checked": c.checked_on or "not recorded", "source": ";".join(c.source),
+                "for": _purposes(c.purposes),
             })
         unit = "%" if r.max_dose_unit.endswith("fraction") else r.max_dose_unit
         print_table(rows, [("rule", "rule"), ("substance", "substance"), ("level", "level"), ("limit", "limit"), ("unit", "unit"),
                            ("use", "of limit"), ("ok", "ok"), ("binds", "binds"), ("max_dose", f"max dose [{unit}]"),
-                           ("confidence", "confidence"), ("checked", "checked on"), ("source", "source")])
+                           ("confidence", "confidence"), ("checked", "checked on"), ("source", "source"),
+                           ("for", "rule allows it for")])
     else:
         print("  no limit of the table applies")
     for d in r.no_data:
@@ -129,13 +141,18 @@ def _print(r) -> None:
         print("\nResidual solvents:")
         rows = [{
             "substance": x.substance, "measured": x.measured_ppm, "rule": x.rule + (" (reference)" if x.reference_only else ""),
-            "in": x.applies_to, "level": _fmt(x.level), "limit": _fmt(x.limit) if x.limit is not None else x.status,
+            "in": x.measured_in or "-", "level": _fmt(x.level),
+            "limit": _fmt(x.limit) if x.limit is not None else x.status,
             "unit": x.unit, "ok": {True: "ok", False: "OVER" if x.limit is not None else "NO", None: "?"}[x.ok],
-            "tolerated": _fmt(x.tolerated_ppm), "confidence": x.confidence,
+            "tolerated": _fmt(x.tolerated_ppm), "confidence": x.confidence, "for": _purposes(x.purposes),
         } for x in r.residues]
         print_table(rows, [("substance", "solvent"), ("measured", "ppm in formula", ".4g"), ("rule", "rule"), ("in", "measured in"),
                            ("level", "level"), ("limit", "limit"), ("unit", "unit"), ("ok", "ok"),
-                           ("tolerated", "tolerated ppm in formula"), ("confidence", "confidence")])
+                           ("tolerated", "tolerated ppm in formula"), ("confidence", "confidence"),
+                           ("for", "rule allows it for")])
+        for x in r.residues:
+            if x.status in ("not allowed for this purpose", "no data") and x.note:
+                print(f"  {x.note}")
     if r.claims:
         print("\nClaim rules (examples: verify with your certifier):")
         rows = [{

@@ -5,6 +5,7 @@ from __future__ import annotations
 import sys
 
 from ..jobs.parse import parse_amounts, parse_fraction, parse_names
+from ..rules.regulations import FOOD_JURISDICTIONS, bundled_purposes, describe_purposes
 from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 
 
@@ -38,7 +39,11 @@ def register(sub):
     p.add_argument("--height-mm", type=float, default=100.0, metavar="MM",
                    help="liquid height the droplets must not cross in the shelf life (default 100 mm)")
     p.add_argument("--shelf-days", type=float, default=180.0, metavar="DAYS", help="target shelf life in days (default 180)")
-    p.add_argument("--jurisdiction", default="US,EU", metavar="J,...", help="jurisdictions to check: US, EU (default both)")
+    p.add_argument("--jurisdiction", default="US,EU", metavar="J,...",
+                   help=f"jurisdictions to check: {', '.join(FOOD_JURISDICTIONS)} (default US,EU)")
+    p.add_argument("--purpose", choices=tuple(bundled_purposes()), metavar="PURPOSE",
+                   help="what the product is; an agent or emulsifier is legal only where a rule allows it for that "
+                   "purpose: " + describe_purposes())
     p.add_argument("--category", default="flavoured drinks", metavar="FOOD",
                    help="food category of the finished drink (solvsel table food_categories; default flavoured drinks)")
     p.add_argument("--oil-density", metavar="NAME=G_CM3,...", help="densities for oils with none on record")
@@ -69,7 +74,7 @@ def request_from_args(args):
         height_mm=args.height_mm, shelf_days=args.shelf_days,
         jurisdictions=parse_names(args.jurisdiction, "jurisdictions"), category=args.category,
         oil_density=parse_amounts(args.oil_density, "oil_density") if args.oil_density else None, nano=args.nano,
-        emulsifier=args.emulsifier, emulsifier_ratio=args.emulsifier_ratio,
+        emulsifier=args.emulsifier, emulsifier_ratio=args.emulsifier_ratio, purpose=args.purpose,
     )
 
 

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from ..jobs.parse import parse_amounts, parse_names, parse_range
+from ..rules.regulations import FOOD_JURISDICTIONS, bundled_purposes, describe_purposes
 from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 
 
@@ -32,7 +33,11 @@ def register(sub):
     e.add_argument("--min-fraction", type=float, default=0.05, metavar="F",
                    help="drop systems in which an emulsifier is below this mass fraction (default 0.05)")
     e.add_argument("--jurisdiction", metavar="J,...",
-                   help="show the legal rules on record for the emulsifiers of the systems shown (US, EU)")
+                   help="show the legal rules on record for the emulsifiers of the systems shown "
+                   f"({', '.join(FOOD_JURISDICTIONS)})")
+    e.add_argument("--purpose", choices=tuple(bundled_purposes()), metavar="PURPOSE",
+                   help="with --jurisdiction: what the product is; an emulsifier's rule counts only where it allows "
+                   "that purpose: " + describe_purposes())
     e.add_argument("--category", default="flavoured drinks", metavar="FOOD",
                    help="food category for those rules (default flavoured drinks)")
     s = p.add_argument_group("structure")
@@ -71,7 +76,7 @@ def request_from_args(args):
         oil=given(args.oil, parse_amounts, "oil"), rhlb=given(args.rhlb, parse_amounts, "rhlb"), target=args.target,
         emulsifiers=given(args.emulsifiers, parse_names, "emulsifiers"), triples=args.triples, top=args.top,
         min_fraction=args.min_fraction, jurisdictions=given(args.jurisdiction, parse_names, "jurisdictions"),
-        category=args.category, smiles=args.smiles, series=given(args.series, parse_names, "series"), n=args.n,
+        category=args.category, purpose=args.purpose, smiles=args.smiles, series=given(args.series, parse_names, "series"), n=args.n,
         span=given(args.span, parse_range, "span", "HLB"), batch_g=args.batch_g, emulsifier_pct=args.emulsifier_pct,
         oil_pct=args.oil_pct, scores=given(args.scores, parse_scores, "scores"), lower_is_better=args.lower_is_better,
     )

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from ..jobs.parse import parse_names, parse_range
+from ..rules.regulations import FOOD_JURISDICTIONS, bundled_purposes, describe_purposes
 from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 from ._target import add_target_arguments, target_fields
 
@@ -27,7 +28,10 @@ def register(sub):
     group.add_argument("--like", metavar="NAME", help="find the liquids nearest to this liquid (substitutes)")
     p.add_argument("--food", action="store_true", help="only liquids whose food status for the use is permitted or conditional")
     p.add_argument("--use", choices=("carrier", "extraction", "bench"), default=None, help="intended use (default carrier)")
-    p.add_argument("--jurisdiction", choices=("EU", "US"), help="food law to apply (default: most permissive of EU and US)")
+    p.add_argument("--jurisdiction", choices=FOOD_JURISDICTIONS,
+                   help="food law to apply (default: the most permissive of " + ", ".join(FOOD_JURISDICTIONS) + ")")
+    p.add_argument("--purpose", choices=tuple(bundled_purposes()), metavar="PURPOSE",
+                   help="what the product is; only liquids a rule allows for it are kept: " + describe_purposes())
     p.add_argument("--only", metavar="NAMES", help="rank only these liquids (comma-separated)")
     p.add_argument("--exclude", metavar="NAMES", help="leave these liquids out (comma-separated)")
     p.add_argument("--worst-hazard", metavar="CAT", choices=("1", "2", "3", "4", "none"),
@@ -59,7 +63,8 @@ def request(args):
         **target_fields(args), like=args.like,
         only=parse_names(args.only, "only") if args.only else None,
         exclude=parse_names(args.exclude, "exclude") if args.exclude else (),
-        use=args.use, food=args.food, jurisdiction=args.jurisdiction, worst_flammable_category=args.worst_hazard,
+        use=args.use, food=args.food, jurisdiction=args.jurisdiction, purpose=args.purpose,
+        worst_flammable_category=args.worst_hazard,
         bp_min_C=bp_lo, bp_max_C=bp_hi, min_flash_C=args.min_flash, max_cost=args.max_cost,
         temp_C=args.temp, top=args.top, all=args.all,
         dose=args.dose, category=args.category, chain=args.chain, keep_over=args.keep_over,

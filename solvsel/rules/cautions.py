@@ -189,6 +189,12 @@ def limit_cautions(check: DoseCheck) -> list[str]:
             "Residual solvents: measured residues come from headspace GC of the actual lot; limits differ by jurisdiction "
             "and use, and a prediction never replaces the measurement."
         )
+        if check.purpose is None:
+            out.append(
+                "No purpose given: every residue rule of the solvents is shown, but each applies only to the purposes "
+                "it names (spice oleoresins, hop extracts, flavourings ...); give the purpose of the formula to judge "
+                "its residues."
+            )
     if check.claims:
         out.append("Claim rules are examples from tables/claims.csv: verify with your certifier.")
     return out
