@@ -1,9 +1,11 @@
 """Markdown, CSV and JSON export of any result.
 
 A report is the readable text of a command, its JSON document, a CSV of its
-main list (results, pairs, stages ... flattened to columns), and the full
-citations of every source id the result mentions, so a reader can check each
-number.  Files that exist are never overwritten unless asked.
+main list (results, pairs, stages ... flattened to columns), the full
+citations of every source id the result mentions, and the audit trail (the
+version of solvsel, the checksum of the tables and every rule applied with the
+date it was checked against its text), so a reader can check each number.
+Files that exist are never overwritten unless asked.
 """
 
 from __future__ import annotations
@@ -16,9 +18,10 @@ from pathlib import Path
 from typing import Any, Iterable
 
 from .._version import __version__
+from ..data.provenance import audit_block
 from ..errors import InputError, UnknownNameError
 
-__all__ = ["collect_source_ids", "rows_for_csv", "render_markdown", "write_report"]
+__all__ = ["collect_source_ids", "rows_for_csv", "render_markdown", "audit_markdown", "write_report"]
 
 _SOURCE_KEYS = ("sources", "source", "hsp_source", "props_source", "source_ids")
 _LIST_KEYS = ("results", "pairs", "stages", "limits", "options", "wrong_side", "suggested_tests")
@@ -85,6 +88,26 @@ def rows_for_csv(data: Any) -> list[dict[str, Any]]:
     return [{"value": data}]
 
 
+def audit_markdown(audit: dict | None) -> list[str]:
+    """The ``## Audit`` section of a report: version, tables' checksum and the rules applied (lines).
+
+    >>> audit_markdown({"solvsel_version": "1.0", "tables_sha256": "ab", "rules_applied": [
+    ...     {"rule": "21 CFR 173.270", "jurisdiction": "US", "checked_on": None, "confidence": "checked",
+    ...      "source": ["s1"]}]})[4]
+    '- US 21 CFR 173.270: checked on: not recorded; confidence: checked; sources: s1'
+    """
+    if not audit:
+        return []
+    lines = ["## Audit", "", f"solvsel {audit.get('solvsel_version')}; tables SHA-256 `{audit.get('tables_sha256')}`", ""]
+    rules = audit.get("rules_applied") or []
+    for r in rules:
+        lines.append(f"- {r['jurisdiction']} {r['rule']}: checked on: {r.get('checked_on') or 'not recorded'}; "
+                     f"confidence: {r['confidence']}; sources: {', '.join(r.get('source') or []) or '-'}")
+    if not rules:
+        lines.append("No legal rule was applied in this answer.")
+    return lines + [""]
+
+
 def render_markdown(title: str, command: str, text: str, data: Any, citations: Iterable[dict]) -> str:
     """A Markdown report: what was run, its readable output, and the sources cited."""
     when = _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
@@ -111,6 +134,7 @@ def render_markdown(title: str, command: str, text: str, data: Any, citations: I
             url = f" <{c['url']}>" if c.get("url") else ""
             lines.append(f"- `{c['id']}` ({c['kind']}): {c['citation']}{url}")
         lines.append("")
+    lines += audit_markdown(data.get("audit") if isinstance(data, dict) else None)
     lines += [
         "## Caution",
         "",
@@ -138,6 +162,8 @@ def write_report(out: str | Path, title: str, command: str, text: str, data: Any
             raise InputError(f"report: {existing[0]} exists already; choose another name or pass --force to replace it")
     if not md.parent.exists():
         raise InputError(f"report: folder '{md.parent}' does not exist")
+    if isinstance(data, dict) and "audit" not in data:
+        data = {**data, "audit": audit_block(tables_dir=getattr(catalog, "tables_dir", None))}
     citations = []
     if catalog is not None:
         for sid in collect_source_ids(data):
