@@ -67,18 +67,25 @@ def _amounts(d: dict) -> str:
     return ",".join(f"{k}={v:g}" for k, v in d.items())
 
 
+def _purpose(part: dict) -> list[str]:
+    """The ``--purpose`` of a step whose part of the scenario states what the product is (else nothing)."""
+    return ["--purpose", part["purpose"]] if part.get("purpose") else []
+
+
 def demo_steps(s: Scenario) -> list[tuple[str, list[str]]]:
-    """(title, argv) of each step of the walk-through, in order."""
+    """(title, argv) of each step of the walk-through, in order; a part of the scenario that states the
+    product's purpose passes it on, so the step keeps only liquids allowed for it."""
     c, x, e, f = s.carrier, s.extraction, s.emulsion, s.flavour
     return [
         (f"1. Single food carriers for {s.solute}, nearest in Hansen space first",
          ["rank", "--solute", s.solute, "--food", "--use", c["use"], "--jurisdiction", c["jurisdiction"],
-          "--top", str(c.get("top", 8))]),
+          *_purpose(c), "--top", str(c.get("top", 8))]),
         (f"2. Carrier blends of up to {c['max_components']} liquids ({c['jurisdiction']}, {c['use']} use)",
-         ["blend", "--solute", s.solute, "--use", c["use"], "--jurisdiction", c["jurisdiction"],
+         ["blend", "--solute", s.solute, "--use", c["use"], "--jurisdiction", c["jurisdiction"], *_purpose(c),
           "--max-components", str(c["max_components"]), "--top", str(c.get("top", 8))]),
-        (f"3. Extraction solvents at {x['temp_C']:g} C that keep {', '.join(x['reject'])} out",
-         ["blend", "--solute", s.solute, "--use", x["use"], "--jurisdiction", x["jurisdiction"],
+        (f"3. Extraction solvents at {x['temp_C']:g} C that keep {', '.join(x['reject'])} out"
+         + (f", allowed for a {x['purpose'].replace('_', ' ')}" if x.get("purpose") else ""),
+         ["blend", "--solute", s.solute, "--use", x["use"], "--jurisdiction", x["jurisdiction"], *_purpose(x),
           "--reject", ",".join(x["reject"]), "--temp", f"{x['temp_C']:g}",
           "--max-components", str(x["max_components"]), "--top", str(x.get("top", 8))]),
         ("4. Emulsifier pairs for the lemon oil phase",
