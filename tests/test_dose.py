@@ -25,10 +25,16 @@ def cat():
     return load_catalog()
 
 
-def only(checks, rule):
-    hits = [c for c in checks if c.rule == rule]
-    assert len(hits) == 1, [c.rule for c in checks]
+def only(checks, rule, group=None):
+    """The one check of ``rule`` (of its ``group``: "" for a substance alone, when the rule has both)."""
+    hits = [c for c in checks if c.rule == rule and (group is None or c.group == group)]
+    assert len(hits) == 1, [(c.rule, c.group) for c in checks]
     return hits[0]
+
+
+#: Reg. (EC) No 1333/2008 Annex III Part 4 and the group id its rows give E 1505, E 1517, E 1518 and E 1520.
+PART4 = "Reg. (EC) No 1333/2008 Annex III Part 4"
+CARRIER_GROUP = "eu_1333_annex3_carriers"
 
 
 # ----------------------------------------------------------------------------- chain arithmetic
@@ -104,16 +110,22 @@ def test_parse_chain_and_amount_errors():
 
 def test_eu_carrier_group_sums_members(cat):
     # Reg. (EC) No 1333/2008 Annex III Part 4: PG + triacetin + triethyl citrate + diacetin together at most
-    # 1 000 mg/L in beverages. 50 % PG / 50 % triacetin at 0.12 % in a drink of 1.00: each 600 mg/L (under
-    # alone), together 1 200 mg/L (over).
+    # 3 000 mg/kg of the food as consumed. 50 % PG / 50 % triacetin at 0.4 % in a confection: each 2 000 mg/kg
+    # (under alone), together 4 000 mg/kg (over); the largest dose is 0.3 %.
     f = fm.formula_from_amounts(cat, [("propylene glycol", 50), ("triacetin", 50)])
-    r = cp.check_dose(cat, f, parse_chain("drink 0.12% d=1.00"), "EU", "flavoured drinks")
-    c = only(r.checks, "Reg. (EC) No 1333/2008 Annex III Part 4")
-    assert set(c.members) == {"propylene glycol", "triacetin"}
-    assert c.level == pytest.approx(1200) and c.unit == "mg/L" and not c.ok and c.binds
-    assert r.max_dose == pytest.approx(0.001, rel=1e-12) and not r.ok
-    under = cp.check_dose(cat, f, parse_chain("drink 0.08% d=1.00"), "EU", "flavoured drinks")
+    r = cp.check_dose(cat, f, parse_chain(None, "0.4%"), "EU", "confectionery")
+    c = only(r.checks, PART4)
+    assert set(c.members) == {"propylene glycol", "triacetin"} and c.group == CARRIER_GROUP
+    assert c.level == pytest.approx(4000) and c.unit == "mg/kg" and not c.ok and c.binds
+    assert r.max_dose == pytest.approx(0.003, rel=1e-12) and not r.ok
+    under = cp.check_dose(cat, f, parse_chain(None, "0.25%"), "EU", "confectionery")
     assert only(under.checks, c.rule).ok and under.ok
+    # in a drink the group limit still holds, and E 1520 alone has its 1 000 mg/L: at 0.12 % in a drink of 1.00,
+    # PG 600 mg/L (under), the group 1 200 mg/kg (under)
+    drink = cp.check_dose(cat, f, parse_chain("drink 0.12% d=1.00"), "EU", "flavoured drinks")
+    pg = only(drink.checks, PART4, "")
+    assert pg.members == ("propylene glycol",) and pg.level == pytest.approx(600) and pg.unit == "mg/L" and pg.ok
+    assert only(drink.checks, PART4, CARRIER_GROUP).level == pytest.approx(1200) and drink.ok
 
 
 def test_eu_pg_flavour_capped_at_03_percent_in_food_and_01_in_drinks(cat):
@@ -139,7 +151,7 @@ def test_level_at_max_dose_equals_limit(cat):
     f = fm.formula_from_amounts(cat, [("propylene glycol", 70), ("triethyl citrate", 20), ("ethanol", 10)])
     r = cp.check_dose(cat, f, parse_chain("syrup d=1.3; drink 1+5v d=1.045", "0.4%"), "EU", "flavoured drinks")
     again = cp.check_dose(cat, f, parse_chain("syrup d=1.3; drink 1+5v d=1.045", r.max_dose), "EU", "flavoured drinks")
-    b = only(again.checks, r.binding.rule)
+    b = only(again.checks, r.binding.rule, r.binding.group)
     assert b.level == pytest.approx(b.limit, rel=1e-9) and b.ok
 
 
@@ -318,11 +330,14 @@ def test_group_level_is_the_sum_and_max_dose_meets_the_limit(parts, dose, rho):
     total = sum(parts)
     f = fm.formula_from_amounts(cat, [(n, 100 * p / total) for n, p in zip(names, parts)])
     r = cp.check_dose(cat, f, parse_chain(f"drink d={rho!r}", dose), "EU", "flavoured drinks")
-    grp = only(r.checks, "Reg. (EC) No 1333/2008 Annex III Part 4")
+    grp = only(r.checks, PART4, CARRIER_GROUP)
     members = sum(p / total for p in parts[:3])
-    assert grp.level == pytest.approx(members * dose * 1e6 * rho, rel=1e-9)
+    assert grp.level == pytest.approx(members * dose * 1e6, rel=1e-9) and grp.unit == "mg/kg"
+    pg = only(r.checks, PART4, "")  # E 1520 alone in beverages, by volume
+    assert pg.level == pytest.approx(parts[0] / total * dose * 1e6 * rho, rel=1e-9) and pg.unit == "mg/L"
     at_max = cp.check_dose(cat, f, parse_chain(f"drink d={rho!r}", r.max_dose), "EU", "flavoured drinks")
-    assert only(at_max.checks, grp.rule).level == pytest.approx(1000, rel=1e-9)
+    b = only(at_max.checks, r.binding.rule, r.binding.group)
+    assert b.level == pytest.approx(b.limit, rel=1e-9)
 
 
 def test_practice_worked_check_ester_gum_per_litre(cat):
