@@ -101,12 +101,15 @@ def test_the_carriers_screen_shows_the_library_result(library, cat):
             assert [str(grid.get_row_at(i)[1]) for i in range(grid.row_count)] == [
                 b.label + (f" (+{len(b.alternatives)} alike)" if b.alternatives else "") for b in library.results]
 
-            # the extraction preset (rejects at -20 C) gives the library's answer to the same request
+            # the extraction preset (rejects at -20 C, for the demo's purpose: a food ingredient) gives the
+            # library's answer to the same request
             await pilot.press("ctrl+g")
             await _settle(app, pilot)
             x = app.session.scenario.extraction
-            ref = blend(solute="cannabidiol", use=x["use"], jurisdiction=x["jurisdiction"], temp_C=x["temp_C"],
-                        max_components=x["max_components"], rejects=tuple(x["reject"]), top=10, catalog=cat)
+            assert screen.query_one("#purpose").value == x["purpose"] == "food_ingredient"
+            ref = blend(solute="cannabidiol", use=x["use"], jurisdiction=x["jurisdiction"], purpose=x["purpose"],
+                        temp_C=x["temp_C"], max_components=x["max_components"], rejects=tuple(x["reject"]), top=10,
+                        catalog=cat)
             assert ref.results and all(b.rejects for b in ref.results)
             _same_blends(screen.result.results, ref.results)
             assert [b.selectivity for b in screen.result.results] == pytest.approx(

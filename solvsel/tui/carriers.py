@@ -1,8 +1,8 @@
 """Carriers screen: single liquids ranked for the target, and optimised blends.
 
-The constraints on the left bound both lists (use, jurisdiction, largest
-blend, lowest flash point, boiling window, temperature, liquids left out,
-solutes to keep out): the form becomes a request of the ``rank`` job
+The constraints on the left bound both lists (use, jurisdiction, the product's
+purpose, largest blend, lowest flash point, boiling window, temperature,
+liquids left out, solutes to keep out): the form becomes a request of the ``rank`` job
 (:mod:`solvsel.jobs.rank`) and one of the ``blend`` job (:mod:`solvsel.jobs.blend`);
 the blend search runs in a cancellable thread worker that posts
 :class:`BlendProgress` and :class:`BlendDone` messages.  Blends dropped by a
@@ -21,6 +21,7 @@ from textual.widgets import Button, DataTable, Input, Label, ProgressBar, Select
 from textual.worker import Worker, WorkerState, get_current_worker
 
 from .base import BenchScreen
+from .limits import NO_PURPOSE, audit_text, purpose_choices, purpose_value
 from .widgets import CautionBox, fill_table
 
 RANK_HEADERS = ("#", "liquid", "Ra", "RED", "bp C", "flash C", "GHS", "food status", "cost")
@@ -79,6 +80,7 @@ class CarriersScreen(BenchScreen):
         "temp_C": "temperature", "min_flash_C": "lowest flash point", "bp_min_C": "boiling window",
         "bp_max_C": "boiling window", "exclude": "leave out", "rejects": "keep out of solution",
         "use": "use", "jurisdiction": "jurisdiction", "max_components": "largest blend (liquids)",
+        "purpose": "the product is for",
     }
     BINDINGS = [
         Binding("ctrl+r", "search", "Search blends", priority=True),
@@ -109,6 +111,9 @@ class CarriersScreen(BenchScreen):
                 yield Select(USE_CHOICES, value="carrier", allow_blank=False, id="use", compact=True)
                 yield Label("Jurisdiction")
                 yield Select(JURISDICTIONS, value="EU", allow_blank=False, id="jurisdiction", compact=True)
+                yield Label("The product is for")
+                yield Select(purpose_choices(self.session.catalog), value=NO_PURPOSE, allow_blank=False,
+                             id="purpose", compact=True)
                 yield Label("Largest blend (liquids)")
                 yield Select([(str(k), k) for k in (1, 2, 3, 4)], value=3, allow_blank=False, id="max-components", compact=True)
                 yield Label("Lowest flash point, C")
@@ -166,6 +171,7 @@ class CarriersScreen(BenchScreen):
         part = self.session.scenario_part(key)
         self.query_one("#use", Select).value = part.get("use", key)
         self.query_one("#jurisdiction", Select).value = part.get("jurisdiction", "EU")
+        self.query_one("#purpose", Select).value = part.get("purpose") or NO_PURPOSE
         self.query_one("#max-components", Select).value = int(part.get("max_components", 3))
         self.query_one("#temp", Input).value = f"{float(part.get('temp_C', 25.0)):g}"
         self.query_one("#rejects", Input).value = ", ".join(part.get("reject", []))
@@ -202,7 +208,7 @@ class CarriersScreen(BenchScreen):
         lo, hi = parse_range(window, "bp_min_C") if window else (None, None)
         common = dict(
             target=self.session.target, use=None if use == "any" else use,
-            jurisdiction=None if jur == "none" else jur,
+            jurisdiction=None if jur == "none" else jur, purpose=purpose_value(self.query_one("#purpose", Select)),
             min_flash_C=None if flash is None else parse_number(flash, "min_flash_C", "C"),
             bp_min_C=lo, bp_max_C=hi,
             temp_C=parse_number(self.query_one("#temp", Input).value, "temp_C", "C"),
@@ -246,6 +252,7 @@ class CarriersScreen(BenchScreen):
         if self.ranking.dropped:
             t.append(f"{len(self.ranking.dropped)} liquids left out of the ranking (e.g. "
                      + "; ".join(f"{d.name}: {d.brief}" for d in self.ranking.dropped[:2]) + ")\n", style="dim")
+        t.append_text(audit_text(self.ranking.audit))
         self.query_one("#carrier-detail", Static).update(t)
         self.show_cautions(r)
 
@@ -403,7 +410,7 @@ class CarriersScreen(BenchScreen):
         elif grid_id == "excluded-grid" and self.result is not None and 0 <= row < len(self.result.excluded):
             e = self.result.excluded[row]
             self.query_one("#carrier-detail", Static).update(Text.assemble(
-                ("not in the pool: ", "bold"), (e.name + "\n", "bold"), e.reason))
+                ("not in the pool: ", "bold"), (e.name + "\n", "bold"), e.reason, audit_text(self.result.audit)))
 
     def show_blend(self, b) -> None:
         t = Text()
@@ -428,10 +435,11 @@ class CarriersScreen(BenchScreen):
             if g is not None:
                 t.append(f"solubility estimate: {g:.3g} g/L (an estimate; confirm at the bench)\n")
         for rg in b.regulations:
-            line = f"{rg.get('name', '')}: {rg.get('status', '')}"
+            line = f"{rg.get('name', '')}: {rg.get('status_text') or rg.get('status', '')}"
             if rg.get("conditions"):
                 line += " - " + "; ".join(rg["conditions"][:2])
             t.append(line + "\n", style="italic")
+        t.append_text(audit_text(self.result.audit if self.result is not None else None))
         self.query_one("#carrier-detail", Static).update(t)
         self.show_cautions(b)
 

@@ -14,10 +14,11 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, VerticalScroll
-from textual.widgets import Button, DataTable, Input, Label, Static
+from textual.widgets import Button, DataTable, Input, Label, Select, Static
 
 from .base import BenchScreen
 from .dialogs import field_label
+from .limits import NO_PURPOSE, purpose_choices, purpose_value
 from .widgets import CautionBox, fill_table
 
 PAIR_HEADERS = ("emulsifier A", "share A", "emulsifier B", "share B", "blend HLB", "same tail")
@@ -39,7 +40,7 @@ class EmulsionScreen(BenchScreen):
     #: Labels of the fields by the field of the emulsion request they fill.
     FIELD_LABELS = {"oil": "oil phase", "oil_density": "oil phase", "brix": "sugar, degrees Brix",
                     "dilution": "dilution", "oil_phase": "oil phase in the concentrate",
-                    "droplet_um": "droplet diameter", "jurisdictions": "jurisdictions"}
+                    "droplet_um": "droplet diameter", "jurisdictions": "jurisdictions", "purpose": "the product is for"}
     #: The same for the HLB request (its oil phase is the oils whose required HLB counts).
     HLB_FIELD_LABELS = {"oil": "oils for the required HLB", "emulsifiers": "emulsifiers to pair",
                         "rhlb": "your own required HLB"}
@@ -74,6 +75,9 @@ class EmulsionScreen(BenchScreen):
                 yield Input(id="em-droplet", compact=True)
                 yield Label("Jurisdictions (EU, US)")
                 yield Input(id="em-jurisdiction", compact=True)
+                yield Label("The product is for (agents are legal only for it)")
+                yield Select(purpose_choices(self.session.catalog), value=NO_PURPOSE, allow_blank=False,
+                             id="em-purpose", compact=True)
                 yield Button("Compute  ^R", id="em-compute", variant="primary", compact=True)
             with VerticalScroll(id="emulsion-results"):
                 yield Static("", id="em-hlb", classes="result-block")
@@ -95,6 +99,7 @@ class EmulsionScreen(BenchScreen):
         self.query_one("#em-dilution", Input).value = f"{e.get('dilution', 500):g}"
         self.query_one("#em-droplet", Input).value = f"{e.get('droplet_um', 0.4):g}"
         self.query_one("#em-jurisdiction", Input).value = e.get("jurisdiction", "EU")
+        self.query_one("#em-purpose", Select).value = e.get("purpose") or NO_PURPOSE
         fill_table(self.query_one("#em-pairs", DataTable), PAIR_HEADERS, [])
         fill_table(self.query_one("#em-weighting", DataTable), WEIGHTING_HEADERS, [])
         self.compute(interactive=False)
@@ -136,7 +141,8 @@ class EmulsionScreen(BenchScreen):
         fields = {"oil": parse_amounts(self._text("oil"), "oil"), "brix": number("brix", "brix", "degrees Brix"),
                   "dilution": number("dilution", "dilution", "parts of drink per part of concentrate"),
                   "droplet_um": number("droplet", "droplet_um", "um"),
-                  "jurisdictions": parse_names(self._text("jurisdiction"), "jurisdictions")}
+                  "jurisdictions": parse_names(self._text("jurisdiction"), "jurisdictions"),
+                  "purpose": purpose_value(self.query_one("#em-purpose", Select))}
         if self._text("oil-pct"):  # else the request's default
             fields["oil_phase"] = parse_fraction(self._text("oil-pct"), "oil_phase")
         return EmulsionRequest(**fields)

@@ -3,7 +3,9 @@
 Builds a :class:`~solvsel.jobs.dose.DoseRequest` from its fields and calls the
 :func:`~solvsel.jobs.dose.dose` job; shows the level of every substance at every
 stage, each limit that applies (and the one that binds), the largest dose that
-keeps them, and the cautions of the result.
+keeps them, the residue rules for the formula's purpose, the audit trail (version,
+tables' checksum, each rule applied with its checked-on date) and the cautions of
+the result.
 """
 
 from __future__ import annotations
@@ -12,13 +14,44 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, VerticalScroll
-from textual.widgets import Button, DataTable, Input, Label, Static
+from textual.widgets import Button, DataTable, Input, Label, Select, Static
 
 from .base import BenchScreen
 from .dialogs import field_label
 from .widgets import CautionBox, fill_table
 
 CHECK_HEADERS = ("rule", "substance", "level", "limit", "unit", "of limit", "ok", "binds", "max dose", "confidence")
+
+#: The purpose choice meaning "none given" (every residue rule shown with the purposes it applies to).
+NO_PURPOSE = "none"
+
+
+def purpose_choices(catalog) -> list[tuple[str, str]]:
+    """(label, id) of the purposes of the catalog's tables/purposes.csv, "none given" first."""
+    from ..rules.regulations import purposes
+
+    return [("none given", NO_PURPOSE)] + [(f"{p.label} ({p.id})" if p.label != p.id else p.id, p.id)
+                                           for p in purposes(catalog).values()]
+
+
+def purpose_value(select: Select) -> str | None:
+    """The purpose id a Select holds (None for "none given")."""
+    value = select.value
+    return None if value in (NO_PURPOSE, Select.BLANK) else str(value)
+
+
+def audit_text(audit: dict | None) -> Text:
+    """The audit trail of a result for a detail pane: version, tables' checksum, the rules applied."""
+    t = Text()
+    if not audit:
+        return t
+    rules = audit.get("rules_applied") or []
+    t.append(f"\naudit: solvsel {audit.get('solvsel_version')}; tables SHA-256 {audit.get('tables_sha256', '')[:16]}...; "
+             f"{len(rules)} rule(s) applied\n", style="dim")
+    for r in rules:
+        t.append(f"  {r['jurisdiction']} {r['rule']}: checked on {r.get('checked_on') or 'not recorded'}, "
+                 f"{r['confidence']}; {', '.join(r.get('source') or [])}\n", style="dim")
+    return t
 
 
 def _g(x, spec=".4g") -> str:
@@ -31,7 +64,7 @@ class LimitsScreen(BenchScreen):
     MODE = "limits"
     BINDINGS = [Binding("ctrl+r", "compute", "Compute", priority=True)]
     FIELD_LABELS = {"formula": "formula", "dose": "dose", "chain": "dilution chain", "category": "food category",
-                    "jurisdiction": "jurisdiction"}
+                    "jurisdiction": "jurisdiction", "purpose": "the formula is for"}
 
     def __init__(self) -> None:
         super().__init__()
@@ -52,6 +85,9 @@ class LimitsScreen(BenchScreen):
                 yield Input(id="lim-category", compact=True)
                 yield Label("Jurisdiction (EU or US)")
                 yield Input(id="lim-jurisdiction", compact=True)
+                yield Label("The formula is for (its residues are judged for it)")
+                yield Select(purpose_choices(self.session.catalog), value=NO_PURPOSE, allow_blank=False,
+                             id="lim-purpose", compact=True)
                 yield Button("Check  ^R", id="lim-compute", variant="primary", compact=True)
             with VerticalScroll(id="limits-results"):
                 yield Static("", id="lim-summary", classes="result-block")
@@ -69,6 +105,8 @@ class LimitsScreen(BenchScreen):
         self.query_one("#lim-chain", Input).value = str(f.get("chain", ""))
         self.query_one("#lim-category", Input).value = str(f.get("category", "food"))
         self.query_one("#lim-jurisdiction", Input).value = str(f.get("jurisdiction", "EU"))
+        if f.get("purpose"):
+            self.query_one("#lim-purpose", Select).value = f["purpose"]
         fill_table(self.query_one("#lim-checks", DataTable), CHECK_HEADERS, [])
         self.compute(interactive=False)
 
@@ -78,6 +116,10 @@ class LimitsScreen(BenchScreen):
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         self.compute()
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        if event.select.id == "lim-purpose" and self.is_mounted:
+            self.compute(interactive=False)
 
     def action_compute(self) -> None:
         self.compute()
@@ -90,7 +132,8 @@ class LimitsScreen(BenchScreen):
             return self.query_one(f"#lim-{name}", Input).value.strip()
 
         return DoseRequest(formula=text("formula"), dose=text("dose") or None, chain=text("chain") or None,
-                           category=text("category") or None, jurisdiction=text("jurisdiction") or "EU")
+                           category=text("category") or None, jurisdiction=text("jurisdiction") or "EU",
+                           purpose=purpose_value(self.query_one("#lim-purpose", Select)))
 
     def compute(self, interactive: bool = True) -> None:
         """Run the ``dose`` job on the fields and show its result (an error: the dialog when ``interactive``)."""
@@ -114,6 +157,24 @@ class LimitsScreen(BenchScreen):
             return
         self.result = result
         self.show(result)
+
+    @staticmethod
+    def _notes(result) -> Text:
+        """No data, the residue rules (where each is measured, what it allows the solvent for), the
+        assumptions and the audit trail."""
+        r = result.check
+        notes = Text()
+        for d in r.no_data:
+            notes.append(f"no data: {d['message']}\n", style="dim")
+        for x in r.residues:
+            where = f", {x.measured_in}" if x.measured_in else ""
+            verdict = {True: "ok", False: "NO", None: "?"}[x.ok]
+            notes.append(f"residue {x.substance} {x.measured_ppm:g} ppm: {x.jurisdiction} {x.rule} ({x.status}{where}): "
+                         f"{verdict}" + (f"; {x.note}" if x.note and x.status != "limit" else "") + "\n")
+        for a in r.assumptions:
+            notes.append(f"assumed: {a}\n", style="dim")
+        notes.append_text(audit_text(result.audit))
+        return notes
 
     def show(self, result) -> None:
         """Show a :class:`~solvsel.jobs.dose.DoseResult`."""
@@ -153,10 +214,5 @@ class LimitsScreen(BenchScreen):
         fill_table(self.query_one("#lim-stages", DataTable), ["substance, mg/kg", *[st.name for st in r.stages]],
                    stage_rows)
         self.query_one("#lim-stages-title", Static).update(Text("\nLevels along the chain", style="bold"))
-        notes = Text()
-        for d in r.no_data:
-            notes.append(f"no data: {d['message']}\n", style="dim")
-        for a in r.assumptions:
-            notes.append(f"assumed: {a}\n", style="dim")
-        self.query_one("#lim-notes", Static).update(notes)
+        self.query_one("#lim-notes", Static).update(self._notes(result))
         self.query_one("#lim-cautions", CautionBox).show(result.cautions)

@@ -27,6 +27,7 @@ TABLES = [
     ("oils", "Oils (required HLB)"),
     ("weighting_agents", "Weighting agents"),
     ("regulations", "Regulations"),
+    ("purposes", "Purposes of the product"),
     ("sources", "Sources"),
 ]
 
@@ -37,7 +38,9 @@ GRID_COLUMNS = {
     "emulsifiers": ["name", "cas", "ins_number", "ionic_type", "hlb", "hlb_method", "mw_g_mol"],
     "oils": ["name", "cas", "kind", "rhlb_ow", "density_g_cm3", "ripening"],
     "weighting_agents": ["name", "cas", "ins_number", "density_g_cm3", "ripening"],
-    "regulations": ["substance", "jurisdiction", "use", "food_category", "limit", "unit", "status", "rule"],
+    "regulations": ["substance", "jurisdiction", "use", "purposes", "food_category", "limit", "unit", "status", "rule",
+                    "checked_on"],
+    "purposes": ["id", "label", "description"],
     "sources": ["id", "kind", "citation"],
 }
 
