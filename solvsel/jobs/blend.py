@@ -41,6 +41,7 @@ from ..rules.cautions import DEFER, solvent_cautions
 from ..rules.regulations import carrier_dose_check
 from ..science.blends import (
     MAX_COMPONENTS,
+    BestCandidates,
     Blend,
     BlendComponent,
     Candidates,
@@ -49,11 +50,11 @@ from ..science.blends import (
     RejectDistance,
     SearchCancelled,
     blend_solubility,
-    exact_candidates,
     one_phase,
     one_phase_screen,
     pareto_front,
     pareto_layers,
+    stream_candidates,
 )
 from ..science.formulation import Step
 from ..science.hansen import SCALE, as_hsp, convert_fractions
@@ -435,14 +436,36 @@ def _scores(s: _Search) -> _Scores:
                          for _, rh, rr in rej], axis=1)
         worst = dist.min(axis=1)
         fit = red if red_basis else c.ra
-    cost_vec = np.array([np.nan if p.record.cost_class is None else float(p.record.cost_class)
-                         for p in s.pool.candidates] + [0.0])
-    cost = np.einsum("nk,nk->n", c.fractions, cost_vec[c.idx])
+    cost = _cost(s, c)
     if s.req.sort == "cost":
         order = np.lexsort((c.ra, np.nan_to_num(cost, nan=np.inf)))
     else:  # fit, and the pool that selectivity re-ranks
         order = np.lexsort((c.size, c.ra))
     return _Scores(c.ra, red, worst, fit, cost, order, red_basis)
+
+
+def _cost(s: _Search, c: Candidates) -> np.ndarray:
+    """Volume-weighted cost class of each candidate (NaN where a liquid's is unknown)."""
+    cost_vec = np.array([np.nan if p.record.cost_class is None else float(p.record.cost_class)
+                         for p in s.pool.candidates] + [0.0])
+    return np.einsum("nk,nk->n", c.fractions, cost_vec[c.idx])
+
+
+def _search(s: _Search, lo: np.ndarray, hi: np.ndarray, progress) -> None:
+    """The exact search, part by part: the pairwise one-phase screen counted on every candidate,
+    and the first :data:`_SCAN_LIMIT` candidates in the order they are checked kept (:func:`_scores`:
+    cost then Ra, or Ra then the number of liquids), so memory stays bounded whatever the pool."""
+    req, m = s.req, len(s.pool.candidates)
+    best, two_phase = BestCandidates(_SCAN_LIMIT), 0
+    for part in stream_candidates(s.pool.hsp, s.target.hsp, min(req.max_components, m), lo, hi, req.min_fraction,
+                                  progress=progress):
+        if len(part):
+            screen = one_phase_screen(s.cat, s.pool.names, part.idx, part.fractions, req.temp_C)
+            two_phase += int(np.count_nonzero(~screen))
+        best.add(part, (np.nan_to_num(_cost(s, part), nan=np.inf), part.ra) if req.sort == "cost" else None)
+    s.cands = best.result()
+    s.counts.update(combinations=s.cands.combinations, bounds_not_met=s.cands.bounds_not_met,
+                    same_as_smaller_blend=s.cands.same_as_smaller_blend, two_phase=two_phase)
 
 
 def _mass_fractions(recs: list[Candidate], xs) -> list[float] | None:
@@ -491,10 +514,9 @@ def _check(s: _Search, sc: _Scores) -> list[tuple[int, dict | None]]:
     enough = max(5 * want, 200 if s.rejects else 50)
     steps = req.steps
     kept: list[tuple[int, dict | None]] = []
-    # one-phase screen of every candidate at once (pairwise windows, measured pairs first);
-    # the full check with its reasons runs on the blends listed
+    # pairwise one-phase screen of the candidates at once (windows, measured pairs first; every
+    # candidate's was counted in the search); the full check with its reasons runs on those listed
     screen = one_phase_screen(s.cat, s.pool.names, c.idx, c.fractions, req.temp_C)
-    s.counts["two_phase"] = int(np.count_nonzero(~screen))
 
     def listing() -> bool:
         return len(kept) < want and len(s.dropped) < _DROPPED_LISTED
@@ -712,12 +734,9 @@ def blend(request: BlendRequest | None = None, *, catalog: Catalog | None = None
     if m == 0:
         return s.finish(message="no liquid is left in the pool under these constraints (see excluded)")
     try:
-        s.cands = exact_candidates(pool.hsp, target.hsp, min(req.max_components, m), lo, hi, req.min_fraction,
-                                   progress)
+        _search(s, lo, hi, progress)
     except SearchCancelled as exc:
         return s.finish(message=f"cancelled: {exc}")
-    counts.update(combinations=s.cands.combinations, bounds_not_met=s.cands.bounds_not_met,
-                  same_as_smaller_blend=s.cands.same_as_smaller_blend)
     if not len(s.cands):
         return s.finish(message="no combination of the pool meets the fraction bounds")
     sc = _scores(s)

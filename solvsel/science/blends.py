@@ -29,8 +29,14 @@ with the fewest free fractions (the lowest face) wins, then the first face in
 enumeration order; the result is deterministic.
 
 Above the numerical core, :func:`exact_candidates` keeps the blends of a pool
-that count (meeting the bounds, no liquid under the component minimum), and
-:func:`one_phase_screen` / :func:`one_phase` test them for one phase through
+that count (meeting the bounds, no liquid under the component minimum), found
+part by part (:func:`stream_candidates`) and, where only the best are wanted,
+kept in a running list (:class:`BestCandidates`), so memory does not grow with
+the pool.  With the default bounds only the all-free face of a combination is
+solved: an optimum on a lower face has a liquid at 0, so that blend is the same
+as a smaller one, searched anyway (a liquid whose bounds bind gets every face).
+:func:`search_blends` gives every combination's optimum (every face solved).
+:func:`one_phase_screen` / :func:`one_phase` test blends for one phase through
 :mod:`solvsel.science.miscibility`; the ``blend`` job (:mod:`solvsel.jobs.blend`)
 builds the pool, checks each blend and ranks them.
 
@@ -45,8 +51,9 @@ References
 
 from __future__ import annotations
 
+import functools
 import itertools
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from math import comb
 
 import numpy as np
@@ -416,7 +423,9 @@ def _chunks(n: int, size: int):
 
 def search_blends(pool_hsp, target, max_components: int = 3, lower=None, upper=None,
                   sizes=None, chunk: int = 1 << 16, progress=None):
-    """Exact best fractions of every combination of 1..``max_components`` liquids of a pool.
+    """Exact best fractions of every combination of 1..``max_components`` liquids of a pool
+    (every face of each; all of one size at once: for the blends that count, with bounded memory,
+    see :func:`stream_candidates`).
 
     Parameters
     ----------
@@ -520,7 +529,9 @@ __all__ += [
     "Blend",
     "DroppedBlend",
     "Candidates",
+    "BestCandidates",
     "exact_candidates",
+    "stream_candidates",
     "pareto_layers",
     "one_phase_screen",
     "one_phase",
@@ -699,6 +710,9 @@ class Candidates:
     combinations, bounds_not_met, same_as_smaller_blend : int
         combinations searched; of them, those that cannot meet the fraction
         bounds, and those with a liquid under the component minimum
+    seq : ndarray of int, shape (n,), optional
+        each blend's place in the search (sizes ascending, combinations of one
+        size in lexicographic order of their pool indices): the order of equals
     """
 
     idx: np.ndarray
@@ -709,6 +723,7 @@ class Candidates:
     combinations: int
     bounds_not_met: int
     same_as_smaller_blend: int
+    seq: np.ndarray | None = None
 
     def __len__(self) -> int:
         return int(self.idx.shape[0])
@@ -718,16 +733,287 @@ class Candidates:
         k = int(self.size[j])
         return [int(i) for i in self.idx[j, :k]], self.fractions[j, :k]
 
+    def take(self, rows) -> "Candidates":
+        """The blends at ``rows`` (the counts unchanged)."""
+        seq = None if self.seq is None else self.seq[rows]
+        return replace(self, idx=self.idx[rows], fractions=self.fractions[rows], ra=self.ra[rows],
+                       size=self.size[rows], hsp=self.hsp[rows], seq=seq)
+
+
+_ROWS = ("idx", "fractions", "ra", "size", "hsp", "seq")
+
+
+def _joined(parts: list[Candidates]) -> Candidates:
+    """One Candidates of several parts (rows in the order of the parts, counts added)."""
+    if not parts:
+        return Candidates(np.empty((0, MAX_COMPONENTS), dtype=np.int32), np.empty((0, MAX_COMPONENTS)), np.empty(0),
+                          np.empty(0, dtype=int), np.empty((0, 3)), 0, 0, 0, np.empty(0, dtype=np.int64))
+    rows = {f: np.concatenate([getattr(p, f) for p in parts]) for f in _ROWS}
+    return Candidates(**rows, combinations=sum(p.combinations for p in parts),
+                      bounds_not_met=sum(p.bounds_not_met for p in parts),
+                      same_as_smaller_blend=sum(p.same_as_smaller_blend for p in parts))
+
+
+# ---------------------------------------------------------------------------- the streaming search
+#
+# The combinations of one size are taken in lexicographic order, a block per first liquid ``a``
+# (the others: the combinations of the liquids after it, a slice of one table).  Where none of a
+# block's liquids has a bound that binds (lower bound 0, upper bound 1) and the component minimum
+# is above 0, only the all-free face is solved: an optimum on a lower face puts a liquid at 0,
+# under the minimum, so the blend is the same as a smaller one, which is searched anyway.  That
+# face is solved with exactly the arithmetic of :func:`_solve_face` (the same fractions to the
+# last bit), from the Gram matrix of the differences to liquid ``a`` computed once per block.
+# Blends with a liquid whose bounds bind get the full face search (:func:`best_fractions`).
+
+
+@functools.lru_cache(maxsize=8)
+def _lex_table(m: int, k: int) -> np.ndarray:
+    """All k-combinations of range(m) in lexicographic order, (C(m, k), k) intp (read-only)."""
+    if k == 0:
+        out = np.zeros((1, 0), dtype=np.intp)
+    elif k == 1:
+        out = np.arange(m, dtype=np.intp)[:, None]
+    else:
+        sub = _lex_table(m, k - 1)
+        n_sub = sub.shape[0]
+        firsts = np.arange(m - k + 1)
+        counts = np.array([comb(m - a - 1, k - 1) for a in firsts], dtype=np.intp)
+        starts = n_sub - np.array([comb(m - a - 1, k - 1) for a in firsts], dtype=np.intp)
+        rows = np.concatenate([np.arange(s, n_sub) for s in starts]) if len(firsts) else np.empty(0, np.intp)
+        out = np.column_stack([np.repeat(firsts, counts), sub[rows]]) if rows.size else np.empty((0, k), np.intp)
+    out = np.ascontiguousarray(out, dtype=np.intp)
+    out.setflags(write=False)
+    return out
+
+
+@dataclass
+class _Stream:
+    """What every block of one search shares: the pool, target, bounds and minimum."""
+
+    H: np.ndarray  # (m, 3) pool HSP
+    T: np.ndarray  # (3,) target
+    lo: np.ndarray
+    hi: np.ndarray
+    min_fraction: float
+    Q: list  # scaled coordinates centred on the target, one (m,) array per coordinate
+    bound: np.ndarray  # (m,) bool: a bound of this liquid binds (full face search)
+    any_bound: bool
+
+    @classmethod
+    def of(cls, H, T, lo, hi, min_fraction) -> "_Stream":
+        Q = (H - T[None, :]) * SCALE
+        bound = (lo > 0) | (hi < 1.0 - _FEAS_TOL) if min_fraction > 0 else np.ones(len(H), dtype=bool)
+        return cls(H, T, lo, hi, float(min_fraction), [np.ascontiguousarray(Q[:, c]) for c in range(3)], bound,
+                   bool(bound.any()))
+
+    def part(self, k: int, combos: np.ndarray, x: np.ndarray, seq: np.ndarray, counts) -> Candidates:
+        """The kept blends of size k (pool indices, fractions) as Candidates, with Ra and blend HSP."""
+        n = combos.shape[0]
+        P = self.H[combos]
+        blend = np.einsum("nk,nkc->nc", x, P)
+        # Ra from the final fractions, as best_fractions computes it
+        ra = np.sqrt(np.sum(((blend - self.T) * SCALE) ** 2, axis=1))
+        idx = np.full((n, MAX_COMPONENTS), -1, dtype=np.int32)
+        idx[:, :k] = combos
+        xs = np.zeros((n, MAX_COMPONENTS))
+        xs[:, :k] = x
+        Hpad = np.vstack([self.H, np.zeros((1, 3))])
+        bh = np.einsum("nk,nkc->nc", xs, Hpad[idx]) if n else np.empty((0, 3))
+        return Candidates(idx, xs, ra, np.full(n, k), bh, *counts, seq=np.asarray(seq, dtype=np.int64))
+
+    def interior(self, first, rest: np.ndarray) -> tuple[np.ndarray, list]:
+        """Blends of liquid(s) ``first`` (one index, or one per row) with the rows of ``rest`` whose
+        all-free face has its optimum with every fraction at or above the minimum: (rows kept,
+        fractions of the kept rows, one array per liquid).  The arithmetic of :func:`_solve_face`."""
+        q = self.Q
+        q0 = [qc[first] for qc in q]
+        E = [[qc.take(rest[:, j]) - q0c for qc, q0c in zip(q, q0)] for j in range(rest.shape[1])]
+        gram = [[None] * len(E) for _ in E]
+        for u in range(len(E)):
+            for v in range(u, len(E)):
+                gram[u][v] = gram[v][u] = E[u][0] * E[v][0] + E[u][1] * E[v][1] + E[u][2] * E[v][2]
+        z, ok = _solve_gram(gram, [-(e[0] * q0[0] + e[1] * q0[1] + e[2] * q0[2]) for e in E])
+        x0 = 1.0 - sum(z)
+        keep = ok & (x0 >= self.min_fraction)
+        for zz in z:
+            keep &= zz >= self.min_fraction
+        rows = np.flatnonzero(keep)
+        return rows, [x0[rows]] + [zz[rows] for zz in z]
+
+    def full(self, combos: np.ndarray) -> tuple[np.ndarray, np.ndarray, int, int]:
+        """Every face of each combination (:func:`best_fractions`): (rows kept, their fractions,
+        combinations that cannot meet the bounds, combinations with a liquid under the minimum)."""
+        res = best_fractions(self.H[combos], self.T, self.lo[combos], self.hi[combos])
+        x = np.nan_to_num(res.fractions)
+        feas = res.feasible
+        reduced = np.zeros(len(x), dtype=bool)
+        if combos.shape[1] > 1:
+            reduced = feas & np.any((x < self.min_fraction) & (self.lo[combos] <= 0), axis=1)
+        rows = np.flatnonzero(feas & ~reduced)
+        return rows, x[rows], int(np.count_nonzero(~feas)), int(np.count_nonzero(reduced))
+
+    def block(self, k: int, first, rest: np.ndarray, seq0: int) -> Candidates:
+        """The kept blends of liquid(s) ``first`` (one index, or one per row) with the rows of
+        ``rest`` (the liquids after it)."""
+        n = rest.shape[0]
+        firsts = np.broadcast_to(np.asarray(first, dtype=np.intp), (n,))
+        general = self.bound[firsts] | np.any(self.bound[rest], axis=1) if self.any_bound else np.zeros(n, bool)
+        rows, xs = np.empty(0, dtype=np.intp), np.empty((0, k))
+        not_met = reduced = 0
+        if not general.all():
+            rows, x = self.interior(first, rest)
+            rows_ok = ~general[rows]
+            rows, xs = rows[rows_ok], np.column_stack([xx[rows_ok] for xx in x])
+            reduced = n - int(np.count_nonzero(general)) - rows.size
+        if general.any():
+            g = np.flatnonzero(general)
+            g_rows, g_x, not_met, g_reduced = self.full(np.column_stack([firsts[g], rest[g]]))
+            reduced += g_reduced
+            rows = np.concatenate([rows, g[g_rows]])
+            xs = np.concatenate([xs, g_x])
+            order = np.argsort(rows, kind="stable")
+            rows, xs = rows[order], xs[order]
+        return self.part(k, np.column_stack([firsts[rows], rest[rows]]), xs, seq0 + rows, (n, not_met, reduced))
+
+
+#: Combinations solved at once: arrays of this many numbers stay in the processor's cache.
+_BLOCK_ROWS = 1 << 14
+
+
+def _size_blocks(m: int, k: int, required):
+    """The k-combinations of range(m) that contain every index of ``required``, in lexicographic
+    order, in blocks ``(first, rest, start)`` of at most :data:`_BLOCK_ROWS` rows: ``first`` the
+    first liquid (one index, or one per row), ``rest`` (n, k-1) the others, ascending, ``start`` the
+    place of the block's first row in that order.  Blends of the largest size are taken a first
+    liquid at a time (the others a slice of the table of one size less), so no table holds more
+    than the combinations of three liquids.  With required liquids, ``first`` is None and ``rest``
+    holds whole combinations (k = 1 too)."""
+    required = sorted(int(i) for i in required)
+    if required:
+        if k < len(required):
+            return
+        free = np.array([i for i in range(m) if i not in set(required)], dtype=np.intp)
+        for first, rest, start in _size_blocks(len(free), k - len(required), ()):
+            sub = rest if first is None else np.column_stack([np.broadcast_to(first, rest.shape[:1]), rest])
+            combos = np.sort(np.column_stack([free[sub], np.tile(required, (sub.shape[0], 1))]), axis=1)
+            yield None, combos, start
+        return
+    if k <= 1:
+        yield None, np.arange(m, dtype=np.intp)[:, None] if k else np.zeros((1, 0), dtype=np.intp), 0
+        return
+    if k < MAX_COMPONENTS:
+        table = _lex_table(m, k)
+        for lo_row in range(0, table.shape[0], _BLOCK_ROWS):
+            block = table[lo_row:lo_row + _BLOCK_ROWS]
+            yield block[:, 0], block[:, 1:], lo_row
+        return
+    table = _lex_table(m, k - 1)
+    n_table, start = table.shape[0], 0
+    for a in range(m - k + 1):
+        n_a = comb(m - a - 1, k - 1)
+        suffix = table[n_table - n_a:]
+        for lo_row in range(0, n_a, _BLOCK_ROWS):
+            yield a, suffix[lo_row:lo_row + _BLOCK_ROWS], start + lo_row
+        start += n_a
+
+
+def stream_candidates(pool_hsp, target, max_components: int, lower=None, upper=None, min_fraction: float = 0.05,
+                      chunk: int = 1 << 16, progress=None):
+    """The blends of :func:`exact_candidates`, in parts of about ``chunk`` combinations each.
+
+    Yields :class:`Candidates` (each with its share of the counts and ``seq``), in the order of
+    the search; memory is that of one part, whatever the pool.  ``progress(done, total)`` is
+    called after each part (combinations); returning False stops the search
+    (:class:`SearchCancelled`).
+    """
+    H = as_hsp(pool_hsp, "pool_hsp").reshape(-1, 3)
+    m = H.shape[0]
+    if not 1 <= int(max_components) <= MAX_COMPONENTS:
+        raise InputError(f"expected 1 to {MAX_COMPONENTS}, got {max_components}", param="max_components")
+    lo = np.zeros(m) if lower is None else np.asarray(lower, dtype=float)
+    hi = np.ones(m) if upper is None else np.asarray(upper, dtype=float)
+    if lo.shape != (m,) or hi.shape != (m,):
+        raise InputError(f"expected one bound per pool liquid ({m})", param="lower")
+    s = _Stream.of(H, as_hsp(target, "target").reshape(3), lo, hi, min_fraction)
+    required = np.flatnonzero(lo > 0)
+    r = len(required)
+    sizes = range(1, int(max_components) + 1)
+    total = sum(comb(m - r, k - r) if k >= r else 0 for k in sizes)
+    done, base, pending = 0, 0, []
+    for k in sizes:
+        for first, rest, start in _size_blocks(m, k, required):
+            if first is None:
+                rows, x, not_met, reduced = s.full(rest)
+                pending.append(s.part(k, rest[rows], x, base + start + rows, (rest.shape[0], not_met, reduced)))
+            else:
+                pending.append(s.block(k, first, rest, base + start))
+            if sum(p.combinations for p in pending) >= chunk:
+                done += sum(p.combinations for p in pending)
+                yield _joined(pending)
+                pending = []
+                if progress is not None and progress(done, total) is False:
+                    raise SearchCancelled(f"search stopped after {done} of {total} combinations")
+        base += comb(m - r, k - r) if k >= r else 0
+    if pending:
+        done += sum(p.combinations for p in pending)
+        yield _joined(pending)
+        if progress is not None and progress(done, total) is False:
+            raise SearchCancelled(f"search stopped after {done} of {total} combinations")
+
+
+class BestCandidates:
+    """The best ``keep`` blends of a stream of :class:`Candidates` parts, by a key; memory is that
+    of about twice ``keep`` blends, whatever the stream.
+
+    ``add(part, key)`` takes the part's sort keys, most significant first (default: Ra, then the
+    number of liquids); equal keys keep the order of the search (``seq``).  :meth:`result` gives
+    the blends kept, in the order of the search, with the counts of every part.
+    """
+
+    def __init__(self, keep: int | None = None):
+        self.keep = keep
+        self._parts: list[Candidates] = []
+        self._keys: list[tuple] = []
+        self._rows = 0
+        self._counts = [0, 0, 0]
+
+    def add(self, part: Candidates, key: tuple | None = None) -> None:
+        self._counts = [self._counts[0] + part.combinations, self._counts[1] + part.bounds_not_met,
+                        self._counts[2] + part.same_as_smaller_blend]
+        if not len(part):
+            return
+        self._parts.append(part)
+        self._keys.append(tuple(key) if key is not None else (part.ra, part.size))
+        self._rows += len(part)
+        if self.keep is not None and self._rows > 2 * self.keep + (1 << 14):
+            self._cut()
+
+    def _cut(self) -> None:
+        c = _joined(self._parts)
+        keys = [np.concatenate(col) for col in zip(*self._keys)]
+        if self.keep is not None and len(c) > self.keep:
+            best = np.sort(np.lexsort([c.seq] + keys[::-1])[:self.keep])
+            c, keys = c.take(best), [kk[best] for kk in keys]
+        self._parts, self._keys, self._rows = [c], [tuple(keys)], len(c)
+
+    def result(self) -> Candidates:
+        self._cut()
+        c = self._parts[0]
+        return replace(c, combinations=self._counts[0], bounds_not_met=self._counts[1],
+                       same_as_smaller_blend=self._counts[2])
+
 
 def exact_candidates(pool_hsp, target, max_components: int, lower, upper, min_fraction: float = 0.05,
-                     progress=None) -> Candidates:
-    """Every blend of 1..``max_components`` liquids of a pool at its exact best fractions
-    (:func:`search_blends`), less those that cannot meet the bounds and those with a liquid under
-    ``min_fraction`` [-] that its lower bound does not put there (the same as a smaller blend).
+                     progress=None, keep: int | None = None) -> Candidates:
+    """Every blend of 1..``max_components`` liquids of a pool at its exact best fractions, less
+    those that cannot meet the bounds and those with a liquid under ``min_fraction`` [-] that its
+    lower bound does not put there (the same as a smaller blend); with ``keep``, only the best
+    ``keep`` by Ra (then fewer liquids, then the order of the search).
 
-    Only the kept blends of each size are stored as it is solved (most combinations of 3 or 4
-    liquids put a liquid under the minimum), so memory is that of the candidates.  Raises
-    :class:`SearchCancelled` when ``progress(done, total)`` returns False.
+    The fractions are those of :func:`best_fractions` (the same to the last bit); the search runs
+    in parts (:func:`stream_candidates`), so memory is bounded by ``keep`` and the part size
+    whatever the pool.  Raises :class:`SearchCancelled` when ``progress(done, total)`` returns
+    False.
 
     Ethanol and water (Hansen 2007 Appendix A values) for a target made as 70/30 by
     volume: the two single liquids, then the blend at the fractions it was made from.
@@ -736,36 +1022,10 @@ def exact_candidates(pool_hsp, target, max_components: int, lower, upper, min_fr
     >>> len(c), c.combinations, c.members(2)[0], np.round(c.members(2)[1], 6).tolist()
     (3, 3, [0, 1], [0.7, 0.3])
     """
-    H = as_hsp(pool_hsp, "pool_hsp").reshape(-1, 3)
-    lo = np.asarray(lower, dtype=float)
-    lo_pad = np.append(lo, 0.0)
-    idx_parts, x_parts, ra_parts = [], [], []
-    searched = not_met = reduced_n = 0
-    for k, combos, res in search_blends(H, target, max_components, lower=lower, upper=upper, progress=progress):
-        n_k = combos.shape[0]
-        searched += int(n_k)
-        feas = res.feasible
-        not_met += int(np.count_nonzero(~feas))
-        xk = np.nan_to_num(res.fractions)
-        if k > 1:
-            reduced = feas & np.any((xk < float(min_fraction)) & (lo_pad[combos] <= 0), axis=1)
-        else:
-            reduced = np.zeros(n_k, dtype=bool)
-        reduced_n += int(np.count_nonzero(reduced))
-        keep = np.flatnonzero(feas & ~reduced)
-        pad = np.full((keep.size, MAX_COMPONENTS), -1, dtype=np.int32)
-        pad[:, :k] = combos[keep]
-        xs = np.zeros((keep.size, MAX_COMPONENTS))
-        xs[:, :k] = xk[keep]
-        idx_parts.append(pad)
-        x_parts.append(xs)
-        ra_parts.append(res.ra[keep])
-    IDX = np.concatenate(idx_parts) if idx_parts else np.empty((0, MAX_COMPONENTS), dtype=np.int32)
-    X = np.concatenate(x_parts) if x_parts else np.empty((0, MAX_COMPONENTS))
-    RA = np.concatenate(ra_parts) if ra_parts else np.empty(0)
-    Hpad = np.vstack([H, np.zeros((1, 3))])
-    BH = np.einsum("nk,nkc->nc", X, Hpad[IDX]) if len(IDX) else np.empty((0, 3))
-    return Candidates(IDX, X, RA, (IDX >= 0).sum(1), BH, searched, not_met, reduced_n)
+    best = BestCandidates(keep)
+    for part in stream_candidates(pool_hsp, target, max_components, lower, upper, min_fraction, progress=progress):
+        best.add(part)
+    return best.result()
 
 
 def pareto_layers(objectives) -> np.ndarray:
