@@ -635,8 +635,10 @@ class FoodStatus:
     other purposes, named in ``message``), "no data" (the table has no rule:
     never a permission) or, for ``use="bench"``, "bench only".  ``purposes``
     lists the purposes of tables/purposes.csv its rules allow it for ("all":
-    every purpose) in the jurisdictions judged; without a ``purpose`` an allowed
-    liquid is shown with them (:attr:`status_text`), never as a bare "allowed".  With ``jurisdiction=None``
+    every purpose) in the jurisdictions judged, ``basis`` the rules that allow
+    it (jurisdiction and rule: for a food used as a solvent, that it is a food);
+    an allowed liquid is shown with both (:attr:`status_text`), never as a bare
+    "allowed".  With ``jurisdiction=None``
     every food-law jurisdiction is evaluated: ``status`` is the most permissive
     and ``per_jurisdiction`` holds each.
     """
@@ -653,6 +655,7 @@ class FoodStatus:
     per_jurisdiction: dict = field(default_factory=dict)
     purpose: str | None = None
     purposes: tuple[str, ...] = ()
+    basis: tuple[str, ...] = ()
 
     @property
     def allowed(self) -> bool:
@@ -661,10 +664,12 @@ class FoodStatus:
 
     @property
     def status_text(self) -> str:
-        """The status with what it is for: "conditional for natural_flavouring", "permitted for any purpose"."""
+        """The status with what it is for and the rules that allow it: "conditional for natural_flavouring
+        (EU Dir. 2009/32/EC Annex I Part III)", "permitted for any purpose (US food (common use))"."""
         if not self.allowed:
             return self.status
-        return f"{self.status} for {self.purpose or purposes_text(self.purposes)}"
+        basis = f" ({'; '.join(self.basis)})" if self.basis else ""
+        return f"{self.status} for {self.purpose or purposes_text(self.purposes)}{basis}"
 
     def to_dict(self) -> dict[str, Any]:
         return {
@@ -672,7 +677,7 @@ class FoodStatus:
             "status": self.status, "allowed": self.allowed, "conditions": list(self.conditions),
             "rules": [r.to_dict() for r in self.rules], "message": self.message, "flagged": self.flagged,
             "per_jurisdiction": dict(self.per_jurisdiction), "purpose": self.purpose,
-            "purposes": list(self.purposes), "status_text": self.status_text,
+            "purposes": list(self.purposes), "basis": list(self.basis), "status_text": self.status_text,
         }
 
 
@@ -756,6 +761,7 @@ class _One:
     rows: tuple[Limit, ...]
     message: str
     purposes: tuple[str, ...]
+    basis: tuple[str, ...] = ()
 
 
 def _status_one(cat, cas: str, name: str, use: str, jur: str, category: str | None, purpose: str | None) -> _One:
@@ -771,9 +777,11 @@ def _status_one(cat, cas: str, name: str, use: str, jur: str, category: str | No
         status, message = not_for_purpose(name, use, jur, purpose, rows)
         return _One(status, (), rows, message, ids)
     status, conds, message = _verdict(name, use, jur, judged, category is not None)
-    if status in ("permitted", "conditional"):
-        message += f", for {purpose or purposes_text(ids)}"
-    return _One(status, tuple(conds), rows, message, ids)
+    if status not in ("permitted", "conditional"):
+        return _One(status, tuple(conds), rows, message, ids)
+    message += f", for {purpose or purposes_text(ids)}"
+    basis = tuple(dict.fromkeys(f"{r.jurisdiction} {r.rule}" for r in judged if r.status != "not permitted"))
+    return _One(status, tuple(conds), rows, message, ids, basis)
 
 
 def food_status(cat, solvent, use: str | None = None, jurisdiction: str | None = None, category: str | None = None,
@@ -816,7 +824,7 @@ def food_status(cat, solvent, use: str | None = None, jurisdiction: str | None =
     (Part III), so not for a food ingredient.
 
     >>> food_status(None, "ethanol", use="extraction", jurisdiction="EU").status_text
-    'permitted for any purpose'
+    'permitted for any purpose (EU Dir. 2009/32/EC Annex I Part I)'
     >>> st = food_status(None, "1-butanol", use="extraction", jurisdiction="EU", purpose="food_ingredient")
     >>> st.status, st.message.split("; ")[1]
     ('not allowed for this purpose', 'Dir. 2009/32/EC Annex I Part III allows it for natural_flavouring only')
@@ -857,18 +865,22 @@ def _combined(cat, name: str, cas: str, use: str, jur: str | None, category: str
     conds: list[str] = []
     msgs: list[str] = []
     allowed_for: dict[str, None] = {}
+    basis: dict[str, None] = {}
     for j in jurs:
-        worst, ids = None, None
+        worst, ids, bases = None, None, []
         for pcas, pname in parts:
             one = _status_one(cat, pcas, pname, use, j, category, purpose)
             rows += one.rows
             conds += one.conditions
             msgs.append(one.message)
+            bases += one.basis
             ids = _meet(ids, one.purposes)
             if worst is None or _STATUS_ORDER[one.status] < _STATUS_ORDER[worst]:
                 worst = one.status
         per[j] = worst
         allowed_for.update(dict.fromkeys(ids or ()))
+        if worst in ("permitted", "conditional"):
+            basis.update(dict.fromkeys(bases))
     status = per[jur] if jur else max(per.values(), key=lambda s: _STATUS_ORDER[s])
     rows_t = tuple(dict.fromkeys(rows))
     message = "; ".join(dict.fromkeys(msgs))
@@ -876,7 +888,7 @@ def _combined(cat, name: str, cas: str, use: str, jur: str | None, category: str
         message = ", ".join(f"{j}: {s}" for j, s in per.items()) + " — " + message
     ids = (ALL_PURPOSES,) if ALL_PURPOSES in allowed_for else tuple(allowed_for)
     return FoodStatus(name, cas, use, jur, status, tuple(dict.fromkeys(conds)), rows_t, message,
-                      any(r.flagged for r in rows_t), per, purpose, ids)
+                      any(r.flagged for r in rows_t), per, purpose, ids, tuple(basis))
 
 
 # ----------------------------------------------------------------------------- dose checks
