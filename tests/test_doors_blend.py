@@ -118,6 +118,18 @@ def test_the_carriers_screen_shows_the_library_result(library, cat):
     asyncio.run(go())
 
 
+def test_a_purpose_gives_the_same_blends_from_the_library_and_the_command_line(cat, capsys):
+    # extraction blends for a food ingredient (the carriers screen's extraction preset holds the UI to the same)
+    ref = blend(solute="cannabidiol", use="extraction", jurisdiction="EU", purpose="food_ingredient",
+                max_components=2, top=5, catalog=cat)
+    code, out, _ = _cli(capsys, ["blend", "--solute", "cannabidiol", "--use", "extraction", "--jurisdiction", "EU",
+                                 "--purpose", "food_ingredient", "--max-components", "2", "--top", "5", "--json"])
+    assert code == 0
+    doc = json.loads(out)
+    assert doc == json.loads(json.dumps(to_jsonable(ref.to_dict())))
+    assert doc["constraints"]["purpose"] == "food_ingredient" and doc["audit"]["rules_applied"]
+
+
 def test_cancelled_search_is_a_result_not_an_error(cat):
     res = blend(catalog=cat, progress=lambda done, total: False, **REQUEST)
     assert not res.success and res.message.startswith("cancelled") and not res.results

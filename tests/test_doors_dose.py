@@ -27,16 +27,24 @@ CASES = [
     # US limits, the dose inside the chain, what other ingredients bring and a claim (command line and library)
     dict(formula="propylene glycol=90,vanillin=10", chain="syrup 0.5% d=1.28; drink 1+5v d=1.04",
          category="flavoured drinks", jurisdiction="US", already="propylene glycol=150", claims="halal"),
+    # a citrus flavour with a hexane residue, for a flavouring: 21 CFR 173.270 allows hexane for spice oleoresins
+    # and hop extracts only (command line and library)
+    dict(formula="d-limonene=100", dose="0.1%", category="flavoured drinks", jurisdiction="US",
+         residues="n-hexane=30", purpose="flavouring"),
+    # the README's lemon flavour stated as a flavouring (all three doors)
+    dict(formula="propylene glycol=88,d-limonene=8,citral=4", dose="0.15%", chain="syrup d=1.28; drink 1+5v d=1.04",
+         category="beverages", jurisdiction="EU", purpose="flavouring"),
 ]
 
-#: The cases the UI's fields can express (it has no fields for other sources or claims).
-UI_CASES = CASES[:2]
+#: The cases the UI's fields can express (it has no fields for other sources, residues or claims).
+UI_CASES = CASES[:2] + CASES[4:]
 
 
 def _argv(case):
     argv = ["dose", "--formula", case["formula"], "--jurisdiction", case["jurisdiction"], "--json"]
     for key, option in (("dose", "--dose"), ("chain", "--chain"), ("category", "--category"),
-                        ("already", "--already"), ("claims", "--claim")):
+                        ("already", "--already"), ("claims", "--claim"), ("residues", "--residue"),
+                        ("purpose", "--purpose")):
         if case.get(key):
             argv += [option, case[key]]
     return argv
@@ -50,7 +58,9 @@ def _essentials(d):
         "max_dose": d["max_dose"], "max_dose_unit": d["max_dose_unit"],
         "binding": d["binding"]["rule"] if d["binding"] else None,
         "claims": [(c["claim"], c["substance"], c["ok"]) for c in d["claims"]],
-        "ok": d["ok"], "complete": d["complete"], "cautions": d["cautions"],
+        "residues": [(r["rule"], r["status"], r["ok"], r["limit"], r["measured_in"]) for r in d["residues"]],
+        "ok": d["ok"], "complete": d["complete"], "cautions": d["cautions"], "purpose": d["purpose"],
+        "rules_applied": d["audit"]["rules_applied"],
     }
 
 
@@ -61,7 +71,7 @@ def test_library_and_command_line_agree(case, capsys):
     assert main(_argv(case)) == 0
     cli = json.loads(capsys.readouterr().out)
     assert _essentials(cli) == _essentials(lib)
-    assert cli["max_dose"] == pytest.approx(lib["max_dose"], rel=1e-12)
+    assert cli["max_dose"] == (None if lib["max_dose"] is None else pytest.approx(lib["max_dose"], rel=1e-12))
     # the table form holds the same limits
     table = result.to_frame()
     assert list(table["rule"]) == [c["rule"] for c in cli["limits"]] and list(table["binds"]) == [c["binds"] for c in cli["limits"]]
@@ -99,10 +109,12 @@ def test_the_limits_screen_shows_the_library_answer():
                 screen = app.screen
                 for field in ("formula", "dose", "chain", "category", "jurisdiction"):
                     screen.query_one(f"#lim-{field}", Input).value = case.get(field, "")
+                screen.query_one("#lim-purpose").value = case.get("purpose", "none")
                 await pilot.press("ctrl+r")
                 await pilot.pause()
                 assert screen.result is not None
                 assert _essentials(screen.result.to_dict()) == _essentials(solvsel.dose(**case).to_dict())
+                assert screen.result.check.purpose == case.get("purpose")
                 assert screen.query_one("#lim-checks").row_count == len(screen.result.check.checks)
             # a mistake opens the dialog with the field's label, not an option of the command line
             app.screen.query_one("#lim-dose", Input).value = ""

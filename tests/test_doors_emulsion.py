@@ -26,6 +26,12 @@ CASES = [
     # ester gum over its US limit at a strong dose (the command line exits with 2)
     dict(oil=(("d-limonene", 70.0), ("glycerol ester of wood rosin", 30.0)), brix=11.0, dilution=200.0,
          droplet_um=0.4, jurisdictions=("US",)),
+    # the product's purpose: SAIB is authorised for the finished drink (21 CFR 172.833; Reg. (EC) No 1333/2008
+    # Annex II), not as part of a flavouring, where the rules refuse it by name
+    dict(oil=(("d-limonene", 70.0), ("sucrose acetate isobutyrate", 30.0)), brix=11.0, dilution=500.0,
+         droplet_um=0.4, jurisdictions=("US", "EU"), purpose="finished_food"),
+    dict(oil=(("d-limonene", 70.0), ("sucrose acetate isobutyrate", 30.0)), brix=11.0, dilution=500.0,
+         droplet_um=0.4, jurisdictions=("US", "EU"), purpose="flavouring"),
 ]
 
 #: Only the command line and the library: a size distribution, a given density and viscosity, the emulsifier.
@@ -59,6 +65,8 @@ def _argv(case):
         argv += ["--emulsifier", case["emulsifier"]]
     if case.get("nano"):
         argv += ["--nano"]
+    if case.get("purpose"):
+        argv += ["--purpose", case["purpose"]]
     return argv
 
 
@@ -74,6 +82,8 @@ def _essentials(d):
     out["ripening"] = (d["ripening"]["warn"], d["ripening"]["reason"])
     out["distribution"] = d["distribution"]
     out["emulsifier"] = d["emulsifier"]
+    out["purpose"] = d["purpose"]
+    out["rules_applied"] = d["audit"]["rules_applied"]
     return json.loads(json.dumps(out))
 
 
@@ -114,6 +124,7 @@ def test_the_emulsion_screen_shows_the_library_answer():
                           "jurisdiction": ", ".join(case["jurisdictions"])}
                 for name, value in fields.items():
                     screen.query_one(f"#em-{name}", Input).value = value
+                screen.query_one("#em-purpose").value = case.get("purpose", "none")
                 await pilot.press("ctrl+r")
                 await pilot.pause()
                 assert screen.design is not None
@@ -131,6 +142,13 @@ def test_the_emulsion_screen_shows_the_library_answer():
             assert "--" not in app.screen.error_message
 
     asyncio.run(go())
+
+
+def test_a_purpose_refuses_an_agent_its_rules_allow_only_for_another():
+    # SAIB: 21 CFR 172.833 and Reg. (EC) No 1333/2008 Annex II allow it in the finished drink only
+    drink, flavour = (solvsel.emulsion(**case) for case in CASES[3:5])
+    assert drink.ok and not flavour.ok
+    assert all("allows it for finished_food only" in m for m in flavour.refusals) and len(flavour.refusals) == 2
 
 
 def test_a_bad_request_names_the_field(capsys):

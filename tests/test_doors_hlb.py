@@ -79,6 +79,18 @@ def test_every_mode_at_once_agrees(capsys):
     assert set(cli) >= {"required_hlb", "pairs", "triples", "emulsifier_rules", "structure", "series", "fit"}
 
 
+def test_a_purpose_gives_the_same_rules_from_the_library_and_the_command_line(capsys):
+    # the emulsifiers' rules judged for a product added to the finished drink; an emulsifier with no rule on record
+    # stays "no data", never allowed (the emulsion screen has no rules part, so two doors here)
+    lib = solvsel.hlb(target=12, top=3, jurisdictions=("US", "EU"), purpose="finished_food").to_dict()
+    argv = ["hlb", "--target", "12", "--top", "3", "--jurisdiction", "US,EU", "--purpose", "finished_food", "--json"]
+    assert main(argv) == 0
+    cli = json.loads(capsys.readouterr().out)
+    assert cli == json.loads(json.dumps(lib))
+    assert cli["emulsifier_rules"] and all(r["status"] != "GMP" or r["purposes"] for r in cli["emulsifier_rules"])
+    assert cli["audit"]["tables_sha256"]
+
+
 def test_the_emulsion_screen_shows_the_library_answer():
     pytest.importorskip("textual")
     from textual.widgets import Input

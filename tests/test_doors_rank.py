@@ -107,6 +107,44 @@ def test_the_carriers_screen_shows_the_library_result(library):
     asyncio.run(go())
 
 
+#: Extraction solvents for a cannabinoid extract for food (a food ingredient), EU.
+PURPOSE_REQUEST = dict(solute="cannabidiol", food=True, use="extraction", jurisdiction="EU", purpose="food_ingredient",
+                       top=15)
+PURPOSE_ARGV = ["rank", "--solute", "cannabidiol", "--food", "--use", "extraction", "--jurisdiction", "EU",
+                "--purpose", "food_ingredient", "--top", "15", "--json"]
+
+
+def test_a_purpose_gives_the_same_answer_from_every_door(cat, capsys):
+    ref = rank(catalog=cat, **PURPOSE_REQUEST)
+    assert ref.results and all("for food_ingredient" in r.food_status for r in ref.results)
+    code, out, _ = _cli(capsys, PURPOSE_ARGV)
+    assert code == 0
+    doc = json.loads(out)
+    assert doc == json.loads(json.dumps(to_jsonable(ref.to_dict())))
+
+    async def go():
+        from solvsel.tui.app import create_app
+
+        app = create_app(catalog=load_catalog())
+        async with app.run_test(size=(160, 45)) as pilot:
+            await _settle(app, pilot)
+            screen = app.screen
+            for selector, value in {"#use": "extraction", "#jurisdiction": "EU", "#purpose": "food_ingredient",
+                                    "#temp": "25", "#min-flash": "", "#bp-window": "", "#exclude": ""}.items():
+                screen.query_one(selector).value = value
+            screen.action_search()
+            await _settle(app, pilot)
+            got = screen.ranking
+            assert [(r.name, r.food_status) for r in got.results] == [(r.name, r.food_status) for r in ref.results]
+            assert [r.ra for r in got.results] == pytest.approx([r.ra for r in ref.results], rel=1e-12)
+            assert [(d.name, d.reason) for d in got.dropped] == [(d.name, d.reason) for d in ref.dropped]
+            assert got.audit == ref.audit
+            # the detail pane shows the audit trail
+            assert "tables SHA-256" in str(screen.query_one("#carrier-detail").render())
+
+    asyncio.run(go())
+
+
 def test_a_bad_field_is_named_by_each_door(cat, capsys):
     with pytest.raises(OutOfRangeError) as err:
         rank(catalog=cat, **{**REQUEST, "temp_C": 500.0})
