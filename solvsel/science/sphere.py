@@ -1000,10 +1000,13 @@ def _intervals(Xs, g, w, c, r0, V_best, V, lo, hi, lapse, level, interval, messa
             iv[key] = (None, None)
         iv["method"] = "none"
         return iv
-    from scipy.stats import chi2
+    from statistics import NormalDist
 
-    # region of spheres whose (floored) desirability is within the level of the best
-    budget = max(V_best + float(chi2.ppf(level, 1)) / 2.0, V)
+    # region of spheres whose (floored) desirability is within the level of the best; the
+    # chi-square quantile of one degree of freedom is the square of the normal quantile at
+    # (1 + level) / 2 (closed form; scipy.stats's chi2.ppf agrees within 3e-14 relative)
+    chi2_1 = NormalDist().inv_cdf(0.5 + 0.5 * level) ** 2
+    budget = max(V_best + chi2_1 / 2.0, V)
     ranges, ok = _profile_interval(Xs, g, w, c, r0, budget, lo, hi, lapse)
     for k, key in enumerate(("dD", "dP", "dH")):
         iv[key] = (round(ranges[k][0] / SCALE[k], 4), round(ranges[k][1] / SCALE[k], 4))
