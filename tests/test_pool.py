@@ -96,6 +96,30 @@ def test_food_law(cat):
     assert not pool.left_out and {c.food.status for c in pool.candidates} == {"bench only"}
 
 
+def test_food_law_for_a_purpose(cat):
+    # Directive 2009/32/EC Annex I Part III allows 1-butanol for flavourings from natural source materials only;
+    # Part I allows ethanol for every purpose
+    pool = build_pool(cat, PoolFilters(use="extraction", jurisdiction="eu", purpose="Food ingredient"))
+    assert (pool.filters.jurisdiction, pool.filters.purpose) == ("EU", "food_ingredient")
+    f, why = _left(pool)["1-butanol"]
+    assert f == "food law" and why.startswith("not allowed for this purpose as extraction in EU")
+    assert "Dir. 2009/32/EC Annex I Part III allows it for natural_flavouring only" in why
+    ethanol = next(c for c in pool.candidates if c.name == "ethanol")
+    assert ethanol.food.status_text == "permitted for food_ingredient (EU Dir. 2009/32/EC Annex I Part I)"
+    assert {r.rule for r in pool.rules} >= {"Dir. 2009/32/EC Annex I Part I", "Dir. 2009/32/EC Annex I Part III"}
+    # a purpose alone turns the food-law filter on; for natural flavourings 1-butanol is in
+    natural = build_pool(cat, PoolFilters(use="extraction", jurisdiction="EU", purpose="natural_flavouring"))
+    assert natural.filters.legal and "1-butanol" in natural.names
+    # which jurisdictions and purposes exist is the tables' business: checked when the pool is built
+    for field, bad in (("jurisdiction", "Mars"), ("purpose", "cannabis")):
+        with pytest.raises(InputError) as err:
+            build_pool(cat, PoolFilters(**{field: bad}))
+        assert err.value.param == field
+    with pytest.raises(InputError) as err:
+        PoolFilters(purpose=3)
+    assert err.value.param == "purpose"
+
+
 def test_temperature(cat, tmp_path):
     # water freezes at 0 C; diethyl ether boils at 34.6 C (CRC Handbook)
     cold = build_pool(cat, PoolFilters(only=("water", "ethanol"), temp_C=-20))
