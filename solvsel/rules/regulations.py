@@ -2,16 +2,24 @@
 
 This module answers the questions a formulator must settle before a carrier
 or an extraction solvent is worth a bench trial: is it allowed for this use in
-this jurisdiction, under which rule and condition; what limit applies to the
-food as consumed (summed from all sources where the rule says so).  The rules live in
-``tables/regulations.csv`` (one row per substance, jurisdiction, rule and use,
-each with its source, confidence and checked-on date), the food categories
-in ``tables/food_categories.csv`` and the example claim rules in
-``tables/claims.csv``.
+this jurisdiction, for the product's purpose, under which rule and condition;
+what limit applies and where it is measured (in the extract, in the flavouring,
+in the food as consumed, summed from all sources where the rule says so).  The
+rules live in data: ``tables/regulations.csv`` (one row per substance,
+jurisdiction, rule, use and condition, each with the purposes of
+``tables/purposes.csv`` it authorises, its source, confidence and checked-on
+date), the food categories in ``tables/food_categories.csv`` and the example
+claim rules in ``tables/claims.csv``.  The jurisdictions are those of the
+table's rows (:func:`food_jurisdictions`): adding one is adding its rows.
 
-Missing data is never taken as permission: a substance with no row for a use
-and jurisdiction has the status ``"no data"``, and for the EU extraction
-solvents (a positive list) a solvent that is not listed is ``"not permitted"``.
+A substance is allowed for a purpose only where a row authorises that purpose
+(or every purpose); otherwise it is ``"not allowed for this purpose"``, with the
+rules that allow it for other purposes named.  Without a purpose, an allowed
+substance is shown with the purposes it is allowed for, never as a bare
+"allowed".  Missing data is never taken as permission: a substance with no
+row for a use and jurisdiction has the status ``"no data"``, and for the EU
+extraction solvents (a positive list) a solvent that is not listed is ``"not
+permitted"``.
 
 The dose arithmetic (levels along a dilution chain, maximum dose, residues,
 claim flags) is in :func:`check_dose` and :func:`carrier_dose_check`, which take
