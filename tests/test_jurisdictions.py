@@ -16,7 +16,6 @@ from solvsel.data.catalog import TABLES_DIR, load_catalog
 from solvsel.errors import InputError
 from solvsel.jobs.parse import parse_chain
 from solvsel.rules import regulations as cp
-from solvsel.science import formulation as fm
 
 CODE = "ZZ Food Code"
 #: The made-up jurisdiction's rules: ethanol for food ingredients and flavourings at good manufacturing

@@ -70,7 +70,7 @@ def test_part_ii_and_iii_solvents_are_not_allowed_for_a_food_ingredient(cat, nam
     for part, purpose in parts.items():
         said = next(x for x in st.message.split("; ") if x.startswith(part + " allows it for"))
         assert purpose in said and said.endswith(" only")
-    assert f"not allowed for food_ingredient as extraction in EU" in st.message
+    assert "not allowed for food_ingredient as extraction in EU" in st.message
 
 
 def test_1_butanol_is_allowed_for_a_natural_flavouring_with_its_residue_limit(cat):
