@@ -106,14 +106,9 @@ def to_jsonable(obj: Any) -> Any:
 
 
 def emit_json(obj: Any) -> None:
-    """Print ``obj`` as one JSON document; a document (a JSON object) without an ``audit`` block gets one
-    (the version and the tables' checksum, no rules applied), so every answer says what made it."""
-    data = to_jsonable(obj)
-    if isinstance(data, dict) and "audit" not in data:
-        from ..data.provenance import audit_block
-
-        data["audit"] = audit_block()
-    json.dump(data, sys.stdout, indent=2, ensure_ascii=False, allow_nan=False)
+    """Print ``obj`` as one JSON document (a result's ``to_dict()``: the jobs that judge legal status put
+    their ``audit`` block in it, so the library and the command line give the same document)."""
+    json.dump(to_jsonable(obj), sys.stdout, indent=2, ensure_ascii=False, allow_nan=False)
     sys.stdout.write("\n")
 
 
