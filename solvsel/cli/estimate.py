@@ -54,6 +54,17 @@ def register(sub):
     return p
 
 
+def _refit_progress(done: int, total: int, message: str) -> None:
+    """A refit's progress bar on stderr: redrawn in place on a terminal, a line a step otherwise."""
+    width = 24
+    fill = width * done // max(total, 1)
+    line = f"[{'#' * fill}{'.' * (width - fill)}] {done}/{total} {message}"
+    if sys.stderr.isatty():
+        print("\r\033[K" + line, end="\n" if done >= total else "", file=sys.stderr, flush=True)
+    else:
+        print(line, file=sys.stderr, flush=True)
+
+
 def _refit_text(result) -> None:
     res, out = result.refit, result.request.refit
     print(f"Fitted on {res['fitted']} of {res['compounds']} compounds ({len(result.excluded)} CAS numbers excluded).")
@@ -62,8 +73,10 @@ def _refit_text(result) -> None:
     rows = [r for r in res["table"] if r["class"] == "all"]
     print_table(rows, [("method", "method"), ("n", "n"), ("mae_dD", "MAE dD", ".2f"), ("mae_dP", "MAE dP", ".2f"),
                        ("mae_dH", "MAE dH", ".2f"), ("mae_ra", "mean Ra", ".2f")])
-    print("\nMean absolute errors in MPa^0.5 against the data sets (the fitted model out of fold, nested grouped "
-          "10-fold CV: settings chosen on inner folds of each training part): solvsel-gc on every compound it covers; 'same compounds', 'groups only' and Hoftyzer-Van Krevelen "
+    print("\nMean absolute errors in MPa^0.5 against the data sets (the fitted model out of fold, grouped 10-fold "
+          "CV with each fold's settings as the nested CV chose them on inner folds of its training part, recorded "
+          "in the bundled parameters): solvsel-gc on every compound it covers; 'same compounds', 'groups only' and "
+          "Hoftyzer-Van Krevelen "
           "on the compounds both group methods cover; properties where the library has the data.")
     print(f"Use it with: solvsel estimate --params {out} SMILES")
 
@@ -113,7 +126,7 @@ def _print_many(result) -> None:
 def run(args) -> int:
     from ..jobs.estimate import estimate
 
-    say = None if args.json else (lambda msg: print(f"... {msg}", file=sys.stderr))
+    say = None if args.json else _refit_progress
     result = estimate(
         smiles=tuple(args.smiles), file=args.file, method=args.method, params=args.params,
         lookup=not args.no_lookup, lookup_all=args.lookup_all, refit=args.refit, exclude=args.exclude,

@@ -204,10 +204,14 @@ def _error_text(exc: SolvselError) -> str:
 
 
 def estimate(request: EstimateRequest | None = None, *, catalog: Catalog | None = None,
-             progress: Callable[[str], None] | None = None, **fields) -> EstimateResult:
+             progress: Callable[[int, int, str], None] | None = None, **fields) -> EstimateResult:
     """Estimate HSP from SMILES, or refit the model (see :class:`EstimateRequest`).
 
-    ``catalog`` is not used (an estimate needs no table); ``progress(message)`` is told the steps of a refit.
+    ``catalog`` is not used (an estimate needs no table); ``progress(done, total, message)`` is told
+    the steps of a refit (``done`` of ``total`` finished, the next one named).  A refit takes the
+    settings the nested cross-validation chose once (recorded in the bundled parameter table), so
+    it reproduces the bundled tables from the bundled data, in about a minute
+    (:func:`solvsel.science.structure_training.refit`).
     One SMILES raises its error; of several, each failure is kept in its place.
     """
     q = build_request(EstimateRequest, request, fields)

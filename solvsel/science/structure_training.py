@@ -349,7 +349,7 @@ def select_settings(X, Y, K, keys, terms=None, n_folds=INNER_FOLDS, seed=SEED):
 
 
 def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, similarity=True, terms=None, K=None, nested=True,
-                   progress=None):
+                   progress=None, fold_settings=None):
     """Grouped, nested k-fold cross-validation of the own model.
 
     Each compound (one structure, see :func:`training_data`) is one group, so
@@ -357,9 +357,11 @@ def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, similarity=True, 
     Compounds marked ``conflict`` get a fold and an out-of-fold prediction but
     are never fitted on.  Within each outer fold the settings are chosen by
     :func:`select_settings` on that fold's training compounds only (``nested``;
-    else the default settings); the similarity correction of a test compound
-    uses only that fold's training compounds and their residuals under that
-    fold's fit.
+    else the default settings), or taken from ``fold_settings`` (one
+    :class:`FitSettings` per fold, e.g. those a nested run chose and recorded);
+    the similarity correction of a test compound uses only that fold's training
+    compounds and their residuals under that fold's fit.  ``progress(k, n_folds)``
+    is told when fold ``k`` (from 0) starts.
 
     Returns
     -------
@@ -387,9 +389,13 @@ def cross_validate(df, X, covered, n_folds=N_FOLDS, seed=SEED, similarity=True, 
         tr = np.where(fitted & (folds != k) & (folds >= 0))[0]
         te = np.where(folds == k)[0]
         if progress:
-            progress(f"outer fold {k + 1} of {n_folds}")
-        s = select_settings(X[tr], Y[tr], K[:, tr][:, :, tr], keys[tr], terms, seed=seed + 1 + k) if nested \
-            else FitSettings()
+            progress(k, n_folds)
+        if fold_settings is not None:
+            s = fold_settings[k]
+        elif nested:
+            s = select_settings(X[tr], Y[tr], K[:, tr][:, :, tr], keys[tr], terms, seed=seed + 1 + k)
+        else:
+            s = FitSettings()
         settings.append(s)
         icpt, coef = _fit(X[tr], Y[tr], terms, s)
         base[te] = _predict(X[te], icpt, coef, s.square)
@@ -457,7 +463,7 @@ def published_predictions(df, methods=("hoftyzer-van-krevelen",)):
     return out
 
 
-def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, progress=None):
+def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, progress=None, choose=False):
     """Fit the own model on the ``chemicals`` datasets and write its parameter table.
 
     Writes ``out`` (parameters), ``<stem>_training.csv`` (every compound with
@@ -466,13 +472,17 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
     Hoftyzer-Van Krevelen on the same compounds).  Never overwrites a file
     unless ``force``.
 
-    The cross-validation is nested: in each of the ``n_folds`` outer folds the
-    settings (Huber epsilon and alpha, transform, kernel power and penalty) are
-    chosen by :func:`select_settings` on that fold's training compounds, and
-    only then is the fold's test part predicted; the settings chosen in each
-    fold are recorded in the parameter table (``fold k ...`` meta rows).  The
-    final parameters use settings chosen the same way on every fitted compound.
-    Takes a few minutes (about 1,700 Huber fits).
+    The settings (Huber epsilon and alpha, transform, kernel fingerprint, power
+    and penalty) are those chosen once, by the nested cross-validation, and
+    recorded in the bundled parameter table: the final fit uses the settings
+    chosen on every fitted compound, and the cross-validation of each of the
+    ``n_folds`` outer folds those chosen on that fold's training compounds.  So
+    a refit of the bundled data reproduces the bundled tables byte for byte, in
+    about a minute.  With ``choose`` the settings are chosen again, by the
+    nested cross-validation (in each outer fold by :func:`select_settings` on
+    its training compounds, then on every fitted compound; about 1,700 Huber
+    fits, ten minutes and more): what the benchmark runs, and what a hold-out
+    study (``exclude``) needs for settings that never saw the held-out compounds.
 
     Parameters
     ----------
@@ -482,6 +492,10 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
         CAS numbers held out of everything (fitting and validation)
     force : bool
         overwrite existing files
+    progress : callable, optional
+        ``progress(done, total, message)``: ``done`` of ``total`` steps finished, the next one named
+    choose : bool
+        choose the settings by nested cross-validation instead of taking the recorded ones
 
     Returns
     -------
@@ -492,42 +506,62 @@ def refit(out, exclude=(), force=False, n_folds=N_FOLDS, seed=SEED, terms=None, 
 
     paths = _refit_paths(out, force)
     terms = tuple(tuple(t) for t in (terms or OWN_TERMS))
-    say = progress or (lambda msg: None)
-    say("reading the HSP datasets of chemicals")
+    recorded = None if choose else _recorded_settings(n_folds)
+    total = n_folds + 5
+    say = (lambda done, msg: progress(done, total, msg)) if progress else (lambda done, msg: None)
+    say(0, "reading the HSP datasets of chemicals")
     df = training_data(exclude)
     df["chem_class"] = [chemical_class(s) for s in df["smiles"]]
-    say(f"{len(df)} compounds; counting groups")
+    say(1, f"{len(df)} compounds; counting groups and comparing structures")
     X, _, _, covered = dataset_design(df, terms)
     fps = [fingerprint(_rdkit().MolFromSmiles(s)) for s in df["smiles"]]
     K = similarity_matrix(fps, fps)
-    say(f"nested cross-validation ({n_folds} outer folds, settings chosen in {INNER_FOLDS} inner folds)")
-    folds, cvpred, cvbase, fold_settings = cross_validate(df, X, covered, n_folds, seed, terms=terms, K=K,
-                                                          progress=say)
+    how = "the recorded settings of each fold" if recorded else f"settings chosen in {INNER_FOLDS} inner folds"
+    folds, cvpred, cvbase, fold_settings = cross_validate(
+        df, X, covered, n_folds, seed, terms=terms, K=K, fold_settings=recorded and recorded.fold_settings,
+        progress=lambda k, n: say(2 + k, f"cross-validation, outer fold {k + 1} of {n} ({how})"))
     fitted = covered & ~df["conflict"].to_numpy(bool)
     Y = df[["dD", "dP", "dH"]].to_numpy(float)
     fi = np.where(fitted)[0]
-    say("choosing the settings on every compound and fitting")
-    settings = select_settings(X[fi], Y[fi], K[:, fi][:, :, fi], df["key"].to_numpy()[fi], terms, seed=seed)
+    say(2 + n_folds, "fitting every compound" + ("" if recorded else ", the settings chosen on all of them"))
+    settings = recorded.settings if recorded else select_settings(X[fi], Y[fi], K[:, fi][:, :, fi],
+                                                                   df["key"].to_numpy()[fi], terms, seed=seed)
     icpt, coef = _fit(X[fitted], Y[fitted], terms, settings)
     resid = np.full((len(df), 3), np.nan)
     resid[fitted] = Y[fitted] - _predict(X[fitted], icpt, coef, settings.square)
-    say("similarity correction")
+    say(3 + n_folds, "similarity correction")
     dual = np.full((len(df), 3), np.nan)
     dual[fi] = kernel_dual(K[:, fi][:, :, fi], resid[fi], settings.power, settings.lam, settings.fp)
-    say("scoring the published method on the same compounds")
+    say(4 + n_folds, "scoring the published method on the same compounds")
     rows_cv = _cv_rows(df, cvpred, cvbase, fitted, covered)
+    _write_refit(paths, terms, icpt, coef, settings, fold_settings, f"outer folds={n_folds} seed={seed} "
+                 f"fitted={int(fitted.sum())}", (df, covered, fitted, folds, cvpred, resid, dual), rows_cv)
+    say(total, "written")
+    overall = next(r for r in rows_cv if r["method"] == OWN_METHOD and r["class"] == "all")
+    return {"paths": [str(p) for p in paths], "compounds": int(len(df)), "fitted": int(fitted.sum()),
+            "cv": overall, "table": rows_cv}
+
+
+def _recorded_settings(n_folds: int):
+    """The settings the nested cross-validation chose and the bundled parameter table records."""
+    P = load_params()
+    if len(P.fold_settings) != n_folds:
+        raise InputError(f"the bundled parameters record the settings of {len(P.fold_settings)} outer folds, not "
+                         f"{n_folds}: choose the settings again for another number of folds", param="n_folds",
+                         value=n_folds, expected=str(len(P.fold_settings)))
+    return P
+
+
+def _write_refit(paths, terms, icpt, coef, settings, fold_settings, split: str, training: tuple, rows_cv) -> None:
+    """The three tables of a refit, each written beside its name and then renamed onto it."""
     tmp = [p.with_name(p.name + ".tmp") for p in paths]
-    _write_params(tmp[0], terms, icpt, coef, settings, fold_settings,
-                  f"outer folds={n_folds} seed={seed} fitted={int(fitted.sum())}")
-    _write_training(tmp[1], df, covered, fitted, folds, cvpred, resid, dual)
+    _write_params(tmp[0], terms, icpt, coef, settings, fold_settings, split)
+    _write_training(tmp[1], *training)
     _write_cv(tmp[2], rows_cv)
     for t, p in zip(tmp, paths):
         t.replace(p)
     load_params.cache_clear()
     _neighbour_data.cache_clear()
-    overall = next(r for r in rows_cv if r["method"] == OWN_METHOD and r["class"] == "all")
-    return {"paths": [str(p) for p in paths], "compounds": int(len(df)), "fitted": int(fitted.sum()),
-            "cv": overall, "table": rows_cv}
 
 
 #: Source id of the tables a refit writes (kind "derived" in ``tables/sources.csv``).
