@@ -126,6 +126,11 @@ class BlendRequest(PoolRequest):
         what other ingredients already bring to the food as consumed [mg/kg]
     keep_over : bool
         list blends over a limit too (flagged) instead of leaving them out
+    shown_only : bool
+        check only for the blends shown (batch screening): the checks (one phase, dose) stop when
+        ``top`` blends pass, the trade-off front is among those, and the blends dropped on the way
+        are counted, not listed with their reasons.  By default blends are checked until 5 x
+        ``top`` pass (at least 50, 200 with rejects), for the front beyond the blends shown
     """
 
     solute: str | None = None
@@ -157,6 +162,7 @@ class BlendRequest(PoolRequest):
     chain: str | None = None
     already: tuple[tuple[str, float], ...] | None = None
     keep_over: bool = False
+    shown_only: bool = False
 
     def __post_init__(self) -> None:
         set_ = object.__setattr__
@@ -511,7 +517,7 @@ def _check(s: _Search, sc: _Scores) -> list[tuple[int, dict | None]]:
     until there are enough for the blends shown and their trade-off front."""
     req, c = s.req, s.cands
     want = req.top
-    enough = max(5 * want, 200 if s.rejects else 50)
+    enough = want if req.shown_only else max(5 * want, 200 if s.rejects else 50)
     steps = req.steps
     kept: list[tuple[int, dict | None]] = []
     # pairwise one-phase screen of the candidates at once (windows, measured pairs first; every
@@ -519,7 +525,7 @@ def _check(s: _Search, sc: _Scores) -> list[tuple[int, dict | None]]:
     screen = one_phase_screen(s.cat, s.pool.names, c.idx, c.fractions, req.temp_C)
 
     def listing() -> bool:
-        return len(kept) < want and len(s.dropped) < _DROPPED_LISTED
+        return not req.shown_only and len(kept) < want and len(s.dropped) < _DROPPED_LISTED
 
     for j in sc.order[:_SCAN_LIMIT]:
         j = int(j)
@@ -685,6 +691,7 @@ def _constraints(req: BlendRequest) -> dict:
         "one_phase_only": bool(req.one_phase_only), "min_fraction": float(req.min_fraction), "top": req.top,
         "dose": req.dose, "category": req.category, "chain": req.chain,
         "already": dict(req.already) if req.already else None, "keep_over": bool(req.keep_over),
+        "shown_only": bool(req.shown_only),
     }
 
 
@@ -703,7 +710,8 @@ def _cautions(req: BlendRequest) -> tuple[str, ...]:
 
 
 def blend(request: BlendRequest | None = None, *, catalog: Catalog | None = None,
-          progress: Callable[[int, int], bool | None] | None = None, **fields: Any) -> BlendResult:
+          progress: Callable[[int, int], bool | None] | None = None, pool: Pool | None = None,
+          **fields: Any) -> BlendResult:
     """The best blends of 1 to ``max_components`` liquids for a target, under constraints.
 
     Parameters
@@ -716,6 +724,9 @@ def blend(request: BlendRequest | None = None, *, catalog: Catalog | None = None
         ``progress(done, total)`` after each batch of the exact search
         (combinations); returning False cancels it, which gives a result with
         ``success`` False and a message starting "cancelled"
+    pool : Pool, optional
+        the candidate pool of the request's filters (:func:`~solvsel.jobs.pool.build_pool`), built
+        once for many targets (batch screening); by default built here
 
     Returns
     -------
@@ -725,7 +736,10 @@ def blend(request: BlendRequest | None = None, *, catalog: Catalog | None = None
     cat = catalog_or_default(catalog)
     target = target_of(cat, target=req.target, solute=req.solute, hsp=req.hsp, smiles=req.smiles)
     rejects = _rejects(cat, req)
-    pool = build_pool(cat, req.filters)
+    if pool is None:
+        pool = build_pool(cat, req.filters)
+    elif pool.filters != req.filters:
+        raise InputError("the pool given was built for other filters than the request's", param="pool")
     lo, hi = _bounds(cat, pool, req)
     m = len(pool.candidates)
     counts = {"liquids": m, "excluded_liquids": len(pool.left_out), "combinations": 0, "bounds_not_met": 0,

@@ -28,7 +28,7 @@ from ..science.formulation import Step
 from ..science.target import Target, solubility_in, target_from_hsp
 from ._base import build_request, catalog_or_default, check_int, frame, target_of
 from .parse import parse_chain
-from .pool import Candidate, LeftOut, PoolRequest, build_pool, solvent_named
+from .pool import Candidate, LeftOut, Pool, PoolRequest, build_pool, solvent_named
 
 __all__ = ["RankRequest", "RankedSolvent", "RankResult", "rank"]
 
@@ -282,9 +282,12 @@ def _ranked(cat: Catalog, target: Target, c: Candidate, req: RankRequest, steps)
     )
 
 
-def _rank_pool(cat: Catalog, target: Target, req: RankRequest, records=None):
+def _rank_pool(cat: Catalog, target: Target, req: RankRequest, records=None, pool: Pool | None = None):
     """Every candidate of the pool ranked (best first), the liquids left out, and the rules judged by."""
-    pool = build_pool(cat, req.filters, records)
+    if pool is None:
+        pool = build_pool(cat, req.filters, records)
+    elif pool.filters != req.filters:
+        raise InputError("the pool given was built for other filters than the request's", param="pool")
     steps = req.steps
     results, dropped = [], list(pool.left_out)
     for c in pool.candidates:
@@ -369,7 +372,8 @@ def _nearest(cat: Catalog, req: RankRequest) -> RankResult:
                       audit_block(rules, cat.tables_dir))
 
 
-def rank(request: RankRequest | None = None, *, catalog: Catalog | None = None, **fields: Any) -> RankResult:
+def rank(request: RankRequest | None = None, *, catalog: Catalog | None = None, pool: Pool | None = None,
+         **fields: Any) -> RankResult:
     """Rank single liquids for a target by RED (or Ra when R0 is unknown), or list substitutes.
 
     Parameters
@@ -378,6 +382,9 @@ def rank(request: RankRequest | None = None, *, catalog: Catalog | None = None, 
         the request; or give its fields as keywords
     catalog : Catalog, optional
         the tables (default: the bundled ones)
+    pool : Pool, optional
+        the candidate pool of the request's filters (:func:`~solvsel.jobs.pool.build_pool`), built
+        once for many targets (batch screening); by default built here
 
     Returns
     -------
@@ -399,7 +406,7 @@ def rank(request: RankRequest | None = None, *, catalog: Catalog | None = None, 
     target = target_of(cat, target=req.target, solute=req.solute, hsp=req.hsp, smiles=req.smiles)
     if req.require_solubility:
         _check_solubility(target, req.temp_C)
-    results, dropped, rules = _rank_pool(cat, target, req)
+    results, dropped, rules = _rank_pool(cat, target, req, pool=pool)
     if not req.all and req.top is not None:
         results = results[:req.top]
     notes = _notes(target, req.temp_C) + _closing_notes(target)
