@@ -30,7 +30,11 @@ EXCLUDED_HEADERS = ("liquid", "why it is not in the pool")
 
 USE_CHOICES = [("carrier (flavour carrier)", "carrier"), ("extraction", "extraction"), ("bench", "bench"),
                ("any liquid of the table", "any")]
-JURISDICTIONS = [("EU", "EU"), ("US", "US"), ("none (no legal filter)", "none")]
+def jurisdiction_choices(cat) -> list[tuple[str, str]]:
+    """The food-law jurisdictions of the catalog's regulations (data, not code), and no filter."""
+    from ..rules.regulations import food_jurisdictions
+
+    return [(j, j) for j in food_jurisdictions(cat)] + [("none (no legal filter)", "none")]
 
 
 # ----------------------------------------------------------------- messages
@@ -110,7 +114,8 @@ class CarriersScreen(BenchScreen):
                 yield Label("Use")
                 yield Select(USE_CHOICES, value="carrier", allow_blank=False, id="use", compact=True)
                 yield Label("Jurisdiction")
-                yield Select(JURISDICTIONS, value="EU", allow_blank=False, id="jurisdiction", compact=True)
+                yield Select(jurisdiction_choices(self.session.catalog), value="EU", allow_blank=False, id="jurisdiction",
+                             compact=True)
                 yield Label("The product is for")
                 yield Select(purpose_choices(self.session.catalog), value=NO_PURPOSE, allow_blank=False,
                              id="purpose", compact=True)
