@@ -86,3 +86,19 @@ def test_the_jobs_use_the_new_jurisdiction(zz):
                      purpose="spice_oleoresin", catalog=zz)
     [res] = [x for x in d.check.residues if x.jurisdiction == "ZZ"]
     assert (res.rule, res.limit, res.ok, res.measured_in) == (f"{CODE} s. 2", 5, False, "residue in the extract")
+
+
+def test_a_positive_list_is_declared_in_data(zz, tmp_path):
+    """ZZ keeps no positive list: an unlisted solvent is "no data". Declared in jurisdictions.csv
+    as a positive list for extraction, the same solvent is "not permitted", with no code change."""
+    assert cp.positive_list(zz, "ZZ", "extraction") is None
+    folder = tmp_path / "tables"
+    shutil.copytree(zz.tables_dir, folder)
+    with open(folder / "jurisdictions.csv", "a", encoding="utf-8", newline="") as fh:
+        csv.writer(fh).writerow(["ZZ", "Zedland", "extraction", f"{CODE} list of extraction solvents",
+                                 "zz_food_code", "made up for this test"])
+    listed = load_catalog(tables_dir=folder)
+    toluene = cp.food_status(listed, "toluene", use="extraction", jurisdiction="ZZ")
+    assert toluene.status == "not permitted" and f"{CODE} list of extraction solvents" in toluene.message
+    # Directive 2009/32/EC: only the solvents of Annex I may be used (tables/jurisdictions.csv, EU row)
+    assert cp.food_status(None, "toluene", use="extraction", jurisdiction="EU").status == "not permitted"

@@ -119,11 +119,29 @@ JURISDICTIONS, FOOD_JURISDICTIONS = _bundled_jurisdictions()
 #: Uses the food-status check knows.
 USES = ("carrier", "extraction", "bench")
 
-#: Where a jurisdiction's rule for a use is a positive list, so that a
-#: substance not listed is not permitted (rather than "no data").
-POSITIVE_LISTS = {
-    ("EU", "extraction"): "Dir. 2009/32/EC Annex I (positive list of extraction solvents)",
-}
+_POSITIVE_CACHE: dict = {}
+
+
+def positive_list(cat, jurisdiction: str, use: str) -> str | None:
+    """The name of ``jurisdiction``'s positive list for ``use`` (``tables/jurisdictions.csv``), or
+    None: on a positive list a substance with no row is "not permitted" rather than "no data".
+
+    >>> positive_list(None, "EU", "extraction")
+    'Dir. 2009/32/EC Annex I (positive list of extraction solvents)'
+    >>> positive_list(None, "US", "extraction") is None
+    True
+    """
+    cat = _catalog(cat)
+    key = id(cat)
+    if key not in _POSITIVE_CACHE:
+        lists = {}
+        if "jurisdictions" in cat.table_names:
+            for r in cat.table("jurisdictions").to_dict("records"):
+                for u in str(r.get("positive_list_uses") or "").split(";"):
+                    if u.strip() and str(r.get("positive_list") or "").strip():
+                        lists[(str(r["code"]).strip().upper(), u.strip())] = str(r["positive_list"]).strip()
+        _POSITIVE_CACHE[key] = lists
+    return _POSITIVE_CACHE[key].get((str(jurisdiction).upper(), use))
 
 #: Rule uses that set limits in the food as consumed (carriers, additives).
 FINISHED_FOOD_USES = ("carrier", "weighting", "emulsifier")
@@ -775,8 +793,9 @@ class _One:
 def _status_one(cat, cas: str, name: str, use: str, jur: str, category: str | None, purpose: str | None) -> _One:
     rows = tuple(limits(cat, cas=cas, jurisdiction=jur, use=use, category=category))
     if not rows:
-        if (jur, use) in POSITIVE_LISTS:
-            return _One("not permitted", (), (), f"{name} is not in {POSITIVE_LISTS[(jur, use)]} as bundled; verify", ())
+        listed = positive_list(cat, jur, use)
+        if listed:
+            return _One("not permitted", (), (), f"{name} is not in {listed} as bundled; verify", ())
         return _One("no data", (), (), f"no {jur} rule for {name} as {use} in the bundled table (that is not a permission)",
                     ())
     ids = _purposes_of(rows)
@@ -1438,12 +1457,13 @@ def _given_residues(cat, residues: Mapping[str, float]) -> dict[str, tuple[str, 
     return given
 
 
-def _unlisted_residue(disp: str, cas: str, ppm: float, jur: str) -> ResidueCheck:
+def _unlisted_residue(cat, disp: str, cas: str, ppm: float, jur: str) -> ResidueCheck:
     """A measured residue of a solvent with no extraction rule in ``jur``: not permitted on a positive
     list, else no data (never a permission)."""
-    listed = (jur, "extraction") in POSITIVE_LISTS
+    name = positive_list(cat, jur, "extraction")
+    listed = name is not None
     return ResidueCheck(
-        disp, cas, ppm, POSITIVE_LISTS.get((jur, "extraction"), "no rule"), jur, "status",
+        disp, cas, ppm, name or "no rule", jur, "status",
         "not listed" if listed else "no data", None, None, "", False if listed else None, None,
         "not permitted" if listed else "no data", False, "checked" if listed else "from memory", (),
         (f"{disp} is not a permitted extraction solvent in the {jur} (not in the bundled positive list; verify)"
@@ -1523,7 +1543,7 @@ def _residue_checks(cat, residues: Mapping[str, float], jur: str, category: str,
         rows = limits(cat, cas=cas, jurisdiction=jur, category=category, use="extraction")
         ref = [r for r in limits(cat, cas=cas) if r.jurisdiction not in food and r.limit is not None]
         if not rows:
-            out.append(_unlisted_residue(disp, cas, ppm, jur))
+            out.append(_unlisted_residue(cat, disp, cas, ppm, jur))
         elif purpose is not None:
             judged = rows_for_purpose(rows, purpose)
             if not judged:
