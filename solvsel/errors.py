@@ -13,13 +13,20 @@ worded for any front end; each front end names the input its own way
 (:meth:`SolvselError.describe`): the command line by its option
 (``--temp``), the terminal UI by its field label, a notebook user by the
 request field.  The command line prints the result as one paragraph (exit
-code 2), the UI in a dialog.  Anything else that escapes is a bug (exit 1).
+code 2), or with ``--json`` as one JSON document (:meth:`SolvselError.as_json`),
+the UI in a dialog.  Anything else that escapes is a bug (exit 1).
+
+Something a user should know about an input that is not an error (a file
+read in a fallback encoding) is a :class:`SolvselNote` warning: the command
+line prints it on stderr as a note, a notebook shows it as a warning.
 
 >>> e = InputError("expected a number of C, got 'warm'", param="temp_C", value="warm")
 >>> str(e)
 "temp_C: expected a number of C, got 'warm'"
 >>> e.describe({"temp_C": "--temp"})
 "--temp: expected a number of C, got 'warm'"
+>>> e.as_json({"temp_C": "--temp"})["param"]
+'--temp'
 """
 
 from __future__ import annotations
@@ -32,8 +39,10 @@ __all__ = [
     "TableError",
     "UnknownNameError",
     "OutOfRangeError",
+    "FileError",
     "MissingDataError",
     "MissingExtraError",
+    "SolvselNote",
 ]
 
 
@@ -56,6 +65,8 @@ class SolvselError(Exception):
     """
 
     title = "solvsel error"
+    #: What went wrong, as one stable word for scripts (``error.kind`` of the JSON error document).
+    error_kind = "error"
 
     def __init__(
         self,
@@ -78,10 +89,10 @@ class SolvselError(Exception):
         super().__init__(self.message)
 
     def where(self) -> str:
-        """``"FILE, row R, column 'C'"`` for an error in a file, else ``""``."""
+        """``"FILE, row R, column 'C'"`` for an error in a file, else ``""`` (a very long path shortened)."""
         if self.path is None:
             return ""
-        out = self.path
+        out = self.path if len(self.path) <= 120 else f"{self.path[:60]}...{self.path[-40:]}"
         if self.row is not None:
             out += f", row {self.row}"
         if self.column is not None:
@@ -116,26 +127,67 @@ class SolvselError(Exception):
             "path": self.path, "row": self.row, "column": self.column,
         }
 
+    def as_json(self, names: Mapping[str, str] | Callable[[str], str] | None = None) -> dict[str, Any]:
+        """The error as the JSON document's ``error`` object: ``kind``, ``message`` (the paragraph of
+        :meth:`describe`) and, where they apply, ``param`` (named by ``names`` as in :meth:`describe`),
+        ``value``, ``expected``, ``file``, ``row``, ``column``."""
+        param = self.param
+        if param:
+            param = names(param) if callable(names) else (names or {}).get(param, param)
+        out: dict[str, Any] = {"kind": self.error_kind, "param": param or None,
+                               "value": None if self.value is None else _plain(self.value),
+                               "expected": self.expected, "file": self.path, "row": self.row,
+                               "column": self.column, "message": self.describe(names)}
+        return {k: v for k, v in out.items() if v is not None}
+
     def __str__(self) -> str:
         return self.describe()
+
+
+def _plain(value: Any) -> Any:
+    """``value`` as a JSON number, string or list of them."""
+    if isinstance(value, bool) or value is None or isinstance(value, str):
+        return value
+    if isinstance(value, int):
+        return value
+    if isinstance(value, float):
+        return value if value == value and abs(value) != float("inf") else str(value)
+    if isinstance(value, (list, tuple)):
+        return [_plain(v) for v in value]
+    return str(value)
+
+
+class SolvselNote(UserWarning):
+    """A note about an input that is not an error (e.g. a file read as Windows-1252, not UTF-8)."""
 
 
 class InputError(SolvselError, ValueError):
     """An argument or a value given by the user is malformed or inconsistent."""
 
     title = "Bad input"
+    error_kind = "input"
 
 
 class OutOfRangeError(InputError):
     """A number is outside the range in which the method is valid."""
 
     title = "Value out of range"
+    error_kind = "out_of_range"
+
+
+class FileError(InputError):
+    """A file cannot be used: missing, a folder or a device, unreadable, not text, too large, or it
+    cannot be written (a read-only folder, a full disk).  ``path`` names the file."""
+
+    title = "File problem"
+    error_kind = "file"
 
 
 class MissingDataError(SolvselError, LookupError):
     """The data needed for a computation are not known for this substance."""
 
     title = "Data missing"
+    error_kind = "missing_data"
 
 
 class MissingExtraError(SolvselError, ImportError):
@@ -145,6 +197,7 @@ class MissingExtraError(SolvselError, ImportError):
     """
 
     title = "Optional part not installed"
+    error_kind = "missing_extra"
 
     def __init__(self, extra: str, what: str, module: str) -> None:
         self.extra = extra
@@ -163,6 +216,7 @@ class TableError(SolvselError, ValueError):
     """
 
     title = "Bad table"
+    error_kind = "table"
 
     def __init__(self, path, message: str, row: int | None = None, column: str | None = None,
                  *, param: str | None = None, expected: str | None = None):
@@ -176,6 +230,7 @@ class UnknownNameError(SolvselError, KeyError):
     """
 
     title = "Unknown name"
+    error_kind = "unknown_name"
 
     def __init__(self, name: str, kind: str = "substance", suggestions: tuple[str, ...] = (),
                  *, param: str | None = None):
@@ -187,3 +242,10 @@ class UnknownNameError(SolvselError, KeyError):
             msg += "; closest: " + ", ".join(f"'{s}'" for s in self.suggestions)
         super().__init__(msg, param=param, value=name,
                          expected=f"a known {kind}" + (f" such as '{self.suggestions[0]}'" if self.suggestions else ""))
+
+    def as_json(self, names=None) -> dict[str, Any]:
+        """As :meth:`SolvselError.as_json`, with the closest known names as ``suggestions``."""
+        out = super().as_json(names)
+        if self.suggestions:
+            out["suggestions"] = list(self.suggestions)
+        return out

@@ -3,20 +3,26 @@
 Each subcommand lives in its own module ``solvsel.cli.<name>`` with two
 functions: ``register(subparsers)`` adds its parser (and must import nothing
 heavy), ``run(args) -> int`` does the work through the library.  Errors a user
-can cause (:class:`solvsel.errors.SolvselError`) are printed as one paragraph
-with exit code 2; anything else is a bug (exit code 1, traceback kept).
-With no subcommand the terminal UI opens.
+can cause (:class:`solvsel.errors.SolvselError`, and a command line argparse
+cannot read) are printed as one paragraph with exit code 2, or with ``--json``
+as one JSON document on stdout, ``{"error": {"kind", "param", "value",
+"expected", "file", "row", "column", "message"}}`` (the fields that apply,
+``param`` named by its option); anything else is a bug (exit code 1,
+traceback kept).  Notes about the input (a file read as Windows-1252) are
+printed on stderr.  With no subcommand the terminal UI opens.
 """
 
 from __future__ import annotations
 
 import argparse
 import importlib
+import re
 import sys
+import warnings
 
 from .._version import __version__
-from ..errors import SolvselError
-from ._common import option_name
+from ..errors import FileError, InputError, SolvselError, SolvselNote
+from ._common import emit_json, option_name
 
 #: Subcommands in the order ``solvsel --help`` lists them.
 COMMANDS = (
@@ -35,8 +41,51 @@ COMMANDS = (
 )
 
 
+class UsageError(InputError):
+    """A command line that cannot be read: an unknown option, a missing or malformed argument."""
+
+    title = "Bad command line"
+    error_kind = "usage"
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse with its errors raised as :class:`UsageError` (one paragraph, or JSON), not printed."""
+
+    def error(self, message: str):
+        raise usage_error(self.prog, message)
+
+
+_ARGUMENT = re.compile(r"^argument (?P<names>[^:]+): (?P<rest>.*)$", re.S)
+_REQUIRED = re.compile(r"^the following arguments are required: (?P<names>.*)$", re.S)
+_CHOICES = re.compile(r"\(choose from (?P<choices>.*)\)$", re.S)
+_QUOTED = re.compile(r": '(?P<value>.*?)'")
+
+
+def usage_error(prog: str, message: str) -> UsageError:
+    """An argparse message as a :class:`UsageError` with the option as ``param`` (and ``value``,
+    ``expected`` where the message says them).
+
+    >>> e = usage_error("solvsel rank", "argument --use: invalid choice: 'x' (choose from 'carrier', 'bench')")
+    >>> e.param, e.value, e.expected
+    ('--use', 'x', 'one of carrier, bench')
+    """
+    param = value = expected = None
+    m, req = _ARGUMENT.match(message), _REQUIRED.match(message)
+    if m:
+        param, message = m.group("names").split("/")[-1], m.group("rest")
+    elif req:
+        names = req.group("names")
+        param, message = names.split(",")[0].strip(), f"required, but not given (the command needs {names})"
+    quoted, choices = _QUOTED.search(message), _CHOICES.search(message)
+    if quoted:
+        value = quoted.group("value")
+    if choices:
+        expected = "one of " + ", ".join(c.strip().strip("'") for c in choices.group("choices").split(","))
+    return UsageError(f"{message} (see: {prog} --help)", param=param, value=value, expected=expected)
+
+
 def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
+    parser = _Parser(
         prog="solvsel",
         description=(
             "Pick carrier solvents, solvent blends and emulsifier systems for flavours, "
@@ -48,12 +97,12 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"solvsel {__version__}")
     parser.add_argument(
         "--own-solvents", metavar="CSV", action="append", default=[],
-        help="your own solvents table (same columns as tables/solvents.csv); its rows add to "
+        help="your own solvents table (same columns as tables/solvents.csv; - for stdin); its rows add to "
         "or override the bundled ones and are marked as yours",
     )
     parser.add_argument(
         "--own-solutes", metavar="CSV", action="append", default=[],
-        help="your own solutes table (same columns as tables/solutes.csv)",
+        help="your own solutes table (same columns as tables/solutes.csv; - for stdin)",
     )
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name in COMMANDS:
@@ -63,22 +112,67 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
-def main(argv: list[str] | None = None) -> int:
+def execute(argv: list[str] | None = None) -> int:
+    """Parse ``argv`` and run its command; a user's error is raised (a :class:`SolvselError`)
+    with the command it came from in ``cli_command``, so its options can be named."""
     parser = build_parser()
-    args = parser.parse_args(argv)
-    try:
-        if args.command is None:
-            from ._common import open_ui
+    args, extra = parser.parse_known_args(argv)
+    if extra:
+        prog = f"solvsel {args.command}" if args.command else "solvsel"
+        raise UsageError(f"unknown argument{'s' if len(extra) > 1 else ''} {' '.join(extra)} (see: {prog} --help)",
+                         value=" ".join(extra))
+    if args.command is None:
+        from ._common import open_ui
 
-            return open_ui(args)
+        return open_ui(args)
+    try:
         return int(args.func(args) or 0)
     except SolvselError as exc:
-        module = getattr(args, "func", None)
-        overrides = getattr(sys.modules.get(getattr(module, "__module__", "")), "OPTION_NAMES", {})
-        print(f"solvsel: {exc.title}: {exc.describe(lambda p: overrides.get(p) or option_name(p))}", file=sys.stderr)
-        return 2
-    except BrokenPipeError:  # e.g. piped into head
-        return 0
+        if getattr(exc, "cli_command", None) is None:
+            exc.cli_command = args.command
+        raise
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Run the command line ``argv`` (default ``sys.argv[1:]``); returns the exit code."""
+    argv = sys.argv[1:] if argv is None else list(argv)
+    as_json = "--json" in argv
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", SolvselNote)
+        try:
+            return execute(argv)
+        except SolvselError as exc:
+            return _fail(exc, as_json)
+        except BrokenPipeError:  # e.g. piped into head
+            return 0
+        except OSError as exc:  # a file the command wrote or read failed on the way (a full disk)
+            return _fail(FileError(f"cannot be read or written: {exc.strerror or exc}",
+                                   path=exc.filename, value=exc.filename), as_json)
+        finally:
+            _show_notes(caught)
+
+
+def _fail(exc: SolvselError, as_json: bool) -> int:
+    """Say what was wrong, naming the input by its option: one paragraph on stderr, or the JSON error."""
+    module = sys.modules.get(f"{__name__}.{getattr(exc, 'cli_command', None)}")
+    overrides = getattr(module, "OPTION_NAMES", {})
+
+    def names(param: str) -> str:
+        return overrides.get(param) or option_name(param)
+
+    if as_json:
+        emit_json({"error": exc.as_json(names)})
+    else:
+        print(f"solvsel: {exc.title}: {exc.describe(names)}", file=sys.stderr)
+    return 2
+
+
+def _show_notes(caught) -> None:
+    for w in caught:
+        if issubclass(w.category, SolvselNote):
+            print(f"solvsel: note: {w.message}", file=sys.stderr)
+        else:
+            warnings.showwarning(w.message, w.category, w.filename, w.lineno)
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -41,7 +41,8 @@ import math
 from dataclasses import dataclass
 from pathlib import Path
 
-from ..errors import InputError, TableError, UnknownNameError
+from ..errors import SolvselError, TableError, UnknownNameError
+from .catalog import read_user_csv
 
 __all__ = ["BENCH_COLUMNS", "WORD_RESULTS", "BenchEntry", "BenchFile", "read_bench", "liquid_key"]
 
@@ -123,19 +124,29 @@ def read_bench(path, cat) -> BenchFile:
     Parameters
     ----------
     path : str or Path
-        the CSV file (UTF-8, a byte-order mark is allowed)
+        the CSV file, ``"-"`` for standard input (read by :func:`~solvsel.data.catalog.read_user_csv`:
+        UTF-8 with or without a byte-order mark, else Windows-1252 with a note; commas, semicolons
+        or tabs between fields)
     cat : Catalog
         the catalog whose liquids the names refer to
 
     Raises
     ------
-    InputError
-        no such file (``param="path"``)
+    FileError
+        no such file, a folder, unreadable, not text (``param="path"``)
     TableError
-        anything wrong inside the file, with its row and column
+        anything wrong inside the file, with its row and column (``param="path"``)
     """
-    p = Path(path)
-    numbered, records = _lines(p)
+    try:
+        return _read(path, cat)
+    except SolvselError as exc:  # every error of the file is about the request field path
+        exc.param = exc.param or "path"
+        raise
+
+
+def _read(path, cat) -> BenchFile:
+    shown, numbered, records = _lines(path)
+    p = Path(shown)
     columns, result_col = _header(p, records[0], numbered[0])
     rows, seen, kinds = [], {}, set()
     for lineno, raw in zip(numbered[1:], records[1:]):
@@ -157,23 +168,15 @@ def read_bench(path, cat) -> BenchFile:
         rows.append(entry)
     if not rows:
         raise TableError(p, "no liquids: expected one row per liquid tested under the header")
-    return BenchFile(str(p), tuple(rows), kinds.pop())
+    return BenchFile(shown, tuple(rows), kinds.pop())
 
 
-def _lines(p: Path) -> tuple[list[int], list[list[str]]]:
-    """Line numbers and CSV fields of the lines that are neither blank nor comments."""
-    if not p.is_file():
-        raise InputError(f"no such file (a CSV with columns {_COLUMNS_HINT})", param="path", value=str(p),
-                         path=str(p), expected=f"a CSV file with columns {_COLUMNS_HINT}")
-    try:
-        text = p.read_text(encoding="utf-8-sig")
-    except UnicodeDecodeError:
-        raise TableError(p, "not a UTF-8 text file; save it as CSV UTF-8") from None
-    numbered = [(i + 1, ln) for i, ln in enumerate(text.splitlines()) if ln.strip() and not ln.lstrip().startswith("#")]
-    if not numbered:
-        raise TableError(p, "the file is empty; expected a header row liquid,result and one row per liquid")
-    records = list(csv.reader([ln for _, ln in numbered], skipinitialspace=True))
-    return [n for n, _ in numbered], records
+def _lines(path) -> tuple[str, list[int], list[list[str]]]:
+    """The file as named in messages, and the line numbers and CSV fields of its records that are neither
+    blank nor comments."""
+    got = read_user_csv(path, param="path", comments=True, skipinitialspace=True)
+    records = [(got.header_row, got.header)] + [(i, r) for i, r in got.rows if any(c.strip() for c in r)]
+    return got.path, [i for i, _ in records], [r for _, r in records]
 
 
 def _header(p: Path, names: list[str], hrow: int) -> tuple[list[str], str]:

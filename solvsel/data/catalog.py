@@ -15,11 +15,17 @@ ALSHERI_HANSEN and WDR_SCHRIER only), and is then marked as coming from there.
 
 from __future__ import annotations
 
+import codecs
 import csv
 import difflib
+import io
 import math
+import os
 import re
+import stat
+import sys
 import unicodedata
+import warnings
 from dataclasses import dataclass, fields
 from functools import lru_cache
 from pathlib import Path
@@ -27,7 +33,7 @@ from typing import Any, Iterable, Mapping, Sequence
 
 import numpy as np
 
-from ..errors import InputError, TableError, UnknownNameError
+from ..errors import FileError, InputError, SolvselError, SolvselNote, TableError, UnknownNameError
 
 __all__ = [
     "TABLES_DIR",
@@ -38,6 +44,17 @@ __all__ = [
     "load_catalog",
     "normalize_name",
     "check_cas",
+    "STDIN",
+    "MAX_USER_FILE_BYTES",
+    "MAX_OWN_ROWS",
+    "CsvRecords",
+    "read_user_text",
+    "read_user_csv",
+    "read_user_text_encoding",
+    "shown_path",
+    "check_write_target",
+    "write_user_file",
+    "spreadsheet_safe",
 ]
 
 
@@ -101,6 +118,283 @@ def check_cas(cas: str) -> bool:
     return sum((i + 1) * int(d) for i, d in enumerate(digits)) % 10 == int(m.group(3))
 
 
+# ----------------------------------------------------------------------------- a user's files
+
+#: The file name that stands for standard input (``solvsel fit -``).
+STDIN = "-"
+#: Largest file of a user's that is read [bytes]: far above any real table (the bundled solvents
+#: table is under 100 kB), far below what would exhaust memory (a device such as /dev/zero never ends).
+MAX_USER_FILE_BYTES = 20 * 2**20
+#: Most rows of a table of the user's own (liquids, solutes): the searches pair and blend every
+#: liquid of the pool, so their work grows with the square and the cube of this number.
+MAX_OWN_ROWS = 5000
+#: Single-byte encodings tried, in order, for a file that is not UTF-8 (spreadsheets on Windows save
+#: Windows-1252; Latin-1 decodes any byte).
+_FALLBACK_ENCODINGS = (("cp1252", "Windows-1252"), ("latin-1", "Latin-1 (ISO 8859-1)"))
+_DECIMAL_COMMA = re.compile(r"^[-+]?\d+,\d+(?:[eE][-+]?\d+)?$")
+
+
+def shown_path(path) -> str:
+    """How a file is named in messages: ``"standard input"`` for ``-``, else its path."""
+    return "standard input" if str(path) == STDIN else str(path)
+
+
+def read_user_text(path, *, param: str | None = None) -> str:
+    """The text of a user's file (``"-"``: standard input), whatever the user's system saved.
+
+    UTF-8 with or without a byte-order mark, and UTF-16 with one, are read as such; another file
+    is read as Windows-1252 (or Latin-1) with a :class:`~solvsel.errors.SolvselNote` saying so.
+    A folder, a device, a file that cannot be read, binary data or a file over
+    :data:`MAX_USER_FILE_BYTES` is a :class:`~solvsel.errors.FileError` naming ``param`` and the file.
+
+    >>> import tempfile, pathlib
+    >>> p = pathlib.Path(tempfile.mkdtemp()) / "a.csv"
+    >>> _ = p.write_bytes("name\\r\\ncaf\\xe9\\r\\n".encode("utf-8-sig"))
+    >>> read_user_text(p)
+    'name\\r\\ncafé\\r\\n'
+    """
+    return read_user_text_encoding(path, param=param)[0]
+
+
+def read_user_text_encoding(path, *, param: str | None = None) -> tuple[str, str]:
+    """As :func:`read_user_text`, with the codec that reads the text back into the file's exact bytes
+    (``"utf-8"``, ``"utf-8-sig"`` with a byte-order mark, ``"cp1252"`` ...), for adding to the file."""
+    shown = shown_path(path)
+    data = _stdin_bytes(param) if str(path) == STDIN else _file_bytes(path, param)
+    return _decode(data, shown, param)
+
+
+def _fail(path, param, message: str, expected: str = "a CSV or text file") -> FileError:
+    return FileError(message, param=param, value=str(path), expected=expected, path=shown_path(path))
+
+
+def _stdin_bytes(param) -> bytes:
+    stream = getattr(sys.stdin, "buffer", sys.stdin)
+    if stream is None:
+        raise _fail(STDIN, param, "there is no standard input to read")
+    try:
+        data = stream.read(MAX_USER_FILE_BYTES + 1)
+    except OSError as exc:
+        raise _fail(STDIN, param, f"cannot be read: {exc.strerror or exc}") from None
+    if isinstance(data, str):  # a text stream without a byte buffer
+        data = data.encode("utf-8")
+    if len(data) > MAX_USER_FILE_BYTES:
+        raise _fail(STDIN, param, f"holds more than {MAX_USER_FILE_BYTES // 2**20} MB; a larger file is not read")
+    return data
+
+
+def _file_bytes(path, param) -> bytes:
+    try:
+        st = os.stat(path)
+    except FileNotFoundError:
+        raise _fail(path, param, "no such file") from None
+    except (OSError, ValueError) as exc:  # a name too long, a NUL in the name, no permission on a folder
+        raise _fail(path, param, f"cannot be read: {getattr(exc, 'strerror', None) or exc}") from None
+    if stat.S_ISDIR(st.st_mode):
+        raise _fail(path, param, "is a folder, not a file")
+    if not (stat.S_ISREG(st.st_mode) or stat.S_ISFIFO(st.st_mode)):
+        raise _fail(path, param, "is a device, not a file")
+    if st.st_size > MAX_USER_FILE_BYTES:
+        raise _fail(path, param, f"is {st.st_size / 2**20:.0f} MB; a file over "
+                    f"{MAX_USER_FILE_BYTES // 2**20} MB is not read")
+    try:
+        with open(path, "rb") as fh:
+            data = fh.read(MAX_USER_FILE_BYTES + 1)
+    except OSError as exc:  # unreadable (permissions), an I/O error (/proc/self/mem)
+        raise _fail(path, param, f"cannot be read: {exc.strerror or exc}") from None
+    if len(data) > MAX_USER_FILE_BYTES:
+        raise _fail(path, param, f"holds more than {MAX_USER_FILE_BYTES // 2**20} MB; a larger file is not read")
+    return data
+
+
+def _decode(data: bytes, shown: str, param) -> tuple[str, str]:
+    if data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
+        try:
+            return data.decode("utf-16"), "utf-16"
+        except UnicodeDecodeError:
+            pass  # not UTF-16 after all: judged as bytes below
+    controls = sum(data.count(bytes([b])) for b in range(32) if b not in (9, 10, 12, 13))
+    if b"\x00" in data or controls > len(data) // 100:
+        raise FileError("is not a text file (it holds binary data); save it as CSV", param=param, value=shown,
+                        expected="a CSV or text file", path=shown)
+    try:
+        return data.decode("utf-8-sig"), ("utf-8-sig" if data.startswith(codecs.BOM_UTF8) else "utf-8")
+    except UnicodeDecodeError:
+        pass
+    for encoding, label in _FALLBACK_ENCODINGS:
+        try:
+            text = data.decode(encoding)
+        except UnicodeDecodeError:
+            continue
+        warnings.warn(SolvselNote(f"{shown} is not UTF-8 text; it was read as {label}: check accented "
+                                  "names, or save it as CSV UTF-8"), stacklevel=4)
+        return text, encoding
+    raise AssertionError("Latin-1 decodes every byte")  # pragma: no cover
+
+
+@dataclass(frozen=True)
+class CsvRecords:
+    """A CSV file read by :func:`read_user_csv`: its header and its records with their line numbers."""
+
+    path: str
+    header: list
+    header_row: int
+    rows: list
+
+
+def read_user_csv(path, *, param: str | None = None, comments: bool = False,
+                  skipinitialspace: bool = False) -> CsvRecords:
+    """The header and the ``(line, fields)`` records of a CSV file (``"-"``: standard input).
+
+    The text is read by :func:`read_user_text`.  Fields may be separated by commas, semicolons or
+    tabs (the separator of the header line is used); with semicolons, numbers written with a
+    decimal comma (``17,5``) are read as ``17.5``, with a note.  With ``comments``, lines starting
+    with ``#`` are left out (line numbers still count them).  Blank lines give empty records.
+
+    >>> import tempfile, pathlib
+    >>> p = pathlib.Path(tempfile.mkdtemp()) / "b.csv"
+    >>> _ = p.write_text("liquid;dD\\nmine;17,5\\n", encoding="utf-8")
+    >>> import warnings
+    >>> with warnings.catch_warnings():
+    ...     warnings.simplefilter("ignore")
+    ...     read_user_csv(p).rows
+    [(2, ['mine', '17.5'])]
+    """
+    shown = shown_path(path)
+    text = read_user_text(path, param=param)
+    lines = text.splitlines(keepends=True) if comments else None
+    if lines is not None:
+        text = "".join("\n" if ln.lstrip().startswith("#") else ln for ln in lines)
+    delimiter = _delimiter(text)
+    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter, skipinitialspace=skipinitialspace)
+    records, line = [], 0
+    try:
+        for fields_ in reader:
+            records.append((line + 1, fields_))
+            line = reader.line_num
+    except csv.Error as exc:  # a field over the csv module's limit, an unclosed quote at the end
+        raise TableError(shown, f"cannot be read as CSV: {exc}", row=line + 1, param=param) from None
+    records = [(i, r) for i, r in records if r]
+    if not records:
+        raise TableError(shown, "the file is empty; expected a header row", param=param, expected="a header row")
+    if delimiter == ";":
+        records = _decimal_commas(records, shown)
+    (header_row, header), rows = records[0], records[1:]
+    return CsvRecords(shown, [h.strip() for h in header], header_row, rows)
+
+
+def _delimiter(text: str) -> str:
+    """The separator of the first line that is not blank: the one of , ; tab that splits it most."""
+    first = next((ln for ln in text.splitlines() if ln.strip()), "")
+    counts = {d: len(next(csv.reader([first], delimiter=d), [])) for d in (",", ";", "\t")}
+    best = max(counts, key=lambda d: (counts[d], d == ","))
+    return best if counts[best] > 1 else ","
+
+
+def _decimal_commas(records: list, shown: str) -> list:
+    changed = False
+    out = []
+    for i, r in records:
+        new = [c.strip().replace(",", ".") if _DECIMAL_COMMA.match(c.strip()) else c for c in r]
+        changed = changed or new != r
+        out.append((i, new))
+    if changed:
+        warnings.warn(SolvselNote(f"{shown} has ';' between fields and decimal commas; numbers such as 17,5 "
+                                  "were read as 17.5"), stacklevel=3)
+    return out
+
+
+#: First characters that make a spreadsheet read a cell as a formula.
+_FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+
+
+def spreadsheet_safe(cell):
+    """A text cell as written to a CSV: one a spreadsheet would run as a formula (starting with
+    ``= + - @``, a tab or a carriage return) gets a leading single quote, so it is shown as text; numbers
+    and other text are unchanged.
+
+    >>> spreadsheet_safe("=cmd|' /C calc'!A0"), spreadsheet_safe("-12.5"), spreadsheet_safe("ethanol")
+    ("'=cmd|' /C calc'!A0", '-12.5', 'ethanol')
+    """
+    if not isinstance(cell, str) or not cell.startswith(_FORMULA_STARTS):
+        return cell
+    try:
+        float(cell)
+        return cell  # a signed number, not a formula
+    except ValueError:
+        return "'" + cell
+
+
+def check_write_target(path, *, param: str | None = None) -> Path:
+    """``path`` as a file that can be written, checked before any long work: not a folder or a device,
+    its folder there and writable (a probe file is made and removed there).  Returns it as a Path."""
+    import tempfile
+
+    shown = str(path)
+    if not shown.strip() or shown == STDIN:
+        raise FileError("expected the name of a file to write", param=param, value=shown, expected="a file name")
+    p = Path(path)
+    try:
+        st = os.stat(p)
+    except FileNotFoundError:
+        st = None
+    except (OSError, ValueError) as exc:  # a name too long, a NUL in the name
+        raise _fail(p, param, f"cannot be written: {getattr(exc, 'strerror', None) or exc}", "a file name") from None
+    if st is not None and stat.S_ISDIR(st.st_mode):
+        raise _fail(p, param, "is a folder; give the name of a file in it", "a file name")
+    if st is not None and not stat.S_ISREG(st.st_mode):
+        raise _fail(p, param, "is a device, not a file", "a file name")
+    folder = p.parent
+    if not folder.is_dir():
+        raise _fail(p, param, f"the folder '{folder}' does not exist", "a file in a folder that exists")
+    try:
+        fd, probe = tempfile.mkstemp(prefix=".solvsel-", suffix=".probe", dir=folder)
+        os.close(fd)
+        os.unlink(probe)
+    except OSError as exc:  # a read-only folder, a full disk
+        raise _fail(p, param, f"cannot be written in its folder: {exc.strerror or exc}", "a writable folder") from None
+    return p
+
+
+def write_user_file(path, data: bytes, *, param: str | None = None, check=None) -> None:
+    """Write ``data`` to the user's file ``path`` whole or not at all.
+
+    The bytes go to a temporary file in the same folder, are flushed to disk, checked by
+    ``check(temporary_path)`` when given (which raises to refuse them), and the temporary file is
+    then renamed over ``path`` (keeping its permissions).  Whatever fails, the temporary file is
+    removed and ``path`` is left as it was; an error of the system is a
+    :class:`~solvsel.errors.FileError` naming ``param`` and the file.
+    """
+    import tempfile
+
+    p = Path(path)
+    tmp = None
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=".solvsel-", suffix=p.suffix or ".tmp", dir=p.parent)
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        if check is not None:
+            check(Path(tmp))
+        mode = p.stat().st_mode & 0o777 if p.exists() else 0o666 & ~_umask()
+        os.chmod(tmp, mode)
+        os.replace(tmp, p)
+        tmp = None
+    except OSError as exc:
+        raise _fail(p, param, f"cannot be written: {exc.strerror or exc}; it was left as it was",
+                    "a writable file") from None
+    finally:
+        if tmp is not None and os.path.exists(tmp):
+            os.unlink(tmp)
+
+
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
+
+
 # ----------------------------------------------------------------------------- schema
 
 
@@ -117,18 +411,10 @@ class ColumnSpec:
     description: str
 
 
-def _read_csv_rows(path: Path) -> tuple[list[str], list[list[str]]]:
-    try:
-        with path.open(encoding="utf-8-sig", newline="") as fh:
-            rows = list(csv.reader(fh))
-    except UnicodeDecodeError as exc:
-        raise TableError(path, f"not UTF-8 text ({exc.reason} at byte {exc.start})") from None
-    except OSError as exc:
-        raise TableError(path, f"cannot be read: {exc.strerror}") from None
-    if not rows:
-        raise TableError(path, "is empty: expected a header row")
-    header = [h.strip() for h in rows[0]]
-    return header, rows[1:]
+def _read_csv_rows(path: Path, param: str | None = None) -> tuple[list[str], list[tuple[int, list[str]]]]:
+    """The header and the ``(line, fields)`` records of a table (a bundled one or a user's own)."""
+    got = read_user_csv(path, param=param)
+    return got.header, got.rows
 
 
 @lru_cache(maxsize=4)
@@ -139,7 +425,7 @@ def _load_schema(tables_dir: Path) -> dict[str, list[ColumnSpec]]:
     if header != want:
         raise TableError(path, f"header must be {','.join(want)}", row=1)
     out: dict[str, list[ColumnSpec]] = {}
-    for i, r in enumerate(rows, start=2):
+    for i, r in rows:
         if not any(c.strip() for c in r):
             continue
         if len(r) != len(want):
@@ -176,7 +462,7 @@ def _load_sources(tables_dir: Path):
         raise TableError(path, f"header must be {','.join(want)}", row=1)
     seen: dict[str, int] = {}
     records = []
-    for i, r in enumerate(rows, start=2):
+    for i, r in rows:
         if not any(c.strip() for c in r):
             continue
         if len(r) != 4:
@@ -205,18 +491,36 @@ def read_table(
 
     Returns a pandas DataFrame: numbers as float (empty -> NaN), integers as
     Int64, everything else as str ('' when empty).  ``user=True`` accepts
-    source texts that are not ids of ``sources.csv`` (a user's own data) and
-    does not require the source columns.
+    source texts that are not ids of ``sources.csv`` (a user's own data),
+    does not require the source columns, reads ``"-"`` as standard input and
+    takes at most :data:`MAX_OWN_ROWS` rows.  Rows are the file's lines (the
+    header is row 1).
     """
     import pandas as pd
 
-    path = Path(path)
     schema = _load_schema(tables_dir)
     if table not in schema:
         raise TableError(path, f"no columns declared for table '{table}' in {tables_dir / 'schema.csv'}")
     specs = schema[table]
-    source_ids = set(_load_sources(tables_dir)["id"])
-    header, rows = _read_csv_rows(path)
+    got = read_user_csv(path)
+    path, header, rows = got.path, got.header, got.rows
+    _check_header(path, table, specs, header, user)
+    if user and len(rows) > MAX_OWN_ROWS:
+        raise TableError(path, f"has {len(rows):,} rows; a table of your own may have at most {MAX_OWN_ROWS:,} "
+                         "(the searches pair and blend every liquid); split it or keep the rows you need",
+                         row=rows[MAX_OWN_ROWS][0], expected=f"at most {MAX_OWN_ROWS:,} rows")
+    data = _table_columns(path, specs, header, rows, set(_load_sources(tables_dir)["id"]), user)
+    df = pd.DataFrame(data)
+    for s in specs:
+        if s.type == "integer":
+            df[s.column] = df[s.column].astype("Int64")
+        elif s.type == "number":
+            df[s.column] = df[s.column].astype(float)
+    return df
+
+
+def _check_header(path, table: str, specs: list[ColumnSpec], header: list[str], user: bool) -> None:
+    """Every required column there, no unknown or repeated one."""
     known = {s.column for s in specs}
     for s in specs:
         if s.column not in header and (s.required and not (user and s.type == "sources")):
@@ -229,9 +533,13 @@ def read_table(
     if len(set(header)) != len(header):
         dup = [h for h in header if header.count(h) > 1][0]
         raise TableError(path, f"column '{dup}' appears twice", row=1, column=dup)
+
+
+def _table_columns(path, specs: list[ColumnSpec], header: list[str], rows, source_ids: set, user: bool) -> dict:
+    """The checked values of every row, column by column."""
     data: dict[str, list] = {s.column: [] for s in specs}
     first_seen: dict[tuple[str, str], int] = {}
-    for i, raw in enumerate(rows, start=2):
+    for i, raw in rows:
         if not any(c.strip() for c in raw):
             continue
         if len(raw) != len(header):
@@ -250,13 +558,7 @@ def read_table(
                         path, f"duplicate value '{val}' (already at row {first_seen[key]})", row=i, column=s.column
                     )
                 first_seen[key] = i
-    df = pd.DataFrame(data)
-    for s in specs:
-        if s.type == "integer":
-            df[s.column] = df[s.column].astype("Int64")
-        elif s.type == "number":
-            df[s.column] = df[s.column].astype(float)
-    return df
+    return data
 
 
 def _convert(path, row, spec: ColumnSpec, val: str, source_ids: set, user: bool):
@@ -530,10 +832,12 @@ class Catalog:
         df = read_table(path, name, self.tables_dir)
         df.insert(len(df.columns), "origin", "bundled")
         for own_path in self.own.get(name, ()):
-            if not own_path.is_file():
-                raise InputError(f"your table '{own_path}' does not exist")
-            mine = read_table(own_path, name, self.tables_dir, user=True)
-            mine["origin"] = f"user: {own_path}"
+            try:
+                mine = read_table(own_path, name, self.tables_dir, user=True)
+            except SolvselError as exc:  # name the request field the file came from (own_solvents ...)
+                exc.param = exc.param or f"own_{name}"
+                raise
+            mine["origin"] = f"user: {shown_path(own_path)}"
             df = _overlay(df, mine)
         self._tables[name] = df
         return df

@@ -43,7 +43,6 @@ Levels: :math:`c_{i,k}\\,[\\mathrm{mg/kg}] = 10^6 w_{i,k}`,
 
 from __future__ import annotations
 
-import csv
 import math
 import re
 from dataclasses import dataclass
@@ -292,60 +291,86 @@ def formula_from_amounts(
 
 
 def formula_from_csv(cat, path, name: str | None = None, param: str = "formula") -> Formula:
-    """A formula from a CSV file.
+    """A formula from a CSV file (``"-"``: standard input).
 
     Columns: ``name`` and one of ``mass_percent`` / ``volume_percent``
     (percent of the whole formula); optional ``cas`` (needed for a component
-    that is in none of the tables) and ``density_g_cm3``.  An error names ``param``
-    (the request field the file was given in), the file, and its row and column.
+    that is in none of the tables), ``density_g_cm3`` and ``note``.  The file is read by
+    :func:`~solvsel.data.catalog.read_user_csv` (UTF-8 or Windows-1252, commas or semicolons with
+    decimal commas).  An error names ``param`` (the request field the file was given in), the
+    file, and its row and column.
     """
-    path = Path(path)
-    if not path.is_file():
-        raise InputError(f"formula file '{path}' does not exist", param=param, value=str(path),
-                         expected="a CSV file with columns name and mass_percent (or volume_percent)")
-    with open(path, newline="", encoding="utf-8-sig") as fh:
-        reader = csv.DictReader(fh)
-        header = [h.strip() for h in (reader.fieldnames or [])]
-        rows = list(reader)
-    if "name" not in header:
-        raise TableError(path, "missing column 'name' (component name)", row=1, column="name", param=param)
-    basis_cols = [c for c in ("mass_percent", "volume_percent") if c in header]
-    if len(basis_cols) != 1:
-        raise TableError(path, "expected exactly one of the columns 'mass_percent' or 'volume_percent'", row=1, param=param)
-    col = basis_cols[0]
-    known = {"name", "cas", "density_g_cm3", "mass_percent", "volume_percent", "note"}
-    for h in header:
-        if h not in known:
-            raise TableError(path, f"unknown column '{h}'; expected: {', '.join(sorted(known))}", row=1, column=h, param=param)
+    from ..data.catalog import STDIN, read_user_csv
+
+    got = read_user_csv(path, param=param)
+    col = _formula_header(got, param)
     amounts, cas, dens = [], {}, {}
-    for i, r in enumerate(rows, start=2):
-        r = {(k or "").strip(): (v or "").strip() for k, v in r.items()}
-        if not any(r.values()):
+    for i, raw in got.rows:
+        if not any(c.strip() for c in raw):
             continue
-        n = r.get("name", "")
-        if not n:
-            raise TableError(path, "empty component name", row=i, column="name", param=param)
-        try:
-            a = float(r.get(col, ""))
-        except ValueError:
-            raise TableError(path, f"'{r.get(col, '')}' is not a number; expected a percentage 0-100", row=i, column=col, param=param) from None
-        if not (0 <= a <= 100):
-            raise TableError(path, f"{a:g} is out of range; expected a percentage 0-100", row=i, column=col, param=param)
+        if len(raw) != len(got.header):
+            raise TableError(got.path, f"expected {len(got.header)} fields, found {len(raw)} (quote a value that "
+                             "holds a comma)", row=i, param=param)
+        r = {k: v.strip() for k, v in zip(got.header, raw)}
+        n, a, d = _formula_row(got.path, i, r, col, param)
         amounts.append((n, a))
         if r.get("cas"):
             cas[n] = r["cas"]
-        if r.get("density_g_cm3"):
-            try:
-                d = float(r["density_g_cm3"])
-            except ValueError:
-                raise TableError(path, f"'{r['density_g_cm3']}' is not a number", row=i, column="density_g_cm3", param=param) from None
-            if not (0.3 <= d <= 2.5):
-                raise TableError(path, f"{d:g} is out of range; expected 0.3-2.5 g/cm3", row=i, column="density_g_cm3", param=param)
+        if d is not None:
             dens[n] = d
+    default_name = "formula" if str(path) == STDIN else Path(path).stem
     return formula_from_amounts(
-        cat, amounts, basis="mass" if col == "mass_percent" else "volume", name=name or path.stem,
-        cas=cas, densities=dens, param=param, path=str(path),
+        cat, amounts, basis="mass" if col == "mass_percent" else "volume", name=name or default_name,
+        cas=cas, densities=dens, param=param, path=got.path,
     )
+
+
+#: Columns of a formula CSV.
+FORMULA_COLUMNS = ("name", "cas", "density_g_cm3", "mass_percent", "volume_percent", "note")
+
+
+def _formula_header(got, param: str) -> str:
+    """The amount column of a formula file's header (mass_percent or volume_percent), the header checked."""
+    header, path = got.header, got.path
+    if "name" not in header:
+        raise TableError(path, "missing column 'name' (component name)", row=got.header_row, column="name",
+                         param=param)
+    basis_cols = [c for c in ("mass_percent", "volume_percent") if c in header]
+    if len(basis_cols) != 1:
+        raise TableError(path, "expected exactly one of the columns 'mass_percent' or 'volume_percent'",
+                         row=got.header_row, param=param)
+    for h in header:
+        if h not in FORMULA_COLUMNS or header.count(h) > 1:
+            what = "appears twice" if h in FORMULA_COLUMNS else "is unknown"
+            raise TableError(path, f"column '{h}' {what}; expected: {', '.join(sorted(FORMULA_COLUMNS))}",
+                             row=got.header_row, column=h, param=param)
+    return basis_cols[0]
+
+
+def _formula_row(path, i: int, r: dict, col: str, param: str) -> tuple[str, float, float | None]:
+    """(name, percent, density or None) of one row of a formula file, checked."""
+    n = r.get("name", "")
+    if not n:
+        raise TableError(path, "empty component name", row=i, column="name", param=param)
+    try:
+        a = float(r.get(col, ""))
+    except ValueError:
+        raise TableError(path, f"'{r.get(col, '')}' is not a number; expected a percentage 0-100", row=i,
+                         column=col, param=param) from None
+    if not (0 <= a <= 100):  # NaN fails too
+        raise TableError(path, f"{a:g} is out of range; expected a percentage 0-100", row=i, column=col,
+                         param=param)
+    d = None
+    if r.get("density_g_cm3"):
+        try:
+            d = float(r["density_g_cm3"])
+        except ValueError:
+            raise TableError(path, f"'{r['density_g_cm3']}' is not a number", row=i, column="density_g_cm3",
+                             param=param) from None
+        if not (0.3 <= d <= 2.5):
+            raise TableError(path, f"{d:g} is out of range; expected 0.3-2.5 g/cm3", row=i,
+                             column="density_g_cm3", param=param)
+    return n, a, d
 
 
 # ----------------------------------------------------------------------------- chain
