@@ -27,7 +27,9 @@ def register(sub):
         "columns. Lines starting with # are comments; the older headers solvent (or name) with score, or with a yes/no "
         "good column, are read too. The fit is an estimate for planning bench work.",
     )
-    p.add_argument("file", metavar="BENCH_CSV", help="the bench results (CSV, UTF-8)")
+    p.add_argument("file", metavar="BENCH_CSV",
+                   help="the bench results (CSV, UTF-8 or Windows-1252; commas, or semicolons with decimal commas); "
+                   "- reads them from stdin")
     cut = p.add_mutually_exclusive_group()
     cut.add_argument("--good-at-most", type=float, metavar="N",
                      help="numeric scores at or below N are good (low is best, e.g. 1 dissolved .. 6 no effect)")

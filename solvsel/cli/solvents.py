@@ -49,10 +49,23 @@ def select(cat, food=False, role=None, search=None, where_text=None, sort=None):
     return df
 
 
+def _check(args) -> None:
+    """Options given empty or out of range are refused, not read as not given."""
+    from ..errors import InputError
+    from ..jobs._base import check_int
+
+    for param in ("search", "where", "sort"):
+        value = getattr(args, param)
+        if value is not None and not value.strip("-+ "):
+            raise InputError("expected some text, got nothing", param=param, value=value, expected="some text")
+    check_int(args.top, "top", lo=1, allow_none=True)
+
+
 def run(args) -> int:
+    _check(args)
     cat = get_catalog(args)
     df = select(cat, args.food, args.role, args.search, args.where, args.sort)
-    if args.top:
+    if args.top is not None:
         df = df.head(args.top)
     records = [cat.solvent_records()[cat.find_index("solvents", n)] for n in df["name"]]
     if args.json:

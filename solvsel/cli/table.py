@@ -21,6 +21,9 @@ def register(sub):
 
 
 def run(args) -> int:
+    from ..jobs._base import check_int
+
+    check_int(args.width, "width", lo=2)
     cat = get_catalog(args)
     if not args.name:
         names = cat.table_names + ["sources"]
@@ -41,7 +44,8 @@ def run(args) -> int:
         want = parse_names(args.columns, "columns")
         bad = [c for c in want if c not in cols]
         if bad:
-            raise InputError(f"--columns: table '{args.name}' has no column '{bad[0]}'; its columns: {', '.join(cols)}")
+            raise InputError(f"table '{args.name}' has no column '{bad[0]}'; its columns: {', '.join(cols)}",
+                             param="columns", value=bad[0], expected="columns of the table")
         cols = want
     def cut(v):
         if isinstance(v, str) and len(v) > args.width:

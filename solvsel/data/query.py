@@ -9,6 +9,7 @@ Grammar (no ``eval``, no ``DataFrame.query``)::
     OP      := < | <= | > | >= | == | = | !=
     VALUE   := number | 'text' | "text" | word
 
+Parentheses and ``not`` may be nested up to :data:`MAX_DEPTH` deep.
 Columns are the table's own names; for the solvents and solutes tables the
 short names ``dD``, ``dP``, ``dH``, ``r0``, ``vm``, ``mw``, ``density``, ``flash``,
 ``bp``, ``mp``, ``visc``, ``cost`` are accepted too.  ``has`` tests membership in
@@ -30,7 +31,10 @@ import re
 
 from ..errors import InputError
 
-__all__ = ["where", "resolve_column", "ALIASES"]
+__all__ = ["where", "resolve_column", "ALIASES", "MAX_DEPTH"]
+
+#: Deepest nesting of parentheses and ``not`` read (far beyond any condition a person writes).
+MAX_DEPTH = 50
 
 ALIASES = {
     "dd": "dD_MPa05", "dp": "dP_MPa05", "dh": "dH_MPa05", "r0": "r0_MPa05", "vm": "vm_cm3_mol",
@@ -68,6 +72,7 @@ class _Parser:
         self.df, self.text = df, text
         self.toks = _tokens(text)
         self.i = 0
+        self.depth = 0
 
     def peek(self):
         return self.toks[self.i] if self.i < len(self.toks) else (None, None)
@@ -104,16 +109,21 @@ class _Parser:
 
     def factor(self):
         kind, val = self.peek()
+        if val not in ("not", "("):
+            return self.compare()
+        self.depth += 1
+        if self.depth > MAX_DEPTH:
+            raise InputError(f"parentheses and 'not' are nested more than {MAX_DEPTH} deep", param="where",
+                             value=self.text, expected=f"a condition nested at most {MAX_DEPTH} deep")
+        self.take()
         if val == "not":
-            self.take()
-            return ~self.factor()
-        if val == "(":
-            self.take()
+            mask = ~self.factor()
+        else:
             mask = self.expr()
             if self.take()[1] != ")":
                 self.error("missing ')'")
-            return mask
-        return self.compare()
+        self.depth -= 1
+        return mask
 
     def column(self, name):
         try:
