@@ -27,8 +27,10 @@ def register(sub):
         "the compound, from its physical properties. Shows the groups found, the error to expect for the "
         "molecule's class, and the spread between the methods.",
     )
-    p.add_argument("smiles", nargs="*", metavar="SMILES", help="one or more SMILES strings (quote them)")
-    p.add_argument("--file", metavar="FILE", help="read SMILES from FILE, one a line (text after a space is a label)")
+    p.add_argument("smiles", nargs="*", metavar="SMILES",
+                   help="one or more SMILES strings (quote them); - reads them from stdin, one a line")
+    p.add_argument("--file", metavar="FILE",
+                   help="read SMILES from FILE, one a line (text after a space is a label); - for stdin")
     p.add_argument("--method", choices=METHODS, default=None,
                    help="method whose numbers are reported (default solvsel-gc)")
     p.add_argument("--params", metavar="CSV", help="parameter table of the own model from --refit (default: bundled)")
@@ -44,8 +46,9 @@ def register(sub):
     p.add_argument("--exclude", metavar="CAS_FILE", help="with --refit: CAS numbers (one a line) to hold out")
     p.add_argument("--force", action="store_true", help="with --refit or --save-to: allow overwriting / adding to files")
     p.add_argument("--save-to", metavar="CSV",
-                   help="append the estimate as a row of your own solutes table (created if missing; use it with "
-                   "--own-solutes CSV)")
+                   help="append the estimate as a row of your own solutes table (created if missing; adding to a "
+                   "file that exists needs --force, its rows are kept; text starting with = + - @ is written "
+                   "with a leading ' so a spreadsheet shows it as text; use it with --own-solutes CSV)")
     p.add_argument("--name", metavar="NAME", help="with --save-to: the solute's name")
     p.add_argument("--category", default="other",
                    choices=SOLUTE_CATEGORIES,
@@ -127,8 +130,11 @@ def run(args) -> int:
     from ..jobs.estimate import estimate
 
     say = None if args.json else _refit_progress
+    smiles, file = tuple(args.smiles), args.file
+    if smiles == ("-",) and file is None:  # the SMILES come on stdin
+        smiles, file = (), "-"
     result = estimate(
-        smiles=tuple(args.smiles), file=args.file, method=args.method, params=args.params,
+        smiles=smiles, file=file, method=args.method, params=args.params,
         lookup=not args.no_lookup, lookup_all=args.lookup_all, refit=args.refit, exclude=args.exclude,
         force=args.force, save_to=args.save_to, name=args.name, category=args.category, progress=say,
     )

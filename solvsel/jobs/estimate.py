@@ -22,13 +22,17 @@ Needs the ``structure`` extra (RDKit; scikit-learn for a refit).
 from __future__ import annotations
 
 import csv
+import io
 import os
+import warnings
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any, Callable
 
-from ..data.catalog import Catalog
-from ..errors import InputError, SolvselError
+from ..data.catalog import (
+    Catalog, check_write_target, read_user_text, read_user_text_encoding, spreadsheet_safe, write_user_file,
+)
+from ..errors import InputError, SolvselError, SolvselNote, TableError
 from ..science import structure
 from ..science.target import Target, target_from_estimate
 from ._base import build_request, check_choice
@@ -68,7 +72,8 @@ class EstimateRequest:
     smiles : tuple of str
         one or more SMILES strings (a single string is one SMILES)
     file : str, optional
-        a text file of SMILES, one a line (text after a space is a label; ``#`` lines are comments)
+        a text file of SMILES, one a line (text after a space is a label; ``#`` lines are comments);
+        ``"-"`` reads them from standard input
     method : str, optional
         the method whose numbers are reported: "solvsel-gc" (default), "hoftyzer-van-krevelen" or "properties"
     params : str, optional
@@ -83,9 +88,11 @@ class EstimateRequest:
     exclude : str, optional
         with ``refit``: a file of CAS numbers (one a line) to hold out
     force : bool
-        allow a refit to overwrite its files, and a save to add a second row of the same name
+        allow a refit to overwrite its files, and a save to add to a solutes file that exists
     save_to : str, optional
-        append the estimate (one SMILES) as a row of this solutes CSV (created if missing)
+        append the estimate (one SMILES) as a row of this solutes CSV (created if missing; a file that
+        exists only with ``force``, its rows kept; text a spreadsheet would run as a formula is written
+        with a leading single quote)
     name : str, optional
         with ``save_to``: the solute's name
     category : str
@@ -227,8 +234,9 @@ def estimate(request: EstimateRequest | None = None, *, catalog: Catalog | None 
                          expected="one SMILES")
     kw = dict(method=q.method, params=q.params, properties=q.lookup, full_lookup=q.lookup_all)
     if len(items) == 1:
+        old = _save_target(q) if q.save_to is not None else None
         est = structure.estimate(items[0], **kw)
-        saved = _save(q, est) if q.save_to is not None else None
+        saved = _save(q, est, old) if q.save_to is not None else None
         return EstimateResult(q, tuple(items), (est,), saved)
     out = []
     for s in items:
@@ -248,22 +256,33 @@ def _refit(q: EstimateRequest, progress) -> EstimateResult:
 
 
 def _read_lines(path: str, param: str) -> list[str]:
-    """The lines of a text file that are neither blank nor comments (``#``)."""
-    try:
-        with open(path, encoding="utf-8") as fh:
-            lines = [ln.strip() for ln in fh]
-    except OSError as exc:
-        raise InputError(f"cannot read the file: {exc.strerror}", param=param, value=path, path=path) from None
+    """The lines of a text file (``"-"``: standard input) that are neither blank nor comments (``#``)."""
+    lines = [ln.strip() for ln in read_user_text(path, param=param).splitlines()]
     return [ln for ln in lines if ln and not ln.startswith("#")]
 
 
-def _save(q: EstimateRequest, est) -> str:
-    """Append the estimate to the user's solutes CSV (created if missing; what is there is never rewritten)."""
+def _save_target(q: EstimateRequest) -> tuple[str, str] | None:
+    """The solutes file to save into, checked before the estimate: writable, and if it exists, added to
+    only with force, a solutes table without the name.  Its text and codec, or None for a new file."""
+    check_write_target(q.save_to, param="save_to")
+    if not os.path.exists(q.save_to):
+        return None
+    text, encoding = read_user_text_encoding(q.save_to, param="save_to")
+    if not text.strip():
+        return None
+    if not q.force:
+        raise InputError("the file exists; add the estimate to it with force (its rows are kept), or save to a "
+                         "new file", param="save_to", value=q.save_to, path=q.save_to,
+                         expected="a new file, or force to add to this one")
+    _existing_columns(q, text)
+    return text, encoding
+
+
+def _save(q: EstimateRequest, est, old: tuple[str, str] | None) -> str:
+    """Add the estimate to the user's solutes CSV (created if missing): the file's rows are kept byte for
+    byte, a missing final newline is added, and the whole is checked as a solutes table before it
+    replaces the old file.  Text a spreadsheet would run as a formula is written with a leading quote."""
     path = q.save_to
-    columns = _SOLUTE_COLUMNS
-    exists = os.path.exists(path) and os.path.getsize(path) > 0
-    if exists:
-        columns = _existing_columns(q, path)
     u = est.uncertainty
     values = {
         "name": q.name.strip(), "category": q.category,
@@ -276,25 +295,50 @@ def _save(q: EstimateRequest, est) -> str:
         "note": f"estimated from structure by solvsel estimate ({est.method}); expected error for "
                 f"{u.get('basis')}: dD {u.get('dD') or 0:.2f}, dP {u.get('dP') or 0:.2f}, dH {u.get('dH') or 0:.2f} MPa^0.5",
     }
-    with open(path, "a" if exists else "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh, lineterminator="\n")
-        if not exists:
-            w.writerow(columns)
-        w.writerow([values.get(c, "") for c in columns])
+    text, encoding = old if old is not None else ("", "utf-8")
+    newline = "\r\n" if "\r\n" in text else "\n"
+    columns = next(csv.reader([text.splitlines()[0]])) if text else _SOLUTE_COLUMNS
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator=newline)
+    if not text:
+        w.writerow(columns)
+    w.writerow([spreadsheet_safe(values.get(c.strip(), "")) for c in columns])
+    if text and not text.endswith(("\n", "\r")):
+        text += newline
+    try:
+        data = (text + buf.getvalue()).encode(encoding)
+    except UnicodeEncodeError:
+        raise InputError(f"the name cannot be written in the file's encoding ({encoding}); nothing was written",
+                         param="name", value=q.name, expected=f"a name in {encoding}") from None
+    write_user_file(path, data, param="save_to", check=lambda tmp: _check_solutes(tmp, path))
     return path
 
 
-def _existing_columns(q: EstimateRequest, path: str) -> list[str]:
-    """The header of the user's solutes file, checked: the solute columns are there, the name is new."""
-    with open(path, newline="", encoding="utf-8") as fh:
-        rows = list(csv.reader(fh))
-    header = rows[0] if rows else []
+def _check_solutes(tmp, path: str) -> None:
+    """Refuse a file that would not load as a solutes table, naming the user's file."""
+    from ..data.catalog import read_table
+
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", SolvselNote)  # its encoding was noted when it was read
+            read_table(tmp, "solutes", user=True)
+    except TableError as exc:
+        raise TableError(path, f"would not be a valid solutes table ({exc.message}); nothing was written",
+                         row=exc.row, column=exc.column, param="save_to") from None
+
+
+def _existing_columns(q: EstimateRequest, text: str) -> list[str]:
+    """The header of the user's solutes file, checked: the solute columns are there, the name is new
+    (two rows of one name would make the table unreadable)."""
+    rows = list(csv.reader(io.StringIO(text, newline="")))
+    header = [h.strip() for h in rows[0]] if rows else []
+    path = q.save_to
     missing = [c for c in ("name", "dD_MPa05", "dP_MPa05", "dH_MPa05") if c not in header]
     if missing:
         raise InputError(f"'{path}' is not a solutes table (no column {', '.join(missing)}); nothing was written",
                          param="save_to", value=path, path=path)
-    names = {r[header.index("name")].strip().lower() for r in rows[1:] if r}
-    if q.name.strip().lower() in names and not q.force:
-        raise InputError(f"'{path}' already has a solute named '{q.name}'; choose another name (or force a "
-                         "second row)", param="name", value=q.name, expected="a name not in the file")
+    names = {r[header.index("name")].strip().lower() for r in rows[1:] if len(r) > header.index("name")}
+    if q.name.strip().lower() in names:
+        raise InputError(f"'{path}' already has a solute named '{q.name}'; choose another name", param="name",
+                         value=q.name, expected="a name not in the file")
     return header
