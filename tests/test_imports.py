@@ -6,11 +6,11 @@ has loaded.  What each command may not load:
 - scipy.stats never (the chi-square quantile of the sphere fit's intervals is in closed form);
 - scipy (optimize, linalg) only for the sphere fit and for the tangent-plane test of a blend of
   three or more liquids (its local polish);
-- scikit-learn, networkx, RDKit, Textual, Dask and pyarrow only where their feature is asked for
-  (a refit, a miscibility graph, a structure, the UI, a cluster, a Parquet file).
+- scikit-learn, networkx, RDKit, Textual and Dask only where their feature is asked for (a refit,
+  a miscibility graph, a structure, the UI, a cluster).
 
 pandas is loaded by every command that reads the tables (the catalog keeps them as DataFrames),
-but not by ``--version`` or ``--help``.  No time is measured here; the benchmarks time the cold
+but not by ``--version`` or ``--help``; pandas itself loads pyarrow where it is installed.  No time is measured here; the benchmarks time the cold
 starts.
 """
 
@@ -27,9 +27,9 @@ HERE = Path(__file__).parent
 BENCH = str(HERE / "data" / "bench_c60_memory.csv")
 
 HEAVY = ("pandas", "scipy", "scipy.optimize", "scipy.stats", "scipy.linalg", "sklearn", "networkx", "rdkit",
-         "textual", "dask", "distributed", "pyarrow")
+         "textual", "dask", "distributed")
 #: Never needed to compute a plain answer.
-OPTIONAL = {"sklearn", "networkx", "rdkit", "textual", "dask", "distributed", "pyarrow", "scipy.stats"}
+OPTIONAL = {"sklearn", "networkx", "rdkit", "textual", "dask", "distributed", "scipy.stats"}
 NO_SCIPY = OPTIONAL | {"scipy", "scipy.optimize", "scipy.linalg"}
 
 CASES = [
@@ -82,3 +82,12 @@ def test_a_command_loads_only_what_it_uses(argv, forbidden):
 def test_the_tables_are_read_with_pandas():
     """The check above sees imports: a command that reads the tables shows pandas loaded."""
     assert "pandas" in loaded_by(["table", "sources", "--json"])[1]
+
+
+def test_a_batch_on_this_machine_loads_no_cluster(tmp_path):
+    targets = tmp_path / "targets.csv"
+    targets.write_text("id,dD,dP,dH\na,17,3,8\nb,15.8,8.8,19.4\n", encoding="utf-8")
+    code, loaded = loaded_by(["rank", "--targets", str(targets), "--out", str(tmp_path / "answers.csv"),
+                              "--workers", "1", "--json"])
+    assert code == 0
+    assert not loaded & NO_SCIPY, sorted(loaded & NO_SCIPY)

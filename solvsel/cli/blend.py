@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from ..jobs.parse import parse_amounts, parse_fraction_bound, parse_names, parse_range
 from ..rules.regulations import FOOD_JURISDICTIONS, bundled_purposes, describe_purposes
+from ._batch import add_batch_arguments, run_batch
 from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 from ._target import add_target_arguments, target_fields
 
@@ -75,7 +76,8 @@ def register(sub):
                    help="ranking: fit (Ra, the default), selectivity (the default with rejects), cost")
     o.add_argument("--keep-two-phase", action="store_true",
                    help="list blends that split into two phases too (marked), instead of dropping them")
-    o.add_argument("--top", type=int, default=10, metavar="N", help="number of blends shown (default 10)")
+    o.add_argument("--top", type=int, metavar="N", help="number of blends shown (default 10; 5 a target with --targets)")
+    add_batch_arguments(p)
     add_json_flag(p)
     return p
 
@@ -84,9 +86,13 @@ def request(args):
     """The :class:`~solvsel.jobs.blend.BlendRequest` the options describe."""
     from ..jobs.blend import BlendRequest
 
+    return BlendRequest(**target_fields(args), **request_fields(args))
+
+
+def request_fields(args) -> dict:
+    """The request fields of the options other than the target (``top`` only where given)."""
     bp_lo, bp_hi = parse_range(args.bp_range, "bp_min_C")
-    return BlendRequest(
-        **target_fields(args),
+    return dict(
         max_components=args.max_components,
         only=parse_names(args.only, "only") if args.only else None,
         exclude=parse_names(args.exclude, "exclude") if args.exclude else (),
@@ -97,10 +103,10 @@ def request(args):
         temp_C=args.temp,
         rejects=tuple(n for text in args.reject for n in parse_names(text, "rejects")),
         reject_hsp=tuple(args.reject_hsp),
-        sort=args.sort, one_phase_only=not args.keep_two_phase, min_fraction=args.min_fraction, top=args.top,
+        sort=args.sort, one_phase_only=not args.keep_two_phase, min_fraction=args.min_fraction,
         dose=args.dose, category=args.category, chain=args.chain,
         already=tuple(parse_amounts(args.already, "already")) if args.already else None,
-        keep_over=args.keep_over,
+        keep_over=args.keep_over, **({} if args.top is None else {"top": args.top}),
     )
 
 
@@ -264,6 +270,8 @@ def print_search(res, file=None) -> None:
 def run(args) -> int:
     from ..jobs.blend import blend
 
+    if args.targets:
+        return run_batch(args, "blend", request_fields(args))
     res = blend(request(args), catalog=get_catalog(args))
     if args.json:
         emit_json(res.to_dict())

@@ -7,11 +7,10 @@ user's own solutes table (``--save-to``).
 
 from __future__ import annotations
 
-import sys
-
 from ..jobs.estimate import METHODS
 from ..jobs.fit import SOLUTE_CATEGORIES
 from ._common import add_json_flag, emit_json, print_cautions, print_table
+from ._progress import ProgressBar
 
 #: Request fields given by another option than ``--`` + the field.
 OPTION_NAMES = {"smiles": "SMILES", "lookup": "--no-lookup"}
@@ -55,17 +54,6 @@ def register(sub):
                    help="with --save-to: the solute's category (default other)")
     add_json_flag(p)
     return p
-
-
-def _refit_progress(done: int, total: int, message: str) -> None:
-    """A refit's progress bar on stderr: redrawn in place on a terminal, a line a step otherwise."""
-    width = 24
-    fill = width * done // max(total, 1)
-    line = f"[{'#' * fill}{'.' * (width - fill)}] {done}/{total} {message}"
-    if sys.stderr.isatty():
-        print("\r\033[K" + line, end="\n" if done >= total else "", file=sys.stderr, flush=True)
-    else:
-        print(line, file=sys.stderr, flush=True)
 
 
 def _refit_text(result) -> None:
@@ -129,7 +117,7 @@ def _print_many(result) -> None:
 def run(args) -> int:
     from ..jobs.estimate import estimate
 
-    say = None if args.json else _refit_progress
+    say = None if args.json else ProgressBar(every=0.0)
     smiles, file = tuple(args.smiles), args.file
     if smiles == ("-",) and file is None:  # the SMILES come on stdin
         smiles, file = (), "-"

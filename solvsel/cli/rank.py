@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from ..jobs.parse import parse_names, parse_range
 from ..rules.regulations import FOOD_JURISDICTIONS, bundled_purposes, describe_purposes
+from ._batch import add_batch_arguments, run_batch
 from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
 from ._target import add_target_arguments, target_fields
 
@@ -37,7 +38,7 @@ def register(sub):
     p.add_argument("--worst-hazard", metavar="CAT", choices=("1", "2", "3", "4", "none"),
                    help="most hazardous GHS flammable-liquid category allowed: 1..4, or 'none' for non-flammable "
                    "liquids only")
-    p.add_argument("--top", type=int, default=15, metavar="N", help="show the best N (default 15)")
+    p.add_argument("--top", type=int, metavar="N", help="show the best N (default 15; 5 a target with --targets)")
     p.add_argument("--all", action="store_true", help="show every ranked liquid")
     p.add_argument("--temp", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
     p.add_argument("--bp-range", metavar="LO:HI",
@@ -50,6 +51,7 @@ def register(sub):
     p.add_argument("--solubility", action="store_true",
                    help="require the solubility estimate (error if the solute has no fusion data)")
     p.add_argument("--keep-over", action="store_true", help="keep carriers that break a limit at the dose (flagged) instead of dropping them")
+    add_batch_arguments(p)
     add_json_flag(p)
     return p
 
@@ -58,17 +60,21 @@ def request(args):
     """The :class:`~solvsel.jobs.rank.RankRequest` the options describe."""
     from ..jobs.rank import RankRequest
 
+    return RankRequest(**target_fields(args), like=args.like, **request_fields(args))
+
+
+def request_fields(args) -> dict:
+    """The request fields of the options other than the target (``top`` only where given)."""
     bp_lo, bp_hi = parse_range(args.bp_range, "bp_min_C")
-    return RankRequest(
-        **target_fields(args), like=args.like,
+    return dict(
         only=parse_names(args.only, "only") if args.only else None,
         exclude=parse_names(args.exclude, "exclude") if args.exclude else (),
         use=args.use, food=args.food, jurisdiction=args.jurisdiction, purpose=args.purpose,
         worst_flammable_category=args.worst_hazard,
         bp_min_C=bp_lo, bp_max_C=bp_hi, min_flash_C=args.min_flash, max_cost=args.max_cost,
-        temp_C=args.temp, top=args.top, all=args.all,
+        temp_C=args.temp, all=args.all,
         dose=args.dose, category=args.category, chain=args.chain, keep_over=args.keep_over,
-        require_solubility=args.solubility,
+        require_solubility=args.solubility, **({} if args.top is None else {"top": args.top}),
     )
 
 
@@ -82,6 +88,8 @@ def _fmt_sol(r):
 def run(args) -> int:
     from ..jobs.rank import rank
 
+    if args.targets:
+        return run_batch(args, "rank", request_fields(args))
     result = rank(request(args), catalog=get_catalog(args))
     if args.json:
         emit_json(result.to_dict())

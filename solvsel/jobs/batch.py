@@ -351,10 +351,16 @@ def _results(req: BatchRequest, spec: dict, chunks: list) -> Iterator:
 
 def _run(req: BatchRequest, catalog: Catalog | None, progress) -> Iterator[tuple[list[dict], list, int, bool]]:
     """Read the targets and run them chunk by chunk; yields each chunk's result in order."""
+    from .pool import build_pool
+
     rows = read_targets(req.targets)
     cat = catalog_or_default(catalog)
     spec = {"request": req, "catalog": _catalog_spec(cat)}
-    _STATE.setdefault(spec["catalog"], (cat, {}))  # this process uses the caller's tables as they are
+    # this process uses the caller's tables as they are, and the pool is built (and checked) once here
+    _, pools = _STATE.setdefault(spec["catalog"], (cat, {}))
+    filters = req.job_request({"hsp": (17.0, 5.0, 8.0)}).filters
+    if filters not in pools:
+        pools[filters] = build_pool(cat, filters)
     chunks = [rows[i:i + req.chunk] for i in range(0, len(rows), req.chunk)]
     done = 0
     for chunk, res in zip(chunks, _results(req, spec, chunks)):
@@ -367,8 +373,8 @@ def _run(req: BatchRequest, catalog: Catalog | None, progress) -> Iterator[tuple
 
 
 def _stopped_error(req: BatchRequest, bad: tuple[int, str], partial: str | None) -> InputError:
-    kept = f"; the answers of the rows before it are in {partial}" if partial else ""
-    return InputError(f"row {bad[0]} of {req.targets}: {bad[1]}{kept}", param="targets", value=req.targets,
+    kept = f"; the answers of the rows before it are kept in {partial}" if partial else ""
+    return InputError(f"{bad[1]}{kept}", param="targets", value=req.targets,
                       path=req.targets, row=bad[0], expected="one target a row: solute, dD/dP/dH[/R0] or smiles")
 
 
