@@ -31,7 +31,12 @@ line prints it on stderr as a note, a notebook shows it as a warning.
 
 from __future__ import annotations
 
+import re
 from typing import Any, Callable, Mapping
+
+#: Control characters (a user's text echoed in a message may hold them): shown escaped, so a message
+#: stays one paragraph on one line.
+_CONTROL = re.compile(r"[\x00-\x08\x0a-\x1f\x7f\x85\u2028\u2029]")
 
 __all__ = [
     "SolvselError",
@@ -100,7 +105,8 @@ class SolvselError(Exception):
         return out
 
     def describe(self, names: Mapping[str, str] | Callable[[str], str] | None = None) -> str:
-        """The message as one paragraph, the input named the way a front end names it.
+        """The message as one paragraph, the input named the way a front end names it (control
+        characters of a user's text shown escaped, ``\\n`` for a line break).
 
         ``names`` maps a request field to the front end's name for it (an
         option such as ``--temp``, a field label); fields it does not know keep
@@ -117,7 +123,7 @@ class SolvselError(Exception):
                 label = (names or {}).get(self.param, self.param)
             if label:
                 text = f"{label}: {text}"
-        return text
+        return _CONTROL.sub(lambda m: repr(m.group())[1:-1], text)  # one paragraph: a user's newline shown as \\n
 
     def fields(self) -> dict[str, Any]:
         """The structured fields (for JSON error output and tests)."""

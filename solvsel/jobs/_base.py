@@ -28,6 +28,7 @@ __all__ = [
     "check_int",
     "check_choice",
     "check_names",
+    "check_bool",
     "check_fraction",
     "check_pairs",
     "check_jurisdictions",
@@ -127,20 +128,41 @@ def check_choice(value, param: str, choices: Sequence[str], allow_none: bool = F
 
 
 def check_names(value, param: str, allow_none: bool = True) -> tuple[str, ...] | None:
-    """A tuple of non-empty names from a list, a tuple or one comma-free string."""
+    """A tuple of non-empty names from a list, a tuple or one comma-free string.
+
+    >>> check_names("ethanol", "only"), check_names(["water", " ethanol "], "only")
+    (('ethanol',), ('water', 'ethanol'))
+    """
     if value is None and allow_none:
         return None
     if isinstance(value, str):
         value = (value,)
-    try:
-        names = tuple(str(v).strip() for v in value)
-    except TypeError:
+    if isinstance(value, (bytes, Mapping)) or not isinstance(value, Iterable):
         raise InputError(f"expected a list of names, got {value!r}", param=param, value=value,
-                         expected="a list of names") from None
+                         expected="a list of names")
+    value = tuple(value)
+    if not all(isinstance(v, str) for v in value):
+        bad = next(v for v in value if not isinstance(v, str))
+        raise InputError(f"expected names as text, got {bad!r}", param=param, value=value,
+                         expected="a list of names")
+    names = tuple(v.strip() for v in value)
     if not names or any(not n for n in names):
         raise InputError(f"expected a list of non-empty names, got {value!r}", param=param, value=value,
                          expected="a list of non-empty names")
     return names
+
+
+def check_bool(value, param: str) -> bool:
+    """``value`` if it is True or False (a string such as "no" is refused: it would read as True).
+
+    >>> check_bool(False, "food")
+    False
+    """
+    if isinstance(value, bool):
+        return value
+    if type(value).__name__ == "bool_":  # a numpy bool
+        return bool(value)
+    raise InputError(f"expected True or False, got {value!r}", param=param, value=value, expected="True or False")
 
 
 def check_fraction(value, param: str, allow_none: bool = False, allow_zero: bool = True) -> float | None:

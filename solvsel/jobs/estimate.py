@@ -35,7 +35,7 @@ from ..data.catalog import (
 from ..errors import InputError, SolvselError, SolvselNote, TableError
 from ..science import structure
 from ..science.target import Target, target_from_estimate
-from ._base import build_request, check_choice
+from ._base import build_request, check_bool, check_choice, check_names
 from .fit import SOLUTE_CATEGORIES
 
 __all__ = ["METHODS", "CAUTION", "EstimateRequest", "EstimateResult", "estimate"]
@@ -114,8 +114,10 @@ class EstimateRequest:
 
     def __post_init__(self) -> None:
         put = object.__setattr__.__get__(self)
-        smiles = (self.smiles,) if isinstance(self.smiles, str) else tuple(self.smiles or ())
-        put("smiles", tuple(str(s) for s in smiles))
+        none_given = self.smiles is None or (isinstance(self.smiles, (list, tuple)) and not self.smiles)
+        put("smiles", () if none_given else check_names(self.smiles, "smiles"))
+        for param in ("lookup", "lookup_all", "force"):
+            put(param, check_bool(getattr(self, param), param))
         for param in ("file", "params", "refit", "exclude", "save_to"):
             put(param, _optional_path(getattr(self, param), param))
         put("method", check_choice(self.method, "method", structure.METHODS, allow_none=True))

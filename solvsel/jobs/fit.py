@@ -29,7 +29,7 @@ from ..science.sphere import (
     save_solute, solute_row, suggest_tests,
 )
 from ..science.target import Target
-from ._base import build_request, catalog_or_default, check_choice, check_int, check_number
+from ._base import build_request, catalog_or_default, check_bool, check_choice, check_int, check_number
 
 __all__ = ["SOLUTE_CATEGORIES", "NEXT_TESTS_METHOD", "FitRequest", "FitResult", "fit"]
 
@@ -122,6 +122,8 @@ class FitRequest:
             raise InputError(f"expected a number between 0 and 1, got {self.level:g}", param="level",
                              value=self.level, expected="a number between 0 and 1")
         put("next_tests", check_int(self.next_tests, "next_tests", lo=0))
+        put("food", check_bool(self.food, "food"))
+        put("two_spheres", check_bool(self.two_spheres, "two_spheres"))
         put("category", check_choice(self.category, "category", SOLUTE_CATEGORIES))
         self._check_saving(put)
 

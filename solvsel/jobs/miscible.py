@@ -19,7 +19,7 @@ from ..data.catalog import Catalog
 from ..errors import InputError
 from ..science.hansen import T_WINDOW_C
 from ..science.miscibility import BlendPhase, Bridge, PairVerdict, blend_phase, bridges, pair
-from ._base import build_request, catalog_or_default, check_names, check_number, frame
+from ._base import build_request, catalog_or_default, check_bool, check_names, check_number, frame
 from .pool import PoolFilters, build_pool
 
 __all__ = ["MiscibleRequest", "MiscibleResult", "miscible", "CAUTION"]
@@ -64,6 +64,8 @@ class MiscibleRequest:
                              expected="two or more liquids")
         object.__setattr__(self, "liquids", liquids)
         object.__setattr__(self, "temp_C", check_number(self.temp_C, "temp_C", *T_WINDOW_C, unit="C"))
+        object.__setattr__(self, "bridge", check_bool(self.bridge, "bridge"))
+        object.__setattr__(self, "food", check_bool(self.food, "food"))
         if self.bridge and len(liquids) != 2:
             raise InputError("bridging liquids are looked for between exactly two liquids", param="bridge",
                              expected="two liquids")

@@ -18,6 +18,7 @@ by mass, ``%v`` by volume, ``ppm`` / ``mg/kg`` / ``g/kg`` by mass, ``g/L`` /
 from __future__ import annotations
 
 import csv
+import io
 import math
 import re
 
@@ -65,6 +66,16 @@ def parse_number(text, param: str, unit: str = "", lo: float | None = None, hi: 
     return value
 
 
+def _items(text, param: str, expected: str) -> list[str]:
+    """The comma-separated items of ``text`` (quotes keep commas in an item; a line break separates too,
+    as in a column pasted from a spreadsheet)."""
+    try:
+        rows = list(csv.reader(io.StringIO(str(text), newline=""), skipinitialspace=True))
+    except csv.Error as exc:
+        raise _fail(param, text, f"cannot read '{text}' as a list: {exc}", expected) from None
+    return [item for row in rows for item in row]
+
+
 def parse_names(text: str | None, param: str = "only") -> list[str]:
     """Split a comma-separated list of names (``"ethanol, water"``); quotes keep commas in a name.
 
@@ -73,7 +84,7 @@ def parse_names(text: str | None, param: str = "only") -> list[str]:
     """
     if text is None:
         return []
-    items = next(csv.reader([str(text)], skipinitialspace=True), [])
+    items = _items(text, param, "names separated by commas")
     names = [i.strip() for i in items if i.strip()]
     if not names:
         raise _fail(param, text, f"expected a comma-separated list of names, got '{text}'", "names separated by commas")
@@ -110,7 +121,7 @@ def parse_amounts(text: str | None, param: str = "oil", allow_negative: bool = F
     """
     expected = "NAME=AMOUNT items separated by commas"
     out = []
-    items = next(csv.reader([str(text or "")], skipinitialspace=True), [])
+    items = _items(text or "", param, expected)
     for item in items:
         if not item.strip():
             continue
@@ -162,8 +173,9 @@ def parse_amount(text, param: str = "dose") -> tuple[str, float | tuple[float, f
         raise _fail(param, text, f"'{text}' is not an amount; expected e.g. {AMOUNT_EXAMPLES}", AMOUNT_EXAMPLES)
     if m.group("a") is not None:
         a, b = float(m.group("a")), float(m.group("b"))
-        if a <= 0 or b < 0:
-            raise _fail(param, text, f"'{text}': parts must be positive", "parts a+b with a > 0")
+        if not (0 < a < math.inf and 0 < b < math.inf):
+            raise _fail(param, text, f"'{text}': parts a+b must both be positive numbers (1+0 would not dilute; "
+                        "leave such a step out)", "parts a+b with a > 0 and b > 0")
         return ("parts by volume" if m.group("pv") else "parts by mass"), (a, b)
     x = float(m.group("x"))
     unit = (m.group("unit") or "").lower()
