@@ -81,8 +81,8 @@ def accuracy(quick: bool):
     else:
         tmp = Path(tempfile.mkdtemp())
         t = time.perf_counter()
-        res = structure_training.refit(tmp / "bench.csv", choose=True,
-                                       progress=lambda done, total, m: print(f"  ... {done}/{total} {m}", flush=True))
+        structure_training.refit(tmp / "bench.csv", choose=True,
+                                 progress=lambda done, total, m: print(f"  ... {done}/{total} {m}", flush=True))
         print(f"  refit choosing the settings by nested CV: {time.perf_counter() - t:.1f} s")
         t = time.perf_counter()
         structure_training.refit(tmp / "recorded.csv")
