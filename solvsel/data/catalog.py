@@ -249,7 +249,7 @@ def read_user_csv(path, *, param: str | None = None, comments: bool = False,
     The text is read by :func:`read_user_text`.  Fields may be separated by commas, semicolons or
     tabs (the separator of the header line is used); with semicolons, numbers written with a
     decimal comma (``17,5``) are read as ``17.5``, with a note.  With ``comments``, lines starting
-    with ``#`` are left out (line numbers still count them).  Blank lines give empty records.
+    with ``#`` are left out (line numbers still count them), as are blank lines.
 
     >>> import tempfile, pathlib
     >>> p = pathlib.Path(tempfile.mkdtemp()) / "b.csv"
@@ -274,7 +274,7 @@ def read_user_csv(path, *, param: str | None = None, comments: bool = False,
             line = reader.line_num
     except csv.Error as exc:  # a field over the csv module's limit, an unclosed quote at the end
         raise TableError(shown, f"cannot be read as CSV: {exc}", row=line + 1, param=param) from None
-    records = [(i, r) for i, r in records if r]
+    records = [(i, r) for i, r in records if any(c.strip() for c in r)]
     if not records:
         raise TableError(shown, "the file is empty; expected a header row", param=param, expected="a header row")
     if delimiter == ";":

@@ -21,7 +21,7 @@ from pathlib import Path
 from typing import Any
 
 from ..data.bench import liquid_key, read_bench
-from ..data.catalog import Catalog
+from ..data.catalog import Catalog, check_write_target
 from ..errors import InputError
 from ..rules.cautions import DEFER, solvent_cautions
 from ..science.sphere import (
@@ -56,7 +56,8 @@ class FitRequest:
     Attributes
     ----------
     path : str
-        the bench-results CSV (see :mod:`solvsel.data.bench` for its columns)
+        the bench-results CSV (see :mod:`solvsel.data.bench` for its columns); ``"-"`` reads it from
+        standard input
     good_at_most, good_at_least : float, optional
         for numeric scores, the cut-off of a good result: at most (low is best, e.g. 1 dissolved .. 6 no
         effect) or at least (high is best); exactly one for numbers, none for good/partial/bad [-]
@@ -233,6 +234,8 @@ def fit(request: FitRequest | None = None, *, catalog: Catalog | None = None, **
     :class:`~solvsel.errors.InputError` for a bad field or a set of results no sphere can be fitted to.
     """
     q = build_request(FitRequest, request, fields)
+    if q.into is not None:  # before the work: not a folder, its folder there and writable
+        check_write_target(q.into, param="into")
     cat = catalog_or_default(catalog)
     read = read_bench(q.path, cat)
     bench = bench_liquids(read, partial=q.partial, partial_weight=q.partial_weight)

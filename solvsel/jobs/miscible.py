@@ -16,7 +16,7 @@ from itertools import combinations
 from typing import Any
 
 from ..data.catalog import Catalog
-from ..errors import InputError
+from ..errors import InputError, UnknownNameError
 from ..science.hansen import T_WINDOW_C
 from ..science.miscibility import BlendPhase, Bridge, PairVerdict, blend_phase, bridges, pair
 from ._base import build_request, catalog_or_default, check_bool, check_names, check_number, frame
@@ -181,7 +181,11 @@ def miscible(request: MiscibleRequest | None = None, *, catalog: Catalog | None 
     """
     req = build_request(MiscibleRequest, request, fields)
     cat = catalog_or_default(catalog)
-    verdicts = [pair(cat, a, b, req.temp_C) for a, b in combinations(req.liquids, 2)]
+    try:
+        verdicts = [pair(cat, a, b, req.temp_C) for a, b in combinations(req.liquids, 2)]
+    except UnknownNameError as exc:  # name the request field the liquid came from
+        exc.param = exc.param or "liquids"
+        raise
     names = tuple(dict.fromkeys(n for v in verdicts for n in v.liquids))
     overall = _together(req, verdicts)
     blend = None
