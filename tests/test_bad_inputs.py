@@ -1008,3 +1008,50 @@ def test_entry_point_refuses_bad_input_without_a_traceback():
     assert p.returncode == 0 and b"from standard input" in p.stdout
     p = _entry(["fit", "-"], stdin=b"\x00\x01\x02" * 100)
     assert p.returncode == 2 and b"standard input: is not a text file" in p.stderr
+
+
+# ----------------------------------------------------------------------------- the terminal UI
+
+def test_ui_survives_absurd_bench_paths_and_filters(corpus):
+    """Pasted into the UI's fields: the error dialog names the field; the app stays up, the target stays."""
+    pytest.importorskip("textual")
+    import asyncio
+
+    from solvsel.tui.app import create_app
+    from solvsel.tui.dialogs import ErrorDialog
+
+    latin = corpus / "bench_latin1.csv"
+    latin.write_bytes(BENCH.replace("liquid,result", "liquid,result,note").replace(",good\n", ",good,\n")
+                      .replace(",bad\n", ",bad,trüb\n").encode("cp1252"))
+
+    async def go():
+        app = create_app(start="target")
+        async with app.run_test(size=(160, 48)) as pilot:
+            await pilot.pause()
+            screen = app.screen
+            before = app.session.target
+            for path in (f"{corpus}/{LONG}", "/proc/self/mem", "/dev/zero", "-", str(corpus / "adir"),
+                         str(corpus / "bench_binary.csv"), "[bold red]x[/]", ""):
+                screen.query_one("#bench-path").value = path
+                screen.press("use-bench")
+                await pilot.pause()
+                assert isinstance(app.screen, ErrorDialog), path[:40]
+                assert app.screen.error_message.startswith("bench results file: "), app.screen.error_message
+                assert "\n" not in app.screen.error_message
+                await pilot.press("escape")
+                await pilot.pause()
+                assert app.screen is screen and app.session.target is before
+            screen.query_one("#bench-path").value = str(latin)
+            screen.press("use-bench")
+            await pilot.pause()
+            assert app.session.target.basis == "fitted"
+            assert "read as Windows-1252" in str(screen.query_one("#bench-detail").render())
+            await pilot.press("f1")  # the tables: a filter nested 3,000 deep
+            await pilot.pause()
+            tables = app.screen
+            tables.load_table("solvents", "(" * 3000 + "dH > 1" + ")" * 3000)
+            await pilot.pause()
+            assert isinstance(app.screen, ErrorDialog) and "nested more than 50" in app.screen.error_message
+        latin.unlink()
+
+    asyncio.run(go())

@@ -10,6 +10,8 @@ drives the carriers and map screens.
 
 from __future__ import annotations
 
+import warnings
+
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -172,12 +174,23 @@ class TargetScreen(BenchScreen):
         return self.smiles_result.target
 
     def bench_target(self):
+        from ..data.catalog import STDIN
+        from ..errors import InputError, SolvselNote
         from ..jobs.fit import fit
 
-        self.bench_result = fit(path=self.query_one("#bench-path", Input).value,
-                                good_at_most=self.query_one("#bench-good", Input).value.strip() or None,
-                                catalog=self.session.catalog)
-        self.query_one("#bench-detail", Static).update(_fit_text(self.bench_result))
+        path = self.query_one("#bench-path", Input).value
+        if path.strip() == STDIN:  # the terminal is the UI's own input
+            raise InputError("give the name of a bench-results file; standard input is read by the command line only",
+                             param="path", value=path, expected="a file name")
+        with warnings.catch_warnings(record=True) as caught:  # notes on the file (read as Windows-1252 ...)
+            warnings.simplefilter("always", SolvselNote)
+            self.bench_result = fit(path=path, good_at_most=self.query_one("#bench-good", Input).value.strip() or None,
+                                    catalog=self.session.catalog)
+        text = _fit_text(self.bench_result)
+        for note in caught:
+            if issubclass(note.category, SolvselNote):
+                text.append(f"note: {note.message}\n", style="dim")
+        self.query_one("#bench-detail", Static).update(text)
         return self.bench_result.target
 
     # ---------------------------------------------------------------- show
