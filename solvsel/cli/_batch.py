@@ -46,7 +46,7 @@ def run_batch(args, command: str, fields: dict) -> int:
                          value=getattr(args, given[0]), expected="no target option with the file of targets")
     if not args.out:
         raise InputError("give the file the answers go to", param="out", expected="a .csv or .parquet file")
-    top = fields.pop("top", None) or DEFAULT_TOP
+    top = fields.pop("top", DEFAULT_TOP)
     req = BatchRequest(command=command, targets=args.targets, fields=fields, top=top, on_error=args.on_error,
                        workers=args.workers, scheduler=args.scheduler, out=args.out)
     summary = screen_to_file(req, catalog=get_catalog(args),
