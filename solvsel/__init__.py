@@ -17,6 +17,7 @@ its request and result types, and the catalog of sourced tables:
 ``hlb``            required HLB of an oil phase, emulsifier pairs
 ``emulsion``       weighting, density match and creaming of a drink
 ``dose``           levels along a dilution chain against the legal limits
+``screen``         many targets at once through rank or blend (a DataFrame)
 ``load_catalog``   the bundled tables, with a user's own rows
 =================  =====================================================
 
@@ -53,6 +54,7 @@ _API = {
     "emulsion": "solvsel.jobs.emulsion", "EmulsionRequest": "solvsel.jobs.emulsion",
     "EmulsionResult": "solvsel.jobs.emulsion",
     "dose": "solvsel.jobs.dose", "DoseRequest": "solvsel.jobs.dose", "DoseResult": "solvsel.jobs.dose",
+    "screen": "solvsel.jobs.batch", "BatchRequest": "solvsel.jobs.batch",
     "SolvselError": "solvsel.errors", "InputError": "solvsel.errors",
 }
 
@@ -76,6 +78,7 @@ if TYPE_CHECKING:  # pragma: no cover - for type checkers and editors
     from .data.catalog import Catalog, load_catalog
     from .errors import InputError, SolvselError
     from .jobs.blend import BlendRequest, BlendResult, blend
+    from .jobs.batch import BatchRequest, screen
     from .jobs.dose import DoseRequest, DoseResult, dose
     from .jobs.emulsion import EmulsionRequest, EmulsionResult, emulsion
     from .jobs.estimate import EstimateRequest, EstimateResult, estimate

@@ -61,7 +61,7 @@ from ..science.hansen import SCALE, as_hsp, convert_fractions
 from ..science.target import Target, target_from_hsp
 from ._base import build_request, catalog_or_default, check_choice, check_int, check_names, check_number, frame, target_of
 from .parse import parse_amounts, parse_chain, parse_fraction_bound, parse_hsp
-from .pool import Candidate, LeftOut, Pool, PoolRequest, build_pool, hazard_rank, solvent_named
+from .pool import Candidate, LeftOut, Pool, PoolRequest, hazard_rank, solvent_named
 
 __all__ = ["BlendRequest", "BlendResult", "blend", "SORTS", "GENERAL_CAUTION"]
 
@@ -736,10 +736,7 @@ def blend(request: BlendRequest | None = None, *, catalog: Catalog | None = None
     cat = catalog_or_default(catalog)
     target = target_of(cat, target=req.target, solute=req.solute, hsp=req.hsp, smiles=req.smiles)
     rejects = _rejects(cat, req)
-    if pool is None:
-        pool = build_pool(cat, req.filters)
-    elif pool.filters != req.filters:
-        raise InputError("the pool given was built for other filters than the request's", param="pool")
+    pool = req.pool_in(cat, pool)
     lo, hi = _bounds(cat, pool, req)
     m = len(pool.candidates)
     counts = {"liquids": m, "excluded_liquids": len(pool.left_out), "combinations": 0, "bounds_not_met": 0,

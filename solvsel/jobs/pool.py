@@ -165,6 +165,15 @@ class PoolRequest:
         """The pool filters of this request (checked on construction)."""
         return PoolFilters(**{name: getattr(self, name) for name in POOL_FIELDS})
 
+    def pool_in(self, cat: Catalog, pool: "Pool | None" = None, records: Sequence[Solvent] | None = None) -> "Pool":
+        """``pool`` if it was built for this request's filters (one pool for many targets), else a
+        new pool from the catalog (or ``records``)."""
+        if pool is None:
+            return build_pool(cat, self.filters, records)
+        if pool.filters != self.filters:
+            raise InputError("the pool given was built for other filters than the request's", param="pool")
+        return pool
+
     def check_pool_fields(self) -> None:
         filters = self.filters
         for name in POOL_FIELDS:

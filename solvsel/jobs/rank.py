@@ -28,7 +28,7 @@ from ..science.formulation import Step
 from ..science.target import Target, solubility_in, target_from_hsp
 from ._base import build_request, catalog_or_default, check_int, frame, target_of
 from .parse import parse_chain
-from .pool import Candidate, LeftOut, Pool, PoolRequest, build_pool, solvent_named
+from .pool import Candidate, LeftOut, Pool, PoolRequest, solvent_named
 
 __all__ = ["RankRequest", "RankedSolvent", "RankResult", "rank"]
 
@@ -284,10 +284,7 @@ def _ranked(cat: Catalog, target: Target, c: Candidate, req: RankRequest, steps)
 
 def _rank_pool(cat: Catalog, target: Target, req: RankRequest, records=None, pool: Pool | None = None):
     """Every candidate of the pool ranked (best first), the liquids left out, and the rules judged by."""
-    if pool is None:
-        pool = build_pool(cat, req.filters, records)
-    elif pool.filters != req.filters:
-        raise InputError("the pool given was built for other filters than the request's", param="pool")
+    pool = req.pool_in(cat, pool, records)
     steps = req.steps
     results, dropped = [], list(pool.left_out)
     for c in pool.candidates:
