@@ -76,13 +76,15 @@ def run(args) -> int:
                          value=" ".join(cmd), expected="a solvsel command other than report and demo")
     if args.out != STDIN:
         check_write_target(args.out, param="out")  # before the work: not a folder, a writable folder
-    rc, text = _capture(cmd)
+    own = [a for path in args.own_solvents for a in ("--own-solvents", path)]
+    own += [a for path in args.own_solutes for a in ("--own-solutes", path)]
+    rc, text = _capture(own + cmd)
     if rc != 0:
         raise InputError(f"the command '{cmd[0]}' ended with exit code {rc}; no report was written", param="cmd",
                          value=" ".join(cmd), expected="a command that succeeds")
-    _, js = _capture(cmd + ["--json"])
+    _, js = _capture(own + cmd + ["--json"])
     data = json.loads(js)
-    command = " ".join(shlex.quote(a) for a in cmd)
+    command = " ".join(shlex.quote(a) for a in own + cmd)
     report = (title or f"solvsel {command}", command, text, data)
     if args.out == STDIN:
         _print_report(args, report)

@@ -168,10 +168,17 @@ def _fail(path, param, message: str, expected: str = "a CSV or text file") -> Fi
     return FileError(message, param=param, value=str(path), expected=expected, path=shown_path(path))
 
 
+#: Standard input as read once: ``(stream, bytes)`` (a command that runs another, such as a report,
+#: reads it again).
+_STDIN_READ: list = []
+
+
 def _stdin_bytes(param) -> bytes:
     stream = getattr(sys.stdin, "buffer", sys.stdin)
     if stream is None:
         raise _fail(STDIN, param, "there is no standard input to read")
+    if _STDIN_READ and _STDIN_READ[0] is stream:
+        return _STDIN_READ[1]
     try:
         data = stream.read(MAX_USER_FILE_BYTES + 1)
     except OSError as exc:
@@ -180,6 +187,7 @@ def _stdin_bytes(param) -> bytes:
         data = data.encode("utf-8")
     if len(data) > MAX_USER_FILE_BYTES:
         raise _fail(STDIN, param, f"holds more than {MAX_USER_FILE_BYTES // 2**20} MB; a larger file is not read")
+    _STDIN_READ[:] = [stream, data]
     return data
 
 
