@@ -25,10 +25,11 @@ import csv
 import io
 import os
 import warnings
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Callable
 
+from ..data.provenance import audit_block
 from ..data.catalog import (
     Catalog, check_write_target, read_user_text, read_user_text_encoding, spreadsheet_safe, write_user_file,
 )
@@ -166,6 +167,9 @@ class EstimateResult:
     refit: dict | None = None
     excluded: tuple[str, ...] = ()
     cautions: tuple[str, ...] = (CAUTION,)
+    #: version and the tables' checksum (in the JSON of one SMILES and of a refit; a list of several
+    #: SMILES keeps its shape)
+    audit: dict = field(default_factory=lambda: audit_block())
 
     @property
     def ok(self) -> bool:
@@ -184,11 +188,12 @@ class EstimateResult:
         """The JSON of ``solvsel estimate --json``: the estimate of one SMILES (with ``saved_to`` when saved),
         a list with one entry per SMILES (``{smiles, error}`` for a failure) for several, or the refit's summary."""
         if self.refit is not None:
-            return dict(self.refit)
+            return {**self.refit, "audit": self.audit}
         if len(self.items) == 1:
             d = self.estimates[0].to_dict()
             if self.saved_to:
                 d["saved_to"] = self.saved_to
+            d["audit"] = self.audit
             return d
         return [{"smiles": s, "error": _error_text(e)} if isinstance(e, SolvselError) else e.to_dict()
                 for s, e in zip(self.items, self.estimates)]

@@ -16,12 +16,13 @@ and the UI can aim at it.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
 from ..data.bench import liquid_key, read_bench
 from ..data.catalog import Catalog, check_write_target
+from ..data.provenance import audit_block
 from ..errors import InputError
 from ..rules.cautions import DEFER, solvent_cautions
 from ..science.sphere import (
@@ -169,6 +170,8 @@ class FitResult:
     two: TwoSphereFit | None = None
     saved: dict | None = None
     cautions: tuple[str, ...] = ()
+    #: version and tables' checksum of the answer (no legal rule is applied to a fit)
+    audit: dict = field(default_factory=dict)
 
     @property
     def target(self) -> Target:
@@ -218,6 +221,7 @@ class FitResult:
         if self.two is not None:
             out["two_spheres"] = self.two.to_dict()
         out["cautions"] = list(self.cautions)
+        out["audit"] = self.audit
         return out
 
     def to_frame(self):
@@ -248,7 +252,8 @@ def fit(request: FitRequest | None = None, *, catalog: Catalog | None = None, **
     if q.save_as is not None:
         row = solute_row(sphere, q.save_as, source=f"bench fit of {bench.path}", category=q.category)
         saved = {"name": row["name"], "file": q.into, "action": save_solute(row, q.into)}
-    return FitResult(q, sphere, bench, tuple(suggestions), two, saved, _cautions(sphere, suggestions, pool, cat))
+    return FitResult(q, sphere, bench, tuple(suggestions), two, saved, _cautions(sphere, suggestions, pool, cat),
+                     audit_block((), cat.tables_dir))
 
 
 def _next_test_pool(cat: Catalog, food: bool, tested: frozenset) -> list:

@@ -11,11 +11,12 @@ candidate pool with ``food``).
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 from itertools import combinations
 from typing import Any
 
 from ..data.catalog import Catalog
+from ..data.provenance import audit_block
 from ..errors import InputError, UnknownNameError
 from ..science.hansen import T_WINDOW_C
 from ..science.miscibility import BlendPhase, Bridge, PairVerdict, blend_phase, bridges, pair
@@ -118,6 +119,8 @@ class MiscibleResult:
     blend: BlendPhase | None = None
     bridges: tuple[Bridge, ...] | None = None
     cautions: tuple[str, ...] = (CAUTION,)
+    #: version, tables' checksum and the food-law rules applied (to the bridging liquids, with ``food``)
+    audit: dict = field(default_factory=dict)
 
     def to_dict(self) -> dict[str, Any]:
         """The JSON of ``solvsel miscible --json``: for one pair, that pair's verdict (with
@@ -136,6 +139,7 @@ class MiscibleResult:
         if self.bridges is not None:
             out["bridges"] = [b.to_dict() for b in self.bridges]
         out["cautions"] = list(self.cautions)
+        out["audit"] = self.audit
         return out
 
     def to_frame(self):
@@ -160,12 +164,14 @@ def _together(req: MiscibleRequest, verdicts: list[PairVerdict]) -> dict[str, An
     }
 
 
-def _bridges(cat: Catalog, req: MiscibleRequest) -> tuple[Bridge, ...]:
+def _bridges(cat: Catalog, req: MiscibleRequest) -> tuple[tuple[Bridge, ...], tuple]:
+    """The bridging liquids, and the food-law rules their pool was judged by (with ``food``)."""
     a, b = req.liquids
     if not req.food:
-        return tuple(bridges(cat, a, b, req.temp_C))
+        return tuple(bridges(cat, a, b, req.temp_C)), ()
     pool = build_pool(cat, PoolFilters(use="carrier", food=True))
-    return tuple(replace(x, food=True) for x in bridges(cat, a, b, req.temp_C, names=pool.names))
+    found = tuple(replace(x, food=True) for x in bridges(cat, a, b, req.temp_C, names=pool.names))
+    return found, pool.rules
 
 
 def miscible(request: MiscibleRequest | None = None, *, catalog: Catalog | None = None, **fields) -> MiscibleResult:
@@ -193,6 +199,6 @@ def miscible(request: MiscibleRequest | None = None, *, catalog: Catalog | None 
         blend = blend_phase(cat, list(req.liquids), list(req.fractions), req.temp_C)
         overall.update(one_phase="yes" if blend.one_phase else "no", basis=blend.basis,
                        note=blend.reason + "; " + blend.note)
-    found = _bridges(cat, req) if req.bridge else None
+    found, rules = _bridges(cat, req) if req.bridge else (None, ())
     return MiscibleResult(liquids=names, temp_C=req.temp_C, pairs=tuple(verdicts), blend=blend, bridges=found,
-                          **overall)
+                          audit=audit_block(rules, cat.tables_dir), **overall)
