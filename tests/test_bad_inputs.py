@@ -386,8 +386,7 @@ DOSE_CASES = [
     case("dose", "--formula", "{d}/formula_unknown.csv", *DOSE[3:], says=("--formula", "propylene glycool")),
     case("dose", "--formula", "{d}/formula_twice.csv", *DOSE[3:], says=("--formula", "given twice")),
     case("dose", "--formula", "{d}/formula_semicolon_wrong.csv", *DOSE[3:], says=("--formula", "row 1")),
-    case("dose", "--formula", "{d}/formula_folder.csv", *DOSE[3:], says=("--formula", "is a folder"),
-         xfail="jobs/dose.py calls a folder named .csv a file that does not exist"),
+    case("dose", "--formula", "{d}/formula_folder.csv", *DOSE[3:], says=("--formula", "is a folder")),
     case("dose", "--formula", "{d}/missing.csv", *DOSE[3:], says=("--formula", "does not exist")),
 ]
 
@@ -421,7 +420,7 @@ RANK_CASES = [
     case(*RANK, "--top", "x", says=("--top", "invalid int value")),
     case(*RANK, "--only", "ethanol", "--exclude", "ethanol", says=("--exclude", "both")),
     case(*RANK, "--only", "ethanol,nosuch liquid", says=("--only", "nosuch liquid")),
-    case(*RANK, "--only", "", says=("--only",), xfail="cli/rank.py reads an empty --only as not given"),
+    case(*RANK, "--only", "", says=("--only",)),
     case(*RANK, "--use", "cooking", says=("--use", "invalid choice")),
     case(*RANK, "--jurisdiction", "XX", says=("--jurisdiction", "invalid choice")),
     case(*RANK, "--worst-hazard", "9", says=("--worst-hazard", "invalid choice")),
@@ -446,7 +445,7 @@ BLEND_CASES = [
     case(*BLEND, "--top", "0", says=("--top", "at least 1")),
     case(*BLEND, "--sort", "price", says=("--sort", "invalid choice")),
     case("blend", "--hsp", "17,5,8", "--only", "ethanol", "--exclude", "ethanol", says=("--exclude", "both")),
-    case("blend", "--hsp", "17,5,8", "--only", "", says=("--only",), xfail="cli/blend.py reads an empty --only as not given"),
+    case("blend", "--hsp", "17,5,8", "--only", "", says=("--only",)),
 ]
 
 MISCIBLE_CASES = [
@@ -476,8 +475,7 @@ HLB_CASES = [
     case(*HLB, "--jurisdiction", "XX", says=("--jurisdiction", "EU")),
     case("hlb", "--target", "99", says=("--target", "0 to 40")),
     case("hlb", "--target", "nan", says=("--target",)),
-    case("hlb", "--smiles", "C1CC", says=("--smiles", "not a valid SMILES"),
-         xfail="jobs/hlb.py answers an unreadable SMILES with 'not applicable' and exit code 0"),
+    case("hlb", "--smiles", "C1CC", says=("--smiles", "not a valid SMILES")),
     case("hlb", "--series", "polysorbate 80", says=("--series", "two emulsifiers")),
     case("hlb", "--series", "sorbitan monooleate,polysorbate 80", "--n", "0", says=("--n",)),
     case("hlb", "--series", "sorbitan monooleate,polysorbate 80", "--span", "x", says=("--span",)),
@@ -506,8 +504,7 @@ EMULSION_CASES = [
     case(*EMULSION, "--shelf-days", "0", says=("--shelf-days", "above 0")),
     case(*EMULSION, "--jurisdiction", "XX", says=("--jurisdiction", "EU and/or US")),
     case(*EMULSION, "--category", "moon food", says=("--category", "no food category")),
-    case(*EMULSION, "--oil-density", "d-limonene=9", says=("--oil-density",),
-         xfail="jobs/emulsion.py takes an oil density of 9 g/cm3 (no range check)"),
+    case(*EMULSION, "--oil-density", "d-limonene=9", says=("--oil-density",)),
     case(*EMULSION, "--emulsifier", "nosuch gum", says=("--emulsifier", "nosuch gum")),
     case(*EMULSION, "--emulsifier-ratio", "-1", says=("--emulsifier-ratio",)),
 ]
@@ -635,20 +632,16 @@ LIBRARY_CASES = [
     lib("rank", "only", only=("ethanol", None), **CBD),
     lib("rank", "only", only=5, **CBD),
     lib("rank", "max_cost", max_cost=0, **CBD),
-    lib("rank", "food", xfail="jobs/rank.py reads the string 'no' as True", food="no", **CBD),
+    lib("rank", "food", food="no", **CBD),
     lib("rank", "nosuch", nosuch=1, **CBD),
     lib("blend", "max_components", max_components=2.7, **TYPED),
     lib("blend", "max_components", max_components="three", **TYPED),
     lib("blend", "jurisdiction", jurisdiction="XX", **TYPED),
     lib("blend", "min_fraction", min_fraction=-1, **TYPED),
-    lib("blend", "hsp", xfail="jobs/blend.py passes a number as HSP to science/target.py (TypeError)",
-        **{**TYPED, "hsp": -1}),
-    lib("blend", "bounds", xfail="jobs/blend.py iterates a number given as bounds (TypeError)", bounds=2.7,
-        **TYPED),
-    lib("blend", "reject_hsp", xfail="jobs/blend.py takes len() of a number given as reject_hsp (TypeError)",
-        reject_hsp=2.7, **TYPED),
-    lib("blend", "already", xfail="jobs/blend.py iterates a number given as already (TypeError)", already=2.7,
-        dose="0.1%", category="beverages", jurisdiction="EU", **TYPED),
+    lib("blend", "hsp", **{**TYPED, "hsp": -1}),
+    lib("blend", "bounds", bounds=2.7, **TYPED),
+    lib("blend", "reject_hsp", reject_hsp=2.7, **TYPED),
+    lib("blend", "already", already=2.7, dose="0.1%", category="beverages", jurisdiction="EU", **TYPED),
     lib("miscible", "liquids", liquids="water"),
     lib("miscible", "liquids", liquids=None),
     lib("miscible", "liquids", liquids=("water", None)),
@@ -671,7 +664,7 @@ LIBRARY_CASES = [
     lib("emulsion", "oil", **{**DRINK, "oil": None}),
     lib("emulsion", "jurisdictions", jurisdictions="XX", **DRINK),
     lib("emulsion", "dilution", dilution=-5, **DRINK),
-    lib("emulsion", "nano", xfail="jobs/emulsion.py reads the string 'no' as True", nano="no", **DRINK),
+    lib("emulsion", "nano", nano="no", **DRINK),
     lib("dose", "jurisdiction", **{**FORMULA_EU, "jurisdiction": "XX"}),
     lib("dose", "formula", **{**FORMULA_EU, "formula": None}),
     lib("dose", "formula", **{**FORMULA_EU, "formula": 5}),
@@ -804,7 +797,6 @@ def test_stdin_that_never_ends_is_refused(stdin, capsys, monkeypatch):
     assert "standard input: holds more than 20 MB" in capsys.readouterr().err
 
 
-@pytest.mark.xfail(strict=True, reason="jobs/dose.py reads a formula given as - as NAME=AMOUNT text")
 def test_dose_formula_from_stdin(stdin, capsys):
     stdin("name,mass_percent\npropylene glycol,90\nvanillin,10\n")
     assert main(["dose", "--formula", "-", "--dose", "0.1%", "--jurisdiction", "EU", "--json"]) == 0

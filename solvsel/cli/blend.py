@@ -94,7 +94,7 @@ def request_fields(args) -> dict:
     bp_lo, bp_hi = parse_range(args.bp_range, "bp_min_C")
     return dict(
         max_components=args.max_components,
-        only=parse_names(args.only, "only") if args.only else None,
+        only=parse_names(args.only, "only") if args.only is not None else None,
         exclude=parse_names(args.exclude, "exclude") if args.exclude else (),
         use=args.use, food=args.food, jurisdiction=args.jurisdiction, purpose=args.purpose,
         worst_flammable_category=args.worst_hazard,

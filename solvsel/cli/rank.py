@@ -67,7 +67,7 @@ def request_fields(args) -> dict:
     """The request fields of the options other than the target (``top`` only where given)."""
     bp_lo, bp_hi = parse_range(args.bp_range, "bp_min_C")
     return dict(
-        only=parse_names(args.only, "only") if args.only else None,
+        only=parse_names(args.only, "only") if args.only is not None else None,
         exclude=parse_names(args.exclude, "exclude") if args.exclude else (),
         use=args.use, food=args.food, jurisdiction=args.jurisdiction, purpose=args.purpose,
         worst_flammable_category=args.worst_hazard,

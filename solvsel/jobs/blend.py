@@ -59,7 +59,8 @@ from ..science.blends import (
 from ..science.formulation import Step
 from ..science.hansen import SCALE, as_hsp, convert_fractions
 from ..science.target import Target, target_from_hsp
-from ._base import build_request, catalog_or_default, check_choice, check_int, check_names, check_number, frame, target_of
+from ._base import (build_request, catalog_or_default, check_bool, check_choice, check_int, check_names, check_number,
+                    check_pairs, frame, target_of)
 from .parse import parse_amounts, parse_chain, parse_fraction_bound, parse_hsp
 from .pool import Candidate, LeftOut, Pool, PoolRequest, hazard_rank, solvent_named
 
@@ -172,7 +173,10 @@ class BlendRequest(PoolRequest):
             raise InputError("no target: give a solute of the tables, typed HSP (dD, dP, dH[, R0]) or a SMILES"
                              if not given else f"give one target, not {' and '.join(given)}",
                              param=given[1] if given else "solute", expected="one of solute, hsp, smiles or target")
+        for name in ("food", "one_phase_only", "keep_over", "shown_only"):
+            set_(self, name, check_bool(getattr(self, name), name))
         if self.hsp is not None:
+            _sequence(self.hsp, "hsp", "dD,dP,dH[,R0] in MPa^0.5")
             target_from_hsp(self.hsp)  # checks the numbers and their ranges
             set_(self, "hsp", tuple(float(v) for v in self.hsp))
         set_(self, "max_components", check_int(self.max_components, "max_components", 1, MAX_COMPONENTS))
@@ -181,10 +185,13 @@ class BlendRequest(PoolRequest):
         if self.min_fraction >= 0.5:
             raise InputError("the smallest fraction of a component must be below 0.5", param="min_fraction",
                              value=self.min_fraction, expected="a volume fraction from 0 to below 0.5")
+        bounds = _sequence(self.bounds or (), "bounds", "fraction bounds such as ethanol<=0.3")
         set_(self, "bounds", tuple(b if isinstance(b, FractionBound) else parse_fraction_bound(b, "bounds")
-                                   for b in (self.bounds or ())))
+                                   for b in bounds))
         set_(self, "rejects", check_names(self.rejects or (), "rejects") if self.rejects else ())
         spheres = self.reject_hsp or ()
+        if not isinstance(spheres, str):
+            spheres = _sequence(spheres, "reject_hsp", "dD,dP,dH[,R0] in MPa^0.5 for each solute to reject")
         if isinstance(spheres, str) or (len(spheres) and isinstance(spheres[0], (int, float))):
             spheres = (spheres,)  # one sphere given on its own
         set_(self, "reject_hsp", tuple(spheres))
@@ -203,10 +210,8 @@ class BlendRequest(PoolRequest):
 
     def _check_dose(self) -> None:
         if self.already is not None:
-            pairs = parse_amounts(self.already, "already") if isinstance(self.already, str) else (
-                self.already.items() if isinstance(self.already, Mapping) else self.already)
-            object.__setattr__(self, "already", tuple(
-                (str(n), check_number(v, "already", 0.0, unit="mg/kg")) for n, v in pairs))
+            pairs = parse_amounts(self.already, "already") if isinstance(self.already, str) else self.already
+            object.__setattr__(self, "already", check_pairs(pairs, "already", lo=0.0, unit="mg/kg") if pairs else ())
         if self.dose is None and self.chain is None:
             return
         if self.jurisdiction is None or self.category is None:
@@ -235,6 +240,13 @@ class BlendRequest(PoolRequest):
             v = parse_hsp(text, "reject_hsp", allow_r0=True)
             out.append((f"reject sphere {i} ({text})", _reject_hsp(v[:3], text), _reject_r0(v, text)))
         return out
+
+
+def _sequence(value, param: str, expected: str) -> tuple:
+    """``value`` as a tuple when it is a list, tuple or array of items (text or a number is refused)."""
+    if not isinstance(value, (list, tuple, np.ndarray)):
+        raise InputError(f"expected {expected}, got {value!r}", param=param, value=value, expected=expected)
+    return tuple(value)
 
 
 def _reject_hsp(values, label: str) -> np.ndarray:

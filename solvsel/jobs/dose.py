@@ -19,7 +19,7 @@ import os
 from dataclasses import dataclass, field
 from typing import Any, Mapping
 
-from ..data.catalog import Catalog
+from ..data.catalog import STDIN, Catalog
 from ..data.provenance import audit_block
 from ..errors import InputError, UnknownNameError
 from ..rules.cautions import DEFER, limit_cautions, solvent_cautions
@@ -36,8 +36,9 @@ FORMULA_DENSITY_RANGE = (0.3, 2.5)
 
 
 def _is_csv_path(text: str) -> bool:
-    """True when a formula given as text names a CSV file rather than ``NAME=AMOUNT`` items."""
-    return text.lower().endswith(".csv") or (os.path.isfile(text) and "=" not in text)
+    """True when a formula given as text names a CSV file (or standard input, ``-``) rather than
+    ``NAME=AMOUNT`` items."""
+    return text == STDIN or text.lower().endswith(".csv") or (os.path.isfile(text) and "=" not in text)
 
 
 def _amount_pairs(value, param: str, unit: str, hi: float | None = None) -> tuple[tuple[str, float], ...]:
@@ -68,7 +69,7 @@ def _formula_field(value) -> str | tuple[tuple[str, float], ...]:
     if isinstance(value, str):
         text = value.strip()
         if _is_csv_path(text):
-            if not os.path.isfile(text):
+            if text != STDIN and not os.path.exists(text):  # a folder or a device: the reader says what it is
                 raise InputError(f"formula file '{text}' does not exist", param="formula", value=text,
                                  expected="a CSV file with columns name and mass_percent (or volume_percent)")
             return text
@@ -118,8 +119,8 @@ class DoseRequest:
     formula : str or sequence of (str, float) or mapping
         the components in percent of the formula (``"propylene glycol=90, vanillin=10"``,
         ``[("propylene glycol", 90), ("vanillin", 10)]`` or a dict), or the path of a CSV file
-        with columns ``name`` and ``mass_percent`` (or ``volume_percent``), optional ``cas``
-        and ``density_g_cm3``; percentages adding up to less than 100 leave an unspecified rest
+        (``"-"``: standard input) with columns ``name`` and ``mass_percent`` (or ``volume_percent``),
+        optional ``cas`` and ``density_g_cm3``; percentages adding up to less than 100 leave an unspecified rest
     jurisdiction : str
         whose limits apply: a food-law jurisdiction of the tables (EU, US)
     by : {"mass", "volume"}

@@ -51,6 +51,7 @@ from ..science.hlb import normalize_fractions
 from ._base import (
     build_request,
     catalog_or_default,
+    check_bool,
     check_category,
     check_fraction,
     check_jurisdictions,
@@ -62,6 +63,11 @@ from ._base import (
 from .pool import check_purpose_text
 
 __all__ = ["EmulsionRequest", "EmulsionResult", "emulsion", "agent_limits", "EMULSION_CAUTIONS"]
+
+#: Densities [g/cm3] an oil of the oil phase may be given: the oils, flavour liquids and weighting
+#: agents of food work lie well inside it (about 0.8 for terpenes to about 1.35 for the heaviest
+#: weighting agents); a value outside is a typing slip or a wrong unit.
+OIL_DENSITY_RANGE = (0.5, 2.5)
 
 #: Cautions every emulsion result carries (common practice).
 EMULSION_CAUTIONS = (
@@ -195,7 +201,9 @@ class EmulsionRequest:
             put(self, name, check_number(getattr(self, name), name, 0.0, None, unit=unit, lo_open=True))
         put(self, "jurisdictions", check_jurisdictions(self.jurisdictions))
         put(self, "category", check_names(self.category, "category", allow_none=False)[0])
-        put(self, "oil_density", check_pairs(self.oil_density, "oil_density", lo=0.0, lo_open=True, unit="g/cm3"))
+        put(self, "oil_density", check_pairs(self.oil_density, "oil_density", lo=OIL_DENSITY_RANGE[0],
+                                             hi=OIL_DENSITY_RANGE[1], unit="g/cm3"))
+        put(self, "nano", check_bool(self.nano, "nano"))
         if self.emulsifier is not None:
             put(self, "emulsifier", check_names(self.emulsifier, "emulsifier", allow_none=False)[0])
         put(self, "emulsifier_ratio", check_number(self.emulsifier_ratio, "emulsifier_ratio", 0.0, None, unit="g/g",

@@ -39,9 +39,11 @@ from ..science.hlb import (
     oil_phase_required_hlb,
     pool_from_catalog,
 )
+from ..science.hlb import _mol as read_smiles
 from ._base import (
     build_request,
     catalog_or_default,
+    check_bool,
     check_category,
     check_fraction,
     check_int,
@@ -173,6 +175,10 @@ class HlbRequest:
         put(self, "purpose", None if self.purpose is None else check_purpose_text(self.purpose))
         if self.smiles is not None and not str(self.smiles).strip():
             raise InputError("expected a SMILES string, got nothing", param="smiles", value=self.smiles)
+        if self.smiles is not None:
+            read_smiles(self.smiles)  # an unreadable SMILES is an error; what the methods do not cover is not
+        for name in ("triples", "lower_is_better"):
+            put(self, name, check_bool(getattr(self, name), name))
         self._check_series()
         put(self, "scores", check_pairs(self.scores, "scores", numeric_keys=True))
         if not any(v is not None for v in (self.oil, self.target, self.smiles, self.series, self.scores)):

@@ -26,7 +26,7 @@ from ..rules.cautions import DEFER, solvent_cautions
 from ..rules.regulations import carrier_dose_check
 from ..science.formulation import Step
 from ..science.target import Target, solubility_in, target_from_hsp
-from ._base import build_request, catalog_or_default, check_int, frame, target_of
+from ._base import build_request, catalog_or_default, check_bool, check_int, frame, target_of
 from .parse import parse_chain
 from .pool import Candidate, LeftOut, Pool, PoolRequest, solvent_named
 
@@ -103,6 +103,8 @@ class RankRequest(PoolRequest):
 
     def __post_init__(self) -> None:
         set_ = object.__setattr__
+        for name in ("food", "all", "keep_over", "require_solubility"):
+            set_(self, name, check_bool(getattr(self, name), name))
         self.check_pool_fields()
         given = [k for k in ("solute", "hsp", "smiles", "target", "like") if getattr(self, k) is not None]
         if not given:
