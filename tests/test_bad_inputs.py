@@ -325,8 +325,7 @@ ESTIMATE_CASES = [
     case("estimate", "--file", "{d}/smiles_empty.txt", "--no-lookup", says=("--file", "no SMILES")),
     case("estimate", "--file", "{d}/smiles_bad.txt", "--no-lookup", says=("SMILES", "'C1CC' could not be read")),
     case("estimate", "CCO", "--params", "{d}/missing.csv", "--no-lookup", says=("--params", "not found")),
-    case("estimate", "CCO", "--params", "{d}/own_binary.csv", "--no-lookup", says=("--params",),
-         xfail="science/structure.py reads a parameter table as UTF-8 without a check (UnicodeDecodeError)"),
+    case("estimate", "CCO", "--params", "{d}/own_binary.csv", "--no-lookup", says=("--params",)),
     case("estimate", "CCO", "--category", "snack", says=("--category", "invalid choice")),
 ]
 
@@ -945,7 +944,6 @@ def test_report_set_replaced_as_a_whole_or_not_at_all(tmp_path, capsys, monkeypa
     assert snapshot(tmp_path) == before  # the old set whole, no temporary file or folder left
 
 
-@pytest.mark.xfail(strict=True, reason="jobs/report.py writes report CSV cells unchanged (=cmd... runs in a spreadsheet)")
 def test_report_csv_cells_are_not_formulas(tmp_path, capsys):
     mine = tmp_path / "mine.csv"
     mine.write_text(own("=cmd|' /C calc'!A0"), encoding="utf-8")
@@ -953,15 +951,12 @@ def test_report_csv_cells_are_not_formulas(tmp_path, capsys):
     assert "\n'=cmd" in (tmp_path / "r.csv").read_text(encoding="utf-8")
 
 
-@pytest.mark.xfail(strict=True, reason="science/sphere.py save_solute writes the solute's name unchanged")
 def test_fit_into_writes_formula_like_names_as_text(tmp_path, capsys):
     into = tmp_path / "mine.csv"
     assert main([*FIT, "--save-as", "@SUM(1+1)", "--into", str(into)]) == 0
     assert "\n'@SUM(1+1)," in into.read_text(encoding="utf-8")
 
 
-@pytest.mark.xfail(strict=True, reason="science/structure_training.py (_refit_paths) checks the folder exists but "
-                   "not that it can be written, so the whole refit runs first")
 def test_refit_into_a_read_only_folder_is_refused_before_the_fit(tmp_path, capsys, monkeypatch):
     from solvsel.science import structure_training
 

@@ -18,6 +18,7 @@ from pathlib import Path
 from typing import Any, Iterable
 
 from .._version import __version__
+from ..data.catalog import spreadsheet_safe
 from ..data.provenance import audit_block
 from ..errors import InputError, UnknownNameError
 
@@ -178,8 +179,8 @@ def write_report(out: str | Path, title: str, command: str, text: str, data: Any
     for r in rows:
         cols += [c for c in r if c not in cols]
     buf = io.StringIO()
-    w = csv.DictWriter(buf, fieldnames=cols, lineterminator="\n")
-    w.writeheader()
-    w.writerows(rows)
+    w = csv.writer(buf, lineterminator="\n")  # text a spreadsheet would run as a formula is written as text
+    w.writerow([spreadsheet_safe(c) for c in cols])
+    w.writerows([spreadsheet_safe(r.get(c, "")) for c in cols] for r in rows)
     paths[2].write_text(buf.getvalue(), encoding="utf-8")
     return paths

@@ -1387,9 +1387,10 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
     import tempfile
     from pathlib import Path
 
-    from ..data.catalog import TABLES_DIR, normalize_name, read_table
+    from ..data.catalog import TABLES_DIR, normalize_name, read_table, spreadsheet_safe
     from ..errors import TableError
 
+    cells = {k: spreadsheet_safe(v) for k, v in row.items()}  # a name like =1+1 stays text in a spreadsheet
     tdir = Path(tables_dir) if tables_dir is not None else TABLES_DIR
     p = Path(path)
     if p.exists() and not p.is_file():
@@ -1416,7 +1417,7 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
                 raise InputError(f"{p} already has a solute of that name, {row['name']!r} (row {i}); "
                                  "choose another name; nothing was written", param="save_as", value=row["name"])
         buf = io.StringIO()
-        csv.DictWriter(buf, fieldnames=header, lineterminator="\n", extrasaction="ignore").writerow(row)
+        csv.DictWriter(buf, fieldnames=header, lineterminator="\n", extrasaction="ignore").writerow(cells)
         sep = b"" if old.endswith(b"\n") or not old else b"\n"
         new = old + sep + buf.getvalue().encode("utf-8")
         what = "appended"
@@ -1427,7 +1428,7 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
         buf = io.StringIO()
         w = csv.DictWriter(buf, fieldnames=header, lineterminator="\n", extrasaction="ignore")
         w.writeheader()
-        w.writerow(row)
+        w.writerow(cells)
         new = buf.getvalue().encode("utf-8")
         what = "created"
     parent = p.resolve().parent

@@ -54,12 +54,14 @@ References
 from __future__ import annotations
 
 import csv
+import io
 import math
 from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
 from types import SimpleNamespace
 
+from ..data.catalog import read_user_text
 from ..errors import InputError, MissingDataError, MissingExtraError, OutOfRangeError, TableError
 
 __all__ = [
@@ -1099,39 +1101,38 @@ def load_params(path=None) -> OwnParams:
                          expected="a parameter table from a refit")
     terms, coefs, intercept, square, size, srcs = [], [], None, (False, False, False), None, set()
     meta = {}
-    with open(p, newline="", encoding="utf-8") as fh:
-        reader = csv.DictReader(fh)
-        missing = [c for c in _PARAM_COLUMNS if c not in (reader.fieldnames or [])]
-        if missing:
-            raise TableError(p, f"missing columns {', '.join(missing)} (expected {', '.join(_PARAM_COLUMNS)})",
-                             param="params")
-        for row_no, row in enumerate(reader, start=2):
+    reader = csv.DictReader(io.StringIO(read_user_text(p, param="params"), newline=""))
+    missing = [c for c in _PARAM_COLUMNS if c not in (reader.fieldnames or [])]
+    if missing:
+        raise TableError(p, f"missing columns {', '.join(missing)} (expected {', '.join(_PARAM_COLUMNS)})",
+                         param="params")
+    for row_no, row in enumerate(reader, start=2):
+        try:
+            vals = np.array([float(row[c]) for c in ("coef_dD", "coef_dP", "coef_dH")])
+        except ValueError:
+            raise TableError(p, "coef_dD, coef_dP, coef_dH must be numbers", row=row_no, column="coef_dD",
+                             param="params") from None
+        kind = row["kind"]
+        srcs.update(s for s in (row.get("source") or "").split(";") if s)
+        if kind in ("atom", "match", "special", "polar"):
             try:
-                vals = np.array([float(row[c]) for c in ("coef_dD", "coef_dP", "coef_dH")])
+                owned = int(row["owned"] or 0)
             except ValueError:
-                raise TableError(p, "coef_dD, coef_dP, coef_dH must be numbers", row=row_no, column="coef_dD",
-                                 param="params") from None
-            kind = row["kind"]
-            srcs.update(s for s in (row.get("source") or "").split(";") if s)
-            if kind in ("atom", "match", "special", "polar"):
-                try:
-                    owned = int(row["owned"] or 0)
-                except ValueError:
-                    raise TableError(p, "expected an integer", row=row_no, column="owned", param="params") from None
-                terms.append((row["term"], row["smarts"], kind, owned))
-                coefs.append(vals)
-            elif kind == "size":
-                size = vals
-            elif kind == "intercept":
-                intercept = vals
-            elif kind == "transform":
-                square = tuple(bool(v) for v in vals)
-            elif kind == "meta":
-                meta[row["term"]] = vals
-            else:
-                raise TableError(p, f"unknown kind '{kind}' (atom, match, special, polar, size, intercept, transform, "
-                                 "meta)",
-                                 row=row_no, column="kind", param="params")
+                raise TableError(p, "expected an integer", row=row_no, column="owned", param="params") from None
+            terms.append((row["term"], row["smarts"], kind, owned))
+            coefs.append(vals)
+        elif kind == "size":
+            size = vals
+        elif kind == "intercept":
+            intercept = vals
+        elif kind == "transform":
+            square = tuple(bool(v) for v in vals)
+        elif kind == "meta":
+            meta[row["term"]] = vals
+        else:
+            raise TableError(p, f"unknown kind '{kind}' (atom, match, special, polar, size, intercept, transform, "
+                             "meta)",
+                             row=row_no, column="kind", param="params")
     if intercept is None or size is None or not terms:
         raise TableError(p, "needs term rows, one 'size' row and one 'intercept' row", param="params")
     cv = {}

@@ -20,6 +20,7 @@ import csv
 from functools import lru_cache
 from pathlib import Path
 
+from ..data.catalog import check_write_target
 from ..errors import InputError, MissingExtraError
 from .structure import (
     ALPHA, CLASSES, EPSILON, KERNEL_LAMBDA, KERNEL_POWER, METHODS, OWN_METHOD, OWN_TERMS, _PARAM_COLUMNS, _U,
@@ -569,8 +570,8 @@ _REFIT_SOURCE = "derived_gc_fit"
 
 
 def _refit_paths(out, force: bool) -> list[Path]:
-    """The three files a refit writes, checked: a .csv name, an existing folder, no file overwritten
-    unless ``force``."""
+    """The three files a refit writes, checked: a .csv name, an existing folder that can be written, no
+    file overwritten unless ``force``."""
     out = Path(out)
     if out.suffix.lower() != ".csv":
         raise InputError(f"the parameter file must end in .csv, got '{out}'", param="refit", value=str(out),
@@ -581,8 +582,8 @@ def _refit_paths(out, force: bool) -> list[Path]:
         if exist:
             raise InputError(f"{', '.join(exist)} already exist; choose another name, or allow overwriting",
                              param="force", value=False, expected="a file name not in use, or force")
-    if not out.parent.is_dir():
-        raise InputError(f"the folder '{out.parent}' does not exist", param="refit", value=str(out))
+    for p in paths:  # before the fit: an existing folder that can be written, no folder or device in the way
+        check_write_target(p, param="refit")
     return paths
 
 
