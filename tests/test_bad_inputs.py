@@ -621,6 +621,7 @@ LIQUIDS = {"liquids": ("water", "ethanol")}
 LIBRARY_CASES = [
     lib("rank", "solute", solute=5),
     lib("rank", "hsp", hsp="17,5,8"),
+    lib("rank", "hsp", hsp=-1),
     lib("rank", "solute", hsp=None, solute=None),
     lib("rank", "temp_C", temp_C=None, **CBD),
     lib("rank", "temp_C", temp_C="warm", **CBD),

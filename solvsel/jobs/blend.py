@@ -30,7 +30,7 @@ solvent:
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
-from typing import Any, Callable, Mapping
+from typing import Any, Callable
 
 import numpy as np
 
@@ -176,7 +176,6 @@ class BlendRequest(PoolRequest):
         for name in ("food", "one_phase_only", "keep_over", "shown_only"):
             set_(self, name, check_bool(getattr(self, name), name))
         if self.hsp is not None:
-            _sequence(self.hsp, "hsp", "dD,dP,dH[,R0] in MPa^0.5")
             target_from_hsp(self.hsp)  # checks the numbers and their ranges
             set_(self, "hsp", tuple(float(v) for v in self.hsp))
         set_(self, "max_components", check_int(self.max_components, "max_components", 1, MAX_COMPONENTS))

@@ -39,7 +39,7 @@ from ..science.hlb import (
     oil_phase_required_hlb,
     pool_from_catalog,
 )
-from ..science.hlb import _mol as read_smiles
+from ..science.hlb import read_smiles
 from ._base import (
     build_request,
     catalog_or_default,

@@ -271,7 +271,8 @@ def _chem():
     return need("rdkit.Chem", "structure", "HLB from a structure")
 
 
-def _mol(smiles: str, param: str = "smiles"):
+def read_smiles(smiles: str, param: str = "smiles"):
+    """The RDKit molecule of ``smiles``; an unreadable one is an InputError on ``param``."""
     Chem = _chem()
     if not isinstance(smiles, str) or not smiles.strip():
         raise InputError(f"expected a SMILES string, got {smiles!r}", param=param, value=smiles)
@@ -377,7 +378,7 @@ def griffin_hlb_from_smiles(smiles: str) -> GriffinResult:
     Chem = _chem()
     MolWt = need("rdkit.Chem.Descriptors", "structure", "HLB from a structure").MolWt
 
-    mol = _mol(smiles)
+    mol = read_smiles(smiles)
     if any(a.GetFormalCharge() != 0 for a in mol.GetAtoms()):
         raise InputError(
             f"'{smiles}' is charged: Griffin's formula applies to nonionic emulsifiers; "
@@ -491,7 +492,7 @@ def davies_groups_from_smiles(smiles: str) -> dict[str, int]:
     """
     Chem = _chem()
 
-    mol = _mol(smiles)
+    mol = read_smiles(smiles)
     counts: dict[str, int] = {}
     used: set[int] = set()
 

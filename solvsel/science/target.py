@@ -132,6 +132,9 @@ def target_from_hsp(values, name: str = "typed target") -> Target:
     >>> t.hsp.tolist(), t.r0, t.basis
     ([17.0, 3.0, 8.0], 8.0, 'typed')
     """
+    if isinstance(values, (str, bytes)) or not hasattr(values, "__len__"):
+        raise InputError(f"expected dD,dP,dH[,R0] as 3 or 4 numbers, got {values!r}", param="hsp", value=values,
+                         expected="dD,dP,dH[,R0] in MPa^0.5")
     vals = list(values)
     if len(vals) not in (3, 4):
         raise InputError(f"expected dD,dP,dH[,R0] (3 or 4 numbers), got {len(vals)}", param="hsp", value=values,
