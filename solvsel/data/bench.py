@@ -36,7 +36,6 @@ records and leaves the Hansen arithmetic (a blend's parameters) to
 
 from __future__ import annotations
 
-import csv
 import math
 from dataclasses import dataclass
 from pathlib import Path

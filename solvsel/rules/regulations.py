@@ -1329,18 +1329,10 @@ def _per_ingredient(formula, checks: Sequence[LimitCheck], names, no_data: Seque
     return out
 
 
-def check_dose(
-    cat,
-    formula,
-    steps: Sequence,
-    jurisdiction: str,
-    category: str,
-    already: Mapping[str, float] | None = None,
-    residues: Mapping[str, float] | None = None,
-    claims: Sequence[str] | None = None,
-    formula_density: float | None = None,
-    purpose: str | None = None,
-) -> DoseCheck:
+def check_dose(cat, formula, steps: Sequence, jurisdiction: str, category: str,
+               already: Mapping[str, float] | None = None, residues: Mapping[str, float] | None = None,
+               claims: Sequence[str] | None = None, formula_density: float | None = None,
+               purpose: str | None = None) -> DoseCheck:
     """Levels of a formula along a dilution chain, checked against every limit that applies.
 
     Parameters
