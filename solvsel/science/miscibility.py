@@ -252,6 +252,28 @@ def _at_temperature(sa, sb, temp_C):
     return ha, va, hb, vb, notes or f"HSP shifted to {temp_C:g} C (Hansen and Beerbower 1971)"
 
 
+def _split_volumes(ha, va, hb, vb, temp_C):
+    """Binodal of a pair in one fixed orientation, whatever the order the pair was asked in.
+
+    The liquid of smaller molar volume is the lattice site and liquid 1 of
+    :func:`solvsel.science.hansen.binodal` (ties by HSP), so that the tiny
+    solubility (that of the larger molecule in the smaller) is the one held
+    near 0, where a float keeps it, not near 1, where it would round away.
+
+    Returns
+    -------
+    (Binodal, b_in_a, a_in_b)
+        the binodal of the fixed orientation and the two solubilities as
+        volume fractions (nan when the pair does not split)
+    """
+    flip = (vb, tuple(hb)) < (va, tuple(ha))
+    h1, v1, h2, v2 = (hb, vb, ha, va) if flip else (ha, va, hb, vb)
+    chi = float(hansen.chi_flory_huggins(h1, h2, v1, temp_C))
+    b = hansen.binodal(chi, 1.0, v2 / v1)
+    two_in_one, one_in_two = b.phi_a, 1.0 - b.phi_b
+    return (b, one_in_two, two_in_one) if flip else (b, two_in_one, one_in_two)
+
+
 def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
     r"""Flory-Huggins prediction for two liquid records (no table look-up).
 
@@ -260,9 +282,10 @@ def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
         \chi_c = \tfrac12\left(1 + \sqrt{V_a/V_b}\right)^2
 
     Miscible in all proportions when :math:`\chi \le \chi_c`; otherwise the
-    binodal of :func:`solvsel.science.hansen.binodal` (with :math:`N_b = V_b/V_a`)
-    gives the mutual solubilities, and the pair is "no" when both are below
-    :data:`IMMISCIBLE_BELOW_WT`.
+    binodal of :func:`solvsel.science.hansen.binodal` gives the mutual
+    solubilities (solved with the smaller molecule as the lattice site, so the
+    answer does not depend on the order of the two liquids), and the pair is
+    "no" when both are below :data:`IMMISCIBLE_BELOW_WT`.
 
     Parameters
     ----------
@@ -272,12 +295,23 @@ def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
     temp_C : float
         temperature [C]; away from 25 C both liquids' HSP and molar volumes
         are shifted first (:func:`solvsel.science.target.solvent_at`)
+
+    Examples
+    --------
+    Ethylene glycol and sunflower oil split whichever is named first (the
+    glycol's solubility in the oil is the same both ways):
+
+    >>> from solvsel.data.catalog import load_catalog
+    >>> cat = load_catalog()
+    >>> g, o = cat.solvent("ethylene glycol"), cat.solvent("sunflower oil")
+    >>> ab, ba = predict_pair(g, o), predict_pair(o, g)
+    >>> ab.window["a_in_b_max"] == ba.window["b_in_a_max"]
+    True
     """
     ha, va, hb, vb, shift_note = _at_temperature(sa, sb, temp_C)
     chi = float(hansen.chi_flory_huggins(ha, hb, va, temp_C))
-    nb = vb / va
-    b = hansen.binodal(chi, 1.0, nb)
-    chic = b.chi_critical
+    chic = float(hansen.chi_critical(va, vb))
+    b, phi_ba, phi_ab = _split_volumes(ha, va, hb, vb, temp_C)
     names = (sa.name, sb.name)
     cas = (sa.cas or "", sb.cas or "")
     base_note = "predicted by Flory-Huggins from HSP; hydrogen-bonding liquids (water, glycols) are poorly predicted"
@@ -285,17 +319,17 @@ def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
         base_note += "; " + shift_note
     if not b.split:
         return PairVerdict(names, "yes", "predicted", {"fraction": "mass fraction of liquid b", "one_phase_ranges": [[0.0, 1.0]], "basis": "predicted"}, chi, chic, (), base_note, temp_C, cas)
-    if not math.isfinite(b.phi_a) or not (0.0 < b.phi_a < b.phi_b < 1.0):
+    if not (math.isfinite(b.phi_a) and 0.0 < b.phi_a < b.phi_b < 1.0):
         return PairVerdict(names, "partial", "predicted", None, chi, chic, (), base_note + "; the binodal did not converge, window unknown", temp_C, cas)
     if not b.success:
         base_note += "; just above the critical point, the window is approximate"
     rho_a, rho_b = _num(sa.density_g_cm3), _num(sb.density_g_cm3)
-    b_in_a = _mass_from_volume(b.phi_a, rho_b, rho_a)
-    a_in_b = _mass_from_volume(1.0 - b.phi_b, rho_a, rho_b)
+    b_in_a = _mass_from_volume(phi_ba, rho_b, rho_a)
+    a_in_b = _mass_from_volume(phi_ab, rho_a, rho_b)
     if b_in_a is None:  # no densities: report volume fractions as they are
-        b_in_a, a_in_b = b.phi_a, 1.0 - b.phi_b
+        b_in_a, a_in_b = phi_ba, phi_ab
     w = _window(b_in_a, a_in_b, rho_a, rho_b, "predicted")
-    w["b_in_a_max_volume"], w["a_in_b_max_volume"] = b.phi_a, 1.0 - b.phi_b
+    w["b_in_a_max_volume"], w["a_in_b_max_volume"] = phi_ba, phi_ab
     verdict = "no" if max(b_in_a, a_in_b) * 100.0 < IMMISCIBLE_BELOW_WT else "partial"
     return PairVerdict(names, verdict, "predicted", w, chi, chic, (), base_note, temp_C, cas)
 
