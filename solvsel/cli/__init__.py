@@ -104,12 +104,18 @@ def build_parser() -> argparse.ArgumentParser:
         "--own-solutes", metavar="CSV", action="append", default=[],
         help="your own solutes table (same columns as tables/solutes.csv; - for stdin)",
     )
+    parser.add_argument("--workspace", metavar="FILE", help=WORKSPACE_HELP)
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name in COMMANDS:
         module = importlib.import_module(f"{__name__}.{name}")
         sp = module.register(sub)
+        sp.add_argument("--workspace", metavar="FILE", default=argparse.SUPPRESS, help=WORKSPACE_HELP)
         sp.set_defaults(func=module.run)
     return parser
+
+
+WORKSPACE_HELP = ("a workspace file (created if missing): its target, constraints and own rows fill the options "
+                  "not given, and the command and its answer are recorded in it with the time")
 
 
 def execute(argv: list[str] | None = None) -> int:
@@ -140,7 +146,7 @@ def main(argv: list[str] | None = None) -> int:
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", SolvselNote)
         try:
-            return execute(argv)
+            return _run(argv)
         except SolvselError as exc:
             return _fail(exc, as_json)
         except BrokenPipeError:  # e.g. piped into head
@@ -150,6 +156,24 @@ def main(argv: list[str] | None = None) -> int:
                                    path=exc.filename, value=exc.filename), as_json)
         finally:
             _show_notes(caught)
+
+
+def _run(argv: list[str]) -> int:
+    """Run ``argv``; with ``--workspace FILE`` (before or after the command) in the workspace."""
+    if not any(a == "--workspace" or a.startswith("--workspace=") for a in argv):
+        return execute(argv)
+    parser = build_parser()
+    args = parser.parse_known_args(argv)[0]
+    if not getattr(args, "workspace", None) or args.command is None:
+        return execute(argv)
+    from ._workspace import run_in_workspace
+
+    try:
+        return run_in_workspace(parser, args, argv, execute)
+    except SolvselError as exc:
+        if getattr(exc, "cli_command", None) is None:
+            exc.cli_command = args.command
+        raise
 
 
 def _fail(exc: SolvselError, as_json: bool) -> int:

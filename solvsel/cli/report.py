@@ -49,7 +49,7 @@ def _capture(argv):
     return rc, out.getvalue()
 
 
-def _split(args) -> tuple[bool, str | None, list[str]]:
+def split_args(args) -> tuple[bool, str | None, list[str]]:
     """``--force`` and ``--title`` given after OUT.md (they arrive at the head of the command), and the command."""
     force, title, cmd = args.force, args.title, list(args.cmd)
     while cmd and (cmd[0] == "--force" or cmd[0].startswith("--title")):
@@ -69,7 +69,7 @@ def run(args) -> int:
     from ..data.catalog import STDIN, check_write_target
     from ..errors import InputError
 
-    force, title, cmd = _split(args)
+    force, title, cmd = split_args(args)
     if not cmd or cmd[0] in ("report", "demo"):
         raise InputError("give the command to report on after the report's file name, e.g. "
                          "solvsel report out.md rank --solute cannabidiol --food", param="cmd",
