@@ -12,7 +12,7 @@ from typing import Any, Mapping
 
 from ..data.catalog import number_or_none as _number
 from ..errors import InputError, SolvselError, UnknownNameError
-from .hazards import hazard_class
+from .hazards import HEALTH_LEVELS, HEALTH_STATEMENTS, hazard_class, health_hazard
 from .regulations import USES, _ETHANOL_CAS, DoseCheck, _ethanol_strength, _get, _text, limits
 
 __all__ = ["DEFER", "solvent_cautions", "limit_cautions", "row_cautions"]
@@ -61,7 +61,8 @@ def solvent_cautions(solvent, use: str | None = None, cat=None) -> list[str]:
                          expected="one of " + ", ".join(USES))
     name = _text(_get(solvent, "name")) or "this liquid"
     cas = _text(_get(solvent, "cas"))
-    out = _fire_and_pressure_cautions(solvent, name, cas, use) + _toxicity_cautions(name, cas, cat)
+    out = (_fire_and_pressure_cautions(solvent, name, cas, use) + _health_cautions(solvent, name, cat)
+           + _toxicity_cautions(name, cas, cat))
     if cas == _ETHANOL_CAS or _ethanol_strength(name) is not None:
         out.append(
             "ethanol: denatured ethanol may not remain in food or flavour extracts and its denaturant (e.g. "
@@ -117,6 +118,31 @@ def _fire_and_pressure_cautions(solvent, name: str, cas: str, use: str | None) -
             "and ventilation in the room; never in unrated or household equipment."
         )
     return out
+
+
+#: Health hazards from this level of :data:`~solvsel.rules.hazards.HEALTH_LEVELS` up ("harmful") carry a caution.
+HEALTH_CAUTION_LEVEL = 2
+
+
+def _health_cautions(solvent, name: str, cat) -> list[str]:
+    """The liquid's health hazard statements (harmonised classification) from "harmful" up, with the
+    reference library's exposure limit."""
+    try:
+        hh = health_hazard(cat, solvent)
+    except SolvselError:  # a broken health table: the caution must never hide the result
+        return []
+    if hh is None or hh.level < HEALTH_CAUTION_LEVEL:
+        return []
+    said = "; ".join(f"{h} {HEALTH_STATEMENTS.get(h[:4], '')}".strip() for h in hh.statements)
+    where = ("harmonised classification, Regulation (EC) No 1272/2008 Annex VI" if hh.basis == "harmonised"
+             else "published safety data compilation")
+    if hh.confidence != "checked":
+        where += ", recalled: verify"
+    text = f"{name}: health hazard '{HEALTH_LEVELS[hh.level]}' ({where}): {said}."
+    limits = hh.exposure_limits or {}
+    if "TWA" in limits:
+        text += f" Occupational exposure limit {limits['TWA'][0]:g} {limits['TWA'][1]} (8-hour TWA, {limits['source']})."
+    return [text]
 
 
 def _toxicity_cautions(name: str, cas: str, cat) -> list[str]:

@@ -1,21 +1,55 @@
-"""GHS physical-hazard classes of liquids and liquefied gases from flash point and boiling point.
+"""GHS hazards of liquids: the physical-hazard class from flash point and boiling point, and the
+health hazards (harmonised statements, a worst-hazard scale of our own, exposure limits and
+carcinogen listings).
+
+Health hazards come from ``tables/health_hazards.csv`` (the harmonised classification of
+Regulation (EC) No 1272/2008 Annex VI [2]_, each row with its source and whether it was checked),
+and, for occupational exposure limits and carcinogen listings, from the reference library
+``chemicals`` (its ``safety`` module; each value names the list it comes from).
+
+The worst health hazard of a liquid is put on a plain ordered scale of our own
+(:data:`HEALTH_LEVELS`), from its statements:
+
+=====  ==================  ==============================================================
+level  name                statements
+=====  ==================  ==============================================================
+0      none                no health hazard statement
+1      irritant            H315, H317, H319, H335, H336 (skin, eye, airway irritation,
+                           skin sensitisation, drowsiness)
+2      harmful             H302, H312, H332 (acute toxicity category 4), H304
+                           (aspiration), H371, H373 (organ damage, category 2)
+3      toxic or corrosive  H300, H301, H310, H311, H330, H331 (acute toxicity 1-3),
+                           H314, H318 (corrosive, serious eye damage), H334, H370, H372
+4      suspected CMR       H341, H351, H361 (suspected mutagen, carcinogen, reprotoxicant),
+                           H362
+5      CMR                 H340, H350, H360 (mutagen, carcinogen, reprotoxicant,
+                           categories 1A and 1B)
+=====  ==================  ==============================================================
+
+A statement with a suffix (H361d, H360FD, H350i) counts as its three-digit code.
 
 References
 ----------
 .. [1] United Nations. *Globally Harmonized System of Classification and
    Labelling of Chemicals (GHS)*, Rev. 10, 2023, chapter 2.6 (flammable
-   liquids) and chapters 2.2 / 2.5 (flammable gases, gases under pressure).
+   liquids) and chapters 2.2 / 2.5 (flammable gases, gases under pressure);
+   annex 3 (hazard statements).
+.. [2] Regulation (EC) No 1272/2008 of the European Parliament and of the
+   Council on classification, labelling and packaging of substances and
+   mixtures, Annex VI Part 3 Table 3 (harmonised classification).
 """
 
 from __future__ import annotations
 
 import math
 from dataclasses import asdict, dataclass
+from functools import lru_cache
 from typing import Any
 
+from ..errors import InputError, UnknownNameError
 
-__all__ = ["Hazard", "hazard_class"]
-
+__all__ = ["Hazard", "hazard_class", "HealthHazard", "HEALTH_LEVELS", "health_hazard", "health_level",
+           "check_health_level", "exposure_limits", "carcinogen_listings", "HEALTH_STATEMENTS"]
 
 
 @dataclass(frozen=True)
@@ -142,3 +176,191 @@ def hazard_class(flash_C: float | None, bp_C: float | None, flammable: bool | No
     return Hazard("flammable liquid", cat_, h, word, f"flammable liquid, GHS category {cat_} ({h} {text.lower()})", basis)
 
 
+
+
+# ----------------------------------------------------------------------------- health
+
+#: The worst-health-hazard scale, mildest first (see the module docstring).
+HEALTH_LEVELS = ("none", "irritant", "harmful", "toxic or corrosive", "suspected CMR", "CMR")
+
+#: Texts of the GHS health hazard statements (GHS Rev. 10, annex 3) the tables use.
+HEALTH_STATEMENTS = {
+    "H300": "fatal if swallowed", "H301": "toxic if swallowed", "H302": "harmful if swallowed",
+    "H304": "may be fatal if swallowed and enters airways", "H310": "fatal in contact with skin",
+    "H311": "toxic in contact with skin", "H312": "harmful in contact with skin",
+    "H314": "causes severe skin burns and eye damage", "H315": "causes skin irritation",
+    "H317": "may cause an allergic skin reaction", "H318": "causes serious eye damage",
+    "H319": "causes serious eye irritation", "H330": "fatal if inhaled", "H331": "toxic if inhaled",
+    "H332": "harmful if inhaled", "H334": "may cause allergy or asthma symptoms or breathing difficulties if inhaled",
+    "H335": "may cause respiratory irritation", "H336": "may cause drowsiness or dizziness",
+    "H340": "may cause genetic defects", "H341": "suspected of causing genetic defects",
+    "H350": "may cause cancer", "H351": "suspected of causing cancer",
+    "H360": "may damage fertility or the unborn child", "H361": "suspected of damaging fertility or the unborn child",
+    "H362": "may cause harm to breast-fed children", "H370": "causes damage to organs",
+    "H371": "may cause damage to organs", "H372": "causes damage to organs through prolonged or repeated exposure",
+    "H373": "may cause damage to organs through prolonged or repeated exposure",
+}
+
+_LEVEL_OF = {
+    **dict.fromkeys(("H315", "H317", "H319", "H335", "H336"), 1),
+    **dict.fromkeys(("H302", "H312", "H332", "H304", "H371", "H373"), 2),
+    **dict.fromkeys(("H300", "H301", "H310", "H311", "H330", "H331", "H314", "H318", "H334", "H370", "H372"), 3),
+    **dict.fromkeys(("H341", "H351", "H361", "H362"), 4),
+    **dict.fromkeys(("H340", "H350", "H360"), 5),
+}
+
+
+def health_level(statements) -> int:
+    """Level on :data:`HEALTH_LEVELS` of a set of health hazard statements (0 when none).
+
+    >>> HEALTH_LEVELS[health_level(["H301", "H311", "H331", "H370"])]
+    'toxic or corrosive'
+    >>> HEALTH_LEVELS[health_level(["H351"])], health_level([])
+    ('suspected CMR', 0)
+    """
+    return max((_LEVEL_OF.get(str(h).strip()[:4].upper(), 0) for h in statements), default=0)
+
+
+def check_health_level(value, param: str = "max_health_hazard") -> str:
+    """A level of :data:`HEALTH_LEVELS` given by name (any case) or by its number 0-5.
+
+    >>> check_health_level("Harmful"), check_health_level(4)
+    ('harmful', 'suspected CMR')
+    """
+    expected = "one of " + ", ".join(HEALTH_LEVELS) + " (or 0 to 5)"
+    text = str(value).strip()
+    if text.isdigit() and int(text) < len(HEALTH_LEVELS) and not isinstance(value, bool):
+        return HEALTH_LEVELS[int(text)]
+    for level in HEALTH_LEVELS:
+        if text.casefold() == level.casefold():
+            return level
+    raise InputError(f"expected {expected}, got '{value}'", param=param, value=value, expected=expected)
+
+
+@dataclass(frozen=True)
+class HealthHazard:
+    """The health hazards of one liquid.
+
+    ``statements`` are the GHS health hazard statements (empty: none), ``basis`` "harmonised"
+    (Regulation (EC) No 1272/2008 Annex VI), "none harmonised" or "safety data compilation",
+    ``confidence`` "checked" or "from memory", ``level`` / ``category`` the worst hazard on
+    :data:`HEALTH_LEVELS`; ``exposure_limits`` the occupational exposure limits
+    (``{"TWA": [value, unit], "STEL": ..., "Ceiling": ..., "source": ...}``) and
+    ``carcinogen_listings`` the listings (list name -> status) of the reference library.
+    """
+
+    name: str
+    cas: str
+    statements: tuple[str, ...]
+    level: int
+    category: str
+    basis: str
+    confidence: str
+    sources: tuple[str, ...]
+    note: str = ""
+    exposure_limits: dict | None = None
+    carcinogen_listings: dict | None = None
+
+    @property
+    def label(self) -> str:
+        """The worst hazard and its statements in a few words ("suspected CMR (H351)")."""
+        if not self.statements:
+            return "none classified" if self.basis != "none harmonised" else "no harmonised classification"
+        return f"{self.category} ({', '.join(self.statements)})"
+
+    def to_dict(self) -> dict[str, Any]:
+        d = asdict(self)
+        d["statements"] = list(self.statements)
+        d["sources"] = list(self.sources)
+        d["texts"] = {h: HEALTH_STATEMENTS.get(h[:4], "") for h in self.statements}
+        d["label"] = self.label
+        return d
+
+
+def _listed(values: str) -> tuple[str, ...]:
+    return tuple(v.strip() for v in str(values or "").split(";") if v.strip())
+
+
+def health_hazard(cat, solvent) -> HealthHazard | None:
+    """The health hazards of a liquid (a record or mapping with ``name`` and ``cas``) from
+    ``tables/health_hazards.csv`` (by CAS, else by name), with the reference library's exposure
+    limits and carcinogen listings; None when the table has no row for it (a user's or library
+    liquid).
+
+    >>> from solvsel.data.catalog import load_catalog
+    >>> hh = health_hazard(load_catalog(), {"name": "dichloromethane", "cas": "75-09-2"})
+    >>> hh.statements, hh.category, hh.basis
+    (('H351',), 'suspected CMR', 'harmonised')
+    """
+    get = solvent.get if isinstance(solvent, dict) else (lambda k, d=None: getattr(solvent, k, d))
+    name, cas = str(get("name", "") or ""), str(get("cas", "") or "")
+    if cat is None:
+        from ..data.catalog import load_catalog
+
+        cat = load_catalog()
+    table = cat.table("health_hazards")
+    hits = table[table["cas"] == cas] if cas else table.iloc[0:0]
+    if hits.empty:
+        try:
+            hits = table.iloc[[cat.find_index("health_hazards", name)]] if name.strip() else hits
+        except UnknownNameError:
+            return None
+    if hits.empty:
+        return None
+    row = hits.iloc[0]
+    statements = _listed(row["statements"])
+    level = health_level(statements)
+    return HealthHazard(str(row["name"]), cas, statements, level, HEALTH_LEVELS[level], str(row["basis"]),
+                        str(row["confidence"]), _listed(row["source"]), str(row.get("note") or ""),
+                        exposure_limits(cas) if cas else None, carcinogen_listings(cas) if cas else None)
+
+
+@lru_cache(maxsize=512)
+def _limits(cas: str) -> tuple:
+    from chemicals import safety
+
+    out = []
+    for key, fn, methods in (("TWA", safety.TWA, safety.TWA_methods), ("STEL", safety.STEL, safety.STEL_methods),
+                             ("Ceiling", safety.Ceiling, safety.Ceiling_methods)):
+        found = methods(cas)
+        value = fn(cas) if found else None
+        if value is not None:
+            out.append((key, (float(value[0]), str(value[1])), found[0]))
+    return tuple(out)
+
+
+def exposure_limits(cas: str) -> dict | None:
+    """Occupational exposure limits of ``cas`` from the reference library ``chemicals``
+    (``chemicals.safety``: TWA, STEL, Ceiling), each ``[value, unit]``, and ``source``, the list
+    the library names (e.g. "Ontario Limits"); None when it has none.
+
+    >>> exposure_limits("67-56-1")["TWA"], exposure_limits("67-56-1")["source"]
+    ([200.0, 'ppm'], 'Ontario Limits')
+    """
+    found = _limits(cas)
+    if not found:
+        return None
+    out: dict[str, Any] = {key: list(value) for key, value, _ in found}
+    out["source"] = "; ".join(dict.fromkeys(src for _, _, src in found))
+    return out
+
+
+@lru_cache(maxsize=512)
+def _carcinogen(cas: str) -> tuple:
+    from chemicals import safety
+
+    if not safety.Carcinogen_methods(cas):
+        return ()
+    return tuple((k, str(v)) for k, v in safety.Carcinogen(cas).items() if str(v) != "Unlisted")
+
+
+def carcinogen_listings(cas: str) -> dict | None:
+    """The carcinogen listings of ``cas`` in the reference library ``chemicals``
+    (``chemicals.safety.Carcinogen``: IARC and the NTP Report on Carcinogens), listing -> status,
+    the unlisted left out; None when it is listed nowhere.
+
+    >>> sorted(carcinogen_listings("75-09-2"))
+    ['International Agency for Research on Cancer', 'National Toxicology Program 13th Report on Carcinogens']
+    """
+    found = _carcinogen(cas)
+    return dict(found) if found else None
