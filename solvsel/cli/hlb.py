@@ -98,6 +98,16 @@ def run(args) -> int:
     return 0
 
 
+def _print_pairs(pairs: list, message: str | None) -> None:
+    rows = [{"a": p["a"], "fa": p["fraction_a"], "b": p["b"], "fb": p["fraction_b"], "hlb": p["hlb"],
+             "fam": "yes" if p["same_tail"] else ""} for p in pairs]
+    if rows:
+        print_table(rows, [("a", "emulsifier A"), ("fa", "fraction A", ".3f"), ("b", "emulsifier B"),
+                           ("fb", "fraction B", ".3f"), ("hlb", "HLB", ".2f"), ("fam", "one fatty acid")])
+    elif message:
+        print(message)
+
+
 def _print(out: dict) -> None:
     if "structure" in out:
         for method, r in out["structure"].items():
@@ -111,15 +121,15 @@ def _print(out: dict) -> None:
                                        ("basis", "where the value comes from")])
         print()
     if "required_hlb" in out:
-        print(f"Required HLB: {out['required_hlb']:.2f}\n")
-        rows = [{"a": p["a"], "fa": p["fraction_a"], "b": p["b"], "fb": p["fraction_b"], "hlb": p["hlb"],
-                 "fam": "yes" if p["same_tail"] else ""} for p in out.get("pairs", [])]
-        if rows:
+        span = out.get("required_hlb_range")
+        extra = f" (range {span[0]:.2f} to {span[1]:.2f}: some values are a range or an estimate)" if span else ""
+        print(f"Required HLB: {out['required_hlb']:.2f}{extra}\n")
+        if out.get("pairs"):
             print("Emulsifier pairs (mass fractions of the emulsifier blend), best first:")
-            print_table(rows, [("a", "emulsifier A"), ("fa", "fraction A", ".3f"), ("b", "emulsifier B"),
-                               ("fb", "fraction B", ".3f"), ("hlb", "HLB", ".2f"), ("fam", "one fatty acid")])
-        elif out.get("message"):
-            print(out["message"])
+        _print_pairs(out.get("pairs", []), out.get("message"))
+        for end in out.get("range_ends") or ():
+            print(f"\nAt HLB {end['required_hlb']:.2f} ({'low' if end is out['range_ends'][0] else 'high'} end of the range):")
+            _print_pairs(end["pairs"], end.get("message"))
         if out.get("triples"):
             print("\nBlends of three (most balanced fractions):")
             rows = [{"names": " + ".join(f"{c['name']} {c['fraction']:.2f}" for c in t["components"]), "hlb": t["hlb"]}

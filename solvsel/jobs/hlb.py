@@ -21,7 +21,7 @@ from typing import Any, Sequence
 
 from ..data.catalog import Catalog
 from ..data.provenance import audit_block
-from ..errors import InputError
+from ..errors import InputError, OutOfRangeError
 from ..rules.cautions import DEFER
 from ..rules.regulations import Limit, check_purpose, limits, not_for_purpose, rows_for_purpose
 from ..science.hlb import (
@@ -221,6 +221,10 @@ class HlbResult:
 
     ``pairs`` (and ``triples``) are the best ``top`` systems, best first;
     ``pairs_found`` counts every pair that reaches the target.
+    ``required_hlb_range`` is the oil phase's (low, high) where some oil's
+    value has a range (a published one, or an estimate's); ``range_ends``
+    then gives, for each end, ``{required_hlb, pairs, pairs_found, message}``:
+    the pairs (and their fractions) that reach that end.
     ``emulsifier_rules`` lists, per emulsifier shown and jurisdiction, the
     rule on record or "no data" (never taken as allowed), or "not allowed for
     this purpose" (naming what its rules allow it for).  ``structure`` holds
@@ -230,6 +234,8 @@ class HlbResult:
 
     required_hlb: float | None = None
     oil_phase: tuple[dict, ...] | None = None
+    required_hlb_range: tuple[float, float] | None = None
+    range_ends: tuple[dict, ...] | None = None
     pairs: tuple[EmulsifierSystem, ...] | None = None
     pairs_found: int | None = None
     triples: tuple[EmulsifierSystem, ...] | None = None
@@ -247,6 +253,8 @@ class HlbResult:
             "structure": self.structure,
             "oil_phase": None if self.oil_phase is None else list(self.oil_phase),
             "required_hlb": self.required_hlb,
+            "required_hlb_range": None if self.required_hlb_range is None else list(self.required_hlb_range),
+            "range_ends": None if self.range_ends is None else list(self.range_ends),
             "pairs": None if self.pairs is None else [s.to_dict() for s in self.pairs],
             "pairs_found": self.pairs_found,
             "message": self.message,
@@ -291,6 +299,19 @@ def _systems(cat: Catalog, req: HlbRequest, target: float) -> tuple[list[Emulsif
     if req.triples:
         out["triples"] = tuple(emulsifier_systems(pool, target, 3, req.min_fraction)[: req.top])
     return pool, out
+
+
+def _range_ends(cat: Catalog, req: HlbRequest, ends: tuple[float, float]) -> tuple[dict, ...]:
+    """The pairs at each end of the required HLB's range (an end the pool cannot reach says so)."""
+    out = []
+    for end in ends:
+        try:
+            _, found = _systems(cat, req, end)
+        except OutOfRangeError as exc:  # the pool does not reach this end
+            found = {"pairs": (), "pairs_found": 0, "message": exc.message}
+        out.append({"required_hlb": end, "pairs": [p.to_dict() for p in found["pairs"]],
+                    "pairs_found": found["pairs_found"], "message": found.get("message")})
+    return tuple(out)
 
 
 def _emulsifier_rules(cat: Catalog, req: HlbRequest, pool: Sequence[Emulsifier],
@@ -357,6 +378,9 @@ def hlb(request: HlbRequest | None = None, *, catalog: Catalog | None = None, **
         target = phase.required_hlb
         parts["oil_phase"] = phase.components
         cautions += phase.cautions
+        if phase.required_hlb_range is not None:
+            parts["required_hlb_range"] = phase.required_hlb_range
+            parts["range_ends"] = _range_ends(cat, req, phase.required_hlb_range)
     if target is not None:
         parts["required_hlb"] = target
         pool, systems = _systems(cat, req, target)

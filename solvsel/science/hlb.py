@@ -53,6 +53,7 @@ __all__ = [
     "BenchSeries",
     "RequiredHLBFit",
     "OilPhaseHLB",
+    "ESTIMATE_SPREAD",
     "griffin_hlb",
     "griffin_hlb_oxyethylene",
     "griffin_hlb_polyol_ester",
@@ -649,18 +650,31 @@ class OilPhaseHLB:
     """Required HLB of an oil phase and how each part contributed."""
 
     required_hlb: float
-    components: tuple  # ({name, mass_fraction, rhlb, basis}, ...)
+    components: tuple  # ({name, mass_fraction, rhlb, rhlb_range, basis}, ...)
     cautions: tuple[str, ...] = ()
+    #: (low, high) of the phase where some part's value has a range (a published range or an estimate's), else None
+    required_hlb_range: tuple[float, float] | None = None
 
     def to_dict(self) -> dict:
-        return {"required_hlb": self.required_hlb, "components": list(self.components), "cautions": list(self.cautions)}
+        return {"required_hlb": self.required_hlb, "components": list(self.components), "cautions": list(self.cautions),
+                "required_hlb_range": None if self.required_hlb_range is None else list(self.required_hlb_range)}
 
 
-def required_hlb(components: Sequence[tuple[str, float, float | None]], basis: Sequence[str] | None = None) -> OilPhaseHLB:
+#: Spread [HLB units] carried either side of a required HLB estimated from solubility parameters (the
+#: caution's +/- 2: Vaughan & Rice's equation is a correlation, not a measurement).
+ESTIMATE_SPREAD = 2.0
+
+
+def required_hlb(components: Sequence[tuple[str, float, float | None]], basis: Sequence[str] | None = None,
+                 ranges: Sequence[tuple[float, float] | None] | None = None) -> OilPhaseHLB:
     r"""Required HLB of an oil phase: the mass-weighted mean of its parts' values.
 
     .. math::
         \mathrm{rHLB} = \sum_i w_i\,\mathrm{rHLB}_i
+
+    Where some part's value has a range, the phase's range is the same mean of
+    the parts' low ends and of their high ends (a part without one counts at
+    its value in both).
 
     Parameters
     ----------
@@ -669,6 +683,8 @@ def required_hlb(components: Sequence[tuple[str, float, float | None]], basis: S
         100) and its required HLB for oil-in-water [-]
     basis : sequence of str, optional
         Where each rHLB came from (tabulated, estimated ...), echoed back.
+    ranges : sequence of (low, high) or None, optional
+        The range of each part's rHLB [-], None where it has none.
 
     Examples
     --------
@@ -676,6 +692,11 @@ def required_hlb(components: Sequence[tuple[str, float, float | None]], basis: S
 
     >>> required_hlb([("a", 70, 14.0), ("b", 30, 8.0)]).required_hlb
     12.2
+
+    The same with the first oil's value known only as 13 to 15:
+
+    >>> [round(x, 2) for x in required_hlb([("a", 70, 14.0), ("b", 30, 8.0)], ranges=[(13, 15), None]).required_hlb_range]
+    [11.5, 12.9]
     """
     if not components:
         raise InputError("the oil phase has no components", param="oil")
@@ -690,17 +711,24 @@ def required_hlb(components: Sequence[tuple[str, float, float | None]], basis: S
         )
     r = np.array([float(c[2]) for c in components])
     basis = list(basis) if basis is not None else ["given"] * len(components)
+    ranges = list(ranges) if ranges is not None else [None] * len(components)
+    span = np.array([(float(g[0]), float(g[1])) if g is not None else (ri, ri) for g, ri in zip(ranges, r)])
     comps = tuple(
-        {"name": n, "mass_fraction": float(wi), "rhlb": float(ri), "basis": b}
-        for n, wi, ri, b in zip(names, w, r, basis)
+        {"name": n, "mass_fraction": float(wi), "rhlb": float(ri), "rhlb_range": None if g is None else [float(x) for x in g],
+         "basis": b}
+        for n, wi, ri, g, b in zip(names, w, r, ranges, basis)
     )
+    phase_range = None
+    if any(g is not None for g in ranges):
+        phase_range = (round(float(span[:, 0] @ w), 10), round(float(span[:, 1] @ w), 10))
     cautions = []
     if any(b.startswith("estimated") for b in basis):
         cautions.append(
             "Some required HLB values are estimated from solubility parameters (Vaughan & Rice 1990), "
             "not measured: treat them as +/- 2 HLB units and confirm with a bench series."
         )
-    return OilPhaseHLB(required_hlb=round(float(r @ w), 10), components=comps, cautions=tuple(cautions))
+    return OilPhaseHLB(required_hlb=round(float(r @ w), 10), components=comps, cautions=tuple(cautions),
+                       required_hlb_range=phase_range)
 
 
 def required_hlb_vaughan_rice(delta_total_mpa05: float) -> float:
@@ -1174,21 +1202,30 @@ def oil_phase_required_hlb(cat, amounts: Sequence[tuple[str, float]], overrides:
     :class:`MissingDataError` naming it.
     """
     overrides = {k.strip().lower(): float(v) for k, v in (overrides or {}).items()}
-    comps, basis = [], []
+    comps, basis, ranges = [], [], []
     for name, amount in amounts:
         table, row = _oil_row(cat, name)
         key = row["name"]
-        r = None
-        b = ""
-        for k in (name.strip().lower(), key.lower()):
-            if k in overrides:
-                r, b = overrides[k], "given"
-        if r is None and table == "oils" and _num(row.get("rhlb_ow")) is not None:
-            r, b = float(row["rhlb_ow"]), f"tabulated ({row.get('rhlb_source')})"
-        if r is None and table == "oils" and str(row.get("hsp_as") or ""):
-            s = cat.solvent(row["hsp_as"], library=False)
-            dt = float(np.sqrt(np.sum(np.asarray(s.hsp, dtype=float) ** 2)))
-            r, b = required_hlb_vaughan_rice(dt), f"estimated (Vaughan & Rice 1990 from the HSP of {s.name})"
+        given = next((overrides[k] for k in (name.strip().lower(), key.lower()) if k in overrides), None)
+        r, b, g = (given, "given", None) if given is not None else _table_rhlb(cat, table, row)
         comps.append((key, amount, r))
         basis.append(b or "none")
-    return required_hlb(comps, basis)
+        ranges.append(g)
+    return required_hlb(comps, basis, ranges)
+
+
+def _table_rhlb(cat, table: str, row: Mapping) -> tuple[float | None, str, tuple[float, float] | None]:
+    """(rHLB, where it comes from, its range or None) of an oil-phase row: the oils table's value
+    (with its range where the row gives one), else the Vaughan & Rice estimate from the HSP of the
+    liquid named in ``hsp_as`` (+/- :data:`ESTIMATE_SPREAD`), else nothing."""
+    if table != "oils":
+        return None, "", None
+    if _num(row.get("rhlb_ow")) is not None:
+        lo, hi = _num(row.get("rhlb_ow_min")), _num(row.get("rhlb_ow_max"))
+        return float(row["rhlb_ow"]), f"tabulated ({row.get('rhlb_source')})", (lo, hi) if None not in (lo, hi) else None
+    if str(row.get("hsp_as") or ""):
+        s = cat.solvent(row["hsp_as"], library=False)
+        dt = float(np.sqrt(np.sum(np.asarray(s.hsp, dtype=float) ** 2)))
+        r = required_hlb_vaughan_rice(dt)
+        return r, f"estimated (Vaughan & Rice 1990 from the HSP of {s.name})", (r - ESTIMATE_SPREAD, r + ESTIMATE_SPREAD)
+    return None, "", None
