@@ -45,6 +45,9 @@ def register(sub):
                    help="boiling-point window in C, e.g. 40:100 for a solvent to strip, 150: for one that must stay")
     p.add_argument("--min-flash", type=float, metavar="C", help="lowest closed-cup flash point allowed in C")
     p.add_argument("--max-cost", type=int, metavar="CLASS", help="dearest cost class allowed (1 cheap .. 5 dear)")
+    p.add_argument("--max-health-hazard", metavar="LEVEL",
+                   help="worst health hazard allowed: none, irritant, harmful, 'toxic or corrosive', "
+                   "'suspected CMR' or CMR (or 0 to 5)")
     p.add_argument("--dose", metavar="DOSE", help="dose of the flavour in the food, e.g. 0.15%% (needs --category and --jurisdiction)")
     p.add_argument("--category", metavar="CATEGORY", help="food category for the dose check (see: solvsel table food_categories)")
     p.add_argument("--chain", metavar="CHAIN", help="dilution chain from the flavour to the food as consumed")
@@ -72,7 +75,7 @@ def request_fields(args) -> dict:
         use=args.use, food=args.food, jurisdiction=args.jurisdiction, purpose=args.purpose,
         worst_flammable_category=args.worst_hazard,
         bp_min_C=bp_lo, bp_max_C=bp_hi, min_flash_C=args.min_flash, max_cost=args.max_cost,
-        temp_C=args.temp, all=args.all,
+        max_health_hazard=args.max_health_hazard, temp_C=args.temp, all=args.all,
         dose=args.dose, category=args.category, chain=args.chain, keep_over=args.keep_over,
         require_solubility=args.solubility, **({} if args.top is None else {"top": args.top}),
     )
@@ -110,6 +113,8 @@ def run(args) -> int:
         rows.append({
             "n": i, "name": r.name, "ra": r.ra, "red": r.red, "sol": _fmt_sol(r),
             "bp": r.bp_C, "flash": r.flash_C, "hazard": r.hazard_code or "", "food": r.food_status or "-",
+            "health": (r.health_hazard or {}).get("label", "not on record"),
+            "sure": (r.how_sure or {}).get("verdict", ""),
             "flag": ", ".join(flag + list(r.notes)),
         })
     cols = [("n", "#"), ("name", "liquid"), ("ra", "Ra", ".2f")]
@@ -117,7 +122,8 @@ def run(args) -> int:
         cols.append(("red", "RED", ".2f"))
     if any(r.solubility for r in result.results):
         cols.append(("sol", "est. g/L", ".3g"))
-    cols += [("bp", "bp C", ".1f"), ("flash", "flash C", ".0f"), ("hazard", "GHS"), ("food", "food status"), ("flag", "notes")]
+    cols += [("bp", "bp C", ".1f"), ("flash", "flash C", ".0f"), ("hazard", "GHS"), ("health", "health hazard"),
+             ("food", "food status"), ("sure", "how sure"), ("flag", "notes")]
     if rows:
         print_table(rows, cols)
     else:
@@ -128,5 +134,7 @@ def run(args) -> int:
         print(": " + "; ".join(f"{d.name} ({d.brief})" for d in shown) + (" ..." if len(result.dropped) > 5 else ""))
     for n in result.notes:
         print(f"Note: {n}")
+    if result.how_sure:
+        print(f"How sure: {result.how_sure['summary']}")
     print_cautions(result.cautions)
     return 0

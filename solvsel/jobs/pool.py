@@ -9,7 +9,9 @@ same filters in the same order, each leaving a liquid out with its reason:
    extraction solvent; the bench use takes every liquid);
 3. property limits: cost class, boiling window, lowest flash point (a value not
    on record fails its limit);
-4. hazard: the most hazardous GHS flammable-liquid category allowed;
+4. hazard: the most hazardous GHS flammable-liquid category allowed, and the worst health
+   hazard allowed (:data:`~solvsel.rules.hazards.HEALTH_LEVELS`; a liquid whose health hazards
+   are not on record fails that limit);
 5. food law: with ``food``, a ``jurisdiction`` or a ``purpose`` (and a food
    use), the liquid's status for the use (either food use when none is given)
    must be permitted or conditional, in the jurisdiction (or the most
@@ -33,7 +35,7 @@ import numpy as np
 
 from ..data.catalog import Catalog, Solvent
 from ..errors import InputError, MissingDataError, UnknownNameError
-from ..rules.hazards import Hazard, hazard_class
+from ..rules.hazards import HEALTH_LEVELS, Hazard, HealthHazard, check_health_level, hazard_class, health_hazard
 from ..rules.regulations import FoodStatus, Limit, check_food_jurisdiction, check_purpose, food_status, purpose_key
 from ..science.hansen import T_WINDOW_C
 from ..science.target import solvent_at
@@ -97,6 +99,9 @@ class PoolFilters:
         lowest closed-cup flash point allowed for a flammable liquid [C]
     max_cost : int, optional
         dearest cost class allowed (1 cheap .. 5 dear)
+    max_health_hazard : str, optional
+        worst health hazard allowed, a level of :data:`~solvsel.rules.hazards.HEALTH_LEVELS`
+        ("none", "irritant", "harmful", "toxic or corrosive", "suspected CMR", "CMR"; or 0 to 5)
     """
 
     temp_C: float = 25.0
@@ -111,10 +116,13 @@ class PoolFilters:
     bp_max_C: float | None = None
     min_flash_C: float | None = None
     max_cost: int | None = None
+    max_health_hazard: str | None = None
 
     def __post_init__(self) -> None:
         set_ = object.__setattr__
         set_(self, "temp_C", check_number(self.temp_C, "temp_C", *T_WINDOW_C, unit="C"))
+        if self.max_health_hazard is not None:
+            set_(self, "max_health_hazard", check_health_level(self.max_health_hazard))
         set_(self, "only", check_names(self.only, "only"))
         set_(self, "exclude", check_names(self.exclude or (), "exclude") if self.exclude else ())
         set_(self, "use", check_choice(self.use, "use", USES, allow_none=True))
@@ -197,6 +205,7 @@ class Candidate:
     hazard: Hazard | None
     food: FoodStatus | None
     food_use: str | None
+    health: HealthHazard | None = None
 
     @property
     def name(self) -> str:
@@ -357,7 +366,16 @@ def _records(cat: Catalog, filters: PoolFilters, records: Sequence[Solvent] | No
     return unique
 
 
-def _reason(cat: Catalog, rec: Solvent, filters: PoolFilters, dropped: list[Solvent], hz) -> tuple[str, str] | None:
+def _health_reason(hh: HealthHazard | None, worst: str) -> str | None:
+    if hh is None:
+        return "health hazards not on record"
+    if hh.level > HEALTH_LEVELS.index(worst):
+        return f"health hazard '{hh.category}' ({', '.join(hh.statements)}), worse than '{worst}'"
+    return None
+
+
+def _reason(cat: Catalog, rec: Solvent, filters: PoolFilters, dropped: list[Solvent], hz,
+            hh: HealthHazard | None = None) -> tuple[str, str] | None:
     """(filter, reason) of the first filter ``rec`` fails, in the order of the module docstring."""
     if any(_same(rec, d) for d in dropped):
         return "exclude", "excluded by you"
@@ -368,6 +386,10 @@ def _reason(cat: Catalog, rec: Solvent, filters: PoolFilters, dropped: list[Solv
         return "property", why
     if filters.worst_flammable_category is not None:
         why = _hazard_reason(hz, filters.worst_flammable_category)
+        if why is not None:
+            return "hazard", why
+    if filters.max_health_hazard is not None:
+        why = _health_reason(hh, filters.max_health_hazard)
         if why is not None:
             return "hazard", why
     return None
@@ -394,7 +416,8 @@ def build_pool(cat: Catalog, filters: PoolFilters | None = None, records: Sequen
     recs = _records(cat, filters, records)
     for rec in recs:
         hz = hazard_class(rec.flash_C, rec.bp_C, flammable=rec.flammable)
-        why = _reason(cat, rec, filters, dropped, hz)
+        hh = health_hazard(cat, rec)
+        why = _reason(cat, rec, filters, dropped, hz, hh)
         food = _Food() if why else _food(cat, rec, filters)
         rules.update(dict.fromkeys(food.rules))
         if why is None and food.reason is not None:
@@ -407,5 +430,5 @@ def build_pool(cat: Catalog, filters: PoolFilters | None = None, records: Sequen
         if why is not None:
             left.append(LeftOut(rec.name, rec.cas, *why))
             continue
-        kept.append(Candidate(rec, np.asarray(h, dtype=float), float(vm), note, hz, food.status, food.use))
+        kept.append(Candidate(rec, np.asarray(h, dtype=float), float(vm), note, hz, food.status, food.use, hh))
     return Pool(filters, tuple(kept), tuple(left), tuple(r.name for r in recs), tuple(rules))

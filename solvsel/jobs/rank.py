@@ -49,11 +49,11 @@ class RankRequest(PoolRequest):
     like : str, optional
         instead of a target: list the liquids nearest to this liquid in Hansen
         space (substitutes); takes no ``only``, dose or solubility
-    only, exclude, use, food, jurisdiction, purpose, worst_flammable_category, bp_min_C, bp_max_C, min_flash_C, max_cost
+    only, exclude, use, food, jurisdiction, purpose, worst_flammable_category, bp_min_C, bp_max_C, min_flash_C, max_cost, max_health_hazard
         the filters of the candidate pool (:class:`~solvsel.jobs.pool.PoolFilters`:
         names [-], use, food law, the product's purpose (an id of
         tables/purposes.csv), GHS category, boiling window [C], lowest flash
-        point [C], dearest cost class 1..5)
+        point [C], dearest cost class 1..5, worst health hazard allowed)
     temp_C : float
         working temperature [C] (default 25); the liquids' HSP are shifted to
         it, the target's stay at 25 C
@@ -92,6 +92,7 @@ class RankRequest(PoolRequest):
     bp_max_C: float | None = None
     min_flash_C: float | None = None
     max_cost: int | None = None
+    max_health_hazard: str | None = None
     temp_C: float = 25.0
     top: int | None = 15
     all: bool = False
@@ -179,6 +180,8 @@ class RankedSolvent:
     origin: str
     sources: tuple[str, ...] = ()
     food_purposes: tuple[str, ...] = ()
+    health_hazard: dict | None = None
+    how_sure: dict | None = None
 
     def to_dict(self) -> dict:
         return {
@@ -191,6 +194,7 @@ class RankedSolvent:
             "solubility": self.solubility, "dose": self.dose,
             "cautions": list(self.cautions), "notes": list(self.notes),
             "origin": self.origin, "sources": list(self.sources), "food_purposes": list(self.food_purposes),
+            "health_hazard": self.health_hazard, "how_sure": self.how_sure,
         }
 
 
@@ -212,12 +216,14 @@ class RankResult:
     cautions: tuple[str, ...] = ()
     sorted_by: str = "ra"
     audit: dict = field(default_factory=dict)
+    how_sure: dict | None = None
 
     def to_dict(self) -> dict:
         return {
             "target": self.target.to_dict(),
             "temp_C": self.temp_C,
             "sorted_by": self.sorted_by,
+            "how_sure": self.how_sure,
             "results": [r.to_dict() for r in self.results],
             "dropped": [d.to_dict() for d in self.dropped],
             "notes": list(self.notes),
@@ -227,9 +233,11 @@ class RankResult:
 
     def to_frame(self):
         """The ranked liquids as a table (one row each; the solubility estimate as ``g_per_L``)."""
-        skip = ("solubility", "dose", "cautions", "notes", "sources")
+        skip = ("solubility", "dose", "cautions", "notes", "sources", "health_hazard", "how_sure")
         rows = [{**{k: v for k, v in r.to_dict().items() if k not in skip},
-                 "g_per_L": (r.solubility or {}).get("g_per_L")} for r in self.results]
+                 "how_sure": (r.how_sure or {}).get("verdict"),
+                 "g_per_L": (r.solubility or {}).get("g_per_L"),
+                 "health_hazard": (r.health_hazard or {}).get("label")} for r in self.results]
         return frame(rows)
 
 
@@ -280,7 +288,7 @@ def _ranked(cat: Catalog, target: Target, c: Candidate, req: RankRequest, steps)
         None if hz is None else (hz.hazard_statement or hz.kind), status, allowed, s.cost_class,
         s.water_miscibility, solubility_in(target, s, c.hsp, c.vm_cm3_mol, req.temp_C), dose,
         tuple(solvent_cautions(s, use=req.use or c.food_use, cat=cat)), tuple(notes), s.origin, tuple(s.sources),
-        c.food.purposes if c.food is not None else (),
+        c.food.purposes if c.food is not None else (), None if c.health is None else c.health.to_dict(),
     )
 
 
@@ -406,8 +414,20 @@ def rank(request: RankRequest | None = None, *, catalog: Catalog | None = None, 
     if req.require_solubility:
         _check_solubility(target, req.temp_C)
     results, dropped, rules = _rank_pool(cat, target, req, pool=pool)
-    if not req.all and req.top is not None:
-        results = results[:req.top]
+    results, sure = _how_sure(cat, target, results, None if req.all else req.top)
     notes = _notes(target, req.temp_C) + _closing_notes(target)
     return RankResult(target, req.temp_C, tuple(results), tuple(dropped), tuple(notes), _cautions(results),
-                      "red" if target.r0 else "ra", audit_block(rules, cat.tables_dir))
+                      "red" if target.r0 else "ra", audit_block(rules, cat.tables_dir), sure)
+
+
+def _how_sure(cat: Catalog, target: Target, results: list[RankedSolvent], top: int | None):
+    """The rows shown (the best ``top``), each with how often it stays in the top three when the target is
+    sampled within its uncertainty (:mod:`solvsel.science.robustness`), and the summary."""
+    from dataclasses import replace
+
+    from ..science.robustness import how_sure, target_spread
+
+    shown = results if top is None else results[:top]
+    h = how_sure(target.hsp, target_spread(target, cat), [[r.dD, r.dP, r.dH] for r in results],
+                 [r.name for r in results], len(shown), "every ranked liquid re-scored")
+    return [replace(r, how_sure=h.row(i)) for i, r in enumerate(shown)], h.to_dict()
