@@ -40,6 +40,9 @@ MORE_CASES = [
          viscosity_mPa_s=1.5, height_mm=150.0, shelf_days=90.0),
     dict(oil=(("d-limonene", 80.0), ("medium-chain triglycerides", 20.0)), brix=11.0, dilution=500.0,
          emulsifier="gum arabic", emulsifier_ratio=1.5, oil_phase=0.12, nano=True),
+    # the drink's viscosity from the sucrose table at a storage temperature; the concentrate judged at its own
+    dict(oil=(("orange oil", 100.0),), brix=10.5, dilution=250.0, droplet_um=0.4, temp_C=4.0,
+         emulsifier="starch sodium octenyl succinate", concentrate_viscosity_mPa_s=35.0),
 ]
 
 
@@ -51,7 +54,8 @@ def _argv(case):
     argv = ["emulsion", "--oil", _text(case["oil"]), "--json"]
     options = {"brix": "--brix", "density": "--density", "dilution": "--dilution", "droplet_um": "--droplet-um",
                "viscosity_mPa_s": "--viscosity", "height_mm": "--height-mm", "shelf_days": "--shelf-days",
-               "emulsifier_ratio": "--emulsifier-ratio"}
+               "emulsifier_ratio": "--emulsifier-ratio", "temp_C": "--temp",
+               "concentrate_viscosity_mPa_s": "--concentrate-viscosity"}
     for key, option in options.items():
         if key in case:
             argv += [option, f"{case[key]:g}"]
@@ -73,7 +77,8 @@ def _argv(case):
 def _essentials(d):
     keys = ("beverage_density", "oil_phase_density", "density_difference", "oil_in_concentrate", "oil_in_drink_ppm",
             "agent_level_ppm", "agent_limit_ppm", "creaming_mm_per_day", "time_to_cream_days", "max_droplet_um",
-            "ok", "refusals", "cautions")
+            "ok", "refusals", "cautions", "viscosity_mPa_s", "viscosity_basis", "temp_C", "concentrate_viscosity_mPa_s",
+            "concentrate_water_phase_density", "concentrate_creaming_mm_per_day", "concentrate_max_droplet_um")
     out = {k: d[k] for k in keys}
     out["agents"] = [(a["agent"], a["jurisdiction"], a["level_ppm"], a["limit_ppm"], a["rule"], a["ok"])
                      for a in d["agents"]]

@@ -35,7 +35,12 @@ def register(sub):
     p.add_argument("--sizes", metavar="UM=VOL,...",
                    help='droplet size distribution: diameter in um = volume share, e.g. "0.3=85,0.8=10,1.5=5"')
     p.add_argument("--viscosity", type=float, default=None, metavar="MPA_S",
-                   help="viscosity of the drink in mPa s (default: water at 20 C, 1.002)")
+                   help="viscosity of the drink in mPa s (default: a sucrose solution of the drink's Brix at --temp, "
+                   "from the bundled table; water when only --density is given)")
+    p.add_argument("--temp", type=float, default=20.0, metavar="C",
+                   help="storage temperature of the drink for its viscosity, 0-60 C (default 20)")
+    p.add_argument("--concentrate-viscosity", type=float, default=None, metavar="MPA_S",
+                   help="measured viscosity of the emulsion concentrate in mPa s: judges creaming in the concentrate")
     p.add_argument("--height-mm", type=float, default=100.0, metavar="MM",
                    help="liquid height the droplets must not cross in the shelf life (default 100 mm)")
     p.add_argument("--shelf-days", type=float, default=180.0, metavar="DAYS", help="target shelf life in days (default 180)")
@@ -58,19 +63,19 @@ def register(sub):
 
 
 #: Request fields whose option is not ``--`` + the field with dashes.
-OPTION_NAMES = {"jurisdictions": "--jurisdiction", "viscosity_mPa_s": "--viscosity"}
+OPTION_NAMES = {"jurisdictions": "--jurisdiction", "viscosity_mPa_s": "--viscosity", "temp_C": "--temp",
+                "concentrate_viscosity_mPa_s": "--concentrate-viscosity"}
 
 
 def request_from_args(args):
     """The :class:`~solvsel.jobs.emulsion.EmulsionRequest` the options ask for."""
     from ..jobs.emulsion import EmulsionRequest
-    from ..science.emulsion import WATER_VISCOSITY_20C
 
     return EmulsionRequest(
         oil=parse_amounts(args.oil, "oil"), brix=args.brix, density=args.density, dilution=args.dilution,
         oil_phase=parse_fraction(args.oil_phase, "oil_phase"), droplet_um=args.droplet_um,
         sizes=parse_amounts(args.sizes, "sizes") if args.sizes else None,
-        viscosity_mPa_s=WATER_VISCOSITY_20C if args.viscosity is None else args.viscosity,
+        viscosity_mPa_s=args.viscosity, temp_C=args.temp, concentrate_viscosity_mPa_s=args.concentrate_viscosity,
         height_mm=args.height_mm, shelf_days=args.shelf_days,
         jurisdictions=parse_names(args.jurisdiction, "jurisdictions"), category=args.category,
         oil_density=parse_amounts(args.oil_density, "oil_density") if args.oil_density else None, nano=args.nano,
@@ -113,7 +118,10 @@ def _print(r) -> None:
     if r.creaming_mm_per_day is not None:
         word = "cream" if r.creaming_mm_per_day >= 0 else "settle"
         print(f"Droplets of {r.droplet_diameter_um:g} um {word} at {abs(r.creaming_mm_per_day):.3g} mm/day "
-              f"(viscosity {r.viscosity_mPa_s:g} mPa s): {r.time_to_cream_days:.4g} days to cross {r.height_mm:g} mm")
+              f"(viscosity {r.viscosity_mPa_s:.4g} mPa s, {r.viscosity_basis}): {r.time_to_cream_days:.4g} days to "
+              f"cross {r.height_mm:g} mm")
+    else:
+        print(f"Drink viscosity: {r.viscosity_mPa_s:.4g} mPa s ({r.viscosity_basis})")
     print(f"Largest droplet that crosses less than {r.height_mm:g} mm in {r.shelf_days:g} days: {r.max_droplet_um:.3g} um")
     if r.distribution is not None:
         dd = r.distribution
@@ -133,9 +141,16 @@ def _print(r) -> None:
                            ("lim", "limit mg/kg"), ("rho", "oil g/cm3", ".4f"), ("ok", "")])
         for msg in r.weighting_excluded.get(j, []):
             print(f"  left out: {msg}")
+    if r.concentrate_viscosity_mPa_s is not None:
+        line = (f"In the concentrate ({r.concentrate_viscosity_mPa_s:g} mPa s, water phase "
+                f"{r.concentrate_water_phase_density:.4f} g/cm3): ")
+        if r.concentrate_creaming_mm_per_day is not None:
+            line += f"droplets cream at {abs(r.concentrate_creaming_mm_per_day):.3g} mm/day; "
+        print(line + f"largest droplet that stays put {r.concentrate_max_droplet_um:.3g} um")
     if r.emulsifier is not None:
         e = r.emulsifier
-        print(f"\nEmulsifier: {e.name} at {e.ratio_to_oil:g} g per g of oil phase ({e.ratio_basis}), "
+        usual = "" if e.usual_ratio is None else f"; usual {e.usual_ratio[0]:g}-{e.usual_ratio[1]:g} g/g"
+        print(f"\nEmulsifier: {e.name} at {e.ratio_to_oil:g} g per g of oil phase ({e.ratio_basis}{usual}), "
               f"{e.in_concentrate:.1%} of the concentrate")
         for c in r.emulsifier_checks:
             print(f"  {'ok  ' if c.ok else 'OVER'} {c.message}")

@@ -26,7 +26,6 @@ from ..rules.cautions import DEFER
 from ..rules.regulations import Limit, check_purpose, limits, not_for_purpose, rows_for_purpose
 from ..science.emulsion import (
     DRINK_DENSITY_RANGE,
-    WATER_VISCOSITY_20C,
     AgentCheck,
     AgentLimit,
     DistributionCreaming,
@@ -39,14 +38,17 @@ from ..science.emulsion import (
     creaming_mm_per_day,
     creaming_of_distribution,
     drink_density,
+    drink_viscosity,
     emulsifier_use,
     max_droplet_diameter_um,
     oil_phase_components,
     oil_phase_density,
     ripening_check,
+    solution_density,
     time_to_cream_days,
     weighting_options,
 )
+from ..science.formulation import WATER_DENSITY_25C
 from ..science.hlb import normalize_fractions
 from ._base import (
     build_request,
@@ -68,6 +70,9 @@ __all__ = ["EmulsionRequest", "EmulsionResult", "emulsion", "agent_limits", "EMU
 #: agents of food work lie well inside it (about 0.8 for terpenes to about 1.35 for the heaviest
 #: weighting agents); a value outside is a typing slip or a wrong unit.
 OIL_DENSITY_RANGE = (0.5, 2.5)
+
+#: Storage temperatures of a drink the viscosity table covers [C].
+STORAGE_TEMP_RANGE = (0.0, 60.0)
 
 #: Cautions every emulsion result carries (common practice).
 EMULSION_CAUTIONS = (
@@ -139,8 +144,14 @@ class EmulsionRequest:
     sizes : tuple of (diameter, volume share), optional
         droplet size distribution: diameters [um] with volume fractions (sum 1)
         or percent (sum 100)
-    viscosity_mPa_s : float
-        viscosity of the drink [mPa s] (default water at 20 C, 1.002)
+    viscosity_mPa_s : float, optional
+        viscosity of the drink [mPa s]; default: a sucrose solution of the drink's Brix at ``temp_C``
+        (tables/sucrose_viscosity.csv), or water at ``temp_C`` when only the density is given
+    temp_C : float
+        storage temperature of the drink for its viscosity [C], 0 to 60 (default 20)
+    concentrate_viscosity_mPa_s : float, optional
+        measured viscosity of the emulsion concentrate [mPa s]: judges creaming in the concentrate
+        itself during its storage (its water phase holds the emulsifier)
     height_mm : float
         liquid height the droplets must not cross in the shelf life [mm] (default 100)
     shelf_days : float
@@ -157,7 +168,8 @@ class EmulsionRequest:
         emulsifier of the concentrate (e.g. gum arabic): its amount from its use
         ratio to oil, its level in the drink checked against the rules on record
     emulsifier_ratio : float, optional
-        grams of emulsifier per gram of oil phase [g/g] (default the table's usual ratio)
+        grams of emulsifier per gram of oil phase [g/g] (default the usual ratio: tables/hydrocolloids.csv
+        for gum arabic and octenyl-succinate starch, tables/emulsifiers.csv otherwise)
     purpose : str, optional
         what the product is, an id of tables/purposes.csv (e.g. ``finished_food``): an agent or
         emulsifier is legal only where a rule authorises it for that purpose
@@ -173,7 +185,7 @@ class EmulsionRequest:
     oil_phase: float = 0.10
     droplet_um: float | None = None
     sizes: tuple[tuple[float, float], ...] | None = None
-    viscosity_mPa_s: float = WATER_VISCOSITY_20C
+    viscosity_mPa_s: float | None = None
     height_mm: float = 100.0
     shelf_days: float = 180.0
     jurisdictions: tuple[str, ...] = ("US", "EU")
@@ -183,6 +195,8 @@ class EmulsionRequest:
     emulsifier: str | None = None
     emulsifier_ratio: float | None = None
     purpose: str | None = None
+    temp_C: float = 20.0
+    concentrate_viscosity_mPa_s: float | None = None
 
     def __post_init__(self) -> None:
         put = object.__setattr__
@@ -197,8 +211,12 @@ class EmulsionRequest:
         put(self, "sizes", check_pairs(self.sizes, "sizes", numeric_keys=True, lo=0.0, unit="um"))
         if self.sizes is not None:
             normalize_fractions([f for _, f in self.sizes], param="sizes")
-        for name, unit in (("viscosity_mPa_s", "mPa s"), ("height_mm", "mm"), ("shelf_days", "days")):
+        for name, unit in (("height_mm", "mm"), ("shelf_days", "days")):
             put(self, name, check_number(getattr(self, name), name, 0.0, None, unit=unit, lo_open=True))
+        for name in ("viscosity_mPa_s", "concentrate_viscosity_mPa_s"):
+            put(self, name, check_number(getattr(self, name), name, 0.0, None, unit="mPa s", lo_open=True,
+                                         allow_none=True))
+        put(self, "temp_C", check_number(self.temp_C, "temp_C", *STORAGE_TEMP_RANGE, unit="C"))
         put(self, "jurisdictions", check_jurisdictions(self.jurisdictions))
         put(self, "category", check_names(self.category, "category", allow_none=False)[0])
         put(self, "oil_density", check_pairs(self.oil_density, "oil_density", lo=OIL_DENSITY_RANGE[0],
@@ -239,6 +257,12 @@ class EmulsionResult:
     rule on record), with the messages in ``refusals``.  ``weighting`` holds,
     per jurisdiction, the ways to weight the flavour part of the oil phase to
     the drink's density; ``weighting_excluded`` the agents with no legal use.
+    ``viscosity_mPa_s`` is the drink's viscosity used by Stokes' law and
+    ``viscosity_basis`` where it comes from.  With a measured concentrate
+    viscosity, ``concentrate_*`` judge creaming in the concentrate: the density
+    of its water phase [g/cm3] (water and the hydrocolloid, volumes additive),
+    the creaming rate of the droplet size [mm/day] and the largest droplet that
+    stays put for the shelf life [um].
     """
 
     beverage_density: float
@@ -254,6 +278,8 @@ class EmulsionResult:
     agents: tuple[AgentCheck, ...]
     droplet_diameter_um: float | None
     viscosity_mPa_s: float
+    viscosity_basis: str
+    temp_C: float
     creaming_mm_per_day: float | None
     height_mm: float
     shelf_days: float
@@ -272,6 +298,10 @@ class EmulsionResult:
     cautions: tuple[str, ...]
     purpose: str | None = None
     audit: dict = field(default_factory=dict)
+    concentrate_viscosity_mPa_s: float | None = None
+    concentrate_water_phase_density: float | None = None
+    concentrate_creaming_mm_per_day: float | None = None
+    concentrate_max_droplet_um: float | None = None
 
     def to_dict(self) -> dict[str, Any]:
         """The JSON of ``solvsel emulsion --json``."""
@@ -335,9 +365,10 @@ def _agent_checks(req: EmulsionRequest, comps, oil_ppm, rho_b: float, rules: _Ru
             "agent_limit_ppm": None if binding is None else binding[1]}
 
 
-def _creaming(req: EmulsionRequest, rho_b: float, rho_o: float) -> dict:
-    """Stokes creaming of the droplet size and of the size distribution; the largest droplet that stays put."""
-    eta, h, days = req.viscosity_mPa_s, req.height_mm, req.shelf_days
+def _creaming(req: EmulsionRequest, rho_b: float, rho_o: float, eta: float) -> dict:
+    """Stokes creaming of the droplet size and of the size distribution in a drink of viscosity ``eta``
+    [mPa s]; the largest droplet that stays put."""
+    h, days = req.height_mm, req.shelf_days
     v = None if req.droplet_um is None else creaming_mm_per_day(req.droplet_um, rho_b, rho_o, eta)
     dist = None
     if req.sizes:
@@ -367,6 +398,21 @@ def _weighting(cat: Catalog, req: EmulsionRequest, comps, oil_ppm, rho_b: float,
     return {"weighting": weighting, "weighting_excluded": {j: tuple(m) for j, m in excluded.items()}}
 
 
+def _concentrate(req: EmulsionRequest, use: EmulsifierUse | None, rho_o: float) -> dict:
+    """Creaming in the concentrate itself at its measured viscosity: its water phase is water with the
+    emulsifier (when a hydrocolloid's density is on record), volumes additive."""
+    if req.concentrate_viscosity_mPa_s is None:
+        return {}
+    rho_w = WATER_DENSITY_25C
+    if use is not None and use.density is not None:
+        rho_w = solution_density(use.in_concentrate / (1.0 - req.oil_phase), use.density, WATER_DENSITY_25C)
+    eta = req.concentrate_viscosity_mPa_s
+    v = None if req.droplet_um is None else creaming_mm_per_day(req.droplet_um, rho_w, rho_o, eta)
+    return {"concentrate_viscosity_mPa_s": eta, "concentrate_water_phase_density": rho_w,
+            "concentrate_creaming_mm_per_day": v,
+            "concentrate_max_droplet_um": max_droplet_diameter_um(req.height_mm, req.shelf_days, rho_w, rho_o, eta)}
+
+
 def _emulsifier(cat: Catalog, req: EmulsionRequest, oil_ppm, rho_b: float, rules: _Rules) -> dict:
     """The emulsifier's share of the concentrate and its level in the drink against each jurisdiction's rules."""
     if req.emulsifier is None:
@@ -377,14 +423,22 @@ def _emulsifier(cat: Catalog, req: EmulsionRequest, oil_ppm, rho_b: float, rules
     return {"emulsifier": use, "emulsifier_checks": checks}
 
 
-def _cautions(req: EmulsionRequest, notes, checks, drho: float, ripe: RipeningCheck) -> tuple[str, ...]:
+def _cautions(req: EmulsionRequest, notes, checks, drho: float, ripe: RipeningCheck,
+              use: EmulsifierUse | None) -> tuple[str, ...]:
     cautions = list(notes) + list(EMULSION_CAUTIONS)
     if req.brix is not None:
         cautions.append("Drink density is that of a pure sucrose solution at 20 C: acids, other sugars, "
                         "sweeteners and carbonation shift it; measure the finished drink where it matters.")
-    if abs(req.viscosity_mPa_s - WATER_VISCOSITY_20C) < 1e-12:
-        cautions.append("Creaming uses the viscosity of water at 20 C; a sugared drink is more viscous, "
-                        "so the true rate is lower (give the drink's viscosity).")
+    if req.viscosity_mPa_s is None and req.brix is not None:
+        cautions.append(f"Creaming uses the viscosity of a pure sucrose solution of the drink's Brix at {req.temp_C:g} C; "
+                        "other sugars, acids and thickeners change it (give the measured viscosity where known).")
+    elif req.viscosity_mPa_s is None:
+        cautions.append(f"Creaming uses the viscosity of water at {req.temp_C:g} C; a sugared drink is more viscous, "
+                        "so the true rate is lower (give the drink's Brix or viscosity).")
+    if use is not None and use.usual_ratio is not None and use.ratio_to_oil < use.usual_ratio[0]:
+        cautions.append(f"{use.name} at {use.ratio_to_oil:g} g per g of oil is below its usual use level "
+                        f"({use.usual_ratio[0]:g}-{use.usual_ratio[1]:g} g/g): too little to cover the droplets, "
+                        "they may coalesce or ring.")
     if any("verify" in chk.message for chk in checks):
         cautions.append("Some legal limits on record are not confirmed against the official text: verify them "
                         "in the regulations in force before relying on the check.")
@@ -423,15 +477,18 @@ def emulsion(request: EmulsionRequest | None = None, *, catalog: Catalog | None 
     emul = _emulsifier(cat, req, oil_ppm, rho_b, rules)
     checks = agents["agents"] + [c for c in emul["emulsifier_checks"] if not c.ok]
     ripe = ripening_check(comps, nano=req.nano)
+    eta, eta_basis = ((req.viscosity_mPa_s, "given") if req.viscosity_mPa_s is not None
+                      else drink_viscosity(cat, req.brix, req.temp_C))
     return EmulsionResult(
         beverage_density=rho_b, beverage_density_basis=basis, oil_phase=comps, oil_phase_density=rho_o,
         density_difference=rho_b - rho_o, oil_in_concentrate=req.oil_phase, dilution=req.dilution,
         oil_in_drink_ppm=oil_ppm, agent_level_ppm=agents["agent_level_ppm"], agent_limit_ppm=agents["agent_limit_ppm"],
-        agents=tuple(checks), droplet_diameter_um=req.droplet_um, viscosity_mPa_s=req.viscosity_mPa_s,
-        height_mm=req.height_mm, shelf_days=req.shelf_days, **_creaming(req, rho_b, rho_o),
+        agents=tuple(checks), droplet_diameter_um=req.droplet_um, viscosity_mPa_s=eta, viscosity_basis=eta_basis,
+        temp_C=req.temp_C, height_mm=req.height_mm, shelf_days=req.shelf_days, **_creaming(req, rho_b, rho_o, eta),
         **_weighting(cat, req, comps, oil_ppm, rho_b, rules), **emul, ripening=ripe,
         jurisdictions=req.jurisdictions, category=req.category, ok=all(c.ok for c in checks),
         refusals=tuple(c.message for c in checks if not c.ok),
-        cautions=_cautions(req, agents["notes"], checks, rho_b - rho_o, ripe),
+        cautions=_cautions(req, agents["notes"], checks, rho_b - rho_o, ripe, emul["emulsifier"]),
         purpose=rules.purpose, audit=audit_block(rules.rows, cat.tables_dir),
+        **_concentrate(req, emul["emulsifier"], rho_o),
     )

@@ -24,6 +24,10 @@ References
 .. [4] Wooster, T. J.; Golding, M.; Sanguansri, P. Impact of oil type on
    nanoemulsion formation and Ostwald ripening stability. Langmuir 24,
    12758-12765 (2008). https://pubmed.ncbi.nlm.nih.gov/18850732/
+.. [5] Genotelle, J. Expression de la viscosite des solutions sucrees.
+   Industries Alimentaires et Agricoles 95, 747-755 (1978) (the equation
+   behind ``tables/sucrose_viscosity.csv``, recalled: source
+   ``memory_genotelle_sucrose_viscosity``).
 """
 
 from __future__ import annotations
@@ -66,6 +70,11 @@ __all__ = [
     "oil_phase_components",
     "EmulsifierUse",
     "emulsifier_use",
+    "sucrose_solution_viscosity",
+    "sucrose_viscosity_table",
+    "drink_viscosity",
+    "hydrocolloid_row",
+    "solution_density",
 ]
 
 #: Standard gravity [m/s2].
@@ -135,6 +144,61 @@ def sucrose_solution_density(brix: float, table_brix: Sequence[float], table_den
         raise OutOfRangeError(f"{brix!r} is outside the sucrose density table ({x[0]:g} to {x[-1]:g} degrees Brix)",
                               param="brix", value=brix, expected=expected)
     return float(np.interp(b, x, y))
+
+
+def sucrose_solution_viscosity(brix: float, temp_C: float, table_brix: Sequence[float],
+                               table_temp: Sequence[float], table_visc) -> float:
+    r"""Viscosity of a sucrose solution [mPa s] from a table over Brix and temperature.
+
+    Bilinear interpolation of :math:`\ln\eta` between the four surrounding
+    grid points (the viscosity of a sugar solution is close to exponential
+    in both its Brix and its temperature, so its logarithm interpolates
+    far better than the value).
+
+    Parameters
+    ----------
+    brix : float
+        Sucrose content, mass % (degrees Brix) [%]
+    temp_C : float
+        Temperature [C]
+    table_brix, table_temp : sequence of float
+        The grid's Brix [%] and temperatures [C], both ascending
+    table_visc : 2-D array
+        Viscosities [mPa s], one row per Brix, one column per temperature
+
+    Examples
+    --------
+    Half-way in Brix between 1.0 and 4.0 mPa s: the geometric mean, 2.0.
+
+    >>> sucrose_solution_viscosity(5, 20, [0, 10], [20, 30], [[1.0, 0.8], [4.0, 3.0]])
+    2.0
+    """
+    x = np.asarray(table_brix, dtype=float)
+    t = np.asarray(table_temp, dtype=float)
+    y = np.log(np.asarray(table_visc, dtype=float))
+    b = _in_axis(brix, x, "brix", "degrees Brix")
+    c = _in_axis(temp_C, t, "temp_C", "C")
+    i = int(np.clip(np.searchsorted(x, b, side="right") - 1, 0, x.size - 2))
+    j = int(np.clip(np.searchsorted(t, c, side="right") - 1, 0, t.size - 2))
+    u = (b - x[i]) / (x[i + 1] - x[i])
+    v = (c - t[j]) / (t[j + 1] - t[j])
+    ln = ((1 - u) * (1 - v) * y[i, j] + u * (1 - v) * y[i + 1, j] + (1 - u) * v * y[i, j + 1]
+          + u * v * y[i + 1, j + 1])
+    return round(float(np.exp(ln)), 12)
+
+
+def _in_axis(value, axis: np.ndarray, param: str, unit: str) -> float:
+    """``value`` as a float within the grid axis, else an error naming ``param``."""
+    expected = f"{axis[0]:g} to {axis[-1]:g} {unit}"
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        raise InputError(f"expected a number in {unit}, got {value!r}", param=param, value=value,
+                         expected=expected) from None
+    if not (axis[0] <= v <= axis[-1]):
+        raise OutOfRangeError(f"{value!r} is outside the sucrose viscosity table ({expected})", param=param,
+                              value=value, expected=expected)
+    return v
 
 
 def oil_phase_density(mass_fractions: Sequence[float], densities: Sequence[float]) -> float:
@@ -728,6 +792,61 @@ def drink_density(cat, brix: float | None = None, density: float | None = None) 
     return rho, "given"
 
 
+def sucrose_viscosity_table(cat) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The bundled sucrose viscosity table as (Brix [%], temperatures [C], viscosities [mPa s] one row per Brix).
+
+    >>> from solvsel.data.catalog import load_catalog
+    >>> b, t, v = sucrose_viscosity_table(load_catalog())
+    >>> v.shape == (b.size, t.size)
+    True
+    """
+    df = cat.table("sucrose_viscosity")
+    grid = df.pivot_table(index="sucrose_wt_pct", columns="temp_C", values="visc_mPa_s", aggfunc="first")
+    if grid.isna().to_numpy().any():
+        raise MissingDataError("the sucrose viscosity table must give every temperature at every Brix",
+                               param="sucrose_viscosity")
+    return (grid.index.to_numpy(float), grid.columns.to_numpy(float), grid.to_numpy(float))
+
+
+def drink_viscosity(cat, brix: float | None, temp_C: float = 20.0) -> tuple[float, str]:
+    """The viscosity of a drink's water phase [mPa s] and where it comes from: a sucrose solution of
+    ``brix`` at ``temp_C`` from ``tables/sucrose_viscosity.csv`` (water, the table at 0 Brix, when the
+    sugar content is not known).
+
+    >>> from solvsel.data.catalog import load_catalog
+    >>> round(drink_viscosity(load_catalog(), 10.5, 20)[0], 3)
+    1.348
+    """
+    b = 0.0 if brix is None else brix
+    eta = sucrose_solution_viscosity(b, temp_C, *sucrose_viscosity_table(cat))
+    what = "water" if brix is None else f"sucrose solution of {float(brix):g} degrees Brix"
+    return eta, f"{what} at {float(temp_C):g} C (bundled table, interpolated)"
+
+
+def solution_density(solute_fraction: float, solute_density: float, water_density: float) -> float:
+    r"""Density of a solution by volume additivity [g/cm3]: :math:`1/\rho = w/\rho_s + (1-w)/\rho_w`.
+
+    20 % gum arabic (1.4) in water (0.99705): 1 / (0.2/1.4 + 0.8/0.99705) = 1.0580
+
+    >>> round(solution_density(0.2, 1.4, 0.99705), 4)
+    1.058
+    """
+    w = float(solute_fraction)
+    if not (0.0 <= w < 1.0):
+        raise OutOfRangeError(f"expected a mass fraction from 0 to below 1, got {solute_fraction!r}",
+                              param="solute_fraction", value=solute_fraction)
+    return 1.0 / (w / _pos(solute_density, "solute_density", "g/cm3") + (1.0 - w) / _pos(water_density, "water_density", "g/cm3"))
+
+
+def hydrocolloid_row(cat, name: str) -> dict | None:
+    """The row of ``tables/hydrocolloids.csv`` for an emulsifier (its name or a synonym), or None when the
+    emulsifier is not a hydrocolloid of the table."""
+    try:
+        return cat.find("hydrocolloids", name)
+    except UnknownNameError:
+        return None
+
+
 def _component(cat, name: str, fraction: float, densities: Mapping[str, float]) -> OilComponent:
     from .hlb import _oil_row
 
@@ -793,6 +912,9 @@ class EmulsifierUse:
     ratio_basis: str  # "given" or "table (usual use ratio)"
     in_concentrate: float  # mass fraction of the concentrate [-]
     level_ppm: float | None  # in the finished drink [mg/kg], None without a dilution
+    usual_ratio: tuple[float, float] | None = None  # usual range for a hydrocolloid [g/g] (tables/hydrocolloids.csv)
+    ratio_source: tuple[str, ...] = ()  # source ids of the usual ratio
+    density: float | None = None  # of the dry hydrocolloid as it dissolves [g/cm3]
 
     def to_dict(self) -> dict:
         return asdict(self)
@@ -800,18 +922,21 @@ class EmulsifierUse:
 
 def emulsifier_use(cat, emulsifier: str, oil_in_concentrate: float, ratio: float | None = None,
                    oil_in_drink_ppm: float | None = None) -> EmulsifierUse:
-    """An emulsifier of ``tables/emulsifiers.csv`` at its usual use ratio to oil (or ``ratio``,
-    g per g of oil phase): its share of the concentrate and its level in the drink.
+    """An emulsifier at its usual use ratio to oil (or ``ratio``, g per g of oil phase): its share of the
+    concentrate and its level in the drink.  A hydrocolloid (gum arabic, octenyl-succinate starch) takes its
+    usual ratio and range from ``tables/hydrocolloids.csv``, any other from ``tables/emulsifiers.csv``.
 
     >>> from solvsel.data.catalog import load_catalog
     >>> u = emulsifier_use(load_catalog(), "gum arabic", 0.10, oil_in_drink_ppm=400)
-    >>> u.ratio_to_oil, u.in_concentrate, u.level_ppm
-    (1.0, 0.1, 400.0)
+    >>> u.ratio_to_oil, u.in_concentrate, u.level_ppm, u.usual_ratio
+    (1.0, 0.1, 400.0, (1.0, 4.0))
     """
     from .hlb import _find
 
     row = _find(cat, "emulsifiers", emulsifier, "emulsifier")
-    r = _num(ratio) if ratio is not None else _num(row.get("use_ratio_to_oil"))
+    hydro = hydrocolloid_row(cat, row["name"])
+    usual = row if hydro is None else hydro
+    r = _num(ratio) if ratio is not None else _num(usual.get("use_ratio_to_oil"))
     if r is None or r <= 0:
         raise MissingDataError(f"no use ratio to oil on record for '{row['name']}': give it (g per g of oil phase)",
                                param="emulsifier_ratio", value=row["name"], expected="g per g of oil phase")
@@ -819,5 +944,9 @@ def emulsifier_use(cat, emulsifier: str, oil_in_concentrate: float, ratio: float
     if share >= 1.0 - float(oil_in_concentrate):
         raise InputError(f"{row['name']} at {r:g} g per g of oil leaves no water in the concentrate",
                          param="emulsifier_ratio", value=r)
-    return EmulsifierUse(row["name"], str(row.get("cas") or ""), r, "given" if ratio is not None else
-                         "table (usual use ratio)", share, None if oil_in_drink_ppm is None else r * oil_in_drink_ppm)
+    src = str(usual.get("ratio_source") or "")
+    return EmulsifierUse(
+        row["name"], str(row.get("cas") or ""), r, "given" if ratio is not None else "table (usual use ratio)", share,
+        None if oil_in_drink_ppm is None else r * oil_in_drink_ppm,
+        None if hydro is None else (float(hydro["ratio_min"]), float(hydro["ratio_max"])),
+        tuple(x for x in src.split(";") if x), None if hydro is None else _num(hydro.get("density_g_cm3")))
