@@ -266,3 +266,62 @@ def test_whole_blend_test_honours_measured_pairs(cat):
     # a measured solubility window (ethyl acetate in water, partly miscible) is left to the pairwise test
     bp = M.blend_phase(cat, ["ethyl acetate", "water", "propylene glycol"], [0.066, 0.92, 0.014])
     assert bp.one_phase and "tangent-plane" not in bp.note
+
+
+# ----------------------------------------------------------------------------- order and the disk cache
+
+
+def test_binodal_does_not_depend_on_the_order_of_the_liquids(cat):
+    # 20 random pairs of the solvents table (seeded): the verdict, chi_critical's product and the
+    # window asked as (a, b) are those asked as (b, a), flipped; the Flory-Huggins binodal has one
+    # answer whichever liquid is named first (Flory 1953, ch. 13)
+    names = [s.name for s in cat.solvent_records()]
+    rng = np.random.default_rng(20261205)
+    pairs = [tuple(rng.choice(names, 2, replace=False)) for _ in range(20)]
+    pairs.append(("sunflower oil", "ethylene glycol"))  # the pair that once gave no window one way round
+    for a, b in pairs:
+        ab, ba = M.predict_pair(cat.solvent(a), cat.solvent(b)), M.predict_pair(cat.solvent(b), cat.solvent(a))
+        assert ab.one_phase == ba.one_phase, (a, b)
+        assert (ab.window is None) == (ba.window is None), (a, b)
+        if ab.one_phase != "yes":
+            assert ab.window is not None, (a, b)
+            for k, flip in (("b_in_a_max", "a_in_b_max"), ("b_in_a_max_volume", "a_in_b_max_volume")):
+                assert ab.window[k] == ba.window[flip], (a, b, k)
+        # chi per molecule of the first liquid: chi_a / V_a = chi_b / V_b
+        va, vb = cat.solvent(a).vm_cm3_mol, cat.solvent(b).vm_cm3_mol
+        assert ab.chi / va == pytest.approx(ba.chi / vb, rel=1e-12)
+        assert ab.chi / ab.chi_critical == pytest.approx(ba.chi / ba.chi_critical, rel=1e-12)
+
+
+def test_sunflower_oil_and_ethylene_glycol_have_a_window_both_ways(cat):
+    for a, b in (("sunflower oil", "ethylene glycol"), ("ethylene glycol", "sunflower oil")):
+        v = M.pair(cat, a, b)
+        assert v.window is not None and "did not converge" not in v.note
+        assert 0 < v.window["b_in_a_max"] < 1 and 0 < v.window["a_in_b_max"] < 1
+
+
+def test_pair_matrix_is_kept_on_disk_and_read_back(cat, tmp_path, monkeypatch):
+    monkeypatch.setenv("SOLVSEL_CACHE_DIR", str(tmp_path))
+    names = [s.name for s in cat.solvent_records()][: M.DISK_CACHE_FROM]
+    fresh = M._compute_matrix(cat, [cat.solvent(n) for n in names], 25.0)
+    M._pair_matrix_cached.cache_clear()
+    first = M.pair_matrix(cat, names)
+    files = list(tmp_path.glob("pair_matrix_*.npz"))
+    assert len(files) == 1
+    M._pair_matrix_cached.cache_clear()
+    again = M.pair_matrix(cat, names)
+    for k in ("status", "measured", "limit", "chi", "chi_critical"):
+        np.testing.assert_array_equal(getattr(first, k), getattr(fresh, k))
+        np.testing.assert_array_equal(getattr(again, k), getattr(fresh, k))
+        assert not getattr(again, k).flags.writeable
+    # another temperature is another key; a damaged file is recomputed, not trusted
+    M._pair_matrix_cached.cache_clear()
+    M.pair_matrix(cat, names, temp_C=40.0)
+    assert len(list(tmp_path.glob("pair_matrix_*.npz"))) == 2
+    files[0].write_bytes(b"not a matrix")
+    M._pair_matrix_cached.cache_clear()
+    np.testing.assert_array_equal(M.pair_matrix(cat, names).limit, fresh.limit)
+    # an empty SOLVSEL_CACHE_DIR turns the disk cache off
+    monkeypatch.setenv("SOLVSEL_CACHE_DIR", "")
+    assert M.cache_dir() is None
+    M._pair_matrix_cached.cache_clear()

@@ -26,10 +26,14 @@ References
 
 from __future__ import annotations
 
+import hashlib
 import math
+import os
+import zipfile
 from dataclasses import dataclass
 from functools import lru_cache
 from itertools import combinations
+from pathlib import Path
 
 import numpy as np
 
@@ -55,6 +59,8 @@ __all__ = [
     "Bridge",
     "bridges",
     "largest_miscible_sets",
+    "cache_dir",
+    "DISK_CACHE_FROM",
 ]
 
 #: Status codes of :class:`PairMatrix` (and the table's ``one_phase`` values).
@@ -690,10 +696,68 @@ class PairMatrix:
         }
 
 
-@lru_cache(maxsize=32)
-def _pair_matrix_cached(ref, names: tuple[str, ...], temp_C: float) -> PairMatrix:
-    cat = ref()
-    recs = [cat.solvent(n) for n in names]
+#: Matrices of at least this many liquids are also kept on disk between runs (see :func:`pair_matrix`).
+DISK_CACHE_FROM = 30
+_MATRIX_ARRAYS = ("status", "measured", "limit", "chi", "chi_critical")
+
+
+def cache_dir() -> Path | None:
+    """The folder where solvsel keeps what it can recompute (None: no disk cache).
+
+    ``SOLVSEL_CACHE_DIR`` if set (empty: no disk cache), else
+    ``$XDG_CACHE_HOME/solvsel``, else ``~/.cache/solvsel``.
+    """
+    env = os.environ.get("SOLVSEL_CACHE_DIR")
+    if env is not None:
+        return Path(env) if env.strip() else None
+    base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
+    return Path(base) / "solvsel"
+
+
+def _matrix_key(cat, recs, temp_C: float) -> str:
+    """SHA-256 of everything a pair matrix depends on: the code of the model, the tables (bundled
+    and the user's own files), every liquid's record and the temperature."""
+    from ..data.provenance import tables_sha256
+
+    here = Path(__file__).resolve().parent
+    digest = hashlib.sha256()
+    for module in ("miscibility.py", "hansen.py", "target.py"):
+        digest.update((here / module).read_bytes())
+    digest.update(tables_sha256(cat.tables_dir).encode())
+    for kind, paths in sorted(getattr(cat, "own", {}).items()):
+        for path in paths:
+            digest.update(f"{kind}:{path}".encode())
+            digest.update(Path(path).read_bytes() if Path(path).is_file() else b"")
+    digest.update(repr([repr(r) for r in recs]).encode())
+    digest.update(repr(float(temp_C)).encode())
+    return digest.hexdigest()
+
+
+def _matrix_from_disk(path: Path, names: tuple[str, ...], temp_C: float) -> PairMatrix | None:
+    try:
+        with np.load(path, allow_pickle=False) as z:
+            arrays = [np.array(z[k]) for k in _MATRIX_ARRAYS]
+    except (OSError, ValueError, KeyError, zipfile.BadZipFile):  # absent, unreadable or damaged: recompute
+        return None
+    n = len(names)
+    if any(a.shape != (n, n) for a in arrays):
+        return None
+    for a in arrays:
+        a.setflags(write=False)
+    return PairMatrix(names, *arrays, temp_C)
+
+
+def _matrix_to_disk(path: Path, m: PairMatrix) -> None:
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp.npz")
+        np.savez(tmp, **{k: getattr(m, k) for k in _MATRIX_ARRAYS})
+        os.replace(tmp, path)
+    except OSError:  # a read-only or full cache folder only costs the time next run
+        return
+
+
+def _compute_matrix(cat, recs, temp_C: float) -> PairMatrix:
     n = len(recs)
     status = np.zeros((n, n), dtype=np.int8)
     measured = np.ones((n, n), dtype=bool)
@@ -717,12 +781,31 @@ def _pair_matrix_cached(ref, names: tuple[str, ...], temp_C: float) -> PairMatri
     return PairMatrix(tuple(r.name for r in recs), status, measured, limit, chi, chic, temp_C)
 
 
+@lru_cache(maxsize=32)
+def _pair_matrix_cached(ref, names: tuple[str, ...], temp_C: float) -> PairMatrix:
+    cat = ref()
+    recs = [cat.solvent(n) for n in names]
+    folder = cache_dir() if len(recs) >= DISK_CACHE_FROM else None
+    if folder is None:
+        return _compute_matrix(cat, recs, temp_C)
+    path = folder / f"pair_matrix_{_matrix_key(cat, recs, temp_C)}.npz"
+    m = _matrix_from_disk(path, names, temp_C)
+    if m is None:
+        m = _compute_matrix(cat, recs, temp_C)
+        _matrix_to_disk(path, m)
+    return m
+
+
 def pair_matrix(cat, names=None, temp_C: float = 25.0) -> PairMatrix:
     """Pairwise miscibility arrays of ``names`` (default: every solvent of the catalog).
 
     See :class:`PairMatrix` for the arrays and the vectorised blend screen.
     The result is cached per catalog, names and temperature (its arrays are
-    read-only).
+    read-only); a matrix of :data:`DISK_CACHE_FROM` liquids or more is also
+    kept in :func:`cache_dir` under a SHA-256 of the model's code, the tables
+    (and the user's own files), the liquids' records and the temperature, so a
+    new process reads it instead of solving every pair again (a changed input
+    gives a new key; files of old keys can be deleted at any time).
     """
     if names is None:
         names = [s.name for s in cat.solvent_records()]
