@@ -36,6 +36,7 @@ COMMANDS = (
     "hlb",
     "emulsion",
     "dose",
+    "extract",
     "table",
     "report",
 )

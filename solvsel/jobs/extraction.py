@@ -44,13 +44,33 @@ _TEMPS = tuple(float(t) for t in range(-40, 41, 5))
 FILTER_VISC_MAX = 10.0
 
 
+def _grid_text(text: str, param: str, unit: str) -> list[float]:
+    """Numbers of a grid written as text: ``LO:HI:STEP`` (both ends included) or ``a, b, c``."""
+    from .parse import parse_number
+
+    text = text.strip()
+    if ":" not in text:
+        return [parse_number(v, param, unit) for v in text.replace(";", ",").split(",") if v.strip()]
+    parts = text.split(":")
+    if len(parts) != 3:
+        raise InputError(f"expected LO:HI:STEP, got '{text}'", param=param, value=text, expected="LO:HI:STEP")
+    lo, hi, step = (parse_number(v, param, unit) for v in parts)
+    if not (step > 0 and hi >= lo) or (hi - lo) / step > 400:
+        raise InputError(f"'{text}': expected LO <= HI and a step above 0 giving at most 400 values", param=param,
+                         value=text, expected="LO:HI:STEP")
+    return [float(v) for v in np.round(np.arange(lo, hi + step / 2, step), 9)]
+
+
 def _grid_values(value, param: str, lo: float, hi: float, unit: str) -> tuple[float, ...]:
-    if isinstance(value, (str, bytes)) or not hasattr(value, "__iter__"):
-        raise InputError(f"expected a list of numbers ({unit}), got {value!r}", param=param, value=value,
-                         expected=f"numbers from {lo:g} to {hi:g} {unit}")
+    """The sorted distinct values of a grid axis: numbers, or text (:func:`_grid_text`)."""
+    expected = f"numbers from {lo:g} to {hi:g} {unit}, or LO:HI:STEP"
+    if isinstance(value, str):
+        value = _grid_text(value, param, unit)
+    if isinstance(value, bytes) or not hasattr(value, "__iter__"):
+        raise InputError(f"expected {expected}, got {value!r}", param=param, value=value, expected=expected)
     vals = tuple(sorted({check_number(v, param, lo, hi, unit=unit) for v in value}))
     if not vals:
-        raise InputError("expected at least one value", param=param, expected=f"numbers from {lo:g} to {hi:g} {unit}")
+        raise InputError(f"expected {expected}, got nothing", param=param, expected=expected)
     return vals
 
 
@@ -67,10 +87,11 @@ class ExtractionRequest:
         solutes of the tables to keep out (default chlorophyll a, cetyl palmitate, sucrose)
     liquids : tuple of two str
         the solvent pair; the strength is the volume percent of the first (default ethanol, water)
-    strengths : tuple of float
-        strengths [% v/v of the first liquid, before mixing], 0 to 100 (default 40 to 100 in steps of 5)
-    temps_C : tuple of float
-        temperatures [C], -80 to 100 (default -40 to 40 in steps of 5)
+    strengths : tuple of float or str
+        strengths [% v/v of the first liquid, before mixing], 0 to 100 (default 40 to 100 in steps of 5);
+        text "LO:HI:STEP" or "a, b, c" is read too
+    temps_C : tuple of float or str
+        temperatures [C], -80 to 100 (default -40 to 40 in steps of 5; text as for ``strengths``)
     vacuum_kPa : float
         absolute pressure of the evaporator when stripping [kPa], 0.5 to 101.325 (default 10)
     jurisdiction : str

@@ -35,7 +35,7 @@ from functools import lru_cache
 import numpy as np
 
 from ..data.catalog import number_or_none as _num
-from ..errors import MissingDataError
+from ..errors import MissingDataError, OutOfRangeError
 from . import hansen
 
 __all__ = [
@@ -245,7 +245,10 @@ def solubility_g_L(solute, hsp, vm_mix: float, mw_mix: float, temp_C: float, fus
 def nrtl_ln_gamma(x1, T_K, b12: float, b21: float, alpha: float):
     """ln gamma of both liquids of a binary by NRTL (Renon and Prausnitz 1968), tau_ij = b_ij / T.
 
-    >>> g1, g2 = nrtl_ln_gamma(1.0, 351.0, **{k: v for k, v in NRTL_ETHANOL_WATER.items() if k != "source"})
+    Pure ethanol has no excess: ln gamma 0.
+
+    >>> p = NRTL_ETHANOL_WATER
+    >>> g1, g2 = nrtl_ln_gamma(1.0, 351.0, p["b12_K"], p["b21_K"], p["alpha"])
     >>> round(float(g1), 12)
     0.0
     """
@@ -318,7 +321,12 @@ def bubble_point_C(p: Pair, x1: float, pressure_kPa: float) -> float:
     """Temperature [C] at which liquid of mole fraction ``x1`` of ``a`` starts to boil at ``pressure_kPa``."""
     from scipy.optimize import brentq
 
-    return float(brentq(lambda T: bubble_pressure_kPa(p, x1, T)[0] - pressure_kPa, 150.0, 600.0, xtol=1e-6)) - 273.15
+    lo, hi = 193.15, 423.15  # -80 to 150 C, where the Antoine sets and the HSP temperature rules are used
+    f = lambda T: bubble_pressure_kPa(p, x1, T)[0] - pressure_kPa  # noqa: E731
+    if f(lo) > 0 or f(hi) < 0:
+        raise OutOfRangeError(f"{p.a.name} and {p.b.name} do not boil between -80 and 150 C at {pressure_kPa:g} kPa",
+                              param="vacuum_kPa", value=pressure_kPa)
+    return float(brentq(f, lo, hi, xtol=1e-6)) - 273.15
 
 
 def azeotrope(p: Pair, pressure_kPa: float = 101.325) -> dict | None:

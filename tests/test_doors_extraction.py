@@ -1,0 +1,39 @@
+"""The same extraction plan from the library and from the command line (the UI screen is not built yet)."""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+
+from solvsel.cli import main
+from solvsel.jobs.extraction import extraction
+
+FIELDS = {"solute": "cannabidiol", "strengths": "60:100:20", "temps_C": "-30:30:30", "purpose": "food_ingredient",
+          "vacuum_kPa": 15.0}
+ARGV = ["extract", "--solute", "cannabidiol", "--strengths", "60:100:20", "--temps=-30:30:30",
+        "--purpose", "food_ingredient", "--vacuum", "15", "--json"]
+
+
+def test_library_and_cli_agree(capsys):
+    lib = extraction(**FIELDS).to_dict()
+    assert main(ARGV) == 0
+    cli = json.loads(capsys.readouterr().out)
+    assert cli["strengths_pct_v"] == lib["strengths_pct_v"] == [60.0, 80.0, 100.0]
+    assert cli["temps_C"] == lib["temps_C"] == [-30.0, 0.0, 30.0]
+    for key in ("ra", "target_g_L", "selectivity", "liquid", "viscosity_mPa_s"):
+        for a, b in zip(cli["grid"][key], lib["grid"][key]):
+            assert a == pytest.approx(b, rel=1e-9)
+    for name, vals in lib["grid"]["rejects_g_L"].items():
+        for a, b in zip(cli["grid"]["rejects_g_L"][name], vals):
+            assert a == pytest.approx(b, rel=1e-9)
+    assert cli["window"] == lib["window"] and cli["best"] == pytest.approx(lib["best"])
+    assert cli["strip"]["start_C"] == pytest.approx(lib["strip"]["start_C"])
+    assert [x["status"] for x in cli["legal"]] == [x["status"] for x in lib["legal"]]
+    assert cli["cautions"] == lib["cautions"]
+
+
+def test_cli_error_names_the_option(capsys):
+    assert main(["extract", "--solute", "cannabidiol", "--vacuum", "0", "--json"]) == 2
+    err = json.loads(capsys.readouterr().out)["error"]
+    assert err["param"] == "--vacuum"

@@ -1,0 +1,132 @@
+"""The extraction plan (strength x temperature) against published values and common practice."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from solvsel.data.catalog import load_catalog
+from solvsel.errors import InputError
+from solvsel.jobs.extraction import extraction
+from solvsel.science import extraction as ex
+from solvsel.science import hansen
+
+
+@pytest.fixture(scope="module")
+def cat():
+    return load_catalog()
+
+
+@pytest.fixture(scope="module")
+def ew(cat):
+    return ex.pair_of(cat.solvent("ethanol"), cat.solvent("water"))
+
+
+@pytest.fixture(scope="module")
+def plan(cat):
+    return extraction(solute="cannabidiol", purpose="food_ingredient", catalog=cat)
+
+
+# The Engineering ToolBox, "Ethanol Freeze Protected Water Solutions" (source extract_etb_freezing):
+# freezing points at 0-100 % v/v in steps of 10.
+ETB = [(0, 0), (10, -4), (20, -9), (30, -15), (40, -23), (50, -32), (60, -37), (70, -48), (80, -59), (90, -73),
+       (100, -115)]
+# Lange's Handbook of Chemistry, Table 5.13 (source extract_lange_freezing): % v/v and freezing point [C],
+# an independent table; the points in the plan's default range (from 36 % v/v).
+LANGE = [(36.1, -18.9), (40.5, -23.6), (46.3, -28.7)]
+
+
+@pytest.mark.parametrize("vol_pct, fp", ETB)
+def test_freezing_points_at_the_published_points(cat, vol_pct, fp):
+    assert abs(float(ex.freezing_point_C(cat, vol_pct)) - fp) <= 1.0
+
+
+@pytest.mark.parametrize("vol_pct, fp", LANGE)
+def test_freezing_points_against_a_second_published_table(cat, vol_pct, fp):
+    assert abs(float(ex.freezing_point_C(cat, vol_pct)) - fp) <= 1.0
+
+
+def test_seventy_percent_is_liquid_at_minus_twenty(cat):
+    r = extraction(solute="cannabidiol", strengths=(70,), temps_C=(-20,), catalog=cat)
+    assert r.grid["liquid"] == [[True]]
+    # and water itself would be frozen there: 0 C from the same table
+    assert float(ex.freezing_point_C(cat, 0)) == 0.0
+
+
+def test_azeotrope_at_one_atmosphere(ew):
+    # Evans (1916) via Brady (source extract_evans_azeotrope): 95.6 % w/w ethanol, 78.17 C.
+    az = ex.azeotrope(ew, 101.325)
+    assert az is not None
+    assert abs(100 * az["mass_fraction"] - 95.6) <= 1.0
+    assert abs(az["boiling_point_C"] - 78.17) <= 0.3
+
+
+def test_nrtl_parameters_are_the_published_ones():
+    # ChemSep NRTL set as distributed in the thermo library (source extract_chemsep_nrtl)
+    ipdb = pytest.importorskip("thermo.interaction_parameters").IPDB
+    ids = ["64-17-5", "7732-18-5"]
+    b = ipdb.get_ip_asymmetric_matrix("ChemSep NRTL", ids, "bij")
+    a = ipdb.get_ip_asymmetric_matrix("ChemSep NRTL", ids, "alphaij")
+    p = ex.NRTL_ETHANOL_WATER
+    assert (p["b12_K"], p["b21_K"], p["alpha"]) == pytest.approx((b[0][1], b[1][0], a[0][1]))
+
+
+def test_viscosity_reproduces_the_published_table(cat):
+    # Bingham and Jackson (1918), source extract_bingham_viscosity: 50 % w/w at 20 C 2.87 mPa s, 40 % at 0 C 7.14
+    assert ex.viscosity_mPa_s(cat, 50, 20) == (pytest.approx(2.87), False)
+    assert ex.viscosity_mPa_s(cat, 40, 0)[0] == pytest.approx(7.14)
+    assert ex.viscosity_mPa_s(cat, 50, -20)[1] is True  # extrapolated, and said so
+
+
+def test_fast_solubility_agrees_with_the_library_solver(cat, ew):
+    s = cat.solute("sucrose")
+    h, vm, mw = ex.mixture_at(ew, 0.7, -10.0)
+    mp, dh, _ = ex.fusion_of(s)
+    ref = hansen.solid_solubility([s.dD, s.dP, s.dH], s.vm_cm3_mol, s.mw_g_mol, mp, dh, h, vm, mw, -10.0).g_per_L
+    assert ex.solubility_g_L(s, h, vm, mw, -10.0) == pytest.approx(ref, rel=1e-4)
+
+
+def test_wax_solubility_falls_and_selectivity_rises_as_it_gets_colder(plan):
+    # winterisation (common practice): chilled ethanol drops the waxes out while the cannabinoid stays
+    wax = np.array(plan.grid["rejects_g_L"]["cetyl palmitate"], dtype=float)
+    target = np.array(plan.grid["target_g_L"], dtype=float)
+    i = plan.strengths.index(95.0)
+    assert np.all(np.diff(wax[i]) > 0)  # temps ascend: solubility rises with temperature
+    ratio = target[i] / wax[i]
+    cold = [j for j, t in enumerate(plan.temps_C) if t <= 0]  # the winterisation range
+    assert np.all(np.diff(ratio[cold]) < 0)
+    assert ratio[0] > ratio[-1] and all(ratio[j] > ratio[-1] for j in cold)
+
+
+def test_grid_shape_sources_and_cautions(plan):
+    assert len(plan.strengths) == 13 and len(plan.temps_C) == 17
+    assert all(len(row) == 17 for row in plan.grid["ra"]) and len(plan.grid["ra"]) == 13
+    assert "volume mixing" in plan.hsp_basis
+    assert any("flammable" in c for c in plan.cautions)
+    assert plan.legal[0]["name"] == "ethanol" and plan.legal[0]["allowed"]
+    assert plan.legal[0]["residue_limits"]
+    assert plan.strip["azeotrope"] is not None and plan.strip["end_C"] > max(plan.strip["start_C"])
+    assert "extract_etb_freezing" in plan.sources["freezing_point"]
+    d = plan.to_dict()
+    assert d["grid"]["selectivity"] == plan.grid["selectivity"] and "window" in d
+    assert len(plan.to_frame()) == 13 * 17
+
+
+def test_any_two_liquids(cat):
+    r = extraction(solute="cannabidiol", liquids=("ethyl acetate", "ethanol"), strengths="50:100:25",
+                   temps_C="0, 20", catalog=cat)
+    assert r.liquids == ("ethyl acetate", "ethanol")
+    assert "Flory-Huggins" in r.strip["activity_model"]
+    assert any("no published freezing points" in n for n in r.notes)
+
+
+@pytest.mark.parametrize("fields, param", [
+    ({"liquids": ("ethanol",)}, "liquids"),
+    ({"strengths": "100:40:5"}, "strengths"),
+    ({"temps_C": (200,)}, "temps_C"),
+    ({"vacuum_kPa": 0}, "vacuum_kPa"),
+])
+def test_bad_requests_name_their_field(fields, param):
+    with pytest.raises(InputError) as e:
+        extraction(solute="cannabidiol", **fields)
+    assert e.value.param == param
