@@ -42,6 +42,9 @@ CASES = [
     (["blend", "--hsp", "17.5,6,10", "--max-components", "2", "--json"], NO_SCIPY),
     (["blend", "--hsp", "17.5,6,10", "--max-components", "3", "--only", "ethanol,water,triacetin", "--json"],
      OPTIONAL),
+    # the widest search from the command line: all liquids, up to 4 (the pair matrix is read from the
+    # cache folder or solved with numpy; scipy.optimize only for the tangent-plane polish)
+    (["blend", "--hsp", "17.8,3.9,9.9", "--max-components", "4", "--json"], OPTIONAL),
     (["miscible", "water", "ethyl acetate", "--json"], NO_SCIPY),
     (["fit", BENCH, "--good-at-most", "2", "--json"], OPTIONAL),
     (["hlb", "--oil", "d-limonene=70,medium-chain triglycerides=30", "--emulsifiers",
