@@ -17,6 +17,7 @@ its request and result types, and the catalog of sourced tables:
 ``hlb``            required HLB of an oil phase, emulsifier pairs
 ``emulsion``       weighting, density match and creaming of a drink
 ``dose``           levels along a dilution chain against the legal limits
+``clarity``        will the drink stay clear: flavour components against their solubility
 ``screen``         many targets at once through rank or blend (a DataFrame)
 ``load_catalog``   the bundled tables, with a user's own rows
 =================  =====================================================
@@ -54,6 +55,7 @@ _API = {
     "emulsion": "solvsel.jobs.emulsion", "EmulsionRequest": "solvsel.jobs.emulsion",
     "EmulsionResult": "solvsel.jobs.emulsion",
     "dose": "solvsel.jobs.dose", "DoseRequest": "solvsel.jobs.dose", "DoseResult": "solvsel.jobs.dose",
+    "clarity": "solvsel.jobs.clarity", "ClarityRequest": "solvsel.jobs.clarity", "ClarityResult": "solvsel.jobs.clarity",
     "screen": "solvsel.jobs.batch", "BatchRequest": "solvsel.jobs.batch",
     "SolvselError": "solvsel.errors", "InputError": "solvsel.errors",
 }

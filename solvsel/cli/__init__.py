@@ -36,6 +36,7 @@ COMMANDS = (
     "hlb",
     "emulsion",
     "dose",
+    "clear",
     "extract",
     "table",
     "report",
