@@ -1,9 +1,10 @@
-"""``solvsel report OUT.md COMMAND ...``: run any command and write its Markdown report, with JSON and CSV beside it.
+"""``solvsel report OUT.md COMMAND ...``: run any command and write its report: Markdown, a self-contained
+HTML page, JSON and CSV, and its figures (PNG; with the extra ``figures``).
 
-The three files are replaced as a set: they are written into a temporary folder beside OUT.md and
-renamed into place only when all three are whole; if a rename fails, the files already replaced are
+The files are replaced as a set: they are written into a temporary folder beside OUT.md and
+renamed into place only when all are whole; if a rename fails, the files already replaced are
 put back, and the temporary folder is removed whatever happens.  ``OUT.md`` given as ``-`` prints the
-Markdown on stdout (no JSON or CSV then).
+Markdown on stdout (no other file, no figures then).
 """
 
 from __future__ import annotations
@@ -26,9 +27,11 @@ OPTION_NAMES = {"out": "OUT.md", "cmd": "COMMAND"}
 def register(sub):
     p = sub.add_parser(
         "report",
-        help="run a command and write a Markdown report (with .json and .csv beside it)",
-        description="Run any solvsel command and write OUT.md (readable output, sources cited, cautions), "
-        "OUT.json (the command's JSON document) and OUT.csv (its main list); with --force an existing set is "
+        help="run a command and write a report (Markdown, HTML, .json, .csv and figures)",
+        description="Run any solvsel command and write OUT.md (inputs, readable output, figures, sources cited, "
+        "cautions), OUT.html (the same as one self-contained page), OUT.json (the command's JSON document), "
+        "OUT.csv (its main list) and the figures as OUT-figN-KIND.png (the map, the bench fit, creaming against "
+        "droplet size, the blends' trade-off; they need the extra 'figures'); with --force an existing set is "
         "replaced as a whole. OUT.md given as - prints the Markdown on stdout. Example: "
         "solvsel report cbd-carriers.md rank --solute cannabidiol --food",
     )
@@ -89,7 +92,7 @@ def run(args) -> int:
     if args.out == STDIN:
         _print_report(args, report)
         return 0
-    for p in _write_set(args, Path(args.out), report, force):
+    for p in _write_set(args, Path(args.out), report, force, cmd[0]):
         print(f"wrote {p}")
     return 0
 
@@ -101,13 +104,13 @@ def _print_report(args, report) -> None:
 
     folder = tempfile.mkdtemp(prefix="solvsel-report-")
     try:
-        written = write_report(Path(folder) / "report.md", *report, catalog=get_catalog(args))
+        written = write_report(Path(folder) / "report.md", *report, catalog=get_catalog(args), figures=False)
         sys.stdout.write(written[0].read_text(encoding="utf-8"))
     finally:
         shutil.rmtree(folder, ignore_errors=True)
 
 
-def _write_set(args, out: Path, report, force: bool) -> list[Path]:
+def _write_set(args, out: Path, report, force: bool, cmd_name: str) -> list[Path]:
     """Write the report's files beside ``out`` as a set: all replaced, or none."""
     from ..errors import FileError, InputError
     from ..jobs.report import write_report
@@ -120,7 +123,7 @@ def _write_set(args, out: Path, report, force: bool) -> list[Path]:
         raise FileError(f"cannot be written in its folder: {exc.strerror or exc}", param="out", value=str(out),
                         path=str(out)) from None
     try:
-        written = write_report(staging / out.name, *report, catalog=get_catalog(args))
+        written = write_report(staging / out.name, *report, catalog=get_catalog(args), job=cmd_name)
         finals = [folder / p.name for p in written]
         existing = [p for p in finals if p.exists()]
         if existing and not force:

@@ -235,8 +235,9 @@ def figures_of(command: str, data: Any) -> list[FigureData]:
     if command == "rank" and data.get("results") and data.get("target"):
         out.append(hsp_map(data["target"], data["results"], "The target and the liquids ranked", "liquids ranked"))
     elif command == "blend" and data.get("results"):
-        blends = [{**b, "name": _blend_name(b)} for b in data["results"]]
-        out += [hsp_map(data.get("target") or {}, blends, "The target and the blends found", "blends found"),
+        blends = [{**b, "name": f"#{b.get('rank', i)}"} for i, b in enumerate(data["results"], 1)]
+        out += [hsp_map(data.get("target") or {}, blends, "The target and the blends found",
+                        "blends found (numbered as in the result's table)"),
                 pareto(data)]
     elif command == "fit" and data.get("liquids") and data.get("r0"):
         out.append(bench_fit(data))
@@ -281,8 +282,27 @@ def _sphere(ax, centre: dict, r0: float, x: str, y: str, **style) -> None:
     ax.add_patch(Ellipse((centre[x], centre[y]), 2 * half[x], 2 * half[y], fill=False, **style))
 
 
+def _square(ax, xs: list[float], ys: list[float]) -> None:
+    """Limits of the same span on both axes around the points, the panel square: one MPa^0.5 is as long on
+    both axes, so the sphere shows its true shape."""
+    span = max(max(xs) - min(xs), max(ys) - min(ys), 1.0) * 1.12
+    cx, cy = (max(xs) + min(xs)) / 2, (max(ys) + min(ys)) / 2
+    ax.set_xlim(cx - span / 2, cx + span / 2)
+    ax.set_ylim(cy - span / 2, cy + span / 2)
+    ax.set_aspect("equal", adjustable="box")
+
+
+def _extent_of(points: list[dict], x: str, y: str, centre: dict | None, r0: float | None) -> tuple[list, list]:
+    """The x and y values a panel must show: the points, the centre and the sphere's extent."""
+    xs, ys = [p[x] for p in points], [p[y] for p in points]
+    if centre is not None and centre.get(x) is not None:
+        half = {"dD": (r0 or 0) / 2.0, "dP": r0 or 0, "dH": r0 or 0}
+        xs += [centre[x] - half[x], centre[x] + half[x]]
+        ys += [centre[y] - half[y], centre[y] + half[y]]
+    return xs, ys
+
+
 def _plane(ax, x: str, y: str) -> None:
-    ax.set_aspect("equal", adjustable="datalim")  # one MPa^0.5 as long on both axes: the sphere's true shape
     ax.set_xlabel(f"{x} [MPa^0.5]")
     ax.set_ylabel(f"{y} [MPa^0.5]")
     ax.grid(True, color="#dddddd", linewidth=0.6)
@@ -305,6 +325,7 @@ def _draw_map(figure: FigureData):
             ax.scatter([t[x]], [t[y]], marker="*", s=220, color="#d62728", edgecolors="black", zorder=5)
             if t["r0"]:
                 _sphere(ax, t, t["r0"], x, y, edgecolor="#d62728", linewidth=1.4)
+        _square(ax, *_extent_of(pts, x, y, t if t["dD"] is not None else None, t["r0"]))
         _plane(ax, x, y)
     fig.colorbar(sc, ax=list(axes), label="Ra to the target [MPa^0.5]", shrink=0.85)
     fig.suptitle(figure.title)
@@ -327,6 +348,7 @@ def _draw_fit(figure: FigureData):
                    linewidths=1.2, label="wrong side")
         ax.scatter([centre[x]], [centre[y]], marker="+", s=120, color="black")
         _sphere(ax, centre, d["r0"], x, y, edgecolor="black", linewidth=1.2)
+        _square(ax, *_extent_of(liquids, x, y, centre, d["r0"]))
         _plane(ax, x, y)
     axes[0].legend(fontsize=8, loc="best")
     _draw_red_strip(axes[3], d["liquids"])
