@@ -52,6 +52,9 @@ def register(sub):
                    help="normal boiling point window in C for every liquid, e.g. 40:100, :120 or 150:")
     g.add_argument("--min-flash", type=float, metavar="C", help="lowest closed-cup flash point allowed in C")
     g.add_argument("--max-cost", type=int, metavar="CLASS", help="dearest cost class allowed (1 cheap .. 5 dear)")
+    g.add_argument("--max-health-hazard", metavar="LEVEL",
+                   help="worst health hazard allowed for every liquid: none, irritant, harmful, 'toxic or "
+                   "corrosive', 'suspected CMR' or CMR (or 0 to 5)")
     g.add_argument("--temp", type=float, default=25.0, metavar="C",
                    help="temperature in C; the liquids' HSP are shifted to it (default 25)")
     g.add_argument("--min-fraction", type=float, default=0.05, metavar="F",
@@ -99,6 +102,7 @@ def request_fields(args) -> dict:
         use=args.use, food=args.food, jurisdiction=args.jurisdiction, purpose=args.purpose,
         worst_flammable_category=args.worst_hazard,
         bp_min_C=bp_lo, bp_max_C=bp_hi, min_flash_C=args.min_flash, max_cost=args.max_cost,
+        max_health_hazard=args.max_health_hazard,
         bounds=tuple(parse_fraction_bound(b, "bounds") for b in args.fraction),
         temp_C=args.temp,
         rejects=tuple(n for text in args.reject for n in parse_names(text, "rejects")),
@@ -167,9 +171,13 @@ def _print_blends(res, file) -> None:
     """The table of the blends shown, its key, and the blends folded into them."""
     rejects = bool(res.results[0].rejects)
     rows = [_row(b, rejects) for b in res.results]
+    for i, row in enumerate(rows):
+        row["health"] = res.health[i]["category"] if i < len(res.health) else ""
+        row["sure"] = res.sure[i]["verdict"] if i < len(res.sure) else ""
     cols = [("rank", "#"), ("blend", "blend (volume fractions)"), ("mass", "mass fr."),
             ("ra", "Ra", ".2f"), ("red", "RED", ".2f"), ("phase", "1 phase"), ("bp", "bp C"),
-            ("flash", "flash C", ".0f"), ("hazard", "flammable"), ("cost", "cost", ".1f")]
+            ("flash", "flash C", ".0f"), ("hazard", "flammable"), ("health", "health"), ("cost", "cost", ".1f"),
+            ("sure", "how sure")]
     basis = res.results[0].selectivity_basis
     if rejects:
         cols += [("near", "reject " + ("RED" if basis == "RED" else "Ra"), ".2f"), ("sel", "margin", ".2f")]
@@ -181,7 +189,10 @@ def _print_blends(res, file) -> None:
     print_table(rows, cols, file=file)
     notes = ["Ra, RED: distance to the target [MPa^0.5]; 1 phase: (m) measured pair data, (p) predicted, ? not checked; "
              "bp: normal boiling points of the components, (+?) some not on record; "
+             "health: the worst health hazard of the liquids; "
              "cost: volume-weighted cost class (1 cheap .. 5 dear)."]
+    if res.how_sure:
+        notes.append(f"How sure: {res.how_sure['summary']}")
     if rejects:
         notes.append("reject: distance of the nearest reject solute; margin: how much further it is than the target "
                      f"(in {basis}); * on the Pareto front (fit, reject distance, cost, hazard, components).")

@@ -93,9 +93,9 @@ class BlendRequest(PoolRequest):
         ``(dD, dP, dH[, R0])`` [MPa^0.5]; a SMILES; a ready :class:`~solvsel.science.target.Target`
     max_components : int
         largest blend, 1 to 4 (default 3)
-    only, exclude, use, food, jurisdiction, purpose, worst_flammable_category, bp_min_C, bp_max_C, min_flash_C, max_cost
+    only, exclude, use, food, jurisdiction, purpose, worst_flammable_category, bp_min_C, bp_max_C, min_flash_C, max_cost, max_health_hazard
         the filters of the candidate pool (:class:`~solvsel.jobs.pool.PoolFilters`; ``purpose``: what the
-        product is, an id of tables/purposes.csv)
+        product is, an id of tables/purposes.csv; ``max_health_hazard``: the worst health hazard allowed)
     bounds : tuple of FractionBound (or text such as "ethanol<=0.3")
         volume-fraction bounds [-] on single liquids; a lower bound above 0 puts
         the liquid in every blend
@@ -150,6 +150,7 @@ class BlendRequest(PoolRequest):
     bp_max_C: float | None = None
     min_flash_C: float | None = None
     max_cost: int | None = None
+    max_health_hazard: str | None = None
     bounds: tuple[FractionBound, ...] = ()
     temp_C: float = 25.0
     rejects: tuple[str, ...] = ()
@@ -292,11 +293,23 @@ class BlendResult:
     message: str
     liquid_cautions: tuple[str, ...] = ()
     audit: dict = field(default_factory=dict)
+    #: per blend shown (in the order of ``results``): its worst health hazard (``{"level", "category",
+    #: "liquid", "liquids": {name: label}}``) and how sure it is (``{"in_top_three", "verdict"}``)
+    health: tuple[dict, ...] = ()
+    sure: tuple[dict, ...] = ()
+    #: how the answers hold when the target is sampled within its uncertainty (summary)
+    how_sure: dict | None = None
+
+    def _row(self, i: int, b: Blend) -> dict:
+        """A blend of ``results`` as JSON, with its health hazard and how sure it is."""
+        return {**b.to_dict(), "health_hazard": self.health[i] if i < len(self.health) else None,
+                "how_sure": self.sure[i] if i < len(self.sure) else None}
 
     def to_dict(self) -> dict:
         return {
             "target": self.target,
-            "results": [b.to_dict() for b in self.results],
+            "how_sure": self.how_sure,
+            "results": [self._row(i, b) for i, b in enumerate(self.results)],
             "pareto": [b.to_dict() for b in self.pareto],
             "dropped": [d.to_dict() for d in self.dropped],
             "excluded": [e.to_dict() for e in self.excluded],
@@ -315,8 +328,11 @@ class BlendResult:
                 "hazard", "cost", "worst_reject_ra", "worst_reject_red", "selectivity", "pareto")
         rows = [{"blend": b.label, "liquids": " + ".join(b.names),
                  "volume_fractions": " + ".join(f"{c.volume_fraction:.4f}" for c in b.components),
-                 **{k: getattr(b, k) for k in keys}} for b in self.results]
-        return frame(rows, ("rank", "blend", "liquids", "volume_fractions") + keys[1:])
+                 **{k: getattr(b, k) for k in keys},
+                 "health_hazard": (self.health[i] if i < len(self.health) else {}).get("category"),
+                 "how_sure": (self.sure[i] if i < len(self.sure) else {}).get("verdict")}
+                for i, b in enumerate(self.results)]
+        return frame(rows, ("rank", "blend", "liquids", "volume_fractions") + keys[1:] + ("health_hazard", "how_sure"))
 
 
 # ----------------------------------------------------------------------------- the search state
@@ -376,14 +392,17 @@ class _Search:
         """The cautions of liquids for the use (:func:`solvsel.rules.cautions.solvent_cautions`)."""
         return [t for c in recs for t in solvent_cautions(c.record, use=self.req.use, cat=self.cat)]
 
-    def finish(self, results=(), pareto=(), success: bool = False, message: str = "") -> BlendResult:
+    def finish(self, results=(), pareto=(), success: bool = False, message: str = "", sure=None) -> BlendResult:
         by_name = {c.name: c for c in self.pool.candidates}
         names = dict.fromkeys(c.name for b in results for c in b.components)
         shown = dict.fromkeys(t for t in self.liquid_cautions([by_name[n] for n in names]) if t != DEFER)
+        health = tuple(_blend_health([by_name[n] for n in b.names]) for b in results)
         return BlendResult({**self.target.to_dict(), "temp_C": self.req.temp_C}, tuple(results), tuple(pareto),
                            tuple(self.dropped), self.pool.left_out, self.counts, _constraints(self.req),
                            _cautions(self.req), success, message, tuple(shown) + (DEFER,),
-                           audit_block(self.pool.rules, self.cat.tables_dir))
+                           audit_block(self.pool.rules, self.cat.tables_dir), health,
+                           () if sure is None else tuple(sure.row(i) for i in range(len(results))),
+                           None if sure is None else sure.to_dict())
 
 
 @dataclass(frozen=True)
@@ -584,6 +603,34 @@ def _hazard_text(hz) -> str:
     return f"flammable liquid, GHS category {hz.category}"
 
 
+def _blend_health(recs: list[Candidate]) -> dict:
+    """The worst health hazard of a blend's liquids (level of :data:`~solvsel.rules.hazards.HEALTH_LEVELS`;
+    None where a liquid's are not on record) and each liquid's."""
+    known = [c for c in recs if c.health is not None]
+    worst = max(known, key=lambda c: c.health.level, default=None)
+    complete = len(known) == len(recs)
+    return {"level": worst.health.level if worst and complete else None,
+            "category": (worst.health.category if complete else "not on record for every liquid") if worst else
+            "not on record", "liquid": worst.name if worst else None,
+            "liquids": {c.name: c.health.label if c.health is not None else "not on record" for c in recs}}
+
+
+def _how_sure(s: _Search, sc: _Scores, kept: list, results: list[Blend]):
+    """How the blends shown hold when the target is sampled within its uncertainty: the blends that
+    passed the checks re-scored at their fixed fractions (no new search for each sample)."""
+    from ..science.robustness import how_sure, target_spread
+
+    js = [j for j, _ in kept]
+    order = sorted(range(len(js)), key=lambda i: (sc.ra[js[i]], i))  # nominal order: best fit first
+    position = {js[i]: k for k, i in enumerate(order)}
+    label = {j: b.label for (j, _), b in zip(kept, results)}
+    names = [label.get(js[i], f"blend {k + 1}") for k, i in enumerate(order)]
+    return how_sure(s.target.hsp, target_spread(s.target, s.cat), s.cands.hsp[[js[i] for i in order]], names,
+                    [position[j] for j, _ in kept[:len(results)]],
+                    f"the {len(js)} blends that passed the checks re-scored at their fixed fractions "
+                    "(fractions not re-optimised for each sample)")
+
+
 def _regulations(c: Candidate, req: BlendRequest) -> list[dict]:
     """The food-law status of a liquid for the use, where a use or a jurisdiction is given."""
     if (req.use is None and req.jurisdiction is None) or c.food is None:
@@ -695,7 +742,8 @@ def _constraints(req: BlendRequest) -> dict:
         "max_components": req.max_components, "use": req.use, "food": req.food, "jurisdiction": req.jurisdiction,
         "purpose": req.purpose,
         "only": list(req.only) if req.only else None, "exclude": list(req.exclude) if req.exclude else None,
-        "worst_flammable_category": req.worst_flammable_category, "bp_min_C": req.bp_min_C,
+        "worst_flammable_category": req.worst_flammable_category, "max_health_hazard": req.max_health_hazard,
+        "bp_min_C": req.bp_min_C,
         "bp_max_C": req.bp_max_C, "min_flash_C": req.min_flash_C, "max_cost": req.max_cost,
         "bounds": [b.to_dict() for b in req.bounds], "temp_C": req.temp_C,
         "rejects": list(req.rejects) + [label for label, _, _ in req.reject_spheres], "sort": req.sort,
@@ -765,6 +813,8 @@ def blend(request: BlendRequest | None = None, *, catalog: Catalog | None = None
     kept = _check(s, sc)
     if not kept:
         return s.finish(message="no blend passed the checks (see dropped)")
-    results, pareto = _shown(s, sc, _order(s, sc, kept))
+    kept = _order(s, sc, kept)
+    results, pareto = _shown(s, sc, kept)
     return s.finish(results, pareto, True,
-                    f"{len(results)} blend(s) from {m} liquids; {counts['combinations']} combinations searched")
+                    f"{len(results)} blend(s) from {m} liquids; {counts['combinations']} combinations searched",
+                    _how_sure(s, sc, kept, results))

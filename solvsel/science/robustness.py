@@ -170,7 +170,7 @@ def _verdict(rank: int, share: float) -> str:
     return "stable" if share <= 1.0 - STABLE_SHARE else "sensitive"
 
 
-def how_sure(target_hsp, spread: Spread | None, answers_hsp, names, shown: int | None = None,
+def how_sure(target_hsp, spread: Spread | None, answers_hsp, names, report=None,
              scope: str = "", n: int = SAMPLES, seed: int = SEED) -> HowSure:
     """Sample the target within ``spread`` and say how often each answer stays among the three best.
 
@@ -184,8 +184,9 @@ def how_sure(target_hsp, spread: Spread | None, answers_hsp, names, shown: int |
         the HSP of every answer considered [MPa^0.5], best first (the nominal order)
     names : sequence of str
         their names
-    shown : int, optional
-        how many of the first answers to report on (default all)
+    report : int or sequence of int, optional
+        the answers to report on: the first ``report`` ones, or their positions in the nominal
+        order (default all)
     scope : str
         what was re-scored, in words (shown in the summary)
 
@@ -200,22 +201,24 @@ def how_sure(target_hsp, spread: Spread | None, answers_hsp, names, shown: int |
     """
     H = np.asarray(answers_hsp, dtype=float).reshape(-1, 3)
     names = tuple(names)
-    k = len(names) if shown is None else min(int(shown), len(names))
+    if report is None or isinstance(report, (int, np.integer)):
+        report = range(len(names) if report is None else min(int(report), len(names)))
+    report = [int(i) for i in report]
+    shown = tuple(names[i] for i in report)
     if spread is None or len(names) <= TOP:
-        shares = tuple(1.0 if i < TOP else 0.0 for i in range(k))
+        shares = tuple(1.0 if i < TOP else 0.0 for i in report)
         why = "the target's HSP carry no uncertainty" if spread is None else f"only {len(names)} answers"
-        return HowSure(names[:k], shares, ("stable",) * k, spread, 0, (), f"stable: {why}", scope)
+        return HowSure(shown, shares, ("stable",) * len(report), spread, 0, (), f"stable: {why}", scope)
     rng = np.random.default_rng(seed)
     T = np.asarray(target_hsp, dtype=float)[None, :] + rng.standard_normal((n, 3)) * np.asarray(spread.sd)[None, :]
     d = H[None, :, :] - T[:, None, :]
     ra2 = 4.0 * d[..., 0] ** 2 + d[..., 1] ** 2 + d[..., 2] ** 2  # (n, m); Ra squared
     best = np.argpartition(ra2, TOP - 1, axis=1)[:, :TOP]
-    counts = np.bincount(best.ravel(), minlength=len(names))[:k]
-    shares = tuple(round(float(c) / n, 3) for c in counts)
-    verdicts = tuple(_verdict(i, s) for i, s in enumerate(shares))
-    moving = tuple(nm for nm, v in zip(names[:k], verdicts) if v == "sensitive")
-    return HowSure(names[:k], shares, verdicts, spread, n, moving, _summary(names[:k], shares, moving, spread, n, scope),
-                   scope)
+    counts = np.bincount(best.ravel(), minlength=len(names))
+    shares = tuple(round(float(counts[i]) / n, 3) for i in report)
+    verdicts = tuple(_verdict(i, s) for i, s in zip(report, shares))
+    moving = tuple(nm for nm, v in zip(shown, verdicts) if v == "sensitive")
+    return HowSure(shown, shares, verdicts, spread, n, moving, _summary(shown, shares, moving, spread, n, scope), scope)
 
 
 def _summary(names, shares, moving, spread: Spread, n: int, scope: str) -> str:
