@@ -37,6 +37,7 @@ COMMANDS = (
     "emulsion",
     "dose",
     "clear",
+    "dissolves",
     "extract",
     "table",
     "report",

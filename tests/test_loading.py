@@ -1,0 +1,67 @@
+"""The load check ("does it dissolve at my level?") against measured pairs and the solubility model."""
+
+from __future__ import annotations
+
+import pytest
+
+from solvsel.data.catalog import load_catalog
+from solvsel.errors import InputError, UnknownNameError
+from solvsel.jobs.load import load
+from solvsel.science.loading import MARGIN, storage_temperatures
+
+
+@pytest.fixture(scope="module")
+def cat():
+    return load_catalog()
+
+
+def test_measured_window_limits_the_load(cat):
+    # tables/miscibility.csv, source practice_triacetin_mct: triacetin dissolves in the medium-chain
+    # triglycerides up to about 20 % by mass at 25 C
+    r = load(solute="triacetin", carrier="medium-chain triglycerides", load="30%", catalog=cat)
+    assert r.verdict == "no" and r.basis == "measured pair"
+    assert r.largest_load == pytest.approx(0.20)
+    assert load(solute="triacetin", carrier="medium-chain triglycerides", load="10%", catalog=cat).verdict == "yes"
+    # between the margin and the limit: borderline
+    mid = 0.5 * (MARGIN * 0.20 + 0.20)
+    assert load(solute="triacetin", carrier="medium-chain triglycerides", load=mid, catalog=cat).verdict == "borderline"
+
+
+def test_immiscible_pair_carries_nothing(cat):
+    # d-limonene and water: practically immiscible (tables/miscibility.csv, common practice)
+    r = load(solute="d-limonene", carrier="water", load="2%", catalog=cat)
+    assert r.verdict == "no" and r.largest_load == 0.0
+
+
+def test_miscible_pair_carries_any_load(cat):
+    # ethanol and d-limonene mix in all proportions (common practice, tables/miscibility.csv)
+    r = load(solute="d-limonene", carrier="ethanol", load="50%", storage_C=(20, 25), catalog=cat)
+    assert r.verdict == "yes" and r.largest_load == 1.0
+
+
+def test_solid_solubility_falls_in_the_cold(cat):
+    warm = load(solute="cannabidiol", carrier="medium-chain triglycerides", load="1%", storage_C=(25, 25), catalog=cat)
+    cold = load(solute="cannabidiol", carrier="medium-chain triglycerides", load="1%", storage_C=(4, 25), catalog=cat)
+    assert cold.basis.startswith("solid solubility")
+    assert cold.largest_load < warm.largest_load and cold.check.limiting_temp_C == 4.0
+
+
+def test_blend_carrier(cat):
+    r = load(solute="d-limonene", carrier=("propylene glycol", "ethanol"), fractions=(0.5, 0.5), load="5%",
+             catalog=cat)
+    assert r.basis.startswith("blend check")
+    assert len(r.check.points) == len(storage_temperatures(4, 25))
+
+
+@pytest.mark.parametrize("fields, param", [
+    ({"load": "0%"}, "load"),
+    ({"load": 2}, "load"),
+    ({"storage_C": "25:4"}, "storage_C"),
+    ({"carrier": ("ethanol", "water")}, "fractions"),
+    ({"solute": "no such thing"}, "solute"),
+])
+def test_bad_requests_name_their_field(fields, param):
+    base = {"solute": "d-limonene", "carrier": ("ethanol",), "load": "1%"}
+    with pytest.raises((InputError, UnknownNameError)) as e:
+        load(**{**base, **fields})
+    assert e.value.param == param
