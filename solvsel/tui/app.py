@@ -34,8 +34,9 @@ class SolvselApp(App):
 
     CSS_PATH = "app.tcss"
     TITLE = "solvsel"
-    ENABLE_COMMAND_PALETTE = False
-    BINDINGS = [Binding(key.lower(), f"switch_mode('{mode}')", title, show=False) for mode, key, title in SCREENS] + [
+    COMMAND_PALETTE_BINDING = "ctrl+p"
+    BINDINGS = [Binding(f"{key.lower()},alt+{i}", f"switch_mode('{mode}')", title, show=False)
+                for i, (mode, key, title) in enumerate(SCREENS, 1)] + [
         Binding("f9", "toggle_keys", "Keys"),
         Binding("ctrl+q", "quit", "Quit", priority=True),
     ]
@@ -68,6 +69,18 @@ class SolvselApp(App):
             self.action_hide_help_panel()
         else:
             self.action_show_help_panel()
+
+    def get_system_commands(self, screen):
+        """The command palette (Ctrl+P): every screen by name, then the keys panel and quitting."""
+        from textual.app import SystemCommand
+
+        for i, (mode, key, title) in enumerate(SCREENS, 1):
+            yield SystemCommand(f"Go to {title}", f"the {title} screen ({key} or Alt+{i})",
+                                lambda m=mode: self.switch_mode(m))
+        yield SystemCommand("Fold or show the form", "the form of this screen as one line (Ctrl+O)",
+                            lambda: self.screen.run_action("toggle_form"))
+        yield SystemCommand("Keys", "show or hide every key of this screen (F9)", self.action_toggle_keys)
+        yield SystemCommand("Quit", "leave solvsel (Ctrl+Q)", self.exit)
 
     def on_mount(self) -> None:
         self.switch_mode(self.start_mode or ("carriers" if self.session.target is not None else "tables"))

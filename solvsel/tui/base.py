@@ -1,10 +1,17 @@
-"""The frame every screen shares: the screen strip, the target line and the key footer."""
+"""The frame every screen shares: the screen strip, the target line, the form summary and the key footer.
+
+Keys common to every screen: F1-F7 and Alt+1-7 switch screens (terminals send no
+distinct Ctrl+digit), Ctrl+P opens the command palette, Ctrl+O folds the screen's
+form into a one-line summary and back, Ctrl+T / Ctrl+B go to the next / previous
+tab of a screen that has tabs (and put the cursor in the tab's first field).
+"""
 
 from __future__ import annotations
 
 from textual.app import ComposeResult
+from textual.binding import Binding
 from textual.screen import Screen
-from textual.widgets import Footer
+from textual.widgets import Footer, Static, TabbedContent
 
 from .widgets import ScreenStrip, TargetLine
 
@@ -19,6 +26,9 @@ SCREENS = [
     ("mixing", "F7", "Mixing"),
 ]
 
+#: Below this many columns a screen opens with its form folded into its summary line.
+NARROW = 120
+
 
 class BenchScreen(Screen):
     """Base of the screens: adds the frame and redraws when the target changes."""
@@ -27,6 +37,18 @@ class BenchScreen(Screen):
     #: Labels of this screen's fields by the request field they fill (``{"temp_C": "temperature"}``);
     #: an error about a request field is shown with its label (else :data:`.dialogs.FIELD_NAMES`).
     FIELD_LABELS: dict[str, str] = {}
+    #: id of the screen's form pane ("" when it has none) and of its tabs ("" when it has none).
+    FORM = ""
+    TABS = ""
+    #: The field that takes the cursor when a tab opens, by tab id.
+    FIRST_FIELD: dict[str, str] = {}
+    HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (NARROW, "-wide")]
+
+    BINDINGS = [
+        Binding("ctrl+o", "toggle_form", "Form", priority=True),
+        Binding("ctrl+t", "tab(1)", "Next tab", priority=True),
+        Binding("ctrl+b", "tab(-1)", "Previous tab", priority=True),
+    ]
 
     def __init__(self) -> None:
         super().__init__()
@@ -39,10 +61,71 @@ class BenchScreen(Screen):
     def compose_frame_top(self) -> ComposeResult:
         yield ScreenStrip(SCREENS, self.MODE, classes="strip")
         yield TargetLine(classes="target-line")
+        if self.FORM:
+            yield Static("", id="form-summary", classes="form-summary")
 
     def compose_frame_bottom(self) -> ComposeResult:
         yield Footer()
 
+    def on_mount(self) -> None:
+        if self.FORM and self.app.size.width < NARROW:
+            self.fold_form(True)
+
+    def check_action(self, action: str, parameters) -> bool | None:
+        """Hide the keys a screen has no use for (no form, no tabs) from the footer."""
+        if action == "toggle_form":
+            return bool(self.FORM)
+        if action == "tab":
+            return bool(self.TABS)
+        return True
+
+    # ---------------------------------------------------------------- the form and its summary
+    def form_summary(self) -> str:
+        """The form in one line (each screen says what matters in its own form)."""
+        return ""
+
+    def show_summary(self) -> None:
+        """Refresh the summary line (shown while the form is folded)."""
+        for line in self.query("#form-summary"):
+            line.update(f"{self.form_summary()}   (Ctrl+O: show the form)")
+
+    def fold_form(self, folded: bool) -> None:
+        self.set_class(folded, "-form-folded")
+        self.show_summary()
+
+    def action_toggle_form(self) -> None:
+        if not self.FORM:
+            return
+        folded = not self.has_class("-form-folded")
+        self.fold_form(folded)
+        if not folded:
+            from textual.widgets import Input, Select
+
+            first = next(iter(self.query_one(f"#{self.FORM}").query("Input, Select")), None)
+            if isinstance(first, (Input, Select)):
+                self.call_after_refresh(first.focus)
+
+    # ---------------------------------------------------------------- tabs
+    def action_tab(self, step: int) -> None:
+        """Open the next (``step`` 1) or previous (-1) tab and put the cursor in its first field."""
+        if not self.TABS:
+            return
+        tabs = self.query_one(f"#{self.TABS}", TabbedContent)
+        ids = [pane.id for pane in tabs.query("TabPane")]
+        i = ids.index(tabs.active) if tabs.active in ids else 0
+        tabs.active = ids[(i + step) % len(ids)]
+
+    def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
+        field = self.FIRST_FIELD.get(event.pane.id or "")
+        if field:
+            widget = self.query_one(field)
+            self.call_after_refresh(widget.focus)
+        self.tab_opened(event.pane.id or "")
+
+    def tab_opened(self, tab: str) -> None:
+        """Called when a tab of the screen opens."""
+
+    # ---------------------------------------------------------------- target
     def on_screen_resume(self) -> None:
         for line in self.query(TargetLine):
             line.show(self.session.target)

@@ -24,9 +24,13 @@ from .base import BenchScreen
 from .limits import NO_PURPOSE, audit_text, purpose_choices, purpose_value
 from .widgets import CautionBox, fill_table
 
-RANK_HEADERS = ("#", "liquid", "Ra", "RED", "bp C", "flash C", "GHS", "food status", "cost")
-DROPPED_HEADERS = ("blend (volume fractions)", "Ra", "why it was dropped")
-EXCLUDED_HEADERS = ("liquid", "why it is not in the pool")
+# Verdicts first, names last (cut first where the screen is narrow; the detail pane has them whole).
+RANK_HEADERS = ("#", "Ra MPa½", "RED", "allowed", "flammable", "flash °C", "boils °C", "cost 1-5", "liquid")
+DROPPED_HEADERS = ("Ra MPa½", "why it was dropped", "blend (volume fractions)")
+EXCLUDED_HEADERS = ("why it is not in the pool", "liquid")
+#: Weight of counting the combinations in the one bar over the search (the checks and the
+#: description of the best blends after it report no count of their own).
+COUNT_SHARE = 0.6
 
 USE_CHOICES = [("carrier (flavour carrier)", "carrier"), ("extraction", "extraction"), ("bench", "bench"),
                ("any liquid of the table", "any")]
@@ -43,26 +47,28 @@ def jurisdiction_choices(cat) -> list[tuple[str, str]]:
 class BlendProgress(Message):
     """The blend search moved on: ``done`` of ``total`` steps (``total`` None: not known)."""
 
-    def __init__(self, done: float, total: float | None, text: str) -> None:
+    def __init__(self, done: float, total: float | None, text: str, search: int = 0) -> None:
         super().__init__()
-        self.done, self.total, self.text = done, total, text
+        self.done, self.total, self.text, self.search = done, total, text, search
 
 
 class BlendDone(Message):
     """The blend search finished (``result`` a BlendResult) or was cancelled (``result`` None)."""
 
-    def __init__(self, result, cancelled: bool = False) -> None:
+    def __init__(self, result, cancelled: bool = False, search: int = 0) -> None:
         super().__init__()
         self.result = result
         self.cancelled = cancelled
+        self.search = search
 
 
 class BlendFailed(Message):
     """The blend search stopped on a user's mistake (a SolvselError)."""
 
-    def __init__(self, error: BaseException) -> None:
+    def __init__(self, error: BaseException, search: int = 0) -> None:
         super().__init__()
         self.error = error
+        self.search = search
 
 
 def _text(screen, selector: str) -> str | None:
@@ -79,6 +85,8 @@ class CarriersScreen(BenchScreen):
     """Ranked single liquids and optimised blends for the current target."""
 
     MODE = "carriers"
+    FORM = "constraints"
+    TABS = "carrier-tabs"
     #: The form's labels of the request fields (an error about a field names it by its label).
     FIELD_LABELS = {
         "temp_C": "temperature", "min_flash_C": "lowest flash point", "bp_min_C": "boiling window",
@@ -91,10 +99,7 @@ class CarriersScreen(BenchScreen):
         Binding("escape", "cancel", "Cancel search"),
         Binding("ctrl+f", "preset('carrier')", "Carrier preset", priority=True),
         Binding("ctrl+g", "preset('extraction')", "Extraction preset", priority=True),
-        Binding("ctrl+t", "next_list", "Next list", priority=True),
     ]
-
-    LISTS = ("tab-single", "tab-blends", "tab-dropped", "tab-excluded")
 
     def __init__(self) -> None:
         super().__init__()
@@ -102,6 +107,9 @@ class CarriersScreen(BenchScreen):
         self.result = None  # BlendResult: the blends
         self.worker: Worker | None = None
         self.messages: list[Message] = []  # typed messages seen (for the tests and the status line)
+        self.search_no = 0  # the search whose messages count (those of an older one are ignored)
+        self.search_started = 0.0  # monotonic time the search in progress started
+        self._ticker = None
 
     def compose(self) -> ComposeResult:
         yield from self.compose_frame_top()
@@ -235,12 +243,32 @@ class CarriersScreen(BenchScreen):
             return
         self.ranking = res
         self.session.ranking = res
-        fill_table(self.query_one("#rank-grid", DataTable), RANK_HEADERS, [
-            (str(i), r.name + (" (yours)" if r.origin.startswith("user") else ""), _fmt(r.ra),
-             _fmt(r.red), _fmt(r.bp_C, ".0f"), _fmt(r.flash_C, ".0f"), r.hazard_code or "no",
-             r.food_status or "-", _fmt(r.cost_class, ".0f"))
-            for i, r in enumerate(res.results, 1)])
+        self.fill_ranking()
         self.show_active()
+
+    def fill_ranking(self) -> None:
+        res = self.ranking
+        fill_table(self.query_one("#rank-grid", DataTable), RANK_HEADERS, [
+            (str(i), _fmt(r.ra), _fmt(r.red), _allowed(r), r.hazard_code or "no", _fmt(r.flash_C, ".0f"),
+             _fmt(r.bp_C, ".0f"), _fmt(r.cost_class, ".0f"), r.name + (" (yours)" if r.origin.startswith("user") else ""))
+            for i, r in enumerate(res.results if res is not None else (), 1)], cut=-1)
+
+    def on_resize(self) -> None:
+        """Cut the names to the new width (the verdict columns stay whole)."""
+        self.fill_ranking()
+        if self.result is not None:
+            self.fill_blends(self.result)
+
+    def form_summary(self) -> str:
+        q = self.query_one
+        parts = [f"use {q('#use', Select).value}", f"law {q('#jurisdiction', Select).value}",
+                 f"for {q('#purpose', Select).value}", f"up to {q('#max-components', Select).value} liquids",
+                 f"{q('#temp', Input).value.strip() or '?'} C"]
+        for label, sel in (("flash at least", "#min-flash"), ("boils", "#bp-window"), ("leaving out", "#exclude"),
+                           ("keeping out", "#rejects")):
+            if _text(self, sel):
+                parts.append(f"{label} {_text(self, sel)}")
+        return "Constraints: " + " · ".join(parts)
 
     def show_single(self, r) -> None:
         t = Text()
@@ -263,85 +291,125 @@ class CarriersScreen(BenchScreen):
 
     # ---------------------------------------------------------------- blends (worker)
     def start_search(self, req) -> None:
+        import time
+
         if self.worker is not None and self.worker.state in (WorkerState.PENDING, WorkerState.RUNNING):
             self.worker.cancel()
+        self.search_no += 1
+        self.search_started = time.monotonic()
+        self.set_stale(self.result is not None)
+        self.query_one("#search-progress", ProgressBar).update(total=100, progress=0)
+        self.query_one("#search-status", Static).update("searching blends: the pool and its constraints (Esc cancels)")
+        self.show_summary()
+        if self._ticker is None:
+            self._ticker = self.set_interval(0.5, self.tick, pause=False)
+        self.worker = self.search_worker(req, self.search_no)
+
+    def set_stale(self, stale: bool) -> None:
+        """Grey the blend lists (and say so) while they are those of the previous search."""
+        for grid_id in ("#blend-grid", "#dropped-grid", "#excluded-grid"):
+            self.query_one(grid_id, DataTable).set_class(stale, "-stale")
+        for pane in self.query("#tab-blends, #tab-dropped, #tab-excluded"):
+            pane.border_title = "previous search: new results on the way" if stale else None
+
+    def searching(self) -> bool:
+        return self.worker is not None and self.worker.state in (WorkerState.PENDING, WorkerState.RUNNING)
+
+    def tick(self) -> None:
+        """After the count: say how long the checks have run (they report no count of their own)."""
+        import time
+
         bar = self.query_one("#search-progress", ProgressBar)
-        bar.update(total=None, progress=0)
-        self.query_one("#search-status", Static).update("searching blends ... (Esc cancels)")
-        self.worker = self.search_worker(req)
+        if not self.searching() or bar.progress < 100 * COUNT_SHARE:
+            return
+        seconds = time.monotonic() - self.search_started
+        self.query_one("#search-status", Static).update(
+            f"step 2 of 2: checking the best blends (one phase, limits) and describing them, {seconds:.0f} s "
+            "so far (Esc cancels)")
 
     @work(thread=True, exclusive=True, group="blends", exit_on_error=False)
-    def search_worker(self, req) -> None:
+    def search_worker(self, req, search: int = 0) -> None:
         """Run the ``blend`` job off the UI thread (its name look-ups may reach the reference library)."""
         from ..errors import SolvselError
         from ..jobs import blend as blend_job
 
         worker = get_current_worker()
-        self.post_message(BlendProgress(0, None, f"pool and constraints; blends of up to {req.max_components} liquids"))
+        self.post_message(BlendProgress(0, None, f"pool and constraints; blends of up to {req.max_components} liquids",
+                                        search))
 
         def progress(done, total):
             # the engine calls this after each batch of combinations; False stops it
             if worker.is_cancelled:
                 return False
-            self.post_message(BlendProgress(done, total, f"exact fractions: {done} of {total} combinations"))
+            self.post_message(BlendProgress(done, total, f"step 1 of 2: exact fractions, {done:,} of {total:,} "
+                                                         "combinations (Esc cancels)", search))
             return True
 
         try:
             res = blend_job.blend(req, catalog=self.session.catalog, progress=progress)
         except SolvselError as exc:
-            self.post_message(BlendFailed(exc))
+            self.post_message(BlendFailed(exc, search))
             return
         if worker.is_cancelled:  # stopped by the callback (a result with success False), or just after
-            self.post_message(BlendDone(None, cancelled=True))
+            self.post_message(BlendDone(None, cancelled=True, search=search))
             return
-        self.post_message(BlendDone(res))
-
-    def action_next_list(self) -> None:
-        tabs = self.query_one("#carrier-tabs", TabbedContent)
-        i = self.LISTS.index(tabs.active) if tabs.active in self.LISTS else 0
-        tabs.active = self.LISTS[(i + 1) % len(self.LISTS)]
+        self.post_message(BlendDone(res, search=search))
 
     def action_cancel(self) -> None:
-        if self.worker is not None and self.worker.state in (WorkerState.PENDING, WorkerState.RUNNING):
+        """Stop the search at whatever step it is in; the lists go back to the previous search's."""
+        if self.searching():
             self.worker.cancel()
-            self.query_one("#search-status", Static).update("cancelling ...")
+            self.search_no += 1  # whatever the cancelled search still posts is ignored
+            self.stopped("search cancelled: the lists show the previous search" if self.result is not None
+                         else "search cancelled")
+            self.set_stale(False)
+
+    def stopped(self, text: str) -> None:
+        self.query_one("#search-progress", ProgressBar).update(total=100, progress=0)
+        self.query_one("#search-status", Static).update(text)
 
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
         # a search cancelled before its thread ran posts nothing: say so here
         if event.worker is self.worker and event.state == WorkerState.CANCELLED:
-            self.query_one("#search-progress", ProgressBar).update(total=1, progress=0)
-            self.query_one("#search-status", Static).update("search cancelled")
+            self.stopped("search cancelled")
         elif event.worker is self.worker and event.state == WorkerState.ERROR:
             # not a user's mistake (those come as BlendFailed): a fault of the program, shown, not hidden
             from .dialogs import ErrorDialog
 
-            self.query_one("#search-progress", ProgressBar).update(total=1, progress=0)
-            self.query_one("#search-status", Static).update("search failed")
+            self.stopped("search failed")
+            self.set_stale(False)
             err = event.worker.error
             self.app.push_screen(ErrorDialog("Internal error (please report it)", f"{type(err).__name__}: {err}"))
 
     def on_blend_progress(self, message: BlendProgress) -> None:
+        if message.search != self.search_no:
+            return
         self.messages.append(message)
-        bar = self.query_one("#search-progress", ProgressBar)
-        bar.update(total=message.total, progress=message.done)
+        share = COUNT_SHARE * message.done / message.total if message.total else 0.0
+        self.query_one("#search-progress", ProgressBar).update(total=100, progress=100 * share)
         self.query_one("#search-status", Static).update(message.text)
+        if message.total and message.done >= message.total:
+            self.tick()
 
     def on_blend_failed(self, message: BlendFailed) -> None:
+        if message.search != self.search_no:
+            return
         self.messages.append(message)
-        self.query_one("#search-progress", ProgressBar).update(total=1, progress=0)
-        self.query_one("#search-status", Static).update("search stopped: see the message")
+        self.stopped("search stopped: see the message")
+        self.set_stale(False)
         from .dialogs import show_error
 
         show_error(self.app, message.error, self.FIELD_LABELS)
 
     def on_blend_done(self, message: BlendDone) -> None:
-        self.messages.append(message)
-        bar = self.query_one("#search-progress", ProgressBar)
-        if message.cancelled or message.result is None:
-            bar.update(total=1, progress=0)
-            self.query_one("#search-status", Static).update("search cancelled")
+        if message.search != self.search_no:
             return
-        bar.update(total=1, progress=1)
+        self.messages.append(message)
+        self.set_stale(False)
+        if message.cancelled or message.result is None:
+            self.stopped("search cancelled")
+            return
+        self.query_one("#search-progress", ProgressBar).update(total=100, progress=100)
         res = message.result
         self.result = res
         self.session.blends = res
@@ -355,24 +423,24 @@ class CarriersScreen(BenchScreen):
     def fill_blends(self, res) -> None:
         rejects = any(b.rejects for b in res.results)
         basis = next((b.selectivity_basis for b in res.results if b.selectivity_basis), "Ra")
-        cols = ["#", "blend (volume fractions)", "Ra", "RED"]
+        cols = ["#", "Ra MPa½", "RED"]
         if rejects:
             cols += [f"keep-out {basis}", "margin"]
-        cols += ["one phase", "bp C", "flash C", "flammable", "cost"]
+        cols += ["one phase", "flammable", "flash °C", "boils °C", "cost 1-5", "blend (volume fractions)"]
         rows = []
         for b in res.results:
-            row = [str(b.rank) + ("*" if b.pareto and rejects else ""),
-                   b.label + (f" (+{len(b.alternatives)} alike)" if b.alternatives else ""), _fmt(b.ra), _fmt(b.red)]
+            row = [str(b.rank) + ("*" if b.pareto and rejects else ""), _fmt(b.ra), _fmt(b.red)]
             if rejects:
                 row += [_fmt(b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra),
                         _fmt(b.selectivity)]
-            rows.append(row + [_phase(b, short=True), _bp(b), _fmt(b.lowest_flash_C, ".0f"), _short_hazard(b), _fmt(b.cost, ".1f")])
-        fill_table(self.query_one("#blend-grid", DataTable), cols, rows)
+            rows.append(row + [_phase(b, short=True), _short_hazard(b), _fmt(b.lowest_flash_C, ".0f"), _bp(b),
+                               _fmt(b.cost, ".1f"), b.label + (f" (+{len(b.alternatives)} alike)" if b.alternatives else "")])
+        fill_table(self.query_one("#blend-grid", DataTable), cols, rows, cut=-1)
         fill_table(self.query_one("#dropped-grid", DataTable), DROPPED_HEADERS, [
-            (" + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions)), _fmt(d.ra), d.reason)
-            for d in res.dropped])
+            (_fmt(d.ra), d.reason, " + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions)))
+            for d in res.dropped], cut=1)
         fill_table(self.query_one("#excluded-grid", DataTable), EXCLUDED_HEADERS,
-                   [(e.name, e.reason) for e in res.excluded])
+                   [(e.reason, e.name) for e in res.excluded], cut=0)
         if res.results or self.query_one("#carrier-tabs", TabbedContent).active != "tab-blends":
             self.show_active()
         else:
@@ -411,7 +479,8 @@ class CarriersScreen(BenchScreen):
             d = self.result.dropped[row]
             label = " + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions))
             self.query_one("#carrier-detail", Static).update(Text.assemble(
-                ("dropped: ", "bold"), (label + "\n", "bold"), f"Ra {d.ra:.2f}\n", d.reason))
+                ("dropped: ", "bold"), (label + "\n", "bold"), f"Ra {d.ra:.2f} MPa^0.5\n", d.reason))
+            self.show_cautions(None)
         elif grid_id == "excluded-grid" and self.result is not None and 0 <= row < len(self.result.excluded):
             e = self.result.excluded[row]
             self.query_one("#carrier-detail", Static).update(Text.assemble(
@@ -449,24 +518,27 @@ class CarriersScreen(BenchScreen):
         self.show_cautions(b)
 
     def show_cautions(self, selected=None) -> None:
-        """The selected liquid's or blend's cautions, then those of every liquid on screen, then the
-        lists' (all from the jobs' results)."""
-        lists = [res for res in (self.result, self.ranking) if res is not None]
-        if selected is None:
-            selected = next((res.results[0] for res in lists if res.results), None)
+        """The selected liquid's or blend's own cautions, then those of the list it is in that belong
+        to no single row of it (all from the jobs' results): never the cautions of a liquid that is
+        not in the selection."""
+        res = self.result if selected is None or hasattr(selected, "components") else self.ranking
+        res = res if res is not None else (self.result or self.ranking)
         cautions = list(selected.cautions) if selected is not None else []
-        if self.result is not None:
-            cautions += list(self.result.liquid_cautions)
-        if self.ranking is not None:
-            cautions += [c for r in self.ranking.results for c in r.cautions]
-        for res in lists:
-            cautions += list(res.cautions)
+        if res is not None:
+            own = {c for row in res.results for c in row.cautions} | set(getattr(res, "liquid_cautions", ()))
+            cautions += [c for c in res.cautions if c not in own]
         t = self.session.target
         if t is not None and t.solute is not None and getattr(t.solute, "category", "") == "active" and t.solute.note:
             cautions.append(t.solute.note)
         # the most serious first: flammability and toxicity before the general deferral
         cautions.sort(key=lambda c: c.startswith(("Estimates", "Screening")))
         self.query_one("#carrier-cautions", CautionBox).show(cautions)
+
+
+def _allowed(r) -> str:
+    """The food-law verdict of a ranked liquid for the use in a word or two (the status in full in the pane)."""
+    word = {True: "yes", False: "NO", None: "?"}[r.food_allowed]
+    return word + (", if" if r.food_allowed and (r.food_status or "").startswith("conditional") else "")
 
 
 def _short_hazard(b) -> str:

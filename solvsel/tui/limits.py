@@ -20,7 +20,8 @@ from .base import BenchScreen
 from .dialogs import field_label
 from .widgets import CautionBox, fill_table
 
-CHECK_HEADERS = ("rule", "substance", "level", "limit", "unit", "of limit", "ok", "binds", "max dose", "confidence")
+# Verdicts first (kept? binding? how much of the limit, the dose it allows), the rule's text last.
+CHECK_HEADERS = ("ok", "binds", "of limit", "max dose", "substance", "level", "limit", "unit", "confidence", "rule")
 
 #: The purpose choice meaning "none given" (every residue rule shown with the purposes it applies to).
 NO_PURPOSE = "none"
@@ -62,6 +63,7 @@ class LimitsScreen(BenchScreen):
     """Levels along the dilution chain and the limits of the finished product."""
 
     MODE = "limits"
+    FORM = "limits-form"
     BINDINGS = [Binding("ctrl+r", "compute", "Compute", priority=True)]
     FIELD_LABELS = {"formula": "formula", "dose": "dose", "chain": "dilution chain", "category": "food category",
                     "jurisdiction": "jurisdiction", "purpose": "the formula is for"}
@@ -110,6 +112,13 @@ class LimitsScreen(BenchScreen):
         fill_table(self.query_one("#lim-checks", DataTable), CHECK_HEADERS, [])
         self.compute(interactive=False)
 
+    def form_summary(self) -> str:
+        def text(name: str) -> str:
+            return self.query_one(f"#lim-{name}", Input).value.strip() or "-"
+
+        return (f"Formula {text('formula')} · dose {text('dose')} · chain {text('chain')} · food {text('category')} · "
+                f"law {text('jurisdiction')} · for {self.query_one('#lim-purpose', Select).value}")
+
     def on_button_pressed(self, event: Button.Pressed) -> None:
         if event.button.id == "lim-compute":
             self.compute()
@@ -157,6 +166,7 @@ class LimitsScreen(BenchScreen):
             return
         self.result = result
         self.show(result)
+        self.show_summary()
 
     @staticmethod
     def _notes(result) -> Text:
@@ -198,10 +208,13 @@ class LimitsScreen(BenchScreen):
         check_rows = []
         for c in r.checks:
             md = None if c.max_dose is None else c.max_dose * (100 if frac else 1)
-            check_rows.append((c.rule, c.substance, _g(c.level), _g(c.limit) if c.limit is not None else c.status,
-                               c.unit, "-" if not c.limit or c.level is None else f"{100 * c.level / c.limit:.0f} %",
-                               "ok" if c.ok else "OVER", "binds" if c.binds else "", _g(md), c.confidence))
-        fill_table(self.query_one("#lim-checks", DataTable), CHECK_HEADERS, check_rows)
+            check_rows.append(("ok" if c.ok else "OVER", "binds" if c.binds else "",
+                               "-" if not c.limit or c.level is None else f"{100 * c.level / c.limit:.0f} %", _g(md),
+                               c.substance, _g(c.level), _g(c.limit) if c.limit is not None else c.status, c.unit,
+                               c.confidence, c.rule))
+        headers = list(CHECK_HEADERS)
+        headers[3] = "max dose " + ("%" if frac else r.max_dose_unit)
+        fill_table(self.query_one("#lim-checks", DataTable), headers, check_rows, cut=-1)
         rows = [r.stage_table(i) for i in range(len(r.stages))]
         subs = list(dict.fromkeys(row["substance"] for tab in rows for row in tab))
         stage_rows = []
@@ -209,7 +222,7 @@ class LimitsScreen(BenchScreen):
             cells = [s]
             for tab in rows:
                 hit = next((row for row in tab if row["substance"] == s), None)
-                cells.append(_g(hit["mg_per_kg"], ",.6g") if hit else "-")
+                cells.append(_g(hit["mg_per_kg"], ".6g") if hit else "-")
             stage_rows.append(cells)
         fill_table(self.query_one("#lim-stages", DataTable), ["substance, mg/kg", *[st.name for st in r.stages]],
                    stage_rows)

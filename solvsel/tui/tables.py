@@ -17,7 +17,7 @@ from textual.widgets import DataTable, Input, OptionList, Static
 from textual.widgets.option_list import Option
 
 from .base import BenchScreen
-from .widgets import CautionBox, fill_table
+from .widgets import CautionBox, fill_table, shorten
 
 #: (table name, title) in the order of the chooser.
 TABLES = [
@@ -31,17 +31,30 @@ TABLES = [
     ("sources", "Sources"),
 ]
 
-#: Columns shown in the grid (the detail pane shows all of them).
+#: Columns shown in the grid, the deciding values first and the long texts last, where the screen
+#: cuts them (the detail pane shows every column).
 GRID_COLUMNS = {
-    "solvents": ["name", "cas", "dD_MPa05", "dP_MPa05", "dH_MPa05", "vm_cm3_mol", "bp_C", "flash_C", "roles", "origin"],
-    "solutes": ["name", "cas", "category", "dD_MPa05", "dP_MPa05", "dH_MPa05", "r0_MPa05", "hsp_basis", "origin"],
-    "emulsifiers": ["name", "cas", "ins_number", "ionic_type", "hlb", "hlb_method", "mw_g_mol"],
-    "oils": ["name", "cas", "kind", "rhlb_ow", "density_g_cm3", "ripening"],
-    "weighting_agents": ["name", "cas", "ins_number", "density_g_cm3", "ripening"],
-    "regulations": ["substance", "jurisdiction", "use", "purposes", "food_category", "limit", "unit", "status", "rule",
-                    "checked_on"],
+    "solvents": ["name", "dD_MPa05", "dP_MPa05", "dH_MPa05", "bp_C", "flash_C", "vm_cm3_mol", "roles", "cas", "origin"],
+    "solutes": ["name", "dD_MPa05", "dP_MPa05", "dH_MPa05", "r0_MPa05", "hsp_basis", "category", "cas", "origin"],
+    "emulsifiers": ["name", "hlb", "ionic_type", "ins_number", "hlb_method", "mw_g_mol", "cas"],
+    "oils": ["name", "rhlb_ow", "density_g_cm3", "ripening", "kind", "cas"],
+    "weighting_agents": ["name", "density_g_cm3", "ripening", "ins_number", "cas"],
+    "regulations": ["substance", "jurisdiction", "status", "limit", "unit", "use", "food_category", "purposes",
+                    "checked_on", "rule"],
     "purposes": ["id", "label", "description"],
     "sources": ["id", "kind", "citation"],
+}
+
+#: Column headers in words with their units (the table's column id is in the detail pane).
+HEADERS = {
+    "name": "name", "substance": "substance", "cas": "CAS", "dD_MPa05": "dD MPa½", "dP_MPa05": "dP MPa½",
+    "dH_MPa05": "dH MPa½", "r0_MPa05": "R0 MPa½", "vm_cm3_mol": "mol. vol. cm³/mol", "bp_C": "boils °C",
+    "flash_C": "flash °C", "roles": "used as", "origin": "whose", "category": "kind", "hsp_basis": "HSP from",
+    "ins_number": "INS", "ionic_type": "charge", "hlb": "HLB", "hlb_method": "HLB from", "mw_g_mol": "g/mol",
+    "kind": "kind", "rhlb_ow": "required HLB", "density_g_cm3": "density g/cm³", "ripening": "ripening",
+    "jurisdiction": "law", "use": "used as", "purposes": "for", "food_category": "food", "limit": "limit",
+    "unit": "unit", "status": "status", "rule": "rule", "checked_on": "checked on", "id": "id", "label": "label",
+    "description": "description", "citation": "citation",
 }
 
 _HINT = "/ filter: dH > 10 and bp_C < 120, roles has carrier ... (Enter applies)"
@@ -144,9 +157,10 @@ class TablesScreen(BenchScreen):
                 text = _cell(row[c])
                 if c == "origin" and text.startswith("user"):
                     text = "yours"
-                cells.append(text if len(text) <= 48 else text[:47] + "…")
+                cells.append(shorten(text, 48))
             grid_rows.append(cells)
-        fill_table(self.query_one("#table-grid", DataTable), cols, grid_rows)
+        fill_table(self.query_one("#table-grid", DataTable), [HEADERS.get(c, c.replace("_", " ")) for c in cols],
+                   grid_rows, cut=-1)
         shown = f"{len(self.frame)} of {full} rows" if condition.strip() else f"{full} rows"
         self.query_one("#table-count", Static).update(f"{dict(TABLES).get(name, name)}: {shown}")
         if len(self.frame):

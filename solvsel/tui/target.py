@@ -14,7 +14,6 @@ import warnings
 
 from rich.text import Text
 from textual.app import ComposeResult
-from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.widgets import Button, Input, Label, OptionList, Static, TabbedContent, TabPane
 from textual.widgets.option_list import Option
@@ -32,14 +31,16 @@ class TargetScreen(BenchScreen):
     MODE = "target"
     FIELD_LABELS = {"smiles": "SMILES", "path": "bench results file", "good_at_most": "good at a score of at most",
                     "hsp": "dD, dP, dH, R0"}
-    BINDINGS = [Binding("ctrl+t", "next_way", "Next way", priority=True)]
-    WAYS = ("from-table", "from-typed", "from-smiles", "from-bench")
+    TABS = "target-tabs"
+    #: The field that takes the cursor when a way opens (a typed path or SMILES lands where it belongs).
+    FIRST_FIELD = {"from-table": "#solute-filter", "from-typed": "#typed-hsp", "from-smiles": "#smiles",
+                   "from-bench": "#bench-path"}
 
     def compose(self) -> ComposeResult:
         yield from self.compose_frame_top()
         with Horizontal(id="target-body"):
             with TabbedContent(id="target-tabs"):
-                with TabPane("From the solutes table", id="from-table"):
+                with TabPane("Solutes table", id="from-table"):
                     yield Input(placeholder="type to narrow the list; Enter on a name uses it", id="solute-filter", compact=True)
                     yield Static(f"  {'solute':<30} {'kind':<8} {'dD':>5} {'dP':>5} {'dH':>5}  basis of the HSP  (MPa^0.5)",
                                  classes="list-header")
@@ -51,13 +52,13 @@ class TargetScreen(BenchScreen):
                         yield Label("dD, dP, dH in MPa^0.5, and R0 if known (e.g. 17.0, 3.0, 8.0, 8.0)")
                         yield Input(placeholder="dD, dP, dH[, R0]", id="typed-hsp", compact=True)
                         yield Button("Use these numbers", id="use-typed", variant="primary", compact=True)
-                with TabPane("From a structure", id="from-smiles"):
+                with TabPane("Structure", id="from-smiles"):
                     with Vertical(classes="form"):
                         yield Label("SMILES (the HSP are estimated by group contribution)")
                         yield Input(placeholder="e.g. CC1=CCC(CC1)C(=C)C", id="smiles", compact=True)
                         yield Button("Estimate and use", id="use-smiles", variant="primary", compact=True)
                         yield Static("", id="smiles-detail")
-                with TabPane("From bench results", id="from-bench"):
+                with TabPane("Bench results", id="from-bench"):
                     with Vertical(classes="form"):
                         yield Label("CSV of bench tests (one row a liquid: good / partial / bad, or a score)")
                         yield Input(placeholder="path/to/bench.csv", id="bench-path", compact=True)
@@ -74,17 +75,6 @@ class TargetScreen(BenchScreen):
     def on_mount(self) -> None:
         self.fill_solutes("")
         self.query_one("#solute-filter", Input).focus()
-
-    FIRST_FIELD = {"from-table": "#solute-filter", "from-typed": "#typed-hsp", "from-smiles": "#smiles",
-                   "from-bench": "#bench-path"}
-
-    def action_next_way(self) -> None:
-        tabs = self.query_one("#target-tabs", TabbedContent)
-        i = self.WAYS.index(tabs.active) if tabs.active in self.WAYS else 0
-        way = self.WAYS[(i + 1) % len(self.WAYS)]
-        tabs.active = way
-        field = self.query_one(self.FIRST_FIELD[way], Input)
-        self.call_after_refresh(field.focus)
 
     def target_changed(self) -> None:
         self.show_target()
@@ -240,19 +230,28 @@ class TargetScreen(BenchScreen):
 
 
 def _fit_text(result) -> Text:
-    """The fitted sphere in a few lines: centre, R0, fit, intervals, wrong side, open side, next tests."""
+    """The fitted sphere in a few lines: centre, R0, how well it sorts the bench results, intervals,
+    the results it misplaces, the open side, next tests, and a picture of every liquid's RED."""
+    from .widgets import red_strip
+
     fit = result.sphere
     t = Text()
-    t.append(f"dD {fit.dD:.2f}  dP {fit.dP:.2f}  dH {fit.dH:.2f}  R0 {fit.r0:.2f}   fit {fit.fit:.2f}\n", style="bold")
+    t.append(f"dD {fit.dD:.2f}  dP {fit.dP:.2f}  dH {fit.dH:.2f}  R0 {fit.r0:.2f} MPa^0.5\n", style="bold")
+    t.append(f"agreement with the bench {fit.fit:.2f} of 1 (Hansen's desirability); "
+             f"{fit.explained:.0%} of the weighted results on their side\n")
     t.append(f"{fit.n_liquids} liquids ({fit.n_good} good): {result.liquids_summary()}\n", style="dim")
     for k in ("dD", "dP", "dH", "r0"):
         lo, hi = fit.interval.get(k, (None, None))
         if lo is not None:
-            t.append(f"  {k} interval {lo:.2f} to {hi:.2f}\n")
+            t.append(f"  {'R0' if k == 'r0' else k} between {lo:.2f} and {hi:.2f}\n")
     if fit.wrong_side:
-        t.append("on the wrong side: " + ", ".join(w.name for w in fit.wrong_side) + "\n")
+        t.append("misplaced by the sphere: " + ", ".join(
+            f"{w.name} ({'good, outside' if w.good else 'bad, inside'} at RED {w.red:.2f})" for w in fit.wrong_side)
+            + "\n")
     if fit.open:
         t.append(f"{fit.open_note}\n", style="bold")
     if result.suggestions:
         t.append("worth testing next: " + ", ".join(f"{s.name} (RED {s.red:.2f})" for s in result.suggestions) + "\n")
+    t.append("\nEvery liquid's distance from the centre, in R0 (RED): inside the sphere left of the bar\n", style="bold")
+    t.append_text(red_strip(fit.names, fit.good, fit.red, {w.name for w in fit.wrong_side}))
     return t

@@ -24,7 +24,9 @@ from textual.widgets import Checkbox, Static
 class ScreenStrip(Static):
     """One line naming every screen with its key; the current one stands out.
 
-    A click on a name posts :class:`ScreenStrip.Chosen`.
+    Where the full line does not fit, the keys are shown as digits (Alt+digit)
+    and the titles by their first word.  A click on a name posts
+    :class:`ScreenStrip.Chosen`.
     """
 
     class Chosen(Message):
@@ -38,23 +40,32 @@ class ScreenStrip(Static):
         self.screens = screens
         self.current = current
 
+    HEAD = " solvsel  "
+
+    def parts(self) -> list[tuple[str, str, str]]:
+        """(mode, key, title) as drawn: in full where it fits, else digits and short titles."""
+        full = [(mode, f" {key} ", f"{title} ") for mode, key, title in self.screens]
+        width = len(self.HEAD) + sum(len(k) + len(t) + 1 for _, k, t in full)
+        if width <= max(self.size.width, 1) or not self.size.width:
+            return full
+        return [(mode, f" {i} ", f"{title.split()[0]} ") for i, (mode, _, title) in enumerate(self.screens, 1)]
+
     def render(self) -> Text:
         t = Text(no_wrap=True, overflow="ellipsis")
-        t.append(" solvsel ", style="bold reverse")
+        t.append(self.HEAD[:-2], style="bold reverse")
         t.append("  ")
-        for mode, key, title in self.screens:
-            style = "bold reverse" if mode == self.current else ""
-            t.append(f" {key} ", style="bold " + ("reverse" if mode == self.current else "underline"))
-            t.append(f"{title} ", style=style)
+        for mode, key, title in self.parts():
+            here = mode == self.current
+            t.append(key, style="bold " + ("reverse" if here else "underline"))
+            t.append(title, style="bold reverse" if here else "")
             t.append(" ")
         return t
 
     def on_click(self, event) -> None:
-        x = event.x
-        pos = len(" solvsel ") + 2
-        for mode, key, title in self.screens:
-            width = len(f" {key} ") + len(f"{title} ") + 1
-            if pos <= x < pos + width:
+        pos = len(self.HEAD)
+        for mode, key, title in self.parts():
+            width = len(key) + len(title) + 1
+            if pos <= event.x < pos + width:
                 self.post_message(self.Chosen(mode))
                 return
             pos += width
@@ -70,14 +81,17 @@ class TargetLine(Static):
         if target is None:
             self.update("No target yet: choose one on the Target screen (F2).")
             return
-        r0 = f"  R0 {target.r0:.1f}" if target.r0 else "  R0 unknown (no RED)"
+        r0 = f"R0 {target.r0:.1f}" if target.r0 else "R0 unknown (no RED)"
+        # a visible separator between the parts: they never run together, even where spaces are lost
         self.update(
             Text.assemble(
-                ("Target ", "bold"),
+                ("Target: ", "bold"),
                 (target.name, "bold"),
-                f"   dD {target.dD:.1f}  dP {target.dP:.1f}  dH {target.dH:.1f} MPa^0.5{r0}",
-                ("   basis: ", "dim"),
+                " · ",
+                f"dD {target.dD:.1f}  dP {target.dP:.1f}  dH {target.dH:.1f} MPa^0.5 · {r0}",
+                (" · basis: ", "dim"),
                 (target.basis, "italic"),
+                no_wrap=True, overflow="ellipsis",
             )
         )
 
@@ -294,6 +308,43 @@ def _nice_step(raw: float) -> float:
     return 10 ** (exp + 1)
 
 
+# ----------------------------------------------------------------- bench fit picture
+
+
+def red_strip(names, good, red, misplaced=(), width: int = 36, rows: int = 24) -> Text:
+    """One line a liquid: its name, then a mark at its RED on a common scale with the sphere's surface
+    (RED 1) drawn as a bar; good liquids ``●``, bad ``○``; those the fit names in ``misplaced`` in bold.  Placed by
+    :func:`scale_column`, the same transform for the marks and the tick labels."""
+    items = sorted(zip(names, good, red), key=lambda x: x[2])[:rows]
+    top = 3.0  # farther liquids are drawn at the end of the scale, their RED written beside them
+    name_w = min(22, max((len(n) for n, _, _ in items), default=4))
+    t = Text()
+    surface = scale_column(1.0, 0.0, top, width)
+    for name, is_good, r in items:
+        line = [" "] * width
+        line[surface] = "│"
+        line[scale_column(min(r, top), 0.0, top, width)] = ("●" if is_good else "○") if r <= top else "→"
+        wrong = name in misplaced
+        t.append(f"{shorten(name, name_w):<{name_w}} ", style="bold" if wrong else "")
+        t.append("".join(line), style="bold #ff6f61" if wrong else ("#6aa36f" if is_good else "#8a9bb0"))
+        t.append(f" {r:.2f}" + ("  misplaced" if wrong else "") + "\n", style="bold" if wrong else "dim")
+    axis = [" "] * (width + 4)
+    for v in (0.0, 0.5, 1.0, 1.5, 2.0, 2.5, 3.0):
+        col = scale_column(v, 0.0, top, width)
+        for i, ch in enumerate(f"{v:g}"):
+            axis[col + i] = ch
+    t.append(" " * (name_w + 1) + "".join(axis).rstrip() + "  RED\n", style="dim")
+    t.append(" " * (name_w + 1) + "● good  ○ bad\n", style="dim")
+    return t
+
+
+def scale_column(value: float, lo: float, hi: float, cells: int) -> int:
+    """The cell (0 .. cells-1) of ``value`` on an axis from ``lo`` to ``hi`` drawn in ``cells`` cells."""
+    if not hi > lo:
+        return 0
+    return max(0, min(cells - 1, round((value - lo) / (hi - lo) * (cells - 1))))
+
+
 # ----------------------------------------------------------------- tables
 
 
@@ -307,13 +358,15 @@ class Tick(Checkbox):
         return Content.assemble(("[", style), ("x" if self.value else " ", style), ("]", style))
 
 
-def fill_table(grid, headers, rows) -> None:
+def fill_table(grid, headers, rows, cut: int | None = None) -> None:
     """Replace a DataTable's columns and rows, each column as wide as its widest cell.
 
     The widths are set here, from the cells, rather than left to the table's
     own measuring, which now and then kept the header widths when a table was
     filled while the screen was still being laid out (cut values such as
-    "Ra 1." for 1.20).
+    "Ra 1." for 1.20).  ``cut`` names the one column (a name or a reason) whose
+    text is shortened, with an ellipsis, so that the table fits the width it
+    has; every other column stays whole.
     """
     from rich.cells import cell_len
 
@@ -323,8 +376,24 @@ def fill_table(grid, headers, rows) -> None:
         return max((cell_len(line) for line in str(v).splitlines()), default=0)
 
     rows = [list(r) for r in rows]
+    widths = [max([width(h)] + [width(r[i]) for r in rows]) for i, h in enumerate(headers)]
+    if cut is not None and headers:
+        k = cut % len(headers)
+        room = (grid.size.width or grid.app.size.width) - 2  # the scroll bar
+        left = room - sum(w + 2 for i, w in enumerate(widths) if i != k) - 2  # 2: the cell's padding
+        if left < widths[k]:
+            widths[k] = max(left, width(headers[k]), 8)
+            for r in rows:
+                r[k] = shorten(str(r[k]), widths[k])
     grid.clear(columns=True)
-    for i, h in enumerate(headers):
-        grid.add_column(h, width=max([width(h)] + [width(r[i]) for r in rows]))
+    for h, w in zip(headers, widths):
+        grid.add_column(h, width=w)
     for r in rows:
         grid.add_row(*r)
+
+
+def shorten(text: str, width: int) -> str:
+    """``text`` cut to ``width`` cells, with an ellipsis where it was cut."""
+    from rich.cells import cell_len, set_cell_size
+
+    return text if cell_len(text) <= width else set_cell_size(text, width - 1) + "…"
