@@ -20,6 +20,7 @@ its request and result types, and the catalog of sourced tables:
 ``clarity``        will the drink stay clear: flavour components against their solubility
 ``screen``         many targets at once through rank or blend (a DataFrame)
 ``load_catalog``   the bundled tables, with a user's own rows
+``open_workspace`` a saved piece of work (``Workspace``); ``save_workspace`` writes one
 =================  =====================================================
 
 Each job takes its request (``solvsel.RankRequest(...)``) or the request's
@@ -58,6 +59,8 @@ _API = {
     "clarity": "solvsel.jobs.clarity", "ClarityRequest": "solvsel.jobs.clarity", "ClarityResult": "solvsel.jobs.clarity",
     "screen": "solvsel.jobs.batch", "BatchRequest": "solvsel.jobs.batch",
     "SolvselError": "solvsel.errors", "InputError": "solvsel.errors",
+    "Workspace": "solvsel.data.workspace", "open_workspace": "solvsel.data.workspace",
+    "save_workspace": "solvsel.data.workspace",
 }
 
 __all__ = ["__version__", *_API]
@@ -78,6 +81,7 @@ def __dir__() -> list[str]:
 
 if TYPE_CHECKING:  # pragma: no cover - for type checkers and editors
     from .data.catalog import Catalog, load_catalog
+    from .data.workspace import Workspace, open_workspace, save_workspace
     from .errors import InputError, SolvselError
     from .jobs.blend import BlendRequest, BlendResult, blend
     from .jobs.batch import BatchRequest, screen

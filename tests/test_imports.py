@@ -6,8 +6,8 @@ has loaded.  What each command may not load:
 - scipy.stats never (the chi-square quantile of the sphere fit's intervals is in closed form);
 - scipy (optimize, linalg) only for the sphere fit and for the tangent-plane test of a blend of
   three or more liquids (its local polish);
-- scikit-learn, networkx, RDKit, Textual and Dask only where their feature is asked for (a refit,
-  a miscibility graph, a structure, the UI, a cluster).
+- scikit-learn, networkx, RDKit, Textual, Dask and matplotlib only where their feature is asked for (a
+  refit, a miscibility graph, a structure, the UI, a cluster, a report's figures).
 
 pandas is loaded by every command that reads the tables (the catalog keeps them as DataFrames),
 but not by ``--version`` or ``--help``; pandas itself loads pyarrow where it is installed.  No time is measured here; the benchmarks time the cold
@@ -27,9 +27,9 @@ HERE = Path(__file__).parent
 BENCH = str(HERE / "data" / "bench_c60_memory.csv")
 
 HEAVY = ("pandas", "scipy", "scipy.optimize", "scipy.stats", "scipy.linalg", "sklearn", "networkx", "rdkit",
-         "textual", "dask", "distributed")
-#: Never needed to compute a plain answer.
-OPTIONAL = {"sklearn", "networkx", "rdkit", "textual", "dask", "distributed", "scipy.stats"}
+         "textual", "dask", "distributed", "matplotlib")
+#: Never needed to compute a plain answer (matplotlib only draws a report's figures).
+OPTIONAL = {"sklearn", "networkx", "rdkit", "textual", "dask", "distributed", "scipy.stats", "matplotlib"}
 NO_SCIPY = OPTIONAL | {"scipy", "scipy.optimize", "scipy.linalg"}
 
 CASES = [

@@ -21,6 +21,7 @@ import sys
 import tempfile
 from typing import Any, Callable
 
+from ..errors import SolvselError
 from ._common import option_name, to_jsonable
 
 __all__ = ["run_in_workspace", "with_defaults"]
@@ -137,7 +138,10 @@ def run_in_workspace(parser: argparse.ArgumentParser, args, argv: list[str],
     ws = open_workspace(path, missing_ok=True)  # a damaged or newer file is refused here, before the work
     with tempfile.TemporaryDirectory(prefix="solvsel-workspace-") as folder:
         full = _with_workspace(parser, args, argv, ws, folder)
-        rc, result = _result(execute, parser, args, full)
+        try:
+            rc, result = _result(execute, parser, args, full)
+        except SolvselError as exc:
+            raise _in_workspace(exc, folder, path) from None
         shown = [a for a in full if not a.startswith(f"--own-") or folder not in a]
         shown = [a for i, a in enumerate(shown) if not _is_workspace_token(shown, i)]
         options = vars(parser.parse_known_args(shown)[0])
@@ -145,6 +149,14 @@ def run_in_workspace(parser: argparse.ArgumentParser, args, argv: list[str],
         options = {k: v for k, v in options.items() if k not in ("func", "workspace")}
         save_workspace(record_run(ws, args.command, shown, to_jsonable(options), result), path)
     return rc
+
+
+def _in_workspace(exc, folder: str, path: str):
+    """An error in the workspace's own rows named by the workspace, not by the file they were passed in."""
+    if exc.path and exc.path.startswith(folder):
+        table = "solutes" if "solutes" in exc.path else "solvents"
+        exc.path, exc.param, exc.value = f"{path} (its own {table} rows)", "workspace", path
+    return exc
 
 
 def _is_workspace_token(argv: list[str], i: int) -> bool:
