@@ -7,6 +7,12 @@ proportions vs not, by group (pairs with water, other pairs), the confusion
 counts, and for partial pairs with tabulated solubilities the log10 error of
 the predicted mutual solubilities.  Then the speed of the pair matrix and of
 the array screen of 490,000 candidate blends.  Prints numbers; not a test.
+
+:func:`choose_immiscible_level` is the procedure that set
+``solvsel.science.miscibility.IMMISCIBLE_BELOW_WT`` (the level under which
+both predicted mutual solubilities make a decisive "no"): it uses the
+measured table only, never the published chart that
+``bench/published_miscibility.py`` scores against.
 """
 
 from __future__ import annotations
@@ -26,11 +32,50 @@ from solvsel.science import miscibility as M  # noqa: E402
 from solvsel.data.catalog import load_catalog  # noqa: E402
 
 
+#: Levels tried for the decisive "no" [wt %], and the rule: the share of the table's pairs
+#: measured "none" or "partial" whose predicted verdict ("no" when both predicted mutual
+#: solubilities are below the level) matches, no pair measured "full" answered "no", ties to
+#: the lowest level.
+LEVELS_WT = (0.5, 1.0, 1.5, 2.0, 2.5, 3.0, 3.5, 4.0, 5.0)
+
+
+def choose_immiscible_level(cat=None, levels=LEVELS_WT) -> tuple[float, list[tuple[float, float, int]]]:
+    """The decisive-"no" level chosen on tables/miscibility.csv, and ``(level, share right, full answered no)``
+    for every level tried.
+
+    Each measured pair is predicted by :func:`solvsel.science.miscibility.predict_pair` at the
+    row's temperature (no table look-up); a pair predicted to split with a window has
+    ``max(b_in_a, a_in_b)`` as its larger predicted solubility [mass fraction].
+    """
+    cat = cat or load_catalog()
+    larger = []
+    for row in cat.table("miscibility").to_dict("records"):
+        a, b = cat.solvent(row["liquid_a"]), cat.solvent(row["liquid_b"])
+        w = M.predict_pair(a, b, float(row["temp_C"])).window or {}
+        top = max(w["b_in_a_max"], w["a_in_b_max"]) if w.get("b_in_a_max") is not None else math.inf
+        larger.append((row["one_phase"], top))
+    scores = []
+    split = [(m, top) for m, top in larger if m != "full"]
+    for level in levels:
+        right = sum((m == "none") == (top * 100.0 < level) for m, top in split) / len(split)
+        full_no = sum(top * 100.0 < level for m, top in larger if m == "full")
+        scores.append((level, right, full_no))
+    allowed = [s for s in scores if s[2] == 0]
+    best = max(allowed, key=lambda s: (s[1], -s[0]))
+    return best[0], scores
+
+
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__)
     ap.add_argument("--quick", action="store_true", help="skip the full 74-liquid matrix timing")
     args = ap.parse_args()
     cat = load_catalog()
+    level, scores = choose_immiscible_level(cat)
+    print("Decisive 'no' level, chosen on the measured table (pairs measured none or partial):")
+    for lv, right, full_no in scores:
+        print(f"  both predicted solubilities below {lv:3.1f} wt %: {100 * right:5.1f} % right, "
+              f"{full_no} miscible pairs answered 'no'")
+    print(f"  chosen: {level:g} wt % (in use: {M.IMMISCIBLE_BELOW_WT:g} wt %)")
     df = cat.table("miscibility")
     groups = {"with water": [], "without water": []}
     sol_err = []
