@@ -13,6 +13,7 @@ OPTION_NAMES = {
     "require_solubility": "--solubility",
     "worst_flammable_category": "--worst-hazard",
     "target": "--solute",
+    "storage_C": "--storage",
 }
 
 
@@ -54,6 +55,10 @@ def register(sub):
     p.add_argument("--solubility", action="store_true",
                    help="require the solubility estimate (error if the solute has no fusion data)")
     p.add_argument("--keep-over", action="store_true", help="keep carriers that break a limit at the dose (flagged) instead of dropping them")
+    p.add_argument("--load", metavar="LOAD", help="the solute's load in the carrier, e.g. 2%%: liquids that cannot "
+                   "carry it over the storage range are marked with their largest load")
+    p.add_argument("--storage", metavar="LO:HI", help="storage range of the load check in C (default 4:25)")
+    p.add_argument("--drop-over-load", action="store_true", help="leave out the liquids that cannot carry the load")
     add_batch_arguments(p)
     add_json_flag(p)
     return p
@@ -77,6 +82,7 @@ def request_fields(args) -> dict:
         bp_min_C=bp_lo, bp_max_C=bp_hi, min_flash_C=args.min_flash, max_cost=args.max_cost,
         max_health_hazard=args.max_health_hazard, temp_C=args.temp, all=args.all,
         dose=args.dose, category=args.category, chain=args.chain, keep_over=args.keep_over,
+        load=args.load, drop_over_load=args.drop_over_load, **({} if args.storage is None else {"storage_C": args.storage}),
         require_solubility=args.solubility, **({} if args.top is None else {"top": args.top}),
     )
 

@@ -27,7 +27,7 @@ from ._base import build_request, catalog_or_default, check_names, check_number
 from .parse import parse_fraction, parse_range
 from .pool import solvent_named
 
-__all__ = ["LoadRequest", "LoadResult", "load", "load_check", "check_load_value", "check_storage",
+__all__ = ["LoadRequest", "LoadResult", "load", "load_check", "load_info", "check_load_value", "check_storage",
            "DEFAULT_STORAGE_C"]
 
 #: Storage range checked by default [C]: a refrigerator to a warm room.
@@ -190,3 +190,20 @@ def load(request: LoadRequest | None = None, *, catalog: Catalog | None = None, 
                      "Flory-Huggins binodal from HSP (water and glycols are poorly predicted)")
     seen = dict.fromkeys(c for r in recs for c in solvent_cautions(r, use="carrier", cat=cat) if c != DEFER)
     return LoadResult(chk, tuple(seen) + (DEFER,), tuple(notes), audit_block((), cat.tables_dir))
+
+
+def load_info(cat: Catalog, target, recs: Sequence, fractions: Sequence[float], load_value: float | None,
+              storage_C: tuple[float, float]) -> dict | None:
+    """The load check of a ranking target in a liquid or blend (``recs`` at volume ``fractions``), as the ``load``
+    field of a ranked liquid or a blend; None without a load, or for a target that is not a solute of the
+    tables (typed HSP, a SMILES)."""
+    if load_value is None:
+        return None
+    found = solute_of_target(cat, target, storage_C[0])
+    if found is None:
+        return None
+    chk = load_check(cat, found[0], found[1], recs, fractions, load_value, storage_C)
+    largest = "not known" if chk.largest_load is None else f"{100 * chk.largest_load:.3g} %"
+    return {"verdict": chk.verdict, "load": chk.load, "largest_load": chk.largest_load, "basis": chk.basis,
+            "limiting_temp_C": chk.limiting_temp_C, "reason": chk.reason,
+            "mark": f"cannot carry {100 * chk.load:g} % (one phase up to {largest}, {chk.basis})"}

@@ -27,6 +27,7 @@ from ..rules.regulations import carrier_dose_check
 from ..science.formulation import Step
 from ..science.target import Target, solubility_in, target_from_hsp
 from ._base import build_request, catalog_or_default, check_bool, check_int, frame, target_of
+from .load import DEFAULT_STORAGE_C, check_load_value, check_storage, load_info
 from .parse import parse_chain
 from .pool import Candidate, LeftOut, Pool, PoolRequest, solvent_named
 
@@ -74,6 +75,13 @@ class RankRequest(PoolRequest):
     require_solubility : bool
         fail when the target has no fusion data for a solubility estimate, or
         when the temperature is at or above its melting point
+    load : str or float, optional
+        the target's load in the carrier (mass fraction, "2%"): each liquid is checked for it over
+        ``storage_C`` (:mod:`solvsel.jobs.load`) and marked where it cannot carry it
+    storage_C : (float, float) or str
+        storage range of the load check [C] (default 4 to 25)
+    drop_over_load : bool
+        leave out the liquids that cannot carry the load instead of marking them
     """
 
     solute: str | None = None
@@ -101,10 +109,15 @@ class RankRequest(PoolRequest):
     chain: str | None = None
     keep_over: bool = False
     require_solubility: bool = False
+    load: str | float | None = None
+    storage_C: tuple[float, float] | str = DEFAULT_STORAGE_C
+    drop_over_load: bool = False
 
     def __post_init__(self) -> None:
         set_ = object.__setattr__
-        for name in ("food", "all", "keep_over", "require_solubility"):
+        set_(self, "load", check_load_value(self.load))
+        set_(self, "storage_C", check_storage(self.storage_C))
+        for name in ("food", "all", "keep_over", "require_solubility", "drop_over_load"):
             set_(self, name, check_bool(getattr(self, name), name))
         self.check_pool_fields()
         given = [k for k in ("solute", "hsp", "smiles", "target", "like") if getattr(self, k) is not None]
@@ -119,7 +132,8 @@ class RankRequest(PoolRequest):
             target_from_hsp(self.hsp)  # checks the numbers and their ranges
             set_(self, "hsp", tuple(float(v) for v in self.hsp))
         set_(self, "top", check_int(self.top, "top", 1, allow_none=True))
-        if self.like is not None and (self.only or self.dose is not None or self.chain or self.require_solubility):
+        if self.like is not None and (self.only or self.dose is not None or self.chain or self.require_solubility
+                                      or self.load is not None):
             raise InputError("substitutes are looked for among all liquids, without a dose check or a solubility "
                              "estimate", param="like", value=self.like)
         self._check_dose()
@@ -182,6 +196,7 @@ class RankedSolvent:
     food_purposes: tuple[str, ...] = ()
     health_hazard: dict | None = None
     how_sure: dict | None = None
+    load: dict | None = None
 
     def to_dict(self) -> dict:
         return {
@@ -194,7 +209,7 @@ class RankedSolvent:
             "solubility": self.solubility, "dose": self.dose,
             "cautions": list(self.cautions), "notes": list(self.notes),
             "origin": self.origin, "sources": list(self.sources), "food_purposes": list(self.food_purposes),
-            "health_hazard": self.health_hazard, "how_sure": self.how_sure,
+            "health_hazard": self.health_hazard, "how_sure": self.how_sure, "load": self.load,
         }
 
 
@@ -233,7 +248,7 @@ class RankResult:
 
     def to_frame(self):
         """The ranked liquids as a table (one row each; the solubility estimate as ``g_per_L``)."""
-        skip = ("solubility", "dose", "cautions", "notes", "sources", "health_hazard", "how_sure")
+        skip = ("solubility", "dose", "cautions", "notes", "sources", "health_hazard", "how_sure", "load")
         rows = [{**{k: v for k, v in r.to_dict().items() if k not in skip},
                  "how_sure": (r.how_sure or {}).get("verdict"),
                  "g_per_L": (r.solubility or {}).get("g_per_L"),
@@ -279,6 +294,11 @@ def _ranked(cat: Catalog, target: Target, c: Candidate, req: RankRequest, steps)
             notes.append("no limit data for some part in this jurisdiction (not a permission)")
     if s.is_user:
         notes.append(f"your row ({s.origin})")
+    load = load_info(cat, target, [s], [1.0], req.load, req.storage_C)
+    if load is not None and load["verdict"] == "no":
+        if req.drop_over_load:
+            return LeftOut(s.name, s.cas, "load", load["reason"])
+        notes.append(load["mark"])
     r = float(ra(c.hsp, target.hsp))
     hz = c.hazard
     status, allowed = _food_text(c, req)
@@ -289,6 +309,7 @@ def _ranked(cat: Catalog, target: Target, c: Candidate, req: RankRequest, steps)
         s.water_miscibility, solubility_in(target, s, c.hsp, c.vm_cm3_mol, req.temp_C), dose,
         tuple(solvent_cautions(s, use=req.use or c.food_use, cat=cat)), tuple(notes), s.origin, tuple(s.sources),
         c.food.purposes if c.food is not None else (), None if c.health is None else c.health.to_dict(),
+        load=load,
     )
 
 
