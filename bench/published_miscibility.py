@@ -1,0 +1,187 @@
+"""Miscibility verdicts against a published chart the project did not produce.
+
+The yardstick: a 32 x 32 chart of common liquids in pairs, 1 miscible and 0 not, transcribed
+from a solvent supplier's published chart into the public repository sustainable-processes/KG4DT
+(app/data/solvent_miscibility_table.csv, commit ccac3b63; CC BY-NC 4.0), read from
+``../shared/data/external/miscibility_chart/`` (never copied into the project; see its
+PROVENANCE.md).  The six cells PROVENANCE.md calls doubtful are left out: 490 pairs, 41 of
+them immiscible.  The chart has no "partial" class, so a "partial" answer counts as not
+miscible.
+
+Liquids, by CAS (:data:`CHART_CAS`): the catalog's record, else the reference library
+``chemicals`` (HSP from MANUEL_RUBEN_2022, then WDR_SCHRIER, then ALSHERI_HANSEN, molar volume
+by COSTALD), as the tool resolves a CAS number; "Xylene" (the isomer mixture) is taken as
+p-xylene (the isomers share their HSP in the data sets).
+
+Two answers are scored: the prediction alone (:func:`solvsel.science.miscibility.predict_pair`,
+Flory-Huggins from HSP, never looking at the measured table) and the tool's final verdict
+(:func:`solvsel.science.miscibility.pair`, measured pairs first).  Every setting of the model was
+chosen without the chart: the decisive-"no" level on tables/miscibility.csv
+(``bench/bench_miscibility.py``); the chart's cells are not in the tables.
+
+For the record, :func:`threshold_scan` shows what a looser "miscible" rule (chi up to r times
+the critical chi) would give, with r chosen on the measured table and the chart's own best: no
+setting of that rule reaches both goals.
+
+Usage: python bench/published_miscibility.py
+"""
+
+from __future__ import annotations
+
+import csv
+import sys
+from itertools import combinations
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+if str(ROOT) not in sys.path:
+    sys.path.insert(0, str(ROOT))
+
+from solvsel.data.catalog import load_catalog  # noqa: E402
+from solvsel.science import miscibility as M  # noqa: E402
+
+CHART_DIR = ROOT.parent / "shared" / "data" / "external" / "miscibility_chart"
+CHART_FILE = "solvent_miscibility_table.csv"
+#: The cells PROVENANCE.md of the chart calls doubtful (left out of every figure).
+DOUBTFUL = frozenset(frozenset(p) for p in [
+    ("Xylene", "Trichloroethylene"), ("Xylene", "Dimethyl Sulfoxide"), ("Xylene", "Dimethylformamide"),
+    ("Acetic Acid", "Hexane"), ("Acetic Acid", "Pentane"), ("Diethyl Ether", "Dimethyl Sulfoxide"),
+])
+#: CAS of each liquid of the chart (the chart names them loosely; "Xylene" is the isomer mixture,
+#: taken here as p-xylene, whose HSP the catalog holds; "Butanol" is 1-butanol).
+CHART_CAS = {
+    "Acetic Acid": "64-19-7", "Acetone": "67-64-1", "Acetonitrile": "75-05-8", "Benzene": "71-43-2",
+    "Butanol": "71-36-3", "Butyl Acetate": "123-86-4", "Carbon Tetrachloride": "56-23-5", "Chloroform": "67-66-3",
+    "Cyclohexane": "110-82-7", "Dichloroethane": "107-06-2", "Dichloromethane": "75-09-2",
+    "Diethyl Ether": "60-29-7", "Diisopropyl Ether": "108-20-3", "Dimethylformamide": "68-12-2",
+    "Dimethyl Sulfoxide": "67-68-5", "Dioxane": "123-91-1", "Ethanol": "64-17-5", "Ethyl Acetate": "141-78-6",
+    "Heptane": "142-82-5", "Hexane": "110-54-3", "Isooctane": "540-84-1", "Isopropanol": "67-63-0",
+    "Methanol": "67-56-1", "Methyl Ethyl Ketone": "78-93-3", "Methyl Tert-Butyl Ether": "1634-04-4",
+    "Pentane": "109-66-0", "1-Propanol": "71-23-8", "Tetrahydrofuran": "109-99-9", "Toluene": "108-88-3",
+    "Trichloroethylene": "79-01-6", "Water": "7732-18-5", "Xylene": "106-42-3",
+}
+#: Goals of the published-data issue for the prediction alone.
+GOALS = {"accuracy": 0.95, "immiscible_found": 0.85}
+#: Ratios chi / chi_critical tried by :func:`threshold_scan`.
+RATIOS = (1.0, 1.2, 1.4, 1.5, 1.6, 1.8, 2.0, 2.2, 2.5)
+
+
+def chart_pairs(folder: Path | None = None) -> list[tuple[str, str, bool]]:
+    """``(liquid a, liquid b, miscible)`` for every pair of the chart but the doubtful cells."""
+    path = Path(folder or CHART_DIR) / CHART_FILE
+    with open(path, encoding="utf-8-sig", newline="") as fh:
+        rows = list(csv.reader(fh))
+    names = rows[0][1:]
+    out = []
+    for i, j in combinations(range(len(names)), 2):
+        if frozenset((names[i], names[j])) in DOUBTFUL:
+            continue
+        out.append((names[i], names[j], rows[i + 1][j + 1].strip() == "1"))
+    return out
+
+
+def _scores(truth: list[bool], said: list[str]) -> dict:
+    """Accuracy ("yes" = miscible; "partial" and "no" = not), immiscible pairs found, decisive "no"s."""
+    n = len(truth)
+    imm = [s for t, s in zip(truth, said) if not t]
+    mis = [s for t, s in zip(truth, said) if t]
+    return {
+        "accuracy": sum((s == "yes") == t for t, s in zip(truth, said)) / n,
+        "immiscible_found": sum(s != "yes" for s in imm) / len(imm),
+        "immiscible_answered_no": sum(s == "no" for s in imm) / len(imm),
+        "miscible_answered_no": sum(s == "no" for s in mis),
+        "answered_no": sum(s == "no" for s in said),
+    }
+
+
+def _verdicts(folder: Path | None = None):
+    cat = load_catalog()
+    pairs = chart_pairs(folder)
+    recs = {n: cat.solvent(CHART_CAS[n]) for n in {p for a, b, _ in pairs for p in (a, b)}}
+    rows = []
+    for a, b, miscible in pairs:
+        pred = M.predict_pair(recs[a], recs[b])
+        final = M.pair(cat, recs[a], recs[b])
+        rows.append((a, b, miscible, pred, final))
+    return cat, rows
+
+
+def miscibility_figures(folder: Path | None = None) -> dict:
+    """The figures of the prediction alone and of the final verdict on the chart.
+
+    Returns
+    -------
+    dict
+        ``pairs``, ``immiscible``, ``always_miscible`` (accuracy of answering "yes" to all),
+        ``level_wt`` (the decisive-"no" level in use), and ``prediction`` / ``final``, each with
+        ``accuracy``, ``immiscible_found`` (share of immiscible pairs answered "partial" or "no"),
+        ``immiscible_answered_no``, ``miscible_answered_no`` (count) and ``answered_no`` (count)
+    """
+    _, rows = _verdicts(folder)
+    truth = [r[2] for r in rows]
+    return {
+        "pairs": len(rows),
+        "immiscible": truth.count(False),
+        "always_miscible": truth.count(True) / len(truth),
+        "level_wt": M.IMMISCIBLE_BELOW_WT,
+        "prediction": _scores(truth, [r[3].one_phase for r in rows]),
+        "final": _scores(truth, [r[4].one_phase for r in rows]),
+    }
+
+
+def _ratio_verdicts(rows, ratio: float) -> list[str]:
+    return ["yes" if p.chi <= ratio * p.chi_critical else "partial" for p in rows]
+
+
+def threshold_scan(folder: Path | None = None) -> dict:
+    """What "miscible when chi <= r chi_critical" gives on the measured table and on the chart.
+
+    Returns ``{"table": {r: (accuracy, immiscible found)}, "chart": {r: ...}, "table_choice": r}``
+    with ``table_choice`` the r of the best accuracy on tables/miscibility.csv (ties: smallest r).
+    """
+    cat, rows = _verdicts(folder)
+    chart_truth = [r[2] for r in rows]
+    chart_pred = [r[3] for r in rows]
+    table_truth, table_pred = [], []
+    for row in cat.table("miscibility").to_dict("records"):
+        a, b = cat.solvent(row["liquid_a"]), cat.solvent(row["liquid_b"])
+        table_truth.append(row["one_phase"] == "full")
+        table_pred.append(M.predict_pair(a, b, float(row["temp_C"])))
+    out = {"table": {}, "chart": {}}
+    for r in RATIOS:
+        for key, truth, pred in (("table", table_truth, table_pred), ("chart", chart_truth, chart_pred)):
+            s = _scores(truth, _ratio_verdicts(pred, r))
+            out[key][r] = (s["accuracy"], s["immiscible_found"])
+    out["table_choice"] = max(RATIOS, key=lambda r: (out["table"][r][0], -r))
+    return out
+
+
+def _print_block(title: str, s: dict, always: float) -> None:
+    print(f"  {title}")
+    print(f"    accuracy                 {s['accuracy']:.3f}   goal >= {GOALS['accuracy']} and above "
+          f"always-miscible {always:.3f} ({'met' if s['accuracy'] >= GOALS['accuracy'] else 'NOT met'})")
+    print(f"    immiscible pairs found   {s['immiscible_found']:.3f}   goal >= {GOALS['immiscible_found']} "
+          f"({'met' if s['immiscible_found'] >= GOALS['immiscible_found'] else 'NOT met'})")
+    print(f"    answered a decisive no   {s['answered_no']} pairs: {s['immiscible_answered_no']:.3f} of the "
+          f"immiscible ones, {s['miscible_answered_no']} miscible ones")
+
+
+def main() -> None:
+    if not (CHART_DIR / CHART_FILE).is_file():
+        print(f"the chart is not at {CHART_DIR}; nothing to score")
+        return
+    f = miscibility_figures()
+    print(f"Miscibility against the published chart (KG4DT copy): {f['pairs']} pairs, {f['immiscible']} immiscible, "
+          f"doubtful cells out; 'partial' scored as not miscible; decisive 'no' below {f['level_wt']:g} wt %")
+    _print_block("prediction alone (Flory-Huggins from HSP, no measured table)", f["prediction"], f["always_miscible"])
+    _print_block("final verdict (measured table first)", f["final"], f["always_miscible"])
+    scan = threshold_scan()
+    print("  a looser 'miscible' rule, chi <= r chi_critical (accuracy, immiscible found):")
+    for r in RATIOS:
+        t, c = scan["table"][r], scan["chart"][r]
+        mark = "  <- chosen on the measured table" if r == scan["table_choice"] else ""
+        print(f"    r = {r:3.1f}: measured table {t[0]:.3f} / {t[1]:.3f}   chart {c[0]:.3f} / {c[1]:.3f}{mark}")
+
+
+if __name__ == "__main__":
+    main()

@@ -1,0 +1,60 @@
+"""Miscibility verdicts against the published chart in ../shared/data/external/miscibility_chart/.
+
+The chart: a solvent supplier's published 32 x 32 miscibility chart as transcribed in the public
+repository sustainable-processes/KG4DT (app/data/solvent_miscibility_table.csv, commit ccac3b63,
+CC BY-NC 4.0); the six doubtful cells of its PROVENANCE.md left out, "partial" scored as not
+miscible.  The figures are those measured with ``bench/published_miscibility.py`` when the
+decisive "no" was added (the level chosen on tables/miscibility.csv, never on the chart), each
+kept within a small margin so a change of the model or the tables shows here.  The goals of the
+published-data issue (accuracy 0.95 with 85 % of the immiscible pairs found) are not reached by
+Flory-Huggins from HSP alone; the benchmark prints why.
+"""
+
+from __future__ import annotations
+
+import importlib.util
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[1]
+CHART = ROOT.parent / "shared" / "data" / "external" / "miscibility_chart" / "solvent_miscibility_table.csv"
+
+pytestmark = pytest.mark.skipif(not CHART.is_file(), reason="the published miscibility chart is not in ../shared")
+
+#: Measured on 490 pairs (41 immiscible); margins: 0.01 on a share, 1 on a count.
+MEASURED = {
+    "prediction": {"accuracy": 0.847, "immiscible_found": 1.000, "immiscible_answered_no": 0.317,
+                   "miscible_answered_no": 1, "answered_no": 14},
+    "final": {"accuracy": 0.882, "immiscible_found": 1.000, "immiscible_answered_no": 0.317,
+              "miscible_answered_no": 1, "answered_no": 14},
+}
+
+
+@pytest.fixture(scope="module")
+def figures():
+    spec = importlib.util.spec_from_file_location("published_miscibility", ROOT / "bench" / "published_miscibility.py")
+    mod = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(mod)
+    return mod.miscibility_figures(CHART.parent)
+
+
+def test_the_chart_as_scored(figures):
+    # 32 liquids: 496 pairs, 6 doubtful cells out; 47 immiscible cells, all 6 doubtful ones among them
+    assert figures["pairs"] == 490 and figures["immiscible"] == 41
+    assert figures["always_miscible"] == pytest.approx(449 / 490)
+
+
+@pytest.mark.parametrize("answer", ["prediction", "final"])
+def test_figures_stay_where_they_were_measured(figures, answer):
+    got, want = figures[answer], MEASURED[answer]
+    for key, value in want.items():
+        margin = 1 if isinstance(value, int) else 0.01
+        assert abs(got[key] - value) <= margin, (answer, key, got[key], value)
+
+
+def test_the_decisive_no_is_said_and_rarely_wrong(figures):
+    # before the decisive "no" the prediction never said "no" on the chart (the issue's measurement)
+    p = figures["prediction"]
+    assert p["answered_no"] >= 10
+    assert p["miscible_answered_no"] <= 0.1 * p["answered_no"]
