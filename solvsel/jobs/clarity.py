@@ -19,7 +19,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Any
 
-from ..data.catalog import Catalog
+from ..data.catalog import Catalog, number_or_none
 from ..data.provenance import audit_block
 from ..errors import UnknownNameError
 from ..rules.cautions import DEFER, solvent_cautions
@@ -27,6 +27,7 @@ from ..science.clarity import (
     CLEAR_BELOW,
     COSOLVENT_POWER,
     COSOLVENT_POWER_SOURCE,
+    NEGLIGIBLE_GAIN,
     ComponentClarity,
     clarity_verdict,
     cosolvency_power,
@@ -258,12 +259,11 @@ def _component(name: str, entry: dict, fractions: dict, volume: float, step: Ste
     k = largest_clear_factor(entry["level"], CLEAR_BELOW * s_w * volume, exponent, cap)
     dose = None if k is None or not step.scalable else k * float(step.amount)
     max_level = CLEAR_BELOW * solubility
-    temp = row.get("temp_C")
     return ComponentClarity(
         name=name, cas=str(row.get("cas") or ""), from_ingredients=tuple(entry["from"]), level_mg_kg=entry["level"],
-        water_solubility_mg_L=s_w, solubility_temp_C=None if temp is None or temp != temp else float(temp),
+        water_solubility_mg_L=s_w, solubility_temp_C=number_or_none(row.get("temp_C")),
         solubility_source=tuple(x for x in str(row.get("solubility_source") or "").split(";") if x), log_p=lp,
-        log_p_basis=basis, cosolvent_gain=gain, gain_negligible=gain - 1.0 < 0.10, solubility_mg_kg=solubility,
+        log_p_basis=basis, cosolvent_gain=gain, gain_negligible=gain - 1.0 < NEGLIGIBLE_GAIN, solubility_mg_kg=solubility,
         ratio=ratio, verdict=verdict, max_clear_level_mg_kg=max_level, largest_clear_dose=dose,
         ways_out=() if verdict == "clear" else _ways_out(name, entry, max_level, emulsion_phase),
     )
