@@ -257,7 +257,12 @@ def open_workspace(path: str | Path, *, missing_ok: bool = False) -> Workspace:
     p = Path(path)
     if missing_ok and not p.exists():
         return Workspace()
-    text = read_user_text(p, param="workspace")
+    try:
+        text = read_user_text(p, param="workspace")
+    except FileError as exc:  # missing, a folder, unreadable, too large, binary: said for a workspace
+        binary = "binary" in exc.message
+        raise FileError("is damaged: it holds binary data, not JSON text; the file was left as it was" if binary
+                        else exc.message, param="workspace", value=str(p), path=str(p), expected=EXPECTED) from None
     try:
         doc = json.loads(text)
     except (json.JSONDecodeError, RecursionError) as exc:
