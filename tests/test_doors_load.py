@@ -63,3 +63,19 @@ def test_rank_marks_a_carrier_that_splits_at_the_load(own_solutes, capsys):
     dropped = rank(solute="triacetin", only=only, load="30%", drop_over_load=True, catalog=cat)
     assert "medium-chain triglycerides" not in [r.name for r in dropped.results]
     assert any(d.name == "medium-chain triglycerides" for d in dropped.dropped)
+
+
+def test_blend_marks_blends_that_cannot_carry_the_load(capsys):
+    from solvsel.jobs.blend import blend
+
+    fields = dict(solute="cannabidiol", use="carrier", food=True, max_components=2, top=3, load="30%")
+    lib = blend(**fields)
+    assert len(lib.loads) == len(lib.results)
+    for b, info in zip(lib.results, lib.loads):
+        assert info["basis"].startswith("solid solubility")
+        assert (info["verdict"] == "no") == any(n.startswith("cannot carry 30 %") for n in b.notes)
+    argv = ["blend", "--solute", "cannabidiol", "--use", "carrier", "--food", "--max-components", "2", "--top", "3",
+            "--load", "30%", "--json"]
+    assert main(argv) == 0
+    cli = json.loads(capsys.readouterr().out)
+    assert [r["load"] for r in cli["results"]] == json.loads(json.dumps(list(lib.loads)))

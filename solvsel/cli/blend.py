@@ -14,6 +14,7 @@ OPTION_NAMES = {
     "rejects": "--reject",
     "one_phase_only": "--keep-two-phase",
     "target": "--solute",
+    "storage_C": "--storage",
 }
 
 
@@ -69,6 +70,10 @@ def register(sub):
     d.add_argument("--already", metavar="NAME=MG_PER_KG,...",
                    help="what other ingredients already bring to the food as consumed [mg/kg]")
     d.add_argument("--keep-over", action="store_true", help="list blends over a limit too (flagged) instead of dropping them")
+    d.add_argument("--load", metavar="LOAD", help="the solute's load in the blend, e.g. 2%%: blends that cannot carry "
+                   "it over the storage range are marked with their largest load")
+    d.add_argument("--storage", metavar="LO:HI", help="storage range of the load check in C (default 4:25)")
+    d.add_argument("--drop-over-load", action="store_true", help="leave out the blends that cannot carry the load")
     r = p.add_argument_group("selectivity")
     r.add_argument("--reject", metavar="NAMES", action="append", default=[],
                    help="solutes to keep out of solution (comma-separated names of the solutes table)")
@@ -111,6 +116,7 @@ def request_fields(args) -> dict:
         dose=args.dose, category=args.category, chain=args.chain,
         already=tuple(parse_amounts(args.already, "already")) if args.already else None,
         keep_over=args.keep_over, **({} if args.top is None else {"top": args.top}),
+        load=args.load, drop_over_load=args.drop_over_load, **({} if args.storage is None else {"storage_C": args.storage}),
     )
 
 

@@ -61,6 +61,7 @@ from ..science.hansen import SCALE, as_hsp, convert_fractions
 from ..science.target import Target, target_from_hsp
 from ._base import (build_request, catalog_or_default, check_bool, check_choice, check_int, check_names, check_number,
                     check_pairs, frame, target_of)
+from .load import DEFAULT_STORAGE_C, check_load_value, check_storage, load_info
 from .parse import parse_amounts, parse_chain, parse_fraction_bound, parse_hsp
 from .pool import Candidate, LeftOut, Pool, PoolRequest, hazard_rank, solvent_named
 
@@ -132,6 +133,13 @@ class BlendRequest(PoolRequest):
         ``top`` blends pass, the trade-off front is among those, and the blends dropped on the way
         are counted, not listed with their reasons.  By default blends are checked until 5 x
         ``top`` pass (at least 50, 200 with rejects), for the front beyond the blends shown
+    load : str or float, optional
+        the target's load in the blend (mass fraction, "2%"): each blend shown is checked for it over
+        ``storage_C`` (:mod:`solvsel.jobs.load`) and marked where it cannot carry it
+    storage_C : (float, float) or str
+        storage range of the load check [C] (default 4 to 25)
+    drop_over_load : bool
+        leave out the blends that cannot carry the load (checked as the blends pass) instead of marking them
     """
 
     solute: str | None = None
@@ -165,9 +173,15 @@ class BlendRequest(PoolRequest):
     already: tuple[tuple[str, float], ...] | None = None
     keep_over: bool = False
     shown_only: bool = False
+    load: str | float | None = None
+    storage_C: tuple[float, float] | str = DEFAULT_STORAGE_C
+    drop_over_load: bool = False
 
     def __post_init__(self) -> None:
         set_ = object.__setattr__
+        set_(self, "load", check_load_value(self.load))
+        set_(self, "storage_C", check_storage(self.storage_C))
+        set_(self, "drop_over_load", check_bool(self.drop_over_load, "drop_over_load"))
         self.check_pool_fields()
         given = [k for k in ("solute", "hsp", "smiles", "target") if getattr(self, k) is not None]
         if len(given) != 1:
@@ -299,11 +313,14 @@ class BlendResult:
     sure: tuple[dict, ...] = ()
     #: how the answers hold when the target is sampled within its uncertainty (summary)
     how_sure: dict | None = None
+    #: per blend shown, with a ``load``: the load check (:func:`solvsel.jobs.load.load_info`)
+    loads: tuple[dict | None, ...] = ()
 
     def _row(self, i: int, b: Blend) -> dict:
-        """A blend of ``results`` as JSON, with its health hazard and how sure it is."""
+        """A blend of ``results`` as JSON, with its health hazard, how sure it is and its load check."""
         return {**b.to_dict(), "health_hazard": self.health[i] if i < len(self.health) else None,
-                "how_sure": self.sure[i] if i < len(self.sure) else None}
+                "how_sure": self.sure[i] if i < len(self.sure) else None,
+                "load": self.loads[i] if i < len(self.loads) else None}
 
     def to_dict(self) -> dict:
         return {
@@ -392,7 +409,8 @@ class _Search:
         """The cautions of liquids for the use (:func:`solvsel.rules.cautions.solvent_cautions`)."""
         return [t for c in recs for t in solvent_cautions(c.record, use=self.req.use, cat=self.cat)]
 
-    def finish(self, results=(), pareto=(), success: bool = False, message: str = "", sure=None) -> BlendResult:
+    def finish(self, results=(), pareto=(), success: bool = False, message: str = "", sure=None,
+               loads=()) -> BlendResult:
         by_name = {c.name: c for c in self.pool.candidates}
         names = dict.fromkeys(c.name for b in results for c in b.components)
         shown = dict.fromkeys(t for t in self.liquid_cautions([by_name[n] for n in names]) if t != DEFER)
@@ -402,7 +420,14 @@ class _Search:
                            _cautions(self.req), success, message, tuple(shown) + (DEFER,),
                            audit_block(self.pool.rules, self.cat.tables_dir), health,
                            () if sure is None else tuple(sure.row(i) for i in range(len(results))),
-                           None if sure is None else sure.to_dict())
+                           None if sure is None else sure.to_dict(), tuple(loads))
+
+    def load(self, j: int) -> dict | None:
+        """The load check of candidate ``j`` (None without a load or a solute target)."""
+        recs, xs = self.members(j)
+        xs = np.clip(xs, 0.0, 1.0)
+        return load_info(self.cat, self.target, [c.record for c in recs], list(xs / xs.sum()), self.req.load,
+                         self.req.storage_C)
 
 
 @dataclass(frozen=True)
@@ -575,6 +600,12 @@ def _check(s: _Search, sc: _Scores) -> list[tuple[int, dict | None]]:
             s.counts["over_limit"] += 1
             if listing():
                 s.drop(j, dose["message"])
+            continue
+        over = s.load(j) if req.drop_over_load else None
+        if over is not None and over["verdict"] == "no":
+            s.counts["over_load"] = s.counts.get("over_load", 0) + 1
+            if listing():
+                s.drop(j, over["mark"])
             continue
         sig = s.signature(j) if c.size[j] > 1 else None
         if sig is not None and sig in s.seen:
@@ -815,6 +846,22 @@ def blend(request: BlendRequest | None = None, *, catalog: Catalog | None = None
         return s.finish(message="no blend passed the checks (see dropped)")
     kept = _order(s, sc, kept)
     results, pareto = _shown(s, sc, kept)
+    results, loads = _with_load(s, results)
     return s.finish(results, pareto, True,
                     f"{len(results)} blend(s) from {m} liquids; {counts['combinations']} combinations searched",
-                    _how_sure(s, sc, kept, results))
+                    _how_sure(s, sc, kept, results), loads)
+
+
+def _with_load(s: _Search, results) -> tuple[list, list]:
+    """The blends shown with their load checks, those that cannot carry the load marked in their notes."""
+    if s.req.load is None:
+        return list(results), []
+    by_name = {c.name: c.record for c in s.pool.candidates}
+    loads, out = [], []
+    for b in results:
+        recs = [by_name[c.name] for c in b.components]
+        info = load_info(s.cat, s.target, recs, [c.volume_fraction for c in b.components], s.req.load,
+                         s.req.storage_C)
+        loads.append(info)
+        out.append(replace(b, notes=b.notes + (info["mark"],)) if info and info["verdict"] == "no" else b)
+    return out, loads
