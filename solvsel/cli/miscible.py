@@ -18,7 +18,9 @@ def register(sub):
         "Partial pairs show the one-phase window. With --fractions, check a blend at those volume "
         "fractions; with --bridge, list liquids that mix with both of two liquids.",
     )
-    p.add_argument("liquids", nargs="+", metavar="LIQUID", help="two or more liquids (names, synonyms or CAS)")
+    p.add_argument("liquids", nargs="+", metavar="LIQUID",
+                   help="two or more liquids (names, synonyms or CAS); quote a name of several words, or separate "
+                   "the names with commas")
     p.add_argument("--temp", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
     p.add_argument("--fractions", metavar="F1,F2,...", help="volume fractions of the liquids (sum 1, or percent summing to 100)")
     p.add_argument("--bridge", action="store_true", help="for two liquids: list liquids miscible with both, best first")
@@ -43,10 +45,11 @@ def _window_text(v):
 def request(args):
     """The :class:`~solvsel.jobs.miscible.MiscibleRequest` the options ask for."""
     from ..jobs.miscible import MiscibleRequest
-    from ..jobs.parse import parse_fractions
+    from ..jobs.parse import parse_fractions, parse_name_words
 
-    fractions = parse_fractions(args.fractions, len(args.liquids)) if args.fractions else None
-    return MiscibleRequest(liquids=tuple(args.liquids), temp_C=args.temp, fractions=fractions, bridge=args.bridge,
+    liquids = parse_name_words(args.liquids, "liquids", get_catalog(args).liquid_name)
+    fractions = parse_fractions(args.fractions, len(liquids)) if args.fractions else None
+    return MiscibleRequest(liquids=tuple(liquids), temp_C=args.temp, fractions=fractions, bridge=args.bridge,
                            food=args.food)
 
 

@@ -26,7 +26,7 @@ import stat
 import sys
 import unicodedata
 import warnings
-from dataclasses import dataclass, fields
+from dataclasses import dataclass, fields, replace
 from functools import lru_cache
 from pathlib import Path
 from typing import Any, Iterable, Mapping, Sequence
@@ -100,6 +100,29 @@ def normalize_name(name: str) -> str:
     s = s.replace("\u2019", "'")
     s = re.sub(r"\s+", " ", s)
     return s
+
+
+#: A strength by volume written before or after a name: "ethanol 96%", "96% ethanol", "ethanol 96 % v/v",
+#: "ethanol 96 %vol" (a percent by volume, or a bare percent: the strength rows of the tables are by volume).
+_STRENGTH_RE = re.compile(
+    r"^(?:(?P<n1>\d+(?:[.,]\d+)?)\s*%\s*(?:v/v|vol\.?)?\s+(?P<b1>\D.*?)"
+    r"|(?P<b2>.*?\D)\s+(?P<n2>\d+(?:[.,]\d+)?)\s*(?:%\s*(?:v/v|vol\.?)?)?)$")
+
+
+def strength_name(name: str) -> str | None:
+    """The name of a strength row ("ethanol 96% v/v") for the ways a strength by volume is written,
+    or None when ``name`` gives no strength (or one by mass).
+
+    >>> [strength_name(n) for n in ("ethanol 96%", "96% ethanol", "ethanol 96 % v/v", "Ethanol 40 %vol")]
+    ['ethanol 96% v/v', 'ethanol 96% v/v', 'ethanol 96% v/v', 'ethanol 40% v/v']
+    >>> strength_name("ethanol 96% w/w") is None, strength_name("ethanol") is None
+    (True, True)
+    """
+    m = _STRENGTH_RE.match(normalize_name(name))
+    if not m:
+        return None
+    base, number = (m.group("b1"), m.group("n1")) if m.group("b1") else (m.group("b2"), m.group("n2"))
+    return f"{base.strip()} {float(number.replace(',', '.')):g}% v/v"
 
 
 _CAS_RE = re.compile(r"^(\d{2,7})-(\d{2})-(\d)$")
@@ -889,23 +912,38 @@ class Catalog:
             self._index[table] = idx
         return self._index[table]
 
-    def find_index(self, table: str, name: str) -> int:
-        """Row position of ``name`` (name, synonym or CAS) in ``table``; UnknownNameError otherwise."""
+    def match_index(self, table: str, name: str) -> int | None:
+        """Row position of ``name`` in ``table``, or None: the name, a synonym or the CAS, the same
+        with a missing or extra 'n-' prefix or a hyphen for a space (and back), and a strength by
+        volume however it is written (:func:`strength_name`).  Nothing looser: a name that is only
+        close to one of the table's is not a match."""
         if not isinstance(name, str) or not name.strip():
             raise InputError(f"expected a {table[:-1] if table.endswith('s') else table} name, got '{name}'")
         idx = self._name_index(table)
         key = normalize_name(name)
-        if key in idx:
-            return idx[key]
-        # forgive missing or extra 'n-' prefixes and hyphen/space variants
-        for variant in (key.replace("-", " "), key.replace(" ", "-"), "n-" + key, key.removeprefix("n-")):
+        for variant in (key, key.replace("-", " "), key.replace(" ", "-"), "n-" + key, key.removeprefix("n-"),
+                        strength_name(key)):
             if variant in idx:
                 return idx[variant]
+        return None
+
+    def unknown_name(self, table: str, name: str, also: Sequence[str] = (), why: str = "") -> UnknownNameError:
+        """The error for a name ``table`` does not know: the closest names of the table (after
+        ``also``) as the candidates, listed in ``expected``; ``why`` replaces the message."""
+        idx = self._name_index(table)
+        close = difflib.get_close_matches(normalize_name(name), list(idx), n=8, cutoff=0.6)
         df = self.table(table)
-        close = difflib.get_close_matches(key, list(idx), n=8, cutoff=0.6)
-        names = list(dict.fromkeys(df["name"].iloc[idx[c]] for c in close))[:5]
+        names = tuple(dict.fromkeys(list(also) + [df["name"].iloc[idx[c]] for c in close]))[:5]
         kind = {"solvents": "liquid", "solutes": "solute"}.get(table, f"entry in table '{table}'")
-        raise UnknownNameError(name, kind, tuple(names))
+        return refused_name(name, kind, names, why)
+
+    def find_index(self, table: str, name: str) -> int:
+        """Row position of ``name`` (:meth:`match_index`) in ``table``; UnknownNameError with the closest
+        names otherwise."""
+        i = self.match_index(table, name)
+        if i is None:
+            raise self.unknown_name(table, name)
+        return i
 
     def _row_by_library_cas(self, table: str, name: str) -> int | None:
         """Row of ``table`` whose CAS the reference library gives for ``name`` (a misspelling it
@@ -920,22 +958,68 @@ class Catalog:
         return self.table(table).iloc[self.find_index(table, name)].to_dict()
 
     def solvent(self, name: str, library: bool = True) -> Solvent:
-        """The liquid named ``name`` (name, synonym or CAS).
+        """The liquid named ``name`` (name, synonym or CAS), the same in every command.
 
-        With ``library=True`` a liquid not in the tables is looked up in the
-        reference library ``chemicals`` (marked ``origin='library: ...'``).
+        In order: the solvents table (:meth:`match_index`); an oil of the oils table that stands
+        for a liquid (its ``hsp_as``: "orange oil" is the oils table's cold-pressed orange oil with
+        the values of d-limonene, :meth:`oil_liquid`); with ``library=True`` the table's row whose
+        CAS the reference library ``chemicals`` gives for the name, else the library's own record
+        (marked ``origin='library: ...'``), but only when the name is the library's own name for it
+        (common or IUPAC) or its CAS: a name the library matches only through a synonym list (e.g.
+        "propylene", read as propene) is refused with the library's reading among the candidates.
         """
-        try:
-            return self.solvent_records()[self.find_index("solvents", name)]
-        except UnknownNameError as exc:
-            if library:
-                ours = self._row_by_library_cas("solvents", name)
-                if ours is not None:
-                    return self.solvent_records()[ours]
-                found = library_solvent(name)
-                if found is not None:
-                    return found
-            raise exc from None
+        i = self.match_index("solvents", name)
+        if i is not None:
+            return self.solvent_records()[i]
+        oil = self.oil_liquid(name)
+        if oil is not None:
+            return oil
+        if not library:
+            raise self.unknown_name("solvents", name)
+        ours = self._row_by_library_cas("solvents", name)
+        if ours is not None:
+            return self.solvent_records()[ours]
+        found = library_solvent(name)
+        if found is None:
+            raise self.unknown_name("solvents", name)
+        if not library_name_is_exact(name):
+            reading = f"{found.name} (CAS {found.cas})"
+            raise self.unknown_name(
+                "solvents", name, (found.name,),
+                f"no liquid named '{name}' in the tables; {_LIBRARY_READING} {reading} through its list of "
+                "synonyms only: give that name or its CAS number to use it")
+        return found
+
+    def liquid_name(self, name: str) -> str | None:
+        """The table's name of the liquid ``name`` stands for (solvents table, or an oil that stands
+        for a liquid), or None; the reference library is not asked."""
+        if self.match_index("solvents", name) is not None:
+            return self.solvent_records()[self.match_index("solvents", name)].name
+        oil = self.oil_liquid(name)
+        return None if oil is None else oil.name
+
+    def oil_liquid(self, name: str) -> Solvent | None:
+        """The oil of tables/oils.csv named ``name`` as a liquid, where the table says which liquid
+        stands for it (``hsp_as``): that liquid's record under the oil's name, CAS and density (molar
+        volume from the liquid's molar mass and the oil's density), with a note; None otherwise."""
+        if "oils" not in self.table_names:
+            return None
+        i = self.match_index("oils", name)
+        if i is None:
+            return None
+        row = self.table("oils").iloc[i]
+        j = self.match_index("solvents", str(row.get("hsp_as") or "")) if str(row.get("hsp_as") or "").strip() else None
+        if j is None:
+            return None
+        liquid = self.solvent_records()[j]
+        density = _num(row.get("density_g_cm3")) or liquid.density_g_cm3
+        vm = liquid.mw_g_mol / density if liquid.mw_g_mol and density else liquid.vm_cm3_mol
+        return replace(liquid, name=str(row["name"]), cas=str(row.get("cas") or ""), synonyms=_tuple(row.get("synonyms", "")),
+                       roles=(), density_g_cm3=density, vm_cm3_mol=round(vm, 1),
+                       props_source=";".join(dict.fromkeys(_tuple(str(row.get("density_source") or ""))
+                                                          + _tuple(liquid.props_source))),
+                       note=f"an oil of tables/oils.csv taken as {liquid.name} (its HSP, boiling and flash point); "
+                            f"density of the oil", water_miscibility=liquid.water_miscibility)
 
     def solute(self, name: str, library: bool = True) -> Solute:
         """The solute named ``name``; falls back to the solvents table, then the library."""
@@ -947,8 +1031,8 @@ class Catalog:
                 return self.solute_records()[ours]
             try:
                 s = self.solvent(name, library=library)
-            except UnknownNameError:
-                raise exc from None
+            except UnknownNameError as inner:  # the library's reading of a name is the more telling refusal
+                raise (inner if _LIBRARY_READING in inner.message else exc) from None
             return Solute(
                 name=s.name, cas=s.cas, dD=s.dD, dP=s.dP, dH=s.dH, synonyms=s.synonyms, category="other",
                 hsp_basis="measured", mw_g_mol=s.mw_g_mol, mp_C=s.mp_C, vm_cm3_mol=s.vm_cm3_mol,
@@ -1018,6 +1102,47 @@ def load_catalog(own: Mapping[str, Sequence[str | Path]] | None = None, tables_d
 
 
 # ----------------------------------------------------------------------------- library
+
+_LIBRARY_READING = "the reference library reads it as"
+
+
+def refused_name(name: str, kind: str, candidates: Sequence[str], why: str = "",
+                 param: str | None = None) -> UnknownNameError:
+    """An :class:`~solvsel.errors.UnknownNameError` for ``name`` with its candidates listed in
+    ``expected`` (and as ``suggestions``); ``why`` replaces the usual message.
+
+    >>> e = refused_name("propylene", "liquid", ("propylene glycol",), "the words name another liquid")
+    >>> e.expected, e.suggestions
+    ("one of: 'propylene glycol'", ('propylene glycol',))
+    """
+    err = UnknownNameError(name, kind, tuple(candidates), param=param)
+    if candidates:
+        err.expected = "one of: " + ", ".join(f"'{c}'" for c in candidates)
+    if why:
+        err.message = why + ("; candidates: " + ", ".join(f"'{c}'" for c in candidates) if candidates else "")
+        err.args = (err.message,)
+    return err
+
+
+@lru_cache(maxsize=256)
+def library_name_is_exact(name_or_cas: str) -> bool:
+    """True when the reference library knows ``name_or_cas`` as a CAS number or as its own common or
+    IUPAC name for the substance (not only through its list of synonyms).
+
+    >>> library_name_is_exact("naphthalene"), library_name_is_exact("propylene")
+    (True, False)
+    """
+    from chemicals.identifiers import search_chemical
+
+    key = normalize_name(name_or_cas)
+    if not key:
+        return False
+    try:
+        meta = search_chemical(name_or_cas.strip())
+    except ValueError:  # unknown to the library
+        return False
+    return key in {normalize_name(meta.CASs), normalize_name(meta.common_name or ""), normalize_name(meta.iupac_name or "")}
+
 
 
 @lru_cache(maxsize=256)

@@ -28,6 +28,7 @@ from ..science.formulation import Step
 
 __all__ = [
     "parse_names",
+    "parse_name_words",
     "parse_hsp",
     "parse_amounts",
     "parse_amount",
@@ -89,6 +90,43 @@ def parse_names(text: str | None, param: str = "only") -> list[str]:
     if not names:
         raise _fail(param, text, f"expected a comma-separated list of names, got '{text}'", "names separated by commas")
     return names
+
+
+_COUNT = {2: "two", 3: "three", 4: "four"}
+
+
+def parse_name_words(words, param: str, known) -> list[str]:
+    """Names given as separate words of a command line (``miscible ethanol water``).
+
+    Words that hold a comma are read as one comma-separated list (``d-limonene, propylene glycol``).
+    Otherwise each word is one name, and where two to four neighbouring words together are a name
+    ``known`` gives (``known(text)`` returns the table's name or None) the words are refused, with
+    that name as the candidate: ``d-limonene propylene glycol`` would otherwise be read as three
+    liquids.
+
+    >>> parse_name_words(["d-limonene,", "propylene", "glycol"], "liquids", lambda t: None)
+    ['d-limonene', 'propylene glycol']
+    >>> parse_name_words(["d-limonene", "propylene", "glycol"], "liquids",
+    ...                  lambda t: "propylene glycol" if t == "propylene glycol" else None)
+    Traceback (most recent call last):
+    ...
+    solvsel.errors.UnknownNameError: liquids: 'propylene' and 'glycol' were given as two liquids, but together they name 'propylene glycol': put a name of several words in quotes, or separate the names with commas; candidates: 'propylene glycol'
+    """
+    from ..data.catalog import refused_name
+
+    words = [str(w) for w in words]
+    if any("," in w for w in words):
+        return parse_names(" ".join(words), param)
+    for i in range(len(words)):
+        for n in range(min(4, len(words) - i), 1, -1):
+            joined = " ".join(words[i:i + n])
+            name = known(joined)
+            if name is not None:
+                given = " and ".join(f"'{w}'" for w in words[i:i + n])
+                raise refused_name(joined, "liquid", (name,), f"{given} were given as {_COUNT[n]} liquids, but together "
+                                   f"they name '{name}': put a name of several words in quotes, or separate the "
+                                   "names with commas", param=param)
+    return words
 
 
 def parse_hsp(text: str, param: str = "hsp", allow_r0: bool = True) -> tuple[float, ...]:
