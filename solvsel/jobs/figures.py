@@ -250,14 +250,15 @@ def figures_of(command: str, data: Any) -> list[FigureData]:
 
 
 def _figure(width: float, height: float):
-    """A matplotlib figure drawn by the Agg canvas (no window, no global backend change)."""
+    """A matplotlib figure drawn by the Agg canvas (no window, no global backend change); margins are set
+    by each drawing (a layout engine would measure every label first, a second per figure here)."""
     from ..extras import need
 
     need("matplotlib", FIGURE_EXTRA, "figures in reports")
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
-    fig = Figure(figsize=(width, height), layout="constrained")
+    fig = Figure(figsize=(width, height))
     FigureCanvasAgg(fig)
     return fig
 
@@ -312,7 +313,7 @@ def _plane(ax, x: str, y: str) -> None:
 def _draw_map(figure: FigureData):
     fig = _figure(12, 4.3)
     t, pts = figure.data["target"], figure.data["points"]
-    axes = fig.subplots(1, 3)
+    axes = fig.subplots(1, 3, gridspec_kw={"wspace": 0.32, "left": 0.05, "right": 0.9, "bottom": 0.13, "top": 0.88})
     ras = [p["ra"] for p in pts if p["ra"] is not None]
     for ax, (x, y) in zip(axes, _PLANES):
         sc = ax.scatter([p[x] for p in pts], [p[y] for p in pts], c=[p["ra"] if p["ra"] is not None else 0 for p in pts],
@@ -327,7 +328,7 @@ def _draw_map(figure: FigureData):
                 _sphere(ax, t, t["r0"], x, y, edgecolor="#d62728", linewidth=1.4)
         _square(ax, *_extent_of(pts, x, y, t if t["dD"] is not None else None, t["r0"]))
         _plane(ax, x, y)
-    fig.colorbar(sc, ax=list(axes), label="Ra to the target [MPa^0.5]", shrink=0.85)
+    fig.colorbar(sc, cax=fig.add_axes((0.925, 0.18, 0.012, 0.65)), label="Ra to the target [MPa^0.5]")
     fig.suptitle(figure.title)
     return fig
 
@@ -336,7 +337,8 @@ def _draw_fit(figure: FigureData):
     fig = _figure(12, 8.5)
     d = figure.data
     centre = dict(zip(("dD", "dP", "dH"), d["centre"]))
-    axes = fig.subplots(2, 2).ravel()
+    axes = fig.subplots(2, 2, gridspec_kw={"wspace": 0.45, "hspace": 0.28, "left": 0.06, "right": 0.98,
+                                           "bottom": 0.07, "top": 0.94}).ravel()
     liquids = [x for x in d["liquids"] if None not in (x["dD"], x["dP"], x["dH"])]
     for ax, (x, y) in zip(axes[:3], _PLANES):
         for good, style in ((True, dict(color="#1f77b4")), (False, dict(facecolors="white", edgecolors="#ff7f0e"))):
@@ -370,7 +372,7 @@ def _draw_red_strip(ax, liquids: list[dict]) -> None:
 def _draw_creaming(figure: FigureData):
     fig = _figure(8, 5)
     d = figure.data
-    ax = fig.subplots()
+    ax = fig.subplots(gridspec_kw={"left": 0.1, "right": 0.97, "bottom": 0.11, "top": 0.92})
     ax.loglog(d["diameter_um"], d["days"], color="#1f77b4", linewidth=2, label=f"time to {d['direction']}")
     if d["shelf_days"]:
         ax.axhline(d["shelf_days"], color="#555555", linestyle="--", label=f"shelf life {d['shelf_days']:g} days")
@@ -391,7 +393,7 @@ def _draw_creaming(figure: FigureData):
 def _draw_pareto(figure: FigureData):
     fig = _figure(8, 5)
     d = figure.data
-    ax = fig.subplots()
+    ax = fig.subplots(gridspec_kw={"left": 0.1, "right": 0.97, "bottom": 0.11, "top": 0.92})
     markers = {1: "s", 2: "o", 3: "^", 4: "D"}
     for n in sorted({p["n_components"] for p in d["points"]}):
         for front in (False, True):
@@ -414,7 +416,7 @@ def _draw_pareto(figure: FigureData):
 def _draw_extraction(figure: FigureData):
     fig = _figure(8, 5)
     d = figure.data
-    ax = fig.subplots()
+    ax = fig.subplots(gridspec_kw={"left": 0.1, "right": 0.98, "bottom": 0.11, "top": 0.92})
     values = [[math.nan if v is None else v for v in row] for row in d["values"]]
     mesh = ax.pcolormesh(_edges(d["strengths"]), _edges(d["temps_C"]), values, cmap="viridis")
     shown = [v for row in d["values"] for v in row if v is not None]
