@@ -14,7 +14,7 @@ def register(sub):
         description="Run the README's walk-through on the demo scenario (a fictional drinks maker) and print "
         "each command with its output.",
     )
-    p.add_argument("--step", type=int, metavar="N", help="run only step N (1 to 6)")
+    p.add_argument("--step", type=int, metavar="N", help="run only step N (see the list the demo prints)")
     return p
 
 

@@ -53,8 +53,11 @@ def run(args) -> int:
     largest = "not known" if c.largest_load is None else f"{100 * c.largest_load:.3g} % by mass"
     print(f"Largest load that stays one phase over the range: {largest}")
     print(f"  {c.reason}\n")
-    rows = [{"t": p.temp_C, "max": None if p.largest_load is None else 100 * p.largest_load, "basis": p.basis,
-             "note": p.note} for p in c.points]
+    rows, last = [], None
+    for p in c.points:  # a note is shown where it changes
+        rows.append({"t": p.temp_C, "max": None if p.largest_load is None else 100 * p.largest_load,
+                     "basis": p.basis, "note": "" if p.note == last else p.note})
+        last = p.note
     print_table(rows, [("t", "C", "g"), ("max", "largest load %", ".3g"), ("basis", "basis"), ("note", "note")])
     for n in result.notes:
         print(f"Note: {n}")

@@ -10,7 +10,7 @@ the UI and the README show the same work.
 from __future__ import annotations
 
 import json
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
@@ -34,6 +34,7 @@ class Scenario:
     extraction: dict[str, Any]
     emulsion: dict[str, Any]
     flavour: dict[str, Any]
+    load: dict[str, Any] = field(default_factory=dict)
     source: str = "demo"
     path: str = ""
 
@@ -60,7 +61,7 @@ def load_scenario(path: str | Path | None = None) -> Scenario:
         raise InputError(f"scenario file '{p}': missing '{missing[0]}'")
     if data.get("source") != "demo":
         raise InputError(f"scenario file '{p}': its 'source' must be 'demo' (invented data are marked so)")
-    return Scenario(**{k: data[k] for k in keys}, source="demo", path=str(p))
+    return Scenario(**{k: data[k] for k in keys}, load=data.get("load") or {}, source="demo", path=str(p))
 
 
 def _amounts(d: dict) -> str:
@@ -70,6 +71,33 @@ def _amounts(d: dict) -> str:
 def _purpose(part: dict) -> list[str]:
     """The ``--purpose`` of a step whose part of the scenario states what the product is (else nothing)."""
     return ["--purpose", part["purpose"]] if part.get("purpose") else []
+
+
+def _load_steps(s: Scenario) -> list[tuple[str, list[str]]]:
+    """The load checks of the scenario: does each solute stay dissolved at its level over the storage range."""
+    return [(f"Does {k['solute']} stay dissolved at {k['load']} in {' + '.join(k['carrier'])}, "
+             f"stored at {k.get('storage', '4:25').replace(':', ' to ')} C?",
+             ["dissolves", k["solute"], "--in", ",".join(k["carrier"]), "--load", k["load"],
+              "--storage", k.get("storage", "4:25")]) for k in s.load.get("checks", ())]
+
+
+def _later_steps(s: Scenario) -> list[tuple[str, list[str]]]:
+    """The load checks, the clarity of the drink and the extraction plan (numbered after the first six)."""
+    x, f = s.extraction, s.flavour
+    plan = x.get("plan") or {}
+    steps = _load_steps(s)
+    steps.append(("Will the lemon flavour keep the drink clear (each component against its solubility in the "
+                  "drink's water phase)?",
+                  ["clear", "--formula", _amounts(f["formula"]), "--dose", f["dose"], "--chain", f["chain"],
+                   *(["--brix", f"{f['brix']:g}"] if f.get("brix") is not None else [])]))
+    if plan:
+        steps.append((f"Which ethanol strength and how cold for the {s.solute} extraction, and how to strip it",
+                      ["extract", "--solute", s.solute, "--reject", ",".join(x["reject"]),
+                       "--liquids", ",".join(plan.get("liquids", ("ethanol", "water"))),
+                       "--strengths", plan.get("strengths", "40:100:5"), f"--temps={plan.get('temps', '-40:40:5')}",
+                       "--vacuum", f"{plan.get('vacuum_kPa', 10):g}", "--jurisdiction", x["jurisdiction"],
+                       *_purpose(x)]))
+    return [(f"{i}. {title}", argv) for i, (title, argv) in enumerate(steps, start=7)]
 
 
 def demo_steps(s: Scenario) -> list[tuple[str, list[str]]]:
@@ -96,4 +124,5 @@ def demo_steps(s: Scenario) -> list[tuple[str, list[str]]]:
         ("6. The lemon flavour's carrier against the finished-drink limits",
          ["dose", "--formula", _amounts(f["formula"]), "--dose", f["dose"], "--chain", f["chain"],
           "--category", f["category"], "--jurisdiction", f["jurisdiction"]]),
+        *_later_steps(s),
     ]
