@@ -184,10 +184,10 @@ class ExtractionResult:
 # ----------------------------------------------------------------------------- the grid
 
 
-def _point(p: ex.Pair, target: Target, rejects, fusions, phi: float, t: float) -> dict:
+def _point(p: ex.Pair, target: Target, rejects, fusions, phi: float, t: float, liquids) -> dict:
     from ..science.hansen import ra
 
-    hsp, vm, mw = ex.mixture_at(p, phi, t)
+    hsp, vm, mw = ex.mixture_at(p, phi, t, liquids)
     r = float(ra(hsp, target.hsp))
     tg = ex.solubility_g_L(target.solute, hsp, vm, mw, t, fusions[0]) if target.solute is not None else None
     rej = [ex.solubility_g_L(s, hsp, vm, mw, t, f) for s, f in zip(rejects, fusions[1:])]
@@ -214,11 +214,12 @@ def _grid(cat: Catalog, p: ex.Pair, target: Target, rejects, req: ExtractionRequ
     g = {k: [] for k in keys}
     g["rejects_g_L"] = {s.name: [] for s in rejects}
     fps, extrapolated = [], False
+    at = {t: ex.pair_at(p, t) for t in req.temps_C}
     for s in req.strengths:
         fp, liquid, vis, extra = _liquid_and_viscosity(cat, p, s, req.temps_C)
         fps.append(fp)
         extrapolated |= extra
-        pts = [_point(p, target, rejects, fusions, s / 100.0, t) for t in req.temps_C]
+        pts = [_point(p, target, rejects, fusions, s / 100.0, t, at[t]) for t in req.temps_C]
         for k in ("ra", "red", "target_g_L", "selectivity"):
             g[k].append([pt[k] for pt in pts])
         for n, rec in enumerate(rejects):

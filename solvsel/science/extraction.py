@@ -40,7 +40,7 @@ from . import hansen
 
 __all__ = [
     "ETHANOL_CAS", "WATER_CAS", "HSP_BASIS", "NRTL_ETHANOL_WATER", "WALDEN_DSFUS_J_MOL_K",
-    "Pair", "pair_of", "nrtl_ln_gamma", "psat_kPa", "freezing_point_C", "viscosity_mPa_s",
+    "Pair", "pair_of", "pair_at", "mixture_at", "nrtl_ln_gamma", "psat_kPa", "freezing_point_C", "viscosity_mPa_s",
     "fusion_of", "solubility_g_L", "antoine", "bubble_point_C", "azeotrope",
 ]
 
@@ -108,9 +108,16 @@ def _liquid_hsp(rec, temp_C: float) -> tuple[np.ndarray, float]:
     return np.asarray(h2, dtype=float), float(vm2)
 
 
-def mixture_at(p: Pair, phi_a: float, temp_C: float) -> tuple[np.ndarray, float, float]:
-    """HSP [MPa^0.5], mole-average molar volume [cm^3/mol] and molar mass [g/mol] of the mixture."""
-    (ha, va), (hb, vb) = _liquid_hsp(p.a, temp_C), _liquid_hsp(p.b, temp_C)
+def pair_at(p: Pair, temp_C: float) -> tuple:
+    """HSP and molar volumes of both liquids at ``temp_C``: ``((ha, va), (hb, vb))`` (for :func:`mixture_at`)."""
+    return _liquid_hsp(p.a, temp_C), _liquid_hsp(p.b, temp_C)
+
+
+def mixture_at(p: Pair, phi_a: float, temp_C: float, liquids=None) -> tuple[np.ndarray, float, float]:
+    """HSP [MPa^0.5], mole-average molar volume [cm^3/mol] and molar mass [g/mol] of the mixture at volume
+    fraction ``phi_a`` of ``a``; ``liquids`` the two liquids at ``temp_C`` from :func:`pair_at` (computed here
+    when not given)."""
+    (ha, va), (hb, vb) = liquids if liquids is not None else pair_at(p, temp_C)
     hsp = phi_a * ha + (1.0 - phi_a) * hb
     x = float(p.mole_fraction(phi_a))
     return hsp, x * va + (1 - x) * vb, x * float(p.a.mw_g_mol) + (1 - x) * float(p.b.mw_g_mol)
