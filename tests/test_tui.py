@@ -387,7 +387,9 @@ def test_bench_fit_target_and_the_users_own_rows(tmp_path):
             for _ in range(3):  # the fourth way: from bench results
                 await pilot.press("ctrl+t")
                 await pilot.pause()
-            assert screen.query_one("#target-tabs").active == "from-bench"
+            await _until(pilot, lambda: screen.query_one("#target-tabs").active == "from-bench")
+            # the cursor lands in the path field, so a typed path goes there
+            await _until(pilot, lambda: screen.focused is screen.query_one("#bench-path"))
             screen.query_one("#bench-path").value = str(bench)
             screen.query_one("#bench-good").value = "2"
             await pilot.press("enter")

@@ -110,6 +110,7 @@ class CarriersScreen(BenchScreen):
         self.search_no = 0  # the search whose messages count (those of an older one are ignored)
         self.search_started = 0.0  # monotonic time the search in progress started
         self._ticker = None
+        self.stale = False  # the lists on screen are those of the previous search
 
     def compose(self) -> ComposeResult:
         yield from self.compose_frame_top()
@@ -299,7 +300,7 @@ class CarriersScreen(BenchScreen):
         self.search_started = time.monotonic()
         self.set_stale(self.result is not None)
         self.query_one("#search-progress", ProgressBar).update(total=100, progress=0)
-        self.query_one("#search-status", Static).update("searching blends: the pool and its constraints (Esc cancels)")
+        self.status("searching blends: the pool and its constraints (Esc cancels)")
         self.show_summary()
         if self._ticker is None:
             self._ticker = self.set_interval(0.5, self.tick, pause=False)
@@ -309,8 +310,12 @@ class CarriersScreen(BenchScreen):
         """Grey the blend lists (and say so) while they are those of the previous search."""
         for grid_id in ("#blend-grid", "#dropped-grid", "#excluded-grid"):
             self.query_one(grid_id, DataTable).set_class(stale, "-stale")
-        for pane in self.query("#tab-blends, #tab-dropped, #tab-excluded"):
-            pane.border_title = "previous search: new results on the way" if stale else None
+        self.stale = stale
+
+    def status(self, text: str) -> None:
+        """The status line beside the bar (saying so while the lists are the previous search's)."""
+        stale = "  ·  greyed: the previous search's lists, until the new ones arrive" if self.stale else ""
+        self.query_one("#search-status", Static).update(text + stale)
 
     def searching(self) -> bool:
         return self.worker is not None and self.worker.state in (WorkerState.PENDING, WorkerState.RUNNING)
@@ -323,9 +328,8 @@ class CarriersScreen(BenchScreen):
         if not self.searching() or bar.progress < 100 * COUNT_SHARE:
             return
         seconds = time.monotonic() - self.search_started
-        self.query_one("#search-status", Static).update(
-            f"step 2 of 2: checking the best blends (one phase, limits) and describing them, {seconds:.0f} s "
-            "so far (Esc cancels)")
+        self.status(f"step 2 of 2: checking the best blends (one phase, limits) and describing them, {seconds:.0f} s "
+                    "so far (Esc cancels)")
 
     @work(thread=True, exclusive=True, group="blends", exit_on_error=False)
     def search_worker(self, req, search: int = 0) -> None:
@@ -387,7 +391,7 @@ class CarriersScreen(BenchScreen):
         self.messages.append(message)
         share = COUNT_SHARE * message.done / message.total if message.total else 0.0
         self.query_one("#search-progress", ProgressBar).update(total=100, progress=100 * share)
-        self.query_one("#search-status", Static).update(message.text)
+        self.status(message.text)
         if message.total and message.done >= message.total:
             self.tick()
 

@@ -21,9 +21,11 @@ from .dialogs import field_label
 from .limits import NO_PURPOSE, purpose_choices, purpose_value
 from .widgets import CautionBox, fill_table
 
-PAIR_HEADERS = ("emulsifier A", "share A", "emulsifier B", "share B", "blend HLB", "same tail")
-WEIGHTING_HEADERS = ("where", "weighting agent(s)", "in oil phase", "mg/kg in drink", "limit mg/kg", "oil g/cm3",
-                     "verdict")
+PAIR_HEADERS = ("blend HLB", "same tail", "share A", "share B", "emulsifier A", "emulsifier B")
+WEIGHTING_HEADERS = ("verdict", "law", "mg/kg in drink", "limit mg/kg", "oil g/cm³", "share of oil phase",
+                     "weighting agent(s)")
+#: Droplet diameters of the creaming picture [um] (the form's own size is added).
+PICTURE_SIZES = (0.1, 0.2, 0.3, 0.5, 0.7, 1.0, 1.5, 2.0, 3.0)
 #: Pairs shown in the table (the text above it counts all that hit the required HLB).
 PAIRS_SHOWN = 12
 
@@ -36,11 +38,13 @@ class EmulsionScreen(BenchScreen):
     """Design a beverage emulsion concentrate for the drink."""
 
     MODE = "emulsion"
+    FORM = "emulsion-form"
     BINDINGS = [Binding("ctrl+r", "compute", "Compute", priority=True)]
     #: Labels of the fields by the field of the emulsion request they fill.
     FIELD_LABELS = {"oil": "oil phase", "oil_density": "oil phase", "brix": "sugar, degrees Brix",
                     "dilution": "dilution", "oil_phase": "oil phase in the concentrate",
-                    "droplet_um": "droplet diameter", "jurisdictions": "jurisdictions", "purpose": "the product is for"}
+                    "droplet_um": "droplet diameter", "jurisdictions": "jurisdictions", "purpose": "the product is for",
+                    "emulsifier": "emulsifier of the concentrate", "emulsifier_ratio": "emulsifier level"}
     #: The same for the HLB request (its oil phase is the oils whose required HLB counts).
     HLB_FIELD_LABELS = {"oil": "oils for the required HLB", "emulsifiers": "emulsifiers to pair",
                         "rhlb": "your own required HLB"}
@@ -73,6 +77,10 @@ class EmulsionScreen(BenchScreen):
                 yield Input(value="10%", id="em-oil-pct", compact=True)
                 yield Label("Droplet diameter, um")
                 yield Input(id="em-droplet", compact=True)
+                yield Label("Emulsifier of the concentrate (gum arabic, OSA starch ...)")
+                yield Input(placeholder="e.g. gum arabic (empty: none)", id="em-emulsifier", compact=True)
+                yield Label("Emulsifier level, g per g of oil phase")
+                yield Input(placeholder="empty: its usual level", id="em-emulsifier-level", compact=True)
                 yield Label("Jurisdictions (EU, US)")
                 yield Input(id="em-jurisdiction", compact=True)
                 yield Label("The product is for (agents are legal only for it)")
@@ -85,6 +93,7 @@ class EmulsionScreen(BenchScreen):
                 yield Static("", id="em-design", classes="result-block")
                 yield DataTable(id="em-weighting", cursor_type="row", zebra_stripes=True)
                 yield Static("", id="em-ripening", classes="result-block")
+                yield Static("", id="em-picture", classes="result-block")
                 yield CautionBox(id="em-cautions", classes="cautions")
         yield from self.compose_frame_bottom()
 
@@ -143,6 +152,9 @@ class EmulsionScreen(BenchScreen):
                   "droplet_um": number("droplet", "droplet_um", "um"),
                   "jurisdictions": parse_names(self._text("jurisdiction"), "jurisdictions"),
                   "purpose": purpose_value(self.query_one("#em-purpose", Select))}
+        if self._text("emulsifier"):
+            fields["emulsifier"] = self._text("emulsifier")
+            fields["emulsifier_ratio"] = number("emulsifier-level", "emulsifier_ratio", "g per g of oil phase")
         if self._text("oil-pct"):  # else the request's default
             fields["oil_phase"] = parse_fraction(self._text("oil-pct"), "oil_phase")
         return EmulsionRequest(**fields)
@@ -154,14 +166,19 @@ class EmulsionScreen(BenchScreen):
         from .dialogs import show_error
 
         errors = []
-        for part, labels in ((self.compute_hlb, self.HLB_FIELD_LABELS), (self.compute_design, self.FIELD_LABELS)):
+        for part, labels in ((self.compute_design, self.FIELD_LABELS), (self.compute_hlb, self.HLB_FIELD_LABELS)):
             try:
                 part()
             except SolvselError as exc:
                 errors.append((exc, labels))
         self.show_cautions()
-        if errors and interactive:
+        self.show_summary()
+        if not errors or not interactive:
+            return
+        if self.design is None:  # the drink's answer failed: the dialog
             show_error(self.app, *errors[0])
+        else:  # only the HLB part failed: its block says why, the rest of the answer stays in view
+            self.notify(f"Emulsifiers (HLB): {errors[0][0].title}; see the HLB block", severity="warning", timeout=4)
 
     @staticmethod
     def _error_text(title: str, exc, labels: dict) -> Text:
@@ -192,8 +209,8 @@ class EmulsionScreen(BenchScreen):
                  else "no pair of the chosen emulsifiers hits it")
         box.update(t)
         fill_table(grid, PAIR_HEADERS, [
-            (p.names[0], f"{p.fractions[0]:.2f}", p.names[1], f"{p.fractions[1]:.2f}", f"{p.hlb:.1f}",
-             "yes" if p.same_tail else "no") for p in r.pairs])
+            (f"{p.hlb:.1f}", "yes" if p.same_tail else "no", f"{p.fractions[0]:.2f}", f"{p.fractions[1]:.2f}",
+             p.names[0], p.names[1]) for p in r.pairs])
 
     def compute_design(self) -> None:
         """The ``emulsion`` job on the oil phase and drink fields."""
@@ -212,13 +229,47 @@ class EmulsionScreen(BenchScreen):
             raise
         self.design = r
         box.update(self._design_text(r))
+        self.query_one("#em-picture", Static).update(self._picture(r))
         fill_table(wgrid, WEIGHTING_HEADERS, [
-            (j, " + ".join(o.agents) or "none needed", " + ".join(f"{x:.1%}" for x in o.fractions),
+            (("matched" if o.matched else "partial") + ("" if o.legal else ", OVER"), j,
              " + ".join(f"{x:.4g}" for x in o.levels_ppm),
              " / ".join("-" if x is None else f"{x:.4g}" for x in o.limits_ppm), f"{o.density:.4f}",
-             ("matched" if o.matched else "partial") + ("" if o.legal else ", OVER"))
-            for j, opts in r.weighting.items() for o in opts])
+             " + ".join(f"{x:.1%}" for x in o.fractions), " + ".join(o.agents) or "none needed")
+            for j, opts in r.weighting.items() for o in opts], cut=-1)
         self.query_one("#em-ripening", Static).update(self._ripening_text(r))
+
+    def form_summary(self) -> str:
+        parts = [f"oil {self._text('oil') or '-'}", f"Brix {self._text('brix') or '-'}",
+                 f"1 in {self._text('dilution') or '-'}", f"oil phase {self._text('oil-pct') or '-'}",
+                 f"droplets {self._text('droplet') or '-'} um", f"law {self._text('jurisdiction') or '-'}"]
+        if self._text("emulsifier"):
+            parts.append(f"emulsifier {self._text('emulsifier')} {self._text('emulsifier-level') or 'usual level'}")
+        return "Drink: " + " · ".join(parts)
+
+    def _picture(self, r) -> Text:
+        """Time to cream against droplet diameter: the ``emulsion`` job asked once a diameter, drawn on
+        a log scale with the shelf life marked."""
+        import dataclasses
+
+        from ..errors import SolvselError
+        from ..jobs.emulsion import emulsion
+        from .widgets import log_bars
+
+        if r.time_to_cream_days is None:
+            return Text()
+        req = self.emulsion_request()
+        rows = []
+        for d in sorted(set(PICTURE_SIZES) | {r.droplet_diameter_um}):
+            try:
+                days = emulsion(dataclasses.replace(req, droplet_um=d), catalog=self.session.catalog).time_to_cream_days
+            except SolvselError:
+                continue
+            if days is not None:
+                rows.append((f"{d:g} um" + (" (yours)" if d == r.droplet_diameter_um else ""), abs(days)))
+        t = Text(f"\nDays to cream {r.height_mm:g} mm against droplet diameter (log scale; │ the shelf life, "
+                 f"{r.shelf_days:g} days)\n", style="bold")
+        t.append_text(log_bars(rows, r.shelf_days, "days"))
+        return t
 
     @staticmethod
     def _design_text(r) -> Text:
@@ -234,6 +285,14 @@ class EmulsionScreen(BenchScreen):
             t.append(f"  {a.agent} ({a.jurisdiction}): {a.level_ppm:.4g} mg/kg, legal maximum {a.limit_text}: ",
                      style="")
             t.append("within\n" if a.ok else "OVER THE LIMIT\n", style="bold" if not a.ok else "")
+        if r.emulsifier is not None:
+            u = r.emulsifier
+            level = "" if u.level_ppm is None else f", {u.level_ppm:.4g} mg/kg in the drink"
+            t.append(f"emulsifier {u.name}: {u.ratio_to_oil:g} g per g of oil phase ({u.ratio_basis}), "
+                     f"{u.in_concentrate:.1%} of the concentrate{level}\n")
+            for a in r.emulsifier_checks:
+                t.append(f"  {a.jurisdiction}: {a.limit_text}: ", style="")
+                t.append(("within" if a.ok else "OVER THE LIMIT") + f" ({a.rule})\n", style="" if a.ok else "bold")
         if r.creaming_mm_per_day is not None:
             word = "cream" if r.creaming_mm_per_day >= 0 else "settle"
             t.append(f"droplets of {r.droplet_diameter_um:g} um {word} at {abs(r.creaming_mm_per_day):.3g} mm/day: "
@@ -248,8 +307,7 @@ class EmulsionScreen(BenchScreen):
         for j, msgs in r.weighting_excluded.items():
             for m in msgs:
                 rp.append(f"left out ({j}): {m}\n", style="dim")
-        rp.append(f"\nOstwald ripening: {'WARNING' if r.ripening.warn else 'no warning'}. ", style="bold")
-        rp.append(r.ripening.reason + "\n")
+        rp.append_text(_ripening_words(r.ripening))
         if r.ripening.remedy:
             rp.append(f"remedy: {r.ripening.remedy}\n", style="italic")
         for ref in r.refusals:
@@ -263,3 +321,19 @@ class EmulsionScreen(BenchScreen):
         cautions = list(self.design.cautions) if self.design is not None else []
         cautions += list(self.hlb_result.cautions) if self.hlb_result is not None else list(HLB_CAUTIONS)
         self.query_one("#em-cautions", CautionBox).show(cautions)
+
+
+def _ripening_words(rp) -> Text:
+    """The ripening check in words that do not contradict themselves: a risk, held back, or not expected."""
+    t = Text()
+    if rp.warn:
+        t.append("\nOstwald ripening: a risk. ", style="bold")
+        t.append(rp.reason + "\n")
+    elif rp.prone_fraction > 0:
+        t.append("\nOstwald ripening: held back ", style="bold")
+        t.append(f"by the insoluble part of the oil phase ({rp.inhibitor_fraction:.0%} of it). Without it: "
+                 f"{rp.reason}\n")
+    else:
+        t.append("\nOstwald ripening: not expected. ", style="bold")
+        t.append(rp.reason + "\n")
+    return t

@@ -48,9 +48,15 @@ class MapScreen(BenchScreen):
                 yield CautionBox(id="map-cautions", classes="cautions")
         yield from self.compose_frame_bottom()
 
+    def on_mount(self) -> None:
+        self.query_one("#hsp-map", BrailleMap).focus()
+
     def on_screen_resume(self) -> None:
-        super().on_screen_resume()
         self.redraw()  # the ranking or the blends may have changed on the carriers screen
+
+    def on_braille_map_cursor_moved(self, message: BrailleMap.CursorMoved) -> None:
+        self.query_one("#hsp-map", BrailleMap).border_subtitle = (
+            f"under the cursor: {message.names}" if message.names else "arrow keys: a cursor that names the liquids")
 
     def action_toggle_view(self) -> None:
         self.view = "2dD-dH" if self.view == "dP-dH" else "dP-dH"
@@ -92,7 +98,7 @@ class MapScreen(BenchScreen):
             legend.append("\nBest blends\n", style="bold")
             for letter, b in zip(_LETTERS, s.blends.results):
                 p = scaled(np.array([b.dD, b.dP, b.dH], dtype=float))
-                pts.append(MapPoint(float(p[xi]), float(p[yi]), "top", letter, b.label))
+                pts.append(MapPoint(float(p[xi]), float(p[yi]), "blend", letter, b.label))
                 legend.append(f" {letter} ", style="bold #f0c05a")
                 legend.append(f"{b.label}  Ra {b.ra:.2f}\n")
         circle = None
@@ -109,6 +115,8 @@ class MapScreen(BenchScreen):
             else:
                 legend.append(" R0 unknown: no sphere drawn\n", style="dim")
         legend.append(f"\n ⠿ other liquids of the table ({len(recs)} in all)\n", style="#8a9bb0")
+        legend.append("\nThe arrow keys move a cursor over the map; the line under it names the liquids there.\n",
+                      style="dim")
         legend.append("\nA liquid drawn inside the circle can still be outside the sphere: "
                       "the third parameter is not shown. Ra in the list is the true distance.\n", style="dim")
         window = None

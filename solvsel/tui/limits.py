@@ -214,7 +214,7 @@ class LimitsScreen(BenchScreen):
                                c.confidence, c.rule))
         headers = list(CHECK_HEADERS)
         headers[3] = "max dose " + ("%" if frac else r.max_dose_unit)
-        fill_table(self.query_one("#lim-checks", DataTable), headers, check_rows, cut=-1)
+        fill_table(self.query_one("#lim-checks", DataTable), headers, check_rows, cut=4)
         rows = [r.stage_table(i) for i in range(len(r.stages))]
         subs = list(dict.fromkeys(row["substance"] for tab in rows for row in tab))
         stage_rows = []

@@ -17,8 +17,8 @@ from textual.widgets import Button, DataTable, Input, Label, Static
 from .base import BenchScreen
 from .widgets import CautionBox, Tick, fill_table
 
-PAIR_HEADERS = ("liquid a", "liquid b", "one phase", "basis", "chi / chi crit")
-BRIDGE_HEADERS = ("#", "mixes with both", "with a", "with b", "max chi/chi crit")
+PAIR_HEADERS = ("one phase", "basis", "chi / chi crit", "liquid a", "liquid b")
+BRIDGE_HEADERS = ("#", "max chi / chi crit", "with a", "with b", "mixes with both")
 
 
 def _ratio(chi, chi_c) -> str:
@@ -31,6 +31,7 @@ class MixingScreen(BenchScreen):
     """One phase or two: liquids pair by pair, a blend at its fractions, bridging liquids."""
 
     MODE = "mixing"
+    FORM = "mixing-form"
     BINDINGS = [Binding("ctrl+r", "compute", "Check", priority=True)]
     FIELD_LABELS = {"liquids": "liquids", "temp_C": "temperature", "fractions": "volume fractions",
                     "bridge": "bridging liquids", "food": "food carriers only"}
@@ -67,6 +68,15 @@ class MixingScreen(BenchScreen):
         fill_table(self.query_one("#mix-pairs", DataTable), PAIR_HEADERS, [])
         self.query_one("#mix-bridges", DataTable).display = False
 
+    def form_summary(self) -> str:
+        q = self.query_one
+        parts = [q("#mix-liquids", Input).value.strip() or "-", f"{q('#mix-temp', Input).value.strip() or '25'} C"]
+        if q("#mix-fractions", Input).value.strip():
+            parts.append(f"fractions {q('#mix-fractions', Input).value.strip()}")
+        if q("#mix-bridge", Tick).value:
+            parts.append("with bridging liquids" + (" (food carriers)" if q("#mix-food", Tick).value else ""))
+        return "Liquids: " + " · ".join(parts)
+
     def on_button_pressed(self, event: Button.Pressed) -> None:
         if event.button.id == "mix-compute":
             self.compute()
@@ -100,6 +110,7 @@ class MixingScreen(BenchScreen):
         if result is not None:
             self.result = result
             self.show(result)
+            self.show_summary()
 
     def show(self, r) -> None:
         verdict = {"yes": "one phase in all proportions", "partial": "one phase only in part of the range",
@@ -110,7 +121,7 @@ class MixingScreen(BenchScreen):
         if r.note:
             t.append(r.note)
         self.query_one("#mix-summary", Static).update(t)
-        rows = [(p.liquids[0], p.liquids[1], p.one_phase, p.basis, _ratio(p.chi, p.chi_critical)) for p in r.pairs]
+        rows = [(p.one_phase, p.basis, _ratio(p.chi, p.chi_critical), p.liquids[0], p.liquids[1]) for p in r.pairs]
         fill_table(self.query_one("#mix-pairs", DataTable), PAIR_HEADERS, rows)
         blend = ""
         if r.blend is not None:
@@ -120,6 +131,6 @@ class MixingScreen(BenchScreen):
         grid = self.query_one("#mix-bridges", DataTable)
         grid.display = r.bridges is not None
         if r.bridges is not None:
-            fill_table(grid, BRIDGE_HEADERS, [(str(i), b.name, b.basis_a, b.basis_b, f"{b.closeness:.2f}")
-                                              for i, b in enumerate(r.bridges[:15], 1)])
+            fill_table(grid, BRIDGE_HEADERS, [(str(i), f"{b.closeness:.2f}", b.basis_a, b.basis_b, b.name)
+                                              for i, b in enumerate(r.bridges[:15], 1)], cut=-1)
         self.query_one("#mix-cautions", CautionBox).show(r.cautions)

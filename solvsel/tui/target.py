@@ -19,7 +19,7 @@ from textual.widgets import Button, Input, Label, OptionList, Static, TabbedCont
 from textual.widgets.option_list import Option
 
 from .base import BenchScreen
-from .widgets import CautionBox
+from .widgets import CautionBox, shorten
 
 #: Labels of the error keys of an estimate (Ra is the trade's name of the distance).
 _LABEL = {"dD": "dD", "dP": "dP", "dH": "dH", "ra": "Ra"}
@@ -90,8 +90,8 @@ class TargetScreen(BenchScreen):
                 continue
             r0 = f" R0 {s.r0:.1f}" if s.r0 else ""
             mine = "  (yours)" if s.is_user else ""
-            ol.add_option(Option(f"{s.name:<30} {s.category:<8} {s.dD:5.1f} {s.dP:5.1f} {s.dH:5.1f}{r0}  {s.hsp_basis}{mine}",
-                                 id=s.cas or s.name))
+            line = f"{shorten(s.name, 30):<30} {s.category:<8} {s.dD:5.1f} {s.dP:5.1f} {s.dH:5.1f}{r0}  {s.hsp_basis}{mine}"
+            ol.add_option(Option(Text(line, no_wrap=True, overflow="ellipsis"), id=s.cas or s.name))
         t = self.session.target
         if t is not None and t.solute is not None:
             for i in range(ol.option_count):

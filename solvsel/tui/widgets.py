@@ -120,7 +120,7 @@ class CautionBox(Static):
         self.cautions = tuple(seen)
 
 
-# ----------------------------------------------------------------- braille map
+# ----------------------------------------------------------------- scatter map
 
 _DOT = ((0x01, 0x08), (0x02, 0x10), (0x04, 0x20), (0x40, 0x80))  # [row][col] inside a cell
 
@@ -129,7 +129,7 @@ _DOT = ((0x01, 0x08), (0x02, 0x10), (0x04, 0x20), (0x40, 0x80))  # [row][col] in
 class MapPoint:
     x: float
     y: float
-    kind: str = "liquid"  # "liquid", "top", "target"
+    kind: str = "liquid"  # "liquid", "top" (named on the map), "blend" (its mark only), "target"
     mark: str = ""  # a character drawn instead of a dot (e.g. the rank)
     label: str = ""
 
@@ -147,17 +147,114 @@ class MapData:
     extra: dict = field(default_factory=dict)
 
 
-class BrailleMap(Widget):
-    """A scatter map drawn with braille dots, equal units on both axes.
+@dataclass(frozen=True)
+class Axes:
+    """The one transform from data to the screen, used for the points, the circle, the ticks and their
+    labels alike: ``x0`` at the left edge of cell 0, ``y1`` at the top edge of row 0, ``scale`` braille
+    dots a unit on both axes (a dot is about square, so circles stay round)."""
 
-    Liquids are dots, highlighted liquids their mark (their rank), the target a
-    cross, the sphere's section a dotted circle.
-    """
+    x0: float
+    y1: float
+    scale: float
+    cols: int
+    rows: int
+
+    def dot(self, x: float, y: float) -> tuple[int, int]:
+        """(dot column, dot row) of a data point (2 dots a cell across, 4 down)."""
+        return math.floor((x - self.x0) * self.scale), math.floor((self.y1 - y) * self.scale)
+
+    def cell(self, x: float, y: float) -> tuple[int, int]:
+        """(row, column) of the cell a data point falls in."""
+        px, py = self.dot(x, y)
+        return py // 4, px // 2
+
+    def inside(self, row: int, col: int) -> bool:
+        return 0 <= row < self.rows and 0 <= col < self.cols
+
+    @property
+    def x1(self) -> float:
+        return self.x0 + 2 * self.cols / self.scale
+
+    @property
+    def y0(self) -> float:
+        return self.y1 - 4 * self.rows / self.scale
+
+
+def make_axes(bounds: tuple[float, float, float, float], cols: int, rows: int) -> Axes:
+    """Axes showing ``bounds`` (x0, x1, y0, y1) in ``cols`` x ``rows`` cells, equal units, centred."""
+    x0, x1, y0, y1 = bounds
+    w, h = max(x1 - x0, 1e-9), max(y1 - y0, 1e-9)
+    scale = min(2 * cols / w, 4 * rows / h)
+    x0 -= (2 * cols / scale - w) / 2
+    y1 += (4 * rows / scale - h) / 2
+    return Axes(x0, y1, scale, cols, rows)
+
+
+def axis_ticks(lo: float, hi: float, cells: int) -> list[float]:
+    """Round values between ``lo`` and ``hi``, about one every 8 cells."""
+    step = _nice_step((hi - lo) / max(2, cells // 8))
+    v = math.ceil(lo / step) * step
+    out = []
+    while v <= hi + 1e-9:
+        out.append(round(v, 10))
+        v += step
+    return out
+
+
+class _Canvas:
+    """Cells of characters and styles; labels keep a free cell on each side so they never run together."""
+
+    def __init__(self, cols: int, rows: int) -> None:
+        self.cols, self.rows = cols, rows
+        self.bits = [[0] * cols for _ in range(rows)]
+        self.kind = [[""] * cols for _ in range(rows)]
+        self.text: dict[tuple[int, int], tuple[str, str]] = {}
+
+    def dot(self, px: int, py: int, kind: str) -> None:
+        r, c = py // 4, px // 2
+        if 0 <= r < self.rows and 0 <= c < self.cols and px >= 0 and py >= 0:
+            self.bits[r][c] |= _DOT[py % 4][px % 2]
+            if self.kind[r][c] in ("", "liquid"):
+                self.kind[r][c] = kind
+
+    def free(self, r: int, c0: int, n: int) -> bool:
+        return 0 <= r < self.rows and c0 >= 0 and c0 + n <= self.cols and all(
+            (r, c) not in self.text for c in range(c0 - 1, c0 + n + 1))
+
+    def put(self, r: int, c: int, text: str, style: str) -> None:
+        for i, ch in enumerate(text):
+            self.text[(r, c + i)] = (ch, style)
+
+    def label(self, r: int, c: int, text: str, style: str) -> bool:
+        """Write ``text`` right of cell (r, c), else left of it; False when neither has room."""
+        for start in (c + 2, c - len(text) - 1):
+            if self.free(r, start, len(text)):
+                self.put(r, start, text, style)
+                return True
+        return False
+
+
+class BrailleMap(Widget, can_focus=True):
+    """A scatter map: liquids as braille dots, the best ones by their rank and name, the target a
+    cross, the sphere's section a dotted circle.  The arrow keys (or the mouse) move a cursor that
+    names the liquids under it."""
+
+    BINDINGS = [("left", "move(0, -1)", "Cursor left"), ("right", "move(0, 1)", "Cursor right"),
+                ("up", "move(-1, 0)", "Cursor up"), ("down", "move(1, 0)", "Cursor down")]
 
     data: reactive[MapData | None] = reactive(None, layout=False)
+    cursor: reactive[tuple[int, int] | None] = reactive(None, layout=False)
 
-    STYLES = {"liquid": "#8a9bb0", "top": "bold #f0c05a", "target": "bold #ff6f61", "circle": "#5fb3a8",
-              "axis": "#6b7280"}
+    class CursorMoved(Message):
+        """The cursor moved: ``names`` are the liquids in its cell (empty: none)."""
+
+        def __init__(self, names: str) -> None:
+            super().__init__()
+            self.names = names
+
+    STYLES = {"liquid": "#8a9bb0", "top": "bold #f0c05a", "blend": "bold #d9a441", "target": "bold #ff6f61", "circle": "#5fb3a8",
+              "axis": "#6b7280", "name": "#f0c05a", "cursor": "reverse"}
+    LEFT, BOTTOM = 6, 2  # cells of the y labels and of the x axis with its labels
 
     def _bounds(self, d: MapData):
         if d.window is not None:
@@ -170,118 +267,99 @@ class BrailleMap(Widget):
             ys += [cy - r, cy + r]
         if not xs:
             return 0.0, 1.0, 0.0, 1.0
-        x0, x1 = min(xs), max(xs)
-        y0, y1 = min(ys), max(ys)
-        pad_x = 0.04 * (x1 - x0 or 1.0)
-        pad_y = 0.04 * (y1 - y0 or 1.0)
-        return x0 - pad_x, x1 + pad_x, y0 - pad_y, y1 + pad_y
+        pad_x = 0.04 * (max(xs) - min(xs) or 1.0)
+        pad_y = 0.04 * (max(ys) - min(ys) or 1.0)
+        return min(xs) - pad_x, max(xs) + pad_x, min(ys) - pad_y, max(ys) + pad_y
 
-    def _frame(self, d: MapData, pw: int, ph: int) -> tuple[float, float, float, float, float]:
-        """(x0, x1, y0, y1, scale): the window drawn, with equal units on both axes (a braille
-        dot is about square, so circles stay round), the data centred in the spare room."""
-        x0, x1, y0, y1 = self._bounds(d)
-        scale = min(pw / (x1 - x0), ph / (y1 - y0))
-        x0 -= (pw / scale - (x1 - x0)) / 2
-        y0 -= (ph / scale - (y1 - y0)) / 2
-        return x0, x0 + pw / scale, y0, y0 + ph / scale, scale
+    def axes(self) -> Axes | None:
+        """The transform of the map as it is drawn now (None when there is nothing to draw)."""
+        width, height = self.size.width, self.size.height
+        if self.data is None or width < 20 or height < 6:
+            return None
+        return make_axes(self._bounds(self.data), width - self.LEFT - 1, height - self.BOTTOM)
 
-    def _plot(self, d: MapData, cw: int, ch: int, frame) -> tuple[list, list, dict]:
-        """Braille bits, the kind of each cell and the marks (characters drawn in a cell)."""
-        x0, _, _, y1, scale = frame
-        pw, ph = cw * 2, ch * 4
-        bits = [[0] * cw for _ in range(ch)]
-        kinds = [[""] * cw for _ in range(ch)]
-        marks: dict[tuple[int, int], tuple[str, str]] = {}
-
-        def pix(x, y):
-            return int((x - x0) * scale), int((y1 - y) * scale)
-
-        def dot(px, py, kind):
-            if 0 <= px < pw and 0 <= py < ph:
-                r, c = py // 4, px // 2
-                bits[r][c] |= _DOT[py % 4][px % 2]
-                kinds[r][c] = kind if kinds[r][c] == "liquid" else (kinds[r][c] or kind)
-
+    def _draw(self, d: MapData, ax: Axes) -> _Canvas:
+        cv = _Canvas(ax.cols, ax.rows)
+        self._cell_labels = {}
         if d.circle:
             cx, cy, r = d.circle
-            n = max(90, int(2 * math.pi * r * scale))
+            n = max(90, int(2 * math.pi * r * ax.scale))
             for i in range(n):
                 a = 2 * math.pi * i / n
-                dot(*pix(cx + r * math.cos(a), cy + r * math.sin(a)), "circle")
+                cv.dot(*ax.dot(cx + r * math.cos(a), cy + r * math.sin(a)), "circle")
         for p in d.points:
-            px, py = pix(p.x, p.y)
-            inside = 0 <= px < pw and 0 <= py < ph
-            if inside and p.label:
-                key = (py // 4, px // 2)
-                old = self._cell_labels.get(key)
-                self._cell_labels[key] = p.label if not old or p.label in old else f"{old}, {p.label}"
+            r, c = ax.cell(p.x, p.y)
+            if ax.inside(r, c) and p.label:
+                old = self._cell_labels.get((r, c))
+                self._cell_labels[(r, c)] = p.label if not old or p.label in old.split(", ") else f"{old}, {p.label}"
             if p.kind == "liquid":
-                for ddx, ddy in ((0, 0), (1, 0), (0, 1), (1, 1)):
-                    dot(px + ddx, py + ddy, "liquid")
-            elif inside:
-                r, c = py // 4, px // 2
-                for dc in (0, 1, -1, 2, -2):  # two marks on one cell: the later one moves aside
-                    if (r, c + dc) not in marks and 0 <= c + dc < cw:
-                        marks[(r, c + dc)] = (p.mark or ("+" if p.kind == "target" else "*"), p.kind)
-                        break
-        return bits, kinds, marks
-
-    def _x_axis(self, out: Text, left: int, cw: int, frame) -> None:
-        x0, x1, _, _, scale = frame
-        axis = [" "] * cw
-        labels = [" "] * (cw + 8)
-        xstep = _nice_step((x1 - x0) / max(2, cw // 10))
-        v = math.ceil(x0 / xstep) * xstep
-        while v <= x1:
-            col = int((v - x0) * scale) // 2
-            if 0 <= col < cw:
-                axis[col] = "┬"
-                for i, chr_ in enumerate(f"{v:g}"):
-                    if col + i < len(labels):
-                        labels[col + i] = chr_
-            v += xstep
-        out.append(" " * (left - 1) + "└" + "".join(axis).replace(" ", "─") + "\n", style=self.STYLES["axis"])
-        out.append(" " * left + "".join(labels)[:cw], style=self.STYLES["axis"])
+                cv.dot(*ax.dot(p.x, p.y), "liquid")
+        marked = [p for p in d.points if p.kind != "liquid"]
+        marked.sort(key=lambda p: p.kind != "target")  # the target first: nothing covers it
+        for p in marked:
+            r, c = ax.cell(p.x, p.y)
+            if ax.inside(r, c) and (r, c) not in cv.text:
+                cv.put(r, c, p.mark or ("+" if p.kind == "target" else "*"), self.STYLES[p.kind])
+        for p in marked:  # then the names, where they fit without touching another
+            r, c = ax.cell(p.x, p.y)
+            if ax.inside(r, c) and p.label and p.kind != "blend":
+                cv.label(r, c, shorten(p.label, 24), self.STYLES["target" if p.kind == "target" else "name"])
+        return cv
 
     def render(self) -> Text:
-        d = self.data
-        width, height = self.size.width, self.size.height
-        if d is None or width < 20 or height < 6:
+        d, ax = self.data, self.axes()
+        if d is None or ax is None:
             return Text("(no map)")
-        left, bottom = 6, 2
-        cw, ch = width - left - 1, height - bottom
-        frame = self._frame(d, cw * 2, ch * 4)
-        _, _, y0, y1, scale = frame
-        self._cell_labels: dict[tuple[int, int], str] = {}
-        self._left = left
-        bits, kinds, marks = self._plot(d, cw, ch, frame)
-        # y ticks every 'step' units
-        step = _nice_step((y1 - y0) / max(2, ch // 4))
-        y_ticks = {}
-        v = math.ceil(y0 / step) * step
-        while v <= y1:
-            row = int((y1 - v) * scale) // 4
-            if 0 <= row < ch:
-                y_ticks[row] = f"{v:g}"
-            v += step
+        cv = self._draw(d, ax)
+        self._left = self.LEFT
+        y_ticks = {ax.cell(ax.x0, v)[0]: f"{v:g}" for v in axis_ticks(ax.y0, ax.y1, ax.rows * 2)}
         out = Text(no_wrap=True)
-        for r in range(ch):
-            out.append(f"{y_ticks.get(r, ''):>{left - 1}}", style=self.STYLES["axis"])
-            out.append("┤" if r in y_ticks else "│", style=self.STYLES["axis"])
-            for c in range(cw):
-                if (r, c) in marks:
-                    m, kind = marks[(r, c)]
-                    out.append(m, style=self.STYLES[kind])
-                elif bits[r][c]:
-                    out.append(chr(0x2800 + bits[r][c]), style=self.STYLES[kinds[r][c] or "liquid"])
-                else:
-                    out.append(" ")
+        for r in range(ax.rows):
+            out.append(f"{y_ticks.get(r, ''):>{self.LEFT - 1}}" + ("┤" if r in y_ticks else "│"), style=self.STYLES["axis"])
+            for c in range(ax.cols):
+                ch, style = cv.text.get((r, c), ("", ""))
+                if not ch:
+                    bits = cv.bits[r][c]
+                    ch, style = (chr(0x2800 + bits), self.STYLES[cv.kind[r][c] or "liquid"]) if bits else (" ", "")
+                if self.cursor == (r, c):
+                    style = (style + " " if style else "") + self.STYLES["cursor"]
+                out.append(ch, style=style)
             out.append("\n")
-        self._x_axis(out, left, cw, frame)
+        self._x_axis(out, ax)
         return out
+
+    def _x_axis(self, out: Text, ax: Axes) -> None:
+        """The x axis: a tick where each round value falls (the same transform as the points), its
+        label centred under it unless that would touch the label before."""
+        line, labels = ["─"] * ax.cols, [" "] * (ax.cols + 8)
+        end = -2
+        for v in axis_ticks(ax.x0, ax.x1, ax.cols):
+            col = ax.cell(v, ax.y1)[1]
+            if not 0 <= col < ax.cols:
+                continue
+            line[col] = "┬"
+            text = f"{v:g}"
+            start = max(0, col - (len(text) - 1) // 2)
+            if start > end + 1:
+                labels[start:start + len(text)] = list(text)
+                end = start + len(text)
+        out.append(" " * (self.LEFT - 1) + "└" + "".join(line) + "\n", style=self.STYLES["axis"])
+        out.append(" " * self.LEFT + "".join(labels)[:ax.cols + 2].rstrip(), style=self.STYLES["axis"])
 
     def watch_data(self, value) -> None:
         self.refresh()
+
+    def watch_cursor(self, value) -> None:
+        labels = getattr(self, "_cell_labels", {})
+        self.post_message(self.CursorMoved(labels.get(value, "") if value else ""))
+        self.refresh()
+
+    def action_move(self, dr: int, dc: int) -> None:
+        ax = self.axes()
+        if ax is None:
+            return
+        r, c = self.cursor or (ax.rows // 2, ax.cols // 2)
+        self.cursor = (max(0, min(ax.rows - 1, r + dr)), max(0, min(ax.cols - 1, c + dc)))
 
     def on_mouse_move(self, event) -> None:
         """Name the liquid under the pointer (or the nearest within a cell)."""
@@ -290,10 +368,11 @@ class BrailleMap(Widget):
         if at is None:
             self.tooltip = None
             return
-        r, c = at.y, at.x - getattr(self, "_left", 6)
+        r, c = at.y, at.x - getattr(self, "_left", self.LEFT)
         for dr, dc in ((0, 0), (0, 1), (0, -1), (1, 0), (-1, 0)):
             if (r + dr, c + dc) in labels:
                 self.tooltip = labels[(r + dr, c + dc)]
+                self.cursor = (r + dr, c + dc)
                 return
         self.tooltip = None
 
@@ -335,6 +414,33 @@ def red_strip(names, good, red, misplaced=(), width: int = 36, rows: int = 24) -
             axis[col + i] = ch
     t.append(" " * (name_w + 1) + "".join(axis).rstrip() + "  RED\n", style="dim")
     t.append(" " * (name_w + 1) + "● good  ○ bad\n", style="dim")
+    return t
+
+
+def log_bars(rows, mark: float, unit: str, width: int = 40) -> Text:
+    """Horizontal bars on a log scale, one a ``(label, value)`` row, with ``mark`` drawn as ``│`` on every
+    row (a bar that reaches it is green, one that falls short red), the value and ``unit`` after the bar.
+    Bars and mark are placed by :func:`scale_column` on log10 of the values."""
+    values = [v for _, v in rows if v > 0] + [mark]
+    lo = math.floor(math.log10(min(values)))
+    hi = math.ceil(math.log10(max(values)))
+    hi = hi if hi > lo else lo + 1
+    label_w = max((len(lab) for lab, _ in rows), default=4)
+    at_mark = scale_column(math.log10(mark), lo, hi, width)
+    t = Text()
+    for label, v in rows:
+        n = scale_column(math.log10(v), lo, hi, width) if v > 0 else 0
+        cells = ["█" if i <= n else " " for i in range(width)]
+        cells[at_mark] = "│" if cells[at_mark] == " " else "┃"
+        t.append(f"{label:>{label_w}} ", style="bold" if "(yours)" in label else "")
+        t.append("".join(cells), style="#6aa36f" if v >= mark else "#d9534f")
+        t.append(f" {v:.3g} {unit}\n", style="dim")
+    axis = [" "] * (width + 8)
+    for e in range(lo, hi + 1):
+        col = scale_column(float(e), lo, hi, width)
+        for i, ch in enumerate(f"{10.0 ** e:g}"):
+            axis[col + i] = ch
+    t.append(" " * (label_w + 1) + "".join(axis).rstrip() + f"  {unit}\n", style="dim")
     return t
 
 
