@@ -16,8 +16,9 @@ The target's uncertainty (one standard deviation per parameter, :func:`target_sp
 - a fitted sphere's interval (``Target.uncertainty`` of kind ``interval``: ``[lo, hi]`` per
   parameter at ``level``): standard deviation ``(hi - lo) / (2 z)``, ``z`` the normal quantile
   of ``(1 + level) / 2``;
-- a value recalled, not checked (a solute whose HSP source is of kind ``memory``): our stated
-  default, :data:`RECALLED_SD`;
+- a value recalled, not checked (a solute whose HSP source is of kind ``memory``), or a table
+  value estimated by a group method with no stated error (``hsp_basis`` "estimated"): our
+  stated default, :data:`RECALLED_SD`;
 - typed numbers and checked table values: no uncertainty, every answer "stable".
 
 Verdict (threshold :data:`STABLE_SHARE`, 0.8): an answer ranked in the top three is "stable"
@@ -128,6 +129,9 @@ def target_spread(target, cat=None) -> Spread | None:
     if _recalled(target, cat):
         return Spread(RECALLED_SD, "recalled value (not checked): our default, as uncertain as an estimate "
                                    "from structure")
+    if getattr(getattr(target, "solute", None), "hsp_basis", "") == "estimated":
+        return Spread(RECALLED_SD, "table value estimated by a group method, no error stated: our default, the "
+                                   "structure model's cross-validated error")
     return None
 
 
