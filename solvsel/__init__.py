@@ -57,6 +57,9 @@ _API = {
     "EmulsionResult": "solvsel.jobs.emulsion",
     "dose": "solvsel.jobs.dose", "DoseRequest": "solvsel.jobs.dose", "DoseResult": "solvsel.jobs.dose",
     "clarity": "solvsel.jobs.clarity", "ClarityRequest": "solvsel.jobs.clarity", "ClarityResult": "solvsel.jobs.clarity",
+    "load": "solvsel.jobs.load", "LoadRequest": "solvsel.jobs.load", "LoadResult": "solvsel.jobs.load",
+    "extraction": "solvsel.jobs.extraction", "ExtractionRequest": "solvsel.jobs.extraction",
+    "ExtractionResult": "solvsel.jobs.extraction",
     "screen": "solvsel.jobs.batch", "BatchRequest": "solvsel.jobs.batch",
     "SolvselError": "solvsel.errors", "InputError": "solvsel.errors",
     "Workspace": "solvsel.data.workspace", "open_workspace": "solvsel.data.workspace",
@@ -88,7 +91,9 @@ if TYPE_CHECKING:  # pragma: no cover - for type checkers and editors
     from .jobs.dose import DoseRequest, DoseResult, dose
     from .jobs.emulsion import EmulsionRequest, EmulsionResult, emulsion
     from .jobs.estimate import EstimateRequest, EstimateResult, estimate
+    from .jobs.extraction import ExtractionRequest, ExtractionResult, extraction
     from .jobs.fit import FitRequest, FitResult, fit
     from .jobs.hlb import HlbRequest, HlbResult, hlb
+    from .jobs.load import LoadRequest, LoadResult, load
     from .jobs.miscible import MiscibleRequest, MiscibleResult, miscible
     from .jobs.rank import RankRequest, RankResult, rank
