@@ -137,6 +137,8 @@ def test_a_fit_report_draws_the_liquids_inside_and_outside_the_sphere(tmp_path, 
     job = fit(path=bench).to_dict()
     assert (data["dD"], data["dP"], data["dH"], data["r0"]) == pytest.approx((job["dD"], job["dP"], job["dH"], job["r0"]))
     assert_valid_pngs(figure_files(out))
+    md = out.read_text(encoding="utf-8")
+    assert "`hsp_mr2022`" in md and "`hansen2007`" in md  # the liquids' table values and the method are cited
     fig = figures_of("fit", job)[0]
     assert fig.data["centre"] == [job["dD"], job["dP"], job["dH"]] and fig.data["r0"] == job["r0"]
     for drawn, row in zip(fig.data["liquids"], job["liquids"]):
@@ -162,6 +164,7 @@ def test_an_emulsion_report_draws_creaming_against_droplet_size(tmp_path, capsys
     assert f"{job['time_to_cream_days']:.3g}" in out.read_text(encoding="utf-8") or \
         f"{job['time_to_cream_days']:.0f}" in out.read_text(encoding="utf-8")
     assert_valid_pngs(figure_files(out))
+    assert "`stokes1851_memory` (memory)" in out.read_text(encoding="utf-8")
     fig = figures_of("emulsion", job)[0]
     d, days = fig.data["diameter_um"], fig.data["days"]
     # the curve passes through the job's own answer at the droplet size asked about
@@ -183,6 +186,20 @@ def _interp_log(x, xs, ys):
 
 
 # ----------------------------------------------------------------------------- extraction heat map
+
+
+def test_every_figure_source_is_in_the_sources_table():
+    from solvsel import load_catalog
+
+    cat = load_catalog()
+    kinds = {"hsp_map": figures_module.hsp_map({"name": "x", "dD": 17, "dP": 4, "dH": 9}, []),
+             "creaming": figures_module.creaming({"beverage_density": 1.04, "oil_phase_density": 0.9,
+                                                  "viscosity_mPa_s": 1.3, "height_mm": 100}),
+             "bench_fit": figures_module.bench_fit({"dD": 17, "dP": 4, "dH": 9, "r0": 5, "liquids": []})}
+    for kind, fig in kinds.items():
+        assert fig.sources, kind
+        for sid in fig.sources:
+            assert cat.source(sid)["citation"], sid
 
 
 def test_the_extraction_heat_map_from_plain_arrays(tmp_path):

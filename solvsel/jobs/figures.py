@@ -65,15 +65,19 @@ class FigureData:
     data : dict
         The numbers drawn (lists, numbers and text only), keys documented by the function that
         makes it.
+    sources : tuple of str
+        Source ids (``tables/sources.csv``) of the method the figure draws.
     """
 
     kind: str
     title: str
     caption: str
     data: dict = field(default_factory=dict)
+    sources: tuple = ()
 
     def to_dict(self) -> dict[str, Any]:
-        return {"kind": self.kind, "title": self.title, "caption": self.caption, "data": self.data}
+        return {"kind": self.kind, "title": self.title, "caption": self.caption, "data": self.data,
+                "sources": list(self.sources)}
 
 
 def _num(x) -> float | None:
@@ -109,7 +113,7 @@ def hsp_map(target: dict, points: Sequence[dict], title: str = "Hansen space map
     sphere = f"the outline is the sphere of radius R0 = {t['r0']:.1f}" if t["r0"] else "no R0 known, so no sphere"
     caption = (f"{t['name']} (star) and the {what}, in three planes of Hansen space [MPa^0.5]; {sphere} "
                f"(drawn with half the radius along dD, as Ra counts dD twice). The {LABELLED} nearest are named.")
-    return FigureData("hsp_map", title, caption, {"target": t, "points": pts})
+    return FigureData("hsp_map", title, caption, {"target": t, "points": pts}, ("hansen2007",))
 
 
 def bench_fit(fit: dict) -> FigureData:
@@ -132,7 +136,7 @@ def bench_fit(fit: dict) -> FigureData:
                f"R0 {data['r0']:.1f} MPa^0.5) with the {len(liquids)} liquids tested: filled dots dissolved "
                f"the sample, open ones did not; {n_wrong} on the wrong side (ringed). Right: RED = Ra/R0 of "
                "each liquid; 1 is the sphere's surface.")
-    return FigureData("bench_fit", "Bench fit", caption, data)
+    return FigureData("bench_fit", "Bench fit", caption, data, ("hansen2007",))
 
 
 def _is_good(row: dict) -> bool:
@@ -167,7 +171,7 @@ def creaming(emulsion: dict, n: int = 61) -> FigureData | None:
     caption = (f"Stokes' law: days for droplets to {data['direction']} through {height:g} mm of the drink "
                f"(density {rho_c:.4f} g/cm3, oil phase {rho_d:.4f} g/cm3, {eta:.3g} mPa s) against droplet "
                "diameter; the dashed line is the shelf life, the dot the droplet size asked about.")
-    return FigureData("creaming", "Creaming against droplet size", caption, data)
+    return FigureData("creaming", "Creaming against droplet size", caption, data, ("stokes1851_memory",))
 
 
 def _blend_name(b: dict) -> str:

@@ -251,7 +251,7 @@ def markdown_of(c: ReportContent) -> str:
 
 
 _STYLE = """body{font-family:system-ui,sans-serif;max-width:1200px;margin:1.5em auto;padding:0 1em;color:#222}
-pre{background:#f6f6f6;padding:.8em;overflow-x:auto;font-size:12px;line-height:1.35}
+pre{background:#f6f6f6;padding:.8em;white-space:pre-wrap;overflow-wrap:anywhere;font-size:12px;line-height:1.35}
 figure{margin:1.5em 0}figure img{max-width:100%;height:auto;border:1px solid #ddd}
 figcaption{font-size:.9em;color:#444;margin-top:.4em}code{background:#f1f1f1;padding:0 .2em}
 table{border-collapse:collapse}td{padding:.1em .8em .1em 0;vertical-align:top}
@@ -309,11 +309,41 @@ def draw_figures(job: str | None, data: Any, stem: str) -> tuple[tuple[Figure, .
     return drawn, ""
 
 
+def named_liquids(data: Any) -> list[str]:
+    """Names of the entries of a result that carry no source of their own (a bench fit's liquids, a
+    blend's components): their values are the tables', whose sources the report cites.
+
+    >>> named_liquids({"liquids": [{"name": "water", "red": 2.1}], "target": {"name": "x", "sources": ["s"]}})
+    ['water']
+    """
+    out: list[str] = []
+
+    def walk(x):
+        if isinstance(x, dict):
+            if isinstance(x.get("name"), str) and not any(k in x for k in _SOURCE_KEYS) and x["name"] not in out:
+                out.append(x["name"])
+            for v in x.values():
+                walk(v)
+        elif isinstance(x, list):
+            for v in x:
+                walk(v)
+
+    walk(data)
+    return out
+
+
 def citations_of(data: Any, catalog=None) -> tuple[dict, ...]:
-    """The full citation of every source id the result names (a user's free-text source as such)."""
+    """The full citation of every source id the result names, and of the table values of the liquids
+    it names without a source (a user's free-text source as such)."""
     out = []
     if catalog is not None:
-        for sid in collect_source_ids(data):
+        ids = collect_source_ids(data)
+        for name in named_liquids(data):
+            try:
+                ids += [s for s in catalog.solvent(name).sources if s not in ids]
+            except UnknownNameError:  # not a liquid of the tables (a blend's label, a rule)
+                continue
+        for sid in ids:
             try:
                 out.append(catalog.source(sid))
             except UnknownNameError:  # a user's own free-text source
@@ -350,7 +380,8 @@ def write_report(out: str | Path, title: str, command: str, text: str, data: Any
     if isinstance(data, dict) and "audit" not in data:
         data = {**data, "audit": audit_block(tables_dir=getattr(catalog, "tables_dir", None))}
     drawn, note = draw_figures(job, data, md.stem) if figures else ((), "")
-    content = ReportContent(title, command, text, data, citations_of(data, catalog), drawn, note)
+    cited = [data, *({"sources": list(f.data.sources)} for f in drawn)]  # the result's and the figures' methods
+    content = ReportContent(title, command, text, data, citations_of(cited, catalog), drawn, note)
     paths[0].write_text(markdown_of(content), encoding="utf-8")
     paths[1].write_text(json.dumps(data, indent=2, ensure_ascii=False) + "\n", encoding="utf-8")
     paths[2].write_text(_csv_text(data), encoding="utf-8")
