@@ -337,3 +337,16 @@ def test_record_run_keeps_the_newest_entries():
     for i in range(MAX_HISTORY + 3):
         ws = record_run(ws, "rank", [], {"i": i}, None, time="t")
     assert len(ws.history) == MAX_HISTORY and ws.history[-1]["request"] == {"i": MAX_HISTORY + 2}
+
+
+def test_a_report_in_a_workspace_gives_the_command_its_defaults(tmp_path, capsys):
+    path, out = tmp_path / "work.json", tmp_path / "r.md"
+    save_workspace(Workspace(target={"solute": "cannabidiol"}, constraints={"temp_C": 30.0}), path)
+    assert main(["report", "--workspace", str(path), str(out), "rank", "--top", "2"]) == 0
+    data = json.loads(out.with_suffix(".json").read_text(encoding="utf-8"))
+    assert data["target"]["name"] == "cannabidiol" and data["temp_C"] == 30.0
+    assert open_workspace(path).history[-1]["command"] == "report"
+    # given after the report's file name it would reach only the command reported on: refused, said why
+    before = path.read_bytes()
+    assert main(["report", str(tmp_path / "s.md"), "rank", "--workspace", str(path), "--top", "2"]) == 2
+    assert "--workspace: " in capsys.readouterr().err and path.read_bytes() == before

@@ -195,9 +195,13 @@ def _fail(exc: SolvselError, as_json: bool) -> int:
 
 
 def _show_notes(caught) -> None:
+    """Each note once (a command run twice, as a report or a workspace's record does, notes its input twice)."""
+    shown = set()
     for w in caught:
         if issubclass(w.category, SolvselNote):
-            print(f"solvsel: note: {w.message}", file=sys.stderr)
+            if str(w.message) not in shown:
+                print(f"solvsel: note: {w.message}", file=sys.stderr)
+            shown.add(str(w.message))
         else:
             warnings.showwarning(w.message, w.category, w.filename, w.lineno)
 
