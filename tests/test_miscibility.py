@@ -49,8 +49,8 @@ def test_table_names_and_cas_resolve(table, cat):
         b = cat.solvent(row["liquid_b"], library=False)
         assert a.name == row["liquid_a"] and b.name == row["liquid_b"]
         assert (a.cas or None) == (row["cas_a"] or None) and (b.cas or None) == (row["cas_b"] or None)
-        key = frozenset((a.name, b.name))
-        assert key not in seen, f"duplicate pair {sorted(key)}"
+        key = (frozenset((a.name, b.name)), float(row["temp_C"]))  # a pair may be measured at several temperatures
+        assert key not in seen, f"duplicate pair {sorted(key[0])} at {key[1]:g} C"
         seen.add(key)
         if row["one_phase"] != "partial":
             assert pd_isna(row["b_in_a_wt"]) and pd_isna(row["a_in_b_wt"])
@@ -345,3 +345,28 @@ def test_decisive_no_level_is_the_one_the_measured_table_chooses(cat):
         v = M.predict_pair(cat.solvent("water"), cat.solvent(other))
         assert v.one_phase == "no", other
         assert max(v.window["b_in_a_max"], v.window["a_in_b_max"]) * 100 < M.IMMISCIBLE_BELOW_WT
+
+
+def test_a_pair_measured_at_several_temperatures(tmp_path):
+    # the mechanism only, on a copy of the tables with a made-up pair of rows (like the made-up
+    # jurisdiction of test_jurisdictions): the nearest row applies, and between two partial rows
+    # with both solubilities each solubility is linear in temperature
+    import shutil
+
+    from solvsel.data.catalog import TABLES_DIR
+
+    folder = tmp_path / "tables"
+    shutil.copytree(TABLES_DIR, folder)
+    with open(folder / "miscibility.csv", "a", encoding="utf-8") as fh:
+        fh.write("propylene glycol,57-55-6,n-heptane,142-82-5,partial,1.0,3.0,20,common_practice,made up\n"
+                 "n-heptane,142-82-5,propylene glycol,57-55-6,partial,5.0,2.0,40,common_practice,made up\n")
+    c = load_catalog(tables_dir=folder)
+    at20 = M.pair(c, "propylene glycol", "n-heptane", temp_C=20.0)
+    assert at20.basis == "measured" and at20.window["b_in_a_max"] == pytest.approx(0.01)
+    mid = M.measured_pair(c, "propylene glycol", "n-heptane", 30.0)
+    assert mid["b_in_a_wt"] == pytest.approx(1.5) and mid["a_in_b_wt"] == pytest.approx(4.0)
+    assert "interpolated" in mid["note"]
+    flipped = M.pair(c, "n-heptane", "propylene glycol", temp_C=30.0)
+    assert flipped.window["a_in_b_max"] == pytest.approx(0.015) and flipped.window["b_in_a_max"] == pytest.approx(0.04)
+    assert M.pair(c, "n-heptane", "propylene glycol", temp_C=45.0).window["b_in_a_max"] == pytest.approx(0.05)
+    assert M.pair(c, "n-heptane", "propylene glycol", temp_C=75.0).basis == "predicted"  # 35 C from the nearest

@@ -1,8 +1,9 @@
 """Do two (or more) liquids form one phase?  Measured where known, predicted otherwise.
 
-Measured binary pairs live in ``tables/miscibility.csv`` (about 25 C, each
-sourced): miscible in all proportions, partially miscible with the mutual
-solubilities in wt %, or practically immiscible.  For a pair not in the table
+Measured binary pairs live in ``tables/miscibility.csv`` (each sourced, with
+its temperature; a pair may have rows at several temperatures, see
+:func:`measured_pair`): miscible in all proportions, partially miscible with
+the mutual solubilities in wt %, or practically immiscible.  For a pair not in the table
 the Flory-Huggins model with an interaction parameter from the Hansen
 parameters gives a prediction: the critical chi for the two molar volumes
 says whether the pair splits at all, and the binodal (common tangent) gives
@@ -204,8 +205,9 @@ def _measured_index(cat_id: int, cat_ref):
             b = cat.solvent(row["liquid_b"], library=False)
         except UnknownNameError:  # a pair naming a liquid not in this catalog is skipped
             continue
-        key = frozenset((a.name, b.name))
-        index[key] = (a.name, row)
+        index.setdefault(frozenset((a.name, b.name)), []).append((a.name, row))
+    for rows in index.values():  # measurements of one pair at several temperatures, coldest first
+        rows.sort(key=lambda hit: _num(hit[1].get("temp_C")) or 25.0)
     return index
 
 
@@ -225,20 +227,53 @@ class _Ref:
         return isinstance(other, _Ref) and other.cat is self.cat
 
 
-def measured_pair(cat, a, b):
-    """The table row of a measured pair (oriented so that ``a`` is first), or None."""
-    sa, sb = _solvent(cat, a), _solvent(cat, b)
-    idx = _measured_index(id(cat), _Ref(cat))
-    hit = idx.get(frozenset((sa.name, sb.name)))
-    if hit is None:
-        return None
-    first, row = hit
+def _oriented(first: str, row: dict, name_a: str) -> dict:
+    """A copy of a table row with ``name_a`` as liquid a."""
     row = dict(row)
-    if first != sa.name:  # flip to the asked orientation
+    if first != name_a:
         row["liquid_a"], row["liquid_b"] = row["liquid_b"], row["liquid_a"]
         row["cas_a"], row["cas_b"] = row.get("cas_b"), row.get("cas_a")
         row["b_in_a_wt"], row["a_in_b_wt"] = row.get("a_in_b_wt"), row.get("b_in_a_wt")
     return row
+
+
+def _window_known(row: dict) -> bool:
+    return row["one_phase"] == "partial" and all(_num(row.get(k)) is not None for k in ("b_in_a_wt", "a_in_b_wt"))
+
+
+def _between(lo: dict, hi: dict, temp_C: float) -> dict:
+    """The row at ``temp_C`` between two partial rows of one pair: each solubility linear in temperature."""
+    t0, t1 = _num(lo["temp_C"]), _num(hi["temp_C"])
+    w = (temp_C - t0) / (t1 - t0)
+    row = dict(lo)
+    for k in ("b_in_a_wt", "a_in_b_wt"):
+        row[k] = (1.0 - w) * _num(lo[k]) + w * _num(hi[k])
+    sources = dict.fromkeys(s for r in (lo, hi) for s in str(r.get("source") or "").split(";") if s)
+    row.update(temp_C=temp_C, source=";".join(sources),
+               note=f"interpolated linearly between the measurements at {t0:g} and {t1:g} C")
+    return row
+
+
+def measured_pair(cat, a, b, temp_C: float | None = None):
+    """The table row of a measured pair (oriented so that ``a`` is first), or None.
+
+    A pair may be measured at several temperatures (one row each): the row
+    nearest ``temp_C`` (default 25 C; the colder of two equally near) is
+    returned, except between two rows of a partly miscible pair with both
+    solubilities tabulated, where each solubility is interpolated linearly in
+    temperature (the row then carries ``temp_C`` and both rows' sources).
+    """
+    sa, sb = _solvent(cat, a), _solvent(cat, b)
+    hits = _measured_index(id(cat), _Ref(cat)).get(frozenset((sa.name, sb.name)))
+    if not hits:
+        return None
+    rows = [_oriented(first, row, sa.name) for first, row in hits]
+    t = 25.0 if temp_C is None else float(temp_C)
+    temps = [_num(r.get("temp_C")) or 25.0 for r in rows]
+    for k in range(len(rows) - 1):
+        if temps[k] < t < temps[k + 1] and _window_known(rows[k]) and _window_known(rows[k + 1]):
+            return _between(rows[k], rows[k + 1], t)
+    return rows[min(range(len(rows)), key=lambda k: (abs(temps[k] - t), temps[k]))]
 
 
 def _liquid_at(s, temp_C):
@@ -380,7 +415,7 @@ def pair(cat, a, b, temp_C: float = 25.0) -> PairVerdict:
     if sa.name == sb.name:
         return PairVerdict((sa.name, sb.name), "yes", "measured", {"one_phase_ranges": [[0.0, 1.0]]}, 0.0, None, (), "the same liquid", temp_C, (sa.cas, sb.cas))
     predicted = predict_pair(sa, sb, temp_C)
-    row = measured_pair(cat, sa, sb)
+    row = measured_pair(cat, sa, sb, temp_C)
     if row is None:
         return predicted
     t_row = _num(row.get("temp_C")) or 25.0
