@@ -4,7 +4,8 @@
 
 Pairs and triples over the whole default emulsifier pool, Griffin's HLB from
 structure for every SMILES of the table, and one full beverage-emulsion design
-(the ``emulsion`` job: physics, weighting options and legal checks).
+(the ``emulsion`` job: physics, weighting options and legal checks), and one with a hydrocolloid
+emulsifier, the drink's viscosity from the sucrose table and the concentrate judged at its own viscosity.
 """
 
 from __future__ import annotations
@@ -48,6 +49,9 @@ def main() -> None:
     td = timed(lambda: emulsion(catalog=cat, oil=[("d-limonene", 70), ("sucrose acetate isobutyrate", 30)],
                                 brix=11, dilution=500, droplet_um=0.4), rep)
     print(f"beverage emulsion design (2 jurisdictions, 4 agents): {td * 1e3:.1f} ms")
+    tg = timed(lambda: emulsion(catalog=cat, oil=[("orange oil", 100)], brix=10.5, temp_C=4, dilution=250,
+                                droplet_um=0.4, emulsifier="gum arabic", concentrate_viscosity_mPa_s=60), rep)
+    print(f"the same with gum arabic, the drink's viscosity at 4 C and the concentrate judged: {tg * 1e3:.1f} ms")
 
 
 if __name__ == "__main__":
