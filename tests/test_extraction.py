@@ -130,3 +130,23 @@ def test_bad_requests_name_their_field(fields, param):
     with pytest.raises(InputError) as e:
         extraction(solute="cannabidiol", **fields)
     assert e.value.param == param
+
+
+def test_residue_left_falls_with_deeper_vacuum_and_warmer_finish(cat):
+    # Raoult's law bound (the partial pressure of the solvent cannot exceed the evaporator's pressure)
+    def left(**kw):
+        r = extraction(solute="cannabidiol", strengths=(95,), temps_C=(-20,), catalog=cat, **kw)
+        return r.legal[0]["residue_bound_mg_kg"]
+
+    assert left(vacuum_kPa=2) < left(vacuum_kPa=10)
+    assert left(finish_C=80) < left(finish_C=50)
+
+
+def test_a_residue_over_a_numerical_limit_is_flagged(cat):
+    # Directive 2009/32/EC Annex I Part II: hexane 1 mg/kg in the food (tables/regulations.csv); an
+    # evaporator at 10 kPa and 40 C leaves far more than that at equilibrium
+    r = extraction(solute="cannabidiol", liquids=("n-hexane", "ethanol"), strengths=(90,), temps_C=(20,),
+                   vacuum_kPa=10, finish_C=40, catalog=cat)
+    hexane = r.legal[0]
+    assert hexane["name"] == "n-hexane" and hexane["residue_bound_mg_kg"] > 1.0
+    assert any(x["over"] for x in hexane["residue_limits"] if x["limit"] == 1.0)

@@ -8,7 +8,8 @@ from ._common import add_json_flag, emit_json, get_catalog, print_cautions, prin
 from ._target import add_target_arguments, target_fields
 
 #: Request fields whose option is not ``--`` + the field's name.
-OPTION_NAMES = {"rejects": "--reject", "temps_C": "--temps", "vacuum_kPa": "--vacuum", "target": "--solute"}
+OPTION_NAMES = {"rejects": "--reject", "temps_C": "--temps", "vacuum_kPa": "--vacuum", "finish_C": "--finish",
+                "target": "--solute"}
 
 
 def register(sub):
@@ -28,6 +29,8 @@ def register(sub):
     p.add_argument("--strengths", metavar="LO:HI:STEP", help="strengths in %% v/v of A (default 40:100:5; or a list)")
     p.add_argument("--temps", metavar="LO:HI:STEP", help="temperatures in C (default -40:40:5; or a list)")
     p.add_argument("--vacuum", type=float, metavar="KPA", help="absolute pressure when stripping, kPa (default 10)")
+    p.add_argument("--finish", type=float, metavar="C",
+                   help="temperature the extract is held at to finish stripping, C (default 60)")
     p.add_argument("--jurisdiction", choices=FOOD_JURISDICTIONS, help="food law for the legal status (default EU)")
     p.add_argument("--purpose", choices=tuple(bundled_purposes()), metavar="PURPOSE",
                    help="what the product is: " + describe_purposes())
@@ -42,7 +45,7 @@ def request(args):
     given = {
         "rejects": parse_names(args.reject, "rejects") if args.reject is not None else None,
         "liquids": parse_names(args.liquids, "liquids") if args.liquids is not None else None,
-        "strengths": args.strengths, "temps_C": args.temps, "vacuum_kPa": args.vacuum,
+        "strengths": args.strengths, "temps_C": args.temps, "vacuum_kPa": args.vacuum, "finish_C": args.finish,
         "jurisdiction": args.jurisdiction, "purpose": args.purpose,
     }
     return ExtractionRequest(**target_fields(args), **{k: v for k, v in given.items() if v is not None})
@@ -81,14 +84,20 @@ def run(args) -> int:
         print(f"  there: target {b['target_g_L'] if b['target_g_L'] is None else format(b['target_g_L'], '.3g')} g/L "
               f"(estimate), Ra {b['ra']:.2f}, viscosity {b['viscosity_mPa_s'] or 'n/a'} mPa s")
     st = result.strip
-    starts = ", ".join(f"{s:g} %: {c:.1f} C" for s, c in zip(result.strengths, st["start_C"]))
+    starts = ", ".join(f"{s:g} %: {'n/a' if c is None else format(c, '.1f')} C"
+                       for s, c in zip(result.strengths, st["start_C"]))
     print(f"\nStripping at {st['vacuum_kPa']:g} kPa ({st['activity_model']}): starts to boil at {starts}")
     print(f"  {st['note']}")
     print("\nLegal status (extraction solvent):")
     for item in result.legal:
         limits = "; ".join(f"{r['rule']}: {r['limit'] if r['limit'] is not None else r['status']} {r['unit']}".strip()
                            for r in item["residue_limits"]) or "no residue rule in the tables"
-        print(f"  {item['name']}: {item['status_text']}; residue: {limits}")
+        left = item["residue_bound_mg_kg"]
+        left = "n/a" if left is None else f"at most {left:.3g} mg/kg"
+        over = [r["rule"] for r in item["residue_limits"] if r["over"]]
+        print(f"  {item['name']}: {item['status_text']}; residue rules: {limits}")
+        print(f"    left in the extract at {st['finish_C']:g} C and {st['vacuum_kPa']:g} kPa (equilibrium): {left}"
+              + (f": OVER {', '.join(over)}" if over else ""))
     print(f"\nHSP of a strength: {result.hsp_basis}")
     for n in result.notes:
         print(f"Note: {n}")

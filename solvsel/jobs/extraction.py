@@ -26,7 +26,7 @@ import numpy as np
 
 from ..data.catalog import Catalog
 from ..data.provenance import audit_block
-from ..errors import InputError, SolvselError
+from ..errors import InputError, OutOfRangeError, SolvselError
 from ..rules.cautions import DEFER, solvent_cautions
 from ..rules.regulations import food_status, limits
 from ..science import extraction as ex
@@ -94,6 +94,9 @@ class ExtractionRequest:
         temperatures [C], -80 to 100 (default -40 to 40 in steps of 5; text as for ``strengths``)
     vacuum_kPa : float
         absolute pressure of the evaporator when stripping [kPa], 0.5 to 101.325 (default 10)
+    finish_C : float
+        temperature the extract is held at to finish stripping [C], 0 to 150 (default 60, the
+        evaporator's setting): the residue left at equilibrium is judged there
     jurisdiction : str
         food law for the legal status (EU or US; default EU)
     purpose : str, optional
@@ -109,6 +112,7 @@ class ExtractionRequest:
     strengths: tuple[float, ...] = _STRENGTHS
     temps_C: tuple[float, ...] = _TEMPS
     vacuum_kPa: float = 10.0
+    finish_C: float = 60.0
     jurisdiction: str = "EU"
     purpose: str | None = None
 
@@ -123,6 +127,7 @@ class ExtractionRequest:
         set_(self, "strengths", _grid_values(self.strengths, "strengths", 0.0, 100.0, "% v/v"))
         set_(self, "temps_C", _grid_values(self.temps_C, "temps_C", -80.0, 100.0, "C"))
         set_(self, "vacuum_kPa", check_number(self.vacuum_kPa, "vacuum_kPa", 0.5, 101.325, unit="kPa"))
+        set_(self, "finish_C", check_number(self.finish_C, "finish_C", 0.0, 150.0, unit="C"))
         set_(self, "jurisdiction", check_jurisdictions([self.jurisdiction], "jurisdiction")[0])
         if self.hsp is not None:
             target_from_hsp(self.hsp)
@@ -136,7 +141,10 @@ class ExtractionResult:
     ``grid`` keys: ``ra`` and ``red`` of the target [MPa^0.5, -], ``target_g_L`` and ``rejects_g_L``
     (per reject) [g/L], ``selectivity`` (target g/L over the most soluble reject's g/L), ``liquid``,
     ``viscosity_mPa_s``; ``freezing_point_C`` per strength; ``strip`` the bubble temperature of each
-    strength at the vacuum [C], the end of stripping (the second liquid alone) and the azeotrope.
+    strength at the vacuum [C], the end of stripping (the less volatile liquid alone), the azeotrope;
+    ``legal`` each liquid's status for the purpose, its residue rules and ``residue_bound_mg_kg``, the most
+    that can stay in the extract at equilibrium at ``finish_C`` and the vacuum (each rule with a number
+    says whether that bound is ``over`` it).
     """
 
     target: Target
@@ -263,31 +271,58 @@ def _best(req: ExtractionRequest, g: dict) -> tuple[dict | None, str]:
 # ----------------------------------------------------------------------------- stripping and law
 
 
+def _bubble(p: ex.Pair, x1: float, pressure_kPa: float) -> float | None:
+    try:
+        return round(ex.bubble_point_C(p, x1, pressure_kPa), 2)
+    except OutOfRangeError:  # boils below -80 C or above 150 C at this pressure
+        return None
+
+
 def _strip(p: ex.Pair, req: ExtractionRequest) -> dict:
+    """When each strength starts to boil under the vacuum, when the last of the solvent goes, the azeotrope."""
     model, source = ex.activity_model(p)
-    starts = [round(ex.bubble_point_C(p, float(p.mole_fraction(s / 100.0)), req.vacuum_kPa), 2) for s in req.strengths]
-    end = ex.bubble_point_C(p, 0.0, req.vacuum_kPa)
+    starts = [_bubble(p, float(p.mole_fraction(s / 100.0)), req.vacuum_kPa) for s in req.strengths]
+    end = max((t for t in (_bubble(p, 0.0, req.vacuum_kPa), _bubble(p, 1.0, req.vacuum_kPa)) if t is not None),
+              default=None)
     az = ex.azeotrope(p, req.vacuum_kPa)
-    note = (f"{req.liquids[0]} leaves first; the last of the {req.liquids[1]} boils off at {end:.1f} C at "
-            f"{req.vacuum_kPa:g} kPa")
+    note = (f"the more volatile liquid leaves first; the last of the solvent boils off at "
+            f"{'n/a' if end is None else format(end, '.1f')} C at {req.vacuum_kPa:g} kPa; the extract is "
+            f"finished at {req.finish_C:g} C")
+    if any(t is None for t in starts):
+        note += "; some strengths do not boil between -80 and 150 C at this pressure (n/a)"
     if az is not None:
         note += (f"; the azeotrope ({100 * az['mass_fraction']:.1f} % w/w {req.liquids[0]}, "
                  f"{az['boiling_point_C']:.1f} C) cannot be passed by distillation")
-    return {"vacuum_kPa": req.vacuum_kPa, "start_C": starts, "end_C": round(end, 2), "azeotrope": az,
+    return {"vacuum_kPa": req.vacuum_kPa, "start_C": starts, "end_C": end, "finish_C": req.finish_C, "azeotrope": az,
             "activity_model": model, "sources": [source, "extract_poling_antoine"], "note": note}
 
 
-def _legal(cat: Catalog, p: ex.Pair, req: ExtractionRequest) -> tuple[list[dict], list]:
+def _residue(p: ex.Pair, rec, target: Target, strip: dict) -> float | None:
+    """Equilibrium bound of ``rec`` left in the extract (the target) at the end of stripping [mg/kg]."""
+    sol = target.solute
+    vm = target.vm_cm3_mol or (sol.vm_cm3_mol if sol is not None else None)
+    mw = sol.mw_g_mol if sol is not None else None
+    if vm is None or mw is None:
+        return None
+    return 1e6 * ex.residue_bound(rec, target.hsp, vm, mw, strip["finish_C"], strip["vacuum_kPa"])
+
+
+def _legal(cat: Catalog, p: ex.Pair, req: ExtractionRequest, target: Target, strip: dict) -> tuple[list[dict], list]:
+    """Each liquid's status for the purpose, its residue rules, and the equilibrium residue against them."""
     out, rules = [], []
     for rec in (p.a, p.b):
         st = food_status(cat, rec, use="extraction", jurisdiction=req.jurisdiction, purpose=req.purpose)
         rows = [l for l in limits(cat, cas=rec.cas, jurisdiction=req.jurisdiction, use="extraction",
                                   purpose=req.purpose) if l.cas == rec.cas] if rec.cas else []
         rules += list(st.rules) + rows
+        left = _residue(p, rec, target, strip)
         residue = [{"rule": l.rule, "limit": l.limit, "unit": l.unit, "applies_to": l.applies_to,
-                    "status": l.status} for l in rows]
+                    "status": l.status,
+                    "over": (None if left is None or l.limit is None or l.unit not in ("mg/kg", "ppm")
+                             else left > l.limit)} for l in rows]
         out.append({"name": rec.name, "cas": rec.cas, "status": st.status, "status_text": st.status_text,
-                    "allowed": st.allowed, "message": st.message, "residue_limits": residue})
+                    "allowed": st.allowed, "message": st.message, "residue_limits": residue,
+                    "residue_bound_mg_kg": left})
     return out, rules
 
 
@@ -340,12 +375,13 @@ def extraction(request: ExtractionRequest | None = None, *, catalog: Catalog | N
     rejects = _rejects(cat, req.rejects)
     g, fps, extrapolated = _grid(cat, p, target, rejects, req)
     best, words = _best(req, g)
-    legal, rules = _legal(cat, p, req)
+    strip = _strip(p, req)
+    legal, rules = _legal(cat, p, req, target, strip)
     basis = [(s.name, ex.fusion_of(s)[2]) for s in ([target.solute] if target.solute is not None else []) + rejects
              if ex.fusion_of(s) is not None]
     sources = {**ex.table_sources(cat), "hsp": [target.solute.hsp_source] if target.solute is not None else []}
     return ExtractionResult(
         target, (p.a.name, p.b.name), req.strengths, req.temps_C, tuple(s.name for s in rejects), g,
-        tuple(fps), ex.HSP_BASIS, best, words, _strip(p, req), tuple(legal),
+        tuple(fps), ex.HSP_BASIS, best, words, strip, tuple(legal),
         tuple(_notes(target, rejects, basis, extrapolated, p)), _cautions(cat, p), sources,
         audit_block(rules, cat.tables_dir))

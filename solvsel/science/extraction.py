@@ -41,7 +41,7 @@ from . import hansen
 __all__ = [
     "ETHANOL_CAS", "WATER_CAS", "HSP_BASIS", "NRTL_ETHANOL_WATER", "WALDEN_DSFUS_J_MOL_K",
     "Pair", "pair_of", "pair_at", "mixture_at", "nrtl_ln_gamma", "psat_kPa", "freezing_point_C", "viscosity_mPa_s",
-    "fusion_of", "solubility_g_L", "antoine", "bubble_point_C", "azeotrope",
+    "fusion_of", "solubility_g_L", "antoine", "residue_bound", "bubble_point_C", "azeotrope",
 ]
 
 ETHANOL_CAS, WATER_CAS = "64-17-5", "7732-18-5"
@@ -348,12 +348,37 @@ def azeotrope(p: Pair, pressure_kPa: float = 101.325) -> dict | None:
         T = bubble_point_C(p, x1, pressure_kPa) + 273.15
         return bubble_pressure_kPa(p, x1, T)[1] - x1
 
+    def excess_or_nan(x1: float) -> float:
+        try:
+            return excess(x1)
+        except OutOfRangeError:  # does not boil between -80 and 150 C at this pressure
+            return math.nan
+
     xs = np.linspace(0.02, 0.995, 20)
-    ys = [excess(x) for x in xs]
+    ys = [excess_or_nan(x) for x in xs]
     for i in range(len(xs) - 1):
-        if ys[i] == 0 or ys[i] * ys[i + 1] < 0:
+        if ys[i] == 0 or ys[i] * ys[i + 1] < 0:  # False where either is NaN
             x = float(brentq(excess, xs[i], xs[i + 1], xtol=1e-8))
             w = x * float(p.a.mw_g_mol) / (x * float(p.a.mw_g_mol) + (1 - x) * float(p.b.mw_g_mol))
             return {"mole_fraction": x, "mass_fraction": w, "boiling_point_C": bubble_point_C(p, x, pressure_kPa),
                     "pressure_kPa": pressure_kPa}
     return None
+
+
+def residue_bound(rec, extract_hsp, extract_vm: float, extract_mw: float, temp_C: float,
+                  pressure_kPa: float) -> float:
+    r"""Largest mass fraction of liquid ``rec`` left in an extract at equilibrium at the end of stripping.
+
+    The liquid's partial pressure over the extract cannot exceed the pressure of the evaporator, so its
+    mole fraction is at most :math:`x = P / (\gamma^\infty P^{sat}(T))`, with :math:`\gamma^\infty` of the
+    liquid in the extract by Flory-Huggins from HSP (:math:`\ln\gamma^\infty = \ln(V_1/V_2) + 1 - V_1/V_2
+    + \chi`, :math:`\chi = V_1 R_a^2 / 4RT`); as a mass fraction with the extract's molar mass.  An
+    equilibrium bound: drying time, the matrix and the residue the rules count govern what is really left.
+    """
+    h, v1 = _liquid_hsp(rec, temp_C)
+    chi = float(hansen.chi_flory_huggins(h, np.asarray(extract_hsp, dtype=float), v1, temp_C))
+    r = v1 / float(extract_vm)
+    ln_g = math.log(r) + 1.0 - r + chi
+    x = min(1.0, pressure_kPa / (math.exp(ln_g) * psat_kPa(rec.cas, temp_C + 273.15)))
+    m1 = x * float(rec.mw_g_mol)
+    return m1 / (m1 + (1.0 - x) * float(extract_mw))
