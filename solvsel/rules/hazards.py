@@ -46,7 +46,7 @@ from dataclasses import asdict, dataclass
 from functools import lru_cache
 from typing import Any
 
-from ..errors import InputError, UnknownNameError
+from ..errors import InputError
 
 __all__ = ["Hazard", "hazard_class", "HealthHazard", "HEALTH_LEVELS", "health_hazard", "health_level",
            "check_health_level", "exposure_limits", "carcinogen_listings", "HEALTH_STATEMENTS"]
@@ -298,16 +298,12 @@ def health_hazard(cat, solvent) -> HealthHazard | None:
         from ..data.catalog import load_catalog
 
         cat = load_catalog()
-    table = cat.table("health_hazards")
-    hits = table[table["cas"] == cas] if cas else table.iloc[0:0]
-    if hits.empty:
-        try:
-            hits = table.iloc[[cat.find_index("health_hazards", name)]] if name.strip() else hits
-        except UnknownNameError:
-            return None
-    if hits.empty:
+    i = cat.match_index("health_hazards", cas) if cas else None
+    if i is None and name.strip():
+        i = cat.match_index("health_hazards", name)
+    if i is None:
         return None
-    row = hits.iloc[0]
+    row = cat.table("health_hazards").iloc[i]
     statements = _listed(row["statements"])
     level = health_level(statements)
     return HealthHazard(str(row["name"]), cas, statements, level, HEALTH_LEVELS[level], str(row["basis"]),
