@@ -54,7 +54,10 @@ class Target:
     vm_cm3_mol : float or None
         molar volume of the solute [cm^3/mol], when known
     uncertainty : dict or None
-        estimated uncertainty of dD, dP, dH [MPa^0.5] (estimates only)
+        uncertainty of dD, dP, dH [MPa^0.5], or None when none is stated; its ``kind`` says how
+        it is given: "cv_mae" (an estimate from structure: cross-validated mean absolute errors
+        per parameter), "interval" (a fitted sphere: ``[lo, hi]`` per parameter at ``level``) or
+        "sd" (standard deviations); read by :func:`solvsel.science.robustness.target_spread`
     """
 
     name: str
