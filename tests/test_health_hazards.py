@@ -7,7 +7,9 @@ Published values checked here (tables/sources.csv has the addresses, read 2026-1
 - methanol: Acute Tox. 3 H301, H311, H331 and STOT SE 1 H370 (Annex VI, index 603-001-00-X;
   GisChem, source ``health_gischem_methanol``);
 - chloroform: H302 H315 H319 H331 H351 H361d H372 (Annex VI, index 602-006-00-4, as amended by
-  Regulation (EU) No 944/2013; University of Hamburg list, source ``health_claks_chloroform``).
+  Regulation (EU) No 944/2013; University of Hamburg list, source ``health_claks_chloroform``);
+- n-hexane: H304 H315 H336 H361f H373 (Annex VI, index 601-037-00-0; GisChem, ``health_gischem_hexane``);
+- toluene: H304 H315 H336 H361d H373 (Annex VI, index 601-021-00-3; GisChem, ``health_gischem_toluene``).
 Exposure limits and carcinogen listings are compared with the reference library ``chemicals``.
 """
 
@@ -32,6 +34,8 @@ PUBLISHED = {
     "dichloromethane": {"H351"},
     "methanol": {"H301", "H311", "H331", "H370"},
     "chloroform": {"H302", "H315", "H319", "H331", "H351", "H361d", "H372"},
+    "n-hexane": {"H304", "H315", "H336", "H361f", "H373"},
+    "toluene": {"H304", "H315", "H336", "H361d", "H373"},
 }
 
 
