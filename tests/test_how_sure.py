@@ -15,7 +15,6 @@ import json
 import math
 
 import numpy as np
-import pytest
 
 from solvsel.data.catalog import load_catalog
 from solvsel.jobs.blend import blend
