@@ -231,7 +231,8 @@ def _summary(names, shares, moving, spread: Spread, n: int, scope: str) -> str:
     if scope:
         head += f"; {scope}"
     if not moving:
-        return f"stable: the top {TOP} stay the top {TOP} under the target's uncertainty ({head})"
+        return f"stable: the {TOP} nearest to the target (Ra) stay the {TOP} nearest under its uncertainty ({head})"
     parts = [f"{nm} {100 * s:.0f} %" for nm, s in zip(names, shares) if nm in moving]
-    return f"sensitive: these answers move in or out of the top {TOP} (share of samples in it): " + ", ".join(parts) \
+    return f"sensitive: these answers move in or out of the {TOP} nearest to the target (Ra; share of samples " \
+        "among them): " + ", ".join(parts) \
         + f" ({head})"
