@@ -36,10 +36,10 @@ def test_table_is_frozen(table, cat):
         "liquid_a", "cas_a", "liquid_b", "cas_b", "one_phase", "b_in_a_wt", "a_in_b_wt", "temp_C", "source", "note",
     ]
     assert len(table) >= 60
-    assert len(table) == 138
-    assert table.one_phase.value_counts().to_dict() == {"full": 81, "none": 29, "partial": 28}
-    # about 25 C, as the design asks
-    assert table.temp_C.between(20, 30).all()
+    assert len(table) == 142
+    assert table.one_phase.value_counts().to_dict() == {"full": 81, "none": 32, "partial": 29}
+    # room temperature: about 25 C, as the design asks, and the 13-15 C of a published olive oil figure
+    assert table.temp_C.between(10, 30).all()
 
 
 def test_table_names_and_cas_resolve(table, cat):
@@ -370,3 +370,29 @@ def test_a_pair_measured_at_several_temperatures(tmp_path):
     assert flipped.window["a_in_b_max"] == pytest.approx(0.015) and flipped.window["b_in_a_max"] == pytest.approx(0.04)
     assert M.pair(c, "n-heptane", "propylene glycol", temp_C=45.0).window["b_in_a_max"] == pytest.approx(0.05)
     assert M.pair(c, "n-heptane", "propylene glycol", temp_C=75.0).basis == "predicted"  # 35 C from the nearest
+
+
+def test_vegetable_oils_in_ethanol_against_published_figures(cat):
+    # Villavecchia, Treatise on Applied Analytical Chemistry vol. 1 (1918): about 15 g of olive oil
+    # dissolve in 1000 cm3 of absolute ethanol at 13-15 C; the other oils of the same text, 15 g
+    # (arachis) to 18 g (cottonseed) at 15 C: that scatter (each figure to the gram), as a mass
+    # fraction with ethanol's density at 13-15 C (the solvents table's density and expansion),
+    # holds the tool's answer at 14 C,
+    # whichever liquid is named first; and it lies under Kaparthi and Chari's (1959) bound for
+    # ordinary temperatures, 10 g of oil per 100 g of ethanol
+    etoh = cat.solvent("ethanol")
+    rho = [etoh.density_g_cm3 / (1 + etoh.alpha_1_K * (t - 25.0)) for t in (13.0, 15.0)]
+    lo, hi = 14.5 / (14.5 + 1000 * max(rho)), 18.5 / (18.5 + 1000 * min(rho))  # figures stated to the gram
+    ab, ba = M.pair(cat, "ethanol", "olive oil", temp_C=14.0), M.pair(cat, "olive oil", "ethanol", temp_C=14.0)
+    assert ab.basis == "measured" and ab.one_phase == "partial"
+    assert lo <= ab.window["b_in_a_max"] <= hi and ba.window["a_in_b_max"] == ab.window["b_in_a_max"]
+    assert ab.window["b_in_a_max"] < 10.0 / 110.0
+    # the blend check uses it: 1 % of olive oil by volume in ethanol at 14 C is one phase, 3 % is not
+    assert M.blend_phase(cat, ["ethanol", "olive oil"], [0.99, 0.01], temp_C=14.0).one_phase
+    assert not M.blend_phase(cat, ["ethanol", "olive oil"], [0.97, 0.03], temp_C=14.0).one_phase
+    # European Pharmacopoeia monographs of refined sunflower, soya-bean and maize oils: practically
+    # insoluble in ethanol (96 per cent), a statement for 15-25 C: "no" at both ends of that range
+    for oil in ("sunflower oil", "soybean oil", "corn oil"):
+        for t in (15.0, 25.0):
+            v = M.pair(cat, "ethanol 96% v/v", oil, temp_C=t)
+            assert v.one_phase == "no" and v.basis == "measured", (oil, t)
