@@ -110,9 +110,10 @@ def test_a_save_killed_at_random_moments_leaves_a_whole_workspace(tmp_path):
     # a real SIGKILL of a process saving again and again, at 30 random moments (fork: no interpreter start-up)
     a, b = full_workspace("A", size=60), full_workspace("B", size=40)  # files of about 20 kB
     path = tmp_path / "work.json"
-    start = time.perf_counter()
     save_workspace(a, path)
-    one_save = time.perf_counter() - start  # the kills are spread over about two saves, however busy the machine
+    start = time.perf_counter()
+    save_workspace(a, path)  # a save over a file: read, backed up, replaced
+    one_save = time.perf_counter() - start  # the kills are spread over about three saves, however busy the machine
     rng = random.Random(20)
     seen = set()
     for _ in range(30):
@@ -127,7 +128,7 @@ def test_a_save_killed_at_random_moments_leaves_a_whole_workspace(tmp_path):
         os.close(w)
         os.read(r, 1)
         os.close(r)
-        time.sleep(rng.uniform(0.0, 2 * one_save))
+        time.sleep(rng.uniform(0.0, 3 * one_save))
         os.kill(pid, signal.SIGKILL)
         os.waitpid(pid, 0)
         now = open_workspace(path)
