@@ -128,6 +128,7 @@ class Liquid:
     vm_cm3_mol: float
     mw_g_mol: float
     origin: str
+    sites: tuple  # (H-bond donors, acceptors), RDKit's Lipinski counts
 
 
 @lru_cache(maxsize=1)
@@ -155,7 +156,7 @@ def liquids() -> dict:
         except UnknownNameError:
             continue
         out[key] = Liquid(key, s.name, cas, (float(s.dD), float(s.dP), float(s.dH)), float(s.vm_cm3_mol),
-                          float(s.mw_g_mol or _mol_info(smiles)[1]), s.origin)
+                          float(s.mw_g_mol or _mol_info(smiles)[1]), s.origin, hbond_sites(smiles))
     return out
 
 
@@ -173,7 +174,9 @@ class SoluteInfo:
     refused: str
     mp_C: float | None
     dHfus_kJ_mol: float | None
-    n_hbd: int
+    dHfus_source: str
+    sites: tuple  # (H-bond donors, acceptors), RDKit's Lipinski counts
+    uncertainty: dict | None
 
 
 @lru_cache(maxsize=1)
@@ -181,28 +184,34 @@ def solutes() -> dict:
     """InChIKey -> :class:`SoluteInfo` for the 46 solutes of the split (structure estimates computed once)."""
     from solvsel.errors import SolvselError
     from solvsel.science.solubility import fusion_data
-    from solvsel.science.structure import estimate
-
-    from rdkit import Chem
-    from rdkit.Chem import Lipinski
+    from solvsel.science.structure import estimate, mcgowan_volume
 
     m = measurements()
     out = {}
     for key, grp in m[m["split"] != ""].groupby("solute"):
         smiles = grp["solute_smiles"].iloc[0]
-        hsp = vm = None
+        hsp = vm = unc = None
         refused = ""
         try:
             e = estimate(smiles, properties=False)
-            hsp, vm = (e.dD, e.dP, e.dH), e.vm_cm3_mol
+            hsp, unc = (e.dD, e.dP, e.dH), e.uncertainty
+            vm = e.vm_cm3_mol or mcgowan_volume(smiles)
         except SolvselError as exc:
             refused = str(exc)
         mw = _mol_info(smiles)[1]
         fus = fusion_data(smiles)
         out[key] = SoluteInfo(key, grp["solute_name"].iloc[0], smiles, grp["split"].iloc[0], hsp, vm, mw, refused,
-                              fus.mp_C, fus.dHfus_kJ_mol if fus.dHfus_source == "measured" else None,
-                              int(Lipinski.NumHDonors(Chem.MolFromSmiles(smiles))))
+                              fus.mp_C, fus.dHfus_kJ_mol, fus.dHfus_source, hbond_sites(smiles), unc)
     return out
+
+
+def hbond_sites(smiles: str) -> tuple:
+    """(H-bond donors, acceptors) of a SMILES: RDKit's Lipinski counts (N-H and O-H; N and O)."""
+    from rdkit import Chem
+    from rdkit.Chem import Lipinski
+
+    mol = Chem.MolFromSmiles(smiles)
+    return int(Lipinski.NumHDonors(mol)), int(Lipinski.NumHAcceptors(mol))
 
 
 def table(split: str | None = None):

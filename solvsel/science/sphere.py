@@ -82,6 +82,8 @@ __all__ = [
     "desirability",
     "grading_weights",
     "suggest_tests",
+    "GradedFit",
+    "fit_graded",
 ]
 
 #: Search bounds of the centre [MPa^0.5]: (dD, dP, dH) low/high.  They span
@@ -1454,3 +1456,207 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
         if os.path.exists(tmp):
             os.unlink(tmp)
     return what
+
+
+# --------------------------------------------------------------------------
+# graded results: the scores themselves, not only good/bad
+
+
+@dataclass(frozen=True)
+class GradedFit:
+    r"""A sphere fitted to graded results (a score or a measured solubility per liquid).
+
+    The scores fall with the squared Hansen distance from the centre, as the regular-solution term
+    of the activity coefficient does (:math:`\ln\gamma_2 \propto V_2 R_a^2/4RT`, Hansen 2007, ch. 2):
+    ``score = intercept - slope * Ra^2``, slope >= 0, fitted by least squares over the centre (the
+    intercept and slope are exact for each centre).  The radius is where the fitted score crosses
+    the good cut-off.
+
+    Attributes
+    ----------
+    dD, dP, dH : float
+        centre [MPa^0.5]
+    r0 : float or None
+        radius where the fitted score equals ``cut`` [MPa^0.5]; None when no liquid reaches the cut
+    intercept : float
+        fitted score at the centre [score units]
+    slope : float
+        fall of the score per unit of Ra^2 [score units / MPa]
+    cut : float
+        the score separating good from bad (higher is better after orientation) [score units]
+    residual_sd : float
+        root mean square of the residuals [score units]
+    r2 : float
+        fraction of the scores' variance explained [-]
+    n : int
+        liquids
+    at_bound : tuple of str
+        parameters whose value ended on a search bound (the data push the centre there)
+    prior : dict or None
+        the structure estimate offered as a prior and whether the data agree with it: ``dD``, ``dP``,
+        ``dH``, ``sd`` (per parameter, MPa^0.5), ``ra_to_fit`` (MPa^0.5), ``lr`` (likelihood-ratio
+        statistic of the centre at the prior against the free fit, chi-square with 3 degrees of
+        freedom), ``p_value`` and ``agree`` (p >= 0.05)
+    free : tuple
+        centre of the fit without the prior (dD, dP, dH) [MPa^0.5]
+    message : str
+    """
+
+    dD: float
+    dP: float
+    dH: float
+    r0: float | None
+    intercept: float
+    slope: float
+    cut: float
+    residual_sd: float
+    r2: float
+    n: int
+    at_bound: tuple
+    prior: dict | None
+    free: tuple
+    message: str
+
+    @property
+    def hsp(self) -> np.ndarray:
+        return np.array([self.dD, self.dP, self.dH])
+
+    def predict(self, hsp) -> np.ndarray:
+        """Fitted score of liquids at ``hsp`` (n, 3) [score units]."""
+        return self.intercept - self.slope * ra(as_hsp(hsp), self.hsp) ** 2
+
+    def to_dict(self) -> dict:
+        return {
+            "dD": self.dD, "dP": self.dP, "dH": self.dH, "r0": self.r0, "intercept": self.intercept,
+            "slope": self.slope, "cut": self.cut, "residual_sd": self.residual_sd, "r2": self.r2, "n": self.n,
+            "at_bound": list(self.at_bound), "prior": None if self.prior is None else dict(self.prior),
+            "free": list(self.free), "message": self.message,
+        }
+
+
+def _chi2_3_sf(x: float) -> float:
+    """Upper tail of the chi-square distribution with 3 degrees of freedom (closed form)."""
+    if x <= 0:
+        return 1.0
+    return float(math.erfc(math.sqrt(x / 2.0)) + math.sqrt(2.0 * x / math.pi) * math.exp(-x / 2.0))
+
+
+def _graded_sse(Cs, Xs, y):
+    """Least-squares fit of ``y = a - b |x - c|^2`` (b >= 0) for each scaled centre in ``Cs`` (m, 3):
+    returns (sse, a, b), each (m,)."""
+    z = np.einsum("mnk,mnk->mn", Cs[:, None, :] - Xs[None], Cs[:, None, :] - Xs[None])
+    zc = z - z.mean(axis=1, keepdims=True)
+    yc = y - y.mean()
+    var = np.einsum("mn,mn->m", zc, zc)
+    b = np.maximum(-(zc @ yc) / np.maximum(var, 1e-12), 0.0)
+    a = y.mean() + b * z.mean(axis=1)
+    res = y[None] - a[:, None] + b[:, None] * z
+    return np.einsum("mn,mn->m", res, res), a, b
+
+
+def _graded_centre(Xs, y, lo, hi, penalty):
+    """The scaled centre minimising sse + penalty(c): a grid over the bounds, then Nelder-Mead."""
+    from scipy.optimize import minimize
+
+    axes = [np.linspace(lo[k], hi[k], n) for k, n in enumerate((14, 16, 21))]
+    grid = np.stack(np.meshgrid(*axes, indexing="ij"), -1).reshape(-1, 3)
+    J = _graded_sse(grid, Xs, y)[0] + penalty(grid)
+    best = None
+    for i in np.argsort(J)[:3]:
+        res = minimize(lambda c: float(_graded_sse(np.clip(c, lo, hi)[None], Xs, y)[0][0]
+                                       + penalty(np.clip(c, lo, hi)[None])[0]),
+                       grid[i], method="Nelder-Mead",
+                       options={"xatol": 1e-4, "fatol": 1e-10, "maxfev": 3000,
+                                "initial_simplex": grid[i] + 0.8 * np.vstack([np.zeros(3), np.eye(3)])})
+        if best is None or res.fun < best.fun:
+            best = res
+    return np.clip(best.x, lo, hi)
+
+
+def fit_graded(hsp, scores, *, cut: float, higher_is_better: bool = True, prior=None, prior_sd=None,
+               bounds=None) -> GradedFit:
+    r"""Fit a sphere to graded results: ``score = intercept - slope * Ra^2`` (see :class:`GradedFit`).
+
+    Parameters
+    ----------
+    hsp : array_like, shape (n, 3)
+        dD, dP, dH of the liquids [MPa^0.5]
+    scores : array_like, shape (n,)
+        one score per liquid: a measured solubility (log10 of the mole fraction, say) or a bench score
+    cut : float
+        the score at which good begins (the radius is where the fitted score crosses it)
+    higher_is_better : bool
+        False for scales where low is best (1 dissolved .. 6 no effect): the scores are negated
+    prior : array_like (3,), optional
+        a centre expected beforehand, e.g. the structure estimate [MPa^0.5]
+    prior_sd : array_like (3,), optional
+        its uncertainty per parameter [MPa^0.5] (default 1.5, 3, 3); the prior adds
+        ``s^2 sum((c - prior)/sd)^2`` to the sum of squares, ``s^2`` the residual variance of the
+        free fit (a Gaussian prior on the centre, maximum a posteriori)
+    bounds : ((lo, hi), (lo, hi), (lo, hi)), optional
+        search bounds of dD, dP, dH [MPa^0.5], default :data:`DEFAULT_BOUNDS`
+
+    Examples
+    --------
+    Twelve liquids of Hansen's Appendix A [1]_ scored by a made-up law
+    ``score = 3 - 0.02 Ra^2`` around (17, 8, 10): the centre is found again.
+
+    >>> liquids = np.array([(14.9, 0.0, 0.0), (18.0, 1.4, 2.0), (15.5, 10.4, 7.0), (15.8, 8.8, 19.4),
+    ...     (15.5, 16.0, 42.3), (15.8, 5.3, 7.2), (14.7, 12.3, 22.3), (16.0, 9.0, 5.1),
+    ...     (17.0, 7.3, 7.1), (16.0, 5.7, 15.8), (16.8, 5.7, 8.0), (15.3, 18.0, 6.1)])
+    >>> s = 3.0 - 0.02 * ra(liquids, [17.0, 8.0, 10.0]) ** 2
+    >>> g = fit_graded(liquids, s, cut=2.0)
+    >>> [round(v, 2) for v in (g.dD, g.dP, g.dH, g.r0)]
+    [17.0, 8.0, 10.0, 7.07]
+    """
+    X = as_hsp(hsp, "hsp")
+    y = np.asarray(scores, dtype=float)
+    if X.ndim != 2 or y.shape != (len(X),) or not np.all(np.isfinite(y)):
+        raise InputError("expected one finite score per liquid", param="scores")
+    if len(y) < _MIN_LIQUIDS + 1:
+        raise InputError(f"only {len(y)} liquids: a graded fit has 5 unknowns, test at least {_MIN_LIQUIDS + 1}",
+                         param="hsp", expected=f"at least {_MIN_LIQUIDS + 1} liquids")
+    if np.ptp(y) == 0:
+        raise InputError("every liquid has the same score: nothing locates the sphere", param="scores")
+    sign = 1.0 if higher_is_better else -1.0
+    y, cut = sign * y, sign * float(cut)
+    b = _check_bounds(bounds)
+    lo, hi = b[:, 0] * SCALE, b[:, 1] * SCALE
+    Xs = scaled(X)
+    free = _graded_centre(Xs, y, lo, hi, lambda C: np.zeros(len(C)))
+    sse_free = float(_graded_sse(free[None], Xs, y)[0][0])
+    c, prior_info = free, None
+    if prior is not None:
+        c, prior_info = _with_prior(Xs, y, lo, hi, free, sse_free, prior, prior_sd)
+    sse, a, slope = (float(v[0]) for v in _graded_sse(c[None], Xs, y))
+    centre = c / SCALE
+    at_bound = tuple(_AXES[k] for k in range(3) if min(abs(centre[k] - b[k, 0]), abs(centre[k] - b[k, 1])) < 1e-3)
+    r0 = math.sqrt((a - cut) / slope) if slope > 0 and a > cut else None
+    msgs = []
+    if at_bound:
+        msgs.append("centre on the search bound of " + ", ".join(at_bound)
+                    + ": the scores keep rising that way, the data do not bound the centre there")
+    if slope == 0:
+        msgs.append("the scores do not fall with distance from any centre: no sphere describes them")
+    return GradedFit(
+        float(centre[0]), float(centre[1]), float(centre[2]), r0, a, slope, cut, math.sqrt(sse / len(y)),
+        1.0 - sse / float(np.sum((y - y.mean()) ** 2)), len(y), at_bound, prior_info,
+        tuple(float(v) for v in free / SCALE), "; ".join(msgs) or "graded fit")
+
+
+def _with_prior(Xs, y, lo, hi, free, sse_free, prior, prior_sd):
+    """The centre with the prior, and what the data say of the prior (likelihood ratio, 3 degrees of freedom)."""
+    p = as_hsp(prior, "prior")
+    sd = np.array([1.5, 3.0, 3.0]) if prior_sd is None else np.asarray(prior_sd, dtype=float)
+    if sd.shape != (3,) or np.any(~(sd > 0)):
+        raise InputError("expected three positive numbers (dD, dP, dH) [MPa^0.5]", param="prior_sd")
+    n = len(y)
+    s2 = sse_free / max(n - 5, 1)
+    ps, sds = p * SCALE, sd * SCALE
+    c = _graded_centre(Xs, y, lo, hi, lambda C: s2 * np.sum(((C - ps) / sds) ** 2, axis=1))
+    sse_prior = float(_graded_sse(np.clip(ps, lo, hi)[None], Xs, y)[0][0])
+    lr = n * math.log(max(sse_prior, 1e-300) / max(sse_free, 1e-300))
+    pv = _chi2_3_sf(lr)
+    info = {"dD": float(p[0]), "dP": float(p[1]), "dH": float(p[2]), "sd": [float(v) for v in sd],
+            "ra_to_fit": float(ra(p, free / SCALE)), "lr": lr, "p_value": pv, "agree": bool(pv >= 0.05)}
+    return c, info

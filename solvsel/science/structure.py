@@ -1446,12 +1446,20 @@ def estimate(smiles: str, method: str | None = None, params=None, properties: bo
         note=_not_found_note(full_lookup) if looked else "not looked up", source="chemicals_lib")
     by_name = {OWN_METHOD: own_model(mol, P), "hoftyzer-van-krevelen": hoftyzer_van_krevelen(mol), "properties": prop}
     chosen = by_name[method]
+    keto = _keto_form(mol) if not chosen.covered else None
+    if keto is not None:  # a ring carbonyl RDKit reads as aromatic (O=c): the groups see its keto form
+        keto_by_name = {OWN_METHOD: own_model(keto, P), "hoftyzer-van-krevelen": hoftyzer_van_krevelen(keto),
+                        "properties": prop}
+        if keto_by_name[method].covered:
+            mol, by_name, chosen = keto, keto_by_name, keto_by_name[method]
     if not chosen.covered:
         raise _refusal(mol, canonical, method, chosen)
     cls = chemical_class(mol)
     vm, vm_method = _molar_volume(mol, cas)
     mw = float(_rd().Descriptors.MolWt(mol))
     notes = _estimate_notes(mol, chosen, cas, exact, vm, mw)
+    if keto is not None and mol is keto:
+        notes.append(KETO_NOTE)
     covered = [e for e in by_name.values() if e.covered]
     spread = {}
     if len(covered) > 1:
@@ -1467,15 +1475,63 @@ def estimate(smiles: str, method: str | None = None, params=None, properties: bo
     )
 
 
+#: Note of an estimate made on the keto form of a ring carbonyl that RDKit reads as aromatic.
+KETO_NOTE = ("ring carbonyl(s) that RDKit reads as aromatic (O=c, as in xanthone or 2-pyridone) estimated in "
+             "their keto form: C=O in a non-aromatic ring, the benzene rings beside it kept aromatic")
+
+
+def _keto_form(mol):
+    """The molecule with each ring that carries an exocyclic C=O on an aromatic atom made non-aromatic
+    (Kekule bonds), other aromatic rings kept; None when it has no such ring.
+
+    RDKit's aromaticity model counts a ring with an exocyclic carbonyl as aromatic when its pi
+    electrons allow (xanthone's pyranone, 2-pyridone, isatoic anhydride, 2-benzimidazolone); the
+    groups of the methods describe that carbonyl as a ring ketone, lactone or lactam.
+    """
+    Chem = _rdkit()
+    rings = mol.GetRingInfo()
+    carbonyl_atoms = {a.GetIdx() for a in mol.GetAtoms() if a.GetIsAromatic() and any(
+        b.GetBondType() == Chem.BondType.DOUBLE and not b.IsInRing() and b.GetOtherAtom(a).GetSymbol() in ("O", "S")
+        for b in a.GetBonds())}
+    if not carbonyl_atoms:
+        return None
+    bond_rings = rings.BondRings()
+    keep = [br for ar, br in zip(rings.AtomRings(), bond_rings)
+            if not carbonyl_atoms & set(ar) and all(mol.GetBondWithIdx(b).GetIsAromatic() for b in br)]
+    out = Chem.RWMol(mol)
+    Chem.Kekulize(out, clearAromaticFlags=True)
+    for br in keep:
+        for b in br:
+            bond = out.GetBondWithIdx(b)
+            bond.SetBondType(Chem.BondType.AROMATIC)
+            bond.SetIsAromatic(True)
+            bond.GetBeginAtom().SetIsAromatic(True)
+            bond.GetEndAtom().SetIsAromatic(True)
+    out = out.GetMol()
+    out.UpdatePropertyCache(strict=False)
+    Chem.FastFindRings(out)
+    return out
+
+
 def _refusal(mol, canonical: str, method: str, chosen: MethodEstimate) -> MissingDataError:
     """The error of a method that cannot estimate the molecule (atoms without a group, data missing)."""
     if chosen.uncovered_atoms:
         what = ", ".join(f"{mol.GetAtomWithIdx(i).GetSymbol()}{i}" for i in chosen.uncovered_atoms)
+        kinds = sorted({_atom_kind(mol.GetAtomWithIdx(i)) for i in chosen.uncovered_atoms})
         return MissingDataError(
-            f"method '{method}' has no group for atom(s) {what} of '{canonical}'; the estimate is refused "
-            "rather than guessed (try another method)", param="method", value=method)
+            f"method '{method}' has no group for atom(s) {what} ({'; '.join(kinds)}) of '{canonical}'; the estimate "
+            "is refused rather than guessed (try another method)", param="method", value=method)
     return MissingDataError(f"method '{method}' cannot estimate '{canonical}': {chosen.note}", param="method",
                             value=method)
+
+
+def _atom_kind(atom) -> str:
+    """An atom in words for a refusal: element, aromatic or not, ring or chain, its neighbours."""
+    nbs = "".join(sorted(n.GetSymbol() for n in atom.GetNeighbors()))
+    where = ("aromatic " if atom.GetIsAromatic() else "") + ("ring " if atom.IsInRing() else "chain ")
+    double = [b.GetOtherAtom(atom).GetSymbol() for b in atom.GetBonds() if b.GetBondTypeAsDouble() == 2.0]
+    bonded = f", double-bonded to {double[0]}" if double else ""
+    return f"{atom.GetSymbol()}{atom.GetIdx()}: {where}atom{bonded}, bonded to {nbs or 'nothing'}"
 
 
 def _molar_volume(mol, cas: str | None) -> tuple[float | None, str]:
