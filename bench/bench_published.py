@@ -161,7 +161,7 @@ def _sphere_predict(kind: str, s, X, y):
         return f, lambda x: ra(x, f.hsp) < f.r0
     prior = (s.hsp, _prior_sd(s)) if kind == "graded_prior" else (None, None)
     f = fit_graded(X, y, cut=cut, prior=prior[0], prior_sd=prior[1])
-    return f, lambda x: f.predict(np.atleast_2d(x))[0] >= cut
+    return f, lambda x: f.good(np.atleast_2d(x))[0]
 
 
 def sphere_solute(kind: str, s, g, L) -> dict:

@@ -54,6 +54,12 @@ def register(sub):
     p.add_argument("--two-spheres", action="store_true",
                    help="also fit two spheres whose union explains the results (for a solute of two "
                    "populations, e.g. an extract of two families of compounds); good/bad results only")
+    p.add_argument("--graded", action="store_true",
+                   help="numeric scores: fit the scores themselves (they worsen with the squared Hansen distance "
+                   "from the centre), the cut-off giving the radius; the good/bad fit is shown beside it")
+    p.add_argument("--prior", metavar="SMILES",
+                   help="the solute's structure: its estimated HSP are offered as a prior for the centre, and the "
+                   "fit says whether the results agree with them")
     p.add_argument("--save-as", metavar="NAME", help="save the fitted sphere as a solute named NAME (needs --into)")
     p.add_argument("--into", metavar="MY_SOLUTES_CSV",
                    help="your own solutes CSV to append the sphere to (created if missing; other rows kept)")
@@ -68,7 +74,8 @@ def run(args) -> int:
     result = fit(
         path=args.file, good_at_most=args.good_at_most, good_at_least=args.good_at_least, partial=args.partial,
         partial_weight=args.partial_weight, rule=args.rule, lapse=args.lapse, level=args.level,
-        next_tests=args.next_tests, food=args.food, two_spheres=args.two_spheres, save_as=args.save_as,
+        next_tests=args.next_tests, food=args.food, two_spheres=args.two_spheres, graded=args.graded,
+        prior=args.prior, save_as=args.save_as,
         into=args.into, category=args.category, catalog=get_catalog(args),
     )
     if args.json:
@@ -77,6 +84,7 @@ def run(args) -> int:
     _print_sphere(result)
     _print_wrong_side(result)
     _print_two_spheres(result)
+    _print_graded(result)
     _print_next_tests(result)
     saved = result.saved
     if saved:
@@ -131,6 +139,20 @@ def _print_two_spheres(result) -> None:
         [("n", "sphere"), ("dD", "dD", ".2f"), ("dP", "dP", ".2f"), ("dH", "dH", ".2f"), ("r0", "R0", ".2f"),
          ("good", "good liquids in it")],
     )
+
+
+def _print_graded(result) -> None:
+    g, p = result.graded, result.prior
+    if g is not None:
+        r0 = "no liquid reaches the boundary" if g.r0 is None else f"R0 {g.r0:.2f}"
+        print(f"\nGraded fit (scores worsen with Ra^2; boundary of good results {g.cut:g}):")
+        print(f"  centre  dD {g.dD:.2f}   dP {g.dP:.2f}   dH {g.dH:.2f}   {r0}  MPa^0.5")
+        print(f"  fit     {100 * g.r2:.0f} % of the scores' variance explained, residual {g.residual_sd:.2f}")
+        print(f"  note    {g.message}")
+    if p is not None:
+        print(f"\nStructure estimate of {p['smiles']}: dD {p['dD']:.2f}   dP {p['dP']:.2f}   dH {p['dH']:.2f}; "
+              f"Ra {p['ra_to_sphere']:.2f} from the good/bad sphere's centre (RED {p['red']:.2f}, "
+              f"{'inside' if p['inside'] else 'outside'})")
 
 
 def _print_next_tests(result) -> None:

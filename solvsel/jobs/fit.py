@@ -26,8 +26,8 @@ from ..data.provenance import audit_block
 from ..errors import InputError
 from ..rules.cautions import DEFER, solvent_cautions
 from ..science.sphere import (
-    RULES, BenchData, SphereFit, SuggestedTest, TwoSphereFit, bench_liquids, fit_bench, fit_bench_two_spheres,
-    save_solute, solute_row, suggest_tests,
+    RULES, BenchData, GradedFit, SphereFit, SuggestedTest, TwoSphereFit, bench_liquids, fit_bench,
+    fit_bench_two_spheres, fit_graded, save_solute, score_boundary, solute_row, suggest_tests,
 )
 from ..science.target import Target
 from ._base import build_request, catalog_or_default, check_bool, check_choice, check_int, check_number
@@ -79,6 +79,15 @@ class FitRequest:
         propose only liquids used on food (carrier or extraction roles)
     two_spheres : bool
         also fit two spheres whose union explains the results (good/partial/bad only)
+    graded : bool
+        numeric scores only: fit the scores themselves (they fall with the squared Hansen distance from
+        the centre, :func:`~solvsel.science.sphere.fit_graded`), the cut-off giving the radius; the
+        good/bad fit is kept beside it and the target is the graded sphere
+    prior : str, optional
+        a SMILES whose structure estimate is offered as a prior for the centre: the graded fit is pulled
+        toward it by the estimate's uncertainty, and the result says whether the results agree with it
+        (a likelihood-ratio test at 5 %); with a good/bad fit, only the distance and whether the
+        estimate lies inside the sphere are given
     save_as, into : str, optional
         save the sphere as a solute named ``save_as`` in the user's solutes CSV ``into``
         (created if missing, other rows kept); both or neither
@@ -97,6 +106,8 @@ class FitRequest:
     next_tests: int = 5
     food: bool = False
     two_spheres: bool = False
+    graded: bool = False
+    prior: str | None = None
     save_as: str | None = None
     into: str | None = None
     category: str = "other"
@@ -126,6 +137,16 @@ class FitRequest:
         put("next_tests", check_int(self.next_tests, "next_tests", lo=0))
         put("food", check_bool(self.food, "food"))
         put("two_spheres", check_bool(self.two_spheres, "two_spheres"))
+        put("graded", check_bool(self.graded, "graded"))
+        if self.graded and self.good_at_most is None and self.good_at_least is None:
+            raise InputError("a graded fit needs numeric scores and the cut-off of a good result: good at most N "
+                             "(low is best) or good at least N (high is best)", param="graded", value=True,
+                             expected="good_at_most or good_at_least with numeric scores")
+        if self.prior is not None:
+            if not isinstance(self.prior, str) or not self.prior.strip():
+                raise InputError("expected the SMILES of the solute for the prior", param="prior", value=self.prior,
+                                 expected="a SMILES string")
+            put("prior", self.prior.strip())
         put("category", check_choice(self.category, "category", SOLUTE_CATEGORIES))
         self._check_saving(put)
 
@@ -157,6 +178,12 @@ class FitResult:
         untested liquids worth testing next (a heuristic)
     two : TwoSphereFit or None
         the two-sphere fit, when asked
+    graded : GradedFit or None
+        the fit of the scores themselves, when asked
+    prior : dict or None
+        the structure estimate offered as a prior and what the data say of it: ``smiles``, ``dD``, ``dP``,
+        ``dH`` [MPa^0.5], ``ra_to_sphere`` (from the good/bad sphere's centre) [MPa^0.5], ``red``,
+        ``inside``, and with a graded fit ``ra_to_graded``, ``lr``, ``p_value``, ``agree``
     saved : dict or None
         ``{"name", "file", "action"}`` when the sphere was saved ("created" or "appended")
     cautions : tuple of str
@@ -168,6 +195,8 @@ class FitResult:
     bench: BenchData
     suggestions: tuple[SuggestedTest, ...] = ()
     two: TwoSphereFit | None = None
+    graded: GradedFit | None = None
+    prior: dict | None = None
     saved: dict | None = None
     cautions: tuple[str, ...] = ()
     #: version and tables' checksum of the answer (no legal rule is applied to a fit)
@@ -178,6 +207,11 @@ class FitResult:
         """The fitted sphere as a target for ranking and blends (basis "fitted")."""
         f = self.sphere
         name = self.request.save_as or f"bench fit ({Path(self.bench.path).name})"
+        g = self.graded
+        if g is not None and g.r0 is not None:
+            note = (f"sphere fitted to the {g.n} graded bench results (scores worsen with Ra^2); "
+                    f"{100 * g.r2:.0f} % of their variance explained")
+            return Target(name, g.dD, g.dP, g.dH, g.r0, "fitted", None, note)
         note = f"sphere fitted to {f.n_liquids} bench results; fit {f.fit:.2f}"
         if not f.success:
             note += f"; {f.message}"
@@ -220,6 +254,8 @@ class FitResult:
         out["saved"] = None if self.saved is None else dict(self.saved)
         if self.two is not None:
             out["two_spheres"] = self.two.to_dict()
+        out["graded"] = None if self.graded is None else self.graded.to_dict()
+        out["prior"] = None if self.prior is None else dict(self.prior)
         out["cautions"] = list(self.cautions)
         out["audit"] = self.audit
         return out
@@ -246,14 +282,66 @@ def fit(request: FitRequest | None = None, *, catalog: Catalog | None = None, **
     sphere = fit_bench(bench, partial=q.partial, good_at_most=q.good_at_most, good_at_least=q.good_at_least,
                        rule=q.rule, lapse=q.lapse, level=q.level)
     two = fit_bench_two_spheres(bench, partial=q.partial, rule=q.rule, lapse=q.lapse) if q.two_spheres else None
+    estimate = _prior_estimate(q.prior) if q.prior is not None else None
+    graded = _graded(q, bench, estimate) if q.graded else None
     pool = _next_test_pool(cat, q.food, read.keys) if q.next_tests else []
     suggestions = _suggest(sphere, pool, q.next_tests)
     saved = None
     if q.save_as is not None:
         row = solute_row(sphere, q.save_as, source=f"bench fit of {bench.path}", category=q.category)
         saved = {"name": row["name"], "file": q.into, "action": save_solute(row, q.into)}
-    return FitResult(q, sphere, bench, tuple(suggestions), two, saved, _cautions(sphere, suggestions, pool, cat),
-                     audit_block((), cat.tables_dir))
+    return FitResult(q, sphere, bench, tuple(suggestions), two, graded, _prior_summary(q.prior, estimate, sphere, graded),
+                     saved, _cautions(sphere, suggestions, pool, cat), audit_block((), cat.tables_dir))
+
+
+def _prior_estimate(smiles: str):
+    """The structure estimate of the prior's SMILES (an error about it names the ``prior`` field)."""
+    from ..errors import SolvselError
+    from ..science.structure import estimate
+
+    try:
+        return estimate(smiles, properties=False)
+    except SolvselError as exc:  # the SMILES is this request's prior field
+        exc.param, exc.value = "prior", smiles
+        raise
+
+
+def _graded(q: FitRequest, bench: BenchData, est) -> GradedFit:
+    """The graded fit of a numbers file (the cut-off orients the scale and sets the radius)."""
+    if bench.scale != "numbers":
+        raise InputError("a graded fit takes numeric scores; this file has good/partial/bad", param="graded",
+                         value=True, expected="a file of numeric scores")
+    import numpy as np
+
+    scores = np.array([r.score for r in bench.rows])
+    low_best = q.good_at_most is not None
+    prior = prior_sd = None
+    if est is not None:
+        prior = (est.dD, est.dP, est.dH)
+        u = est.uncertainty or {}
+        if all(k in u for k in ("dD", "dP", "dH")):  # mean absolute error -> standard deviation (x 1.25)
+            prior_sd = tuple(1.25 * float(u[k]) for k in ("dD", "dP", "dH"))
+    boundary, _ = score_boundary(scores, q.good_at_most, q.good_at_least)
+    return fit_graded(bench.hsp, scores, cut=boundary, higher_is_better=not low_best, prior=prior, prior_sd=prior_sd)
+
+
+def _prior_summary(smiles: str | None, est, sphere: SphereFit, graded: GradedFit | None) -> dict | None:
+    """Where the structure estimate lies against the fitted spheres (and the graded fit's test of it)."""
+    if est is None:
+        return None
+    import numpy as np
+
+    from ..science.hansen import ra
+
+    h = np.array([est.dD, est.dP, est.dH])
+    d = float(ra(h, sphere.hsp))
+    out = {"smiles": smiles, "dD": float(est.dD), "dP": float(est.dP), "dH": float(est.dH),
+           "uncertainty": dict(est.uncertainty or {}), "ra_to_sphere": d, "red": d / sphere.r0,
+           "inside": bool(d < sphere.r0)}
+    if graded is not None and graded.prior is not None:
+        out.update(ra_to_graded=float(ra(h, np.array(graded.free))), lr=graded.prior["lr"],
+                   p_value=graded.prior["p_value"], agree=graded.prior["agree"])
+    return out
 
 
 def _next_test_pool(cat: Catalog, food: bool, tested: frozenset) -> list:

@@ -84,6 +84,7 @@ __all__ = [
     "suggest_tests",
     "GradedFit",
     "fit_graded",
+    "score_boundary",
 ]
 
 #: Search bounds of the centre [MPa^0.5]: (dD, dP, dH) low/high.  They span
@@ -309,18 +310,26 @@ def grading_weights(scores, good_at_most: float | None = None, good_at_least: fl
             "graded scores need exactly one cut-off: good at most N (low is best, e.g. 1-6) "
             "or good at least N (high is best, e.g. 0-5)", param="good_at_least" if good_at_most is not None
             else "good_at_most", expected="one cut-off")
-    uniq = np.unique(s)
-    step = float(np.min(np.diff(uniq))) if uniq.size > 1 else 1.0
-    step = min(step, 1.0)
-    if good_at_most is not None:
-        good = s <= good_at_most
-        mid = float(good_at_most) + step / 2
-    else:
-        good = s >= good_at_least
-        mid = float(good_at_least) - step / 2
+    mid, step = score_boundary(s, good_at_most, good_at_least)
+    good = s <= good_at_most if good_at_most is not None else s >= good_at_least
     w = np.abs(s - mid)
     w = np.maximum(w, step / 2)
     return good, w / w.mean()
+
+
+def score_boundary(scores, good_at_most: float | None = None, good_at_least: float | None = None):
+    """The score halfway between a scale's cut-off and the next score, and the scale's step.
+
+    The step is the smallest gap between distinct scores, at most 1.
+
+    >>> score_boundary([1, 2, 3, 6], good_at_most=2)
+    (2.5, 1.0)
+    """
+    uniq = np.unique(np.asarray(scores, dtype=float))
+    step = min(float(np.min(np.diff(uniq))) if uniq.size > 1 else 1.0, 1.0)
+    if good_at_most is not None:
+        return float(good_at_most) + step / 2, step
+    return float(good_at_least) - step / 2, step
 
 
 def _prepare(hsp, good, weights, names, good_at_most, good_at_least):
@@ -1466,11 +1475,12 @@ def save_solute(row: dict, path, tables_dir=None) -> str:
 class GradedFit:
     r"""A sphere fitted to graded results (a score or a measured solubility per liquid).
 
-    The scores fall with the squared Hansen distance from the centre, as the regular-solution term
-    of the activity coefficient does (:math:`\ln\gamma_2 \propto V_2 R_a^2/4RT`, Hansen 2007, ch. 2):
-    ``score = intercept - slope * Ra^2``, slope >= 0, fitted by least squares over the centre (the
-    intercept and slope are exact for each centre).  The radius is where the fitted score crosses
-    the good cut-off.
+    The scores get worse with the squared Hansen distance from the centre, as the regular-solution
+    term of the activity coefficient does (:math:`\ln\gamma_2 \propto V_2 R_a^2/4RT`, Hansen 2007,
+    ch. 2): ``score = intercept + slope * Ra^2`` with the slope's sign fixed by the scale (negative
+    where high is best), fitted by least squares over the centre (the intercept and slope are exact
+    for each centre).  The radius is where the fitted score crosses the boundary of good results.
+    Scores, intercept, slope and boundary are in the user's units.
 
     Attributes
     ----------
@@ -1481,9 +1491,11 @@ class GradedFit:
     intercept : float
         fitted score at the centre [score units]
     slope : float
-        fall of the score per unit of Ra^2 [score units / MPa]
+        change of the score per unit of Ra^2 [score units / MPa]
     cut : float
-        the score separating good from bad (higher is better after orientation) [score units]
+        the score at the boundary between good and bad results [score units]
+    higher_is_better : bool
+        the orientation of the scale
     residual_sd : float
         root mean square of the residuals [score units]
     r2 : float
@@ -1509,6 +1521,7 @@ class GradedFit:
     intercept: float
     slope: float
     cut: float
+    higher_is_better: bool
     residual_sd: float
     r2: float
     n: int
@@ -1523,12 +1536,17 @@ class GradedFit:
 
     def predict(self, hsp) -> np.ndarray:
         """Fitted score of liquids at ``hsp`` (n, 3) [score units]."""
-        return self.intercept - self.slope * ra(as_hsp(hsp), self.hsp) ** 2
+        return self.intercept + self.slope * ra(as_hsp(hsp), self.hsp) ** 2
+
+    def good(self, hsp) -> np.ndarray:
+        """Whether the fitted score of liquids at ``hsp`` (n, 3) is on the good side of the boundary."""
+        p = self.predict(hsp)
+        return p >= self.cut if self.higher_is_better else p <= self.cut
 
     def to_dict(self) -> dict:
         return {
             "dD": self.dD, "dP": self.dP, "dH": self.dH, "r0": self.r0, "intercept": self.intercept,
-            "slope": self.slope, "cut": self.cut, "residual_sd": self.residual_sd, "r2": self.r2, "n": self.n,
+            "slope": self.slope, "cut": self.cut, "higher_is_better": self.higher_is_better, "residual_sd": self.residual_sd, "r2": self.r2, "n": self.n,
             "at_bound": list(self.at_bound), "prior": None if self.prior is None else dict(self.prior),
             "free": list(self.free), "message": self.message,
         }
@@ -1584,7 +1602,8 @@ def fit_graded(hsp, scores, *, cut: float, higher_is_better: bool = True, prior=
     scores : array_like, shape (n,)
         one score per liquid: a measured solubility (log10 of the mole fraction, say) or a bench score
     cut : float
-        the score at which good begins (the radius is where the fitted score crosses it)
+        the score at the boundary between good and bad (the radius is where the fitted score crosses
+        it; :func:`score_boundary` gives it for a scale's cut-off)
     higher_is_better : bool
         False for scales where low is best (1 dissolved .. 6 no effect): the scores are negated
     prior : array_like (3,), optional
@@ -1637,9 +1656,15 @@ def fit_graded(hsp, scores, *, cut: float, higher_is_better: bool = True, prior=
         msgs.append("centre on the search bound of " + ", ".join(at_bound)
                     + ": the scores keep rising that way, the data do not bound the centre there")
     if slope == 0:
-        msgs.append("the scores do not fall with distance from any centre: no sphere describes them")
+        msgs.append("the scores do not worsen with distance from any centre: no sphere describes them")
+    if prior_info is not None:
+        free_bound = [_AXES[k] for k in range(3) if min(abs(free[k] - lo[k]), abs(free[k] - hi[k])) < 1e-3 * SCALE[k]]
+        msgs.append(("the results agree with the structure estimate" if prior_info["agree"] else
+                     "the results disagree with the structure estimate") + f" (p = {prior_info['p_value']:.2g})"
+                    + (f"; without it the centre runs to the search bound of {', '.join(free_bound)}" if free_bound else ""))
     return GradedFit(
-        float(centre[0]), float(centre[1]), float(centre[2]), r0, a, slope, cut, math.sqrt(sse / len(y)),
+        float(centre[0]), float(centre[1]), float(centre[2]), r0, sign * a, -sign * slope, sign * cut,
+        higher_is_better, math.sqrt(sse / len(y)),
         1.0 - sse / float(np.sum((y - y.mean()) ** 2)), len(y), at_bound, prior_info,
         tuple(float(v) for v in free / SCALE), "; ".join(msgs) or "graded fit")
 
