@@ -321,6 +321,11 @@ def test_pair_matrix_is_kept_on_disk_and_read_back(cat, tmp_path, monkeypatch):
     files[0].write_bytes(b"not a matrix")
     M._pair_matrix_cached.cache_clear()
     np.testing.assert_array_equal(M.pair_matrix(cat, names).limit, fresh.limit)
+    # only the newest DISK_CACHE_KEEP matrices stay
+    monkeypatch.setattr(M, "DISK_CACHE_KEEP", 1)
+    M._pair_matrix_cached.cache_clear()
+    M.pair_matrix(cat, names, temp_C=30.0)
+    assert len(list(tmp_path.glob("pair_matrix_*.npz"))) == 1
     # an empty SOLVSEL_CACHE_DIR turns the disk cache off
     monkeypatch.setenv("SOLVSEL_CACHE_DIR", "")
     assert M.cache_dir() is None

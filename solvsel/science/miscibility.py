@@ -787,12 +787,19 @@ def _matrix_from_disk(path: Path, names: tuple[str, ...], temp_C: float) -> Pair
     return PairMatrix(names, *arrays, temp_C)
 
 
+#: Pair matrices kept in the cache folder (the most recently written; older ones are deleted).
+DISK_CACHE_KEEP = 16
+
+
 def _matrix_to_disk(path: Path, m: PairMatrix) -> None:
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
         tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp.npz")
         np.savez(tmp, **{k: getattr(m, k) for k in _MATRIX_ARRAYS})
         os.replace(tmp, path)
+        kept = sorted(path.parent.glob("pair_matrix_*.npz"), key=lambda p: p.stat().st_mtime, reverse=True)
+        for old in kept[DISK_CACHE_KEEP:]:
+            old.unlink(missing_ok=True)
     except OSError:  # a read-only or full cache folder only costs the time next run
         return
 
