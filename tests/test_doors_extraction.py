@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import json
 
-import pytest
 
 from solvsel.cli import main
 from solvsel.jobs.extraction import extraction

@@ -25,7 +25,8 @@ def register(sub):
     add_target_arguments(p)
     p.add_argument("--reject", metavar="NAMES",
                    help="solutes to keep out (comma-separated; default chlorophyll a, cetyl palmitate, sucrose)")
-    p.add_argument("--liquids", metavar="A,B", help="the solvent pair; the strength is %% v/v of A (default ethanol,water)")
+    p.add_argument("--liquids", metavar="A,B",
+                   help="the solvent pair; the strength is %% v/v of A (default ethanol,water)")
     p.add_argument("--strengths", metavar="LO:HI:STEP", help="strengths in %% v/v of A (default 40:100:5; or a list)")
     p.add_argument("--temps", metavar="LO:HI:STEP", help="temperatures in C (default -40:40:5; or a list)")
     p.add_argument("--vacuum", type=float, metavar="KPA", help="absolute pressure when stripping, kPa (default 10)")
@@ -64,7 +65,8 @@ def _print_grid(result) -> None:
             v = result.grid[key][i][j]
             row[f"t{j}"] = "-" if not result.grid["liquid"][i][j] else ("n/a" if v is None else f"{v:.3g}")
         rows.append(row)
-    print_table(rows, [("s", "%v/v", "g"), ("fp", "freezes C", ".0f")] + [(f"t{j}", f"{t:g}") for j, t in enumerate(temps)])
+    cols = [("s", "%v/v", "g"), ("fp", "freezes C", ".0f")] + [(f"t{j}", f"{t:g}") for j, t in enumerate(temps)]
+    print_table(rows, cols)
 
 
 def run(args) -> int:

@@ -37,11 +37,13 @@ import numpy as np
 from ..data.catalog import number_or_none as _num
 from ..errors import MissingDataError, OutOfRangeError
 from . import hansen
+from .miscibility import _Ref
 
 __all__ = [
     "ETHANOL_CAS", "WATER_CAS", "HSP_BASIS", "NRTL_ETHANOL_WATER", "WALDEN_DSFUS_J_MOL_K",
-    "Pair", "pair_of", "pair_at", "mixture_at", "nrtl_ln_gamma", "psat_kPa", "freezing_point_C", "viscosity_mPa_s",
-    "fusion_of", "solubility_g_L", "antoine", "residue_bound", "bubble_point_C", "azeotrope",
+    "Pair", "pair_of", "pair_at", "mixture_at", "liquid_hsp_at", "nrtl_ln_gamma", "antoine", "psat_kPa",
+    "freezing_point_C", "viscosity_mPa_s", "table_sources", "fusion_of", "solubility_g_L", "activity_model",
+    "bubble_pressure_kPa", "bubble_point_C", "azeotrope", "residue_bound",
 ]
 
 ETHANOL_CAS, WATER_CAS = "64-17-5", "7732-18-5"
@@ -97,7 +99,7 @@ def pair_of(a, b) -> Pair:
     return Pair(a, b)
 
 
-def _liquid_hsp(rec, temp_C: float) -> tuple[np.ndarray, float]:
+def liquid_hsp_at(rec, temp_C: float) -> tuple[np.ndarray, float]:
     """HSP [MPa^0.5] and molar volume [cm^3/mol] of one liquid at ``temp_C`` inside a mixture (no check of
     its own melting point: the mixture's liquid range is judged separately)."""
     h = np.array([rec.dD, rec.dP, rec.dH], dtype=float)
@@ -110,7 +112,7 @@ def _liquid_hsp(rec, temp_C: float) -> tuple[np.ndarray, float]:
 
 def pair_at(p: Pair, temp_C: float) -> tuple:
     """HSP and molar volumes of both liquids at ``temp_C``: ``((ha, va), (hb, vb))`` (for :func:`mixture_at`)."""
-    return _liquid_hsp(p.a, temp_C), _liquid_hsp(p.b, temp_C)
+    return liquid_hsp_at(p.a, temp_C), liquid_hsp_at(p.b, temp_C)
 
 
 def mixture_at(p: Pair, phi_a: float, temp_C: float, liquids=None) -> tuple[np.ndarray, float, float]:
@@ -140,20 +142,6 @@ def _ew_rows(cat_id: int, cat_ref) -> dict:
             "fp_source": tuple(sorted(set(";".join(fp["source"]).split(";")))),
             "vis_T": np.array(temps), "vis_w": np.array(pcts), "vis": grid,
             "vis_source": tuple(sorted(set(";".join(vis["source"]).split(";"))))}
-
-
-class _Ref:
-    def __init__(self, cat):
-        self.cat = cat
-
-    def __call__(self):
-        return self.cat
-
-    def __hash__(self):
-        return id(self.cat)
-
-    def __eq__(self, other):
-        return isinstance(other, _Ref) and other.cat is self.cat
 
 
 def _ew(cat) -> dict:
@@ -268,7 +256,7 @@ def nrtl_ln_gamma(x1, T_K, b12: float, b21: float, alpha: float):
     return ln1, ln2
 
 
-def nrtl_ln_gamma_b12(x1, T_K):
+def nrtl_ln_gamma_ethanol_water(x1, T_K):
     """NRTL ln gammas of ethanol (1) and water (2) with the published parameters."""
     p = NRTL_ETHANOL_WATER
     return nrtl_ln_gamma(x1, T_K, p["b12_K"], p["b21_K"], p["alpha"])
@@ -295,18 +283,15 @@ def psat_kPa(cas: str, T_K: float) -> float:
 
 def _ln_gammas(p: Pair, x1: float, T_K: float) -> tuple[float, float]:
     if p.ethanol_water:
-        g1, g2 = nrtl_ln_gamma_b12(x1, T_K)
+        g1, g2 = nrtl_ln_gamma_ethanol_water(x1, T_K)
         return float(g1), float(g2)
-    # Flory-Huggins from HSP (the project's model for pairs without published parameters)
-    ha, va = _liquid_hsp(p.a, T_K - 273.15)
-    hb, vb = _liquid_hsp(p.b, T_K - 273.15)
+    # Flory-Huggins from HSP (the project's model for pairs without published parameters), each liquid
+    # taken as the "solute" in the other
+    (ha, va), (hb, vb) = pair_at(p, T_K - 273.15)
     x1 = min(max(x1, 1e-12), 1 - 1e-12)
-    phi1 = x1 * va / (x1 * va + (1 - x1) * vb)
-    phi2 = 1 - phi1
-    chi = float(hansen.chi_flory_huggins(ha, hb, va, T_K - 273.15))
-    ln1 = math.log(phi1 / x1) + 1 - phi1 / x1 + chi * phi2 ** 2
-    ln2 = math.log(phi2 / (1 - x1)) + 1 - phi2 / (1 - x1) + chi * vb / va * phi1 ** 2
-    return ln1, ln2
+    ln1 = hansen.ln_gamma_hansen(x1, ha, va, hb, vb, T_K - 273.15)
+    ln2 = hansen.ln_gamma_hansen(1.0 - x1, hb, vb, ha, va, T_K - 273.15)
+    return float(ln1), float(ln2)
 
 
 def activity_model(p: Pair) -> tuple[str, str]:
@@ -375,10 +360,8 @@ def residue_bound(rec, extract_hsp, extract_vm: float, extract_mw: float, temp_C
     + \chi`, :math:`\chi = V_1 R_a^2 / 4RT`); as a mass fraction with the extract's molar mass.  An
     equilibrium bound: drying time, the matrix and the residue the rules count govern what is really left.
     """
-    h, v1 = _liquid_hsp(rec, temp_C)
-    chi = float(hansen.chi_flory_huggins(h, np.asarray(extract_hsp, dtype=float), v1, temp_C))
-    r = v1 / float(extract_vm)
-    ln_g = math.log(r) + 1.0 - r + chi
+    h, v1 = liquid_hsp_at(rec, temp_C)
+    ln_g = float(hansen.ln_gamma_hansen(0.0, h, v1, np.asarray(extract_hsp, dtype=float), extract_vm, temp_C))
     x = min(1.0, pressure_kPa / (math.exp(ln_g) * psat_kPa(rec.cas, temp_C + 273.15)))
     m1 = x * float(rec.mw_g_mol)
     return m1 / (m1 + (1.0 - x) * float(extract_mw))

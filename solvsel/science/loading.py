@@ -27,7 +27,7 @@ import numpy as np
 
 from ..data.catalog import number_or_none as _num
 from . import hansen
-from .extraction import fusion_of
+from .extraction import fusion_of, liquid_hsp_at
 from .miscibility import blend_phase, pair
 
 __all__ = ["MARGIN", "LoadPoint", "LoadCheck", "storage_temperatures", "check_load"]
@@ -155,9 +155,7 @@ def _solid_point(solute, hsp, vm: float, mw: float, temp_C: float) -> LoadPoint:
 
 def _carrier_at(recs, fractions, temp_C: float):
     """Volume-mixed HSP, mole-average molar volume and molar mass of the carrier at ``temp_C``."""
-    from .extraction import _liquid_hsp
-
-    hs, vs = zip(*(_liquid_hsp(r, temp_C) for r in recs))
+    hs, vs = zip(*(liquid_hsp_at(r, temp_C) for r in recs))
     hsp = np.sum([f * h for f, h in zip(fractions, hs)], axis=0)
     moles = np.array([f / v for f, v in zip(fractions, vs)])
     x = moles / moles.sum()
