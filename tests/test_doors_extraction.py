@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import json
 
-
 from solvsel.cli import main
 from solvsel.jobs.extraction import extraction
 
