@@ -21,6 +21,11 @@ CASES = [
     dict(liquids=("water", "ethyl acetate")),
     dict(liquids=("water", "ethanol", "d-limonene"), fractions=(0.3, 0.6, 0.1)),
     dict(liquids=("d-limonene", "water"), bridge=True, food=True),
+    # a predicted split named both ways round (the window flips, nothing else changes), and a
+    # decisive predicted "no" (both predicted solubilities under the stated level)
+    dict(liquids=("sunflower oil", "ethylene glycol")),
+    dict(liquids=("ethylene glycol", "sunflower oil")),
+    dict(liquids=("propylene glycol", "olive oil")),
 ]
 
 
@@ -37,7 +42,9 @@ def _argv(case):
 
 def _essentials(d):
     out = {"one_phase": d["one_phase"], "basis": d["basis"],
-           "pairs": [(tuple(p["liquids"]), p["one_phase"], p["basis"], p["chi"]) for p in d["pairs"]]}
+           "pairs": [(tuple(p["liquids"]), p["one_phase"], p["basis"], p["chi"],
+                      None if not p["window"] else (p["window"].get("b_in_a_max"), p["window"].get("a_in_b_max")))
+                     for p in d["pairs"]]}
     if "blend" in d:
         out["blend"] = (d["blend"]["one_phase"], d["blend"]["reason"])
     if "bridges" in d:
@@ -107,3 +114,12 @@ def test_the_entry_point_gives_the_same_json():
     argv = [str(exe)] if exe.exists() else [sys.executable, "-m", "solvsel"]
     out = subprocess.run(argv + _argv(CASES[1]), capture_output=True, text=True, check=True)
     assert _essentials(json.loads(out.stdout)) == _essentials(solvsel.miscible(**CASES[1]).to_dict())
+
+
+def test_the_window_of_a_pair_named_both_ways_round():
+    ab = solvsel.miscible(liquids=("sunflower oil", "ethylene glycol")).to_dict()
+    ba = solvsel.miscible(liquids=("ethylene glycol", "sunflower oil")).to_dict()
+    assert ab["one_phase"] == ba["one_phase"] == "partial" and ab["window"] and ba["window"]
+    assert ab["window"]["b_in_a_max"] == ba["window"]["a_in_b_max"]
+    assert ab["window"]["a_in_b_max"] == ba["window"]["b_in_a_max"]
+    assert solvsel.miscible(liquids=("propylene glycol", "olive oil")).one_phase == "no"
