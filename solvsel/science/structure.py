@@ -1516,22 +1516,28 @@ def _keto_form(mol):
 def _refusal(mol, canonical: str, method: str, chosen: MethodEstimate) -> MissingDataError:
     """The error of a method that cannot estimate the molecule (atoms without a group, data missing)."""
     if chosen.uncovered_atoms:
-        what = ", ".join(f"{mol.GetAtomWithIdx(i).GetSymbol()}{i}" for i in chosen.uncovered_atoms)
-        kinds = sorted({_atom_kind(mol.GetAtomWithIdx(i)) for i in chosen.uncovered_atoms})
+        what = ", ".join(f"{mol.GetAtomWithIdx(i).GetSymbol()}{i} ({_atom_kind(mol.GetAtomWithIdx(i))})"
+                         for i in chosen.uncovered_atoms)
         return MissingDataError(
-            f"method '{method}' has no group for atom(s) {what} ({'; '.join(kinds)}) of '{canonical}'; the estimate "
-            "is refused rather than guessed (try another method)", param="method", value=method)
+            f"method '{method}' has no group for atom(s) {what} of '{canonical}'; the estimate is refused "
+            "rather than guessed (try another method)", param="method", value=method)
     return MissingDataError(f"method '{method}' cannot estimate '{canonical}': {chosen.note}", param="method",
                             value=method)
 
 
 def _atom_kind(atom) -> str:
-    """An atom in words for a refusal: element, aromatic or not, ring or chain, its neighbours."""
-    nbs = "".join(sorted(n.GetSymbol() for n in atom.GetNeighbors()))
+    """An atom in words for a refusal: aromatic or not, ring or chain, its bonds.
+
+    >>> _atom_kind(parse_smiles("CP(C)(C)=O")[0].GetAtomWithIdx(4))
+    'chain atom, double-bonded to P'
+    """
     where = ("aromatic " if atom.GetIsAromatic() else "") + ("ring " if atom.IsInRing() else "chain ")
     double = [b.GetOtherAtom(atom).GetSymbol() for b in atom.GetBonds() if b.GetBondTypeAsDouble() == 2.0]
-    bonded = f", double-bonded to {double[0]}" if double else ""
-    return f"{atom.GetSymbol()}{atom.GetIdx()}: {where}atom{bonded}, bonded to {nbs or 'nothing'}"
+    single = sorted(b.GetOtherAtom(atom).GetSymbol() for b in atom.GetBonds() if b.GetBondTypeAsDouble() != 2.0)
+    parts = [f"double-bonded to {', '.join(double)}"] if double else []
+    if single:
+        parts.append(f"bonded to {', '.join(single)}")
+    return ", ".join([where + "atom"] + parts)
 
 
 def _molar_volume(mol, cas: str | None) -> tuple[float | None, str]:
