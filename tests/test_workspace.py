@@ -350,7 +350,22 @@ def test_a_report_in_a_workspace_gives_the_command_its_defaults(tmp_path, capsys
     data = json.loads(out.with_suffix(".json").read_text(encoding="utf-8"))
     assert data["target"]["name"] == "cannabidiol" and data["temp_C"] == 30.0
     assert open_workspace(path).history[-1]["command"] == "report"
-    # given after the report's file name it would reach only the command reported on: refused, said why
-    before = path.read_bytes()
-    assert main(["report", str(tmp_path / "s.md"), "rank", "--workspace", str(path), "--top", "2"]) == 2
-    assert "--workspace: " in capsys.readouterr().err and path.read_bytes() == before
+    # given among the options of the command reported on, the same
+    out = tmp_path / "s.md"
+    assert main(["report", str(out), "rank", "--workspace", str(path), "--top", "2"]) == 0
+    assert json.loads(out.with_suffix(".json").read_text(encoding="utf-8"))["temp_C"] == 30.0
+    assert len(open_workspace(path).history) == 2
+
+
+def test_a_workspace_default_that_the_command_refuses_is_said_to_come_from_the_workspace(tmp_path, capsys):
+    path = tmp_path / "work.json"
+    save_workspace(Workspace(constraints={"temp_C": 500.0}), path)
+    assert main(["--workspace", str(path), "miscible", "water", "ethanol", "--json"]) == 2
+    err = json.loads(capsys.readouterr().out)["error"]
+    assert err["param"] == "--temp" and f"a default of the workspace {path}" in err["message"]
+    # a value needed by the command (dose needs the jurisdiction) is supplied by the workspace
+    save_workspace(Workspace(constraints={"jurisdiction": "EU"}), path)
+    assert main(["--workspace", str(path), "dose", "--formula", "propylene glycol=90,vanillin=10", "--dose",
+                 "0.15%", "--category", "beverages", "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)["formula"]
+    assert open_workspace(path).history[-1]["request"]["jurisdiction"] == "EU"

@@ -163,19 +163,16 @@ def main(argv: list[str] | None = None) -> int:
 
 def _run(argv: list[str]) -> int:
     """Run ``argv``; with ``--workspace FILE`` (before or after the command) in the workspace."""
-    if not any(a == "--workspace" or a.startswith("--workspace=") for a in argv):
-        return execute(argv)
-    parser = build_parser()
-    args = parser.parse_known_args(argv)[0]
-    if not getattr(args, "workspace", None) or args.command is None:
-        return execute(argv)
-    from ._workspace import run_in_workspace
+    from ._workspace import run_in_workspace, workspace_of
 
+    path = workspace_of(argv)
+    if path is None:
+        return execute(argv)
     try:
-        return run_in_workspace(parser, args, argv, execute)
+        return run_in_workspace(build_parser(), path, argv, execute)
     except SolvselError as exc:
         if getattr(exc, "cli_command", None) is None:
-            exc.cli_command = args.command
+            exc.cli_command = next((a for a in argv if a in COMMANDS), None)
         raise
 
 

@@ -82,26 +82,73 @@ def with_defaults(tokens: list[str], sub: argparse.ArgumentParser, names: dict, 
     return out
 
 
-def _with_workspace(parser, args, argv: list[str], ws, folder: str) -> list[str]:
+#: Options of the command line before the command (or of ``report`` before its file name) that take a value.
+_VALUED = ("--own-solvents", "--own-solutes", "--workspace", "--title")
+
+
+def workspace_of(argv: list[str]) -> str | None:
+    """The file given with ``--workspace`` anywhere in ``argv`` (the last one), else None.
+
+    >>> workspace_of(["rank", "--workspace", "w.json"]), workspace_of(["--workspace=a.json", "table", "x"])
+    ('w.json', 'a.json')
+    """
+    found = None
+    for i, a in enumerate(argv):
+        if a == "--workspace" and i + 1 < len(argv):
+            found = argv[i + 1]
+        elif a.startswith("--workspace="):
+            found = a.split("=", 1)[1]
+    return found
+
+
+def _positional(argv: list[str], start: int) -> int | None:
+    """Index of the first token from ``start`` that is not an option or an option's value."""
+    i = start
+    while i < len(argv):
+        a = argv[i]
+        if a in _VALUED:
+            i += 2
+        elif a.startswith("-") and a != "-":
+            i += 1
+        else:
+            return i
+    return None
+
+
+def command_at(argv: list[str]) -> int | None:
+    """Index in ``argv`` of the command whose options the workspace fills: the subcommand, or for
+    ``report`` the command it reports on (after the report's file name); None where there is none."""
+    from . import COMMANDS
+
+    i = _positional(argv, 0)
+    if i is None or argv[i] not in COMMANDS:
+        return None
+    if argv[i] == "report":
+        out = _positional(argv, i + 1)
+        inner = None if out is None else _positional(argv, out + 1)
+        return inner if inner is not None and argv[inner] in COMMANDS and argv[inner] != "report" else None
+    return i
+
+
+def _without_workspace(argv: list[str]) -> list[str]:
+    return [a for i, a in enumerate(argv) if not (a == "--workspace" or a.startswith("--workspace=")
+                                                  or (i > 0 and argv[i - 1] == "--workspace"))]
+
+
+def _with_workspace(parser, argv: list[str], ws, folder: str) -> tuple[list[str], dict[str, str]]:
     """``argv`` with the workspace's defaults added after the command (for ``report``, after the command it
-    reports on) and its own rows as overlay files in ``folder`` at the front."""
+    reports on) and its own rows as overlay files in ``folder`` at the front; and the options added (option
+    -> the request field they came from)."""
     from ..data.workspace import defaults_of, own_tables_csv
 
-    command, start = args.command, argv.index(args.command)
-    if command == "report":
-        from . import COMMANDS
-        from .report import split_args
-
-        inner = (split_args(args)[2] or [None])[0]
-        if inner not in COMMANDS:
-            return argv
-        command, start = inner, argv.index(inner, argv.index(args.out, start + 1) + 1)
-    module = sys.modules.get(f"{__package__}.{command}")
-    names = getattr(module, "OPTION_NAMES", {})
-    sub = subparser(parser, command)
-    head, tail = argv[: start + 1], argv[start + 1:]
     own = [f"--own-{table}={p}" for table, paths in own_tables_csv(ws, folder).items() for p in paths]
-    return own + head + with_defaults(tail, sub, names, dict(defaults_of(ws))) + tail
+    at = command_at(argv)
+    if at is None:
+        return own + argv, {}
+    module = sys.modules.get(f"{__package__}.{argv[at]}")
+    names = getattr(module, "OPTION_NAMES", {})
+    added = with_defaults(argv[at + 1:], subparser(parser, argv[at]), names, dict(defaults_of(ws)))
+    return own + argv[: at + 1] + added + argv[at + 1:], {t.split("=", 1)[0]: argv[at] for t in added}
 
 
 def _capture(execute: Callable[[list[str]], int], argv: list[str]) -> tuple[int, str]:
@@ -127,23 +174,25 @@ def _result(execute, parser, args, argv: list[str]) -> tuple[int, Any]:
         return rc, None
 
 
-def run_in_workspace(parser: argparse.ArgumentParser, args, argv: list[str],
+def run_in_workspace(parser: argparse.ArgumentParser, path: str, argv: list[str],
                      execute: Callable[[list[str]], int]) -> int:
-    """Run the command of ``argv`` with the defaults of the workspace ``args.workspace`` and record it there."""
+    """Run the command of ``argv`` with the defaults of the workspace ``path`` and record it there."""
     from ..data.catalog import check_write_target
     from ..data.workspace import open_workspace, record_run, save_workspace
 
-    path = args.workspace
     check_write_target(path, param="workspace")
     ws = open_workspace(path, missing_ok=True)  # a damaged or newer file is refused here, before the work
+    argv = _without_workspace(argv)
     with tempfile.TemporaryDirectory(prefix="solvsel-workspace-") as folder:
-        full = _with_workspace(parser, args, argv, ws, folder)
+        full, added = _with_workspace(parser, argv, ws, folder)
         try:
+            args = parser.parse_known_args(full)[0]
+            if args.command is None:  # the UI: it opens workspaces itself
+                return execute(full)
             rc, result = _result(execute, parser, args, full)
         except SolvselError as exc:
-            raise _in_workspace(exc, folder, path) from None
-        shown = [a for a in full if not a.startswith(f"--own-") or folder not in a]
-        shown = [a for i, a in enumerate(shown) if not _is_workspace_token(shown, i)]
+            raise _in_workspace(exc, folder, path, added) from None
+        shown = [a for a in full if not a.startswith("--own-") or folder not in a]
         options = vars(parser.parse_known_args(shown)[0])
     if rc == 0:
         options = {k: v for k, v in options.items() if k not in ("func", "workspace")}
@@ -151,14 +200,15 @@ def run_in_workspace(parser: argparse.ArgumentParser, args, argv: list[str],
     return rc
 
 
-def _in_workspace(exc, folder: str, path: str):
-    """An error in the workspace's own rows named by the workspace, not by the file they were passed in."""
+def _in_workspace(exc, folder: str, path: str, added: dict[str, str]):
+    """An error caused by the workspace named as such: its own rows by the workspace (not by the file they
+    were passed in), a default it supplied with a word saying where the value came from."""
     if exc.path and exc.path.startswith(folder):
         table = "solutes" if "solutes" in exc.path else "solvents"
         exc.path, exc.param, exc.value = f"{path} (its own {table} rows)", "workspace", path
+    elif exc.param:
+        command = next(iter(added.values()), None)
+        names = getattr(sys.modules.get(f"{__package__}.{command}"), "OPTION_NAMES", {})
+        if (names.get(exc.param) or option_name(exc.param)) in added:
+            exc.message += f" (the value is a default of the workspace {path})"
     return exc
-
-
-def _is_workspace_token(argv: list[str], i: int) -> bool:
-    a = argv[i]
-    return a == "--workspace" or a.startswith("--workspace=") or (i > 0 and argv[i - 1] == "--workspace")

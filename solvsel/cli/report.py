@@ -77,10 +77,6 @@ def run(args) -> int:
         raise InputError("give the command to report on after the report's file name, e.g. "
                          "solvsel report out.md rank --solute cannabidiol --food", param="cmd",
                          value=" ".join(cmd), expected="a solvsel command other than report and demo")
-    if any(a == "--workspace" or a.startswith("--workspace=") for a in cmd):
-        raise InputError("a workspace is given before the report's file name, so that the report is recorded and "
-                         "the command reported on gets its defaults", param="workspace",
-                         expected="solvsel report --workspace FILE OUT.md COMMAND ...")
     if args.out != STDIN:
         check_write_target(args.out, param="out")  # before the work: not a folder, a writable folder
     own = [a for path in args.own_solvents for a in ("--own-solvents", path)]
