@@ -28,10 +28,14 @@ from .parse import parse_fraction, parse_range
 from .pool import solvent_named
 
 __all__ = ["LoadRequest", "LoadResult", "load", "load_check", "load_info", "check_load_value", "check_storage",
-           "DEFAULT_STORAGE_C"]
+           "DEFAULT_STORAGE_C", "LOAD_NOTE"]
 
 #: Storage range checked by default [C]: a refrigerator to a warm room.
 DEFAULT_STORAGE_C = (4.0, 25.0)
+
+#: The note of a ranking or a blend search with a load.
+LOAD_NOTE = ("load check over the storage range: a liquid or blend that cannot carry the load is marked with the "
+             "largest load that stays one phase (measured pair, Flory-Huggins binodal or solid solubility)")
 
 
 def check_load_value(value, param: str = "load") -> float | None:

@@ -27,7 +27,7 @@ from ..rules.regulations import carrier_dose_check
 from ..science.formulation import Step
 from ..science.target import Target, solubility_in, target_from_hsp
 from ._base import build_request, catalog_or_default, check_bool, check_int, frame, target_of
-from .load import DEFAULT_STORAGE_C, check_load_value, check_storage, load_info
+from .load import DEFAULT_STORAGE_C, LOAD_NOTE, check_load_value, check_storage, load_info
 from .parse import parse_chain
 from .pool import Candidate, LeftOut, Pool, PoolRequest, solvent_named
 
@@ -437,6 +437,8 @@ def rank(request: RankRequest | None = None, *, catalog: Catalog | None = None, 
     results, dropped, rules = _rank_pool(cat, target, req, pool=pool)
     results, sure = _how_sure(cat, target, results, None if req.all else req.top)
     notes = _notes(target, req.temp_C) + _closing_notes(target)
+    if req.load is not None:
+        notes.append(LOAD_NOTE if target.solute is not None else "no load check: it needs a solute of the tables")
     return RankResult(target, req.temp_C, tuple(results), tuple(dropped), tuple(notes), _cautions(results),
                       "red" if target.r0 else "ra", audit_block(rules, cat.tables_dir), sure)
 
