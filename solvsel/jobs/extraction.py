@@ -259,12 +259,14 @@ def _best(req: ExtractionRequest, g: dict) -> tuple[dict | None, str]:
     best = {"strength_pct_v": s, "temp_C": t, "ra": g["ra"][i][j], "red": g["red"][i][j],
             "target_g_L": g["target_g_L"][i][j], "selectivity": g["selectivity"][i][j],
             "viscosity_mPa_s": g["viscosity_mPa_s"][i][j], "by": "selectivity" if use_sel else "ra",
-            "window": {"strength_pct_v": [s_lo, s_hi], "temp_C": [t_lo, t_hi]}}
+            "window": {"strength_pct_v": [s_lo, s_hi], "temp_C": [t_lo, t_hi]},
+            "filter_viscosity_max_mPa_s": FILTER_VISC_MAX}
     how = (f"selectivity {g['selectivity'][i][j]:.3g} (target over the most soluble reject, g/L)" if use_sel
            else f"Ra {g['ra'][i][j]:.2f} MPa^0.5")
     words = (f"best at {s:g} % v/v {req.liquids[0]} and {t:g} C: {how}; within "
              f"{'80 % of that selectivity' if use_sel else '0.5 MPa^0.5 of that Ra'}: {s_lo:g}-{s_hi:g} % v/v "
-             f"at {t_lo:g} to {t_hi:g} C")
+             f"at {t_lo:g} to {t_hi:g} C (points that are liquid and at most {FILTER_VISC_MAX:g} mPa s, "
+             f"easy to filter)")
     return best, words
 
 
