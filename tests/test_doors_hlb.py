@@ -50,6 +50,10 @@ def _essentials(d):
         "pairs": [(p["a"], p["b"], p["fraction_a"], p["fraction_b"], p["hlb"], p["same_tail"]) for p in d["pairs"]],
         "pairs_found": d["pairs_found"],
         "cautions": d["cautions"],
+        # the required HLB's range where an oil's value has one, and the pairs at both of its ends
+        "range": d.get("required_hlb_range"),
+        "range_ends": [(e["required_hlb"], [(p["a"], p["b"], p["fraction_a"]) for p in e["pairs"]])
+                       for e in d.get("range_ends") or ()],
     }
 
 
@@ -96,7 +100,7 @@ def test_the_emulsion_screen_shows_the_library_answer():
     from textual.widgets import Input
 
     from solvsel.tui.app import create_app
-    from solvsel.tui.emulsion import PAIRS_SHOWN
+    from solvsel.tui.emulsion import PAIR_HEADERS, PAIRS_SHOWN
 
     async def go():
         app = create_app(start="emulsion")
@@ -115,17 +119,19 @@ def test_the_emulsion_screen_shows_the_library_answer():
                 assert _essentials(screen.hlb_result.to_dict()) == _essentials(lib)
                 grid = screen.query_one("#em-pairs")
                 assert grid.row_count == len(lib["pairs"])
-                if lib["pairs"]:
-                    assert [str(c) for c in grid.get_row_at(0)][:4] == [
-                        lib["pairs"][0]["a"], f"{lib['pairs'][0]['fraction_a']:.2f}",
-                        lib["pairs"][0]["b"], f"{lib['pairs'][0]['fraction_b']:.2f}"]
-            # a mistake opens the dialog with the field's label, not an option of the command line
+                if lib["pairs"]:  # the columns by their headings
+                    row = dict(zip(PAIR_HEADERS, (str(c) for c in grid.get_row_at(0))))
+                    first = lib["pairs"][0]
+                    assert [row["emulsifier A"], row["share A"], row["emulsifier B"], row["share B"]] == [
+                        first["a"], f"{first['fraction_a']:.2f}", first["b"], f"{first['fraction_b']:.2f}"]
+            # a mistake in the HLB fields is told in the HLB block with the field's label, not an option
+            # of the command line (the drink's answer stays in view)
             app.screen.query_one("#em-hlb-oil", Input).value = "d-limonene=70, medium-chain triglycerides=20"
             await pilot.press("ctrl+r")
             await pilot.pause()
-            assert type(app.screen).__name__ == "ErrorDialog"
-            assert app.screen.error_message.startswith("oils for the required HLB:")
-            assert "sum to 90" in app.screen.error_message and "--" not in app.screen.error_message
+            said = str(app.screen.query_one("#em-hlb").render())
+            assert app.screen.hlb_result is None and "oils for the required HLB" in said
+            assert "sum to 90" in said and "--" not in said
 
     asyncio.run(go())
 
