@@ -215,6 +215,24 @@ def test_the_extraction_heat_map_from_plain_arrays(tmp_path):
     assert err.value.param == "values"
 
 
+def test_an_extraction_report_draws_the_plans_grid(tmp_path, capsys):
+    from solvsel.jobs.extraction import extraction
+
+    out, data = report(tmp_path, capsys, "extract", "--solute", "cannabidiol", "--strengths", "60:100:20",
+                       "--temps=-40:20:20")
+    job = extraction(solute="cannabidiol", strengths="60:100:20", temps_C="-40:20:20").to_dict()
+    assert data["grid"]["selectivity"] == job["grid"]["selectivity"]  # the report's JSON is the job's
+    assert [f.name for f in figure_files(out)] == ["r-fig1-extraction.png"]
+    assert_valid_pngs(figure_files(out))
+    fig = figures_of("extract", job)[0]
+    by = job["best"]["by"]
+    for i, t in enumerate(job["temps_C"]):  # a row per temperature, a column per strength, frozen blank
+        for j, s in enumerate(job["strengths_pct_v"]):
+            want = job["grid"][by][j][i] if job["grid"]["liquid"][j][i] else None
+            assert fig.data["values"][i][j] == want, (s, t)
+    assert fig.data["best"] == [job["best"]["strength_pct_v"], job["best"]["temp_C"]]
+
+
 # ----------------------------------------------------------------------------- without matplotlib
 
 

@@ -17,9 +17,9 @@ kind               from                          what it shows
                                                  against droplet diameter
 ``pareto``         blend                         Ra against cost of the blends, the trade-off
                                                  front marked
-``extraction``     an extraction plan            a value (yield, selectivity ...) over solvent
-                                                 strength x temperature
-                                                 (:func:`extraction_heatmap`, plain arrays)
+``extraction``     extract (an extraction plan)  selectivity, solubility or Ra over solvent
+                                                 strength x temperature (or any value from
+                                                 plain arrays: :func:`extraction_heatmap`)
 =================  ============================  ===========================================
 
 The Hansen distance is ``Ra^2 = 4 (dD1-dD2)^2 + (dP1-dP2)^2 + (dH1-dH2)^2`` (Hansen, *Hansen
@@ -43,6 +43,7 @@ __all__ = [
     "creaming",
     "pareto",
     "extraction_heatmap",
+    "extraction",
     "draw_png",
     "FIGURE_EXTRA",
 ]
@@ -208,9 +209,11 @@ def pareto(blend: dict) -> FigureData | None:
 
 def extraction_heatmap(strengths: Sequence[float], temps_C: Sequence[float], values: Sequence[Sequence[float]],
                        value_label: str, strength_label: str = "solvent strength (% v/v)",
-                       title: str = "Extraction: strength x temperature", note: str = "") -> FigureData:
+                       title: str = "Extraction: strength x temperature", note: str = "",
+                       best: Sequence[float] | None = None, log: bool = False) -> FigureData:
     """A value (yield, selectivity, Ra ...) over solvent strength x temperature, from plain arrays:
-    ``values[i][j]`` at ``temps_C[i]`` and ``strengths[j]``.
+    ``values[i][j]`` at ``temps_C[i]`` and ``strengths[j]`` (None: no value there, left blank); ``best``
+    the (strength, temperature) to mark; ``log`` a logarithmic colour scale (where every value is positive).
 
     >>> extraction_heatmap([50, 70], [20, 40], [[1, 2], [3, 4]], "yield (%)").data["values"]
     [[1.0, 2.0], [3.0, 4.0]]
@@ -221,14 +224,46 @@ def extraction_heatmap(strengths: Sequence[float], temps_C: Sequence[float], val
 
         raise InputError(f"expected {len(temps_C)} rows of {len(strengths)} values", param="values",
                          expected="one row per temperature, one value per strength")
+    shown = [v for r in rows for v in r if v is not None]
     data = {"strengths": [float(s) for s in strengths], "temps_C": [float(t) for t in temps_C], "values": rows,
-            "value_label": value_label, "strength_label": strength_label}
+            "value_label": value_label, "strength_label": strength_label,
+            "best": None if best is None else [float(best[0]), float(best[1])],
+            "log": bool(log and shown and min(shown) > 0)}
     caption = f"{value_label} over {strength_label} and temperature [C]." + (f" {note}" if note else "")
     return FigureData("extraction", title, caption, data)
 
 
+_EXTRACTION_VALUES = {
+    "selectivity": "selectivity (target over the most soluble reject, g/L per g/L)",
+    "target_g_L": "estimated solubility of the target [g/L]",
+    "ra": "Ra of the target to the mixture [MPa^0.5]",
+}
+
+
+def extraction(plan: dict) -> FigureData | None:
+    """The heat map of an extraction plan's JSON document: the value the best point is chosen by
+    (selectivity with rejects, else the target's solubility, else Ra) over its grid, frozen points blank,
+    the best point marked; None without a grid."""
+    g, strengths, temps = plan.get("grid") or {}, plan.get("strengths_pct_v") or [], plan.get("temps_C") or []
+    best = plan.get("best") or {}
+    usable = [k for k in _EXTRACTION_VALUES if isinstance(g.get(k), list)
+              and any(_num(v) is not None for row in g[k] for v in row)]
+    key = best.get("by") if best.get("by") in usable else next(iter(usable), None)
+    if key is None or not strengths or not temps:
+        return None
+    liquid = g.get("liquid") or [[True] * len(temps) for _ in strengths]
+    values = [[g[key][j][i] if liquid[j][i] else None for j in range(len(strengths))] for i in range(len(temps))]
+    pair = plan.get("liquids") or ["solvent", "water"]
+    point = (best["strength_pct_v"], best["temp_C"]) if best.get("strength_pct_v") is not None else None
+    return extraction_heatmap(strengths, temps, values, _EXTRACTION_VALUES[key],
+                              f"{pair[0]} strength (% v/v, with {pair[-1]})",
+                              note="Blank cells: the mixture is frozen there; the ring marks the best point.",
+                              best=point, log=key != "ra")
+
+
 def figures_of(command: str, data: Any) -> list[FigureData]:
-    """The figures of a command's JSON document (``rank``, ``blend``, ``fit``, ``emulsion``; none for others).
+    """The figures of a command's JSON document (``rank``, ``blend``, ``fit``, ``emulsion``, ``extract``; none
+    for others).
 
     >>> figures_of("table", {})
     []
@@ -247,6 +282,8 @@ def figures_of(command: str, data: Any) -> list[FigureData]:
         out.append(bench_fit(data))
     elif command == "emulsion":
         out.append(creaming(data))
+    elif command in ("extract", "extraction"):
+        out.append(extraction(data))
     return [f for f in out if f is not None]
 
 
@@ -418,24 +455,32 @@ def _draw_pareto(figure: FigureData):
 
 
 def _draw_extraction(figure: FigureData):
+    from matplotlib.colors import LogNorm
+
     fig = _figure(8, 5)
     d = figure.data
     ax = fig.subplots(gridspec_kw={"left": 0.1, "right": 0.98, "bottom": 0.11, "top": 0.92})
     values = [[math.nan if v is None else v for v in row] for row in d["values"]]
-    mesh = ax.pcolormesh(_edges(d["strengths"]), _edges(d["temps_C"]), values, cmap="viridis")
-    shown = [v for row in d["values"] for v in row if v is not None]
-    middle = (min(shown, default=0) + max(shown, default=0)) / 2
-    for i, t in enumerate(d["temps_C"]):
-        for j, s in enumerate(d["strengths"]):
-            v = d["values"][i][j]
-            if v is not None:  # dark text on the light (high) cells of viridis, light on the dark ones
-                ax.text(s, t, f"{v:.3g}", ha="center", va="center", fontsize=8,
-                        color="black" if v > middle else "white")
+    mesh = ax.pcolormesh(_edges(d["strengths"]), _edges(d["temps_C"]), values, cmap="viridis",
+                         norm=LogNorm() if d["log"] else None)
+    if len(d["strengths"]) * len(d["temps_C"]) <= 60:  # numbers in the cells while they fit
+        _annotate_cells(ax, d, mesh)
+    if d["best"]:
+        ax.scatter([d["best"][0]], [d["best"][1]], s=160, facecolors="none", edgecolors="#d62728", linewidths=2)
     fig.colorbar(mesh, ax=ax, label=d["value_label"])
     ax.set_xlabel(d["strength_label"])
     ax.set_ylabel("temperature [C]")
     ax.set_title(figure.title)
     return fig
+
+
+def _annotate_cells(ax, d: dict, mesh) -> None:
+    for i, t in enumerate(d["temps_C"]):
+        for j, s in enumerate(d["strengths"]):
+            v = d["values"][i][j]
+            if v is not None:  # dark text on the light (high) cells of viridis, light on the dark ones
+                ax.text(s, t, f"{v:.3g}", ha="center", va="center", fontsize=8,
+                        color="black" if mesh.norm(v) > 0.5 else "white")
 
 
 def _edges(centres: list[float]) -> list[float]:
