@@ -251,7 +251,7 @@ def markdown_of(c: ReportContent) -> str:
 
 
 _STYLE = """body{font-family:system-ui,sans-serif;max-width:1200px;margin:1.5em auto;padding:0 1em;color:#222}
-pre{background:#f6f6f6;padding:.8em;white-space:pre-wrap;overflow-wrap:anywhere;font-size:12px;line-height:1.35}
+pre{background:#f6f6f6;padding:.8em;overflow-x:auto;font-size:11px;line-height:1.35}
 figure{margin:1.5em 0}figure img{max-width:100%;height:auto;border:1px solid #ddd}
 figcaption{font-size:.9em;color:#444;margin-top:.4em}code{background:#f1f1f1;padding:0 .2em}
 table{border-collapse:collapse}td{padding:.1em .8em .1em 0;vertical-align:top}
