@@ -107,6 +107,7 @@ MEMORY_SCOPE = {
     "memory_fusion": ("mp_C", "dHfus_kJ_mol"),
     "memory_flash": ("flash_C",),
     "memory_liquid_props": ("density_g_cm3", "visc_mPa_s", "alpha_1_K", "vm_cm3_mol"),
+    "memory_oil_props_other": ("mp_C", "flash_C", "flammable", "visc_mPa_s", "alpha_1_K"),
 }
 
 #: Text columns that hold a value (a verdict) rather than a name or a note.
