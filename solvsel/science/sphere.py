@@ -1576,11 +1576,11 @@ def _graded_centre(Xs, y, lo, hi, penalty):
     """The scaled centre minimising sse + penalty(c): a grid over the bounds, then Nelder-Mead."""
     from scipy.optimize import minimize
 
-    axes = [np.linspace(lo[k], hi[k], n) for k, n in enumerate((14, 16, 21))]
+    axes = [np.linspace(lo[k], hi[k], n) for k, n in enumerate((9, 11, 13))]
     grid = np.stack(np.meshgrid(*axes, indexing="ij"), -1).reshape(-1, 3)
     J = _graded_sse(grid, Xs, y)[0] + penalty(grid)
     best = None
-    for i in np.argsort(J)[:3]:
+    for i in np.argsort(J)[:2]:
         res = minimize(lambda c: float(_graded_sse(np.clip(c, lo, hi)[None], Xs, y)[0][0]
                                        + penalty(np.clip(c, lo, hi)[None])[0]),
                        grid[i], method="Nelder-Mead",

@@ -1,0 +1,100 @@
+"""The tool's answers against measured solubilities it was not built from.
+
+Data: Vermeire, F.; Chung, Y.; Green, W. H. "Predicting Solubility Limits of Organic Solutes for a
+Wide Range of Solvents and Temperatures", J. Am. Chem. Soc. 144 (2022) 10785-10797 (CombiSolu-Exp,
+SolProp v1.2), read from ``../shared/data/external/solubility_combisolu/`` by
+``bench/_published_data.py`` (the protocol is written there); the tests skip when the folder is absent.
+
+Each figure of ``bench/bench_published.py`` is held within what was measured when the code was
+written plus the stated margin (``MARGIN``), so a change that makes an answer worse against the
+measurements fails here.  Settings were chosen on the ``dev`` solutes only; the ``heldout`` figures
+are checked the same way (to keep them reproducible), never used to choose anything.  The sphere
+figures (leave-one-out fits, a minute for a split) are tested on the first 3 ``dev`` solutes only.
+"""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+import pytest
+
+BENCH = Path(__file__).resolve().parent.parent / "bench"
+sys.path.insert(0, str(BENCH))
+
+import _published_data as data  # noqa: E402
+
+pytestmark = pytest.mark.skipif(not data.available(), reason=f"published data not in {data.EXTERNAL}")
+
+#: How far a figure may move from what was measured (median Spearman, RMS in log10 x, accuracy).
+MARGIN = 0.03
+
+#: Measured with the code of this change (structure estimates of 31 dev and 15 heldout solutes).
+RANKING = {
+    # predictor: (dev, heldout) median Spearman between measured log10 x and the predictor
+    "ra": (0.394, 0.683),
+    "hildebrand": (0.214, -0.067),
+    "blind": (0.584, 0.611),
+    "ra_same": (0.393, 0.683),
+    "estimate": (0.438, 0.567),
+    "estimate_hb_split": (0.226, 0.417),
+}
+#: Median RMS error in log10 x of the solubility estimate: (dev, heldout) and number of solutes.
+ERRORS = {"measured": ((0.248, 4), (0.350, 2)), "walden": ((0.660, 22), (0.574, 12)),
+          "hb_split": ((0.581, 26), (0.617, 14))}
+#: Sphere fits on the first 3 dev solutes (41 liquids): leave-one-out accuracy at the top-third split.
+SPHERES = {"binary": 0.805, "graded_prior": 0.732}
+MAJORITY_FIRST3 = 0.659
+
+
+@pytest.fixture(scope="session")
+def bench():
+    import bench_published
+
+    return bench_published
+
+
+def test_solutes_merged_by_inchikey_and_split_as_published():
+    # 46 solutes in split.csv, each with at least 8 liquids near 25 C (PROVENANCE.md)
+    m = data.table(None)
+    per = m.groupby("solute")["solvent"].nunique()
+    assert len(per) == 46 and per.min() >= 8
+    assert set(m["split"]) == {"dev", "heldout"}
+    # paracetamol in water and toluene, 298 K, converted from g/kg: 14.90 and 0.37 g/kg (Granberg and
+    # Rasmuson 1999, as the PROVENANCE spot check says) give x = 1.77e-3 and 2.26e-4
+    assert data.mole_fraction(14.90, "g/kg(solvent)", 151.165, 18.015, 997.0) == pytest.approx(1.774e-3, rel=2e-3)
+    assert data.mole_fraction(0.37, "g/kg(solvent)", 151.165, 92.141, 864.66) == pytest.approx(2.255e-4, rel=2e-3)
+
+
+@pytest.mark.parametrize("split", ["dev", "heldout"])
+@pytest.mark.parametrize("predictor", sorted(RANKING))
+def test_ranking_figures(bench, split, predictor):
+    got = bench.median(bench.ranking(split)[predictor])
+    want = RANKING[predictor][0 if split == "dev" else 1]
+    assert got == pytest.approx(want, abs=MARGIN)
+
+
+@pytest.mark.parametrize("split", ["dev", "heldout"])
+@pytest.mark.parametrize("kind", sorted(ERRORS))
+def test_solubility_estimate_errors(bench, split, kind):
+    d = bench.errors(split)[kind]
+    want, n = ERRORS[kind][0 if split == "dev" else 1]
+    assert len(d) == n
+    assert bench.median(d) == pytest.approx(want, abs=MARGIN)
+
+
+def test_estimate_ranks_better_than_ra_but_not_than_the_solute_blind_baseline(bench):
+    # on dev the estimate (ideal x Flory-Huggins + Hansen) ranks a little better than -Ra, but below the
+    # solute-blind ranking: the goal of 0.70 is not reached (the bench prints the numbers)
+    r = bench.ranking("dev")
+    assert bench.median(r["estimate"]) > bench.median(r["ra"])
+    assert bench.median(r["estimate"]) < bench.median(r["blind"])
+
+
+@pytest.mark.parametrize("kind", sorted(SPHERES))
+def test_sphere_leave_one_out_on_the_first_three_dev_solutes(bench, kind):
+    f = bench.spheres("dev", kind, 3)
+    assert f["majority"] == pytest.approx(MAJORITY_FIRST3, abs=1e-3)
+    assert f["loo"] == pytest.approx(SPHERES[kind], abs=MARGIN)
+    if kind == "graded_prior":
+        assert f["at_bound"] == 0  # the prior keeps every centre off the search bounds
