@@ -19,22 +19,31 @@ from pathlib import Path
 #: (width, height, file suffix) of the screenshots.
 SIZES = [(160, 45, ""), (100, 30, "-100x30")]
 
-#: (file stem, screen, keys pressed after the screen shows)
-SHOTS = [
-    ("tables", "tables", ()),
-    ("target", "target", ()),
-    ("carriers", "carriers", ()),
-    ("single", "carriers", ("ctrl+t", "ctrl+t", "ctrl+t")),
-    ("extraction", "carriers", ("ctrl+g",)),
-    ("dropped", "carriers", ("ctrl+g", "ctrl+t")),
-    ("map", "map", ()),
-    ("map-sphere", "target", ("typed", "f3", "f4")),
-    ("map-side", "map", ("v",)),
-    ("emulsion", "emulsion", ()),
-    ("limits", "limits", ()),
-    ("mixing", "mixing", ("ctrl+r",)),
-    ("error", "target", ("smiles",)),
-]
+#: Two runs of the app a size, each a list of (file stem or "" for no picture, keys pressed before it).
+#: The keys are those a person would press; "typed" and "smiles" fill the target screen's fields.
+#: The first run starts on the tables and runs no blend search (a quick check of its pictures is in
+#: the test suite); the second starts on the carriers.
+RUNS = {
+    "tables": [
+        ("tables", ()),
+        ("emulsion", ("f5",)),
+        ("limits", ("f6",)),
+        ("mixing", ("f7", "ctrl+r")),
+        ("target", ("f2",)),
+        ("error", ("smiles",)),
+    ],
+    "carriers": [
+        ("carriers", ()),
+        ("single", ("ctrl+t", "ctrl+t", "ctrl+t")),
+        ("", ("ctrl+t",)),
+        ("map", ("f4",)),
+        ("map-side", ("v",)),
+        ("", ("v",)),
+        ("extraction", ("f3", "ctrl+g")),
+        ("dropped", ("ctrl+t",)),
+        ("map-sphere", ("f2", "typed", "f3", "f4")),
+    ],
+}
 
 _CELL = 12.2  # width of one cell in Textual's SVG, in its units
 _TEXT = re.compile(r'<text class="[^"]*" x="([0-9.]+)" y="([0-9.]+)"[^>]*>(.*?)</text>', re.S)
@@ -58,13 +67,12 @@ def svg_text(svg: str) -> list[str]:
 
 async def _press(app, pilot, key: str) -> None:
     if key == "smiles":  # a bad structure: the error dialog
-        for _ in range(2):
-            await pilot.press("ctrl+t")
-            await pilot.pause()
+        app.screen.query_one("#target-tabs").active = "from-smiles"
+        await pilot.pause()
         app.screen.query_one("#smiles").value = "C1CC(("
         app.screen.press("use-smiles")
     elif key == "typed":  # a typed target with a radius: the map draws its sphere's section
-        await pilot.press("ctrl+t")
+        app.screen.query_one("#target-tabs").active = "from-typed"
         await pilot.pause()
         app.screen.query_one("#typed-hsp").value = "17.8, 3.9, 9.9, 6.0"
         app.screen.press("use-typed")
@@ -75,21 +83,23 @@ async def _press(app, pilot, key: str) -> None:
     await pilot.pause()
 
 
-async def shoot(mode: str, keys, size: tuple[int, int]) -> str:
-    """The SVG of screen ``mode`` after ``keys``, at ``size`` (columns, rows)."""
+async def shoot(run: str, size: tuple[int, int]) -> dict[str, str]:
+    """The SVG of every picture of run ``run`` of :data:`RUNS` at ``size`` (columns, rows), by file stem."""
     from .app import create_app
 
-    app = create_app(start="carriers")
+    app = create_app(start=run)
+    shots = {}
     async with app.run_test(size=size) as pilot:
         await app.workers.wait_for_complete()
         await pilot.pause()
-        if mode != "carriers":
-            app.switch_mode(mode)
-            await pilot.pause()
-        for key in keys:
-            await _press(app, pilot, key)
-        await pilot.pause(0.2)
-        return app.export_screenshot()
+        for stem, keys in RUNS[run]:
+            for key in keys:
+                await _press(app, pilot, key)
+            if stem:
+                app.clear_notifications()
+                await pilot.pause()
+                shots[stem] = app.export_screenshot()
+    return shots
 
 
 def main(argv=None) -> int:
@@ -97,10 +107,11 @@ def main(argv=None) -> int:
     out = Path(argv[0]) if argv else Path(__file__).resolve().parents[2] / "screens"
     out.mkdir(parents=True, exist_ok=True)
     for width, height, suffix in SIZES:
-        for stem, mode, keys in SHOTS:
-            path = out / f"{stem}{suffix}.svg"
-            path.write_text(asyncio.run(shoot(mode, keys, (width, height))), encoding="utf-8")
-            print(path)
+        for run in RUNS:
+            for stem, svg in asyncio.run(shoot(run, (width, height))).items():
+                path = out / f"{stem}{suffix}.svg"
+                path.write_text(svg, encoding="utf-8")
+                print(path)
     return 0
 
 
