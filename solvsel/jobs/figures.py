@@ -360,18 +360,44 @@ def _draw_map(figure: FigureData):
         sc = ax.scatter([p[x] for p in pts], [p[y] for p in pts], c=[p["ra"] if p["ra"] is not None else 0 for p in pts],
                         cmap="viridis_r", s=28, edgecolors="#333333", linewidths=0.4,
                         vmin=min(ras, default=0), vmax=max(ras, default=1))
-        for p in pts:
-            if p["labelled"]:
-                ax.annotate(p["name"], (p[x], p[y]), xytext=(4, 3), textcoords="offset points", fontsize=7)
         if t["dD"] is not None:
             ax.scatter([t[x]], [t[y]], marker="*", s=220, color="#d62728", edgecolors="black", zorder=5)
             if t["r0"]:
                 _sphere(ax, t, t["r0"], x, y, edgecolor="#d62728", linewidth=1.4)
         _square(ax, *_extent_of(pts, x, y, t if t["dD"] is not None else None, t["r0"]))
         _plane(ax, x, y)
+        _labels(ax, [(p["name"], p[x], p[y]) for p in pts if p["labelled"]])
     fig.colorbar(sc, cax=fig.add_axes((0.925, 0.18, 0.012, 0.65)), label="Ra to the target [MPa^0.5]")
     fig.suptitle(figure.title)
     return fig
+
+
+#: Where a label may go beside its point [points]: right-above, right-below, left-above, left-below.
+_LABEL_SPOTS = ((4, 3, "left"), (4, -10, "left"), (-4, 3, "right"), (-4, -10, "right"))
+
+
+def _labels(ax, labels: list[tuple[str, float, float]], size: float = 7.0) -> None:
+    """Names beside their points, each at the first spot where it covers no name placed before (its box
+    reckoned from the number of characters); where none is free, at the first spot."""
+    fig = ax.figure
+    px = fig.dpi / 72.0  # display pixels per point
+    placed: list[tuple[float, float, float, float]] = []
+    for name, x, y in labels:
+        X, Y = ax.transData.transform((x, y))
+        w, h = len(name) * size * 0.55 * px, size * 1.2 * px
+        boxes = []
+        for dx, dy, ha in _LABEL_SPOTS:
+            x0 = X + dx * px - (w if ha == "right" else 0)
+            boxes.append((x0, Y + dy * px, x0 + w, Y + dy * px + h))
+        free = [i for i, b in enumerate(boxes) if not any(_overlap(b, o) for o in placed)]
+        i = free[0] if free else 0
+        placed.append(boxes[i])
+        dx, dy, ha = _LABEL_SPOTS[i]
+        ax.annotate(name, (x, y), xytext=(dx, dy), textcoords="offset points", fontsize=size, ha=ha)
+
+
+def _overlap(a: tuple, b: tuple) -> bool:
+    return a[0] < b[2] and b[0] < a[2] and a[1] < b[3] and b[1] < a[3]
 
 
 def _draw_fit(figure: FigureData):
@@ -443,14 +469,13 @@ def _draw_pareto(figure: FigureData):
                 ax.scatter([p["x"] for p in sel], [p["ra"] for p in sel], marker=markers.get(n, "o"), s=50,
                            facecolors="#1f77b4" if front else "white", edgecolors="#1f77b4",
                            label=f"{n} liquid{'s' if n > 1 else ''}{', on the front' if front else ''}")
-    for p in d["points"]:
-        if p["front"]:
-            ax.annotate(p["name"], (p["x"], p["ra"]), xytext=(4, 3), textcoords="offset points", fontsize=7)
     ax.set_xlabel(d["x_label"])
     ax.set_ylabel("Ra to the target [MPa^0.5]")
     ax.grid(True, color="#e5e5e5", linewidth=0.6)
     ax.legend(fontsize=8)
     ax.set_title(figure.title)
+    ax.margins(x=0.25, y=0.08)  # room for the names
+    _labels(ax, [(p["name"], p["x"], p["ra"]) for p in d["points"] if p["front"]])
     return fig
 
 
