@@ -590,3 +590,68 @@ def test_the_fit_needs_neither_rdkit_nor_scikit_learn():
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120)
     assert out.returncode == 0, out.stderr
     assert out.stdout.strip().splitlines()[-1] == "8.44"  # the R0 of `solvsel fit examples/bench_extract.csv`
+
+
+# ---------------------------------------------------------------- graded results (the scores themselves)
+
+from solvsel.science.sphere import fit_graded, score_boundary  # noqa: E402
+
+
+def test_graded_fit_recovers_a_regular_solution_law(liquids):
+    # scores made by log10 x = -0.5 - V Ra^2 / (4 RT ln 10) with V = 150 cm3/mol (the regular-solution
+    # term of Hansen 2007, ch. 2) around random centres, with noise of 0.1: the centre is found within
+    # 0.6 MPa^0.5 and the radius is where the law crosses the cut
+    X, _ = liquids
+    rng = np.random.default_rng(7)
+    slope = 150.0 / (4 * 8.314462618 * 298.15 * np.log(10))
+    for c, _, _, _ in random_truths(X, 4, seed=11):
+        y = -0.5 - slope * ra(X, c) ** 2 + rng.normal(0.0, 0.1, len(X))
+        g = fit_graded(X, y, cut=-2.0)
+        assert float(np.max(np.abs(g.hsp - c))) < 0.6
+        assert g.slope == pytest.approx(-slope, rel=0.1)
+        assert g.r0 == pytest.approx(np.sqrt(1.5 / slope), rel=0.1)
+        assert not g.at_bound and g.r2 > 0.9
+
+
+def test_graded_fit_low_is_best_scale_and_boundary(liquids):
+    X, _ = liquids
+    c = np.array([17.0, 8.0, 10.0])
+    scores = np.clip(np.round(1 + ra(X, c) / 3.0), 1, 6)  # 1 dissolved .. 6 no effect
+    mid, step = score_boundary(scores, good_at_most=2)
+    assert (mid, step) == (2.5, 1.0)
+    g = fit_graded(X, scores, cut=mid, higher_is_better=False)
+    assert g.slope > 0 and not g.higher_is_better
+    good = g.good(X)
+    # the fitted boundary agrees with the scores' own good/bad on most liquids
+    assert np.mean(good == (scores <= 2)) > 0.85
+
+
+def test_graded_prior_agrees_or_disagrees_with_the_data(liquids):
+    # a bench of 24 liquids with noisy scores: a prior 0.5 MPa^0.5 off is consistent with them, one
+    # 20 MPa^0.5 off is not
+    X, _ = liquids
+    rng = np.random.default_rng(3)
+    X = X[rng.choice(len(X), 24, replace=False)]
+    c = np.array([18.0, 6.0, 9.0])
+    y = 1.0 - 0.01 * ra(X, c) ** 2 + rng.normal(0.0, 0.3, len(X))
+    near = fit_graded(X, y, cut=0.0, prior=c + [0.2, 0.3, -0.3])
+    far = fit_graded(X, y, cut=0.0, prior=[16.0, 16.0, 25.0])
+    assert near.prior["agree"] and not far.prior["agree"]
+    assert far.prior["p_value"] < 0.01 and near.prior["p_value"] > 0.05
+    assert "disagree with the structure estimate" in far.message
+
+
+def test_graded_centre_on_a_bound_is_said(liquids):
+    # scores that keep rising toward high dD: the centre ends on the bound, and the fit says so
+    X, _ = liquids
+    y = X[:, 0] * 0.5
+    g = fit_graded(X, y, cut=float(np.median(y)))
+    assert "dD" in g.at_bound and "search bound" in g.message
+    # a prior keeps it off the bound
+    assert not fit_graded(X, y, cut=float(np.median(y)), prior=[18.0, 5.0, 5.0]).at_bound
+
+
+def test_graded_fit_refuses_constant_scores():
+    X = np.array([[15.0, 0, 0], [18, 1.4, 2], [15.5, 10.4, 7], [15.8, 8.8, 19.4], [15.5, 16, 42.3], [17, 7, 7]])
+    with pytest.raises(InputError):
+        fit_graded(X, np.ones(6), cut=0.5)
