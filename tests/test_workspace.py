@@ -27,7 +27,7 @@ from solvsel.data.workspace import (
     workspace_from_dict,
     workspace_to_dict,
 )
-from solvsel.errors import FileError
+from solvsel.errors import FileError, InputError
 
 TABLES = Path(__file__).resolve().parents[1] / "tables"
 
@@ -369,3 +369,17 @@ def test_a_workspace_default_that_the_command_refuses_is_said_to_come_from_the_w
                  "0.15%", "--category", "beverages", "--json"]) == 0
     assert json.loads(capsys.readouterr().out)["formula"]
     assert open_workspace(path).history[-1]["request"]["jurisdiction"] == "EU"
+
+
+def test_a_workspace_holding_what_json_cannot_hold_is_refused_before_writing(tmp_path):
+    path = tmp_path / "work.json"
+    save_workspace(Workspace(name="x"), path)
+    before = path.read_bytes()
+    with pytest.raises(InputError) as err:
+        save_workspace(Workspace(constraints={"temp_C": float("nan")}), path)
+    assert err.value.param == "workspace"
+    with pytest.raises(InputError):
+        Workspace(targets=5)
+    with pytest.raises(InputError):
+        save_workspace({"name": "x"}, path)
+    assert path.read_bytes() == before and not backup_path(path).exists()

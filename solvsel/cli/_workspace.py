@@ -1,5 +1,9 @@
 """``solvsel --workspace FILE COMMAND ...``: a workspace's defaults for any command, and the run recorded in it.
 
+``--workspace FILE`` may stand anywhere on the command line (before the command, among its options, or
+among those of the command a report runs); it is read before the command line is parsed, so an option
+a command requires can come from the workspace.
+
 The workspace (:mod:`solvsel.data.workspace`) supplies what the command line leaves out: its
 constraints (request field -> value) and its target become the command's options where the
 command has them and they were not given, and its own rows of the liquids and solutes tables are
@@ -8,7 +12,8 @@ with and its JSON document are recorded in the workspace's history with the time
 workspace is saved (atomically, the previous version kept as ``FILE.bak``).  A text answer is
 computed a second time with ``--json`` for the record; a command without ``--json`` (``report``,
 ``demo``) is recorded without a result.  A damaged workspace, or one of a newer schema, is
-refused before the command runs.
+refused before the command runs; a value the workspace supplied that the command refuses is said to
+come from the workspace.
 """
 
 from __future__ import annotations

@@ -282,15 +282,15 @@ def save_workspace(ws: Workspace, path: str | Path) -> None:
     if not isinstance(ws, Workspace):
         raise InputError(f"expected a Workspace, got {type(ws).__name__}", param="workspace", value=ws)
     p = Path(path)
-    if p.exists():
-        open_workspace(p)  # refuses a damaged or newer file before anything is written
-        write_user_file(backup_path(p), p.read_bytes(), param="workspace")
     doc = workspace_to_dict(replace(ws, saved_at=now_utc()))
     try:
         text = json.dumps(doc, indent=1, sort_keys=True, ensure_ascii=False, allow_nan=False)
     except (TypeError, ValueError) as exc:  # a value that is not JSON data, NaN or infinity
         raise InputError(f"holds a value that cannot be saved as JSON: {exc}", param="workspace",
                          expected="JSON data: text, finite numbers, lists and dicts") from None
+    if p.exists():
+        open_workspace(p)  # refuses a damaged or newer file before anything is written
+        write_user_file(backup_path(p), p.read_bytes(), param="workspace")
     write_user_file(p, (text + "\n").encode("utf-8"), param="workspace")
 
 
