@@ -25,9 +25,12 @@ from .limits import NO_PURPOSE, audit_text, purpose_choices, purpose_value
 from .widgets import CautionBox, fill_table
 
 # Verdicts first, names last (cut first where the screen is narrow; the detail pane has them whole).
-RANK_HEADERS = ("#", "Ra MPa½", "RED", "allowed", "flammable", "flash °C", "boils °C", "cost 1-5", "liquid")
+RANK_HEADERS = ("#", "Ra MPa½", "RED", "allowed", "flammable", "health", "how sure", "carries", "flash °C",
+                "boils °C", "cost", "liquid")
 DROPPED_HEADERS = ("Ra MPa½", "why it was dropped", "blend (volume fractions)")
 EXCLUDED_HEADERS = ("why it is not in the pool", "liquid")
+#: Columns shown only where some row has something in them (the load check is asked for, say).
+OPTIONAL = ("carries", "how sure", "health")
 #: Weight of counting the combinations in the one bar over the search (the checks and the
 #: description of the best blends after it report no count of their own).
 COUNT_SHARE = 0.6
@@ -92,7 +95,7 @@ class CarriersScreen(BenchScreen):
         "temp_C": "temperature", "min_flash_C": "lowest flash point", "bp_min_C": "boiling window",
         "bp_max_C": "boiling window", "exclude": "leave out", "rejects": "keep out of solution",
         "use": "use", "jurisdiction": "jurisdiction", "max_components": "largest blend (liquids)",
-        "purpose": "the product is for",
+        "purpose": "the product is for", "load": "load of the target",
     }
     BINDINGS = [
         Binding("ctrl+r", "search", "Search blends", priority=True),
@@ -140,6 +143,8 @@ class CarriersScreen(BenchScreen):
                 yield Input(placeholder="e.g. benzyl alcohol", id="exclude", compact=True)
                 yield Label("Keep out of solution (solutes)")
                 yield Input(placeholder="e.g. chlorophyll a, sucrose", id="rejects", compact=True)
+                yield Label("Load of the target, % by mass")
+                yield Input(placeholder="e.g. 5% (checked from 4 to 25 C)", id="load", compact=True)
                 yield Button("Search blends  ^R", id="run-search", variant="primary", compact=True)
             with Vertical(id="carriers-main"):
                 with TabbedContent(id="carrier-tabs", initial="tab-blends"):
@@ -192,6 +197,7 @@ class CarriersScreen(BenchScreen):
         self.query_one("#exclude", Input).value = ", ".join(part.get("exclude", []))
         self.query_one("#min-flash", Input).value = ""
         self.query_one("#bp-window", Input).value = ""
+        self.query_one("#load", Input).value = str(part.get("load", ""))
 
     def action_preset(self, key: str) -> None:
         self.fill_preset(key)
@@ -227,6 +233,7 @@ class CarriersScreen(BenchScreen):
             bp_min_C=lo, bp_max_C=hi,
             temp_C=parse_number(self.query_one("#temp", Input).value, "temp_C", "C"),
             exclude=tuple(parse_names(exclude, "exclude")) if exclude else (),
+            load=_text(self, "#load"),
         )
         return (
             RankRequest(**common, food=common["use"] is not None, top=15),
@@ -250,9 +257,10 @@ class CarriersScreen(BenchScreen):
     def fill_ranking(self) -> None:
         res = self.ranking
         fill_table(self.query_one("#rank-grid", DataTable), RANK_HEADERS, [
-            (str(i), _fmt(r.ra), _fmt(r.red), _allowed(r), r.hazard_code or "no", _fmt(r.flash_C, ".0f"),
+            (str(i), _fmt(r.ra), _fmt(r.red), _allowed(r), r.hazard_code or "no", _health(r.health_hazard),
+             _sure(r.how_sure), _carries(r.load), _fmt(r.flash_C, ".0f"),
              _fmt(r.bp_C, ".0f"), _fmt(r.cost_class, ".0f"), r.name + (" (yours)" if r.origin.startswith("user") else ""))
-            for i, r in enumerate(res.results if res is not None else (), 1)], cut=-1)
+            for i, r in enumerate(res.results if res is not None else (), 1)], cut=-1, optional=OPTIONAL)
 
     def on_resize(self) -> None:
         """Cut the names to the new width (the verdict columns stay whole)."""
@@ -266,7 +274,7 @@ class CarriersScreen(BenchScreen):
                  f"for {q('#purpose', Select).value}", f"up to {q('#max-components', Select).value} liquids",
                  f"{q('#temp', Input).value.strip() or '?'} C"]
         for label, sel in (("flash at least", "#min-flash"), ("boils", "#bp-window"), ("leaving out", "#exclude"),
-                           ("keeping out", "#rejects")):
+                           ("keeping out", "#rejects"), ("load", "#load")):
             if _text(self, sel):
                 parts.append(f"{label} {_text(self, sel)}")
         return "Constraints: " + " · ".join(parts)
@@ -281,6 +289,7 @@ class CarriersScreen(BenchScreen):
                  f"   cost class {_fmt(r.cost_class, '.0f')}\n")
         if r.solubility and r.solubility.get("g_per_L") is not None:
             t.append(f"solubility estimate {r.solubility['g_per_L']:.3g} g/L (an estimate; confirm at the bench)\n")
+        t.append_text(_more_text(r.health_hazard, r.how_sure, r.load))
         for n in tuple(r.notes) + tuple(self.ranking.notes):
             t.append(f"note: {n}\n", style="dim")
         if self.ranking.dropped:
@@ -430,16 +439,18 @@ class CarriersScreen(BenchScreen):
         cols = ["#", "Ra MPa½", "RED"]
         if rejects:
             cols += [f"keep-out {basis}", "margin"]
-        cols += ["one phase", "flammable", "flash °C", "boils °C", "cost 1-5", "blend (volume fractions)"]
+        cols += ["one phase", "flammable", "health", "how sure", "carries", "flash °C", "boils °C", "cost",
+                 "blend (volume fractions)"]
         rows = []
-        for b in res.results:
+        for i, b in enumerate(res.results):
             row = [str(b.rank) + ("*" if b.pareto and rejects else ""), _fmt(b.ra), _fmt(b.red)]
             if rejects:
                 row += [_fmt(b.worst_reject_red if b.worst_reject_red is not None else b.worst_reject_ra),
                         _fmt(b.selectivity)]
-            rows.append(row + [_phase(b, short=True), _short_hazard(b), _fmt(b.lowest_flash_C, ".0f"), _bp(b),
+            rows.append(row + [_phase(b, short=True), _short_hazard(b), _health(_nth(res.health, i)),
+                               _sure(_nth(res.sure, i)), _carries(_nth(res.loads, i)), _fmt(b.lowest_flash_C, ".0f"), _bp(b),
                                _fmt(b.cost, ".1f"), b.label + (f" (+{len(b.alternatives)} alike)" if b.alternatives else "")])
-        fill_table(self.query_one("#blend-grid", DataTable), cols, rows, cut=-1)
+        fill_table(self.query_one("#blend-grid", DataTable), cols, rows, cut=-1, optional=OPTIONAL)
         fill_table(self.query_one("#dropped-grid", DataTable), DROPPED_HEADERS, [
             (_fmt(d.ra), d.reason, " + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions)))
             for d in res.dropped], cut=1)
@@ -505,6 +516,9 @@ class CarriersScreen(BenchScreen):
         if b.alternatives:
             t.append(f"the same blend with {', '.join(b.swapped_in)} in place (same HSP; cost, hazard and food-law "
                      "status may differ)\n")
+        if self.result is not None and b in self.result.results:
+            i = self.result.results.index(b)
+            t.append_text(_more_text(_nth(self.result.health, i), _nth(self.result.sure, i), _nth(self.result.loads, i)))
         if b.rejects:
             t.append("kept out: " + ", ".join(
                 f"{r.name} Ra {r.ra:.1f}" + (f" RED {r.red:.2f}" if r.red is not None else "") for r in b.rejects) + "\n")
@@ -539,6 +553,30 @@ class CarriersScreen(BenchScreen):
         self.query_one("#carrier-cautions", CautionBox).show(cautions)
 
 
+def _nth(items, i: int):
+    return items[i] if i < len(items) else None
+
+
+def _health(h: dict | None) -> str:
+    """The worst health hazard of a liquid or blend in a word ("harmful"), "-" where none was looked up."""
+    if not h:
+        return "-"
+    return str(h.get("category") or "-").replace("none", "no")
+
+
+def _sure(s: dict | None) -> str:
+    """How sure the place in the list is, as the job words it ("stable"), "-" where not asked."""
+    return str((s or {}).get("verdict") or "-")
+
+
+def _carries(load: dict | None) -> str:
+    """The load check's verdict (yes / no / borderline) with the largest load, "-" without a load."""
+    if not load:
+        return "-"
+    top = load.get("largest_load")
+    return str(load.get("verdict")) + ("" if top is None else f" ≤{100 * top:.3g}%")
+
+
 def _allowed(r) -> str:
     """The food-law verdict of a ranked liquid for the use in a word or two (the status in full in the pane)."""
     word = {True: "yes", False: "NO", None: "?"}[r.food_allowed]
@@ -569,3 +607,18 @@ def _bp(b) -> str:
     if b.bp_min_C == b.bp_max_C:
         return f"{b.bp_min_C:g}"
     return f"{b.bp_min_C:g}-{b.bp_max_C:g}"
+
+
+def _more_text(health: dict | None, sure: dict | None, load: dict | None) -> Text:
+    """Health hazard, how sure the place in the list is, and the load check, for a detail pane."""
+    t = Text()
+    if health:
+        label = health.get("label") or ", ".join(f"{k}: {v}" for k, v in (health.get("liquids") or {}).items())
+        t.append(f"health hazard: {label or health.get('category', '-')}\n")
+    if sure:
+        share = sure.get("in_top_three")
+        t.append(f"how sure: {sure.get('verdict', '-')}" + ("" if share is None else
+                 f" (among the best three in {share:.0%} of targets drawn within the target's uncertainty)") + "\n")
+    if load:
+        t.append(f"load {100 * load['load']:.3g} %: {load.get('verdict')}; {load.get('reason', '')}\n")
+    return t

@@ -464,7 +464,7 @@ class Tick(Checkbox):
         return Content.assemble(("[", style), ("x" if self.value else " ", style), ("]", style))
 
 
-def fill_table(grid, headers, rows, cut: int | None = None) -> None:
+def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str, ...] = ()) -> None:
     """Replace a DataTable's columns and rows, each column as wide as its widest cell.
 
     The widths are set here, from the cells, rather than left to the table's
@@ -472,7 +472,8 @@ def fill_table(grid, headers, rows, cut: int | None = None) -> None:
     filled while the screen was still being laid out (cut values such as
     "Ra 1." for 1.20).  ``cut`` names the one column (a name or a reason) whose
     text is shortened, with an ellipsis, so that the table fits the width it
-    has; every other column stays whole.
+    has; every other column stays whole.  Columns named in ``optional`` are left out when every
+    row has "-" in them.
     """
     from rich.cells import cell_len
 
@@ -482,6 +483,10 @@ def fill_table(grid, headers, rows, cut: int | None = None) -> None:
         return max((cell_len(line) for line in str(v).splitlines()), default=0)
 
     rows = [list(r) for r in rows]
+    if optional and rows:  # columns with nothing to say in any row (a check not asked for) are left out
+        keep = [i for i, h in enumerate(headers) if h not in optional or any(str(r[i]) != "-" for r in rows)]
+        cut = None if cut is None else keep.index(cut % len(headers))
+        headers, rows = [headers[i] for i in keep], [[r[i] for i in keep] for r in rows]
     widths = [max([width(h)] + [width(r[i]) for r in rows]) for i, h in enumerate(headers)]
     if cut is not None and headers:
         k = cut % len(headers)
