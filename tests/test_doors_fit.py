@@ -124,3 +124,35 @@ def test_same_error_from_every_door(capsys):
     assert main(["fit", path]) == 2
     err = capsys.readouterr().err
     assert err.startswith("solvsel: Bad input: --good-at-most: ") and exc.value.message in err
+
+
+# paracetamol, whose structure estimate is offered as a prior to the graded fit of the example scores
+PRIOR = "CC(=O)Nc1ccc(O)cc1"
+
+
+def test_graded_fit_with_a_prior_from_the_library_and_the_command_line(capsys):
+    path = str(EXAMPLES / "bench_graded.csv")
+    want = fit(path=path, good_at_most=2.0, graded=True, prior=PRIOR, next_tests=0)
+    assert want.graded is not None and want.prior is not None
+    assert want.graded.prior["agree"] == want.prior["agree"]
+    # the target is the graded sphere where its fitted scores reach the boundary of good results, else the
+    # good/bad sphere (here the fitted score at the centre, 2.56, stays on the bad side of 2.5)
+    chosen = want.sphere if want.graded.r0 is None else want.graded
+    assert (want.target.dD, want.target.r0) == (chosen.dD, chosen.r0)
+    assert main(["fit", path, "--good-at-most", "2", "--graded", "--prior", PRIOR, "--next", "0", "--json"]) == 0
+    got = json.loads(capsys.readouterr().out)
+    _same(got["graded"], json.loads(json.dumps(want.to_dict()["graded"])))
+    _same(got["prior"], json.loads(json.dumps(want.to_dict()["prior"])))
+
+
+def test_graded_fit_errors_name_the_field(capsys):
+    from solvsel.errors import InputError
+
+    with pytest.raises(InputError) as exc:
+        fit(path=str(EXAMPLES / "bench_extract.csv"), graded=True)
+    assert exc.value.param == "graded"
+    with pytest.raises(InputError) as exc:
+        fit(path=str(EXAMPLES / "bench_extract.csv"), prior="C1")
+    assert exc.value.param == "prior"
+    assert main(["fit", str(EXAMPLES / "bench_extract.csv"), "--prior", "C1"]) == 2
+    assert capsys.readouterr().err.startswith("solvsel: Bad input: --prior: ")
