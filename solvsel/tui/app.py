@@ -1,4 +1,4 @@
-"""The solvsel terminal app: seven screens over one shared state, opened on the demo scenario.
+"""The solvsel terminal app: eight screens over one shared state, opened on the demo scenario.
 
 ``create_app`` builds the app for the command line and for the tests alike;
 ``run_app`` runs it.  Each screen lives in its own module; styles in app.tcss.
@@ -44,6 +44,7 @@ class SolvselApp(App):
     def __init__(self, session: Session) -> None:
         from .carriers import CarriersScreen
         from .emulsion import EmulsionScreen
+        from .extraction import ExtractionScreen
         from .hspmap import MapScreen
         from .limits import LimitsScreen
         from .mixing import MixingScreen
@@ -53,7 +54,7 @@ class SolvselApp(App):
         self.MODES = {
             "tables": TablesScreen, "target": TargetScreen, "carriers": CarriersScreen,
             "map": MapScreen, "emulsion": EmulsionScreen, "limits": LimitsScreen,
-            "mixing": MixingScreen,
+            "mixing": MixingScreen, "extraction": ExtractionScreen,
         }
         super().__init__()
         self.session = session
@@ -95,7 +96,7 @@ def create_app(catalog=None, scenario=None, start: str | None = None) -> Solvsel
     """The app on ``catalog`` (default: the bundled tables) and ``scenario`` (default: the demo).
 
     The target starts as the scenario's solute.  ``start`` names the first
-    screen (``tables``, ``target``, ``carriers``, ``map``, ``emulsion``, ``limits``, ``mixing``).
+    screen (``tables``, ``target``, ``carriers``, ``map``, ``emulsion``, ``limits``, ``mixing``, ``extraction``).
     """
     from ..data.catalog import load_catalog
     from ..errors import SolvselError

@@ -1,6 +1,6 @@
 """The frame every screen shares: the screen strip, the target line, the form summary and the key footer.
 
-Keys common to every screen: F1-F7 and Alt+1-7 switch screens (terminals send no
+Keys common to every screen: F1-F8 and Alt+1-8 switch screens (terminals send no
 distinct Ctrl+digit), Ctrl+P opens the command palette, Ctrl+O folds the screen's
 form into a one-line summary and back, Ctrl+T / Ctrl+B go to the next / previous
 tab of a screen that has tabs (and put the cursor in the tab's first field).
@@ -24,6 +24,7 @@ SCREENS = [
     ("emulsion", "F5", "Emulsion"),
     ("limits", "F6", "Limits"),
     ("mixing", "F7", "Mixing"),
+    ("extraction", "F8", "Extraction"),
 ]
 
 #: Below this many columns a screen opens with its form folded into its summary line.

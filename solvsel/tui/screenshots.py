@@ -42,6 +42,7 @@ RUNS = {
         ("extraction", ("f3", "ctrl+g")),
         ("dropped", ("ctrl+t",)),
         ("map-sphere", ("f2", "typed", "f3", "f4")),
+        ("extraction-plan", ("f8",)),
     ],
 }
 
@@ -98,7 +99,9 @@ async def shoot(run: str, size: tuple[int, int]) -> dict[str, str]:
             if stem:
                 app.clear_notifications()
                 await pilot.pause()
-                shots[stem] = app.export_screenshot()
+                # spaces kept as drawn by every SVG renderer (some drop a text run's leading blanks, so
+                # "Target cannabidiol" and "dD" ran together in the pictures)
+                shots[stem] = app.export_screenshot().replace("<svg ", '<svg xml:space="preserve" ', 1)
     return shots
 
 

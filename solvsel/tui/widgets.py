@@ -48,7 +48,7 @@ class ScreenStrip(Static):
         width = len(self.HEAD) + sum(len(k) + len(t) + 1 for _, k, t in full)
         if width <= max(self.size.width, 1) or not self.size.width:
             return full
-        return [(mode, f" {i} ", f"{title.split()[0]} ") for i, (mode, _, title) in enumerate(self.screens, 1)]
+        return [(mode, f" {i} ", f"{title.split()[0]}") for i, (mode, _, title) in enumerate(self.screens, 1)]
 
     def render(self) -> Text:
         t = Text(no_wrap=True, overflow="ellipsis")
@@ -56,7 +56,7 @@ class ScreenStrip(Static):
         t.append("  ")
         for mode, key, title in self.parts():
             here = mode == self.current
-            t.append(key, style="bold " + ("reverse" if here else "underline"))
+            t.append(key, style="bold reverse" if here else "bold")
             t.append(title, style="bold reverse" if here else "")
             t.append(" ")
         return t
@@ -441,6 +441,52 @@ def log_bars(rows, mark: float, unit: str, width: int = 40) -> Text:
         for i, ch in enumerate(f"{10.0 ** e:g}"):
             axis[col + i] = ch
     t.append(" " * (label_w + 1) + "".join(axis).rstrip() + f"  {unit}\n", style="dim")
+    return t
+
+
+#: Colours of the heat map, low to high.
+HEAT = ("#1d3b53", "#245f7a", "#2f8a8f", "#5fa37a", "#a9b45a", "#e0a030", "#e8603c")
+
+
+def heat_map(data: dict) -> Text:
+    """A value over strength (columns) x temperature (rows, warmest on top), from the plain data of
+    :func:`solvsel.jobs.figures.extraction_heatmap`: each point a coloured cell (log scale where
+    ``data["log"]``), a blank ``·`` where there is no value (frozen), the best point ``◆``; the
+    colours placed by :func:`scale_column`, as on the legend under the map."""
+    strengths, temps, values = data["strengths"], data["temps_C"], data["values"]
+    shown = [v for row in values for v in row if v is not None]
+    t = Text()
+    t.append(f"{data['value_label']}\n", style="bold")
+    if not shown:
+        return t.append("no value to draw\n", style="dim")
+    f = (lambda v: math.log10(v)) if data.get("log") else (lambda v: v)
+    lo, hi = f(min(shown)), f(max(shown))
+    cell = 4 if len(strengths) <= 16 else 2 if len(strengths) <= 40 else 1
+    best = data.get("best")
+    for i in reversed(range(len(temps))):
+        t.append(f"{temps[i]:>5g} C ", style="dim")
+        for j, v in enumerate(values[i]):
+            mark = best is not None and [float(strengths[j]), float(temps[i])] == [float(b) for b in best]
+            if v is None:
+                t.append(" ·".ljust(cell), style="dim")
+            else:
+                colour = HEAT[scale_column(f(v), lo, hi, len(HEAT))]
+                t.append(("◆" if mark else " ").center(cell), style=f"bold #ffffff on {colour}")
+        t.append("\n")
+    labels = [" "] * (cell * len(strengths) + 6)
+    end = -2
+    for j, s_ in enumerate(strengths):
+        text = f"{s_:g}"
+        if j * cell > end + 1:
+            labels[j * cell:j * cell + len(text)] = list(text)
+            end = j * cell + len(text)
+    t.append(" " * 8 + "".join(labels).rstrip() + "\n", style="dim")
+    t.append(" " * 8 + f"{data.get('strength_label', '')}\n", style="dim")
+    t.append(" " * 8 + f"{min(shown):.3g} ", style="dim")
+    for colour in HEAT:
+        t.append("  ", style=f"on {colour}")
+    t.append(f" {max(shown):.3g}" + ("  (log scale)" if data.get("log") else "") + "   ◆ best point   · frozen\n",
+             style="dim")
     return t
 
 
