@@ -94,3 +94,12 @@ def test_a_batch_on_this_machine_loads_no_cluster(tmp_path):
                               "--workers", "1", "--json"])
     assert code == 0
     assert not loaded & NO_SCIPY, sorted(loaded & NO_SCIPY)
+
+
+def test_the_sphere_fit_loads_exactly_its_optimisers_and_the_tables():
+    """``fit`` needs scipy's optimisers (linear programme, SLSQP, Nelder-Mead, L-BFGS-B) and the tables
+    (pandas), nothing else; RDKit only when a structure is given as the prior."""
+    fit_modules = {"pandas", "scipy", "scipy.optimize", "scipy.linalg"}
+    assert loaded_by(["fit", BENCH, "--good-at-most", "2", "--graded", "--json"]) == (0, fit_modules)
+    assert loaded_by(["fit", BENCH, "--good-at-most", "2", "--graded", "--prior", "CCO", "--json"]) == (
+        0, fit_modules | {"rdkit"})
