@@ -10,6 +10,8 @@ demo scenario's oil, Brix, dilution and droplet size; every field is editable.
 
 from __future__ import annotations
 
+import math
+
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -24,8 +26,8 @@ from .widgets import CautionBox, fill_table
 PAIR_HEADERS = ("blend HLB", "same tail", "share A", "share B", "emulsifier A", "emulsifier B")
 WEIGHTING_HEADERS = ("verdict", "law", "mg/kg in drink", "limit mg/kg", "oil g/cm³", "share of oil phase",
                      "weighting agent(s)")
-#: Droplet diameters of the creaming picture [um] (the form's own size is added).
-PICTURE_SIZES = (0.1, 0.2, 0.3, 0.5, 0.7, 1.0, 1.5, 2.0, 3.0)
+#: Droplet diameters of the creaming picture [um] (the curve's nearest points; the form's own size is added).
+PICTURE_SIZES = (0.1, 0.2, 0.3, 0.5, 1.0, 2.0, 5.0)
 #: Pairs shown in the table (the text above it counts all that hit the required HLB).
 PAIRS_SHOWN = 12
 
@@ -246,29 +248,28 @@ class EmulsionScreen(BenchScreen):
             parts.append(f"emulsifier {self._text('emulsifier')} {self._text('emulsifier-level') or 'usual level'}")
         return "Drink: " + " · ".join(parts)
 
-    def _picture(self, r) -> Text:
-        """Time to cream against droplet diameter: the ``emulsion`` job asked once a diameter, drawn on
-        a log scale with the shelf life marked."""
-        import dataclasses
-
-        from ..errors import SolvselError
-        from ..jobs.emulsion import emulsion
+    @staticmethod
+    def _picture(r) -> Text:
+        """Days to cream against droplet diameter, from the creaming figure data of the result
+        (:func:`solvsel.jobs.figures.creaming`): a bar a diameter on a log scale, the shelf life marked."""
+        from ..jobs.figures import figures_of
         from .widgets import log_bars
 
-        if r.time_to_cream_days is None:
+        fig = next((f for f in figures_of("emulsion", r.to_dict()) if f.kind == "creaming"), None)
+        if fig is None:
             return Text()
-        req = self.emulsion_request()
+        d = fig.data
+        pairs = list(zip(d["diameter_um"], d["days"]))
         rows = []
-        for d in sorted(set(PICTURE_SIZES) | {r.droplet_diameter_um}):
-            try:
-                days = emulsion(dataclasses.replace(req, droplet_um=d), catalog=self.session.catalog).time_to_cream_days
-            except SolvselError:
-                continue
-            if days is not None:
-                rows.append((f"{d:g} um" + (" (yours)" if d == r.droplet_diameter_um else ""), abs(days)))
-        t = Text(f"\nDays to cream {r.height_mm:g} mm against droplet diameter (log scale; │ the shelf life, "
-                 f"{r.shelf_days:g} days)\n", style="bold")
-        t.append_text(log_bars(rows, r.shelf_days, "days"))
+        for nice in PICTURE_SIZES:  # the curve's point nearest each round diameter
+            um, days = min(pairs, key=lambda p: abs(math.log(p[0] / nice)))
+            rows.append((f"{um:.2g} um", abs(days)))
+        if d.get("chosen_um") and d.get("chosen_days") is not None:
+            rows.append((f"{d['chosen_um']:g} um (yours)", abs(d["chosen_days"])))
+            rows.sort(key=lambda row: float(row[0].split()[0]))
+        t = Text(f"\n{fig.title}: days to {d['direction']} {d['height_mm']:g} mm (log scale; │ the shelf life, "
+                 f"{d['shelf_days']:g} days)\n", style="bold")
+        t.append_text(log_bars(rows, d["shelf_days"], "days"))
         return t
 
     @staticmethod

@@ -23,6 +23,10 @@ from .widgets import CautionBox, fill_table
 # Verdicts first (kept? binding? how much of the limit, the dose it allows), the rule's text last.
 CHECK_HEADERS = ("ok", "binds", "of limit", "max dose", "substance", "level", "limit", "unit", "confidence", "rule")
 
+#: The clarity table: the verdict first, the component last.
+CLARITY_HEADERS = ("clear?", "mg/kg in drink", "dissolves mg/kg", "level / solubility", "clear up to mg/kg",
+                   "component")
+
 #: The purpose choice meaning "none given" (every residue rule shown with the purposes it applies to).
 NO_PURPOSE = "none"
 
@@ -66,11 +70,13 @@ class LimitsScreen(BenchScreen):
     FORM = "limits-form"
     BINDINGS = [Binding("ctrl+r", "compute", "Compute", priority=True)]
     FIELD_LABELS = {"formula": "formula", "dose": "dose", "chain": "dilution chain", "category": "food category",
-                    "jurisdiction": "jurisdiction", "purpose": "the formula is for"}
+                    "jurisdiction": "jurisdiction", "purpose": "the formula is for",
+                    "brix": "sugar in the drink"}
 
     def __init__(self) -> None:
         super().__init__()
         self.result = None
+        self.clarity = None  # the clarity check of the same formula, dose and chain
 
     def compose(self) -> ComposeResult:
         yield from self.compose_frame_top()
@@ -87,6 +93,8 @@ class LimitsScreen(BenchScreen):
                 yield Input(id="lim-category", compact=True)
                 yield Label("Jurisdiction (EU or US)")
                 yield Input(id="lim-jurisdiction", compact=True)
+                yield Label("Sugar in the drink, degrees Brix (for clarity)")
+                yield Input(id="lim-brix", compact=True)
                 yield Label("The formula is for (its residues are judged for it)")
                 yield Select(purpose_choices(self.session.catalog), value=NO_PURPOSE, allow_blank=False,
                              id="lim-purpose", compact=True)
@@ -97,6 +105,9 @@ class LimitsScreen(BenchScreen):
                 yield Static("", id="lim-stages-title", classes="result-block")
                 yield DataTable(id="lim-stages", cursor_type="row", zebra_stripes=True)
                 yield Static("", id="lim-notes", classes="result-block")
+                yield Static("", id="lim-clarity-title", classes="result-block")
+                yield DataTable(id="lim-clarity", cursor_type="row", zebra_stripes=True)
+                yield Static("", id="lim-clarity-notes", classes="result-block")
                 yield CautionBox(id="lim-cautions", classes="cautions")
         yield from self.compose_frame_bottom()
 
@@ -107,6 +118,7 @@ class LimitsScreen(BenchScreen):
         self.query_one("#lim-chain", Input).value = str(f.get("chain", ""))
         self.query_one("#lim-category", Input).value = str(f.get("category", "food"))
         self.query_one("#lim-jurisdiction", Input).value = str(f.get("jurisdiction", "EU"))
+        self.query_one("#lim-brix", Input).value = f"{float(f.get('brix', 0.0)):g}"
         if f.get("purpose"):
             self.query_one("#lim-purpose", Select).value = f["purpose"]
         fill_table(self.query_one("#lim-checks", DataTable), CHECK_HEADERS, [])
@@ -159,6 +171,10 @@ class LimitsScreen(BenchScreen):
             self.query_one("#lim-stages", DataTable).clear(columns=True)
             self.query_one("#lim-stages-title", Static).update("")
             self.query_one("#lim-notes", Static).update("")
+            self.clarity = None
+            fill_table(self.query_one("#lim-clarity", DataTable), CLARITY_HEADERS, [])
+            self.query_one("#lim-clarity-title", Static).update("")
+            self.query_one("#lim-clarity-notes", Static).update("")
             said = exc.describe(lambda p: field_label(p, self.FIELD_LABELS))
             self.query_one("#lim-summary", Static).update(Text.assemble((f"{exc.title}: ", "bold"), said))
             if interactive:
@@ -166,7 +182,57 @@ class LimitsScreen(BenchScreen):
             return
         self.result = result
         self.show(result)
+        self.check_clarity()
         self.show_summary()
+
+    def check_clarity(self) -> None:
+        """The ``clarity`` job on the same formula, dose and chain: will the drink stay clear?  A mistake
+        in the Brix field is said in the block (the limits above stand)."""
+        from ..errors import SolvselError
+        from ..jobs.clarity import ClarityRequest, clarity
+        from ..jobs.parse import parse_number
+
+        def text(name: str) -> str:
+            return self.query_one(f"#lim-{name}", Input).value.strip()
+
+        title = self.query_one("#lim-clarity-title", Static)
+        grid = self.query_one("#lim-clarity", DataTable)
+        self.clarity = None
+        try:
+            req = ClarityRequest(formula=text("formula"), dose=text("dose") or None, chain=text("chain") or None,
+                                 brix=parse_number(text("brix") or "0", "brix", "degrees Brix"))
+            self.clarity = clarity(req, catalog=self.session.catalog)
+        except SolvselError as exc:
+            fill_table(grid, CLARITY_HEADERS, [])
+            said = exc.describe(lambda p: field_label(p, self.FIELD_LABELS))
+            title.update(Text.assemble(("\nWill the drink stay clear?\n", "bold"), (f"{exc.title}: ", "bold"), said))
+            self.query_one("#lim-clarity-notes", Static).update("")
+            return
+        self.show_clarity(self.clarity)
+
+    def show_clarity(self, r) -> None:
+        """Show a :class:`~solvsel.jobs.clarity.ClarityResult`: the verdict, each component, the ways out."""
+        t = Text("\nWill the drink stay clear? ", style="bold")
+        t.append(f"{r.verdict}\n", style="bold")
+        if r.largest_clear_dose is not None:
+            dose = (f"{100 * r.largest_clear_dose:.3g} %" if r.dose_unit.endswith("fraction")
+                    else f"{r.largest_clear_dose:.4g} {r.dose_unit}")
+            t.append(f"largest dose that keeps every judged component clear: {dose}\n")
+        self.query_one("#lim-clarity-title", Static).update(t)
+        fill_table(self.query_one("#lim-clarity", DataTable), CLARITY_HEADERS, [
+            (c.verdict, _g(c.level_mg_kg), _g(c.solubility_mg_kg), _g(c.ratio, ".2f"), _g(c.max_clear_level_mg_kg),
+             c.name) for c in r.components], cut=-1)
+        notes = Text()
+        for c in r.components:
+            for w in c.ways_out if c.verdict != "clear" else ():
+                notes.append(f"{c.name}: {w['text']}\n")
+        for n in r.not_judged:
+            notes.append(f"not judged: {n.get('name', '')}: {n.get('reason', n)}\n", style="dim")
+        for n in r.notes:
+            notes.append(f"note: {n}\n", style="dim")
+        self.query_one("#lim-clarity-notes", Static).update(notes)
+        self.query_one("#lim-cautions", CautionBox).show(list(self.result.cautions if self.result else ())
+                                                         + list(r.cautions))
 
     @staticmethod
     def _notes(result) -> Text:

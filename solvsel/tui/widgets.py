@@ -536,7 +536,7 @@ def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str,
     widths = [max([width(h)] + [width(r[i]) for r in rows]) for i, h in enumerate(headers)]
     if cut is not None and headers:
         k = cut % len(headers)
-        room = (grid.size.width or grid.app.size.width) - 2  # the scroll bar
+        room = (grid.size.width or grid.app.size.width) - 4  # the scroll bars (the pane's may come later)
         left = room - sum(w + 2 for i, w in enumerate(widths) if i != k) - 2  # 2: the cell's padding
         if left < widths[k]:
             widths[k] = max(left, width(headers[k]), 8)
