@@ -38,6 +38,9 @@ class SolvselApp(App):
     BINDINGS = [Binding(f"{key.lower()},alt+{i}", f"switch_mode('{mode}')", title, show=False)
                 for i, (mode, key, title) in enumerate(SCREENS, 1)] + [
         Binding("f9", "toggle_keys", "Keys"),
+        Binding("ctrl+s", "save_work", "Save work", show=False, priority=True),
+        Binding("ctrl+l", "open_work", "Open work", show=False, priority=True),
+        Binding("f10", "export", "Export report", show=False),
         Binding("ctrl+q", "quit", "Quit", priority=True),
     ]
 
@@ -80,8 +83,67 @@ class SolvselApp(App):
                                 lambda m=mode: self.switch_mode(m))
         yield SystemCommand("Fold or show the form", "the form of this screen as one line (Ctrl+O)",
                             lambda: self.screen.run_action("toggle_form"))
+        yield SystemCommand("Save the work", "the target, the forms of every screen, as a workspace file (Ctrl+S)",
+                            self.action_save_work)
+        yield SystemCommand("Open a workspace", "a saved piece of work: its target and forms (Ctrl+L)",
+                            self.action_open_work)
+        yield SystemCommand("Export a report", "the result on screen with its figures: .md, .html, .json, .csv "
+                            "(F10)", self.action_export)
         yield SystemCommand("Keys", "show or hide every key of this screen (F9)", self.action_toggle_keys)
         yield SystemCommand("Quit", "leave solvsel (Ctrl+Q)", self.exit)
+
+    def _ask(self, title: str, hint: str, value: str, then) -> None:
+        """Ask for a file name, then call ``then(path)``; a user's mistake opens the error dialog."""
+        from ..errors import SolvselError
+        from .dialogs import PathDialog, show_error
+
+        def done(path: str | None) -> None:
+            if not path:
+                return
+            try:
+                said = then(path)
+            except SolvselError as exc:
+                show_error(self, exc, {"path": "file name"})
+                return
+            self.notify(said, timeout=4)
+
+        self.push_screen(PathDialog(title, hint, value), done)
+
+    def action_save_work(self) -> None:
+        from .workfile import save_work
+
+        self._ask("Save the work", "Workspace file (JSON; the previous version is kept as FILE.bak)",
+                  self.session.notes.get("workspace", "work.solvsel.json"),
+                  lambda path: f"saved: {save_work(self, path)}")
+
+    def action_open_work(self) -> None:
+        from .workfile import open_work
+
+        def opened(path: str) -> str:
+            name = open_work(self, path)
+            self.session.notes["workspace"] = path
+            return f"opened: {name or path}"
+
+        self._ask("Open a workspace", "Workspace file saved by solvsel", self.session.notes.get("workspace", ""), opened)
+
+    def action_export(self) -> None:
+        from ..errors import InputError
+        from ..jobs.report import write_report
+
+        got = getattr(self.screen, "report_of", lambda: None)()
+        if got is None:
+            self.notify("nothing to export on this screen yet", severity="warning", timeout=3)
+            return
+        job, title, text, result = got
+
+        def export(path: str) -> str:
+            if not path.strip():
+                raise InputError("give a file name", param="path")
+            paths = write_report(path, title, job, text, result.to_dict(), catalog=self.session.catalog, job=job)
+            return f"report written: {paths[0]} (and {len(paths) - 1} files beside it)"
+
+        self._ask(f"Export a report: {title}", "Report file (.md; .html, .json, .csv and the figures beside it)",
+                  f"{job}-report.md", export)
 
     def on_mount(self) -> None:
         self.switch_mode(self.start_mode or ("carriers" if self.session.target is not None else "tables"))

@@ -69,8 +69,15 @@ class BenchScreen(Screen):
         yield Footer()
 
     def on_mount(self) -> None:
+        self.session.screens[self.MODE] = self
         if self.FORM and self.app.size.width < NARROW:
             self.fold_form(True)
+
+    def form_to_session(self) -> None:
+        """Put the form's values in the session (``session.overrides``) for a workspace to save."""
+
+    def session_to_form(self) -> None:
+        """Fill the form again from the session (an opened workspace) and recompute."""
 
     def check_action(self, action: str, parameters) -> bool | None:
         """Hide the keys a screen has no use for (no form, no tabs) from the footer."""

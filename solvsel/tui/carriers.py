@@ -195,9 +195,36 @@ class CarriersScreen(BenchScreen):
         self.query_one("#temp", Input).value = f"{float(part.get('temp_C', 25.0)):g}"
         self.query_one("#rejects", Input).value = ", ".join(part.get("reject", []))
         self.query_one("#exclude", Input).value = ", ".join(part.get("exclude", []))
-        self.query_one("#min-flash", Input).value = ""
-        self.query_one("#bp-window", Input).value = ""
-        self.query_one("#load", Input).value = str(part.get("load", ""))
+        self.query_one("#min-flash", Input).value = _g(part.get("min_flash_C"))
+        lo, hi = part.get("bp_min_C"), part.get("bp_max_C")
+        self.query_one("#bp-window", Input).value = "" if lo is None and hi is None else f"{_g(lo)}:{_g(hi)}"
+        self.query_one("#load", Input).value = "" if part.get("load") is None else f"{100 * float(part['load']):g}%"
+
+    def report_of(self):
+        """(job, title, text, result) of the list in front, for a report (None before any result)."""
+        single = self.query_one("#carrier-tabs", TabbedContent).active == "tab-single"
+        result = self.ranking if single else self.result
+        if result is None:
+            return None
+        name = self.session.target.name if self.session.target is not None else "the target"
+        return ("rank" if single else "blend", f"{'Single liquids' if single else 'Blends'} for {name}",
+                str(self.query_one("#carrier-detail", Static).render()), result)
+
+    def form_to_session(self) -> None:
+        """The constraints as the request reads them (a mistake in the form: the dialog, nothing kept)."""
+        requests = self.guard(self.read_form)
+        if requests is None:
+            return
+        b = requests[1]
+        self.session.overrides["carrier"] = {
+            "use": b.use or "any", "jurisdiction": b.jurisdiction or "none", "purpose": b.purpose,
+            "max_components": b.max_components, "temp_C": b.temp_C, "exclude": list(b.exclude),
+            "reject": list(b.rejects), "min_flash_C": b.min_flash_C, "bp_min_C": b.bp_min_C, "bp_max_C": b.bp_max_C,
+            "load": b.load}
+
+    def session_to_form(self) -> None:
+        self.fill_preset("carrier")
+        self.refresh_all()
 
     def action_preset(self, key: str) -> None:
         self.fill_preset(key)
@@ -551,6 +578,11 @@ class CarriersScreen(BenchScreen):
         # the most serious first: flammability and toxicity before the general deferral
         cautions.sort(key=lambda c: c.startswith(("Estimates", "Screening")))
         self.query_one("#carrier-cautions", CautionBox).show(cautions)
+
+
+def _g(x) -> str:
+    """A number of the form as typed (empty for none)."""
+    return "" if x is None else f"{float(x):g}"
 
 
 def _nth(items, i: int):

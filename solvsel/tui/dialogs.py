@@ -6,7 +6,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
 from textual.screen import ModalScreen
-from textual.widgets import Button, Static
+from textual.widgets import Button, Input, Static
 
 
 class ErrorDialog(ModalScreen[None]):
@@ -36,6 +36,32 @@ class ErrorDialog(ModalScreen[None]):
         self.dismiss()
 
 
+class PathDialog(ModalScreen[str | None]):
+    """Asks for a file name (save, open, export); dismissed with the text, or None when cancelled."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel")]
+
+    def __init__(self, title: str, hint: str, value: str = "") -> None:
+        super().__init__()
+        self.title_text, self.hint, self.value = title, hint, value
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="path-box"):
+            yield Static(self.title_text, id="path-title")
+            yield Static(self.hint, id="path-hint", markup=False)
+            yield Input(self.value, id="path-input", compact=True)
+
+    def on_mount(self) -> None:
+        self.query_one("#path-input", Input).focus()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        event.stop()
+        self.dismiss(event.value.strip() or None)
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
 #: Labels of request fields for screens that do not name a field in their own ``FIELD_LABELS``.
 FIELD_NAMES = {
     "chain": "dilution chain",
@@ -62,6 +88,7 @@ FIELD_NAMES = {
     "good_at_most": "good at a score of at most",
     "good_at_least": "good at a score of at least",
     "solute": "target",
+    "path": "file name",
 }
 
 

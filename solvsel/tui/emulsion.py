@@ -32,6 +32,12 @@ PICTURE_SIZES = (0.1, 0.2, 0.3, 0.5, 1.0, 2.0, 5.0)
 PAIRS_SHOWN = 12
 
 
+def _amounts(text: str) -> list:
+    from ..jobs.parse import parse_amounts
+
+    return parse_amounts(text, "oil") if text else []
+
+
 def _amounts_text(d: dict) -> str:
     return ", ".join(f"{k}={v:g}" for k, v in d.items())
 
@@ -100,19 +106,50 @@ class EmulsionScreen(BenchScreen):
         yield from self.compose_frame_bottom()
 
     def on_mount(self) -> None:
+        self.fill_form()
+        fill_table(self.query_one("#em-pairs", DataTable), PAIR_HEADERS, [])
+        fill_table(self.query_one("#em-weighting", DataTable), WEIGHTING_HEADERS, [])
+        self.compute(interactive=False)
+
+    def fill_form(self) -> None:
+        """The fields from the scenario's emulsion (or an opened workspace's)."""
         e = self.session.scenario_part("emulsion")
         self.query_one("#em-oil", Input).value = _amounts_text(e.get("oil", {}))
-        self.query_one("#em-hlb-oil", Input).value = _amounts_text(e.get("hlb_oil", e.get("oil", {})))
+        self.query_one("#em-hlb-oil", Input).value = _amounts_text(e.get("hlb_oil") or e.get("oil", {}))
         self.query_one("#em-hlb-note", Static).update(e.get("hlb_note", "") or
                                                       "a weighting agent has no required HLB: leave it out here")
-        self.query_one("#em-emulsifiers", Input).value = ", ".join(e.get("emulsifiers", []))
+        self.query_one("#em-emulsifiers", Input).value = ", ".join(e.get("emulsifiers") or [])
         self.query_one("#em-brix", Input).value = f"{e.get('brix', 10):g}"
         self.query_one("#em-dilution", Input).value = f"{e.get('dilution', 500):g}"
         self.query_one("#em-droplet", Input).value = f"{e.get('droplet_um', 0.4):g}"
         self.query_one("#em-jurisdiction", Input).value = e.get("jurisdiction", "EU")
         self.query_one("#em-purpose", Select).value = e.get("purpose") or NO_PURPOSE
-        fill_table(self.query_one("#em-pairs", DataTable), PAIR_HEADERS, [])
-        fill_table(self.query_one("#em-weighting", DataTable), WEIGHTING_HEADERS, [])
+        self.query_one("#em-emulsifier", Input).value = e.get("emulsifier") or ""
+        ratio = e.get("emulsifier_ratio")
+        self.query_one("#em-emulsifier-level", Input).value = "" if ratio is None else f"{ratio:g}"
+        if e.get("oil_phase") is not None:
+            self.query_one("#em-oil-pct", Input).value = f"{100 * float(e['oil_phase']):g}%"
+
+    def report_of(self):
+        """(job, title, text, result) for a report: the emulsion design on screen."""
+        if self.design is None:
+            return None
+        return "emulsion", "Beverage emulsion", str(self.query_one("#em-design", Static).render()), self.design
+
+    def form_to_session(self) -> None:
+        """The fields as the emulsion request reads them (a mistake: the dialog, nothing kept)."""
+        req = self.guard(self.emulsion_request)
+        if req is None:
+            return
+        self.session.overrides["emulsion"] = {
+            "oil": {k: v for k, v in req.oil}, "brix": req.brix, "dilution": req.dilution, "droplet_um": req.droplet_um,
+            "jurisdiction": ", ".join(req.jurisdictions), "purpose": req.purpose, "emulsifier": req.emulsifier,
+            "emulsifier_ratio": req.emulsifier_ratio, "oil_phase": req.oil_phase,
+            "hlb_oil": dict(self.guard(_amounts, self._text("hlb-oil")) or {}),
+            "emulsifiers": [n.strip() for n in self._text("emulsifiers").split(",") if n.strip()]}
+
+    def session_to_form(self) -> None:
+        self.fill_form()
         self.compute(interactive=False)
 
     def on_button_pressed(self, event: Button.Pressed) -> None:

@@ -86,6 +86,12 @@ class ExtractionScreen(BenchScreen):
     def action_compute(self) -> None:
         self.compute()
 
+    def report_of(self):
+        """(job, title, text, result) for a report: the extraction plan on screen, with its heat map."""
+        if self.result is None:
+            return None
+        return "extraction", f"Extraction plan for {self.result.target.name}", self.result.window, self.result
+
     def form_summary(self) -> str:
         def text(name: str) -> str:
             return self.query_one(f"#ex-{name}", Input).value.strip() or "-"

@@ -58,6 +58,13 @@ class MapScreen(BenchScreen):
         self.query_one("#hsp-map", BrailleMap).border_subtitle = (
             f"under the cursor: {message.names}" if message.names else "arrow keys: a cursor that names the liquids")
 
+    def report_of(self):
+        """(job, title, text, result) for a report: the ranking the map draws, with its map."""
+        r = self.session.ranking
+        if r is None:
+            return None
+        return "rank", f"Liquids around {r.target.name}", str(self.query_one("#map-legend", Static).render()), r
+
     def action_toggle_view(self) -> None:
         self.view = "2dD-dH" if self.view == "dP-dH" else "dP-dH"
         self.redraw()

@@ -112,16 +112,43 @@ class LimitsScreen(BenchScreen):
         yield from self.compose_frame_bottom()
 
     def on_mount(self) -> None:
+        self.fill_form()
+        fill_table(self.query_one("#lim-checks", DataTable), CHECK_HEADERS, [])
+        self.compute(interactive=False)
+
+    def fill_form(self) -> None:
+        """The fields from the scenario's flavour (or an opened workspace's)."""
         f = self.session.scenario_part("flavour")
         self.query_one("#lim-formula", Input).value = ", ".join(f"{k}={v:g}" for k, v in f.get("formula", {}).items())
         self.query_one("#lim-dose", Input).value = str(f.get("dose", ""))
         self.query_one("#lim-chain", Input).value = str(f.get("chain", ""))
         self.query_one("#lim-category", Input).value = str(f.get("category", "food"))
         self.query_one("#lim-jurisdiction", Input).value = str(f.get("jurisdiction", "EU"))
-        self.query_one("#lim-brix", Input).value = f"{float(f.get('brix', 0.0)):g}"
+        self.query_one("#lim-brix", Input).value = str(f.get("brix", 0))
         if f.get("purpose"):
             self.query_one("#lim-purpose", Select).value = f["purpose"]
-        fill_table(self.query_one("#lim-checks", DataTable), CHECK_HEADERS, [])
+
+    def report_of(self):
+        """(job, title, text, result) for a report: the dose check on screen."""
+        if self.result is None:
+            return None
+        return "dose", "Limits along the dilution chain", str(self.query_one("#lim-summary", Static).render()), self.result
+
+    def form_to_session(self) -> None:
+        from ..jobs.parse import parse_amounts
+
+        def text(name: str) -> str:
+            return self.query_one(f"#lim-{name}", Input).value.strip()
+
+        formula = self.guard(parse_amounts, text("formula"), "formula")
+        if formula is None:
+            return
+        self.session.overrides["flavour"] = {"formula": dict(formula), "dose": text("dose"), "chain": text("chain"),
+                                             "category": text("category"), "jurisdiction": text("jurisdiction"),
+                                             "brix": text("brix") or 0}
+
+    def session_to_form(self) -> None:
+        self.fill_form()
         self.compute(interactive=False)
 
     def form_summary(self) -> str:

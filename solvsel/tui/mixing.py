@@ -68,6 +68,12 @@ class MixingScreen(BenchScreen):
         fill_table(self.query_one("#mix-pairs", DataTable), PAIR_HEADERS, [])
         self.query_one("#mix-bridges", DataTable).display = False
 
+    def report_of(self):
+        """(job, title, text, result) for a report: the miscibility check on screen."""
+        if self.result is None:
+            return None
+        return "miscible", "One phase or two", str(self.query_one("#mix-summary", Static).render()), self.result
+
     def form_summary(self) -> str:
         q = self.query_one
         parts = [q("#mix-liquids", Input).value.strip() or "-", f"{q('#mix-temp', Input).value.strip() or '25'} C"]

@@ -2,6 +2,8 @@
 
 A plain object on the app, not a widget: the target screen sets the target,
 and the carriers and map screens redraw when they see its ``version`` change.
+A workspace opened in the app puts its forms' values in ``overrides`` (by part of
+the scenario), which every screen's form reads before the scenario's own.
 """
 
 from __future__ import annotations
@@ -21,6 +23,8 @@ class Session:
     ranking: Any = None  # last single-liquid ranking (library result) for the map
     blends: Any = None  # last BlendSearch
     notes: dict = field(default_factory=dict)
+    overrides: dict = field(default_factory=dict)  # part -> form values (an opened workspace's, or saved)
+    screens: dict = field(default_factory=dict)  # mode -> the screen, once it has been shown
 
     def set_target(self, target) -> None:
         self.target = target
@@ -29,9 +33,8 @@ class Session:
         self.version += 1
 
     def scenario_part(self, key: str) -> dict:
-        """A part of the scenario (``carrier``, ``extraction``, ``emulsion``, ``flavour``) as a dict."""
+        """A part of the scenario (``carrier``, ``extraction``, ``emulsion``, ``flavour``) as a dict, with the
+        values of an opened workspace over it."""
         s = self.scenario
-        if s is None:
-            return {}
-        part = getattr(s, key, None) if not isinstance(s, dict) else s.get(key)
-        return dict(part or {})
+        part = {} if s is None else (getattr(s, key, None) if not isinstance(s, dict) else s.get(key))
+        return {**dict(part or {}), **self.overrides.get(key, {})}

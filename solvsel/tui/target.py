@@ -183,6 +183,13 @@ class TargetScreen(BenchScreen):
         self.query_one("#bench-detail", Static).update(text)
         return self.bench_result.target
 
+    def report_of(self):
+        """(job, title, text, result) for a report: the bench fit, when it made the current target."""
+        r = self.bench_result
+        if r is None or self.session.target != r.target:
+            return None
+        return "fit", f"Bench fit: {r.target.name}", str(_fit_text(r)), r
+
     # ---------------------------------------------------------------- show
     def set_target(self, target) -> None:
         if target is None:
