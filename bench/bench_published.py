@@ -20,11 +20,14 @@ Figures:
 2. the solubility estimate's median RMS error in log10 x, over solutes with a melting point (with
    measured enthalpy of fusion, with Walden's rule, all);
 3. sphere fits from the measured solubilities, good = the solute's top third of liquids by mole
-   fraction: leave-one-out accuracy of the good/bad fit (the current ``fit`` job), of the graded fit
+   fraction: leave-one-out accuracy of the good/bad fit (the ``fit`` job on good/bad results), of the
+   same with each result weighted by its distance from the cut (the ``fit`` job on numeric scores,
+   :func:`solvsel.science.sphere.grading_weights`), of the graded fit
    (:func:`solvsel.science.sphere.fit_graded` on log10 x), and of the graded fit with the structure
    estimate as prior; the majority class; centres on a search bound; distance of the centres from
    the structure estimate; and, to show what a sphere can do at all on these data, the in-sample
-   (resubstitution) accuracy of the good/bad sphere fitted to all liquids;
+   (resubstitution) accuracy of the good/bad sphere fitted to all liquids; beside them, the accuracy
+   of calling the top third without a fit (solute-blind ranking, -Ra to the structure estimate);
 4. miscibility, when ``bench/published_miscibility.py`` is there (``miscibility_figures()``).
 """
 
@@ -192,6 +195,26 @@ def spheres(split: str | None, kind: str, limit: int | None = None) -> dict:
             "prior_agrees": f"{sum(agree)} of {len(agree)}" if agree else ""}
 
 
+@lru_cache(maxsize=None)
+def top_third_baselines(split: str | None) -> dict:
+    """Accuracy of calling good the predicted top third of each solute's liquids, without a fit: by
+    the solute-blind ranking (liquids it cannot rank counted as misses) and by -Ra to the structure
+    estimate."""
+    hits = {"blind": 0, "estimate": 0}
+    n = 0
+    for s, g, L, _, _ in _groups(split):
+        y = g["log10_x"].to_numpy()
+        good, _ = top_third(y)
+        k = int(good.sum())
+        for key, score in (("blind", _blind(s, g)), ("estimate", -ra(L, np.array(s.hsp)))):
+            score = np.where(np.isfinite(score), score, -np.inf)
+            called = np.zeros(len(y), bool)
+            called[np.argsort(-score, kind="stable")[:k]] = True
+            hits[key] += int((called == good).sum())
+        n += len(y)
+    return {k: v / n for k, v in hits.items()}
+
+
 def _line(what: str, fig: dict) -> None:
     print(f"  {what:<74s} " + "  ".join(f"{k}: {v}" for k, v in fig.items()))
 
@@ -214,8 +237,12 @@ def report(split: str | None, quick: bool) -> None:
     _line("  every solute with a melting point", {"": fmt(both)})
     _line("  every solute with a melting point, dH split", {"": fmt(e["hb_split"])})
     limit = 8 if quick else None
-    for kind, what in (("binary", "good/bad fit (the fit job today)"), ("graded", "graded fit on log10 x"),
-                       ("graded_prior", "graded fit, structure estimate as prior")):
+    b = top_third_baselines(split)
+    _line("top third called without a fit: solute-blind ranking / -Ra to the estimate",
+          {"": f"{b['blind']:.3f} / {b['estimate']:.3f}"})
+    for kind, what in (("binary", "good/bad fit (the fit job on good/bad results)"),
+                       ("weighted", "good/bad fit weighted by distance from the cut (fit job, scores)"),
+                       ("graded", "graded fit on log10 x"), ("graded_prior", "graded fit, structure estimate as prior")):
         t0 = time.perf_counter()
         f = spheres(split, kind, limit)
         _line(f"sphere, top third good, {what}",
