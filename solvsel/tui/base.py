@@ -128,10 +128,6 @@ class BenchScreen(Screen):
         if field:
             widget = self.query_one(field)
             self.call_after_refresh(widget.focus)
-        self.tab_opened(event.pane.id or "")
-
-    def tab_opened(self, tab: str) -> None:
-        """Called when a tab of the screen opens."""
 
     # ---------------------------------------------------------------- target
     def on_screen_resume(self) -> None:

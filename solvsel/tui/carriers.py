@@ -31,6 +31,8 @@ DROPPED_HEADERS = ("Ra MPa½", "why it was dropped", "blend (volume fractions)")
 EXCLUDED_HEADERS = ("why it is not in the pool", "liquid")
 #: Columns shown only where some row has something in them (the load check is asked for, say).
 OPTIONAL = ("carries", "how sure", "health")
+#: Columns that give way to the names on a narrow screen, first to last (the detail pane has them).
+SPARE = ("cost", "boils °C", "how sure", "flash °C", "health")
 #: Weight of counting the combinations in the one bar over the search (the checks and the
 #: description of the best blends after it report no count of their own).
 COUNT_SHARE = 0.6
@@ -287,7 +289,7 @@ class CarriersScreen(BenchScreen):
             (str(i), _fmt(r.ra), _fmt(r.red), _allowed(r), r.hazard_code or "no", _health(r.health_hazard),
              _sure(r.how_sure), _carries(r.load), _fmt(r.flash_C, ".0f"),
              _fmt(r.bp_C, ".0f"), _fmt(r.cost_class, ".0f"), r.name + (" (yours)" if r.origin.startswith("user") else ""))
-            for i, r in enumerate(res.results if res is not None else (), 1)], cut=-1, optional=OPTIONAL)
+            for i, r in enumerate(res.results if res is not None else (), 1)], cut=-1, optional=OPTIONAL, spare=SPARE)
 
     def on_resize(self) -> None:
         """Cut the names to the new width (the verdict columns stay whole)."""
@@ -477,7 +479,7 @@ class CarriersScreen(BenchScreen):
             rows.append(row + [_phase(b, short=True), _short_hazard(b), _health(_nth(res.health, i)),
                                _sure(_nth(res.sure, i)), _carries(_nth(res.loads, i)), _fmt(b.lowest_flash_C, ".0f"), _bp(b),
                                _fmt(b.cost, ".1f"), b.label + (f" (+{len(b.alternatives)} alike)" if b.alternatives else "")])
-        fill_table(self.query_one("#blend-grid", DataTable), cols, rows, cut=-1, optional=OPTIONAL)
+        fill_table(self.query_one("#blend-grid", DataTable), cols, rows, cut=-1, optional=OPTIONAL, spare=SPARE)
         fill_table(self.query_one("#dropped-grid", DataTable), DROPPED_HEADERS, [
             (_fmt(d.ra), d.reason, " + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions)))
             for d in res.dropped], cut=1)

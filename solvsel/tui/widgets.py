@@ -510,7 +510,12 @@ class Tick(Checkbox):
         return Content.assemble(("[", style), ("x" if self.value else " ", style), ("]", style))
 
 
-def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str, ...] = ()) -> None:
+#: Cells a cut name keeps at least before columns named as spare give way.
+NAME_ROOM = 28
+
+
+def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str, ...] = (),
+               spare: tuple[str, ...] = ()) -> None:
     """Replace a DataTable's columns and rows, each column as wide as its widest cell.
 
     The widths are set here, from the cells, rather than left to the table's
@@ -519,7 +524,8 @@ def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str,
     "Ra 1." for 1.20).  ``cut`` names the one column (a name or a reason) whose
     text is shortened, with an ellipsis, so that the table fits the width it
     has; every other column stays whole.  Columns named in ``optional`` are left out when every
-    row has "-" in them.
+    row has "-" in them; those named in ``spare`` (in that order) are left out where the screen is too
+    narrow to give the cut column :data:`NAME_ROOM` cells (the detail pane shows them).
     """
     from rich.cells import cell_len
 
@@ -534,9 +540,20 @@ def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str,
         cut = None if cut is None else keep.index(cut % len(headers))
         headers, rows = [headers[i] for i in keep], [[r[i] for i in keep] for r in rows]
     widths = [max([width(h)] + [width(r[i]) for r in rows]) for i, h in enumerate(headers)]
+    room = (grid.size.width or grid.app.size.width) - 4  # the scroll bars (the pane's may come later)
+    if cut is not None and spare:  # columns the detail pane also shows give way to the name first
+        k = cut % len(headers)
+        for name in spare:
+            need = min(widths[k], NAME_ROOM)
+            if name not in headers or room - sum(w + 2 for i, w in enumerate(widths) if i != k) - 2 >= need:
+                continue
+            i = headers.index(name)
+            headers, widths = headers[:i] + headers[i + 1:], widths[:i] + widths[i + 1:]
+            rows = [r[:i] + r[i + 1:] for r in rows]
+            k -= i < k
+        cut = k
     if cut is not None and headers:
         k = cut % len(headers)
-        room = (grid.size.width or grid.app.size.width) - 4  # the scroll bars (the pane's may come later)
         left = room - sum(w + 2 for i, w in enumerate(widths) if i != k) - 2  # 2: the cell's padding
         if left < widths[k]:
             widths[k] = max(left, width(headers[k]), 8)
