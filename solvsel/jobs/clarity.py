@@ -262,7 +262,7 @@ def _component(name: str, entry: dict, fractions: dict, volume: float, step: Ste
     return ComponentClarity(
         name=name, cas=str(row.get("cas") or ""), from_ingredients=tuple(entry["from"]), level_mg_kg=entry["level"],
         water_solubility_mg_L=s_w, solubility_temp_C=number_or_none(row.get("temp_C")),
-        solubility_source=tuple(x for x in str(row.get("solubility_source") or "").split(";") if x), log_p=lp,
+        solubility_source=tuple(x for x in str(row.get("source") or "").split(";") if x), log_p=lp,
         log_p_basis=basis, cosolvent_gain=gain, gain_negligible=gain - 1.0 < NEGLIGIBLE_GAIN, solubility_mg_kg=solubility,
         ratio=ratio, verdict=verdict, max_clear_level_mg_kg=max_level, largest_clear_dose=dose,
         ways_out=() if verdict == "clear" else _ways_out(name, entry, max_level, emulsion_phase),

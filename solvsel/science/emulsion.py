@@ -792,20 +792,35 @@ def drink_density(cat, brix: float | None = None, density: float | None = None) 
     return rho, "given"
 
 
-def sucrose_viscosity_table(cat) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """The bundled sucrose viscosity table as (Brix [%], temperatures [C], viscosities [mPa s] one row per Brix).
+def sucrose_viscosity_table(cat, brix: float | None = None,
+                            temp_C: float | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The bundled sucrose viscosity table as (Brix [%], temperatures [C], viscosities [mPa s] one row per Brix);
+    with ``brix`` and ``temp_C``, only the 2 x 2 grid around that point (the values an interpolation reads).
 
     >>> from solvsel.data.catalog import load_catalog
     >>> b, t, v = sucrose_viscosity_table(load_catalog())
     >>> v.shape == (b.size, t.size)
     True
+    >>> sucrose_viscosity_table(load_catalog(), 10.5, 20)[:2]
+    (array([10., 12.]), array([20., 25.]))
     """
     df = cat.table("sucrose_viscosity")
-    grid = df.pivot_table(index="sucrose_wt_pct", columns="temp_C", values="visc_mPa_s", aggfunc="first")
-    if grid.isna().to_numpy().any():
-        raise MissingDataError("the sucrose viscosity table must give every temperature at every Brix",
-                               param="sucrose_viscosity")
-    return (grid.index.to_numpy(float), grid.columns.to_numpy(float), grid.to_numpy(float))
+    if brix is not None and temp_C is not None:
+        keep = []
+        for col, value, param, unit in (("sucrose_wt_pct", brix, "brix", "degrees Brix"), ("temp_C", temp_C, "temp_C", "C")):
+            axis = np.unique(df[col].to_numpy(float))
+            v = _in_axis(value, axis, param, unit)
+            i = int(np.clip(np.searchsorted(axis, v, side="right") - 1, 0, axis.size - 2))
+            keep.append(df[col].isin(axis[i:i + 2]))
+        df = df[keep[0] & keep[1]]
+    grid = {(float(r["sucrose_wt_pct"]), float(r["temp_C"])): float(r["visc_mPa_s"]) for r in df.to_dict("records")}
+    b_axis = np.array(sorted({b for b, _ in grid}))
+    t_axis = np.array(sorted({t for _, t in grid}))
+    missing = [(b, t) for b in b_axis for t in t_axis if (b, t) not in grid]
+    if missing:
+        raise MissingDataError("the sucrose viscosity table must give every temperature at every Brix "
+                               f"(none at {missing[0][0]:g} Brix and {missing[0][1]:g} C)", param="sucrose_viscosity")
+    return b_axis, t_axis, np.array([[grid[(b, t)] for t in t_axis] for b in b_axis])
 
 
 def drink_viscosity(cat, brix: float | None, temp_C: float = 20.0) -> tuple[float, str]:
@@ -818,7 +833,7 @@ def drink_viscosity(cat, brix: float | None, temp_C: float = 20.0) -> tuple[floa
     1.348
     """
     b = 0.0 if brix is None else brix
-    eta = sucrose_solution_viscosity(b, temp_C, *sucrose_viscosity_table(cat))
+    eta = sucrose_solution_viscosity(b, temp_C, *sucrose_viscosity_table(cat, b, temp_C))
     what = "water" if brix is None else f"sucrose solution of {float(brix):g} degrees Brix"
     return eta, f"{what} at {float(temp_C):g} C (bundled table, interpolated)"
 
