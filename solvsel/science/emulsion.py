@@ -34,6 +34,7 @@ from __future__ import annotations
 
 import itertools
 import math
+import re
 from dataclasses import asdict, dataclass
 from typing import Mapping, Sequence
 
@@ -178,8 +179,7 @@ def sucrose_solution_viscosity(brix: float, temp_C: float, table_brix: Sequence[
     y = np.log(np.asarray(table_visc, dtype=float))
     b = _in_axis(brix, x, "brix", "degrees Brix")
     c = _in_axis(temp_C, t, "temp_C", "C")
-    i = int(np.clip(np.searchsorted(x, b, side="right") - 1, 0, x.size - 2))
-    j = int(np.clip(np.searchsorted(t, c, side="right") - 1, 0, t.size - 2))
+    i, j = _bracket(x, b), _bracket(t, c)
     u = (b - x[i]) / (x[i + 1] - x[i])
     v = (c - t[j]) / (t[j + 1] - t[j])
     ln = ((1 - u) * (1 - v) * y[i, j] + u * (1 - v) * y[i + 1, j] + (1 - u) * v * y[i, j + 1]
@@ -792,6 +792,11 @@ def drink_density(cat, brix: float | None = None, density: float | None = None) 
     return rho, "given"
 
 
+#: Columns of ``tables/sucrose_viscosity.csv`` holding the viscosity at a temperature (one per temperature, as the
+#: published tables print them).
+_VISC_COLUMN = re.compile(r"visc_(-?\d+(?:\.\d+)?)C_mPa_s")
+
+
 def sucrose_viscosity_table(cat, brix: float | None = None,
                             temp_C: float | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """The bundled sucrose viscosity table as (Brix [%], temperatures [C], viscosities [mPa s] one row per Brix);
@@ -804,23 +809,26 @@ def sucrose_viscosity_table(cat, brix: float | None = None,
     >>> sucrose_viscosity_table(load_catalog(), 10.5, 20)[:2]
     (array([10., 12.]), array([20., 25.]))
     """
-    df = cat.table("sucrose_viscosity")
+    df = cat.table("sucrose_viscosity").sort_values("sucrose_wt_pct")
+    temps = sorted((float(m.group(1)), c) for c in df.columns if (m := _VISC_COLUMN.fullmatch(str(c))))
+    if len(temps) < 2 or len(df) < 2:
+        raise MissingDataError("the sucrose viscosity table needs two Brix rows and two temperature columns",
+                               param="sucrose_viscosity")
+    t_axis = np.array([t for t, _ in temps])
+    rows = slice(None)
     if brix is not None and temp_C is not None:
-        keep = []
-        for col, value, param, unit in (("sucrose_wt_pct", brix, "brix", "degrees Brix"), ("temp_C", temp_C, "temp_C", "C")):
-            axis = np.unique(df[col].to_numpy(float))
-            v = _in_axis(value, axis, param, unit)
-            i = int(np.clip(np.searchsorted(axis, v, side="right") - 1, 0, axis.size - 2))
-            keep.append(df[col].isin(axis[i:i + 2]))
-        df = df[keep[0] & keep[1]]
-    grid = {(float(r["sucrose_wt_pct"]), float(r["temp_C"])): float(r["visc_mPa_s"]) for r in df.to_dict("records")}
-    b_axis = np.array(sorted({b for b, _ in grid}))
-    t_axis = np.array(sorted({t for _, t in grid}))
-    missing = [(b, t) for b in b_axis for t in t_axis if (b, t) not in grid]
-    if missing:
-        raise MissingDataError("the sucrose viscosity table must give every temperature at every Brix "
-                               f"(none at {missing[0][0]:g} Brix and {missing[0][1]:g} C)", param="sucrose_viscosity")
-    return b_axis, t_axis, np.array([[grid[(b, t)] for t in t_axis] for b in b_axis])
+        b_axis = df["sucrose_wt_pct"].to_numpy(float)
+        i = _bracket(b_axis, _in_axis(brix, b_axis, "brix", "degrees Brix"))
+        j = _bracket(t_axis, _in_axis(temp_C, t_axis, "temp_C", "C"))
+        rows, temps = slice(i, i + 2), temps[j:j + 2]
+    records = df.iloc[rows].to_dict("records")
+    return (np.array([float(r["sucrose_wt_pct"]) for r in records]), np.array([t for t, _ in temps]),
+            np.array([[float(r[c]) for _, c in temps] for r in records]))
+
+
+def _bracket(axis: np.ndarray, value: float) -> int:
+    """The index i with axis[i] <= value <= axis[i + 1] (the last interval at the upper end)."""
+    return int(np.clip(np.searchsorted(axis, value, side="right") - 1, 0, axis.size - 2))
 
 
 def drink_viscosity(cat, brix: float | None, temp_C: float = 20.0) -> tuple[float, str]:
