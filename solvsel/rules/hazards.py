@@ -298,12 +298,10 @@ def health_hazard(cat, solvent) -> HealthHazard | None:
         from ..data.catalog import load_catalog
 
         cat = load_catalog()
-    i = cat.match_index("health_hazards", cas) if cas else None
-    if i is None and name.strip():
-        i = cat.match_index("health_hazards", name)
-    if i is None:
+    key = cas if cas and cat.match_index("health_hazards", cas) is not None else name
+    if not key.strip() or cat.match_index("health_hazards", key) is None:
         return None
-    row = cat.table("health_hazards").iloc[i]
+    row = cat.find("health_hazards", key)  # through find, so a log of the values read sees these too
     statements = _listed(row["statements"])
     level = health_level(statements)
     return HealthHazard(str(row["name"]), cas, statements, level, HEALTH_LEVELS[level], str(row["basis"]),
