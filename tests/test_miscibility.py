@@ -403,3 +403,17 @@ def test_vegetable_oils_in_ethanol_against_published_figures(cat):
         for t in (15.0, 25.0):
             v = M.pair(cat, "ethanol 96% v/v", oil, temp_C=t)
             assert v.one_phase == "no" and v.basis == "measured", (oil, t)
+
+
+def test_load_check_reads_the_published_olive_oil_figure(cat):
+    # the load check (science.loading) takes the measured window of the pair at each storage
+    # temperature: over 10-15 C olive oil stays one phase in absolute ethanol up to the 1.85 wt %
+    # derived from Villavecchia's 15 g per 1000 cm3 at 13-15 C; 1 % is "yes", 3 % is "no"
+    from solvsel.science.loading import check_load
+
+    etoh, oil = cat.solvent("ethanol"), cat.solvent("olive oil")
+    ok = check_load(cat, oil, [etoh], [1.0], 0.01, (10.0, 15.0), liquid=True)
+    assert ok.basis == "measured pair" and ok.largest_load == pytest.approx(0.0185)
+    assert "misc_villavecchia_olive_ethanol" in ok.points[0].sources
+    assert ok.verdict == "yes"
+    assert check_load(cat, oil, [etoh], [1.0], 0.03, (10.0, 15.0), liquid=True).verdict == "no"
