@@ -556,9 +556,9 @@ REPORT_DEMO_CASES = [
 
 #: Commands without --json (the JSON form of their errors is that of the unknown argument --json).
 TEXT_ONLY_CASES = [
-    case("demo", "--step", "0", says=("--step", "1 to 6")),
-    case("demo", "--step", "99", says=("--step", "1 to 6")),
-    case("demo", "--step", "-1", says=("--step", "1 to 6")),
+    case("demo", "--step", "0", says=("--step", "1 to 10")),
+    case("demo", "--step", "99", says=("--step", "1 to 10")),
+    case("demo", "--step", "-1", says=("--step", "1 to 10")),
     case("demo", "--step", "x", says=("--step", "invalid int")),
 ]
 

@@ -74,7 +74,7 @@ def test_demo_scenario_is_marked_demo():
     s = load_scenario()
     assert s.source == "demo" and "fictional" in s.company
     load_catalog().solute(s.solute, library=False)
-    assert len(demo_steps(s)) == 6
+    assert len(demo_steps(s)) == 10
 
 
 # The JSON contract of ../DESIGN.md: the documented examples, with the fields other tools rely on.
