@@ -383,3 +383,13 @@ def test_a_workspace_holding_what_json_cannot_hold_is_refused_before_writing(tmp
     with pytest.raises(InputError):
         save_workspace({"name": "x"}, path)
     assert path.read_bytes() == before and not backup_path(path).exists()
+
+
+def test_a_command_that_writes_a_file_runs_once(tmp_path, capsys):
+    # fit --into adds the sphere to the user's solutes file: a second run for the record would add it again
+    bench, into, path = str(Path(__file__).parent / "data" / "bench_c60_memory.csv"), tmp_path / "mine.csv", tmp_path / "w.json"
+    assert main(["--workspace", str(path), "fit", bench, "--good-at-most", "2", "--save-as", "my sphere",
+                 "--into", str(into)]) == 0
+    assert into.read_text(encoding="utf-8").count("my sphere") == 1
+    entry = open_workspace(path).history[-1]
+    assert entry["command"] == "fit" and entry["result"] is None and entry["request"]["into"] == str(into)

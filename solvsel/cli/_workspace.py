@@ -10,8 +10,9 @@ command has them and they were not given, and its own rows of the liquids and so
 added as ``--own-solvents`` / ``--own-solutes``.  After the command succeeds, the options it ran
 with and its JSON document are recorded in the workspace's history with the time, and the
 workspace is saved (atomically, the previous version kept as ``FILE.bak``).  A text answer is
-computed a second time with ``--json`` for the record; a command without ``--json`` (``report``,
-``demo``) is recorded without a result.  A damaged workspace, or one of a newer schema, is
+computed a second time with ``--json`` for the record, except where the command writes a file (a
+batch's ``--out``, ``--refit``, ``--save-to``, ``--into``): that one, and a command without ``--json``
+(``report``, ``demo``), is recorded without a result.  A damaged workspace, or one of a newer schema, is
 refused before the command runs; a value the workspace supplied that the command refuses is said to
 come from the workspace.
 """
@@ -31,6 +32,9 @@ from ._common import option_name, to_jsonable
 
 __all__ = ["run_in_workspace", "with_defaults"]
 
+#: Options of the commands that write a file (a batch's answers, a refit, a saved estimate or sphere): such a
+#: command is never run a second time for the record, so its text answer is recorded without its JSON.
+_WRITES = ("out", "refit", "save_to", "into")
 #: Options that take a range ``LO:HI`` filled from two request fields.
 _RANGES = {"--bp-range": ("bp_min_C", "bp_max_C")}
 
@@ -167,12 +171,13 @@ def _result(execute, parser, args, argv: list[str]) -> tuple[int, Any]:
     """Run ``argv`` (its output shown as usual) and return its exit code and JSON document (None when the
     command has no JSON form)."""
     has_json = "--json" in subparser(parser, args.command)._option_string_actions
+    writes = any(getattr(args, dest, None) for dest in _WRITES)
     if "--json" in argv:
         rc, text = _capture(execute, argv)
         sys.stdout.write(text)
     else:
         rc = execute(argv)
-        text = _capture(execute, argv + ["--json"])[1] if has_json and rc == 0 else ""
+        text = _capture(execute, argv + ["--json"])[1] if has_json and rc == 0 and not writes else ""
     try:
         return rc, json.loads(text) if text.strip() else None
     except json.JSONDecodeError:  # a command that printed something else (a batch's file to stdout)
