@@ -393,3 +393,16 @@ def test_a_command_that_writes_a_file_runs_once(tmp_path, capsys):
     assert into.read_text(encoding="utf-8").count("my sphere") == 1
     entry = open_workspace(path).history[-1]
     assert entry["command"] == "fit" and entry["result"] is None and entry["request"]["into"] == str(into)
+
+
+def test_the_history_stays_far_below_the_largest_file_read(monkeypatch):
+    from solvsel.data import workspace as module
+
+    monkeypatch.setattr(module, "MAX_HISTORY_BYTES", 20_000)
+    monkeypatch.setattr(module, "MAX_ENTRY_BYTES", 5_000)
+    ws = Workspace()
+    for i in range(40):
+        ws = record_run(ws, "blend", [], {"i": i}, {"results": ["x" * 900]}, time="t")
+    assert sum(len(json.dumps(e)) for e in ws.history) <= 20_000 and ws.history[-1]["request"] == {"i": 39}
+    ws = record_run(ws, "blend", [], {"i": "big"}, {"results": ["x" * 10_000]}, time="t")
+    assert "not_kept" in ws.history[-1]["result"] and ws.history[-1]["request"] == {"i": "big"}

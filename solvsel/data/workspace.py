@@ -84,6 +84,11 @@ SCHEMA_VERSION = 1
 EXPECTED = f"a solvsel workspace (JSON with \"format\": \"{FORMAT}\", schema version {SCHEMA_VERSION} or older)"
 #: Most history entries kept: the oldest are dropped first (a year of daily work fits).
 MAX_HISTORY = 1000
+#: Most bytes of history kept (as JSON), the oldest entries dropped first, so that a workspace stays far
+#: below the largest file the readers open (:data:`solvsel.data.catalog.MAX_USER_FILE_BYTES`, 20 MB).
+MAX_HISTORY_BYTES = 8 * 2**20
+#: Largest answer kept in one history entry [bytes of JSON]; a larger one is replaced by a note.
+MAX_ENTRY_BYTES = 2 * 2**20
 
 _LISTS = ("targets", "bench_results", "blends", "emulsions", "formulas", "own_solvents", "own_solutes", "history")
 _TARGET_KEYS = ("solute", "hsp", "smiles")
@@ -307,7 +312,21 @@ def record_run(ws: Workspace, command: str, argv: list[str], request: Any, resul
     """
     entry = {"time": time or now_utc(), "command": command, "argv": list(argv), "request": request,
              "result": result}
-    return replace(ws, history=(ws.history + (entry,))[-MAX_HISTORY:])
+    size = _size(entry)
+    if size > MAX_ENTRY_BYTES:
+        entry["result"] = {"not_kept": f"the answer was {size / 2**20:.1f} MB, more than the "
+                                       f"{MAX_ENTRY_BYTES // 2**20} MB kept for one answer: run the request again to see it"}
+    kept, total = [], 0
+    for e in reversed((ws.history + (entry,))[-MAX_HISTORY:]):
+        total += _size(e)
+        if kept and total > MAX_HISTORY_BYTES:
+            break
+        kept.append(e)
+    return replace(ws, history=tuple(reversed(kept)))
+
+
+def _size(entry: dict) -> int:
+    return len(json.dumps(entry, ensure_ascii=False, default=str).encode("utf-8"))
 
 
 def own_tables_csv(ws: Workspace, folder: str | Path) -> dict[str, list[Path]]:
