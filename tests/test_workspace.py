@@ -267,6 +267,10 @@ def test_migration_and_refusal_of_documents_in_memory():
     assert workspace_from_dict(VERSION_0).constraints == {"food": True, "temp_C": 30.0}
     with pytest.raises(FileError):
         workspace_from_dict({**VERSION_0, "schema_version": -1})
+    for bad in ({"own_rows": ["not a row"]}, {"own_rows": 5}, {"filters": [1, 2]}):
+        with pytest.raises(FileError) as err:
+            workspace_from_dict({**VERSION_0, **bad})
+        assert "damaged" in err.value.message
 
 
 # ----------------------------------------------------------------------------- the command line

@@ -221,7 +221,10 @@ def workspace_from_dict(doc: Any, *, path: str = "workspace") -> Workspace:
                         f"{SCHEMA_VERSION} and older: update solvsel to open it. The file was left as it was",
                         param="workspace", value=path, path=path, expected=EXPECTED)
     while version < SCHEMA_VERSION:
-        doc = MIGRATIONS[version](doc)
+        try:
+            doc = MIGRATIONS[version](doc)
+        except (AttributeError, TypeError, ValueError) as exc:  # a field of the old schema of the wrong kind
+            raise _damaged(path, f"is damaged: it cannot be read as workspace schema {version} ({exc})") from None
         version = doc["schema_version"]
     known = {f.name for f in fields(Workspace)}
     try:
