@@ -410,3 +410,29 @@ def test_the_history_stays_far_below_the_largest_file_read(monkeypatch):
     assert sum(len(json.dumps(e)) for e in ws.history) <= 20_000 and ws.history[-1]["request"] == {"i": 39}
     ws = record_run(ws, "blend", [], {"i": "big"}, {"results": ["x" * 10_000]}, time="t")
     assert "not_kept" in ws.history[-1]["result"] and ws.history[-1]["request"] == {"i": "big"}
+
+
+def test_any_json_document_is_read_or_refused_as_damaged():
+    from hypothesis import given, settings
+    from hypothesis import strategies as st
+
+    scalars = st.none() | st.booleans() | st.integers(-3, 3) | st.floats(allow_nan=False) | st.text(max_size=5)
+    values = st.recursive(scalars, lambda inner: st.lists(inner, max_size=3)
+                          | st.dictionaries(st.text(max_size=6), inner, max_size=3), max_leaves=8)
+    fields = st.sampled_from(["name", "target", "targets", "constraints", "filters", "own_rows", "history",
+                              "own_solvents", "formulas", "blends"])
+    docs = st.fixed_dictionaries({"format": st.just("solvsel-workspace"), "schema_version": st.sampled_from([0, 1])},
+                                 optional={f: values for f in ("name", "target", "targets", "constraints", "filters",
+                                                               "own_rows", "history", "own_solvents", "formulas")})
+
+    @settings(max_examples=300, deadline=None)
+    @given(docs | st.dictionaries(fields, values))
+    def check(doc):
+        try:
+            ws = workspace_from_dict(doc, path="w.json")
+        except FileError as exc:
+            assert exc.path == "w.json"
+        else:
+            assert isinstance(ws, Workspace)
+
+    check()
