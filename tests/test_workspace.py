@@ -425,7 +425,7 @@ def test_any_json_document_is_read_or_refused_as_damaged():
                                  optional={f: values for f in ("name", "target", "targets", "constraints", "filters",
                                                                "own_rows", "history", "own_solvents", "formulas")})
 
-    @settings(max_examples=300, deadline=None)
+    @settings(max_examples=100, deadline=None)
     @given(docs | st.dictionaries(fields, values))
     def check(doc):
         try:
