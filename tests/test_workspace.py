@@ -338,13 +338,14 @@ def test_a_failed_command_records_nothing(tmp_path, capsys):
     assert path.read_bytes() == before
 
 
-def test_record_run_keeps_the_newest_entries():
-    from solvsel.data.workspace import MAX_HISTORY
+def test_record_run_keeps_the_newest_entries(monkeypatch):
+    from solvsel.data import workspace as module
 
+    monkeypatch.setattr(module, "MAX_HISTORY", 20)
     ws = Workspace()
-    for i in range(MAX_HISTORY + 3):
+    for i in range(23):
         ws = record_run(ws, "rank", [], {"i": i}, None, time="t")
-    assert len(ws.history) == MAX_HISTORY and ws.history[-1]["request"] == {"i": MAX_HISTORY + 2}
+    assert len(ws.history) == 20 and ws.history[0]["request"] == {"i": 3} and ws.history[-1]["request"] == {"i": 22}
 
 
 def test_a_report_in_a_workspace_gives_the_command_its_defaults(tmp_path, capsys):
