@@ -178,7 +178,8 @@ def _component(cat, name, given_cas=None, given_density=None, param="formula", p
             cname, cas, dens, origin, _ = _lookup(cat, name)
         except UnknownNameError as exc:
             if not given_cas:
-                raise UnknownNameError(exc.name, exc.kind, exc.suggestions, param=param) from None
+                exc.param = param
+                raise
             cname, cas, dens, origin = name, given_cas, None, "given"
     if given_cas and cas and given_cas != cas:
         raise InputError(f"'{name}' has CAS {cas} in the tables, but {given_cas} was given", param=param,
