@@ -217,20 +217,23 @@ def test_solubility_needs_fusion_data(cat):
 def test_partition_ranks_solutes_like_octanol_water_log_p(cat):
     # Outside reference: octanol-water log P of the chemicals library.  The
     # estimate (between water and 1-octanol, pure phases) must order the
-    # solutes roughly alike: Spearman rank correlation above 0.6.
+    # solutes roughly alike: Spearman rank correlation above 0.6 over every
+    # solute of the table with a library log P (21 of them; 0.70 with the molar
+    # volumes from measured densities).  A hand-picked 7 gave 0.46 once caffeine's
+    # molar volume came from its density: too few points to judge the model by.
     from chemicals import logP
 
     w, o = cat.solvent("water"), cat.solvent("1-octanol")
     est, ref = [], []
-    for name in ("naphthalene", "benzoic acid", "vanillin", "caffeine", "thymol", "paracetamol", "salicylic acid"):
+    for name in cat.table("solutes")["name"]:
         s = cat.solute(name)
-        lp = logP(s.cas)
-        if lp is None:
+        lp = logP(s.cas) if s.cas else None
+        if lp is None or not s.vm_cm3_mol > 0:
             continue
         p = H.partition_coefficient(s.hsp, s.vm_cm3_mol, w.hsp, w.vm_cm3_mol, o.hsp, o.vm_cm3_mol)
         est.append(p.log10_k_c)
         ref.append(lp)
-    assert len(est) >= 5
+    assert len(est) >= 15
     from scipy.stats import spearmanr
 
     assert spearmanr(est, ref).statistic > 0.6
@@ -279,7 +282,7 @@ def test_rank_like(capsys):
         (("rank",), "no target"),
         (("rank", "--like", "no such liquid qq"), "no liquid"),
         (("miscible", "water"), "two liquids"),
-        (("rank", "--solute", "cannabidiol", "--solubility"), "dHfus"),  # no fusion data in the table
+        (("rank", "--solute", "capsaicin", "--solubility"), "dHfus"),  # no fusion data in the table
         (("rank", "--solute", "vanillin", "--solubility", "--temp", "90"), "melting point"),  # mp 81.5 C
         (("rank", "--hsp", "17,3,8", "--dose", "0.1%"), "--category"),
         (("miscible", "water", "ethanol", "--fractions", "0.5,0.6"), "sum"),
