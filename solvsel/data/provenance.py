@@ -99,6 +99,8 @@ SOURCE_COLUMN = {
     ("oils", "water_solubility_mg_L"): "solubility_source",
     **{(t, "ripening"): "ripening_source" for t in ("oils", "weighting_agents")},
     ("solutes", "vm_cm3_mol"): "vm_source",
+    **{("hydrocolloids", c): "ratio_source" for c in ("use_ratio_to_oil", "ratio_min", "ratio_max")},
+    ("hydrocolloids", "density_g_cm3"): "density_source",
 }
 
 #: Columns a recalled source covers where a cell lists several sources (``chemicals_lib;memory_fusion``):
@@ -108,11 +110,12 @@ MEMORY_SCOPE = {
     "memory_flash": ("flash_C",),
     "memory_liquid_props": ("density_g_cm3", "visc_mPa_s", "alpha_1_K", "vm_cm3_mol"),
     "memory_oil_props_other": ("mp_C", "flash_C", "flammable", "visc_mPa_s", "alpha_1_K"),
+    "memory_genotelle_sucrose_viscosity": tuple(f"visc_{t}C_mPa_s" for t in range(0, 61, 5)),
 }
 
 #: Text columns that hold a value (a verdict) rather than a name or a note.
 VALUE_CHOICES = {("miscibility", "one_phase"), ("solvents", "water_miscibility"), ("solvents", "flammable"),
-                 ("oils", "ripening"), ("weighting_agents", "ripening")}
+                 ("oils", "ripening"), ("weighting_agents", "ripening"), ("health_hazards", "statements")}
 
 #: Record fields whose column name differs from the field name.
 _FIELD_COLUMNS = {"dD": "dD_MPa05", "dP": "dP_MPa05", "dH": "dH_MPa05", "r0": "r0_MPa05"}
@@ -165,7 +168,7 @@ class ReadLog:
         ids = tuple(v for v in str(row[src]).split(";") if v) if src else ()
         name = str(row["name"]) if "name" in df.columns else str(row.get("liquid_a", index)) + (
             " / " + str(row["liquid_b"]) if "liquid_b" in df.columns else "")
-        if table == "sucrose_density":
+        if table in ("sucrose_density", "sucrose_viscosity"):
             name = f"{row['sucrose_wt_pct']:g} %"
         self.cells[(table, index, column)] = CellRead(table, name, column, ids)
 
