@@ -1151,7 +1151,8 @@ def _find(cat, table: str, name: str, param: str) -> dict:
     try:
         return cat.find(table, name)
     except UnknownNameError as exc:
-        raise UnknownNameError(exc.name, exc.kind, exc.suggestions, param=param) from None
+        exc.param = param
+        raise
 
 
 def pool_from_catalog(cat, names: Sequence[str], param: str = "emulsifiers") -> list[Emulsifier]:
