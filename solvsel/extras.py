@@ -1,7 +1,7 @@
 """Optional parts of solvsel and the packages they need.
 
 The core (tables, Hansen arithmetic, blends, sphere fits, HLB, emulsions, legal limits, the command
-line) needs numpy, scipy, pandas, networkx and chemicals. Two parts are extras:
+line) needs numpy, scipy, pandas, networkx and chemicals. These parts are extras:
 
 =============  ==========================  ==========================================
 extra          packages                    what needs them
@@ -9,9 +9,12 @@ extra          packages                    what needs them
 ``ui``         textual                     the terminal UI
 ``structure``  rdkit, scikit-learn         HSP estimates from a structure (SMILES),
                                            the structure model's refit
+``figures``    matplotlib                  figures in reports (``solvsel report``)
+``parquet``    pyarrow                     batch screening read from / written to Parquet
+``cluster``    dask[distributed]           batch screening on a Dask cluster
 =============  ==========================  ==========================================
 
-``pip install 'solvsel[all]'`` installs both.
+``pip install 'solvsel[all]'`` installs the UI, structure and figures extras.
 """
 
 from __future__ import annotations
