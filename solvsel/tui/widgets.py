@@ -295,18 +295,25 @@ class BrailleMap(Widget, can_focus=True):
             if ax.inside(r, c) and p.label:
                 old = self._cell_labels.get((r, c))
                 self._cell_labels[(r, c)] = p.label if not old or p.label in old.split(", ") else f"{old}, {p.label}"
-            if p.kind == "liquid":
-                cv.dot(*ax.dot(p.x, p.y), "liquid")
+            if p.kind == "liquid":  # two dots across: small, but seen
+                px, py = ax.dot(p.x, p.y)
+                cv.dot(px, py, "liquid")
+                cv.dot(px + 1, py, "liquid")
         marked = [p for p in d.points if p.kind != "liquid"]
         marked.sort(key=lambda p: p.kind != "target")  # the target first: nothing covers it
+        groups: dict[tuple[int, int], list[MapPoint]] = {}  # points that fall in one cell share its mark
         for p in marked:
             r, c = ax.cell(p.x, p.y)
-            if ax.inside(r, c) and (r, c) not in cv.text:
-                cv.put(r, c, p.mark or ("+" if p.kind == "target" else "*"), self.STYLES[p.kind])
-        for p in marked:  # then the names, where they fit without touching another
-            r, c = ax.cell(p.x, p.y)
-            if ax.inside(r, c) and p.label and p.kind != "blend":
-                cv.label(r, c, shorten(p.label, 24), self.STYLES["target" if p.kind == "target" else "name"])
+            if ax.inside(r, c):
+                groups.setdefault((r, c), []).append(p)
+        for (r, c), ps in groups.items():
+            cv.put(r, c, ps[0].mark or ("+" if ps[0].kind == "target" else "*"), self.STYLES[ps[0].kind])
+        for (r, c), ps in groups.items():  # then the names, where they fit without touching another
+            named = [p for p in ps if p.label and p.kind != "blend"]
+            if named:
+                more = f" (+{len(named) - 1})" if len(named) > 1 else ""
+                cv.label(r, c, shorten(named[0].label, 24) + more,
+                         self.STYLES["target" if named[0].kind == "target" else "name"])
         return cv
 
     def render(self) -> Text:
@@ -543,7 +550,7 @@ def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str,
         cut = None if cut is None else keep.index(cut % len(headers))
         headers, rows = [headers[i] for i in keep], [[r[i] for i in keep] for r in rows]
     widths = [max([width(h)] + [width(r[i]) for r in rows]) for i, h in enumerate(headers)]
-    room = (grid.size.width or grid.app.size.width) - 4  # the scroll bars (the pane's may come later)
+    room = _room(grid) - 4  # the scroll bars (the pane's may come later)
     if cut is not None and spare:  # columns the detail pane also shows give way to the name first
         k = cut % len(headers)
         for name in spare:
@@ -567,6 +574,17 @@ def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str,
         grid.add_column(h, width=w)
     for r in rows:
         grid.add_row(*r)
+
+
+def _room(widget) -> int:
+    """The width a widget has on screen: its own, else that of its nearest shown ancestor (a table in a
+    tab not in front has none of its own yet)."""
+    node = widget
+    while node is not None and getattr(node, "size", None) is not None:
+        if node.size.width:
+            return node.size.width - (0 if node is widget else node.styles.gutter.width)
+        node = node.parent
+    return widget.app.size.width
 
 
 def shorten(text: str, width: int) -> str:
