@@ -98,6 +98,7 @@ async def shoot(run: str, size: tuple[int, int]) -> dict[str, str]:
                 await _press(app, pilot, key)
             if stem:
                 app.clear_notifications()
+                await pilot.wait_for_scheduled_animations()  # a tab's underline slides: the picture waits
                 await pilot.pause()
                 # spaces kept as drawn by every SVG renderer (some drop a text run's leading blanks, so
                 # "Target cannabidiol" and "dD" ran together in the pictures)
