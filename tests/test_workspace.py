@@ -437,3 +437,25 @@ def test_any_json_document_is_read_or_refused_as_damaged():
             assert isinstance(ws, Workspace)
 
     check()
+
+
+def test_a_killed_saves_temporary_file_is_removed_by_the_next_save(tmp_path):
+    # A SIGKILL between write and rename leaves the hidden temporary file; the next save of the same
+    # file removes it once it is older than a save can take, and leaves other files alone.
+    import os
+    import time
+
+    from solvsel.data.catalog import STALE_TEMPORARY_S, write_user_file
+
+    target = tmp_path / "work.json"
+    left = tmp_path / ".solvsel-work.json-abc123.json"
+    young = tmp_path / ".solvsel-work.json-def456.json"
+    other = tmp_path / ".solvsel-other.json-xyz.json"
+    for f in (left, young, other):
+        f.write_bytes(b"{")
+    old = time.time() - STALE_TEMPORARY_S - 60
+    os.utime(left, (old, old))
+    os.utime(other, (old, old))
+    write_user_file(target, b"{}")
+    assert target.read_bytes() == b"{}"
+    assert not left.exists() and young.exists() and other.exists()

@@ -400,8 +400,9 @@ def write_user_file(path, data: bytes, *, param: str | None = None, check=None) 
 
     p = Path(path)
     tmp = None
+    _remove_stale_temporaries(p)
     try:
-        fd, tmp = tempfile.mkstemp(prefix=".solvsel-", suffix=p.suffix or ".tmp", dir=p.parent)
+        fd, tmp = tempfile.mkstemp(prefix=_temporary_prefix(p), suffix=p.suffix or ".tmp", dir=p.parent)
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
             fh.flush()
@@ -418,6 +419,28 @@ def write_user_file(path, data: bytes, *, param: str | None = None, check=None) 
     finally:
         if tmp is not None and os.path.exists(tmp):
             os.unlink(tmp)
+
+
+#: A temporary file of a save older than this [s] was left by a save that was killed.
+STALE_TEMPORARY_S = 600.0
+
+
+def _temporary_prefix(p: Path) -> str:
+    return f".solvsel-{p.name}-"
+
+
+def _remove_stale_temporaries(p: Path) -> None:
+    """Remove the temporary files that killed saves of ``p`` left in its folder (older than
+    :data:`STALE_TEMPORARY_S`, so that a save under way in another process is never touched)."""
+    import time
+
+    try:
+        stale = [t for t in p.parent.glob(_temporary_prefix(p) + "*")
+                 if time.time() - t.stat().st_mtime > STALE_TEMPORARY_S]
+        for t in stale:
+            t.unlink()
+    except OSError:  # a folder that cannot be listed or a file already gone: the save itself reports
+        pass
 
 
 def _umask() -> int:
