@@ -89,6 +89,7 @@ async def shoot(run: str, size: tuple[int, int]) -> dict[str, str]:
     from .app import create_app
 
     app = create_app(start=run)
+    app.animation_level = "none"  # no sliding underline caught half way: the same picture every time
     shots = {}
     async with app.run_test(size=size) as pilot:
         await app.workers.wait_for_complete()
@@ -98,7 +99,6 @@ async def shoot(run: str, size: tuple[int, int]) -> dict[str, str]:
                 await _press(app, pilot, key)
             if stem:
                 app.clear_notifications()
-                await pilot.wait_for_scheduled_animations()  # a tab's underline slides: the picture waits
                 await pilot.pause()
                 # spaces kept as drawn by every SVG renderer (some drop a text run's leading blanks, so
                 # "Target cannabidiol" and "dD" ran together in the pictures)
