@@ -8,7 +8,13 @@ fusion only where the library has the CRC value (the Joback estimate is not
 used); molar volume of the (subcooled) liquid at 25 C by COSTALD from the
 library's critical constants where it has them.
 
-Run:  .venv/bin/python tools/build_solutes.py
+Superseded: tables/solutes.csv is now kept in place. Its molar volumes come from measured
+densities (tools/molar_volumes.py fills ``vm_cm3_mol``, ``vm_basis``, ``vm_source``), and published
+fusion data (cannabidiol) and the Joback enthalpy of fusion of cetyl palmitate were written into
+the table with their sources; this script reproduces neither, so it refuses to run unless asked
+with ``--rebuild-from-curated`` (then run tools/molar_volumes.py and re-enter those values).
+
+Run:  .venv/bin/python tools/build_solutes.py --rebuild-from-curated
 """
 
 from __future__ import annotations
@@ -35,6 +41,11 @@ def f(x, nd):
 
 
 def main() -> int:
+    if "--rebuild-from-curated" not in sys.argv[1:]:
+        print("tables/solutes.csv is kept in place now (see this script's docstring); a rebuild from "
+              "tools/solutes_curated.csv would lose the measured-density molar volumes and the published "
+              "fusion data. Give --rebuild-from-curated to rebuild anyway.", file=sys.stderr)
+        return 1
     import chemicals.solubility as s
     from chemicals import acentric, critical
     from chemicals.identifiers import search_chemical
