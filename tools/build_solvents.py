@@ -43,6 +43,14 @@ MIXTURE_PROPS = {
     "8001-22-7": (885.4, 0.917, None, -16.0, 320.0, 50.0, 7.1e-4),
     "8001-30-7": (885.4, 0.917, None, -11.0, 320.0, 52.0, 7.1e-4),
 }
+# Densities at 25 C from the USP monographs' specific gravities (times water's density), which
+# replace the recalled ones above; the other properties of these oils stay recalled.
+USP_DENSITY = {
+    "8001-25-0": (0.9098, "oils_usp_olive_secondary"),
+    "8002-13-9": (0.9103, "oils_usp_canola"),
+    "8001-22-7": (0.9163, "oils_usp_soybean"),
+    "8001-30-7": (0.9148, "oils_usp_corn"),
+}
 # ethanol-water by volume: (ethanol vol fraction, density 25C, bp, mp, flash (closed cup), visc 25C, alpha)
 ETHANOL_WATER = {
     "ethanol 96% v/v": (0.96, 0.8033, 78.2, -90.0, 17.0, 1.15, 1.05e-3),
@@ -130,9 +138,13 @@ def main() -> int:
                 t = (8.8 - 4.0) / (18.0 - 4.0)
                 hsp = tuple(ai + t * (bi - ai) for ai, bi in zip(a, b))
                 src = "derived_triglyceride_interpolation;hsp_mr2022"
+            props = "memory_oil_props"
+            if cas in USP_DENSITY:
+                dens, usp = USP_DENSITY[cas]
+                props = f"{usp};oils_sg_to_density;memory_oil_props_other"
             o.update(mw_g_mol=r(mw, 1), dD_MPa05=r(hsp[0], 2), dP_MPa05=r(hsp[1], 2), dH_MPa05=r(hsp[2], 2),
-                     hsp_source=src, density_g_cm3=r(dens, 3), vm_cm3_mol=r(mw / dens, 1), bp_C="", mp_C=r(mp, 0),
-                     flash_C=r(fl, 0), visc_mPa_s=r(mu, 1), alpha_1_K=r(alpha, 6), props_source="memory_oil_props")
+                     hsp_source=src, density_g_cm3=r(dens, 4), vm_cm3_mol=r(mw / dens, 1), bp_C="", mp_C=r(mp, 0),
+                     flash_C=r(fl, 0), visc_mPa_s=r(mu, 1), alpha_1_K=r(alpha, 6), props_source=props)
             out.append(o)
             continue
         key = HSP_CHOICE.get(cas, "MANUEL_RUBEN_2022")
