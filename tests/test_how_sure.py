@@ -15,6 +15,7 @@ import json
 import math
 
 import numpy as np
+import pytest
 
 from solvsel.data.catalog import load_catalog
 from solvsel.jobs.blend import blend
@@ -119,3 +120,19 @@ def test_the_command_line_gives_the_library_answer(capsys):
     assert doc["how_sure"] == want["how_sure"]
     assert main(["rank", "--solute", "cannabidiol", "--use", "carrier", "--jurisdiction", "EU", "--top", "6"]) == 0
     assert "How sure: sensitive" in capsys.readouterr().out
+
+
+def test_a_fitted_sphere_carries_its_intervals_as_the_targets_uncertainty():
+    # The sphere's 90 % profile intervals become the spread the target is sampled within:
+    # sd = width / (2 z), z the normal quantile of the level (1.645 at 90 %).
+    import solvsel
+    from solvsel.science.robustness import target_spread
+
+    fit = solvsel.fit(path="examples/bench_extract.csv")
+    t = fit.target
+    iv = fit.sphere.interval
+    spread = target_spread(t)
+    assert spread is not None
+    for k, sd in zip(("dD", "dP", "dH"), spread.sd):
+        lo, hi = iv[k]
+        assert sd == pytest.approx((hi - lo) / (2 * 1.6448536), abs=2e-3)

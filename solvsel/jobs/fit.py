@@ -215,7 +215,16 @@ class FitResult:
         note = f"sphere fitted to {f.n_liquids} bench results; fit {f.fit:.2f}"
         if not f.success:
             note += f"; {f.message}"
-        return Target(name, float(f.dD), float(f.dP), float(f.dH), float(f.r0), "fitted", None, note)
+        return Target(name, float(f.dD), float(f.dP), float(f.dH), float(f.r0), "fitted", None, note,
+                      uncertainty=self._interval_uncertainty())
+
+    def _interval_uncertainty(self) -> dict | None:
+        """The sphere's profile intervals as the target's uncertainty (for how sure a ranking is)."""
+        iv = getattr(self.sphere, "interval", None) or {}
+        if not all(isinstance(iv.get(k), (list, tuple)) and len(iv[k]) == 2 for k in ("dD", "dP", "dH")):
+            return None
+        return {**{k: [float(v) for v in iv[k]] for k in ("dD", "dP", "dH")},
+                "level": float(iv.get("level", self.request.level)), "kind": "interval"}
 
     def liquids_summary(self) -> str:
         """Where the liquids' HSP came from, in words (table, reference library, blends, the user's values)."""

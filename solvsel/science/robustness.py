@@ -71,9 +71,9 @@ def spread_from_interval(interval: dict, level: float = 0.90) -> tuple[float, fl
     >>> spread_from_interval({"dD": [16.0, 18.0], "dP": [5.0, 9.0], "dH": [7.0, 9.0]}, 0.90)
     (0.608, 1.216, 0.608)
     """
-    from scipy.stats import norm
+    from statistics import NormalDist
 
-    z = float(norm.ppf((1.0 + float(level)) / 2.0))
+    z = NormalDist().inv_cdf((1.0 + float(level)) / 2.0)
     out = []
     for k in _KEYS:
         lo_hi = interval.get(k)
