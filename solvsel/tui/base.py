@@ -126,8 +126,13 @@ class BenchScreen(Screen):
     def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
         field = self.FIRST_FIELD.get(event.pane.id or "")
         if field:
-            widget = self.query_one(field)
-            self.call_after_refresh(widget.focus)
+            self.call_after_refresh(self._focus_first, event.pane.id, self.query_one(field))
+
+    def _focus_first(self, pane: str, widget) -> None:
+        """Focus a tab's first field if that tab is still the one in front (a field of another tab would
+        bring its tab to the front: tabs flipped quickly would then chase each other for ever)."""
+        if self.query_one(f"#{self.TABS}", TabbedContent).active == pane and self.focused is not widget:
+            widget.focus()
 
     # ---------------------------------------------------------------- target
     def on_screen_resume(self) -> None:
