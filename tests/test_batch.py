@@ -70,6 +70,7 @@ def _same(a: pd.DataFrame, b: pd.DataFrame, keys: tuple[str, ...]) -> None:
             assert a[k].tolist() == b[k].tolist(), k
 
 
+@pytest.mark.slow
 def test_a_batch_of_200_equals_a_loop_of_single_calls(tmp_path, cat):
     path = tmp_path / "targets.csv"
     _write_targets(path, 200)

@@ -257,6 +257,7 @@ def test_one_fold_refit_reproduces_the_stored_out_of_fold_predictions(dataset):
     assert not set(df["key"][te]) & set(df["key"][tr])
 
 
+@pytest.mark.slow
 def test_fold_settings_are_chosen_on_the_fold_training_part_only(dataset):
     # Nested CV (no tuning on the test compounds): the settings recorded for outer fold 3 must come out of
     # select_settings run on that fold's training compounds alone (its inner folds use seed SEED + 1 + k).

@@ -111,6 +111,7 @@ def test_the_verdict_columns_of_every_result_table_are_on_screen_at_160x45():
     run(go())
 
 
+@pytest.mark.slow
 def test_at_100x30_verdicts_keys_map_ticks_cautions_and_wording():
     async def go():
         from solvsel.science.target import target_from_hsp

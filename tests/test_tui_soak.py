@@ -11,6 +11,7 @@ import pytest
 pytest.importorskip("textual")
 
 
+@pytest.mark.slow
 def test_300_random_keys_and_clicks_then_absurd_text_in_every_field():
     from solvsel.tui.app import create_app
     from solvsel.tui.dialogs import ErrorDialog

@@ -132,7 +132,7 @@ class BenchScreen(Screen):
         """Focus a tab's first field if that tab is still the one in front (a field of another tab would
         bring its tab to the front: tabs flipped quickly would then chase each other for ever)."""
         if self.query_one(f"#{self.TABS}", TabbedContent).active == pane and self.focused is not widget:
-            widget.focus()
+            self.set_focus(widget)  # at once, not queued: a queued focus could land after the next tab key
 
     # ---------------------------------------------------------------- target
     def on_screen_resume(self) -> None:
