@@ -1,7 +1,7 @@
 """``solvsel fit``: a solute's Hansen sphere from a CSV of bench results.
 
 Reads the file (liquid, result[, dD, dP, dH, weight, note]), fits the sphere,
-prints the centre, R0, fit quality, the liquids on the wrong side, the
+prints the centre, R0, the agreement with the bench, the liquids the sphere misplaces, the
 uncertainty and the liquids worth testing next; optionally saves the sphere
 as a solute row in the user's own solutes CSV, so that ``rank``, ``blend`` and
 the UI can use it with ``--own-solutes FILE --solute NAME``.
@@ -98,8 +98,8 @@ def _print_sphere(result) -> None:
     fit = result.sphere
     print(f"Sphere fitted to {fit.n_liquids} liquids ({fit.n_good} good) from {result.bench.path}")
     print(f"  centre  dD {fit.dD:.2f}   dP {fit.dP:.2f}   dH {fit.dH:.2f}   R0 {fit.r0:.2f}  MPa^0.5")
-    print(f"  fit     desirability {fit.fit:.3f}, {100 * fit.explained:.0f} % of results explained "
-          f"({fit.rule} rule{', margin %.2f' % fit.margin if fit.separable else ''})")
+    print(f"  agreement with the bench {fit.fit:.3f} of 1 (Hansen's desirability), {100 * fit.explained:.0f} % "
+          f"of results explained ({fit.rule} rule{', margin %.2f' % fit.margin if fit.separable else ''})")
     print(f"  shape   {fit.open_note}")
     print(f"  liquids {result.liquids_summary()}")
     if fit.message:
@@ -119,7 +119,7 @@ def _print_wrong_side(result) -> None:
     if not wrong:
         print("\nEvery result is explained (good liquids inside, bad ones outside).")
         return
-    print("\nOn the wrong side:")
+    print("\nMisplaced by the sphere (a good liquid outside or a bad one inside):")
     print_table(
         [{"name": w.name, "result": "good" if w.good else "bad", "red": w.red, "w": w.weight} for w in wrong],
         [("name", "liquid"), ("result", "result"), ("red", "RED", ".2f"), ("w", "weight", ".2f")],
@@ -130,7 +130,8 @@ def _print_two_spheres(result) -> None:
     two = result.two
     if two is None:
         return
-    print(f"\nTwo spheres (union): desirability {two.fit:.3f} against {two.one_sphere_fit:.3f} for one; {two.message}")
+    print(f"\nTwo spheres (union): agreement with the bench {two.fit:.3f} against {two.one_sphere_fit:.3f} for one; "
+          f"{two.message}")
     names = result.bench.names
     print_table(
         [{"n": i + 1, "dD": f.dD, "dP": f.dP, "dH": f.dH, "r0": f.r0,

@@ -374,7 +374,8 @@ def write_report(out: str | Path, title: str, command: str, text: str, data: Any
     if not force:
         existing = [str(p) for p in paths if p.exists()]
         if existing:
-            raise InputError(f"report: {existing[0]} exists already; choose another name or pass --force to replace it")
+            raise InputError(f"report: {existing[0]} exists already; choose another name or allow it to be replaced",
+                             param="force", value=existing[0], expected="a new file name, or replacing allowed")
     if not md.parent.exists():
         raise InputError(f"report: folder '{md.parent}' does not exist")
     if isinstance(data, dict) and "audit" not in data:
