@@ -118,7 +118,10 @@ def _fmt(value: Any, spec: str | None) -> str:
     if isinstance(value, float):
         if not math.isfinite(value):
             return "-"
-        return format(value, spec or ".3g")
+        text = format(value, spec or ".3g")
+        if "e+" in text and abs(value) < 1e12:  # 1032600 mg/L, not 1.0326e+06
+            text = format(value, ".0f")
+        return text
     if isinstance(value, (list, tuple)):
         return ", ".join(_fmt(v, None) for v in value)
     return str(value)
