@@ -21,8 +21,7 @@ from typing import Any
 
 from ..data.catalog import Catalog, number_or_none
 from ..data.provenance import audit_block
-from ..errors import UnknownNameError
-from ..rules.cautions import DEFER, solvent_cautions
+from ..rules.cautions import DEFER
 from ..science.clarity import (
     CLEAR_BELOW,
     COSOLVENT_POWER,
@@ -38,7 +37,8 @@ from ..science.clarity import (
 )
 from ..science.formulation import WATER_DENSITY_25C, Formula, Stage, Step, stage_levels
 from ._base import build_request, catalog_or_default, check_choice, check_number, frame
-from .dose import FORMULA_DENSITY_RANGE, _dose_field, _formula, _formula_field, _optional_text
+from .dose import (FORMULA_DENSITY_RANGE, _dose_field, _formula, _formula_field, _optional_text,
+                   formula_liquid_cautions)
 from .parse import parse_chain
 
 __all__ = ["ClarityRequest", "ClarityResult", "clarity", "SOLUBILISER", "SOLUBILISER_RATIO"]
@@ -285,13 +285,7 @@ def _cautions(cat: Catalog, formula: Formula, comps, temp_C: float) -> tuple[str
     if any(c.verdict != "clear" for c in comps):
         out.append("A solubiliser is a food additive with its own limits in drinks: check its level like any "
                    "additive, for the drink's category and jurisdiction.")
-    for comp in formula.components:
-        if comp.origin.startswith("solvents"):
-            try:
-                rec = cat.solvent(comp.name, library=False)
-            except UnknownNameError:  # a record from outside the tables under its own name
-                continue
-            out += [c for c in solvent_cautions(rec, use="carrier", cat=cat) if c != DEFER]
+    out += formula_liquid_cautions(cat, formula)
     out.append(DEFER)
     return tuple(dict.fromkeys(out))
 

@@ -193,16 +193,23 @@ class DoseRequest:
 def dose_cautions(cat: Catalog, check: DoseCheck) -> tuple[str, ...]:
     """The cautions that go with a dose check: its legal notes, those of every liquid of the
     formula (as a carrier), and the closing caution :data:`~solvsel.rules.cautions.DEFER`."""
-    out = limit_cautions(check)
-    for comp in check.formula.components:
+    out = limit_cautions(check) + formula_liquid_cautions(cat, check.formula)
+    out.append(DEFER)
+    return tuple(dict.fromkeys(out))
+
+
+def formula_liquid_cautions(cat: Catalog, formula) -> list[str]:
+    """The cautions of every liquid of a formula from the solvents table, as a carrier (without the
+    closing :data:`~solvsel.rules.cautions.DEFER`, which the caller adds once)."""
+    out: list[str] = []
+    for comp in formula.components:
         if comp.origin.startswith("solvents"):
             try:
                 rec = cat.solvent(comp.name, library=False)
             except UnknownNameError:  # a record from outside the tables under its own name
                 continue
             out += [c for c in solvent_cautions(rec, use="carrier", cat=cat) if c != DEFER]
-    out.append(DEFER)
-    return tuple(dict.fromkeys(out))
+    return out
 
 
 @dataclass(frozen=True)

@@ -46,23 +46,25 @@ def collect_source_ids(data: Any) -> list[str]:
     ['a', 'b', 'c']
     """
     out: list[str] = []
-
-    def walk(x):
-        if isinstance(x, dict):
-            for k, v in x.items():
-                if k in _SOURCE_KEYS:
-                    vals = v if isinstance(v, list) else str(v or "").split(";")
-                    for s in vals:
-                        if isinstance(s, str) and s.strip() and s.strip() not in out:
-                            out.append(s.strip())
-                else:
-                    walk(v)
-        elif isinstance(x, list):
-            for v in x:
-                walk(v)
-
-    walk(data)
+    for v in _values_under(data, _SOURCE_KEYS):
+        for s in (v if isinstance(v, list) else str(v or "").split(";")):
+            if isinstance(s, str) and s.strip() and s.strip() not in out:
+                out.append(s.strip())
     return out
+
+
+def _values_under(x: Any, keys) -> Iterable[Any]:
+    """The values under any of ``keys`` anywhere in a JSON-like document, in document order
+    (not looking inside them)."""
+    if isinstance(x, dict):
+        for k, v in x.items():
+            if k in keys:
+                yield v
+            else:
+                yield from _values_under(v, keys)
+    elif isinstance(x, list):
+        for v in x:
+            yield from _values_under(v, keys)
 
 
 def _flatten(d: Any, prefix: str = "") -> dict[str, Any]:
@@ -203,19 +205,9 @@ def cautions_of(data: Any) -> list[str]:
     ['a', 'b']
     """
     out: list[str] = []
-
-    def walk(x):
-        if isinstance(x, dict):
-            for k, v in x.items():
-                if k in ("cautions", "liquid_cautions") and isinstance(v, list):
-                    out.extend(c for c in v if isinstance(c, str) and c not in out)
-                else:
-                    walk(v)
-        elif isinstance(x, list):
-            for v in x:
-                walk(v)
-
-    walk(data)
+    for v in _values_under(data, ("cautions", "liquid_cautions")):
+        if isinstance(v, list):
+            out.extend(c for c in v if isinstance(c, str) and c not in out)
     return out
 
 
