@@ -435,8 +435,9 @@ def _remove_stale_temporaries(p: Path) -> None:
     import time
 
     try:
-        stale = [t for t in p.parent.glob(_temporary_prefix(p) + "*")
-                 if time.time() - t.stat().st_mtime > STALE_TEMPORARY_S]
+        prefix = _temporary_prefix(p)  # compared as text: a name may hold glob characters such as [ ]
+        stale = [t for t in p.parent.iterdir()
+                 if t.name.startswith(prefix) and time.time() - t.stat().st_mtime > STALE_TEMPORARY_S]
         for t in stale:
             t.unlink()
     except OSError:  # a folder that cannot be listed or a file already gone: the save itself reports
