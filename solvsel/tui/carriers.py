@@ -22,7 +22,7 @@ from textual.worker import Worker, WorkerState, get_current_worker
 
 from .base import BenchScreen
 from .limits import NO_PURPOSE, audit_text, purpose_choices, purpose_value
-from .widgets import CautionBox, fill_table
+from .widgets import CautionBox, FollowingTabs, fill_table
 
 # Verdicts first, names last (cut first where the screen is narrow; the detail pane has them whole).
 RANK_HEADERS = ("#", "Ra MPa½", "RED", "allowed", "flammable", "health", "how sure", "carries", "flash °C",
@@ -149,7 +149,7 @@ class CarriersScreen(BenchScreen):
                 yield Input(placeholder="e.g. 5% (checked from 4 to 25 C)", id="load", compact=True)
                 yield Button("Search blends  ^R", id="run-search", variant="primary", compact=True)
             with Vertical(id="carriers-main"):
-                with TabbedContent(id="carrier-tabs", initial="tab-blends"):
+                with FollowingTabs(id="carrier-tabs", initial="tab-blends"):
                     with TabPane("Single liquids", id="tab-single"):
                         yield DataTable(id="rank-grid", cursor_type="row", zebra_stripes=True)
                     with TabPane("Blends", id="tab-blends"):

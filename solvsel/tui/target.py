@@ -15,11 +15,11 @@ import warnings
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
-from textual.widgets import Button, Input, Label, OptionList, Static, TabbedContent, TabPane
+from textual.widgets import Button, Input, Label, OptionList, Static, TabPane
 from textual.widgets.option_list import Option
 
 from .base import BenchScreen
-from .widgets import CautionBox, shorten
+from .widgets import CautionBox, FollowingTabs, shorten
 
 #: Labels of the error keys of an estimate (Ra is the trade's name of the distance).
 _LABEL = {"dD": "dD", "dP": "dP", "dH": "dH", "ra": "Ra"}
@@ -39,7 +39,7 @@ class TargetScreen(BenchScreen):
     def compose(self) -> ComposeResult:
         yield from self.compose_frame_top()
         with Horizontal(id="target-body"):
-            with TabbedContent(id="target-tabs"):
+            with FollowingTabs(id="target-tabs"):
                 with TabPane("Solutes table", id="from-table"):
                     yield Input(placeholder="type to narrow the list; Enter on a name uses it", id="solute-filter", compact=True)
                     yield Static(f"  {'solute':<30} {'kind':<8} {'dD':>5} {'dP':>5} {'dH':>5}  basis of the HSP  (MPa^0.5)",

@@ -17,7 +17,7 @@ from textual.message import Message
 from textual.reactive import reactive
 from textual.widget import Widget
 from textual.content import Content
-from textual.widgets import Checkbox, Static
+from textual.widgets import Checkbox, Static, TabbedContent, TabPane
 
 # ----------------------------------------------------------------- screen strip
 
@@ -592,3 +592,14 @@ def shorten(text: str, width: int) -> str:
     from rich.cells import cell_len, set_cell_size
 
     return text if cell_len(text) <= width else set_cell_size(text, width - 1) + "…"
+
+
+class FollowingTabs(TabbedContent):
+    """Tabbed content that brings a tab to the front for a focused field only while the field still has
+    the cursor: a focus message that arrives after the cursor has moved on (tab keys pressed quickly
+    on a busy machine) would otherwise bring back the tab the user just left."""
+
+    def _on_tab_pane_focused(self, event: TabPane.Focused) -> None:
+        if event.tab_pane.id != self.active and not event.tab_pane.has_focus_within:
+            event.prevent_default()  # stale: the default handler would switch tabs
+            event.stop()
