@@ -51,6 +51,17 @@ async def _until(pilot, condition, seconds: float = 10.0):
         await pilot.pause(0.05)
 
 
+async def _next_tab_until(pilot, screen, wanted: str):
+    """Ctrl+T one tab at a time, each waited for as a person watching the screen would, until the
+    target screen's tab ``wanted`` is in front."""
+    tabs = screen.query_one("#target-tabs")
+    ids = [pane.id for pane in tabs.query("TabPane")]
+    while tabs.active != wanted:
+        nxt = ids[(ids.index(tabs.active) + 1) % len(ids)]
+        await pilot.press("ctrl+t")
+        await _until(pilot, lambda: tabs.active == nxt)
+
+
 def _cells(grid, row):
     return [str(c) for c in grid.get_row_at(row)]
 
@@ -214,10 +225,7 @@ def test_target_screen_smiles_typed_numbers_dialogs_and_map():
             await pilot.press("f2")
             await pilot.pause()
             screen = app.screen
-            for _ in range(2):  # the third way: from a structure
-                await pilot.press("ctrl+t")
-                await pilot.pause()
-            await _until(pilot, lambda: screen.query_one("#target-tabs").active == "from-smiles")
+            await _next_tab_until(pilot, screen, "from-smiles")  # the third way: from a structure
             await _until(pilot, lambda: screen.focused is screen.query_one("#smiles"))
             await pilot.press(*"C1CC((")  # unclosed branch and ring: not a molecule
             await pilot.press("enter")
@@ -384,10 +392,7 @@ def test_bench_fit_target_and_the_users_own_rows(tmp_path):
             await pilot.press("f2")
             await pilot.pause()
             screen = app.screen
-            for _ in range(3):  # the fourth way: from bench results
-                await pilot.press("ctrl+t")
-                await pilot.pause()
-            await _until(pilot, lambda: screen.query_one("#target-tabs").active == "from-bench")
+            await _next_tab_until(pilot, screen, "from-bench")  # the fourth way: from bench results
             # the cursor lands in the path field, so a typed path goes there
             await _until(pilot, lambda: screen.focused is screen.query_one("#bench-path"))
             screen.query_one("#bench-path").value = str(bench)
