@@ -455,12 +455,7 @@ def search_blends(pool_hsp, target, max_components: int = 3, lower=None, upper=N
     if H.ndim != 2:
         raise InputError(f"expected shape (m, 3), got {H.shape}", param="pool_hsp")
     m = H.shape[0]
-    if not 1 <= int(max_components) <= MAX_COMPONENTS:
-        raise InputError(f"expected 1 to {MAX_COMPONENTS}, got {max_components}", param="max_components")
-    lo = np.zeros(m) if lower is None else np.asarray(lower, dtype=float)
-    hi = np.ones(m) if upper is None else np.asarray(upper, dtype=float)
-    if lo.shape != (m,) or hi.shape != (m,):
-        raise InputError(f"expected one bound per pool liquid ({m})", param="lower")
+    lo, hi = _search_bounds(m, max_components, lower, upper)
     required = np.flatnonzero(lo > 0)
     sizes = list(sizes or range(1, int(max_components) + 1))
     total = sum(comb(m - len(required), k - len(required)) if k >= len(required) else 0 for k in sizes)
@@ -928,12 +923,7 @@ def stream_candidates(pool_hsp, target, max_components: int, lower=None, upper=N
     """
     H = as_hsp(pool_hsp, "pool_hsp").reshape(-1, 3)
     m = H.shape[0]
-    if not 1 <= int(max_components) <= MAX_COMPONENTS:
-        raise InputError(f"expected 1 to {MAX_COMPONENTS}, got {max_components}", param="max_components")
-    lo = np.zeros(m) if lower is None else np.asarray(lower, dtype=float)
-    hi = np.ones(m) if upper is None else np.asarray(upper, dtype=float)
-    if lo.shape != (m,) or hi.shape != (m,):
-        raise InputError(f"expected one bound per pool liquid ({m})", param="lower")
+    lo, hi = _search_bounds(m, max_components, lower, upper)
     s = _Stream.of(H, as_hsp(target, "target").reshape(3), lo, hi, min_fraction)
     required = np.flatnonzero(lo > 0)
     r = len(required)
@@ -1101,3 +1091,15 @@ def blend_solubility(solute, t_hsp, recs, xs, bh, temp_C: float) -> dict | None:
     except SolvselError:
         return None
     return est.to_dict()
+
+
+def _search_bounds(m: int, max_components, lower, upper) -> tuple[np.ndarray, np.ndarray]:
+    """The lower and upper volume-fraction bounds of a search over ``m`` liquids (0 and 1 where not
+    given), after checking ``max_components`` and the bounds' shapes."""
+    if not 1 <= int(max_components) <= MAX_COMPONENTS:
+        raise InputError(f"expected 1 to {MAX_COMPONENTS}, got {max_components}", param="max_components")
+    lo = np.zeros(m) if lower is None else np.asarray(lower, dtype=float)
+    hi = np.ones(m) if upper is None else np.asarray(upper, dtype=float)
+    if lo.shape != (m,) or hi.shape != (m,):
+        raise InputError(f"expected one bound per pool liquid ({m})", param="lower")
+    return lo, hi
