@@ -196,6 +196,10 @@ def load(request: LoadRequest | None = None, *, catalog: Catalog | None = None, 
     return LoadResult(chk, tuple(seen) + (DEFER,), tuple(notes), audit_block((), cat.tables_dir))
 
 
+#: How the ``mark`` of a load check begins, by verdict.
+_MARK_WORDS = {"yes": "carries", "borderline": "borderline at", "no": "cannot carry"}
+
+
 def load_info(cat: Catalog, target, recs: Sequence, fractions: Sequence[float], load_value: float | None,
               storage_C: tuple[float, float]) -> dict | None:
     """The load check of a ranking target in a liquid or blend (``recs`` at volume ``fractions``), as the ``load``
@@ -210,4 +214,4 @@ def load_info(cat: Catalog, target, recs: Sequence, fractions: Sequence[float], 
     largest = "not known" if chk.largest_load is None else f"{100 * chk.largest_load:.3g} %"
     return {"verdict": chk.verdict, "load": chk.load, "largest_load": chk.largest_load, "basis": chk.basis,
             "limiting_temp_C": chk.limiting_temp_C, "reason": chk.reason,
-            "mark": f"cannot carry {100 * chk.load:g} % (one phase up to {largest}, {chk.basis})"}
+            "mark": f"{_MARK_WORDS[chk.verdict]} {100 * chk.load:g} % (one phase up to {largest}, {chk.basis})"}
