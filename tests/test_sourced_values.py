@@ -115,6 +115,54 @@ def test_emulsifier_split_given_at_both_ends_of_the_range():
         assert pair["fraction_a"] == pytest.approx((end - 4.3) / (15.0 - 4.3))
 
 
+
+def _build_tool():
+    import importlib.util
+
+    spec = importlib.util.spec_from_file_location("build_solvents", ROOT / "tools" / "build_solvents.py")
+    mod = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(mod)
+    return mod
+
+
+#: National Bureau of Standards table (Osborne, McKelvy and Bearce, NBS Bulletin 9, 1913), density [g/mL] of
+#: ethanol-water by % weight at 10, 15, 20, 25, 30, 35 and 40 C, as reproduced at chestofbooks.com
+#: ("Density in grams per c.c. of mixtures of ethyl alcohol and water", read 2026-12-05).
+NBS_DENSITY = {45: (0.93226, 0.92852, 0.92472, 0.92085, 0.91692, 0.91291, 0.90884),
+               50: (0.92162, 0.91776, 0.91384, 0.90985, 0.90580, 0.90168, 0.89750),
+               60: (0.89927, 0.89523, 0.89113, 0.88699, 0.88278, 0.87851, 0.87417),
+               70: (0.87602, 0.87187, 0.86766, 0.86340, 0.85908, 0.85470, 0.85025),
+               85: (0.83951, 0.83525, 0.83095, 0.82660, 0.82220, 0.81774, 0.81322)}
+
+
+def test_ethanol_water_density_formula_against_the_nbs_table():
+    # OIML R 22 (1975) formula (source ethwat_oiml_r22) against the NBS table above; and OIML's own
+    # density of ethanol at 20 C, 789.24 kg/m3, and of water at 20 C, 998.20 kg/m3.
+    tool = _build_tool()
+    for wt, row in NBS_DENSITY.items():
+        for t, want in zip(range(10, 45, 5), row):
+            assert tool.oiml_density(wt / 100, t) / 1000 == pytest.approx(want, abs=2e-4), (wt, t)
+    assert tool.oiml_density(1.0, 20.0) == pytest.approx(789.24, abs=0.01)
+    assert tool.oiml_density(0.0, 20.0) == pytest.approx(998.20, abs=0.01)
+
+
+@pytest.mark.parametrize("vol_pct, wt_pct", [(10, 8.05), (20, 16.27), (30, 24.67), (33, 27.24)])
+def test_strength_by_volume_to_weight_as_the_alcoholometric_table(vol_pct, wt_pct):
+    # USP 29 Alcoholometric Table (from NBS Bulletin 9), % by volume at 15.56 C against % by weight, read
+    # 2026-12-05 at http://ftp.uspbpep.com/v29240/usp29nf24s0_m6o00100.html
+    assert 100 * _build_tool().ethanol_mass_fraction(vol_pct / 100, 15.56) == pytest.approx(wt_pct, abs=0.01)
+
+
+@pytest.mark.parametrize("name", ["ethanol 96% v/v", "ethanol 70% v/v", "ethanol 50% v/v", "ethanol 40% v/v"])
+def test_ethanol_strengths_from_the_alcoholometric_formula(name):
+    # density at 25 C of the strength (% v/v at 20 C) by the OIML R 22 formula (ethwat_oiml_r22)
+    tool = _build_tool()
+    row = next(r for r in _rows("solvents") if r["name"] == name)
+    p = tool.ethanol_mass_fraction(float(name.split("%")[0].split()[-1]) / 100)
+    assert float(row["density_g_cm3"]) == pytest.approx(tool.oiml_density(p, 25.0) / 1000, abs=1e-4)
+    assert float(row["vm_cm3_mol"]) == pytest.approx(float(row["mw_g_mol"]) / float(row["density_g_cm3"]), abs=0.06)
+    assert "ethwat_oiml_r22" in row["props_source"].split(";")
+
 #: Values ``solvsel demo`` reads from these tables that are marked from memory, after sourcing (before, at
 #: the start of this work: emulsifiers 5, oils 3, solutes 13, sucrose_density 66, weighting_agents 4,
 #: miscibility 45 of the 74 values the demo then read).

@@ -51,13 +51,36 @@ USP_DENSITY = {
     "8001-22-7": (0.9163, "oils_usp_soybean"),
     "8001-30-7": (0.9148, "oils_usp_corn"),
 }
-# ethanol-water by volume: (ethanol vol fraction, density 25C, bp, mp, flash (closed cup), visc 25C, alpha)
+# ethanol-water strengths: ethanol volume fraction (% v/v at 20 C) and closed-cup flash point [C]
+# (source secondary_flash_ethanol_water; the flash points stay marked recalled, memory_ethanol_water)
 ETHANOL_WATER = {
-    "ethanol 96% v/v": (0.96, 0.8033, 78.2, -90.0, 17.0, 1.15, 1.05e-3),
-    "ethanol 70% v/v": (0.70, 0.8818, 80.8, -40.0, 21.0, 2.10, 0.85e-3),
-    "ethanol 50% v/v": (0.50, 0.9264, 82.9, -32.0, 24.0, 2.30, 0.70e-3),
-    "ethanol 40% v/v": (0.40, 0.9451, 84.5, -24.0, 26.0, 2.25, 0.60e-3),
+    "ethanol 96% v/v": (0.96, 17.0),
+    "ethanol 70% v/v": (0.70, 21.0),
+    "ethanol 50% v/v": (0.50, 24.0),
+    "ethanol 40% v/v": (0.40, 26.0),
 }
+ETHANOL_WATER_SOURCES = ("ethwat_oiml_r22;ethwat_derived;extract_etb_freezing;extract_bingham_viscosity;"
+                         "extract_chemsep_nrtl;extract_poling_antoine;secondary_flash_ethanol_water;memory_ethanol_water")
+# OIML R 22 (1975) International alcoholometric tables: density [kg/m3] of ethanol-water as a polynomial in
+# the mass fraction p of ethanol whose coefficients are polynomials in (t - 20 C); rows from p^11 down to p^0,
+# each row's coefficients from the highest power of (t - 20) down to the constant (A_k, B_k, C_ik of R 22),
+# as transcribed at the address of source ethwat_oiml_r22.
+OIML_R22 = [
+    [1.285617841998974e3, -3.903285426e4],
+    [7.442971530188783, -7.420201433430137e3, 2.234460334e5],
+    [-5.411227621436812e-1, -4.414153236817392e1, 1.852373922069467e4, -5.478461354e5],
+    [2.458043105903461, 1.080435942856230e2, -2.605562982188164e4, 7.470172998e5],
+    [-4.672147440794683, -1.422753946421155e2, 2.248646550400788e4, -6.138381234e5],
+    [4.810060584300675, 1.096355666577570e2, -1.210164659068747e4, 3.062874042e5],
+    [-2.895696483903638, -5.029988758547014e1, 3.924090430035045e3, -8.829278388e4],
+    [-1.515784836987210e-6, 1.022992966719220, 1.353034988843029e1, -7.047478054272792e2, 1.352215441e4],
+    [6.515031360099368e-6, -2.002561813734156e-1, -2.170575700536993, 7.196353469546523e1, -1.668103923e3],
+    [1.345612883493354e-8, -8.763058573471110e-6, 1.876837790289664e-2, 2.517399633803461e-1,
+     -1.046914743455169e1, 3.891238958e2],
+    [-2.788074354782409e-8, 4.075376675622027e-6, -6.802995733503803e-4, -1.193013005057010e-2,
+     1.693433461530087e-1, -1.929769495e2],
+    [-9.9739231e-11, 7.1693540e-9, -3.8957702e-7, 3.6130013e-5, -5.2682542e-3, -2.0618513e-1, 9.982012300e2],
+]
 
 # thermo estimates (not data-backed) for these: values recalled from handbooks and
 # supplier data sheets instead (kind memory); None leaves the cell empty (unknown).
@@ -98,6 +121,50 @@ def r(x, nd):
     return "" if x is None else f"{round(float(x), nd):g}"
 
 
+def oiml_density(p: float, t_C: float) -> float:
+    """Density [kg/m3] of ethanol-water of ethanol mass fraction ``p`` at ``t_C`` (OIML R 22 formula)."""
+    def poly(coeffs, v):
+        acc = 0.0
+        for c in coeffs:
+            acc = acc * v + c
+        return acc
+
+    return poly([poly(row, t_C - 20.0) for row in OIML_R22], p)
+
+
+def ethanol_mass_fraction(phi: float, t_ref_C: float = 20.0) -> float:
+    """Mass fraction of ethanol of the strength ``phi`` (volume fraction at ``t_ref_C``, as alcoholometry
+    defines it): phi = p * rho_mix(p, t_ref) / rho_ethanol(t_ref)."""
+    from scipy.optimize import brentq
+
+    rho_e = oiml_density(1.0, t_ref_C)
+    return float(brentq(lambda p: p * oiml_density(p, t_ref_C) / rho_e - phi, 0.0, 1.0, xtol=1e-12))
+
+
+def ethanol_water_row(phi: float, flash_C: float, e: dict, w: dict) -> dict:
+    """The values of an ethanol-water strength: density, expansion and molar volume at 25 C from OIML R 22,
+    boiling point (NRTL bubble point at 101.325 kPa), freezing point and viscosity from the published tables
+    the project holds (tables/ethanol_water.csv); HSP by volume fractions of the pure liquids."""
+    from solvsel.data.catalog import load_catalog
+    from solvsel.science import extraction as ex
+
+    cat = load_catalog()
+    p = ethanol_mass_fraction(phi)
+    rho = oiml_density(p, 25.0)
+    alpha = -(oiml_density(p, 25.5) - oiml_density(p, 24.5)) / rho
+    ne, nw = p / e["mw"], (1.0 - p) / w["mw"]
+    x = ne / (ne + nw)
+    mw = (p + (1.0 - p)) / (ne + nw)
+    bp = ex.bubble_point_C(ex.pair_of(cat.solvent("ethanol"), cat.solvent("water")), x, 101.325)
+    hsp = [phi * e[k] + (1 - phi) * w[k] for k in ("dD", "dP", "dH")]
+    return dict(mw_g_mol=r(mw, 2), dD_MPa05=r(hsp[0], 2), dP_MPa05=r(hsp[1], 2), dH_MPa05=r(hsp[2], 2),
+                hsp_source="derived_volume_mix;hsp_mr2022", density_g_cm3=r(rho / 1000.0, 4),
+                vm_cm3_mol=r(mw / (rho / 1000.0), 1), bp_C=r(bp, 1),
+                mp_C=r(float(ex.freezing_point_C(cat, 100.0 * phi)), 0), flash_C=r(flash_C, 0),
+                visc_mPa_s=r(ex.viscosity_mPa_s(cat, 100.0 * p, 25.0)[0], 2), alpha_1_K=r(alpha, 6),
+                props_source=ETHANOL_WATER_SOURCES)
+
+
 def main() -> int:
     from chemicals.identifiers import search_chemical
     from chemicals.phase_change import Tb, Tm
@@ -115,17 +182,7 @@ def main() -> int:
         )
         o["cost_source"] = "memory_cost"
         if row["name"] in ETHANOL_WATER:
-            phi, dens, bp, mp, fl, mu, alpha = ETHANOL_WATER[row["name"]]
-            e, w = by_name["ethanol"], by_name["water"]
-            hsp = [phi * e[k] + (1 - phi) * w[k] for k in ("dD", "dP", "dH")]
-            # mass and mole fractions from the pure densities at 25 C
-            me, mw_ = phi * e["rho"], (1 - phi) * w["rho"]
-            ne, nw = me / e["mw"], mw_ / w["mw"]
-            mw = (me + mw_) / (ne + nw)
-            o.update(mw_g_mol=r(mw, 2), dD_MPa05=r(hsp[0], 2), dP_MPa05=r(hsp[1], 2), dH_MPa05=r(hsp[2], 2),
-                     hsp_source="derived_volume_mix;hsp_mr2022", density_g_cm3=r(dens, 4), vm_cm3_mol=r(mw / dens, 1),
-                     bp_C=r(bp, 1), mp_C=r(mp, 0), flash_C=r(fl, 0), visc_mPa_s=r(mu, 2), alpha_1_K=r(alpha, 6),
-                     props_source="memory_ethanol_water;secondary_flash_ethanol_water")
+            o.update(ethanol_water_row(*ETHANOL_WATER[row["name"]], by_name["ethanol"], by_name["water"]))
             out.append(o)
             continue
         if cas in MIXTURE_PROPS:
