@@ -575,6 +575,7 @@ GRID_STEPS = {2: 100, 3: 50, 4: 50}
 POLISH_STARTS = 2
 
 
+@functools.lru_cache(maxsize=8)
 def _trial_compositions(m: int) -> np.ndarray:
     """Trial phases of the tangent-plane test for ``m`` liquids: a grid of the composition
     simplex and, next to each pure liquid, log-spaced traces (1e-9 to 0.1) of each other liquid
@@ -588,7 +589,31 @@ def _trial_compositions(m: int) -> np.ndarray:
                     y = np.zeros(m)
                     y[i], y[j] = 1.0 - t, t
                     edge.append(y)
-    return np.vstack([grid, np.array(edge)])
+    out = np.vstack([grid, np.array(edge)])
+    out.setflags(write=False)
+    return out
+
+
+@functools.lru_cache(maxsize=8)
+def _trial_terms(m: int) -> np.ndarray:
+    """The columns the tangent-plane distance of the trial phases is linear in: ``y_i ln y_i``
+    (0 at y_i = 0), ``y_i`` and ``y_i y_j`` (i < j), so that for any mixture
+    ``D(y) = terms @ [1/N, -mu, chi_ij (i < j)] + const``: one product for the whole grid."""
+    Y = _trial_compositions(m)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ylny = np.where(Y > 0, Y * np.log(np.where(Y > 0, Y, 1.0)), 0.0)
+    iu, ju = np.triu_indices(m, 1)
+    out = np.hstack([ylny, Y, Y[:, iu] * Y[:, ju]])
+    out.setflags(write=False)
+    return out
+
+
+def _lowest(D: np.ndarray, k: int) -> np.ndarray:
+    """Indices of the ``k`` smallest values of ``D``, smallest first."""
+    if D.size > k:
+        part = np.argpartition(D, k)[:k]
+        return part[np.argsort(D[part], kind="stable")]
+    return np.argsort(D, kind="stable")
 
 
 def mixture_stability(vm_cm3_mol, phi, chi, tol: float = 1e-7) -> MixtureStability:
@@ -665,27 +690,29 @@ def _mixture_stability(vm_cm3_mol, phi, chi, tol: float) -> MixtureStability:
     m = xs.size
     mu = (np.log(xs) + 1.0) / N + C @ xs
     g0 = float(_fh_g(xs, N, C))
-
-    def tpd(Y):
-        return _fh_g(Y, N, C) - g0 - (Y - xs) @ mu
-
+    const = float(xs @ mu) - g0
+    iu, ju = np.triu_indices(m, 1)
     Y = _trial_compositions(m)
-    D = tpd(Y)
-    order = np.argsort(D)
+    D = _trial_terms(m) @ np.concatenate([1.0 / N, -mu, C[iu, ju]]) + const
+    order = _lowest(D, 200)
     best_d, best_y = float(D[order[0]]), Y[order[0]]
     if best_d >= -tol:
         # polish, in softmax coordinates, the lowest points away from the mixture itself
         # (next to it the distance is ~0 anyway) that come close to zero
+        inv_n = 1.0 / N
+
         def f(z):
             e = np.exp(z - z.max())
             y = e / e.sum()
-            yc = np.clip(y, 1e-300, None)
-            d = float(tpd(y[None])[0])
-            grad_y = (np.log(yc) + 1.0) / N + C @ y - mu
+            lny = np.log(np.clip(y, 1e-300, None))
+            cy = C @ y
+            d = float((y * lny) @ inv_n + 0.5 * (y @ cy) - y @ mu + const)
+            grad_y = (lny + 1.0) * inv_n + cy - mu
             return d, y * (grad_y - y @ grad_y)  # chain rule through the softmax
 
-        far = [k for k in order[:200] if np.max(np.abs(Y[k] - xs)) > 0.05 and D[k] < POLISH_BELOW][:POLISH_STARTS]
-        if far:
+        away = (np.max(np.abs(Y[order] - xs), axis=1) > 0.05) & (D[order] < POLISH_BELOW)
+        far = order[away][:POLISH_STARTS]
+        if far.size:
             best_d, best_y = _polish(f, Y[far], best_d, best_y)
     trial = np.zeros(n)
     trial[keep] = best_y
