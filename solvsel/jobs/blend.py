@@ -371,6 +371,20 @@ class _Search:
     seen: dict = field(default_factory=dict)  # signature -> the candidate kept first
     alike: dict = field(default_factory=dict)  # that candidate -> the candidates folded into it
     seen_dropped: set = field(default_factory=set)
+    #: ``step_progress(step, done, total)`` of :func:`blend` (None: not asked for)
+    step_progress: Callable[[str, int, int], bool | None] | None = None
+    to_describe: int = 0  # blends to describe (and check for the load) once the checks are done
+    described: int = 0
+
+    def tell(self, step: str, done: int, total: int) -> None:
+        """Report ``done`` of ``total`` of a step; the callback's False stops the search (:class:`SearchCancelled`)."""
+        if self.step_progress is not None and self.step_progress(step, done, total) is False:
+            raise SearchCancelled(f"stopped in the {step} step at {done} of {total}")
+
+    def described_one(self) -> None:
+        """One more blend described (or checked for the load), reported as such."""
+        self.described += 1
+        self.tell("describing", self.described, self.to_describe)
 
     def members(self, j: int) -> tuple[list[Candidate], np.ndarray]:
         idx, xs = self.cands.members(j)
@@ -584,6 +598,7 @@ def _check(s: _Search, sc: _Scores) -> list[tuple[int, dict | None]]:
 
     for j in sc.order[:_SCAN_LIMIT]:
         j = int(j)
+        s.tell("checks", len(kept), enough)  # k of n: the blends that passed of those wanted
         s.counts["checked"] += 1
         if req.one_phase_only and not screen[j]:
             if listing():
@@ -617,6 +632,7 @@ def _check(s: _Search, sc: _Scores) -> list[tuple[int, dict | None]]:
         kept.append((j, dose))
         if len(kept) >= enough:
             break
+    s.tell("checks", len(kept), enough)
     s.counts["kept"] = len(kept)
     return kept
 
@@ -704,7 +720,7 @@ def _describe(s: _Search, sc: _Scores, j: int, dose: dict | None, rank: int) -> 
     phase = s.phase(j)
     cautions = _blend_cautions(s, recs, phase) + (list(dose["cautions"]) if dose else [])
     cost = None if np.isnan(sc.cost[j]) else float(sc.cost[j])
-    return Blend(
+    b = Blend(
         components=tuple(BlendComponent(c.name, c.cas, float(x), w, c.record.origin)
                          for c, x, w in zip(recs, xs, mass)),
         dD=float(bh[0]), dP=float(bh[1]), dH=float(bh[2]), ra=ra, red=red,
@@ -718,6 +734,8 @@ def _describe(s: _Search, sc: _Scores, j: int, dose: dict | None, rank: int) -> 
         cautions=tuple(dict.fromkeys(cautions)), rank=rank, dose_check=dose,
         notes=tuple(f"{c.name}: {c.note}" for c in recs if c.note),
     )
+    s.described_one()
+    return b
 
 
 def _with_alike(s: _Search, b: Blend, j: int) -> Blend:
@@ -758,6 +776,8 @@ def _shown(s: _Search, sc: _Scores, kept: list) -> tuple[list[Blend], list[Blend
     F.append(np.array([max(hazard_rank(c.hazard) for c in s.members(j)[0]) for j in js], float))
     F.append(s.cands.size[js].astype(float))
     front = pareto_front(np.column_stack(F))
+    shown = min(s.req.top, len(kept))
+    s.to_describe = shown * (2 if s.req.load is not None else 1) + int(np.count_nonzero(front[s.req.top:]))
     described, results = {}, []
     for rank, ((j, dose), on_front) in enumerate(zip(kept[:s.req.top], front[:s.req.top]), start=1):
         b = _with_alike(s, replace(_describe(s, sc, j, dose, rank), pareto=bool(on_front)), j)
@@ -801,7 +821,7 @@ def _cautions(req: BlendRequest) -> tuple[str, ...]:
 
 def blend(request: BlendRequest | None = None, *, catalog: Catalog | None = None,
           progress: Callable[[int, int], bool | None] | None = None, pool: Pool | None = None,
-          **fields: Any) -> BlendResult:
+          step_progress: Callable[[str, int, int], bool | None] | None = None, **fields: Any) -> BlendResult:
     """The best blends of 1 to ``max_components`` liquids for a target, under constraints.
 
     Parameters
@@ -817,6 +837,12 @@ def blend(request: BlendRequest | None = None, *, catalog: Catalog | None = None
     pool : Pool, optional
         the candidate pool of the request's filters (:func:`~solvsel.jobs.pool.build_pool`), built
         once for many targets (batch screening); by default built here
+    step_progress : callable, optional
+        ``step_progress(step, done, total)`` through every step of the search, for one bar over all of
+        them: ``"combinations"`` (the exact search, as ``progress``), ``"checks"`` (``done`` blends passed
+        the checks - one phase, limits, load - of the ``total`` wanted; candidates are checked best first
+        until that many pass or the candidates run out) and ``"describing"`` (``done`` of ``total`` blends
+        described, and checked for the load); returning False cancels at any step, as ``progress`` does
 
     Returns
     -------
@@ -831,13 +857,19 @@ def blend(request: BlendRequest | None = None, *, catalog: Catalog | None = None
     m = len(pool.candidates)
     counts = {"liquids": m, "excluded_liquids": len(pool.left_out), "combinations": 0, "bounds_not_met": 0,
               "same_as_smaller_blend": 0, "checked": 0, "two_phase": 0, "over_limit": 0, "alike": 0, "kept": 0}
-    s = _Search(cat, req, target, rejects, pool, counts)
+    s = _Search(cat, req, target, rejects, pool, counts, step_progress=step_progress)
     if m == 0:
         return s.finish(message="no liquid is left in the pool under these constraints (see excluded)")
     try:
-        _search(s, lo, hi, progress)
+        return _run(s, lo, hi, progress)
     except SearchCancelled as exc:
         return s.finish(message=f"cancelled: {exc}")
+
+
+def _run(s: _Search, lo: np.ndarray, hi: np.ndarray, progress) -> BlendResult:
+    """The search, the checks and the description of the blends shown (:class:`SearchCancelled` when stopped)."""
+    counts, m = s.counts, len(s.pool.candidates)
+    _search(s, lo, hi, _counting(progress, s))
     if not len(s.cands):
         return s.finish(message="no combination of the pool meets the fraction bounds")
     sc = _scores(s)
@@ -852,6 +884,20 @@ def blend(request: BlendRequest | None = None, *, catalog: Catalog | None = None
                     _how_sure(s, sc, kept, results), loads)
 
 
+def _counting(progress, s: _Search):
+    """The callback of the exact search: ``progress(done, total)`` and ``s.tell("combinations", done, total)``."""
+    if s.step_progress is None:
+        return progress
+
+    def call(done: int, total: int) -> bool:
+        if progress is not None and progress(done, total) is False:
+            return False
+        s.tell("combinations", done, total)
+        return True
+
+    return call
+
+
 def _with_load(s: _Search, results) -> tuple[list, list]:
     """The blends shown with their load checks, those that cannot carry the load marked in their notes."""
     if s.req.load is None:
@@ -862,6 +908,7 @@ def _with_load(s: _Search, results) -> tuple[list, list]:
         recs = [by_name[c.name] for c in b.components]
         info = load_info(s.cat, s.target, recs, [c.volume_fraction for c in b.components], s.req.load,
                          s.req.storage_C)
+        s.described_one()
         loads.append(info)
         out.append(replace(b, notes=b.notes + (info["mark"],)) if info and info["verdict"] == "no" else b)
     return out, loads
