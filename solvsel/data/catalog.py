@@ -84,6 +84,19 @@ _TYPES = ("text", "number", "integer", "cas", "choice", "list", "sources")
 TABLE_ALIASES = {"agents": "weighting_agents", "liquids": "solvents", "regs": "regulations", "pairs": "miscibility"}
 
 
+def cache_dir() -> Path | None:
+    """The folder where solvsel keeps what it can recompute (None: no disk cache).
+
+    ``SOLVSEL_CACHE_DIR`` if set (empty: no disk cache), else
+    ``$XDG_CACHE_HOME/solvsel``, else ``~/.cache/solvsel``.
+    """
+    env = os.environ.get("SOLVSEL_CACHE_DIR")
+    if env is not None:
+        return Path(env) if env.strip() else None
+    base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
+    return Path(base) / "solvsel"
+
+
 # ----------------------------------------------------------------------------- names
 
 

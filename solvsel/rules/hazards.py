@@ -41,9 +41,14 @@ References
 
 from __future__ import annotations
 
+import atexit
+import hashlib
+import json
 import math
+import os
 from dataclasses import asdict, dataclass
 from functools import lru_cache
+from pathlib import Path
 from typing import Any
 
 from ..errors import InputError
@@ -309,8 +314,77 @@ def health_hazard(cat, solvent) -> HealthHazard | None:
                         exposure_limits(cas) if cas else None, carcinogen_listings(cas) if cas else None)
 
 
-@lru_cache(maxsize=512)
-def _limits(cas: str) -> tuple:
+# The reference library's exposure limits and carcinogen listings, kept in the cache folder
+# (:func:`~solvsel.data.catalog.cache_dir`) beside the pair matrices: loading the library's safety
+# data costs more than a whole search.  One JSON file per version of the library and of this module:
+# {"limits": {cas: [[key, [value, unit], list], ...]}, "carcinogen": {cas: [[listing, status], ...]}}.
+_LIBRARY: dict[str, dict] = {}
+_LIBRARY_NEW: list[str] = []
+
+
+@lru_cache(maxsize=1)
+def _library_file() -> Path | None:
+    """The cache file of the library's safety values, or None (no cache folder, or no library)."""
+    from importlib.metadata import PackageNotFoundError, version
+
+    from ..data.catalog import cache_dir
+
+    folder = cache_dir()
+    if folder is None:
+        return None
+    try:
+        digest = hashlib.sha256(version("chemicals").encode())
+    except PackageNotFoundError:
+        return None
+    digest.update(Path(__file__).read_bytes())
+    return folder / f"safety_{digest.hexdigest()[:32]}.json"
+
+
+def _read_library_file(path: Path | None) -> dict[str, dict]:
+    """The values kept in ``path`` (what is absent, unreadable or malformed is read from the library again)."""
+    empty: dict[str, dict] = {"limits": {}, "carcinogen": {}}
+    try:
+        data = json.loads(path.read_text(encoding="utf-8")) if path is not None else empty
+        return {kind: {str(cas): tuple(tuple(tuple(v) if isinstance(v, list) else v for v in entry)
+                                       for entry in entries)
+                       for cas, entries in data[kind].items()} for kind in empty}
+    except (OSError, ValueError, TypeError, KeyError, AttributeError):
+        return empty
+
+
+def _save_library_values() -> None:
+    """Write the values read from the library in this process to the cache file (run at exit)."""
+    path = _library_file()
+    if not _LIBRARY_NEW or path is None:
+        return
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        merged = _read_library_file(path)
+        for kind, values in _LIBRARY.items():
+            merged[kind].update(values)
+        tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp.json")
+        tmp.write_text(json.dumps(merged), encoding="utf-8")
+        os.replace(tmp, path)
+        _LIBRARY_NEW.clear()
+    except OSError:  # a read-only or full cache folder only costs the time next run
+        return
+
+
+def _library_value(kind: str, cas: str, read) -> tuple:
+    """The library's ``kind`` of values for ``cas``: from the cache file, else ``read(cas)`` (kept
+    for the next run)."""
+    if not _LIBRARY:
+        _LIBRARY.update(_read_library_file(_library_file()))
+    values = _LIBRARY[kind]
+    if cas not in values:
+        values[cas] = read(cas)
+        if not _LIBRARY_NEW:
+            atexit.register(_save_library_values)
+        _LIBRARY_NEW.append(cas)
+    return values[cas]
+
+
+def _read_limits(cas: str) -> tuple:
     from chemicals import safety
 
     out = []
@@ -321,6 +395,10 @@ def _limits(cas: str) -> tuple:
         if value is not None:
             out.append((key, (float(value[0]), str(value[1])), found[0]))
     return tuple(out)
+
+
+def _limits(cas: str) -> tuple:
+    return _library_value("limits", cas, _read_limits)
 
 
 def exposure_limits(cas: str) -> dict | None:
@@ -339,13 +417,16 @@ def exposure_limits(cas: str) -> dict | None:
     return out
 
 
-@lru_cache(maxsize=512)
-def _carcinogen(cas: str) -> tuple:
+def _read_carcinogen(cas: str) -> tuple:
     from chemicals import safety
 
     if not safety.Carcinogen_methods(cas):
         return ()
     return tuple((k, str(v)) for k, v in safety.Carcinogen(cas).items() if str(v) != "Unlisted")
+
+
+def _carcinogen(cas: str) -> tuple:
+    return _library_value("carcinogen", cas, _read_carcinogen)
 
 
 def carcinogen_listings(cas: str) -> dict | None:
