@@ -129,6 +129,7 @@ class Liquid:
     mw_g_mol: float
     origin: str
     sites: tuple  # (H-bond donors, acceptors), RDKit's Lipinski counts
+    smiles: str = ""  # as the data set writes it
 
 
 @lru_cache(maxsize=1)
@@ -156,7 +157,7 @@ def liquids() -> dict:
         except UnknownNameError:
             continue
         out[key] = Liquid(key, s.name, cas, (float(s.dD), float(s.dP), float(s.dH)), float(s.vm_cm3_mol),
-                          float(s.mw_g_mol or _mol_info(smiles)[1]), s.origin, hbond_sites(smiles))
+                          float(s.mw_g_mol or _mol_info(smiles)[1]), s.origin, hbond_sites(smiles), smiles)
     return out
 
 

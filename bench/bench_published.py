@@ -16,9 +16,14 @@ Figures:
    solutes' centred log10 x, over the solutes of the split, liquids measured with at least 3 other
    solutes; -Ra on the same liquids beside it); the solubility estimate of
    ``solvsel.science.solubility`` (ideal term x Flory-Huggins + Hansen activity), with the
-   hydrogen-bond term lumped (the default) and split into donor and acceptor parts;
-2. the solubility estimate's median RMS error in log10 x, over solutes with a melting point (with
-   measured enthalpy of fusion, with Walden's rule, all);
+   hydrogen-bond term lumped (the default) and split into donor and acceptor parts; the solubility
+   by UNIFAC (``log10_solubility_unifac``, modified UNIFAC (Dortmund), solved at saturation with the
+   same ideal term; -log10 gamma_inf without a melting point), with the Hansen estimate where UNIFAC
+   has no groups or interaction parameters (and with original UNIFAC tried before it), and UNIFAC
+   alone on the solutes with at least ``MIN_COVERED`` liquids it covers, beside the Hansen estimate
+   on those same liquids (``--unifac`` prints the per-solute table);
+2. the solubility estimates' median RMS error in log10 x, over solutes with a melting point (with
+   measured enthalpy of fusion, with Walden's rule, all), and what UNIFAC covers;
 3. sphere fits from the measured solubilities, good = the solute's top third of liquids by mole
    fraction: leave-one-out accuracy of the good/bad fit (the ``fit`` job on good/bad results), of the
    same with each result weighted by its distance from the cut (the ``fit`` job on numeric scores,
@@ -49,10 +54,14 @@ sys.path.insert(0, str(HERE))
 
 import _published_data as data  # noqa: E402
 from solvsel.science.hansen import ra  # noqa: E402
-from solvsel.science.solubility import Fusion, ideal_log10, log10_solubility  # noqa: E402
+from solvsel.errors import SolvselError  # noqa: E402
+from solvsel.science.solubility import Fusion, ideal_log10, log10_solubility, log10_solubility_unifac  # noqa: E402
+from solvsel.science.unifac import groups as unifac_groups  # noqa: E402
 
 #: Liquids counted in the solute-blind ranking: measured with at least this many other solutes.
 BLIND_MIN_SOLUTES = 3
+#: A solute counts in the figures of UNIFAC alone when UNIFAC covers at least this many of its liquids.
+MIN_COVERED = 5
 #: Figures of the issue that set the goals (current code, both splits together), for comparison.
 ISSUE = {"ra": 0.44, "hildebrand": 0.13, "blind": 0.61, "ra_same": 0.39, "rms_measured": 0.27, "rms_walden": 0.57,
          "loo_binary": 0.70, "majority": 0.65}
@@ -97,6 +106,46 @@ def estimate(s, L, V, sites, hbond: str = "lumped", amount: bool = True) -> np.n
     return log10_solubility(s.hsp, s.vm_cm3_mol, L, V, 25.0, lid, **terms)
 
 
+#: The UNIFAC estimates measured: name -> the parameter sets tried in turn for each solute-liquid pair.
+UNIFAC_CHAINS = {"unifac": ("dortmund",), "unifac_original": ("dortmund", "original")}
+
+
+def _unifac_groups(smiles: str, model: str):
+    try:
+        return unifac_groups(smiles, model)
+    except SolvselError:  # no group for some atom: the pair falls back
+        return None
+
+
+def unifac_estimate(s, g, chain=("dortmund",), amount: bool = True) -> tuple[np.ndarray, np.ndarray]:
+    """log10 x by UNIFAC in each liquid of ``g`` (or -log10 gamma_inf without a melting point or with
+    ``amount`` False), each pair by the first model of ``chain`` that has groups for both and every
+    interaction parameter; NaN where none has.  Returns (values, model used per liquid or "")."""
+    liq = data.liquids()
+    keys = list(g["solvent"])
+    out = np.full(len(keys), np.nan)
+    basis = np.array([""] * len(keys), dtype=object)
+    lid = None
+    if amount and s.mp_C is not None:
+        lid = ideal_log10(Fusion(s.mp_C, s.dHfus_kJ_mol, "", s.dHfus_source), 25.0)
+    for model in chain:
+        sg = _unifac_groups(s.smiles, model)
+        todo = [i for i, k in enumerate(keys) if basis[i] == "" and _unifac_groups(liq[k].smiles, model)]
+        if sg is None or not todo:
+            continue
+        v = log10_solubility_unifac(sg, [_unifac_groups(liq[keys[i]].smiles, model) for i in todo], 25.0, lid, model)
+        for i, vi in zip(todo, v):
+            if np.isfinite(vi):
+                out[i], basis[i] = vi, model
+    return out, basis
+
+
+def _with_hansen(s, g, L, V, sites, chain, amount: bool = True) -> np.ndarray:
+    """The UNIFAC estimate, the Hansen estimate where UNIFAC has no groups or parameters."""
+    u, _ = unifac_estimate(s, g, chain, amount)
+    return np.where(np.isfinite(u), u, estimate(s, L, V, sites, amount=amount))
+
+
 def _rho(y, p) -> float:
     ok = np.isfinite(p)
     return data.spearman(y[ok], p[ok])
@@ -105,7 +154,8 @@ def _rho(y, p) -> float:
 @lru_cache(maxsize=None)
 def ranking(split: str | None) -> dict:
     """Per-solute Spearman of each predictor: ``{predictor: {solute name: rho}}``."""
-    out = {k: {} for k in ("ra", "hildebrand", "blind", "ra_same", "estimate", "estimate_hb_split")}
+    out = {k: {} for k in ("ra", "hildebrand", "blind", "ra_same", "estimate", "estimate_hb_split", *UNIFAC_CHAINS,
+                           "unifac_alone", "estimate_same_as_unifac")}
     for s, g, L, V, sites in _groups(split):
         y = g["log10_x"].to_numpy()
         h = np.array(s.hsp)
@@ -116,21 +166,63 @@ def ranking(split: str | None) -> dict:
         out["ra_same"][s.name] = _rho(y, np.where(np.isfinite(b), -ra(L, h), np.nan))
         out["estimate"][s.name] = _rho(y, estimate(s, L, V, sites, amount=False))
         out["estimate_hb_split"][s.name] = _rho(y, estimate(s, L, V, sites, "split", amount=False))
+        for name, chain in UNIFAC_CHAINS.items():
+            out[name][s.name] = _rho(y, _with_hansen(s, g, L, V, sites, chain))
+        u, _ = unifac_estimate(s, g)
+        if np.isfinite(u).sum() >= MIN_COVERED:
+            out["unifac_alone"][s.name] = _rho(y, u)
+            out["estimate_same_as_unifac"][s.name] = _rho(y, np.where(np.isfinite(u), estimate(s, L, V, sites), np.nan))
     return out
+
+
+def _rms(p, y) -> float:
+    ok = np.isfinite(p)
+    return float(np.sqrt(np.mean((p[ok] - y[ok]) ** 2)))
 
 
 @lru_cache(maxsize=None)
 def errors(split: str | None) -> dict:
-    """RMS error in log10 x of the estimate per solute with a melting point: ``{"measured"|"walden": {name: rms}}``."""
-    out = {"measured": {}, "walden": {}, "hb_split": {}}
+    """RMS error in log10 x per solute with a melting point: ``{kind: {name: rms}}``.  Kinds: the Hansen
+    estimate with measured enthalpy of fusion ("measured") or Walden's rule ("walden"), the same with dH
+    split ("hb_split"); UNIFAC (Dortmund) with the Hansen estimate where it has no groups or parameters
+    ("unifac_measured", "unifac_walden"); UNIFAC alone on the liquids it covers ("unifac_alone", solutes
+    with at least MIN_COVERED of them) and the Hansen estimate on the same liquids ("estimate_same_as_unifac")."""
+    out = {k: {} for k in ("measured", "walden", "hb_split", "unifac_measured", "unifac_walden", "unifac_alone",
+                           "estimate_same_as_unifac")}
     for s, g, L, V, sites in _groups(split):
         if s.mp_C is None:
             continue
         y = g["log10_x"].to_numpy()
-        rms = float(np.sqrt(np.mean((estimate(s, L, V, sites) - y) ** 2)))
-        out["measured" if s.dHfus_source == "measured" else "walden"][s.name] = rms
-        out["hb_split"][s.name] = float(np.sqrt(np.mean((estimate(s, L, V, sites, "split") - y) ** 2)))
+        fus = "measured" if s.dHfus_source == "measured" else "walden"
+        h = estimate(s, L, V, sites)
+        out[fus][s.name] = _rms(h, y)
+        out["hb_split"][s.name] = _rms(estimate(s, L, V, sites, "split"), y)
+        u, _ = unifac_estimate(s, g)
+        out["unifac_" + fus][s.name] = _rms(np.where(np.isfinite(u), u, h), y)
+        if np.isfinite(u).sum() >= MIN_COVERED:
+            out["unifac_alone"][s.name] = _rms(u, y)
+            out["estimate_same_as_unifac"][s.name] = _rms(np.where(np.isfinite(u), h, np.nan), y)
     return out
+
+
+@lru_cache(maxsize=None)
+def unifac_coverage(split: str | None, model: str = "dortmund") -> dict:
+    """How much of the data UNIFAC covers: solutes with groups, liquids with groups, solute-liquid pairs
+    with groups and every interaction parameter; and why the rest are not covered."""
+    liq = data.liquids()
+    m = data.table(split)
+    sol = data.solutes()
+    keys = sorted(set(m["solute"]))
+    solutes_ok = [k for k in keys if _unifac_groups(sol[k].smiles, model) is not None]
+    liquids = sorted(set(m["solvent"]))
+    liquids_ok = [k for k in liquids if _unifac_groups(liq[k].smiles, model) is not None]
+    pairs = 0
+    for s, g, *_ in _groups(split):
+        _, basis = unifac_estimate(s, g, (model,), amount=False)
+        pairs += int((basis != "").sum())
+    return {"solutes": f"{len(solutes_ok)} of {len(keys)}", "liquids": f"{len(liquids_ok)} of {len(liquids)}",
+            "pairs": f"{pairs} of {len(m)}", "no groups": sorted(sol[k].name for k in keys if k not in solutes_ok),
+            "liquids without groups": sorted(liq[k].name for k in liquids if k not in liquids_ok)}
 
 
 def median(d: dict) -> float:
@@ -219,6 +311,43 @@ def _line(what: str, fig: dict) -> None:
     print(f"  {what:<74s} " + "  ".join(f"{k}: {v}" for k, v in fig.items()))
 
 
+def _unifac_lines(r: dict, e: dict, split: str | None, fmt) -> None:
+    _line("UNIFAC (Dortmund) solubility, Hansen estimate where no groups/parameters", {"": fmt(r["unifac"])})
+    _line("  the same, original UNIFAC where Dortmund has no groups/parameters", {"": fmt(r["unifac_original"])})
+    _line(f"  UNIFAC (Dortmund) alone, solutes with >= {MIN_COVERED} liquids covered, those liquids",
+          {"": fmt(r["unifac_alone"]), "Hansen estimate on the same": fmt(r["estimate_same_as_unifac"])})
+    _line("  median RMS log10 x, measured enthalpy of fusion / Walden's rule",
+          {"": f"{fmt(e['unifac_measured'])} / {fmt(e['unifac_walden'])}"})
+    _line("  median RMS log10 x, UNIFAC alone on the liquids it covers",
+          {"": fmt(e["unifac_alone"]), "Hansen estimate on the same": fmt(e["estimate_same_as_unifac"])})
+    c = unifac_coverage(split)
+    _line("  coverage (Dortmund groups and parameters)",
+          {k: c[k] for k in ("solutes", "liquids", "pairs")})
+    _line("  no groups for", {"": "; ".join(c["no groups"])})
+    _line("  liquids without groups", {"": "; ".join(c["liquids without groups"])})
+
+
+def unifac_table(split: str) -> None:
+    """One line per solute: groups or why none, liquids covered, Spearman and RMS of UNIFAC and Hansen."""
+    print(f"\n[{split}] per solute: liquids covered by UNIFAC (Dortmund); Spearman UNIFAC alone / Hansen estimate "
+          "on the same liquids; RMS the same; fusion data; measured spread (max - min log10 x); donors, acceptors")
+    for s, g, L, V, sites in _groups(split):
+        y = g["log10_x"].to_numpy()
+        u, _ = unifac_estimate(s, g)
+        ok = np.isfinite(u)
+        h = estimate(s, L, V, sites)
+        why = ""
+        if _unifac_groups(s.smiles, "dortmund") is None:
+            why = "no groups"
+        elif ok.sum() < MIN_COVERED:
+            why = "missing parameters"
+        rho = f"{_rho(y, u):5.2f} / {_rho(y, np.where(ok, h, np.nan)):5.2f}" if ok.sum() >= 3 else "   -  /   -  "
+        rms = (f"{_rms(u, y):4.2f} / {_rms(np.where(ok, h, np.nan), y):4.2f}"
+               if ok.sum() and s.mp_C is not None else "  -  /   - ")
+        print(f"  {s.name[:34]:34s} {ok.sum():3d}/{len(y):<3d} {rho}  {rms}  {s.dHfus_source or 'no mp':8s} "
+              f"{np.ptp(y):4.2f}  {s.sites[0]} {s.sites[1]}  {why}")
+
+
 def report(split: str | None, quick: bool) -> None:
     label = split or "dev + heldout"
     r = ranking(split)
@@ -236,6 +365,7 @@ def report(split: str | None, quick: bool) -> None:
     _line("  Walden's rule for the enthalpy of fusion", {"": fmt(e["walden"])})
     _line("  every solute with a melting point", {"": fmt(both)})
     _line("  every solute with a melting point, dH split", {"": fmt(e["hb_split"])})
+    _unifac_lines(r, e, split, fmt)
     limit = 8 if quick else None
     b = top_third_baselines(split)
     _line("top third called without a fit: solute-blind ranking / -Ra to the estimate",
@@ -265,9 +395,14 @@ def miscibility() -> None:
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     ap.add_argument("--quick", action="store_true", help="sphere figures on the first 8 solutes of each split")
+    ap.add_argument("--unifac", action="store_true", help="only the per-solute table of the UNIFAC estimate")
     args = ap.parse_args(argv)
     if not data.available():
         print(f"published data not found in {data.EXTERNAL}: nothing to measure")
+        return 0
+    if args.unifac:
+        for split in ("dev", "heldout"):
+            unifac_table(split)
         return 0
     print("Published solubilities:", data.CITATION)
     print("issue figures (old code, both splits):", ISSUE)

@@ -38,10 +38,22 @@ RANKING = {
     "ra_same": (0.393, 0.683),
     "estimate": (0.438, 0.567),
     "estimate_hb_split": (0.226, 0.417),
+    # UNIFAC (Dortmund) solubility, the Hansen estimate where it has no groups or parameters; the same with
+    # original UNIFAC before the Hansen estimate; UNIFAC alone on the solutes with at least 5 liquids it
+    # covers (12 dev, 3 heldout), and the Hansen estimate on those same liquids
+    "unifac": (0.424, 0.567),
+    "unifac_original": (0.411, 0.622),
+    "unifac_alone": (0.473, 0.450),
+    "estimate_same_as_unifac": (0.417, 0.382),
 }
 #: Median RMS error in log10 x of the solubility estimate: (dev, heldout) and number of solutes.
 ERRORS = {"measured": ((0.248, 4), (0.350, 2)), "walden": ((0.660, 22), (0.574, 12)),
-          "hb_split": ((0.581, 26), (0.617, 14))}
+          "hb_split": ((0.581, 26), (0.617, 14)),
+          "unifac_measured": ((0.282, 4), (0.350, 2)), "unifac_walden": ((0.660, 22), (0.574, 12)),
+          "unifac_alone": ((0.374, 11), (0.860, 3)), "estimate_same_as_unifac": ((0.394, 11), (0.706, 3))}
+#: What modified UNIFAC (Dortmund) covers: solutes with groups, liquids with groups, pairs with groups and
+#: every interaction parameter (of the rows of each split).
+COVERAGE = {"dev": ("19 of 31", "66 of 67", "178 of 534"), "heldout": ("6 of 15", "67 of 67", "67 of 346")}
 #: Sphere fits on the first 3 dev solutes (41 liquids): leave-one-out accuracy at the top-third split.
 SPHERES = {"binary": 0.805, "graded_prior": 0.732}
 MAJORITY_FIRST3 = 0.659
@@ -89,6 +101,21 @@ def test_estimate_ranks_better_than_ra_but_not_than_the_solute_blind_baseline(be
     r = bench.ranking("dev")
     assert bench.median(r["estimate"]) > bench.median(r["ra"])
     assert bench.median(r["estimate"]) < bench.median(r["blind"])
+
+
+@pytest.mark.parametrize("split", ["dev", "heldout"])
+def test_unifac_coverage(bench, split):
+    c = bench.unifac_coverage(split)
+    assert (c["solutes"], c["liquids"], c["pairs"]) == COVERAGE[split]
+
+
+def test_unifac_does_not_reach_the_goal_on_dev(bench):
+    # the goal (median Spearman >= 0.70 on dev, above the solute-blind ranking) is not met by UNIFAC: with
+    # the Hansen estimate where it has no groups it ranks like the Hansen estimate alone; on the liquids
+    # it covers it ranks a little better than the Hansen estimate on the same liquids
+    r = bench.ranking("dev")
+    assert bench.median(r["unifac"]) < 0.70 and bench.median(r["unifac"]) < bench.median(r["blind"])
+    assert bench.median(r["unifac_alone"]) > bench.median(r["estimate_same_as_unifac"])
 
 
 @pytest.mark.parametrize("kind", sorted(SPHERES))

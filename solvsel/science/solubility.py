@@ -26,6 +26,13 @@ is 0.44 on ``dev`` (-Ra: 0.39; a solute-blind ranking from the other solutes' da
 RMS error is 0.25 in log10 x with a measured enthalpy of fusion, 0.66 with Walden's rule.  The split
 hydrogen-bond term ranks worse (0.23) and is not the default.
 
+:func:`log10_solubility_unifac` solves the same equation with the activity coefficient of modified UNIFAC
+(Dortmund; :mod:`solvsel.science.unifac`).  On the same data it covers 19 of the 31 ``dev`` solutes with
+groups and 178 of their 534 solute-liquid pairs with every interaction parameter; on the 12 solutes with at
+least 5 covered liquids its median Spearman is 0.47 (the Hansen estimate on the same liquids 0.42) and its
+median RMS error 0.37 in log10 x (Hansen 0.39); with the Hansen estimate for the pairs it does not cover it
+ranks at 0.42.  The goal of 0.70 is not met by either.
+
 References
 ----------
 .. [1] Hansen, C. M. *Hansen Solubility Parameters: A User's Handbook*, 2nd ed., CRC Press, 2007, ch. 2.
@@ -47,6 +54,7 @@ import numpy as np
 
 from ..errors import InputError, OutOfRangeError
 from .hansen import R_J_MOL_K
+from .unifac import cas_of_smiles, model_label, solute_in_liquids
 
 __all__ = ["WALDEN_J_MOL_K", "Fusion", "fusion_data", "walden_dHfus", "ideal_log10", "hbond_difference", "ln_gamma",
            "log10_solubility"]
@@ -107,20 +115,6 @@ def _library_fusion(cas: str) -> tuple[float | None, float | None, str]:
     return (None if tm is None else tm - 273.15), (None if hf is None else hf / 1000.0), tm_method or ""
 
 
-@lru_cache(maxsize=512)
-def _cas_of_smiles(smiles: str) -> str | None:
-    from chemicals.identifiers import search_chemical
-
-    from .structure import _rd, parse_smiles
-
-    mol, _ = parse_smiles(smiles)
-    key = _rd().Chem.MolToInchiKey(mol)
-    try:
-        return search_chemical("InChIKey=" + key).CASs
-    except ValueError:  # not in the library
-        return None
-
-
 def fusion_data(smiles: str | None = None, *, cas: str | None = None, mp_C: float | None = None,
                 dHfus_kJ_mol: float | None = None) -> Fusion:
     """Fusion data of a solute: given values (a table row) first, then ``chemicals``, then Walden's rule.
@@ -145,7 +139,7 @@ def fusion_data(smiles: str | None = None, *, cas: str | None = None, mp_C: floa
     mp_source = "table" if mp_C is not None else ""
     h_source = "table" if dHfus_kJ_mol is not None else ""
     if mp_C is None or dHfus_kJ_mol is None:
-        cas = cas or (_cas_of_smiles(smiles) if smiles else None)
+        cas = cas or (cas_of_smiles(smiles) if smiles else None)
         if cas:
             tm, hf, how = _library_fusion(cas)
             if mp_C is None and tm is not None:
@@ -275,8 +269,14 @@ def log10_solubility(solute_hsp, solute_vm: float, liquids_hsp, liquids_vm, temp
     def f(lnx):
         return lnx + ln_gamma(np.exp(lnx), solute_hsp, solute_vm, L, liquids_vm, temp_C, **terms) - lnxid
 
+    return _saturation(f, len(L)) / math.log(10.0)
+
+
+def _saturation(f, n: int) -> np.ndarray:
+    """The lowest root in ln x of ``f(ln x) = 0`` for n liquids at once: a scan of ln x from -60 to 0, then
+    bisection (the first saturation met when adding solid); 0 where ``f`` stays negative."""
     grid = np.linspace(-60.0, 0.0, 241)
-    vals = np.array([f(np.full(len(L), g)) for g in grid])
+    vals = np.array([f(np.full(n, g)) for g in grid])
     j = np.maximum(np.argmax(vals >= 0.0, axis=0), 1)
     j = np.where((vals >= 0.0).any(axis=0), j, len(grid) - 1)
     lo, hi = grid[j - 1], grid[j]
@@ -284,4 +284,47 @@ def log10_solubility(solute_hsp, solute_vm: float, liquids_hsp, liquids_vm, temp
         mid = 0.5 * (lo + hi)
         up = f(mid) >= 0.0
         lo, hi = np.where(up, lo, mid), np.where(up, mid, hi)
-    return 0.5 * (lo + hi) / math.log(10.0)
+    return 0.5 * (lo + hi)
+
+
+def log10_solubility_unifac(solute_groups, liquids_groups, temp_C: float = 25.0, log10_ideal: float | None = None,
+                            model: str = "dortmund") -> np.ndarray:
+    r"""log10 of the estimated saturation mole fraction of a solute in each liquid, with UNIFAC.
+
+    Solves :math:`\ln x_2 + \ln\gamma_2(x_2) = \ln x^\mathrm{id}` as :func:`log10_solubility` does, with
+    the activity coefficient of :mod:`solvsel.science.unifac` (``model``: "dortmund", "original" or
+    "lle").  Without ``log10_ideal`` the ranking value :math:`-\log_{10}\gamma_2^\infty` (same order, no
+    amount).  NaN for a liquid whose groups lack an interaction parameter with the solute's.
+
+    Parameters
+    ----------
+    solute_groups : dict
+        the solute's subgroups (:func:`solvsel.science.unifac.groups`)
+    liquids_groups : sequence of dict
+        each liquid's subgroups
+    temp_C : float
+        temperature [C]
+    log10_ideal : float, optional
+        log10 of the ideal solubility (:func:`ideal_log10`)
+    model : str
+        the UNIFAC parameter set
+
+    Examples
+    --------
+    Naphthalene in toluene and in methanol at 25 C (80.2 C, 19.01 kJ/mol, ``chemicals``): toluene
+    dissolves far more.
+
+    >>> from solvsel.science.unifac import groups
+    >>> lid = ideal_log10(Fusion(80.2, 19.01, "chemicals", "measured"), 25.0)
+    >>> x = 10 ** log10_solubility_unifac(groups("c1ccc2ccccc2c1"), [groups("Cc1ccccc1"), groups("CO")], 25.0, lid)
+    >>> [round(float(v), 3) for v in x]
+    [0.296, 0.026]
+    """
+    ln_g, usable = solute_in_liquids(solute_groups, liquids_groups, temp_C, model)
+    n = len(liquids_groups)
+    if log10_ideal is None:
+        out = -ln_g(0.0) / math.log(10.0)
+    else:
+        lnxid = float(log10_ideal) * math.log(10.0)
+        out = _saturation(lambda lnx: lnx + ln_g(np.exp(lnx)) - lnxid, n) / math.log(10.0)
+    return np.where(usable, out, np.nan)
