@@ -13,16 +13,19 @@ Liquids, by CAS (:data:`CHART_CAS`): the catalog's record, else the reference li
 by COSTALD), as the tool resolves a CAS number; "Xylene" (the isomer mixture) is taken as
 p-xylene (the isomers share their HSP in the data sets).
 
-Two answers are scored: the prediction alone (:func:`solvsel.science.miscibility.predict_pair`,
-Flory-Huggins from HSP, never looking at the measured table) and the tool's final verdict
-(:func:`solvsel.science.miscibility.pair`, measured pairs first).  Every setting of the model was
-chosen without the chart: the decisive-"no" level on tables/miscibility.csv
-(``bench/bench_miscibility.py``); the chart's cells are not in the tables.
+Three answers are scored: the prediction alone (:func:`solvsel.science.miscibility.predict_pair`,
+never looking at the measured table: UNIFAC from the two structures where a parameter set covers
+both, UNIFAC-LLE of Magnussen et al. first, else Flory-Huggins from HSP), the tool's final verdict
+(:func:`solvsel.science.miscibility.pair`, measured pairs first), and, as a baseline, Flory-Huggins
+from HSP alone (``predict_pair(..., models=())``, the prediction before UNIFAC).  Every setting was
+chosen without the chart, on tables/miscibility.csv (``bench/bench_miscibility.py``): the order of
+the UNIFAC parameter sets (``choose_model_order``) and the decisive-"no" level
+(``choose_immiscible_level``); the chart's cells are not in the tables.
 
-For the record, :func:`threshold_scan` shows what a looser "miscible" rule (chi up to r times
-the critical chi) would give, with Hansen's dH and with dH split into donor and acceptor parts,
-r chosen on the measured table beside the chart's own figures: no setting of either rule reaches
-both goals, not even one chosen on the chart itself.
+For the record, :func:`threshold_scan` shows what a looser "miscible" rule for Flory-Huggins (chi up
+to r times the critical chi) would give, with Hansen's dH and with dH split into donor and acceptor
+parts, r chosen on the measured table beside the chart's own figures: no setting of either rule
+reaches both goals, not even one chosen on the chart itself.
 
 Usage: python bench/published_miscibility.py
 """
@@ -96,6 +99,8 @@ def _scores(truth: list[bool], said: list[str]) -> dict:
 
 
 def _verdicts(folder: Path | None = None):
+    """The catalog and ``(liquid a, liquid b, miscible, prediction alone, final verdict, Flory-Huggins
+    from HSP alone)`` for every pair of the chart."""
     cat = load_catalog()
     pairs = chart_pairs(folder)
     recs = {n: cat.solvent(CHART_CAS[n]) for n in {p for a, b, _ in pairs for p in (a, b)}}
@@ -103,7 +108,7 @@ def _verdicts(folder: Path | None = None):
     for a, b, miscible in pairs:
         pred = M.predict_pair(recs[a], recs[b])
         final = M.pair(cat, recs[a], recs[b])
-        rows.append((a, b, miscible, pred, final))
+        rows.append((a, b, miscible, pred, final, M.predict_pair(recs[a], recs[b], models=())))
     return cat, rows
 
 
@@ -114,19 +119,26 @@ def miscibility_figures(folder: Path | None = None) -> dict:
     -------
     dict
         ``pairs``, ``immiscible``, ``always_miscible`` (accuracy of answering "yes" to all),
-        ``level_wt`` (the decisive-"no" level in use), and ``prediction`` / ``final``, each with
-        ``accuracy``, ``immiscible_found`` (share of immiscible pairs answered "partial" or "no"),
-        ``immiscible_answered_no``, ``miscible_answered_no`` (count) and ``answered_no`` (count)
+        ``level_wt`` (the decisive-"no" level in use), ``models`` (pairs the prediction answered
+        by each model), and ``prediction`` / ``final`` / ``hansen`` (Flory-Huggins from HSP
+        alone), each with ``accuracy``, ``immiscible_found`` (share of immiscible pairs answered
+        "partial" or "no"), ``immiscible_answered_no``, ``miscible_answered_no`` (count) and
+        ``answered_no`` (count)
     """
     _, rows = _verdicts(folder)
     truth = [r[2] for r in rows]
+    models: dict[str, int] = {}
+    for r in rows:
+        models[r[3].model] = models.get(r[3].model, 0) + 1
     return {
         "pairs": len(rows),
         "immiscible": truth.count(False),
         "always_miscible": truth.count(True) / len(truth),
         "level_wt": M.IMMISCIBLE_BELOW_WT,
+        "models": models,
         "prediction": _scores(truth, [r[3].one_phase for r in rows]),
         "final": _scores(truth, [r[4].one_phase for r in rows]),
+        "hansen": _scores(truth, [r[5].one_phase for r in rows]),
     }
 
 
@@ -180,14 +192,14 @@ def threshold_scan(folder: Path | None = None) -> dict:
     cat, rows = _verdicts(folder)
     chart = {"lumped": ([], []), "split": ([], [])}
     table = {"lumped": ([], []), "split": ([], [])}
-    for a, b, miscible, pred, _ in rows:
+    for a, b, miscible, _, _, pred in rows:
         ra, rb = cat.solvent(CHART_CAS[a]), cat.solvent(CHART_CAS[b])
         for family, x in (("lumped", pred.chi / pred.chi_critical), ("split", _split_ratio(ra, rb))):
             chart[family][0].append(miscible)
             chart[family][1].append(x)
     for row in cat.table("miscibility").to_dict("records"):
         a, b = cat.solvent(row["liquid_a"]), cat.solvent(row["liquid_b"])
-        p = M.predict_pair(a, b, float(row["temp_C"]))
+        p = M.predict_pair(a, b, float(row["temp_C"]), models=())
         for family, x in (("lumped", p.chi / p.chi_critical), ("split", _split_ratio(a, b, float(row["temp_C"])))):
             if x is not None:
                 table[family][0].append(row["one_phase"] == "full")
@@ -217,8 +229,11 @@ def main() -> None:
     f = miscibility_figures()
     print(f"Miscibility against the published chart (KG4DT copy): {f['pairs']} pairs, {f['immiscible']} immiscible, "
           f"doubtful cells out; 'partial' scored as not miscible; decisive 'no' below {f['level_wt']:g} wt %")
-    _print_block("prediction alone (Flory-Huggins from HSP, no measured table)", f["prediction"], f["always_miscible"])
+    by = ", ".join(f"{n} {k}" for k, n in sorted(f["models"].items(), key=lambda kv: -kv[1]))
+    _print_block(f"prediction alone (no measured table; pairs by model: {by})", f["prediction"], f["always_miscible"])
     _print_block("final verdict (measured table first)", f["final"], f["always_miscible"])
+    _print_block("baseline: Flory-Huggins from HSP alone (the prediction before UNIFAC)", f["hansen"],
+                 f["always_miscible"])
     scan = threshold_scan()
     names = {"lumped": "Hansen's dH", "split": "dH split into donor and acceptor parts (science.solubility)"}
     for family, res in scan.items():

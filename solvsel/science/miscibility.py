@@ -3,13 +3,19 @@
 Measured binary pairs live in ``tables/miscibility.csv`` (each sourced, with
 its temperature; a pair may have rows at several temperatures, see
 :func:`measured_pair`): miscible in all proportions, partially miscible with
-the mutual solubilities in wt %, or practically immiscible.  For a pair not in the table
-the Flory-Huggins model with an interaction parameter from the Hansen
-parameters gives a prediction: the critical chi for the two molar volumes
-says whether the pair splits at all, and the binodal (common tangent) gives
-the mutual solubilities.  The answer always says which basis it used.  Water
-and other strongly hydrogen-bonding liquids are predicted poorly by this model
-(it knows no specific association), which is why a measured pair always wins.
+the mutual solubilities in wt %, or practically immiscible.  For a pair not in
+the table, a prediction: where both liquids are single compounds whose
+structures a UNIFAC parameter set covers, UNIFAC [3]_ [4]_ [5]_ from the
+structures (:mod:`solvsel.science.unifac`; the liquid-liquid parameters of
+Magnussen et al. first): the pair splits where the Gibbs energy of mixing has
+two inflection points, and the two phases of equal activities give the mutual
+solubilities.  Otherwise (vegetable oils and other mixtures, structures no set
+covers) the Flory-Huggins model with an interaction parameter from the Hansen
+parameters: the critical chi for the two molar volumes says whether the pair
+splits at all, and the binodal (common tangent) gives the mutual solubilities;
+it knows no specific association, so water and other strongly hydrogen-bonding
+liquids are predicted poorly by it.  The answer always says its basis
+(measured or predicted) and the model, and a measured pair always wins.
 
 On top of the pairs: whether a blend is one phase at given fractions, a fast
 array screen of many candidate blends for the optimiser, and a graph of the
@@ -23,15 +29,25 @@ References
    CRC Press, 2007, ch. 2.
 .. [2] Flory, P. J. *Principles of Polymer Chemistry*; Cornell University
    Press, 1953, ch. 12-13.
+.. [3] Magnussen, T.; Rasmussen, P.; Fredenslund, A. UNIFAC parameter table for
+   prediction of liquid-liquid equilibria. *Ind. Eng. Chem. Process Des. Dev.*
+   20 (1981) 331-339.
+.. [4] Fredenslund, A.; Jones, R. L.; Prausnitz, J. M. *AIChE J.* 21 (1975)
+   1086-1099 (UNIFAC).
+.. [5] Gmehling, J.; Li, J.; Schiller, M. *Ind. Eng. Chem. Res.* 32 (1993)
+   178-193 (modified UNIFAC, Dortmund).
+.. [6] Sorensen, J. M.; Arlt, W. *Liquid-Liquid Equilibrium Data Collection*,
+   DECHEMA Chemistry Data Series V/1, 1979 (equal activities in both phases).
 """
 
 from __future__ import annotations
 
 import hashlib
+import json
 import math
 import os
 import zipfile
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 from itertools import combinations
 from pathlib import Path
@@ -76,14 +92,14 @@ MEASURED_WINDOW_C = 10.0
 
 #: A predicted pair whose two predicted mutual solubilities are both below this
 #: [wt %] is called immiscible ("no", decisive) rather than partially miscible.
-#: The level applies to the model's solubilities, which run high for a small
-#: molecule in a large one (water in n-hexane: predicted 1.7 wt %, measured
-#: about 0.01): it was chosen on tables/miscibility.csv alone, as the level of
-#: 0.5, 1, 1.5, ... 5 wt % whose "no" best matches the pairs measured "none"
-#: among those measured "none" or "partial" (89 % of 61), with no pair measured
-#: miscible answered "no" (``choose_immiscible_level`` in bench/bench_miscibility.py;
-#: 0.5 wt %, the level of measured solubilities, matched 54 %).
-IMMISCIBLE_BELOW_WT = 3.5
+#: Chosen on tables/miscibility.csv alone, as the level of 0.5, 1, 1.5, ... 5 wt %
+#: whose "no" best matches the pairs measured "none" among those measured "none"
+#: or "partial", with no pair measured miscible answered "no"
+#: (``choose_immiscible_level`` in bench/bench_miscibility.py, on the prediction of
+#: :func:`predict_pair`: UNIFAC where the structures allow, else Flory-Huggins from
+#: HSP, whose solubilities run high for a small molecule in a large one; 3.5 wt %
+#: when Flory-Huggins answered every pair).
+IMMISCIBLE_BELOW_WT = 2.5
 
 
 # ----------------------------------------------------------------------------- one pair
@@ -101,7 +117,8 @@ class PairVerdict:
         "yes" (miscible in all proportions), "partial" (one phase only inside
         ``window``) or "no" (practically immiscible)
     basis : str
-        "measured" (a row of tables/miscibility.csv) or "predicted" (Flory-Huggins from HSP)
+        "measured" (a row of tables/miscibility.csv) or "predicted" (by UNIFAC or by
+        Flory-Huggins from HSP: see ``model``)
     window : dict or None
         one-phase compositions of a partial (or predicted immiscible) pair:
         ``b_in_a_max`` and ``a_in_b_max`` as mass fractions (0..1; None where
@@ -118,6 +135,11 @@ class PairVerdict:
         anything the user should know (temperature of the data, caveats)
     temp_C : float
         temperature asked [C]
+    cas : tuple of str
+        the two CAS numbers ("" for a row without one)
+    model : str
+        what predicted a "predicted" verdict: a UNIFAC parameter set by name (from the two
+        liquids' structures) or :data:`FLORY_HUGGINS`; "" for a measured one
     """
 
     liquids: tuple[str, str]
@@ -130,6 +152,7 @@ class PairVerdict:
     note: str = ""
     temp_C: float = 25.0
     cas: tuple[str, str] = ("", "")
+    model: str = ""
 
     @property
     def code(self) -> int:
@@ -147,6 +170,7 @@ class PairVerdict:
             "source": list(self.source),
             "note": self.note,
             "temp_C": self.temp_C,
+            "model": self.model,
         }
 
 
@@ -320,53 +344,348 @@ def _split_volumes(ha, va, hb, vb, temp_C):
     return (b, one_in_two, two_in_one) if flip else (b, two_in_one, one_in_two)
 
 
-def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
-    r"""Flory-Huggins prediction for two liquid records (no table look-up).
+# ----------------------------------------------------------------------------- UNIFAC prediction
+
+#: UNIFAC parameter sets tried in turn for a predicted pair: the first that covers both liquids'
+#: structures (groups and interaction parameters) gives the verdict; with none, Flory-Huggins from
+#: HSP.  The order was chosen on tables/miscibility.csv alone (``choose_model_order`` in
+#: bench/bench_miscibility.py: the order whose "miscible in all proportions or not" matches most
+#: measured pairs), never on the published chart of bench/published_miscibility.py.
+UNIFAC_ORDER = ("lle", "original", "dortmund")
+#: Name of the prediction by Flory-Huggins from HSP (``PairVerdict.model``).
+FLORY_HUGGINS = "Flory-Huggins from HSP"
+
+
+@lru_cache(maxsize=1024)
+def _smiles_of(cas: str) -> str | None:
+    """SMILES of a pure liquid from the reference library ``chemicals`` by CAS, or None (a mixture
+    such as a vegetable oil, a row without CAS, or a compound the library does not hold)."""
+    if not cas:
+        return None
+    from chemicals.identifiers import search_chemical
+
+    try:
+        return search_chemical(cas).smiles or None
+    except ValueError:  # not a single compound of the library
+        return None
+
+
+def _identity(s) -> tuple[str, float] | None:
+    """(CAS, molar mass [g/mol]) of a liquid record, or None without them (a blend of other rows)."""
+    cas = getattr(s, "cas", "") or ""
+    mw = _num(getattr(s, "mw_g_mol", None))
+    if not cas or mw is None or not mw > 0:
+        return None
+    return cas, float(mw)
+
+
+def _binodal_grid() -> np.ndarray:
+    """Mole fractions of liquid 1 where the Gibbs energy of mixing is sampled: 1e-9 to 0.5 on a log
+    scale from both ends (tiny solubilities, water in an alkane) and every 0.02 between."""
+    ends = np.logspace(-9.0, math.log10(0.5), 40)
+    return np.unique(np.concatenate([ends, 1.0 - ends, np.linspace(0.02, 0.98, 49)]))
+
+
+_GRID = _binodal_grid()
+
+
+def _widest_hull_gap(x: np.ndarray, g: np.ndarray) -> tuple[int, int] | None:
+    """The widest stretch of ``x`` that the lower convex hull of (x, g) bridges over points lying above
+    it (a miscibility gap: the hull's segment is the common tangent), as grid indices, or None."""
+    hull: list[int] = []
+    for k in range(len(x)):
+        while len(hull) >= 2:
+            i, j = hull[-2], hull[-1]
+            if (g[j] - g[i]) * (x[k] - x[i]) >= (g[k] - g[i]) * (x[j] - x[i]):
+                hull.pop()
+            else:
+                break
+        hull.append(k)
+    best = None
+    for i, j in zip(hull[:-1], hull[1:]):
+        if j - i < 2:
+            continue
+        chord = g[i] + (g[j] - g[i]) * (x[i + 1:j] - x[i]) / (x[j] - x[i])
+        if (g[i + 1:j] - chord).max() > 1e-9 and (best is None or x[j] - x[i] > x[best[1]] - x[best[0]]):
+            best = (i, j)
+    return best
+
+
+def _ln_activities(ln_gamma, u: np.ndarray) -> np.ndarray:
+    """ln a of both liquids (M, 2) where the logit of liquid 1's mole fraction is ``u`` (M,) (both
+    mole fractions kept off 0 and 1 however far out u goes)."""
+    ln_x = -np.logaddexp(0.0, np.stack([-u, u], axis=1))
+    return ln_x + ln_gamma(np.exp(ln_x))
+
+
+def _equal_activities(ln_gamma, x_lo: float, x_hi: float) -> tuple[float, float] | None:
+    """The two liquid phases' mole fractions of liquid 1 with equal activities of both liquids,
+    by Newton's method on their logits from a first guess; None when it does not converge."""
+    u = np.log([x_lo / (1.0 - x_lo), x_hi / (1.0 - x_hi)])
+    h = 1e-6
+    for _ in range(40):
+        la = _ln_activities(ln_gamma, np.array([u, u + (h, 0.0), u + (0.0, h)]).reshape(-1)).reshape(3, 2, 2)
+        f = la[:, 0, :] - la[:, 1, :]                      # (3, 2): residuals at u, u + h e1, u + h e2
+        jac = np.stack([(f[1] - f[0]) / h, (f[2] - f[0]) / h], axis=1)
+        try:
+            step = np.clip(np.linalg.solve(jac, -f[0]), -2.0, 2.0)
+        except np.linalg.LinAlgError:
+            return None
+        u = u + step
+        if np.abs(step).max() < 1e-10:
+            break
+    x_lo, x_hi = sorted(1.0 / (1.0 + np.exp(-u)))
+    if not (x_hi - x_lo > 1e-6 and np.abs(f[0]).max() < 1e-6):
+        return None
+    return float(x_lo), float(x_hi)
+
+
+def activity_binodal(ln_gamma) -> tuple[float, float] | None:
+    r"""Liquid-liquid split of a binary from its activity coefficients, or None (one phase).
+
+    The Gibbs energy of mixing :math:`g/RT = \sum_i x_i \ln(x_i\gamma_i)` is sampled from 1e-9 to
+    1 - 1e-9; where its lower convex hull bridges a stretch (g has two inflection points), the two
+    liquids split, and the two phases are solved from equal activities of both liquids
+    (the condition of equilibrium [6]_; the hull's ends are the first guess and the answer when
+    Newton's method does not converge).
+
+    Parameters
+    ----------
+    ln_gamma : callable
+        mole fractions (M, 2) -> ln gamma (M, 2)
+
+    Returns
+    -------
+    (x_lo, x_hi) or None
+        mole fractions of liquid 1 in the phase poor in it and in the phase rich in it
+    """
+    la = _ln_activities(ln_gamma, np.log(_GRID / (1.0 - _GRID)))
+    g = _GRID * la[:, 0] + (1.0 - _GRID) * la[:, 1]
+    gap = _widest_hull_gap(_GRID, g)
+    if gap is None:
+        return None
+    first = (float(_GRID[gap[0]]), float(_GRID[gap[1]]))
+    return _equal_activities(ln_gamma, *first) or first
+
+
+def _mass_fraction(x: float, mw_solute: float, mw_host: float) -> float:
+    return x * mw_solute / (x * mw_solute + (1.0 - x) * mw_host)
+
+
+def _unifac_pair(sa, sb, temp_C: float, models: tuple[str, ...] = UNIFAC_ORDER):
+    """(model, b in a, a in b) by UNIFAC for two liquid records, mass fractions (None, None when one
+    phase); None when no model of ``models`` covers both structures."""
+    a, b = _identity(sa), _identity(sb)
+    if a is None or b is None:
+        return None
+    flip = b < a  # one fixed orientation: the same answer whichever liquid is named first
+    first, second = (b, a) if flip else (a, b)
+    got = _unifac_oriented(first, second, float(temp_C), tuple(models))
+    if got is None:
+        return None
+    model, two_in_one, one_in_two = got
+    return (model, one_in_two, two_in_one) if flip else got
+
+
+@lru_cache(maxsize=16384)
+def _unifac_oriented(a: tuple[str, float], b: tuple[str, float], temp_C: float, models: tuple[str, ...]):
+    key, kept = _pair_key(a, b, temp_C, models), _disk_pairs()
+    if key in kept:
+        return None if kept[key] is None else tuple(kept[key])
+    got = _unifac_solve(a, b, temp_C, models)
+    kept[key] = list(got) if got is not None else None
+    _DISK_PAIRS_NEW.append(key)
+    return got
+
+
+#: Subgroups of a parameter set whose value in ``thermo`` is wrong, skipped (the next set is tried).
+#: To merge into solvsel/science/unifac.py (and drop here): ``thermo.unifac.LLEUFSG[30]`` (FCH2O,
+#: the ring ether of tetrahydrofuran and 1,4-dioxane) has R = 9183 for Magnussen et al.'s 0.9183
+#: (the original UNIFAC's ring-ether subgroup ``UFSG[27]``: R 0.9183, Q 1.1).
+_WRONG_IN_THERMO = {"lle": frozenset({30})}
+
+
+def _unifac_solve(a: tuple[str, float], b: tuple[str, float], temp_C: float, models: tuple[str, ...]):
+    """(model, b in a, a in b) of two liquids given as (CAS, molar mass), or None (see :func:`_unifac_pair`)."""
+    from . import unifac
+
+    smiles = (_smiles_of(a[0]), _smiles_of(b[0]))
+    if None in smiles:
+        return None
+    for model in models:
+        try:
+            gl = [unifac.groups(smiles[0], model), unifac.groups(smiles[1], model)]
+            unifac.ln_gammas(gl, [0.5, 0.5], temp_C, model)  # refuses a mixture without parameters
+        except MissingDataError:  # a group or an interaction parameter the model does not have
+            continue
+        if _WRONG_IN_THERMO.get(model, frozenset()) & (set(gl[0]) | set(gl[1])):
+            continue
+        split = activity_binodal(lambda x, gl=gl, model=model: unifac.ln_gammas(gl, x, temp_C, model))
+        if split is None:
+            return model, None, None
+        x_lo, x_hi = split
+        return model, _mass_fraction(1.0 - x_hi, b[1], a[1]), _mass_fraction(x_lo, a[1], b[1])
+    return None
+
+
+# UNIFAC answers already solved, kept in cache_dir() beside the pair matrices (one JSON file per
+# version of the code): {folder: {pair key: [model, b in a, a in b] or None}}, and the keys added
+# since the file was last written.
+_DISK_PAIRS: dict[str, dict] = {}
+_DISK_PAIRS_NEW: list[str] = []
+
+
+def _pair_key(a: tuple[str, float], b: tuple[str, float], temp_C: float, models: tuple[str, ...]) -> str:
+    return json.dumps([a[0], a[1], b[0], b[1], temp_C, list(models)])
+
+
+@lru_cache(maxsize=1)
+def _unifac_code_key() -> str:
+    """SHA-256 of what a UNIFAC answer depends on besides the pair: the code and ``thermo``'s version."""
+    from importlib.metadata import version
+
+    here = Path(__file__).resolve().parent
+    digest = hashlib.sha256(version("thermo").encode())
+    for module in ("miscibility.py", "unifac.py"):
+        digest.update((here / module).read_bytes())
+    return digest.hexdigest()[:32]
+
+
+def _unifac_file() -> Path | None:
+    folder = cache_dir()
+    return None if folder is None else folder / f"unifac_pairs_{_unifac_code_key()}.json"
+
+
+def _read_pairs(path: Path | None) -> dict:
+    """The answers kept in ``path``; what is absent, unreadable or malformed is left to recompute."""
+    from .unifac import MODELS
+
+    try:
+        data = json.loads(path.read_text(encoding="utf-8")) if path is not None else {}
+    except (OSError, ValueError):
+        return {}
+    if not isinstance(data, dict):
+        return {}
+    return {k: v for k, v in data.items()
+            if v is None or (isinstance(v, list) and len(v) == 3 and v[0] in MODELS)}
+
+
+def _disk_pairs() -> dict:
+    path = _unifac_file()
+    if str(path) not in _DISK_PAIRS:
+        _DISK_PAIRS[str(path)] = _read_pairs(path)
+    return _DISK_PAIRS[str(path)]
+
+
+def _save_unifac_pairs() -> None:
+    """Write the UNIFAC answers solved in this process to the cache folder (nothing without one)."""
+    path = _unifac_file()
+    if not _DISK_PAIRS_NEW or path is None:
+        return
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp.json")
+        tmp.write_text(json.dumps({**_read_pairs(path), **_disk_pairs()}), encoding="utf-8")
+        os.replace(tmp, path)
+        _DISK_PAIRS_NEW.clear()
+    except OSError:  # a read-only or full cache folder only costs the time next run
+        return
+
+
+def predict_pair(sa, sb, temp_C: float = 25.0, models: tuple[str, ...] = UNIFAC_ORDER) -> PairVerdict:
+    r"""Predicted miscibility of two liquid records (no table look-up): UNIFAC from their
+    structures where a parameter set of ``models`` covers both, else Flory-Huggins from HSP.
+
+    UNIFAC (``model`` names the parameter set; :data:`UNIFAC_ORDER`): the structures come from the
+    reference library ``chemicals`` by CAS, the groups and activity coefficients from
+    :mod:`solvsel.science.unifac`, and the split from :func:`activity_binodal` (two inflection
+    points of the Gibbs energy of mixing, phases of equal activities), converted to mass fractions
+    with the molar masses.  A vegetable oil or another mixture, a row without CAS, or a structure
+    the parameter sets lack keeps Flory-Huggins from HSP:
 
     .. math::
         \chi = \frac{V_a R_a^2}{4RT},\qquad
         \chi_c = \tfrac12\left(1 + \sqrt{V_a/V_b}\right)^2
 
-    Miscible in all proportions when :math:`\chi \le \chi_c`; otherwise the
-    binodal of :func:`solvsel.science.hansen.binodal` gives the mutual
-    solubilities (solved with the smaller molecule as the lattice site, so the
-    answer does not depend on the order of the two liquids), and the pair is
-    "no" when both are below :data:`IMMISCIBLE_BELOW_WT`.
+    miscible in all proportions when :math:`\chi \le \chi_c`; otherwise the binodal of
+    :func:`solvsel.science.hansen.binodal` gives the mutual solubilities (solved with the smaller
+    molecule as the lattice site).  Either way the answer does not depend on the order of the two
+    liquids, chi and chi_critical are Flory-Huggins' (for comparison), and a pair that splits is
+    "no" when both mutual solubilities are below :data:`IMMISCIBLE_BELOW_WT`.
 
     Parameters
     ----------
     sa, sb : Solvent
-        records with dD, dP, dH [MPa^0.5], vm_cm3_mol [cm^3/mol] and
-        density_g_cm3 [g/cm^3]
+        records with dD, dP, dH [MPa^0.5], vm_cm3_mol [cm^3/mol], density_g_cm3 [g/cm^3],
+        mw_g_mol [g/mol] and cas
     temp_C : float
         temperature [C]; away from 25 C both liquids' HSP and molar volumes
         are shifted first (:func:`solvsel.science.target.solvent_at`)
+    models : tuple of str
+        UNIFAC parameter sets to try, in order ("lle", "original", "dortmund"); () for
+        Flory-Huggins from HSP alone
 
     Examples
     --------
-    Ethylene glycol and sunflower oil split whichever is named first (the
-    glycol's solubility in the oil is the same both ways):
+    Ethylene glycol and sunflower oil (a mixture: Flory-Huggins from HSP) split whichever is
+    named first (the glycol's solubility in the oil is the same both ways); water and n-hexane
+    split by UNIFAC-LLE, decisively:
 
     >>> from solvsel.data.catalog import load_catalog
     >>> cat = load_catalog()
     >>> g, o = cat.solvent("ethylene glycol"), cat.solvent("sunflower oil")
     >>> ab, ba = predict_pair(g, o), predict_pair(o, g)
-    >>> ab.window["a_in_b_max"] == ba.window["b_in_a_max"]
-    True
+    >>> ab.window["a_in_b_max"] == ba.window["b_in_a_max"], ab.model
+    (True, 'Flory-Huggins from HSP')
+    >>> v = predict_pair(cat.solvent("water"), cat.solvent("n-hexane"))
+    >>> v.one_phase, v.model
+    ('no', 'UNIFAC-LLE (Magnussen 1981)')
     """
     ha, va, hb, vb, shift_note = _at_temperature(sa, sb, temp_C)
     chi = float(hansen.chi_flory_huggins(ha, hb, va, temp_C))
     chic = float(hansen.chi_critical(va, vb))
+    by_groups = _unifac_pair(sa, sb, temp_C, tuple(models)) if models else None
+    if by_groups is not None:
+        return _unifac_verdict(sa, sb, by_groups, chi, chic, temp_C)
+    return _flory_huggins_verdict(sa, sb, (ha, va, hb, vb, shift_note), chi, chic, temp_C)
+
+
+def _verdict_of(b_in_a: float, a_in_b: float) -> str:
+    """"no" when both mutual solubilities [mass fraction] are below :data:`IMMISCIBLE_BELOW_WT`, else "partial"."""
+    return "no" if max(b_in_a, a_in_b) * 100.0 < IMMISCIBLE_BELOW_WT else "partial"
+
+
+def _unifac_verdict(sa, sb, by_groups, chi: float, chic: float, temp_C: float) -> PairVerdict:
+    from .unifac import model_label
+
+    model, b_in_a, a_in_b = by_groups
+    label = model_label(model)
+    names, cas = (sa.name, sb.name), (sa.cas or "", sb.cas or "")
+    note = f"predicted by {label} from the two liquids' structures"
+    if b_in_a is None:
+        window = {"fraction": "mass fraction of liquid b", "one_phase_ranges": [[0.0, 1.0]], "basis": "predicted"}
+        return PairVerdict(names, "yes", "predicted", window, chi, chic, (), note, temp_C, cas, label)
+    window = _window(b_in_a, a_in_b, _num(sa.density_g_cm3), _num(sb.density_g_cm3), "predicted")
+    return PairVerdict(names, _verdict_of(b_in_a, a_in_b), "predicted", window, chi, chic, (), note, temp_C, cas,
+                       label)
+
+
+def _flory_huggins_verdict(sa, sb, shifted, chi: float, chic: float, temp_C: float) -> PairVerdict:
+    ha, va, hb, vb, shift_note = shifted
     b, phi_ba, phi_ab = _split_volumes(ha, va, hb, vb, temp_C)
     names = (sa.name, sb.name)
     cas = (sa.cas or "", sb.cas or "")
-    base_note = "predicted by Flory-Huggins from HSP; hydrogen-bonding liquids (water, glycols) are poorly predicted"
+    why = "a mixture or a structure no UNIFAC parameter set covers"
+    base_note = (f"predicted by Flory-Huggins from HSP ({why}); hydrogen-bonding liquids (water, glycols) are "
+                 "poorly predicted")
     if shift_note:
         base_note += "; " + shift_note
     if not b.split:
-        return PairVerdict(names, "yes", "predicted", {"fraction": "mass fraction of liquid b", "one_phase_ranges": [[0.0, 1.0]], "basis": "predicted"}, chi, chic, (), base_note, temp_C, cas)
+        window = {"fraction": "mass fraction of liquid b", "one_phase_ranges": [[0.0, 1.0]], "basis": "predicted"}
+        return PairVerdict(names, "yes", "predicted", window, chi, chic, (), base_note, temp_C, cas, FLORY_HUGGINS)
     if not (math.isfinite(b.phi_a) and 0.0 < b.phi_a < b.phi_b < 1.0):
-        return PairVerdict(names, "partial", "predicted", None, chi, chic, (), base_note + "; the binodal did not converge, window unknown", temp_C, cas)
+        return PairVerdict(names, "partial", "predicted", None, chi, chic, (),
+                           base_note + "; the binodal did not converge, window unknown", temp_C, cas, FLORY_HUGGINS)
     if not b.success:
         base_note += "; just above the critical point, the window is approximate"
     rho_a, rho_b = _num(sa.density_g_cm3), _num(sb.density_g_cm3)
@@ -376,18 +695,19 @@ def predict_pair(sa, sb, temp_C: float = 25.0) -> PairVerdict:
         b_in_a, a_in_b = phi_ba, phi_ab
     w = _window(b_in_a, a_in_b, rho_a, rho_b, "predicted")
     w["b_in_a_max_volume"], w["a_in_b_max_volume"] = phi_ba, phi_ab
-    verdict = "no" if max(b_in_a, a_in_b) * 100.0 < IMMISCIBLE_BELOW_WT else "partial"
-    return PairVerdict(names, verdict, "predicted", w, chi, chic, (), base_note, temp_C, cas)
+    return PairVerdict(names, _verdict_of(b_in_a, a_in_b), "predicted", w, chi, chic, (), base_note, temp_C, cas,
+                       FLORY_HUGGINS)
 
 
 def pair(cat, a, b, temp_C: float = 25.0) -> PairVerdict:
     """Do liquids ``a`` and ``b`` form one phase at ``temp_C``?
 
     A measured pair of tables/miscibility.csv within :data:`MEASURED_WINDOW_C`
-    of its temperature wins; otherwise the Flory-Huggins prediction of
-    :func:`predict_pair` is given, labelled "predicted".  chi and chi_critical
-    are reported in both cases (for a measured pair they show how far the
-    model is from the observation).
+    of its temperature wins; otherwise the prediction of :func:`predict_pair`
+    is given, labelled "predicted" (UNIFAC from the structures, or
+    Flory-Huggins from HSP: ``model`` says which).  Flory-Huggins' chi and
+    chi_critical are reported in every case (for a measured pair they show how
+    far that model is from the observation).
 
     Parameters
     ----------
@@ -428,7 +748,7 @@ def pair(cat, a, b, temp_C: float = 25.0) -> PairVerdict:
         )
         if row.get("note"):
             note += f" (table note: {row['note']})"
-        return PairVerdict(predicted.liquids, predicted.one_phase, "predicted", predicted.window, predicted.chi, predicted.chi_critical, src, note, temp_C, predicted.cas)
+        return replace(predicted, source=src, note=note)
     window = None
     rho_a, rho_b = _num(sa.density_g_cm3), _num(sb.density_g_cm3)
     if code == PARTIAL:
@@ -442,7 +762,7 @@ def pair(cat, a, b, temp_C: float = 25.0) -> PairVerdict:
     if code == PARTIAL and window and (window["b_in_a_max"] is None or window["a_in_b_max"] is None):
         note += "; a solubility not tabulated is taken as zero in blend checks"
     if (code == FULL) != (predicted.one_phase == "yes"):
-        note += f"; the Flory-Huggins model alone would say '{predicted.one_phase}'"
+        note += f"; the prediction alone ({predicted.model}) would say '{predicted.one_phase}'"
     return PairVerdict((sa.name, sb.name), _VERDICT[code], "measured", window, predicted.chi, predicted.chi_critical, src, note, temp_C, (sa.cas or "", sb.cas or ""))
 
 
@@ -606,19 +926,19 @@ def _whole_blend(recs, f, present, verdicts, temp_C):
     """Tangent-plane test of the whole blend (:func:`hansen.mixture_stability`), or None without molar volumes.
 
     chi of each pair from HSP (at ``temp_C``) on a lattice of the smallest
-    molar volume, made to agree with a measured pair: a pair measured
-    miscible in all proportions gets at most 0.9 of its critical chi, a pair
-    measured immiscible at least 1.1 of it.  A pair with a measured solubility
-    window (partly miscible) is not tested as a whole (None): one chi cannot
-    reproduce both measured solubilities, and the pairwise test of the window
-    stands.
+    molar volume, made to agree with a pair's verdict where it is not
+    Flory-Huggins' own (measured, or predicted by UNIFAC): a pair miscible in
+    all proportions gets at most 0.9 of its critical chi, an immiscible pair at
+    least 1.1 of it.  A pair with such a solubility window (partly miscible) is
+    not tested as a whole (None): one chi cannot reproduce both solubilities,
+    and the pairwise test of the window stands.
     """
     sub = [recs[k] for k in present]
     if any(getattr(r, "vm_cm3_mol", None) is None or not r.vm_cm3_mol > 0 for r in sub):
         return None
-    if any(verdicts[(a, b)].basis == "measured" and verdicts[(a, b)].one_phase == "partial"
+    if any(verdicts[(a, b)].model != FLORY_HUGGINS and verdicts[(a, b)].one_phase == "partial"
            for a, b in combinations(present, 2)):
-        return None  # a measured solubility window that one chi cannot reproduce: the pairwise test stands
+        return None  # a solubility window that one chi cannot reproduce: the pairwise test stands
     n = len(sub)
     H, V, _ = zip(*(_liquid_at(r, temp_C) for r in sub))
     V = np.array(V, dtype=float)
@@ -628,7 +948,7 @@ def _whole_blend(recs, f, present, verdicts, temp_C):
         for b in range(a + 1, n):
             c = float(hansen.chi_flory_huggins(H[a], H[b], vref, temp_C))
             v = verdicts[(present[a], present[b])]
-            if v.basis == "measured":
+            if v.model != FLORY_HUGGINS:  # measured, or predicted by UNIFAC
                 # critical chi of the pair, rescaled from liquid a's volume to the lattice site vref
                 cc = float(hansen.chi_critical(V[a], V[b])) * vref / V[a]
                 c = min(c, 0.9 * cc) if v.one_phase == "yes" else max(c, 1.1 * cc)
@@ -761,7 +1081,7 @@ def _matrix_key(cat, recs, temp_C: float) -> str:
 
     here = Path(__file__).resolve().parent
     digest = hashlib.sha256()
-    for module in ("miscibility.py", "hansen.py", "target.py"):
+    for module in ("miscibility.py", "hansen.py", "target.py", "unifac.py"):
         digest.update((here / module).read_bytes())
     digest.update(tables_sha256(cat.tables_dir).encode())
     for kind, paths in sorted(getattr(cat, "own", {}).items()):
@@ -823,6 +1143,7 @@ def _compute_matrix(cat, recs, temp_C: float) -> PairMatrix:
         if v.chi_critical is not None:
             chic[i, j] = v.chi_critical
             chic[j, i] = v.chi_critical * recs[j].vm_cm3_mol / recs[i].vm_cm3_mol
+    _save_unifac_pairs()
     for a in (status, measured, limit, chi, chic):
         a.setflags(write=False)
     return PairMatrix(tuple(r.name for r in recs), status, measured, limit, chi, chic, temp_C)
