@@ -519,13 +519,16 @@ def _load_schema(tables_dir: Path) -> dict[str, list[ColumnSpec]]:
     return out
 
 
-@lru_cache(maxsize=4)
-def _load_sources(tables_dir: Path):
-    import pandas as pd
+#: The columns of ``sources.csv``.
+SOURCE_COLUMNS = ("id", "kind", "citation", "url")
 
+
+@lru_cache(maxsize=4)
+def _load_sources(tables_dir: Path) -> tuple[dict[str, str], ...]:
+    """The rows of ``sources.csv`` (``id``, ``kind``, ``citation``, ``url``), checked."""
     path = tables_dir / "sources.csv"
     header, rows = _read_csv_rows(path)
-    want = ["id", "kind", "citation", "url"]
+    want = list(SOURCE_COLUMNS)
     if header != want:
         raise TableError(path, f"header must be {','.join(want)}", row=1)
     seen: dict[str, int] = {}
@@ -546,26 +549,29 @@ def _load_sources(tables_dir: Path):
             raise TableError(path, "empty citation", row=i, column="citation")
         seen[sid] = i
         records.append({"id": sid, "kind": kind, "citation": citation, "url": url})
-    return pd.DataFrame.from_records(records, columns=want)
+    return tuple(records)
 
 
-def read_table(
+@lru_cache(maxsize=4)
+def _source_index(tables_dir: Path) -> dict[str, dict[str, str]]:
+    """The rows of ``sources.csv`` by id."""
+    return {r["id"]: r for r in _load_sources(tables_dir)}
+
+
+def read_rows(
     path: Path | str,
     table: str,
     tables_dir: Path = TABLES_DIR,
     user: bool = False,
-):
-    """Read and validate one CSV against its rows in ``schema.csv``.
+) -> tuple[list[str], list[dict[str, Any]]]:
+    """Read and validate one CSV against its rows in ``schema.csv``, with the csv module.
 
-    Returns a pandas DataFrame: numbers as float (empty -> NaN), integers as
-    Int64, everything else as str ('' when empty).  ``user=True`` accepts
-    source texts that are not ids of ``sources.csv`` (a user's own data),
-    does not require the source columns, reads ``"-"`` as standard input and
-    takes at most :data:`MAX_OWN_ROWS` rows.  Rows are the file's lines (the
-    header is row 1).
+    Returns the table's columns (in the order of ``schema.csv``) and one dict a row: numbers as
+    float (empty -> NaN), integers as int (empty -> None), everything else as str ('' when empty).
+    ``user=True`` accepts source texts that are not ids of ``sources.csv`` (a user's own data),
+    does not require the source columns, reads ``"-"`` as standard input and takes at most
+    :data:`MAX_OWN_ROWS` rows.  Rows are the file's lines (the header is row 1).
     """
-    import pandas as pd
-
     schema = _load_schema(tables_dir)
     if table not in schema:
         raise TableError(path, f"no columns declared for table '{table}' in {tables_dir / 'schema.csv'}")
@@ -577,11 +583,36 @@ def read_table(
         raise TableError(path, f"has {len(rows):,} rows; a table of your own may have at most {MAX_OWN_ROWS:,} "
                          "(the searches pair and blend every liquid); split it or keep the rows you need",
                          row=rows[MAX_OWN_ROWS][0], expected=f"at most {MAX_OWN_ROWS:,} rows")
-    data = _table_columns(path, specs, header, rows, set(_load_sources(tables_dir)["id"]), user)
-    df = pd.DataFrame(data)
+    data = _table_columns(path, specs, header, rows, set(_source_index(tables_dir)), user)
     for s in specs:
         if s.type == "integer":
-            df[s.column] = df[s.column].astype("Int64")
+            data[s.column] = [None if math.isnan(v) else int(v) for v in data[s.column]]
+    columns = [s.column for s in specs]
+    return columns, [dict(zip(columns, values)) for values in zip(*(data[c] for c in columns))]
+
+
+def read_table(
+    path: Path | str,
+    table: str,
+    tables_dir: Path = TABLES_DIR,
+    user: bool = False,
+):
+    """:func:`read_rows` as a pandas DataFrame: numbers as float (empty -> NaN), integers as
+    Int64, everything else as str ('' when empty)."""
+    columns, rows = read_rows(path, table, tables_dir, user)
+    return _frame(columns, rows, _load_schema(tables_dir)[table])
+
+
+def _frame(columns: Sequence[str], rows: Sequence[Mapping[str, Any]], specs: Sequence[ColumnSpec]):
+    """Rows of a table as a DataFrame, each column of the type ``specs`` declares."""
+    import pandas as pd
+
+    df = pd.DataFrame({c: [r[c] for r in rows] for c in columns})
+    for s in specs:
+        if s.column not in df.columns:
+            continue
+        if s.type == "integer":
+            df[s.column] = pd.array([None if v is None or v != v else int(v) for v in df[s.column]], dtype="Int64")
         elif s.type == "number":
             df[s.column] = df[s.column].astype(float)
     return df
@@ -874,7 +905,8 @@ class Catalog:
         for k in self.own:
             if k not in _load_schema(self.tables_dir):
                 raise InputError(f"own tables: no table named '{k}' to add rows to")
-        self._tables: dict[str, Any] = {}
+        self._tables: dict[str, Any] = {}  # DataFrames, made from the rows when asked for
+        self._rows: dict[str, tuple[list[str], list[dict[str, Any]]]] = {}
         self._index: dict[str, dict[str, int]] = {}
         self._records: dict[str, list] = {}
 
@@ -884,43 +916,64 @@ class Catalog:
         """Names of the tables declared in schema.csv that have a file."""
         return [t for t in _load_schema(self.tables_dir) if (self.tables_dir / f"{t}.csv").is_file()]
 
-    def table(self, name: str):
-        """The validated table ``name`` (without .csv) as a DataFrame, with an ``origin`` column."""
+    def _table_name(self, name: str) -> str:
+        """The table's name for ``name`` (any case, spaces, the short names of :data:`TABLE_ALIASES`)."""
         name = name.strip().lower().replace(" ", "_")
-        name = TABLE_ALIASES.get(name, name)
-        if name == "sources":
-            return self.sources
-        if name in self._tables:
-            return self._tables[name]
+        return TABLE_ALIASES.get(name, name)
+
+    def _read(self, name: str) -> tuple[list[str], list[dict[str, Any]]]:
+        """The columns and validated rows of table ``name`` with the user's own rows laid over
+        them, and an ``origin`` column; read once."""
+        if name in self._rows:
+            return self._rows[name]
         path = self.tables_dir / f"{name}.csv"
         if name not in _load_schema(self.tables_dir) or not path.is_file():
             known = self.table_names + ["sources"]
             close = difflib.get_close_matches(name, known, n=3, cutoff=0.5)
             raise UnknownNameError(name, "table", tuple(close or known))
-        df = read_table(path, name, self.tables_dir)
-        df.insert(len(df.columns), "origin", "bundled")
+        columns, rows = read_rows(path, name, self.tables_dir)
+        rows = [{**r, "origin": "bundled"} for r in rows]
         for own_path in self.own.get(name, ()):
             try:
-                mine = read_table(own_path, name, self.tables_dir, user=True)
+                _, mine = read_rows(own_path, name, self.tables_dir, user=True)
             except SolvselError as exc:  # name the request field the file came from (own_solvents ...)
                 exc.param = exc.param or f"own_{name}"
                 raise
-            mine["origin"] = f"user: {shown_path(own_path)}"
-            df = _overlay(df, mine)
-        self._tables[name] = df
-        return df
+            rows = _overlay(rows, [{**r, "origin": f"user: {shown_path(own_path)}"} for r in mine])
+        self._rows[name] = (columns + ["origin"], rows)
+        return self._rows[name]
+
+    def rows(self, name: str) -> list[dict[str, Any]]:
+        """The validated rows of table ``name`` (without .csv), one dict a row with an ``origin``
+        (numbers as float, NaN when empty; integers as int, None when empty; text as str), read
+        with the csv module: what a job reads without needing a DataFrame.  Do not change them."""
+        name = self._table_name(name)
+        if name == "sources":
+            return list(_load_sources(self.tables_dir))
+        return self._read(name)[1]
+
+    def table(self, name: str):
+        """The validated table ``name`` (without .csv) as a DataFrame, with an ``origin`` column."""
+        name = self._table_name(name)
+        if name == "sources":
+            return self.sources
+        if name not in self._tables:
+            columns, rows = self._read(name)
+            self._tables[name] = _frame(columns, rows, _load_schema(self.tables_dir)[name])
+        return self._tables[name]
 
     @property
     def sources(self):
-        return _load_sources(self.tables_dir)
+        """``sources.csv`` as a DataFrame."""
+        return _sources_frame(self.tables_dir)
 
     def source(self, source_id: str) -> dict:
-        df = self.sources
-        hit = df[df["id"] == source_id]
-        if hit.empty:
-            close = difflib.get_close_matches(source_id, list(df["id"]), n=5, cutoff=0.5)
+        """The row of ``sources.csv`` with id ``source_id`` (``id``, ``kind``, ``citation``, ``url``)."""
+        index = _source_index(self.tables_dir)
+        if source_id not in index:
+            close = difflib.get_close_matches(source_id, list(index), n=5, cutoff=0.5)
             raise UnknownNameError(source_id, "source id", tuple(close))
-        return hit.iloc[0].to_dict()
+        return dict(index[source_id])
 
     @property
     def solvents(self):
@@ -933,14 +986,15 @@ class Catalog:
     # -- lookup
     def _name_index(self, table: str) -> dict[str, int]:
         if table not in self._index:
-            df = self.table(table)
+            columns, rows = self._read(self._table_name(table))
             idx: dict[str, int] = {}
-            cols = [c for c in ("name", "cas", "synonyms") if c in df.columns]
+            cols = [c for c in ("name", "cas", "synonyms") if c in columns]
             if "name" not in cols:
                 raise InputError(f"table '{table}' has no name column to look names up in")
             # names first, then CAS, then synonyms: a synonym never shadows a name
             for col in cols:
-                for i, v in enumerate(df[col]):
+                for i, row in enumerate(rows):
+                    v = row[col]
                     keys = str(v).split(";") if col == "synonyms" else [str(v)]
                     for k in keys:
                         k = normalize_name(k)
@@ -969,8 +1023,8 @@ class Catalog:
         ``also``) as the candidates, listed in ``expected``; ``why`` replaces the message."""
         idx = self._name_index(table)
         close = difflib.get_close_matches(normalize_name(name), list(idx), n=8, cutoff=0.6)
-        df = self.table(table)
-        names = tuple(dict.fromkeys(list(also) + [df["name"].iloc[idx[c]] for c in close]))[:5]
+        rows = self.rows(table)
+        names = tuple(dict.fromkeys(list(also) + [rows[idx[c]]["name"] for c in close]))[:5]
         kind = {"solvents": "liquid", "solutes": "solute"}.get(table, f"entry in table '{table}'")
         return refused_name(name, kind, names, why)
 
@@ -992,7 +1046,7 @@ class Catalog:
 
     def find(self, table: str, name: str) -> dict:
         """The row of ``table`` named ``name`` (forgiving match) as a dict."""
-        return self.table(table).iloc[self.find_index(table, name)].to_dict()
+        return dict(self.rows(table)[self.find_index(table, name)])
 
     def solvent(self, name: str, library: bool = True) -> Solvent:
         """The liquid named ``name`` (name, synonym or CAS), the same in every command.
@@ -1044,7 +1098,7 @@ class Catalog:
         i = self.match_index("oils", name)
         if i is None:
             return None
-        row = self.table("oils").iloc[i]
+        row = self.rows("oils")[i]
         j = self.match_index("solvents", str(row.get("hsp_as") or "")) if str(row.get("hsp_as") or "").strip() else None
         if j is None:
             return None
@@ -1079,12 +1133,12 @@ class Catalog:
 
     def solvent_records(self) -> list[Solvent]:
         if "solvents" not in self._records:
-            self._records["solvents"] = [_solvent_from_row(r) for r in self.solvents.to_dict("records")]
+            self._records["solvents"] = [_solvent_from_row(r) for r in self.rows("solvents")]
         return self._records["solvents"]
 
     def solute_records(self) -> list[Solute]:
         if "solutes" not in self._records:
-            self._records["solutes"] = [_solute_from_row(r) for r in self.solutes.to_dict("records")]
+            self._records["solutes"] = [_solute_from_row(r) for r in self.rows("solutes")]
         return self._records["solutes"]
 
     def solvents_with_role(self, role: str) -> list[Solvent]:
@@ -1099,25 +1153,26 @@ class Catalog:
         return np.array(out, dtype=float).reshape(-1, 3)
 
 
-def _overlay(df, mine):
-    """Rows of ``mine`` replace rows of ``df`` with the same CAS (or name), others are appended."""
-    import pandas as pd
-
-    drop = set()
+def _overlay(rows: list[dict], mine: list[dict]) -> list[dict]:
+    """Rows of ``mine`` replace rows of ``rows`` with the same CAS (or name), others are appended."""
     keys = {}
-    for i, r in df.iterrows():
+    for i, r in enumerate(rows):
         if r.get("cas"):
             keys[("cas", r["cas"])] = i
         keys[("name", normalize_name(r["name"]))] = i
-    for _, r in mine.iterrows():
+    drop = set()
+    for r in mine:
         for k in (("cas", r.get("cas")), ("name", normalize_name(r["name"]))):
             if k[1] and k in keys:
                 drop.add(keys[k])
-    kept = df.drop(index=sorted(drop))
-    for col in df.columns:
-        if col not in mine.columns:
-            mine[col] = math.nan if df[col].dtype.kind in "fi" else ""
-    return pd.concat([kept, mine[df.columns]], ignore_index=True)
+    return [r for i, r in enumerate(rows) if i not in drop] + list(mine)
+
+
+@lru_cache(maxsize=4)
+def _sources_frame(tables_dir: Path):
+    import pandas as pd
+
+    return pd.DataFrame.from_records(list(_load_sources(tables_dir)), columns=list(SOURCE_COLUMNS))
 
 
 @lru_cache(maxsize=8)

@@ -136,7 +136,7 @@ def positive_list(cat, jurisdiction: str, use: str) -> str | None:
     if key not in _POSITIVE_CACHE:
         lists = {}
         if "jurisdictions" in cat.table_names:
-            for r in cat.table("jurisdictions").to_dict("records"):
+            for r in cat.rows("jurisdictions"):
                 for u in str(r.get("positive_list_uses") or "").split(";"):
                     if u.strip() and str(r.get("positive_list") or "").strip():
                         lists[(str(r["code"]).strip().upper(), u.strip())] = str(r["positive_list"]).strip()
@@ -335,8 +335,7 @@ def _all_limits(cat) -> tuple[Limit, ...]:
     cat = _catalog(cat)
     key = id(cat)
     if key not in _ROWS_CACHE:
-        df = cat.table("regulations")
-        _ROWS_CACHE[key] = tuple(_limit_from_row(r) for r in df.to_dict("records"))
+        _ROWS_CACHE[key] = tuple(_limit_from_row(r) for r in cat.rows("regulations"))
     return _ROWS_CACHE[key]
 
 
@@ -397,7 +396,7 @@ def purposes(cat=None) -> dict[str, Purpose]:
     cat = _catalog(cat)
     if id(cat) not in _PURPOSES_CACHE:
         try:
-            rows = cat.table("purposes").to_dict("records")
+            rows = cat.rows("purposes")
         except UnknownNameError:  # a tables folder without purposes: no purpose can be asked for
             rows = []
         _PURPOSES_CACHE[id(cat)] = {
@@ -474,7 +473,7 @@ def food_categories(cat=None) -> dict[str, FoodCategory]:
     if id(cat) in _CATS_CACHE:
         return dict(_CATS_CACHE[id(cat)])
     out = {}
-    for r in cat.table("food_categories").to_dict("records"):
+    for r in cat.rows("food_categories"):
         fc = FoodCategory(
             name=_text(r["category"]),
             parent=_text(r.get("parent")),
@@ -1125,7 +1124,7 @@ def claim_rules(cat=None, claim: str | None = None) -> list[dict]:
     The bundled rows are examples: the certifier's rules decide.
     """
     cat = _catalog(cat)
-    rows = cat.table("claims").to_dict("records")
+    rows = [dict(r) for r in cat.rows("claims")]
     if claim is None:
         return rows
     key = _norm(claim)
