@@ -19,6 +19,7 @@ import importlib
 import re
 import sys
 import warnings
+from typing import Sequence
 
 from .._version import __version__
 from ..errors import FileError, InputError, SolvselError, SolvselNote
@@ -87,7 +88,31 @@ def usage_error(prog: str, message: str) -> UsageError:
     return UsageError(f"{message} (see: {prog} --help)", param=param, value=value, expected=expected)
 
 
-def build_parser() -> argparse.ArgumentParser:
+#: Options of ``solvsel`` itself (before the command) that take a value.
+_VALUE_OPTIONS = ("--own-solvents", "--own-solutes", "--workspace")
+
+
+def command_of(argv: Sequence[str]) -> str | None:
+    """The command ``argv`` runs: its first word that is not an option or an option's value, if that
+    word is a command (None otherwise: no command, or one argparse must refuse).
+
+    >>> command_of(["--own-solvents", "blend", "rank", "--hsp", "17,3,8"]), command_of(["--version"])
+    ('rank', None)
+    """
+    takes_value = False
+    for word in argv:
+        if takes_value:
+            takes_value = False
+        elif word.startswith("--") and len(word) > 2 and "=" not in word:
+            takes_value = any(option.startswith(word) for option in _VALUE_OPTIONS)
+        elif not word.startswith("-"):
+            return word if word in COMMANDS else None
+    return None
+
+
+def build_parser(command: str | None = None) -> argparse.ArgumentParser:
+    """The parser of ``solvsel`` with every command, or with ``command`` alone (its module is the only
+    one imported: a command starts faster without loading the others')."""
     parser = _Parser(
         prog="solvsel",
         description=(
@@ -109,7 +134,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     parser.add_argument("--workspace", metavar="FILE", help=WORKSPACE_HELP)
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
-    for name in COMMANDS:
+    for name in COMMANDS if command is None else (command,):
         module = importlib.import_module(f"{__name__}.{name}")
         sp = module.register(sub)
         sp.add_argument("--workspace", metavar="FILE", default=argparse.SUPPRESS, help=WORKSPACE_HELP)
@@ -124,7 +149,7 @@ WORKSPACE_HELP = ("a workspace file (created if missing): its target, constraint
 def execute(argv: list[str] | None = None) -> int:
     """Parse ``argv`` and run its command; a user's error is raised (a :class:`SolvselError`)
     with the command it came from in ``cli_command``, so its options can be named."""
-    parser = build_parser()
+    parser = build_parser(command_of(argv))
     args, extra = parser.parse_known_args(argv)
     if extra:
         prog = f"solvsel {args.command}" if args.command else "solvsel"
