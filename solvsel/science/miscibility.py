@@ -54,6 +54,7 @@ from pathlib import Path
 
 import numpy as np
 
+from ..data.catalog import cache_dir
 from ..data.catalog import number_or_none as _num
 from . import hansen
 from ..errors import InputError, MissingDataError, OutOfRangeError, SolvselError, UnknownNameError
@@ -487,8 +488,9 @@ def _unifac_pair(sa, sb, temp_C: float, models: tuple[str, ...] = UNIFAC_ORDER):
     return (model, one_in_two, two_in_one) if flip else got
 
 
-@lru_cache(maxsize=16384)
 def _unifac_oriented(a: tuple[str, float], b: tuple[str, float], temp_C: float, models: tuple[str, ...]):
+    """The answer of :func:`_unifac_solve`, solved once per pair, temperature and order of parameter sets
+    (kept in memory and, with a cache folder, on disk)."""
     key, kept = _pair_key(a, b, temp_C, models), _disk_pairs()
     if key in kept:
         return None if kept[key] is None else tuple(kept[key])
@@ -528,9 +530,9 @@ def _unifac_solve(a: tuple[str, float], b: tuple[str, float], temp_C: float, mod
     return None
 
 
-# UNIFAC answers already solved, kept in cache_dir() beside the pair matrices (one JSON file per
-# version of the code): {folder: {pair key: [model, b in a, a in b] or None}}, and the keys added
-# since the file was last written.
+# UNIFAC answers already solved, kept in memory and in cache_dir() beside the pair matrices (one
+# JSON file per version of the code): {folder: {pair key: [model, b in a, a in b] or None}}, and the
+# keys added since the file was last written.
 _DISK_PAIRS: dict[str, dict] = {}
 _DISK_PAIRS_NEW: list[str] = []
 
@@ -552,6 +554,13 @@ def _unifac_code_key() -> str:
 
 
 def _unifac_file() -> Path | None:
+    return _unifac_file_for(os.environ.get("SOLVSEL_CACHE_DIR"), os.environ.get("XDG_CACHE_HOME"),
+                            os.environ.get("HOME"))
+
+
+@lru_cache(maxsize=8)
+def _unifac_file_for(*environment) -> Path | None:
+    """The file of UNIFAC answers in :func:`cache_dir` (which the ``environment`` variables decide)."""
     folder = cache_dir()
     return None if folder is None else folder / f"unifac_pairs_{_unifac_code_key()}.json"
 
@@ -1059,19 +1068,6 @@ class PairMatrix:
 #: Matrices of at least this many liquids are also kept on disk between runs (see :func:`pair_matrix`).
 DISK_CACHE_FROM = 30
 _MATRIX_ARRAYS = ("status", "measured", "limit", "chi", "chi_critical")
-
-
-def cache_dir() -> Path | None:
-    """The folder where solvsel keeps what it can recompute (None: no disk cache).
-
-    ``SOLVSEL_CACHE_DIR`` if set (empty: no disk cache), else
-    ``$XDG_CACHE_HOME/solvsel``, else ``~/.cache/solvsel``.
-    """
-    env = os.environ.get("SOLVSEL_CACHE_DIR")
-    if env is not None:
-        return Path(env) if env.strip() else None
-    base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
-    return Path(base) / "solvsel"
 
 
 def _matrix_key(cat, recs, temp_C: float) -> str:
