@@ -183,14 +183,16 @@ def pareto(blend: dict) -> FigureData | None:
     """Ra against cost of the blends of a blend search's JSON document (number of liquids where no
     cost is known), the trade-off front marked; None without blends.
 
-    ``data``: ``x_label``, ``points`` (``name``, ``x``, ``ra``, ``n_components``, ``front``).
+    ``data``: ``x_label``, ``points`` (``name``, ``x``, ``ra``, ``n_components``, ``front``, ``rank``: the
+    blend's place in the search's order, as numbered in the table of the blends shown).
     """
     seen: dict[str, dict] = {}
     for group, front in ((blend.get("results") or [], False), (blend.get("pareto") or [], True)):
         for b in group:
             name = _blend_name(b)
             p = seen.setdefault(name, {"name": name, "ra": _num(b.get("ra")), "cost": _num(b.get("cost")),
-                                       "n_components": int(b.get("n_components") or 0), "front": False})
+                                       "n_components": int(b.get("n_components") or 0), "front": False,
+                                       "rank": b.get("rank")})
             p["front"] = p["front"] or front or bool(b.get("pareto"))
     pts = [p for p in seen.values() if p["ra"] is not None]
     if not pts:
@@ -198,13 +200,14 @@ def pareto(blend: dict) -> FigureData | None:
     by_cost = any(p["cost"] is not None for p in pts)
     x_label = "cost class of the blend (1 cheap .. 5 dear, by volume)" if by_cost else "number of liquids"
     points = [{"name": p["name"], "x": p["cost"] if by_cost else float(p["n_components"]), "ra": p["ra"],
-               "n_components": p["n_components"], "front": p["front"]} for p in pts
+               "n_components": p["n_components"], "front": p["front"], "rank": p["rank"]} for p in pts
               if (p["cost"] if by_cost else p["n_components"]) is not None]
     caption = ("Each blend found: its distance Ra to the target against its "
                f"{'cost' if by_cost else 'number of liquids'}. Filled dots are on the trade-off front (no other "
                "blend is better in fit, cost, hazard and number of liquids at once), so one may look beaten in "
                "this plane by a blend that is worse in hazard or size.")
-    return FigureData("pareto", "Blends: fit against cost", caption, {"x_label": x_label, "points": points})
+    return FigureData("pareto", f"Blends: fit against {'cost' if by_cost else 'number of liquids'}", caption,
+                      {"x_label": x_label, "points": points})
 
 
 def extraction_heatmap(strengths: Sequence[float], temps_C: Sequence[float], values: Sequence[Sequence[float]],

@@ -5,11 +5,17 @@ purpose, largest blend, lowest flash point, boiling window, temperature,
 liquids left out, solutes to keep out): the form becomes a request of the ``rank`` job
 (:mod:`solvsel.jobs.rank`) and one of the ``blend`` job (:mod:`solvsel.jobs.blend`);
 the blend search runs in a cancellable thread worker that posts
-:class:`BlendProgress` and :class:`BlendDone` messages.  Blends dropped by a
-check, and liquids left out of the pool, are listed with their reasons.
+:class:`BlendProgress` (one bar over every step of the search: the combinations, the
+checks, the description of the blends shown) and :class:`BlendDone` messages.  Blends
+dropped by a check, and liquids left out of the pool, are listed with their reasons;
+the blends' trade-off front is drawn beside them (:mod:`.tradeoff`).  For the selected
+liquid or blend, a panel answers whether the target dissolves at its load and whether
+the drink stays clear (the ``load`` and ``clarity`` jobs, :mod:`.carrier_checks`).
 """
 
 from __future__ import annotations
+
+import time
 
 from rich.text import Text
 from textual import work
@@ -20,9 +26,10 @@ from textual.message import Message
 from textual.widgets import Button, DataTable, Input, Label, ProgressBar, Select, Static, TabbedContent, TabPane
 from textual.worker import Worker, WorkerState, get_current_worker
 
+from . import carrier_checks
 from .base import BenchScreen
 from .limits import NO_PURPOSE, audit_text, purpose_choices, purpose_value
-from .widgets import CautionBox, FollowingTabs, fill_table
+from .widgets import BrailleMap, CautionBox, FollowingTabs, fill_table
 
 # Verdicts first, names last (cut first where the screen is narrow; the detail pane has them whole).
 RANK_HEADERS = ("#", "Ra MPa½", "RED", "allowed", "flammable", "health", "how sure", "carries", "flash °C",
@@ -33,9 +40,20 @@ EXCLUDED_HEADERS = ("why it is not in the pool", "liquid")
 OPTIONAL = ("carries", "how sure", "health")
 #: Columns that give way to the names on a narrow screen, first to last (the detail pane has them).
 SPARE = ("cost", "boils °C", "how sure", "flash °C", "health")
-#: Weight of counting the combinations in the one bar over the search (the checks and the
-#: description of the best blends after it report no count of their own).
-COUNT_SHARE = 0.6
+#: Cells a blend's liquids and fractions keep before the spare columns give way (two liquids whole).
+BLEND_ROOM = 46
+#: The steps of a blend search in its one bar (as the ``blend`` job reports them): where each starts on the
+#: bar, its share of it (about its share of the time of a wide search), and how the status line says it.
+STEPS = {
+    "combinations": (0.0, 0.4, "step 1 of 3: exact fractions, {done:,} of {total:,} combinations"),
+    "checks": (0.4, 0.45, "step 2 of 3: checking the best blends (one phase, limits, load), {done} of the {total} "
+                          "wanted passed"),
+    "describing": (0.85, 0.15, "step 3 of 3: describing the blends shown, {done} of {total}"),
+}
+#: Least time between two progress messages of a step [s] (the first and the last of each always go).
+PROGRESS_EVERY = 0.05
+#: The tabs whose lists a new search replaces (labelled as old while it runs).
+SEARCH_TABS = {"tab-blends": "Blends", "tab-front": "Trade-off", "tab-dropped": "Dropped", "tab-excluded": "Left out"}
 
 USE_CHOICES = [("carrier (flavour carrier)", "carrier"), ("extraction", "extraction"), ("bench", "bench"),
                ("any liquid of the table", "any")]
@@ -50,11 +68,12 @@ def jurisdiction_choices(cat) -> list[tuple[str, str]]:
 
 
 class BlendProgress(Message):
-    """The blend search moved on: ``done`` of ``total`` steps (``total`` None: not known)."""
+    """The blend search moved on: ``done`` of ``total`` of its step ``step`` (a key of :data:`STEPS`; "" before
+    the first, ``total`` None: not known)."""
 
-    def __init__(self, done: float, total: float | None, text: str, search: int = 0) -> None:
+    def __init__(self, done: float, total: float | None, text: str, search: int = 0, step: str = "") -> None:
         super().__init__()
-        self.done, self.total, self.text, self.search = done, total, text, search
+        self.done, self.total, self.text, self.search, self.step = done, total, text, search, step
 
 
 class BlendDone(Message):
@@ -65,6 +84,14 @@ class BlendDone(Message):
         self.result = result
         self.cancelled = cancelled
         self.search = search
+
+
+class ChecksDone(Message):
+    """The load and clarity checks of selection ``key`` answered: each a result or the user's mistake."""
+
+    def __init__(self, key: int, load, clear) -> None:
+        super().__init__()
+        self.key, self.load, self.clear = key, load, clear
 
 
 class BlendFailed(Message):
@@ -92,12 +119,14 @@ class CarriersScreen(BenchScreen):
     MODE = "carriers"
     FORM = "constraints"
     TABS = "carrier-tabs"
+    #: Below 36 rows (a laptop) the detail panes give the lists and the picture more room.
+    VERTICAL_BREAKPOINTS = [(0, "-short"), (36, "-tall")]
     #: The form's labels of the request fields (an error about a field names it by its label).
     FIELD_LABELS = {
         "temp_C": "temperature", "min_flash_C": "lowest flash point", "bp_min_C": "boiling window",
         "bp_max_C": "boiling window", "exclude": "leave out", "rejects": "keep out of solution",
         "use": "use", "jurisdiction": "jurisdiction", "max_components": "largest blend (liquids)",
-        "purpose": "the product is for", "load": "load of the target",
+        "purpose": "the product is for", "load": "load of the target", **carrier_checks.FIELD_LABELS,
     }
     BINDINGS = [
         Binding("ctrl+r", "search", "Search blends", priority=True),
@@ -113,9 +142,12 @@ class CarriersScreen(BenchScreen):
         self.worker: Worker | None = None
         self.messages: list[Message] = []  # typed messages seen (for the tests and the status line)
         self.search_no = 0  # the search whose messages count (those of an older one are ignored)
-        self.search_started = 0.0  # monotonic time the search in progress started
-        self._ticker = None
         self.stale = False  # the lists on screen are those of the previous search
+        self.checks_no = 0  # the selection whose checks count
+        self.checks = None  # ChecksDone of the selection shown (the load and clarity answers)
+        self.selected = None  # the ranked liquid or blend shown in the detail pane
+        self.checks_label = ""  # its name, as the checks panel heads its answers
+        self.front = None  # the trade-off front's figure data (jobs.figures.pareto) of the blends shown
 
     def compose(self) -> ComposeResult:
         yield from self.compose_frame_top()
@@ -143,10 +175,11 @@ class CarriersScreen(BenchScreen):
                 yield Input(value="25", id="temp", compact=True)
                 yield Label("Leave out (names, commas)")
                 yield Input(placeholder="e.g. benzyl alcohol", id="exclude", compact=True)
-                yield Label("Keep out of solution (solutes)")
+                yield Label("Keep out (solutes, commas)")
                 yield Input(placeholder="e.g. chlorophyll a, sucrose", id="rejects", compact=True)
-                yield Label("Load of the target, % by mass")
-                yield Input(placeholder="e.g. 5% (checked from 4 to 25 C)", id="load", compact=True)
+                yield Label("Load of the target, % mass")
+                yield Input(placeholder="e.g. 5%", id="load", compact=True)
+                yield from carrier_checks.compose_fields()
                 yield Button("Search blends  ^R", id="run-search", variant="primary", compact=True)
             with Vertical(id="carriers-main"):
                 with FollowingTabs(id="carrier-tabs", initial="tab-blends"):
@@ -154,6 +187,11 @@ class CarriersScreen(BenchScreen):
                         yield DataTable(id="rank-grid", cursor_type="row", zebra_stripes=True)
                     with TabPane("Blends", id="tab-blends"):
                         yield DataTable(id="blend-grid", cursor_type="row", zebra_stripes=True)
+                    with TabPane("Trade-off", id="tab-front"):
+                        with Horizontal(id="front-body"):
+                            yield BrailleMap(id="front-map")
+                            with VerticalScroll(id="front-legend-pane"):
+                                yield Static("", id="front-legend")
                     with TabPane("Dropped", id="tab-dropped"):
                         yield DataTable(id="dropped-grid", cursor_type="row", zebra_stripes=True)
                     with TabPane("Left out", id="tab-excluded"):
@@ -164,8 +202,11 @@ class CarriersScreen(BenchScreen):
                 with Horizontal(id="carrier-lower"):
                     with VerticalScroll(id="carrier-detail-pane"):
                         yield Static("", id="carrier-detail")
-                    with VerticalScroll(id="carrier-cautions-pane"):
-                        yield CautionBox(id="carrier-cautions", classes="cautions")
+                    with Vertical(id="carrier-side"):
+                        with VerticalScroll(id="carrier-checks-pane"):
+                            yield Static("", id="carrier-checks")
+                        with VerticalScroll(id="carrier-cautions-pane"):
+                            yield CautionBox(id="carrier-cautions", classes="cautions")
         yield from self.compose_frame_bottom()
 
     def on_mount(self) -> None:
@@ -326,28 +367,28 @@ class CarriersScreen(BenchScreen):
                      + "; ".join(f"{d.name}: {d.brief}" for d in self.ranking.dropped[:2]) + ")\n", style="dim")
         t.append_text(audit_text(self.ranking.audit))
         self.query_one("#carrier-detail", Static).update(t)
+        self.selected = r
         self.show_cautions(r)
+        self.check_selection(r)
 
     # ---------------------------------------------------------------- blends (worker)
     def start_search(self, req) -> None:
-        import time
-
         if self.worker is not None and self.worker.state in (WorkerState.PENDING, WorkerState.RUNNING):
             self.worker.cancel()
         self.search_no += 1
-        self.search_started = time.monotonic()
         self.set_stale(self.result is not None)
         self.query_one("#search-progress", ProgressBar).update(total=100, progress=0)
         self.status("searching blends: the pool and its constraints (Esc cancels)")
         self.show_summary()
-        if self._ticker is None:
-            self._ticker = self.set_interval(0.5, self.tick, pause=False)
         self.worker = self.search_worker(req, self.search_no)
 
     def set_stale(self, stale: bool) -> None:
-        """Grey the blend lists (and say so) while they are those of the previous search."""
-        for grid_id in ("#blend-grid", "#dropped-grid", "#excluded-grid"):
-            self.query_one(grid_id, DataTable).set_class(stale, "-stale")
+        """Grey the blend lists and label their tabs as old while they are those of the previous search."""
+        for grid_id in ("#blend-grid", "#dropped-grid", "#excluded-grid", "#front-map"):
+            self.query_one(grid_id).set_class(stale, "-stale")
+        tabs = self.query_one("#carrier-tabs", TabbedContent)
+        for pane, label in SEARCH_TABS.items():
+            tabs.get_tab(pane).label = f"{label} (old)" if stale else label
         self.stale = stale
 
     def status(self, text: str) -> None:
@@ -358,17 +399,6 @@ class CarriersScreen(BenchScreen):
     def searching(self) -> bool:
         return self.worker is not None and self.worker.state in (WorkerState.PENDING, WorkerState.RUNNING)
 
-    def tick(self) -> None:
-        """After the count: say how long the checks have run (they report no count of their own)."""
-        import time
-
-        bar = self.query_one("#search-progress", ProgressBar)
-        if not self.searching() or bar.progress < 100 * COUNT_SHARE:
-            return
-        seconds = time.monotonic() - self.search_started
-        self.status(f"step 2 of 2: checking the best blends (one phase, limits) and describing them, {seconds:.0f} s "
-                    "so far (Esc cancels)")
-
     @work(thread=True, exclusive=True, group="blends", exit_on_error=False)
     def search_worker(self, req, search: int = 0) -> None:
         """Run the ``blend`` job off the UI thread (its name look-ups may reach the reference library)."""
@@ -378,17 +408,21 @@ class CarriersScreen(BenchScreen):
         worker = get_current_worker()
         self.post_message(BlendProgress(0, None, f"pool and constraints; blends of up to {req.max_components} liquids",
                                         search))
+        last = {"step": "", "at": 0.0}
 
-        def progress(done, total):
-            # the engine calls this after each batch of combinations; False stops it
+        def step_progress(step: str, done: int, total: int) -> bool:
+            # the job calls this through every step of the search; False stops it at once
             if worker.is_cancelled:
                 return False
-            self.post_message(BlendProgress(done, total, f"step 1 of 2: exact fractions, {done:,} of {total:,} "
-                                                         "combinations (Esc cancels)", search))
+            now = time.monotonic()
+            if step != last["step"] or done >= total or now - last["at"] >= PROGRESS_EVERY:
+                last.update(step=step, at=now)
+                text = STEPS[step][2].format(done=done, total=total) + " (Esc cancels)"
+                self.post_message(BlendProgress(done, total, text, search, step))
             return True
 
         try:
-            res = blend_job.blend(req, catalog=self.session.catalog, progress=progress)
+            res = blend_job.blend(req, catalog=self.session.catalog, step_progress=step_progress)
         except SolvselError as exc:
             self.post_message(BlendFailed(exc, search))
             return
@@ -427,11 +461,10 @@ class CarriersScreen(BenchScreen):
         if message.search != self.search_no:
             return
         self.messages.append(message)
-        share = COUNT_SHARE * message.done / message.total if message.total else 0.0
-        self.query_one("#search-progress", ProgressBar).update(total=100, progress=100 * share)
+        start, share, _ = STEPS.get(message.step, (0.0, 0.0, ""))
+        part = min(1.0, message.done / message.total) if message.total else 0.0
+        self.query_one("#search-progress", ProgressBar).update(total=100, progress=100 * (start + share * part))
         self.status(message.text)
-        if message.total and message.done >= message.total:
-            self.tick()
 
     def on_blend_failed(self, message: BlendFailed) -> None:
         if message.search != self.search_no:
@@ -457,10 +490,11 @@ class CarriersScreen(BenchScreen):
         self.session.blends = res
         c = res.counts
         self.query_one("#search-status", Static).update(
-            f"{c.get('combinations', 0)} combinations of {c.get('liquids', 0)} liquids, exact fractions; "
-            f"{len(res.results)} shown, {len(res.dropped)} dropped, {len(res.excluded)} liquids left out"
+            f"{len(res.results)} blends shown · {len(res.dropped)} dropped · {len(res.excluded)} liquids left out · "
+            f"{c.get('combinations', 0):,} combinations of {c.get('liquids', 0)} liquids"
             + ("" if res.success else f"; {res.message}"))
         self.fill_blends(res)
+        self.draw_front(res)
 
     def fill_blends(self, res) -> None:
         rejects = any(b.rejects for b in res.results)
@@ -479,7 +513,8 @@ class CarriersScreen(BenchScreen):
             rows.append(row + [_phase(b, short=True), _short_hazard(b), _health(_nth(res.health, i)),
                                _sure(_nth(res.sure, i)), _carries(_nth(res.loads, i)), _fmt(b.lowest_flash_C, ".0f"), _bp(b),
                                _fmt(b.cost, ".1f"), b.label + (f" (+{len(b.alternatives)} alike)" if b.alternatives else "")])
-        fill_table(self.query_one("#blend-grid", DataTable), cols, rows, cut=-1, optional=OPTIONAL, spare=SPARE)
+        fill_table(self.query_one("#blend-grid", DataTable), cols, rows, cut=-1, optional=OPTIONAL, spare=SPARE,
+                   name_room=BLEND_ROOM)
         fill_table(self.query_one("#dropped-grid", DataTable), DROPPED_HEADERS, [
             (_fmt(d.ra), d.reason, " + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions)))
             for d in res.dropped], cut=1)
@@ -490,6 +525,76 @@ class CarriersScreen(BenchScreen):
         else:
             self.query_one("#carrier-detail", Static).update(f"No blend: {res.message}")
             self.show_cautions()
+
+    def draw_front(self, res) -> None:
+        """The trade-off front of the blends found, from the figure data the report draws too."""
+        from ..jobs.figures import pareto
+
+        self.front = pareto(res.to_dict()) if res.results else None
+        pic = self.query_one("#front-map", BrailleMap)
+        legend = self.query_one("#front-legend", Static)
+        if self.front is None:
+            pic.data = None
+            legend.update(f"No blend to draw: {res.message}")
+            return
+        from .tradeoff import front_legend, front_map
+
+        pic.data = front_map(self.front)
+        pic.border_title = f"Ra against {self.front.data['x_label']}"
+        legend.update(front_legend(self.front))
+
+    def on_braille_map_cursor_moved(self, message: BrailleMap.CursorMoved) -> None:
+        self.query_one("#front-map", BrailleMap).border_subtitle = (
+            f"under the cursor: {message.names}" if message.names else "arrow keys: a cursor that names the blends")
+
+    # ---------------------------------------------------------------- the load and clarity checks
+    def check_selection(self, selected) -> None:
+        """Ask the ``load`` and ``clarity`` jobs about the selected liquid or blend (in the worker); what the
+        form lacks for them, or a mistake in it, is said in the panel."""
+        from ..errors import SolvselError
+
+        self.checks_no += 1
+        self.checks = None
+        carrier = carrier_checks.carrier_of(selected)
+        reqs = carrier_checks.requests(self.session.target, carrier, _text(self, "#load"), _text(self, "#storage"),
+                                       _text(self, "#drink-dose"), _text(self, "#drink-chain"),
+                                       _text(self, "#drink-brix"))
+        self.checks_label = carrier.label
+        if all(isinstance(r, SolvselError) for r in reqs):  # nothing to ask: say what is missing at once
+            self.on_checks_done(ChecksDone(self.checks_no, *reqs))
+            return
+        self.query_one("#carrier-checks", Static).update(Text("checking ...", style="dim"))
+        self.checks_worker(self.checks_no, *reqs)
+
+    @work(thread=True, exclusive=True, group="checks", exit_on_error=False)
+    def checks_worker(self, key: int, load_req, clarity_req) -> None:
+        """Run the ``load`` and ``clarity`` jobs off the UI thread; each answer, or the user's mistake, is posted."""
+        from ..errors import SolvselError
+        from ..jobs.clarity import clarity
+        from ..jobs.load import load
+
+        answers = []
+        for job, req in ((load, load_req), (clarity, clarity_req)):
+            try:  # a request the form could not build is its error, passed on as it is
+                answers.append(req if isinstance(req, SolvselError) else job(req, catalog=self.session.catalog))
+            except SolvselError as exc:
+                answers.append(exc)
+        self.post_message(ChecksDone(key, *answers))
+
+    def on_checks_done(self, message: ChecksDone) -> None:
+        from ..errors import SolvselError
+
+        if message.key != self.checks_no:
+            return  # the answer for a selection left since
+        self.checks = message
+        t = Text()
+        for question, answer, say in (("Dissolves?", message.load, carrier_checks.load_text),
+                                      ("Drink stays clear?", message.clear, carrier_checks.clarity_text)):
+            t.append_text(carrier_checks.error_text(question, answer, self.FIELD_LABELS)
+                          if isinstance(answer, SolvselError) else say(answer))
+        self.query_one("#carrier-checks", Static).update(t)
+        self.query_one("#carrier-checks-pane").border_title = f"in {self.checks_label}"
+        self.show_cautions(self.selected)
 
     # ---------------------------------------------------------------- detail and cautions
     GRID_TAB = {"rank-grid": "tab-single", "blend-grid": "tab-blends", "dropped-grid": "tab-dropped",
@@ -542,6 +647,8 @@ class CarriersScreen(BenchScreen):
             t.append(f"  {c.name:<{width}}  {c.volume_fraction:.3f}   {mf}\n")
         if len(b.components) > 1:
             t.append(f"one phase: {_phase(b)}  {b.phase_note}\n", style="dim")
+        t.append(f"flash point of its most flammable liquid {_fmt(b.lowest_flash_C, '.0f')} C · boils {_bp(b)} C · "
+                 f"cost class {_fmt(b.cost, '.1f')} (1 cheap .. 5 dear)\n")
         if b.alternatives:
             t.append(f"the same blend with {', '.join(b.swapped_in)} in place (same HSP; cost, hazard and food-law "
                      "status may differ)\n")
@@ -562,7 +669,9 @@ class CarriersScreen(BenchScreen):
             t.append(line + "\n", style="italic")
         t.append_text(audit_text(self.result.audit if self.result is not None else None))
         self.query_one("#carrier-detail", Static).update(t)
+        self.selected = b
         self.show_cautions(b)
+        self.check_selection(b)
 
     def show_cautions(self, selected=None) -> None:
         """The selected liquid's or blend's own cautions, then those of the list it is in that belong
@@ -571,6 +680,8 @@ class CarriersScreen(BenchScreen):
         res = self.result if selected is None or hasattr(selected, "components") else self.ranking
         res = res if res is not None else (self.result or self.ranking)
         cautions = list(selected.cautions) if selected is not None else []
+        if selected is not None and selected is self.selected and self.checks is not None:
+            cautions += [c for answer in (self.checks.load, self.checks.clear) for c in getattr(answer, "cautions", ())]
         if res is not None:
             own = {c for row in res.results for c in row.cautions} | set(getattr(res, "liquid_cautions", ()))
             cautions += [c for c in res.cautions if c not in own]

@@ -130,7 +130,8 @@ _DOT = ((0x01, 0x08), (0x02, 0x10), (0x04, 0x20), (0x40, 0x80))  # [row][col] in
 class MapPoint:
     x: float
     y: float
-    kind: str = "liquid"  # "liquid", "top" (named on the map), "blend" (its mark only), "target"
+    kind: str = "liquid"  # "liquid", "top" (named on the map), "blend" (its mark only), "other" (its mark in
+    # grey, named under the cursor only), "target"
     mark: str = ""  # a character drawn instead of a dot (e.g. the rank)
     label: str = ""
 
@@ -146,23 +147,33 @@ class MapData:
     title: str = ""
     window: tuple[float, float, float, float] | None = None  # x0, x1, y0, y1 to show (None: everything)
     extra: dict = field(default_factory=dict)
+    #: one unit as long on both axes (a map of Hansen space); False: each axis fills its room (a plot
+    #: of two different quantities)
+    equal: bool = True
 
 
 @dataclass(frozen=True)
 class Axes:
     """The one transform from data to the screen, used for the points, the circle, the ticks and their
     labels alike: ``x0`` at the left edge of cell 0, ``y1`` at the top edge of row 0, ``scale`` braille
-    dots a unit on both axes (a dot is about square, so circles stay round)."""
+    dots a unit across and ``yscale`` down (None: ``scale``, the same on both axes; a dot is about square,
+    so circles stay round)."""
 
     x0: float
     y1: float
     scale: float
     cols: int
     rows: int
+    yscale: float | None = None
+
+    @property
+    def ys(self) -> float:
+        """Braille dots a unit down."""
+        return self.scale if self.yscale is None else self.yscale
 
     def dot(self, x: float, y: float) -> tuple[int, int]:
         """(dot column, dot row) of a data point (2 dots a cell across, 4 down)."""
-        return math.floor((x - self.x0) * self.scale), math.floor((self.y1 - y) * self.scale)
+        return math.floor((x - self.x0) * self.scale), math.floor((self.y1 - y) * self.ys)
 
     def cell(self, x: float, y: float) -> tuple[int, int]:
         """(row, column) of the cell a data point falls in."""
@@ -178,13 +189,16 @@ class Axes:
 
     @property
     def y0(self) -> float:
-        return self.y1 - 4 * self.rows / self.scale
+        return self.y1 - 4 * self.rows / self.ys
 
 
-def make_axes(bounds: tuple[float, float, float, float], cols: int, rows: int) -> Axes:
-    """Axes showing ``bounds`` (x0, x1, y0, y1) in ``cols`` x ``rows`` cells, equal units, centred."""
+def make_axes(bounds: tuple[float, float, float, float], cols: int, rows: int, equal: bool = True) -> Axes:
+    """Axes showing ``bounds`` (x0, x1, y0, y1) in ``cols`` x ``rows`` cells: equal units, centred; or, not
+    ``equal``, each axis filling its room."""
     x0, x1, y0, y1 = bounds
     w, h = max(x1 - x0, 1e-9), max(y1 - y0, 1e-9)
+    if not equal:
+        return Axes(x0, y1, 2 * cols / w, cols, rows, 4 * rows / h)
     scale = min(2 * cols / w, 4 * rows / h)
     x0 -= (2 * cols / scale - w) / 2
     y1 += (4 * rows / scale - h) / 2
@@ -255,7 +269,8 @@ class BrailleMap(Widget, can_focus=True):
             super().__init__()
             self.names = names
 
-    STYLES = {"liquid": "#8a9bb0", "top": "bold #f0c05a", "blend": "bold #d9a441", "target": "bold #ff6f61", "circle": "#5fb3a8",
+    STYLES = {"liquid": "#8a9bb0", "top": "bold #f0c05a", "blend": "bold #d9a441", "other": "#8a9bb0",
+              "target": "bold #ff6f61", "circle": "#5fb3a8",
               "axis": "#6b7280", "name": "#f0c05a", "cursor": "reverse"}
     LEFT, BOTTOM = 6, 2  # cells of the y labels and of the x axis with its labels
 
@@ -279,7 +294,7 @@ class BrailleMap(Widget, can_focus=True):
         width, height = self.size.width, self.size.height
         if self.data is None or width < 20 or height < 6:
             return None
-        return make_axes(self._bounds(self.data), width - self.LEFT - 1, height - self.BOTTOM)
+        return make_axes(self._bounds(self.data), width - self.LEFT - 1, height - self.BOTTOM, self.data.equal)
 
     def _draw(self, d: MapData, ax: Axes) -> _Canvas:
         cv = _Canvas(ax.cols, ax.rows)
@@ -300,7 +315,7 @@ class BrailleMap(Widget, can_focus=True):
                 cv.dot(px, py, "liquid")
                 cv.dot(px + 1, py, "liquid")
         marked = [p for p in d.points if p.kind != "liquid"]
-        marked.sort(key=lambda p: p.kind != "target")  # the target first: nothing covers it
+        marked.sort(key=lambda p: (p.kind != "target", p.kind == "other"))  # the target first: nothing covers it
         groups: dict[tuple[int, int], list[MapPoint]] = {}  # points that fall in one cell share its mark
         for p in marked:
             r, c = ax.cell(p.x, p.y)
@@ -309,7 +324,7 @@ class BrailleMap(Widget, can_focus=True):
         for (r, c), ps in groups.items():
             cv.put(r, c, ps[0].mark or ("+" if ps[0].kind == "target" else "*"), self.STYLES[ps[0].kind])
         for (r, c), ps in groups.items():  # then the names, where they fit without touching another
-            named = [p for p in ps if p.label and p.kind != "blend"]
+            named = [p for p in ps if p.label and p.kind not in ("blend", "other")]
             if named:
                 more = f" (+{len(named) - 1})" if len(named) > 1 else ""
                 cv.label(r, c, shorten(named[0].label, 24) + more,
@@ -525,7 +540,7 @@ NAME_ROOM = 28
 
 
 def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str, ...] = (),
-               spare: tuple[str, ...] = ()) -> None:
+               spare: tuple[str, ...] = (), name_room: int = NAME_ROOM) -> None:
     """Replace a DataTable's columns and rows, each column as wide as its widest cell.
 
     The widths are set here, from the cells, rather than left to the table's
@@ -535,7 +550,7 @@ def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str,
     text is shortened, with an ellipsis, so that the table fits the width it
     has; every other column stays whole.  Columns named in ``optional`` are left out when every
     row has "-" in them; those named in ``spare`` (in that order) are left out where the screen is too
-    narrow to give the cut column :data:`NAME_ROOM` cells (the detail pane shows them).
+    narrow to give the cut column ``name_room`` cells (the detail pane shows them).
     """
     from rich.cells import cell_len
 
@@ -554,7 +569,7 @@ def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str,
     if cut is not None and spare:  # columns the detail pane also shows give way to the name first
         k = cut % len(headers)
         for name in spare:
-            need = min(widths[k], NAME_ROOM)
+            need = min(widths[k], name_room)
             if name not in headers or room - sum(w + 2 for i, w in enumerate(widths) if i != k) - 2 >= need:
                 continue
             i = headers.index(name)
