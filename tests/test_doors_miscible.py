@@ -22,10 +22,14 @@ CASES = [
     dict(liquids=("water", "ethanol", "d-limonene"), fractions=(0.3, 0.6, 0.1)),
     dict(liquids=("d-limonene", "water"), bridge=True, food=True),
     # a predicted split named both ways round (the window flips, nothing else changes), and a
-    # decisive predicted "no" (both predicted solubilities under the stated level)
+    # predicted split of a glycol and an oil (Flory-Huggins from HSP: the oil is a mixture)
     dict(liquids=("sunflower oil", "ethylene glycol")),
     dict(liquids=("ethylene glycol", "sunflower oil")),
     dict(liquids=("propylene glycol", "olive oil")),
+    # pairs predicted by UNIFAC-LLE from the structures: a window, and a decisive "no" (both
+    # predicted solubilities under the stated level)
+    dict(liquids=("glycerol", "ethyl acetate")),
+    dict(liquids=("ethylene glycol", "toluene")),
 ]
 
 
@@ -41,8 +45,8 @@ def _argv(case):
 
 
 def _essentials(d):
-    out = {"one_phase": d["one_phase"], "basis": d["basis"],
-           "pairs": [(tuple(p["liquids"]), p["one_phase"], p["basis"], p["chi"],
+    out = {"one_phase": d["one_phase"], "basis": d["basis"], "model": d["model"],
+           "pairs": [(tuple(p["liquids"]), p["one_phase"], p["basis"], p["model"], p["chi"],
                       None if not p["window"] else (p["window"].get("b_in_a_max"), p["window"].get("a_in_b_max")))
                      for p in d["pairs"]]}
     if "blend" in d:
@@ -122,4 +126,9 @@ def test_the_window_of_a_pair_named_both_ways_round():
     assert ab["one_phase"] == ba["one_phase"] == "no" and ab["window"] and ba["window"]
     assert ab["window"]["b_in_a_max"] == ba["window"]["a_in_b_max"]
     assert ab["window"]["a_in_b_max"] == ba["window"]["b_in_a_max"]
-    assert solvsel.miscible(liquids=("propylene glycol", "olive oil")).one_phase == "no"
+    # a decisive predicted "no": both predicted mutual solubilities under the stated level
+    from solvsel.science.miscibility import IMMISCIBLE_BELOW_WT
+
+    no = solvsel.miscible(liquids=("ethylene glycol", "toluene"))
+    assert no.one_phase == "no" and no.basis == "predicted" and no.model.startswith("UNIFAC-LLE")
+    assert 100 * max(no.window["b_in_a_max"], no.window["a_in_b_max"]) < IMMISCIBLE_BELOW_WT

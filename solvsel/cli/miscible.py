@@ -14,7 +14,8 @@ def register(sub):
         "miscible",
         help="say if two or more liquids form one phase (measured or predicted)",
         description="Say whether liquids form one phase: from the measured pairs of the table where there "
-        "is one (about 25 C), else predicted by Flory-Huggins from Hansen parameters (labelled as such). "
+        "is one (about 25 C), else predicted (labelled as such, with the model): by UNIFAC from the two "
+        "liquids' structures, or by Flory-Huggins from Hansen parameters for mixtures such as vegetable oils. "
         "Partial pairs show the one-phase window. With --fractions, check a blend at those volume "
         "fractions; with --bridge, list liquids that mix with both of two liquids.",
     )
@@ -62,10 +63,11 @@ def run(args) -> int:
         return 0
     out = result.to_dict()
     pairs = out["pairs"]
-    rows = [{"a": v.liquids[0], "b": v.liquids[1], "one": v.one_phase, "basis": v.basis, "window": _window_text(v),
-             "chi": v.chi, "chic": v.chi_critical} for v in result.pairs]
+    rows = [{"a": v.liquids[0], "b": v.liquids[1], "one": v.one_phase, "basis": v.basis, "model": v.model or "-",
+             "window": _window_text(v), "chi": v.chi, "chic": v.chi_critical} for v in result.pairs]
     print_table(rows, [("a", "liquid a"), ("b", "liquid b"), ("one", "one phase"), ("basis", "basis"),
-                       ("window", "one-phase window"), ("chi", "chi", ".2f"), ("chic", "chi crit", ".2f")])
+                       ("model", "predicted by"), ("window", "one-phase window"), ("chi", "chi", ".2f"),
+                       ("chic", "chi crit", ".2f")])
     if "blend" in out:
         b = out["blend"]
         fr = ", ".join(f"{n} {100 * f:.1f} %" for n, f in zip(b["liquids"], b["volume_fractions"]))

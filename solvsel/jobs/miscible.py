@@ -1,8 +1,9 @@
 """Do these liquids form one phase, and why: the ``miscible`` job.
 
 Two or more liquids are checked pair by pair (the measured pairs of
-``tables/miscibility.csv`` first, Flory-Huggins from Hansen parameters
-otherwise, each verdict saying which); with volume fractions, the blend is
+``tables/miscibility.csv`` first; otherwise predicted, by UNIFAC from the two
+liquids' structures or, for mixtures such as vegetable oils, by Flory-Huggins
+from Hansen parameters; each verdict says its basis and model); with volume fractions, the blend is
 checked at those fractions (pairwise, then as a whole for three or four
 liquids); with ``bridge``, the liquids that mix in all proportions with both of
 two liquids are listed, best evidence first (from the food carriers of the
@@ -27,7 +28,8 @@ __all__ = ["MiscibleRequest", "MiscibleResult", "miscible", "CAUTION"]
 
 #: The caution every miscibility answer carries.
 CAUTION = (
-    "Miscibility predicted from HSP is a screening estimate; measured pairs win. Check blends at the bench "
+    "Predicted miscibility (UNIFAC from the structures, or HSP for mixtures) is a screening estimate; measured "
+    "pairs win. Check blends at the bench "
     "at the temperatures of use and storage (cold can split a blend)."
 )
 
@@ -103,8 +105,9 @@ class MiscibleResult:
 
     ``one_phase`` is "yes", "partial" or "no" (for a blend at fractions: "yes"
     or "no"); ``basis`` "measured" when every pair is measured, else
-    "predicted" (or the blend test's basis); ``window``, ``chi`` and
-    ``chi_critical`` are those of the pair furthest from mixing.
+    "predicted" (or the blend test's basis); ``window``, ``chi``,
+    ``chi_critical`` and ``model`` (what predicted it, "" when measured) are
+    those of the pair furthest from mixing.
     """
 
     liquids: tuple[str, ...]
@@ -118,6 +121,7 @@ class MiscibleResult:
     note: str
     blend: BlendPhase | None = None
     bridges: tuple[Bridge, ...] | None = None
+    model: str = ""
     cautions: tuple[str, ...] = (CAUTION,)
     #: version, tables' checksum and the food-law rules applied (to the bridging liquids, with ``food``)
     audit: dict = field(default_factory=dict)
@@ -133,6 +137,7 @@ class MiscibleResult:
                 "liquids": list(self.liquids), "one_phase": self.one_phase, "basis": self.basis,
                 "window": self.window, "chi": self.chi, "chi_critical": self.chi_critical,
                 "temp_C": self.temp_C, "pairs": [p.to_dict() for p in self.pairs], "note": self.note,
+                "model": self.model,
             }
         if self.blend is not None:
             out["blend"] = self.blend.to_dict()
@@ -143,10 +148,10 @@ class MiscibleResult:
         return out
 
     def to_frame(self):
-        """One row per pair: liquids, verdict, basis, chi and critical chi."""
+        """One row per pair: liquids, verdict, basis, model, chi and critical chi."""
         return frame(({"a": p.liquids[0], "b": p.liquids[1], "one_phase": p.one_phase, "basis": p.basis,
-                       "chi": p.chi, "chi_critical": p.chi_critical} for p in self.pairs),
-                     ["a", "b", "one_phase", "basis", "chi", "chi_critical"])
+                       "model": p.model, "chi": p.chi, "chi_critical": p.chi_critical} for p in self.pairs),
+                     ["a", "b", "one_phase", "basis", "model", "chi", "chi_critical"])
 
 
 def _together(req: MiscibleRequest, verdicts: list[PairVerdict]) -> dict[str, Any]:
@@ -154,9 +159,9 @@ def _together(req: MiscibleRequest, verdicts: list[PairVerdict]) -> dict[str, An
     one = max((v.one_phase for v in verdicts), key=_ORDER.get)
     if len(verdicts) == 1:
         return {"one_phase": one, "basis": worst.basis, "window": worst.window, "chi": worst.chi,
-                "chi_critical": worst.chi_critical, "note": worst.note}
+                "chi_critical": worst.chi_critical, "note": worst.note, "model": worst.model}
     return {
-        "one_phase": one,
+        "one_phase": one, "model": worst.model,
         "basis": "measured" if all(v.basis == "measured" for v in verdicts) else "predicted",
         "window": worst.window if one != "yes" else {"one_phase_ranges": [[0.0, 1.0]]},
         "chi": worst.chi, "chi_critical": worst.chi_critical,
