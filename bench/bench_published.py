@@ -107,7 +107,14 @@ def estimate(s, L, V, sites, hbond: str = "lumped", amount: bool = True) -> np.n
 
 
 #: The UNIFAC estimates measured: name -> the parameter sets tried in turn for each solute-liquid pair.
-UNIFAC_CHAINS = {"unifac": ("dortmund",), "unifac_original": ("dortmund", "original")}
+#: "unifac": modified UNIFAC (Dortmund, 2016 table); "unifac_original": the same, original UNIFAC where it
+#: has no groups or parameters; "unifac2": modified UNIFAC 2.0 (the Dortmund groups, the table completed by
+#: machine learning); "unifac_nist": modified UNIFAC (NIST 2015).
+UNIFAC_CHAINS = {"unifac": ("dortmund",), "unifac_original": ("dortmund", "original"), "unifac2": ("dortmund2",),
+                 "unifac_nist": ("nist",)}
+#: What each chain is called in the bench's lines.
+UNIFAC_NAMES = {"unifac": "UNIFAC (Dortmund)", "unifac_original": "UNIFAC (Dortmund, then original)",
+                "unifac2": "modified UNIFAC 2.0", "unifac_nist": "modified UNIFAC (NIST)"}
 
 
 def _unifac_groups(smiles: str, model: str):
@@ -121,8 +128,13 @@ def unifac_estimate(s, g, chain=("dortmund",), amount: bool = True) -> tuple[np.
     """log10 x by UNIFAC in each liquid of ``g`` (or -log10 gamma_inf without a melting point or with
     ``amount`` False), each pair by the first model of ``chain`` that has groups for both and every
     interaction parameter; NaN where none has.  Returns (values, model used per liquid or "")."""
+    return _unifac_estimate(s.key, tuple(g["solvent"]), tuple(chain), amount)
+
+
+@lru_cache(maxsize=None)
+def _unifac_estimate(solute: str, keys: tuple, chain: tuple, amount: bool) -> tuple[np.ndarray, np.ndarray]:
     liq = data.liquids()
-    keys = list(g["solvent"])
+    s = data.solutes()[solute]
     out = np.full(len(keys), np.nan)
     basis = np.array([""] * len(keys), dtype=object)
     lid = None
@@ -154,8 +166,8 @@ def _rho(y, p) -> float:
 @lru_cache(maxsize=None)
 def ranking(split: str | None) -> dict:
     """Per-solute Spearman of each predictor: ``{predictor: {solute name: rho}}``."""
-    out = {k: {} for k in ("ra", "hildebrand", "blind", "ra_same", "estimate", "estimate_hb_split", *UNIFAC_CHAINS,
-                           "unifac_alone", "estimate_same_as_unifac")}
+    out = {k: {} for k in ("ra", "hildebrand", "blind", "ra_same", "estimate", "estimate_hb_split",
+                           *(n + end for n in UNIFAC_CHAINS for end in ("", "_alone", "_hansen_same")))}
     for s, g, L, V, sites in _groups(split):
         y = g["log10_x"].to_numpy()
         h = np.array(s.hsp)
@@ -166,12 +178,13 @@ def ranking(split: str | None) -> dict:
         out["ra_same"][s.name] = _rho(y, np.where(np.isfinite(b), -ra(L, h), np.nan))
         out["estimate"][s.name] = _rho(y, estimate(s, L, V, sites, amount=False))
         out["estimate_hb_split"][s.name] = _rho(y, estimate(s, L, V, sites, "split", amount=False))
+        h = estimate(s, L, V, sites)
         for name, chain in UNIFAC_CHAINS.items():
-            out[name][s.name] = _rho(y, _with_hansen(s, g, L, V, sites, chain))
-        u, _ = unifac_estimate(s, g)
-        if np.isfinite(u).sum() >= MIN_COVERED:
-            out["unifac_alone"][s.name] = _rho(y, u)
-            out["estimate_same_as_unifac"][s.name] = _rho(y, np.where(np.isfinite(u), estimate(s, L, V, sites), np.nan))
+            u, _ = unifac_estimate(s, g, chain)
+            out[name][s.name] = _rho(y, np.where(np.isfinite(u), u, h))
+            if np.isfinite(u).sum() >= MIN_COVERED:
+                out[name + "_alone"][s.name] = _rho(y, u)
+                out[name + "_hansen_same"][s.name] = _rho(y, np.where(np.isfinite(u), h, np.nan))
     return out
 
 
@@ -184,11 +197,11 @@ def _rms(p, y) -> float:
 def errors(split: str | None) -> dict:
     """RMS error in log10 x per solute with a melting point: ``{kind: {name: rms}}``.  Kinds: the Hansen
     estimate with measured enthalpy of fusion ("measured") or Walden's rule ("walden"), the same with dH
-    split ("hb_split"); UNIFAC (Dortmund) with the Hansen estimate where it has no groups or parameters
-    ("unifac_measured", "unifac_walden"); UNIFAC alone on the liquids it covers ("unifac_alone", solutes
-    with at least MIN_COVERED of them) and the Hansen estimate on the same liquids ("estimate_same_as_unifac")."""
-    out = {k: {} for k in ("measured", "walden", "hb_split", "unifac_measured", "unifac_walden", "unifac_alone",
-                           "estimate_same_as_unifac")}
+    split ("hb_split"); for each UNIFAC chain ``c`` of UNIFAC_CHAINS, with the Hansen estimate where it has
+    no groups or parameters (``c_measured``, ``c_walden``), alone on the liquids it covers (``c_alone``,
+    solutes with at least MIN_COVERED of them) and the Hansen estimate on the same liquids (``c_hansen_same``)."""
+    out = {k: {} for k in ("measured", "walden", "hb_split",
+                           *(n + end for n in UNIFAC_CHAINS for end in ("_measured", "_walden", "_alone", "_hansen_same")))}
     for s, g, L, V, sites in _groups(split):
         if s.mp_C is None:
             continue
@@ -197,11 +210,12 @@ def errors(split: str | None) -> dict:
         h = estimate(s, L, V, sites)
         out[fus][s.name] = _rms(h, y)
         out["hb_split"][s.name] = _rms(estimate(s, L, V, sites, "split"), y)
-        u, _ = unifac_estimate(s, g)
-        out["unifac_" + fus][s.name] = _rms(np.where(np.isfinite(u), u, h), y)
-        if np.isfinite(u).sum() >= MIN_COVERED:
-            out["unifac_alone"][s.name] = _rms(u, y)
-            out["estimate_same_as_unifac"][s.name] = _rms(np.where(np.isfinite(u), h, np.nan), y)
+        for name, chain in UNIFAC_CHAINS.items():
+            u, _ = unifac_estimate(s, g, chain)
+            out[f"{name}_{fus}"][s.name] = _rms(np.where(np.isfinite(u), u, h), y)
+            if np.isfinite(u).sum() >= MIN_COVERED:
+                out[name + "_alone"][s.name] = _rms(u, y)
+                out[name + "_hansen_same"][s.name] = _rms(np.where(np.isfinite(u), h, np.nan), y)
     return out
 
 
@@ -218,7 +232,7 @@ def unifac_coverage(split: str | None, model: str = "dortmund") -> dict:
     liquids_ok = [k for k in liquids if _unifac_groups(liq[k].smiles, model) is not None]
     pairs = 0
     for s, g, *_ in _groups(split):
-        _, basis = unifac_estimate(s, g, (model,), amount=False)
+        _, basis = unifac_estimate(s, g, (model,))
         pairs += int((basis != "").sum())
     return {"solutes": f"{len(solutes_ok)} of {len(keys)}", "liquids": f"{len(liquids_ok)} of {len(liquids)}",
             "pairs": f"{pairs} of {len(m)}", "no groups": sorted(sol[k].name for k in keys if k not in solutes_ok),
@@ -312,19 +326,20 @@ def _line(what: str, fig: dict) -> None:
 
 
 def _unifac_lines(r: dict, e: dict, split: str | None, fmt) -> None:
-    _line("UNIFAC (Dortmund) solubility, Hansen estimate where no groups/parameters", {"": fmt(r["unifac"])})
-    _line("  the same, original UNIFAC where Dortmund has no groups/parameters", {"": fmt(r["unifac_original"])})
-    _line(f"  UNIFAC (Dortmund) alone, solutes with >= {MIN_COVERED} liquids covered, those liquids",
-          {"": fmt(r["unifac_alone"]), "Hansen estimate on the same": fmt(r["estimate_same_as_unifac"])})
-    _line("  median RMS log10 x, measured enthalpy of fusion / Walden's rule",
-          {"": f"{fmt(e['unifac_measured'])} / {fmt(e['unifac_walden'])}"})
-    _line("  median RMS log10 x, UNIFAC alone on the liquids it covers",
-          {"": fmt(e["unifac_alone"]), "Hansen estimate on the same": fmt(e["estimate_same_as_unifac"])})
-    c = unifac_coverage(split)
-    _line("  coverage (Dortmund groups and parameters)",
-          {k: c[k] for k in ("solutes", "liquids", "pairs")})
-    _line("  no groups for", {"": "; ".join(c["no groups"])})
-    _line("  liquids without groups", {"": "; ".join(c["liquids without groups"])})
+    for name, what in UNIFAC_NAMES.items():
+        _line(f"{what} solubility, Hansen estimate where no groups/parameters", {"": fmt(r[name])})
+        _line(f"  alone, solutes with >= {MIN_COVERED} liquids covered, on those liquids",
+              {"": fmt(r[name + "_alone"]), "Hansen estimate on the same": fmt(r[name + "_hansen_same"])})
+        _line("  median RMS log10 x, measured enthalpy of fusion / Walden's rule",
+              {"": f"{fmt(e[name + '_measured'])} / {fmt(e[name + '_walden'])}"})
+        _line("  median RMS log10 x, alone on the liquids it covers",
+              {"": fmt(e[name + "_alone"]), "Hansen estimate on the same": fmt(e[name + "_hansen_same"])})
+    for model in ("dortmund", "dortmund2", "nist"):
+        c = unifac_coverage(split, model)
+        _line(f"  coverage, {model}: groups of solutes, liquids; pairs with every parameter",
+              {k: c[k] for k in ("solutes", "liquids", "pairs")})
+        _line("    no groups for", {"": "; ".join(c["no groups"]) or "-"})
+        _line("    liquids without groups", {"": "; ".join(c["liquids without groups"]) or "-"})
 
 
 def unifac_speed(repeat: int = 5) -> dict:
@@ -341,23 +356,24 @@ def unifac_speed(repeat: int = 5) -> dict:
     return {"liquids": len(liq), "best_s": min(times), "median_s": statistics.median(times)}
 
 
-def unifac_table(split: str) -> None:
-    """One line per solute: groups or why none, liquids covered, Spearman and RMS of UNIFAC and Hansen."""
-    print(f"\n[{split}] per solute: liquids covered by UNIFAC (Dortmund); Spearman UNIFAC alone / Hansen estimate "
+def unifac_table(split: str, name: str = "unifac") -> None:
+    """One line per solute: liquids covered (or why none), Spearman and RMS of a UNIFAC chain and of the
+    Hansen estimate on the same liquids."""
+    chain = UNIFAC_CHAINS[name]
+    print(f"\n[{split}] per solute, {UNIFAC_NAMES[name]}: liquids covered; Spearman UNIFAC alone / Hansen estimate "
           "on the same liquids; RMS the same; fusion data; measured spread (max - min log10 x); donors, acceptors")
     for s, g, L, V, sites in _groups(split):
         y = g["log10_x"].to_numpy()
-        u, _ = unifac_estimate(s, g)
+        u, _ = unifac_estimate(s, g, chain)
         ok = np.isfinite(u)
-        h = estimate(s, L, V, sites)
+        h = np.where(ok, estimate(s, L, V, sites), np.nan)
         why = ""
-        if _unifac_groups(s.smiles, "dortmund") is None:
+        if all(_unifac_groups(s.smiles, m) is None for m in chain):
             why = "no groups"
         elif ok.sum() < MIN_COVERED:
             why = "missing parameters"
-        rho = f"{_rho(y, u):5.2f} / {_rho(y, np.where(ok, h, np.nan)):5.2f}" if ok.sum() >= 3 else "   -  /   -  "
-        rms = (f"{_rms(u, y):4.2f} / {_rms(np.where(ok, h, np.nan), y):4.2f}"
-               if ok.sum() and s.mp_C is not None else "  -  /   - ")
+        rho = f"{_rho(y, u):5.2f} / {_rho(y, h):5.2f}" if ok.sum() >= 3 else "   -  /   -  "
+        rms = f"{_rms(u, y):4.2f} / {_rms(h, y):4.2f}" if ok.sum() and s.mp_C is not None else "  -  /   - "
         print(f"  {s.name[:34]:34s} {ok.sum():3d}/{len(y):<3d} {rho}  {rms}  {s.dHfus_source or 'no mp':8s} "
               f"{np.ptp(y):4.2f}  {s.sites[0]} {s.sites[1]}  {why}")
 
@@ -415,8 +431,9 @@ def main(argv=None) -> int:
         print(f"published data not found in {data.EXTERNAL}: nothing to measure")
         return 0
     if args.unifac:
-        for split in ("dev", "heldout"):
-            unifac_table(split)
+        for name in ("unifac", "unifac2"):
+            for split in ("dev", "heldout"):
+                unifac_table(split, name)
         print("\nUNIFAC solubility of one solute in every liquid (warm):", unifac_speed())
         return 0
     print("Published solubilities:", data.CITATION)

@@ -38,22 +38,32 @@ RANKING = {
     "ra_same": (0.393, 0.683),
     "estimate": (0.438, 0.567),
     "estimate_hb_split": (0.226, 0.417),
-    # UNIFAC (Dortmund) solubility, the Hansen estimate where it has no groups or parameters; the same with
-    # original UNIFAC before the Hansen estimate; UNIFAC alone on the solutes with at least 5 liquids it
-    # covers (12 dev, 3 heldout), and the Hansen estimate on those same liquids
-    "unifac": (0.424, 0.567),
-    "unifac_original": (0.411, 0.622),
-    "unifac_alone": (0.473, 0.450),
-    "estimate_same_as_unifac": (0.417, 0.382),
+    # solubility by UNIFAC with the Hansen estimate where it has no groups or parameters: modified UNIFAC
+    # (Dortmund, 2016 table); the same with original UNIFAC before the Hansen estimate; modified UNIFAC 2.0
+    # (table completed by machine learning); modified UNIFAC (NIST 2015).  "_alone": on the solutes with at
+    # least 5 liquids covered, those liquids only; "_hansen_same": the Hansen estimate on the same liquids
+    "unifac": (0.424, 0.567), "unifac_alone": (0.473, 0.450), "unifac_hansen_same": (0.417, 0.382),
+    "unifac_original": (0.411, 0.622), "unifac_original_alone": (0.405, 0.525),
+    "unifac_original_hansen_same": (0.472, 0.371),
+    "unifac2": (0.491, 0.622), "unifac2_alone": (0.548, 0.445), "unifac2_hansen_same": (0.438, 0.371),
+    "unifac_nist": (0.411, 0.622), "unifac_nist_alone": (0.409, 0.690), "unifac_nist_hansen_same": (0.503, 0.934),
 }
 #: Median RMS error in log10 x of the solubility estimate: (dev, heldout) and number of solutes.
 ERRORS = {"measured": ((0.248, 4), (0.350, 2)), "walden": ((0.660, 22), (0.574, 12)),
           "hb_split": ((0.581, 26), (0.617, 14)),
           "unifac_measured": ((0.282, 4), (0.350, 2)), "unifac_walden": ((0.660, 22), (0.574, 12)),
-          "unifac_alone": ((0.374, 11), (0.860, 3)), "estimate_same_as_unifac": ((0.394, 11), (0.706, 3))}
-#: What modified UNIFAC (Dortmund) covers: solutes with groups, liquids with groups, pairs with groups and
-#: every interaction parameter (of the rows of each split).
-COVERAGE = {"dev": ("19 of 31", "66 of 67", "178 of 534"), "heldout": ("6 of 15", "67 of 67", "67 of 346")}
+          "unifac_alone": ((0.374, 11), (0.860, 3)), "unifac_hansen_same": ((0.394, 11), (0.706, 3)),
+          "unifac_original_measured": ((0.268, 4), (0.447, 2)), "unifac_original_walden": ((0.660, 22), (0.574, 12)),
+          "unifac_original_alone": ((0.365, 12), (0.643, 4)), "unifac_original_hansen_same": ((0.380, 12), (0.455, 4)),
+          "unifac2_measured": ((0.262, 4), (0.787, 2)), "unifac2_walden": ((0.618, 22), (0.411, 12)),
+          "unifac2_alone": ((0.569, 18), (0.411, 6)), "unifac2_hansen_same": ((0.621, 18), (0.587, 6)),
+          "unifac_nist_measured": ((0.248, 4), (0.350, 2)), "unifac_nist_walden": ((0.660, 22), (0.628, 12)),
+          "unifac_nist_alone": ((0.525, 5), (0.685, 3)), "unifac_nist_hansen_same": ((0.743, 5), (0.553, 3))}
+#: What each UNIFAC table covers: solutes with groups, liquids with groups, pairs with groups and every
+#: interaction parameter (of the rows of each split: dev, heldout).
+COVERAGE = {"dortmund": (("19 of 31", "66 of 67", "178 of 534"), ("6 of 15", "67 of 67", "67 of 346")),
+            "dortmund2": (("19 of 31", "66 of 67", "351 of 534"), ("6 of 15", "67 of 67", "146 of 346")),
+            "nist": (("22 of 31", "66 of 67", "72 of 534"), ("7 of 15", "67 of 67", "68 of 346"))}
 #: Sphere fits on the first 3 dev solutes (41 liquids): leave-one-out accuracy at the top-third split.
 SPHERES = {"binary": 0.805, "graded_prior": 0.732}
 MAJORITY_FIRST3 = 0.659
@@ -104,18 +114,22 @@ def test_estimate_ranks_better_than_ra_but_not_than_the_solute_blind_baseline(be
 
 
 @pytest.mark.parametrize("split", ["dev", "heldout"])
-def test_unifac_coverage(bench, split):
-    c = bench.unifac_coverage(split)
-    assert (c["solutes"], c["liquids"], c["pairs"]) == COVERAGE[split]
+@pytest.mark.parametrize("model", sorted(COVERAGE))
+def test_unifac_coverage(bench, split, model):
+    c = bench.unifac_coverage(split, model)
+    assert (c["solutes"], c["liquids"], c["pairs"]) == COVERAGE[model][0 if split == "dev" else 1]
 
 
 def test_unifac_does_not_reach_the_goal_on_dev(bench):
-    # the goal (median Spearman >= 0.70 on dev, above the solute-blind ranking) is not met by UNIFAC: with
-    # the Hansen estimate where it has no groups it ranks like the Hansen estimate alone; on the liquids
-    # it covers it ranks a little better than the Hansen estimate on the same liquids
+    # the goal (median Spearman >= 0.70 on dev, above the solute-blind ranking) is met by none of the UNIFAC
+    # tables; the best, modified UNIFAC 2.0, ranks better than the Hansen estimate (alone on the liquids it
+    # covers, and with the Hansen estimate elsewhere) but below the solute-blind ranking
     r = bench.ranking("dev")
-    assert bench.median(r["unifac"]) < 0.70 and bench.median(r["unifac"]) < bench.median(r["blind"])
-    assert bench.median(r["unifac_alone"]) > bench.median(r["estimate_same_as_unifac"])
+    blind = bench.median(r["blind"])
+    for name in bench.UNIFAC_CHAINS:
+        assert bench.median(r[name]) < min(0.70, blind)
+    assert bench.median(r["unifac2"]) > bench.median(r["estimate"])
+    assert bench.median(r["unifac2_alone"]) > bench.median(r["unifac2_hansen_same"])
 
 
 @pytest.mark.parametrize("kind", sorted(SPHERES))

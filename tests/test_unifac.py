@@ -26,7 +26,8 @@ def test_published_worked_example_hexane_butanone():
 
 
 @pytest.mark.parametrize("model,version,sub,inter", [
-    ("dortmund", 1, "DOUFSG", "DOUFIP2016"), ("original", 0, "UFSG", "UFIP"), ("lle", 0, "LLEUFSG", "LLEUFIP")])
+    ("dortmund", 1, "DOUFSG", "DOUFIP2016"), ("original", 0, "UFSG", "UFIP"), ("lle", 0, "LLEUFSG", "LLEUFIP"),
+    ("nist", 1, "NISTUFSG", "NISTUFIP"), ("dortmund2", 1, "DOUFSG", "DOUF2IP")])
 def test_same_as_the_reference_library(model, version, sub, inter):
     import thermo.unifac as tu
 

@@ -8,11 +8,15 @@ Three published parameter sets, as the reference library ``thermo`` (``thermo.un
   :math:`r^{3/4}`;
 - ``"original"``: UNIFAC of Fredenslund, Jones and Prausnitz [2]_ (``UFSG``, ``UFIP``, ``a`` only);
 - ``"lle"``: UNIFAC with the liquid-liquid parameters of Magnussen, Rasmussen and Fredenslund [3]_
-  (``LLEUFSG``, ``LLEUFIP``; the original model's equations).
+  (``LLEUFSG``, ``LLEUFIP``; the original model's equations);
+- ``"nist"``: modified UNIFAC of NIST [4]_ (``NISTUFSG``, ``NISTUFIP``; the Dortmund equations, more
+  subgroups: aromatic acids, ketones and amides among them);
+- ``"dortmund2"``: modified UNIFAC 2.0 [5]_, the Dortmund subgroups with the table ``DOUF2IP``, whose
+  missing interaction parameters were completed by machine learning (the Dortmund equations).
 
 Group assignment (:func:`groups`): the Dortmund Data Bank's own assignment of the compound where
-``thermo`` has it (found by InChIKey, ``UNIFAC_group_assignment_DDBST``; not for ``"lle"``), else the
-subgroups' SMARTS patterns, each atom once, by ``thermo``'s priority rules
+``thermo`` has it (found by InChIKey, ``UNIFAC_group_assignment_DDBST``; not for ``"lle"`` and ``"nist"``,
+whose ids differ), else the subgroups' SMARTS patterns, each atom once, by ``thermo``'s priority rules
 (``smarts_fragment_priority``).  A molecule that cannot be covered is refused, naming the atoms left
 over; a mixture whose groups lack a published interaction parameter is refused by :func:`ln_gammas`
 (:func:`interaction_gaps` names the pairs).
@@ -34,6 +38,8 @@ References
    *Ind. Eng. Chem. Res.* 45 (2006) 7924-7933 for the revision before it).
 .. [2] Fredenslund, A.; Jones, R. L.; Prausnitz, J. M. *AIChE J.* 21 (1975) 1086-1099.
 .. [3] Magnussen, T.; Rasmussen, P.; Fredenslund, A. *Ind. Eng. Chem. Process Des. Dev.* 20 (1981) 331-339.
+.. [4] Kang, J. W.; Diky, V.; Frenkel, M. *Fluid Phase Equilib.* 388 (2015) 128-141.
+.. [5] Hayer, N.; Hasse, H.; Jirasek, F. *Ind. Eng. Chem. Res.* 64 (2025) 10304-10313.
 """
 
 from __future__ import annotations
@@ -52,9 +58,16 @@ MODELS = {
     "dortmund": ("DOUFSG", "DOUFMG", "DOUFIP2016", "MODIFIED_UNIFAC", "modified UNIFAC (Dortmund), 2016 parameters"),
     "original": ("UFSG", "UFMG", "UFIP", "UNIFAC", "UNIFAC (original)"),
     "lle": ("LLEUFSG", "LLEMG", "LLEUFIP", None, "UNIFAC-LLE (Magnussen 1981)"),
+    "nist": ("NISTUFSG", "NISTUFMG", "NISTUFIP", None, "modified UNIFAC (NIST 2015)"),
+    "dortmund2": ("DOUFSG", "DOUFMG", "DOUF2IP", "MODIFIED_UNIFAC",
+                  "modified UNIFAC 2.0 (Dortmund groups, parameter table completed by machine learning)"),
 }
 #: The subgroup lists ``thermo`` fragments with (with priorities), per model.
-_FRAGMENT_LISTS = {"dortmund": "DOUFSG_SUBGROUPS", "original": "UNIFAC_SUBGROUPS", "lle": "UNIFAC_LLE_SUBGROUPS"}
+_FRAGMENT_LISTS = {"dortmund": "DOUFSG_SUBGROUPS", "original": "UNIFAC_SUBGROUPS", "lle": "UNIFAC_LLE_SUBGROUPS",
+                   "nist": "NISTUFSG_SUBGROUPS", "dortmund2": "DOUFSG_SUBGROUPS"}
+#: Models with the modified (Dortmund) equations: temperature-dependent interactions, r^(3/4) in the
+#: combinatorial term.
+_MODIFIED = ("dortmund", "nist", "dortmund2")
 
 
 def _check_model(model: str) -> str:
@@ -216,7 +229,7 @@ def interaction_gaps(groups_list: Sequence[Mapping[int, int]], model: str = "dor
 
 def _psi(abc: np.ndarray, T: float, model: str) -> np.ndarray:
     a, b, c = abc
-    if model == "dortmund":
+    if model in _MODIFIED:
         return np.exp(-(a + b * T + c * T * T) / T)
     return np.exp(-a / T)
 
@@ -232,7 +245,7 @@ def _ln_gammas(nu: np.ndarray, R: np.ndarray, Q: np.ndarray, psi: np.ndarray, x:
     r, q = nu @ R, nu @ Q
     rx, qx = x @ r, x @ q
     V, F = r / rx[:, None], q / qx[:, None]
-    if model == "dortmund":
+    if model in _MODIFIED:
         r34 = r ** 0.75
         Vp = r34 / (x @ r34)[:, None]
     else:
@@ -263,7 +276,7 @@ def ln_gammas(groups_list: Sequence[Mapping[int, int]], x, temp_C: float, model:
     temp_C : float
         temperature [C]
     model : str
-        "dortmund", "original" or "lle"
+        a key of :data:`MODELS` ("dortmund", "original", "lle", "nist", "dortmund2")
 
     Returns ln gamma with the shape of ``x``.  Raises :class:`~solvsel.errors.MissingDataError`
     (``param="groups"``) when the table lacks an interaction parameter between two of the mixture's
