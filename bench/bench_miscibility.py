@@ -1,14 +1,17 @@
-"""How well does the Flory-Huggins prediction from HSP do without the table?
+"""How well does the prediction do without the table?
 
 For every measured pair of tables/miscibility.csv, the model's verdict
-(:func:`solvsel.science.miscibility.predict_pair`, which never looks at the table) is
-compared with the measurement: the share predicted right as miscible in all
+(:func:`solvsel.science.miscibility.predict_pair`, which never looks at the table:
+UNIFAC from the structures, else Flory-Huggins from HSP; and Flory-Huggins alone
+as the baseline) is compared with the measurement: the share predicted right as miscible in all
 proportions vs not, by group (pairs with water, other pairs), the confusion
 counts, and for partial pairs with tabulated solubilities the log10 error of
 the predicted mutual solubilities.  Then the speed of the pair matrix and of
 the array screen of 490,000 candidate blends.  Prints numbers; not a test.
 
-:func:`choose_immiscible_level` is the procedure that set
+:func:`choose_model_order` is the procedure that set
+``solvsel.science.miscibility.UNIFAC_ORDER`` (which UNIFAC parameter sets, in
+which order) and :func:`choose_immiscible_level` the one that set
 ``solvsel.science.miscibility.IMMISCIBLE_BELOW_WT`` (the level under which
 both predicted mutual solubilities make a decisive "no"): it uses the
 measured table only, never the published chart that
@@ -19,7 +22,9 @@ from __future__ import annotations
 
 import argparse
 import math
+import os
 import sys
+import tempfile
 import time
 from itertools import permutations
 from pathlib import Path
@@ -101,57 +106,95 @@ def choose_model_order(cat=None, orders=MODEL_ORDERS) -> tuple[tuple[str, ...], 
     return best[0], scores
 
 
+def _measured(v) -> float | None:
+    return None if v is None or (isinstance(v, float) and math.isnan(v)) else float(v)
+
+
+def table_report(cat, models: tuple[str, ...], title: str) -> dict:
+    """Print how the prediction alone (:func:`predict_pair` with ``models``) does on the measured
+    table: "miscible in all proportions or not" by group, the confusion counts, and the log10 error
+    of the predicted mutual solubilities of partial pairs with tabulated values.  Returns the
+    chart's scores (accuracy, immiscible found, decisive "no" counts) on the table, "partial" and
+    "none" both counted immiscible."""
+    groups = {"with water": [], "without water": []}
+    sol_err, confusion, truth, said = [], {}, [], []
+    for row in cat.table("miscibility").to_dict("records"):
+        a, b = cat.solvent(row["liquid_a"]), cat.solvent(row["liquid_b"])
+        pred = M.predict_pair(a, b, float(row["temp_C"]), models=models)
+        truth.append(row["one_phase"] == "full")
+        said.append(pred.one_phase)
+        key = "with water" if "water" in (a.name, b.name) else "without water"
+        groups[key].append(truth[-1] == (pred.one_phase == "yes"))
+        confusion[(row["one_phase"], pred.one_phase)] = confusion.get((row["one_phase"], pred.one_phase), 0) + 1
+        if row["one_phase"] == "partial" and pred.window:
+            for col, k in (("b_in_a_wt", "b_in_a_max"), ("a_in_b_wt", "a_in_b_max")):
+                v = _measured(row.get(col))
+                if v and pred.window.get(k):
+                    sol_err.append(math.log10(pred.window[k] * 100.0 / v))
+    total = groups["with water"] + groups["without water"]
+    print(f"{title} against {len(total)} measured pairs (miscible in all proportions vs not)")
+    for k, v in groups.items():
+        print(f"  {k:14s}: {sum(v):3d} / {len(v):3d} right = {100 * sum(v) / len(v):5.1f} %")
+    print(f"  {'all':14s}: {sum(total):3d} / {len(total):3d} right = {100 * sum(total) / len(total):5.1f} %")
+    print("  confusion (measured -> predicted): " + ", ".join(f"{m} -> {p}: {n}" for (m, p), n in sorted(confusion.items())))
+    if sol_err:
+        e = np.array(sol_err)
+        print(f"  partial pairs, predicted mutual solubility: {len(e)} values, mean log10 error {e.mean():+.2f}, "
+              f"RMS {math.sqrt(np.mean(e ** 2)):.2f} decades")
+    imm = [x for t, x in zip(truth, said) if not t]
+    return {"accuracy": sum(t == (x == "yes") for t, x in zip(truth, said)) / len(truth),
+            "always_miscible": sum(truth) / len(truth), "immiscible_found": sum(x != "yes" for x in imm) / len(imm),
+            "answered_no": said.count("no"), "miscible_answered_no": sum(x == "no" for t, x in zip(truth, said) if t)}
+
+
+def _time_matrices(cat, names, quick: bool) -> None:
+    """Time a pair matrix computed with nothing kept (UNIFAC solved for every pair) and with the
+    UNIFAC answers kept in the cache folder (a new process whose matrix file is not there yet)."""
+    if quick:
+        return
+    recs = [cat.solvent(n) for n in names]
+    pairs = len(names) * (len(names) - 1) // 2
+    with tempfile.TemporaryDirectory() as folder:
+        os.environ["SOLVSEL_CACHE_DIR"] = folder
+        for label in ("nothing kept (every UNIFAC pair solved)", "UNIFAC answers kept in the cache folder"):
+            M._DISK_PAIRS.clear()
+            t = time.perf_counter()
+            M._compute_matrix(cat, recs, 25.0)
+            print(f"pair matrix of all {len(names)} liquids ({pairs} pairs), {label}: {time.perf_counter() - t:.2f} s")
+    del os.environ["SOLVSEL_CACHE_DIR"]
+    M._DISK_PAIRS.clear()
+
+
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__)
     ap.add_argument("--quick", action="store_true", help="skip the full 74-liquid matrix timing")
     args = ap.parse_args()
     cat = load_catalog()
+    order, orders = choose_model_order(cat)
+    print("Order of the UNIFAC parameter sets, chosen on the measured table (miscible in all proportions or not):")
+    for o, right, n in orders:
+        print(f"  {' > '.join(o) or 'none (Flory-Huggins from HSP alone)':28s}: {100 * right:5.1f} % right, "
+              f"{n} pairs by UNIFAC")
+    print(f"  chosen: {' > '.join(order)} (in use: {' > '.join(M.UNIFAC_ORDER)})")
     level, scores = choose_immiscible_level(cat)
     print("Decisive 'no' level, chosen on the measured table (pairs measured none or partial):")
     for lv, right, full_no in scores:
         print(f"  both predicted solubilities below {lv:3.1f} wt %: {100 * right:5.1f} % right, "
               f"{full_no} miscible pairs answered 'no'")
     print(f"  chosen: {level:g} wt % (in use: {M.IMMISCIBLE_BELOW_WT:g} wt %)")
-    df = cat.table("miscibility")
-    groups = {"with water": [], "without water": []}
-    sol_err = []
-    confusion = {}
-    for row in df.to_dict("records"):
-        a, b = cat.solvent(row["liquid_a"]), cat.solvent(row["liquid_b"])
-        pred = M.predict_pair(a, b, float(row["temp_C"]))
-        measured_full = row["one_phase"] == "full"
-        predicted_full = pred.one_phase == "yes"
-        key = "with water" if "water" in (a.name, b.name) else "without water"
-        groups[key].append(measured_full == predicted_full)
-        confusion[(row["one_phase"], pred.one_phase)] = confusion.get((row["one_phase"], pred.one_phase), 0) + 1
-        if row["one_phase"] == "partial" and pred.window:
-            for col, k in (("b_in_a_wt", "b_in_a_max"), ("a_in_b_wt", "a_in_b_max")):
-                v = row.get(col)
-                if v is not None and not (isinstance(v, float) and math.isnan(v)) and pred.window.get(k):
-                    sol_err.append(math.log10(pred.window[k] * 100.0 / float(v)))
-    total = groups["with water"] + groups["without water"]
-    print(f"Flory-Huggins from HSP against {len(total)} measured pairs (miscible in all proportions vs not)")
-    for k, v in groups.items():
-        print(f"  {k:14s}: {sum(v):3d} / {len(v):3d} right = {100 * sum(v) / len(v):5.1f} %")
-    print(f"  {'all':14s}: {sum(total):3d} / {len(total):3d} right = {100 * sum(total) / len(total):5.1f} %")
-    print("  confusion (measured -> predicted):")
-    for (m, p), n in sorted(confusion.items()):
-        print(f"    {m:8s} -> {p:8s}: {n}")
-    if sol_err:
-        e = np.array(sol_err)
-        print(f"  partial pairs, predicted mutual solubility: {len(e)} values, mean log10 error {e.mean():+.2f}, "
-              f"RMS {math.sqrt(np.mean(e ** 2)):.2f} decades")
+    for models, title in ((M.UNIFAC_ORDER, "The prediction (UNIFAC, else Flory-Huggins from HSP)"),
+                          ((), "Baseline: Flory-Huggins from HSP alone")):
+        f = table_report(cat, models, title)
+        print(f"  as scored on the chart: accuracy {f['accuracy']:.3f} (always miscible {f['always_miscible']:.3f}), "
+              f"immiscible found {f['immiscible_found']:.3f}, decisive 'no' {f['answered_no']} "
+              f"({f['miscible_answered_no']} of them measured miscible)")
 
     names = [s.name for s in cat.solvent_records()]
     pool = names[:20]
     t = time.perf_counter()
     m20 = M.pair_matrix(cat, pool)
-    t20 = time.perf_counter() - t
-    print(f"pair matrix of 20 liquids (190 pairs): {t20:.3f} s")
-    if not args.quick:
-        t = time.perf_counter()
-        M.pair_matrix(cat, names)
-        print(f"pair matrix of all {len(names)} liquids ({len(names) * (len(names) - 1) // 2} pairs): {time.perf_counter() - t:.2f} s")
+    print(f"pair matrix of 20 liquids (190 pairs): {time.perf_counter() - t:.3f} s")
+    _time_matrices(cat, names, args.quick)
     rng = np.random.default_rng(0)
     idx = np.stack([rng.choice(20, 3, replace=False) for _ in range(490_000)])
     frac = rng.dirichlet([1, 1, 1], size=490_000)
