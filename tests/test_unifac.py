@@ -60,6 +60,8 @@ def test_refusal_names_the_atoms_without_a_group():
     assert "N3 (chain atom, bonded to C, C)" in str(e.value)
     with pytest.raises(InputError):
         groups("CCO", "lyngby")
+    with pytest.raises(InputError):  # three mole fractions for two components
+        ln_gammas([groups("CCO"), groups("O")], [0.2, 0.3, 0.5], 25.0)
 
 
 def test_missing_interaction_parameters_refused():

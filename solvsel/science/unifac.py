@@ -295,17 +295,19 @@ def ln_gammas(groups_list: Sequence[Mapping[int, int]], x, temp_C: float, model:
     if missing.any():
         pairs = "; ".join(f"{a} - {b}" for a, b in interaction_gaps(groups_list, model))
         raise MissingDataError(f"{model_label(model)} has no interaction parameter for {pairs}", param="groups")
-    return _ln_gammas_checked(nu, R, Q, _psi(abc, float(temp_C) + 273.15, model), x, model)
+    xa = _mole_fractions(x, nu.shape[0])
+    out = _ln_gammas(nu, R, Q, _psi(abc, float(temp_C) + 273.15, model), np.atleast_2d(xa), model)
+    return out.reshape(xa.shape)
 
 
-def _ln_gammas_checked(nu, R, Q, psi, x, model) -> np.ndarray:
+def _mole_fractions(x, n: int) -> np.ndarray:
+    """``x`` as an array of n mole fractions per mixture, checked."""
     xa = np.asarray(x, dtype=float)
-    if xa.shape[-1] != nu.shape[0] or xa.ndim > 2:
-        raise InputError(f"expected {nu.shape[0]} mole fractions per mixture, got shape {xa.shape}", param="x")
+    if xa.ndim not in (1, 2) or xa.shape[-1] != n:
+        raise InputError(f"expected {n} mole fractions per mixture, got shape {xa.shape}", param="x")
     if (xa < 0).any() or (xa.sum(axis=-1) <= 0).any():
         raise InputError("mole fractions must be zero or positive, with a positive sum", param="x")
-    out = _ln_gammas(nu, R, Q, psi, np.atleast_2d(xa), model)
-    return out.reshape(xa.shape)
+    return xa
 
 
 def solute_in_liquids(solute: Mapping[int, int], liquids: Sequence[Mapping[int, int]], temp_C: float,
