@@ -362,11 +362,14 @@ def unifac_table(split: str, name: str = "unifac") -> None:
     chain = UNIFAC_CHAINS[name]
     print(f"\n[{split}] per solute, {UNIFAC_NAMES[name]}: liquids covered; Spearman UNIFAC alone / Hansen estimate "
           "on the same liquids; RMS the same; fusion data; measured spread (max - min log10 x); donors, acceptors")
+    by_donors = {}
     for s, g, L, V, sites in _groups(split):
         y = g["log10_x"].to_numpy()
         u, _ = unifac_estimate(s, g, chain)
         ok = np.isfinite(u)
         h = np.where(ok, estimate(s, L, V, sites), np.nan)
+        if ok.sum() >= MIN_COVERED:
+            by_donors.setdefault(min(s.sites[0], 2), []).append((_rho(y, u), _rho(y, h)))
         why = ""
         if all(_unifac_groups(s.smiles, m) is None for m in chain):
             why = "no groups"
@@ -376,6 +379,10 @@ def unifac_table(split: str, name: str = "unifac") -> None:
         rms = f"{_rms(u, y):4.2f} / {_rms(h, y):4.2f}" if ok.sum() and s.mp_C is not None else "  -  /   - "
         print(f"  {s.name[:34]:34s} {ok.sum():3d}/{len(y):<3d} {rho}  {rms}  {s.dHfus_source or 'no mp':8s} "
               f"{np.ptp(y):4.2f}  {s.sites[0]} {s.sites[1]}  {why}")
+    for d, v in sorted(by_donors.items()):
+        print(f"  H-bond donors {d}{'+' if d == 2 else ''}: {len(v)} solutes covered, median Spearman UNIFAC alone "
+              f"{statistics.median(a for a, _ in v):.2f}, Hansen estimate on the same liquids "
+              f"{statistics.median(b for _, b in v):.2f}")
 
 
 def report(split: str | None, quick: bool) -> None:
