@@ -859,7 +859,11 @@ def fit_sphere(hsp, good, weights=None, *, names=None, good_at_most: float | Non
     if threadpool_limits is None:  # pragma: no cover
         return _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bounds,
                     interval, level, n_starts, seed)
-    # the optimisers make many tiny BLAS calls: threads only add waiting
+    # the optimisers make many tiny BLAS calls: threads only add waiting (on a busy machine, seconds).
+    # The limit reaches only the BLAS libraries loaded when it is set, and scipy brings its own:
+    # load the optimisers first.
+    import scipy.optimize  # noqa: F401
+
     with threadpool_limits(limits=1, user_api="blas"):
         return _fit(hsp, good, weights, names, good_at_most, good_at_least, rule, lapse, bounds,
                     interval, level, n_starts, seed)
