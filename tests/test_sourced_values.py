@@ -163,6 +163,30 @@ def test_ethanol_strengths_from_the_alcoholometric_formula(name):
     assert float(row["vm_cm3_mol"]) == pytest.approx(float(row["mw_g_mol"]) / float(row["density_g_cm3"]), abs=0.06)
     assert "ethwat_oiml_r22" in row["props_source"].split(";")
 
+
+@pytest.mark.parametrize("name, rd20, sv", [
+    # Codex CXS 210-1999 (2022 amendment), Table 2, sunflowerseed oil: relative density 0.916-0.923,
+    # saponification value 187-194 (source oils_codex_sunflower)
+    ("sunflower oil", (0.916, 0.923), (187, 194)),
+    # Ph. Eur. / BP Triglycerides, medium-chain: relative density about 0.95, saponification value 310-360
+    # (source oils_pheur_mct)
+    ("medium-chain triglycerides", (0.945, 0.955), (310, 360)),
+])
+def test_oil_density_and_molar_mass_from_the_standard(name, rd20, sv):
+    # J. Am. Oil Chem. Soc. 76, 1415 (1999): vegetable oils lose about 0.00064 g/cm3 per K (oils_density_slope)
+    cat = load_catalog()
+    s = cat.solvent(name)
+    lo, hi = (r * 0.99820 - 5 * 0.00064 for r in rd20)
+    assert lo <= s.density_g_cm3 <= hi
+    assert 3 * 56105.6 / sv[1] <= s.mw_g_mol <= 3 * 56105.6 / sv[0]
+    assert s.alpha_1_K == pytest.approx(0.00064 / s.density_g_cm3, rel=2e-3)
+    assert cat.find("oils", name)["density_g_cm3"] == pytest.approx(s.density_g_cm3)
+
+
+def test_soybean_oil_molar_mass_from_its_saponification_value():
+    # USP 28-NF 23, Soybean Oil: saponification value between 180 and 200 (source oils_usp_soybean)
+    assert 3 * 56105.6 / 200 <= load_catalog().solvent("soybean oil").mw_g_mol <= 3 * 56105.6 / 180
+
 #: Values ``solvsel demo`` reads from these tables that are marked from memory, after sourcing (before, at
 #: the start of this work: emulsifiers 5, oils 3, solutes 13, sucrose_density 66, weighting_agents 4,
 #: miscibility 45 of the 74 values the demo then read).

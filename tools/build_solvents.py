@@ -33,24 +33,36 @@ HSP_MODEL = {"75-28-5": "106-97-8"}
 TRIOLEIN, TRIBUTYRIN = "122-32-7", "60-01-5"
 OILS = {"8001-21-6", "8001-25-0", "8002-13-9", "8001-22-7", "8001-30-7"}
 
-# Mixtures: properties recalled from handbooks and supplier data sheets (kind memory).
-# mw, density_25C, bp, mp, flash, visc_25C, alpha
+# Oils: properties recalled from handbooks and supplier data sheets (kind memory), where no source below
+# replaces them: mw, density_25C, bp, mp, flash, visc_25C
 MIXTURE_PROPS = {
-    "73398-61-5": (504.0, 0.942, None, -5.0, 240.0, 25.0, 7.5e-4),
-    "8001-21-6": (885.4, 0.918, None, -17.0, 316.0, 49.0, 7.1e-4),
-    "8001-25-0": (885.4, 0.911, None, -6.0, 318.0, 67.0, 7.1e-4),
-    "8002-13-9": (885.4, 0.914, None, -10.0, 320.0, 60.0, 7.1e-4),
-    "8001-22-7": (885.4, 0.917, None, -16.0, 320.0, 50.0, 7.1e-4),
-    "8001-30-7": (885.4, 0.917, None, -11.0, 320.0, 52.0, 7.1e-4),
+    "73398-61-5": (504.0, 0.942, None, -5.0, 240.0, 25.0),
+    "8001-21-6": (885.4, 0.918, None, -17.0, 316.0, 49.0),
+    "8001-25-0": (885.4, 0.911, None, -6.0, 318.0, 67.0),
+    "8002-13-9": (885.4, 0.914, None, -10.0, 320.0, 60.0),
+    "8001-22-7": (885.4, 0.917, None, -16.0, 320.0, 50.0),
+    "8001-30-7": (885.4, 0.917, None, -11.0, 320.0, 52.0),
 }
-# Densities at 25 C from the USP monographs' specific gravities (times water's density), which
-# replace the recalled ones above; the other properties of these oils stay recalled.
+# Densities at 25 C from the USP monographs' specific gravities 25/25 C (times water's density at 25 C).
 USP_DENSITY = {
     "8001-25-0": (0.9098, "oils_usp_olive_secondary"),
     "8002-13-9": (0.9103, "oils_usp_canola"),
     "8001-22-7": (0.9163, "oils_usp_soybean"),
     "8001-30-7": (0.9148, "oils_usp_corn"),
 }
+# Relative density d20/20 (midpoint of the standard's range) of oils whose standard gives it at 20 C,
+# and its source: density at 25 C = d20/20 x water at 20 C - 5 K x OIL_DENSITY_SLOPE.
+RELATIVE_DENSITY_20 = {"8001-21-6": (0.9195, "oils_codex_sunflower"), "73398-61-5": (0.95, "oils_pheur_mct")}
+# Saponification value [mg KOH/g] (midpoint of the standard's range) and its source: mean molar mass of
+# the triglyceride = 3 x 56105.6 / SV (g/mol).
+SAPONIFICATION_VALUE = {"8001-21-6": (190.5, "oils_codex_sunflower"), "73398-61-5": (335.0, "oils_pheur_mct"),
+                        "8001-22-7": (190.0, "oils_usp_soybean")}
+# Fall of the density of vegetable oils with temperature [g/cm3 per K] (source oils_density_slope); the
+# thermal expansion of every oil row is this slope over its density at 25 C.
+OIL_DENSITY_SLOPE = 0.00064
+WATER_20C_G_CM3 = 0.99820
+KOH_MG_MOL = 56105.6
+
 # ethanol-water strengths: ethanol volume fraction (% v/v at 20 C) and closed-cup flash point [C]
 # (source secondary_flash_ethanol_water; the flash points stay marked recalled, memory_ethanol_water)
 ETHANOL_WATER = {
@@ -165,6 +177,46 @@ def ethanol_water_row(phi: float, flash_C: float, e: dict, w: dict) -> dict:
                 props_source=ETHANOL_WATER_SOURCES)
 
 
+def oil_props(cas: str) -> tuple[float, float, str]:
+    """Molar mass [g/mol], density at 25 C [g/cm3] and the property sources of an oil row."""
+    mw, dens = MIXTURE_PROPS[cas][:2]
+    sources, recalled = [], []
+    if cas in USP_DENSITY:
+        dens, src = USP_DENSITY[cas]
+        sources += [src, "oils_sg_to_density"]
+    elif cas in RELATIVE_DENSITY_20:
+        rd, src = RELATIVE_DENSITY_20[cas]
+        dens = rd * WATER_20C_G_CM3 - 5.0 * OIL_DENSITY_SLOPE
+        sources += [src, "oils_rd20_to_density"]
+    else:
+        recalled.append("memory_oil_props")
+    if cas in SAPONIFICATION_VALUE:
+        sv, src = SAPONIFICATION_VALUE[cas]
+        mw = 3.0 * KOH_MG_MOL / sv
+        sources += [src, "oils_sap_to_mw"]
+    else:
+        recalled.append("memory_oil_mw")
+    sources += ["oils_density_slope", "memory_oil_props_other"] + recalled
+    return mw, dens, ";".join(dict.fromkeys(sources))
+
+
+def oil_row(cas: str) -> dict:
+    """The values of an oil row: HSP of triolein (vegetable oils) or interpolated between tributyrin and
+    triolein at the mean chain length C8.8 (medium-chain triglycerides); the properties of :func:`oil_props`."""
+    if cas in OILS:
+        hsp, src = dataset_hsp(TRIOLEIN, "MANUEL_RUBEN_2022"), "hsp_mr2022"
+    else:
+        a, b = dataset_hsp(TRIBUTYRIN, "MANUEL_RUBEN_2022"), dataset_hsp(TRIOLEIN, "MANUEL_RUBEN_2022")
+        t = (8.8 - 4.0) / (18.0 - 4.0)
+        hsp = tuple(ai + t * (bi - ai) for ai, bi in zip(a, b))
+        src = "derived_triglyceride_interpolation;hsp_mr2022"
+    mw, dens, props = oil_props(cas)
+    _, _, bp, mp, fl, mu = MIXTURE_PROPS[cas]
+    return dict(mw_g_mol=r(mw, 1), dD_MPa05=r(hsp[0], 2), dP_MPa05=r(hsp[1], 2), dH_MPa05=r(hsp[2], 2),
+                hsp_source=src, density_g_cm3=r(dens, 4), vm_cm3_mol=r(mw / dens, 1), bp_C="", mp_C=r(mp, 0),
+                flash_C=r(fl, 0), visc_mPa_s=r(mu, 1), alpha_1_K=r(OIL_DENSITY_SLOPE / dens, 6), props_source=props)
+
+
 def main() -> int:
     from chemicals.identifiers import search_chemical
     from chemicals.phase_change import Tb, Tm
@@ -186,22 +238,7 @@ def main() -> int:
             out.append(o)
             continue
         if cas in MIXTURE_PROPS:
-            mw, dens, bp, mp, fl, mu, alpha = MIXTURE_PROPS[cas]
-            if cas in OILS:
-                hsp = dataset_hsp(TRIOLEIN, "MANUEL_RUBEN_2022")
-                src = "hsp_mr2022"
-            else:  # MCT: interpolate tributyrin (C4) -> triolein (C18) at C8.8
-                a, b = dataset_hsp(TRIBUTYRIN, "MANUEL_RUBEN_2022"), dataset_hsp(TRIOLEIN, "MANUEL_RUBEN_2022")
-                t = (8.8 - 4.0) / (18.0 - 4.0)
-                hsp = tuple(ai + t * (bi - ai) for ai, bi in zip(a, b))
-                src = "derived_triglyceride_interpolation;hsp_mr2022"
-            props = "memory_oil_props"
-            if cas in USP_DENSITY:
-                dens, usp = USP_DENSITY[cas]
-                props = f"{usp};oils_sg_to_density;memory_oil_props_other"
-            o.update(mw_g_mol=r(mw, 1), dD_MPa05=r(hsp[0], 2), dP_MPa05=r(hsp[1], 2), dH_MPa05=r(hsp[2], 2),
-                     hsp_source=src, density_g_cm3=r(dens, 4), vm_cm3_mol=r(mw / dens, 1), bp_C="", mp_C=r(mp, 0),
-                     flash_C=r(fl, 0), visc_mPa_s=r(mu, 1), alpha_1_K=r(alpha, 6), props_source=props)
+            o.update(oil_row(cas))
             out.append(o)
             continue
         key = HSP_CHOICE.get(cas, "MANUEL_RUBEN_2022")

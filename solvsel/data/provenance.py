@@ -109,7 +109,8 @@ MEMORY_SCOPE = {
     "memory_fusion": ("mp_C", "dHfus_kJ_mol"),
     "memory_flash": ("flash_C",),
     "memory_liquid_props": ("density_g_cm3", "visc_mPa_s", "alpha_1_K", "vm_cm3_mol"),
-    "memory_oil_props_other": ("mp_C", "flash_C", "flammable", "visc_mPa_s", "alpha_1_K"),
+    "memory_oil_props_other": ("mp_C", "flash_C", "flammable", "visc_mPa_s"),
+    "memory_oil_mw": ("mw_g_mol", "vm_cm3_mol"),
     "memory_genotelle_sucrose_viscosity": tuple(f"visc_{t}C_mPa_s" for t in range(0, 61, 5)),
     "memory_ethanol_water": ("flash_C", "flammable"),
 }
