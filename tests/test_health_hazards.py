@@ -10,6 +10,14 @@ Published values checked here (tables/sources.csv has the addresses, read 2026-1
   Regulation (EU) No 944/2013; University of Hamburg list, source ``health_claks_chloroform``);
 - n-hexane: H304 H315 H336 H361f H373 (Annex VI, index 601-037-00-0; GisChem, ``health_gischem_hexane``);
 - toluene: H304 H315 H336 H361d H373 (Annex VI, index 601-021-00-3; GisChem, ``health_gischem_toluene``).
+- diethyl ether: H302 H336 (Annex VI, index 603-022-00-4, nothing added; GisChem, ``health_gischem_diethyl_ether``);
+- tetrahydrofuran: H319 H335 H351 (Annex VI as amended by Regulation (EU) No 618/2012; University of Hamburg
+  list, ``health_claks_thf``; GisChem adds H302 and H336 from suppliers' data, ``health_gischem_thf``);
+- methyl isobutyl ketone: H319 H332 H335 (Annex VI, index 606-004-00-4; GisChem, ``health_gischem_mibk``);
+- acetone: H319 H336 (Annex VI, index 606-001-00-8; secondary compilation of the ECHA data,
+  ``health_annexvi_acetone_secondary``);
+- ethanol: no health hazard class (Annex VI, index 603-002-00-5: Flam. Liq. 2 only; ECHA C&L Inventory,
+  ``health_echa_ethanol``).
 Exposure limits and carcinogen listings are compared with the reference library ``chemicals``.
 """
 
@@ -36,6 +44,11 @@ PUBLISHED = {
     "chloroform": {"H302", "H315", "H319", "H331", "H351", "H361d", "H372"},
     "n-hexane": {"H304", "H315", "H336", "H361f", "H373"},
     "toluene": {"H304", "H315", "H336", "H361d", "H373"},
+    "diethyl ether": {"H302", "H336"},
+    "tetrahydrofuran": {"H319", "H335", "H351"},
+    "methyl isobutyl ketone": {"H319", "H332", "H335"},
+    "acetone": {"H319", "H336"},
+    "ethanol": set(),
 }
 
 
