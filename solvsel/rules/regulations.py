@@ -339,9 +339,20 @@ def _all_limits(cat) -> tuple[Limit, ...]:
     return _ROWS_CACHE[key]
 
 
+_JURISDICTIONS_CACHE: dict[int, tuple[tuple[str, ...], tuple[str, ...]]] = {}
+
+
+def _catalog_jurisdictions(cat) -> tuple[tuple[str, ...], tuple[str, ...]]:
+    """(every jurisdiction, the food-law ones) of the catalog's regulations table, found once."""
+    cat = _catalog(cat)
+    if id(cat) not in _JURISDICTIONS_CACHE:
+        _JURISDICTIONS_CACHE[id(cat)] = _jurisdictions_of((r.jurisdiction, r.use) for r in _all_limits(cat))
+    return _JURISDICTIONS_CACHE[id(cat)]
+
+
 def jurisdictions(cat=None) -> tuple[str, ...]:
     """Every jurisdiction of the catalog's regulations table, sorted (the bundled: EU, ICH, US)."""
-    return _jurisdictions_of((r.jurisdiction, r.use) for r in _all_limits(cat))[0]
+    return _catalog_jurisdictions(cat)[0]
 
 
 def food_jurisdictions(cat=None) -> tuple[str, ...]:
@@ -352,7 +363,7 @@ def food_jurisdictions(cat=None) -> tuple[str, ...]:
     >>> food_jurisdictions()
     ('EU', 'US')
     """
-    return _jurisdictions_of((r.jurisdiction, r.use) for r in _all_limits(cat))[1]
+    return _catalog_jurisdictions(cat)[1]
 
 
 def check_food_jurisdiction(cat, jurisdiction, param: str = "jurisdiction", required: bool = False) -> str | None:
