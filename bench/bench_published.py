@@ -330,8 +330,9 @@ def _unifac_lines(r: dict, e: dict, split: str | None, fmt) -> None:
         _line(f"{what} solubility, Hansen estimate where no groups/parameters", {"": fmt(r[name])})
         _line(f"  alone, solutes with >= {MIN_COVERED} liquids covered, on those liquids",
               {"": fmt(r[name + "_alone"]), "Hansen estimate on the same": fmt(r[name + "_hansen_same"])})
-        _line("  median RMS log10 x, measured enthalpy of fusion / Walden's rule",
-              {"": f"{fmt(e[name + '_measured'])} / {fmt(e[name + '_walden'])}"})
+        _line("  median RMS log10 x, measured enthalpy of fusion / Walden's rule / every solute with a melting point",
+              {"": f"{fmt(e[name + '_measured'])} / {fmt(e[name + '_walden'])} / "
+                   f"{fmt({**e[name + '_measured'], **e[name + '_walden']})}"})
         _line("  median RMS log10 x, alone on the liquids it covers",
               {"": fmt(e[name + "_alone"]), "Hansen estimate on the same": fmt(e[name + "_hansen_same"])})
     for model in ("dortmund", "dortmund2", "nist"):
