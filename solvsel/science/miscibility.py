@@ -220,11 +220,11 @@ def _window(b_in_a, a_in_b, rho_a, rho_b, basis_kind):
 def _measured_index(cat_id: int, cat_ref):
     cat = cat_ref()
     try:
-        df = cat.table("miscibility")
+        rows = cat.rows("miscibility")
     except SolvselError as exc:  # a missing or malformed table is a data error for the user
         raise MissingDataError(f"the measured miscibility table could not be read: {exc}") from exc
     index = {}
-    for row in df.to_dict("records"):
+    for row in rows:
         try:
             a = cat.solvent(row["liquid_a"], library=False)
             b = cat.solvent(row["liquid_b"], library=False)
