@@ -363,7 +363,7 @@ def unifac_table(split: str, name: str = "unifac") -> None:
     chain = UNIFAC_CHAINS[name]
     print(f"\n[{split}] per solute, {UNIFAC_NAMES[name]}: liquids covered; Spearman UNIFAC alone / Hansen estimate "
           "on the same liquids; RMS the same; fusion data; measured spread (max - min log10 x); donors, acceptors")
-    by_donors = {}
+    by_donors, split_error = {}, []
     for s, g, L, V, sites in _groups(split):
         y = g["log10_x"].to_numpy()
         u, _ = unifac_estimate(s, g, chain)
@@ -371,6 +371,9 @@ def unifac_table(split: str, name: str = "unifac") -> None:
         h = np.where(ok, estimate(s, L, V, sites), np.nan)
         if ok.sum() >= MIN_COVERED:
             by_donors.setdefault(min(s.sites[0], 2), []).append((_rho(y, u), _rho(y, h)))
+            if s.mp_C is not None:
+                resid = u[ok] - y[ok]
+                split_error.append((abs(resid.mean()), resid.std()))
         why = ""
         if all(_unifac_groups(s.smiles, m) is None for m in chain):
             why = "no groups"
@@ -384,6 +387,10 @@ def unifac_table(split: str, name: str = "unifac") -> None:
         print(f"  H-bond donors {d}{'+' if d == 2 else ''}: {len(v)} solutes covered, median Spearman UNIFAC alone "
               f"{statistics.median(a for a, _ in v):.2f}, Hansen estimate on the same liquids "
               f"{statistics.median(b for _, b in v):.2f}")
+    if split_error:
+        print(f"  error of UNIFAC alone, {len(split_error)} solutes with a melting point: median |mean offset| "
+              f"{statistics.median(a for a, _ in split_error):.2f}, median scatter about it (SD) "
+              f"{statistics.median(b for _, b in split_error):.2f} in log10 x")
 
 
 def report(split: str | None, quick: bool) -> None:
