@@ -55,10 +55,10 @@ import numpy as np
 
 from ..errors import InputError, OutOfRangeError
 from .hansen import R_J_MOL_K
-from .unifac import cas_of_smiles, model_label, solute_in_liquids
+from .unifac import cas_of_smiles, solute_in_liquids
 
 __all__ = ["WALDEN_J_MOL_K", "Fusion", "fusion_data", "walden_dHfus", "ideal_log10", "hbond_difference", "ln_gamma",
-           "log10_solubility"]
+           "log10_solubility", "log10_solubility_unifac"]
 
 #: Walden's rule: entropy of fusion of rigid organic crystals [J/(mol K)] (Walden 1908, Yalkowsky 1979;
 #: recalled, source id ``solubility_walden_memory``).
