@@ -18,37 +18,13 @@ pytest.importorskip("textual")
 from solvsel.data.catalog import load_catalog  # noqa: E402
 from solvsel.tui.app import create_app  # noqa: E402
 
+from _tui_helpers import settle as _settle, until as _until  # noqa: E402
+
 SIZE = (160, 48)
 
 
 def run(coro):
     return asyncio.run(coro)
-
-
-async def _settle(app, pilot):
-    from textual.worker import WorkerCancelled, WorkerFailed
-
-    try:
-        await app.workers.wait_for_complete()
-    except WorkerCancelled:  # a search the user (or a newer search) cancelled
-        pass
-    except WorkerFailed:  # a fault in a worker: the screen shows it (checked where expected)
-        pass
-    # the worker's last message (posted from its thread) and what it opens need a turn or two
-    await pilot.pause()
-    await pilot.pause()
-
-
-async def _until(pilot, condition, seconds: float = 10.0):
-    """Let the app run until ``condition()`` holds (focus changes and dialogs take a few
-    turns of the event loop, more on a loaded machine); fail with a clear message if not."""
-    import time
-
-    end = time.monotonic() + seconds
-    while not condition():
-        if time.monotonic() > end:
-            raise AssertionError(f"condition not reached within {seconds} s")
-        await pilot.pause(0.05)
 
 
 async def _next_tab_until(pilot, screen, wanted: str):

@@ -20,6 +20,8 @@ pytest.importorskip("textual")
 from solvsel.tui.app import create_app  # noqa: E402
 from solvsel.tui.screenshots import svg_text  # noqa: E402
 
+from _tui_helpers import screen_text as _screen_text, settle as _settle, until as _until  # noqa: E402
+
 SCREENS_DIR = Path(__file__).resolve().parents[1] / "screens"
 
 #: Result tables by screen: (table id, tab to open first or None, the verdict headers that must be on screen).
@@ -38,31 +40,6 @@ VERDICTS = {
 
 def run(coro):
     return asyncio.run(coro)
-
-
-async def _settle(app, pilot):
-    from textual.worker import WorkerCancelled, WorkerFailed
-
-    try:
-        await app.workers.wait_for_complete()
-    except (WorkerCancelled, WorkerFailed):
-        pass
-    await pilot.pause()
-    await pilot.pause()
-
-
-async def _until(pilot, condition, seconds: float = 10.0):
-    import time
-
-    end = time.monotonic() + seconds
-    while not condition():
-        if time.monotonic() > end:
-            raise AssertionError(f"condition not reached within {seconds} s")
-        await pilot.pause(0.05)
-
-
-def _screen_text(app) -> list[str]:
-    return svg_text(app.export_screenshot())
 
 
 async def _verdicts_on_screen(app, pilot):

@@ -13,16 +13,7 @@ pytest.importorskip("textual")
 
 from solvsel.tui.app import create_app  # noqa: E402
 
-
-async def _settle(app, pilot):
-    from textual.worker import WorkerCancelled, WorkerFailed
-
-    try:
-        await app.workers.wait_for_complete()
-    except (WorkerCancelled, WorkerFailed):
-        pass
-    await pilot.pause()
-    await pilot.pause()
+from _tui_helpers import settle as _settle  # noqa: E402
 
 
 async def _answer(app, pilot, key: str, text: str):

@@ -15,6 +15,7 @@ the drink stays clear (the ``load`` and ``clarity`` jobs, :mod:`.carrier_checks`
 
 from __future__ import annotations
 
+import threading
 import time
 
 from rich.text import Text
@@ -52,6 +53,9 @@ STEPS = {
 }
 #: Least time between two progress messages of a step [s] (the first and the last of each always go).
 PROGRESS_EVERY = 0.05
+#: One selection's checks at a time (the chemistry library behind the clarity job loads its tables on first
+#: use, which two threads at once may trip over).
+CHECKS_LOCK = threading.Lock()
 #: The tabs whose lists a new search replaces (labelled as old while it runs).
 SEARCH_TABS = {"tab-blends": "Blends", "tab-front": "Trade-off", "tab-dropped": "Dropped", "tab-excluded": "Left out"}
 
@@ -445,6 +449,12 @@ class CarriersScreen(BenchScreen):
         self.query_one("#search-status", Static).update(text)
 
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        if event.worker.group == "checks" and event.state == WorkerState.ERROR:
+            # not a user's mistake (those come in ChecksDone): a fault of the program, said where the answer goes
+            self.query_one("#carrier-checks", Static).update(Text(
+                f"the checks failed: {type(event.worker.error).__name__}: {event.worker.error} (please report it)",
+                style="bold"))
+            return
         # a search cancelled before its thread ran posts nothing: say so here
         if event.worker is self.worker and event.state == WorkerState.CANCELLED:
             self.stopped("search cancelled")
@@ -573,12 +583,15 @@ class CarriersScreen(BenchScreen):
         from ..jobs.clarity import clarity
         from ..jobs.load import load
 
-        answers = []
-        for job, req in ((load, load_req), (clarity, clarity_req)):
-            try:  # a request the form could not build is its error, passed on as it is
-                answers.append(req if isinstance(req, SolvselError) else job(req, catalog=self.session.catalog))
-            except SolvselError as exc:
-                answers.append(exc)
+        worker, answers = get_current_worker(), []
+        with CHECKS_LOCK:
+            for job, req in ((load, load_req), (clarity, clarity_req)):
+                if worker.is_cancelled:  # the selection changed: its answers would be ignored
+                    return
+                try:  # a request the form could not build is its error, passed on as it is
+                    answers.append(req if isinstance(req, SolvselError) else job(req, catalog=self.session.catalog))
+                except SolvselError as exc:
+                    answers.append(exc)
         self.post_message(ChecksDone(key, *answers))
 
     def on_checks_done(self, message: ChecksDone) -> None:
