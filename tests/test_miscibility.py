@@ -310,7 +310,8 @@ def test_sunflower_oil_and_ethylene_glycol_have_a_window_both_ways(cat):
 def test_pair_matrix_is_kept_on_disk_and_read_back(cat, tmp_path, monkeypatch):
     monkeypatch.setenv("SOLVSEL_CACHE_DIR", str(tmp_path))
     names = [s.name for s in cat.solvent_records()][: M.DISK_CACHE_FROM]
-    fresh = M._compute_matrix(cat, [cat.solvent(n) for n in names], 25.0)
+    recs = [cat.solvent(n) for n in names]
+    fresh = M._compute_matrix(cat, recs, 25.0)
     M._pair_matrix_cached.cache_clear()
     first = M.pair_matrix(cat, names)
     files = list(tmp_path.glob("pair_matrix_*.npz"))
@@ -321,31 +322,32 @@ def test_pair_matrix_is_kept_on_disk_and_read_back(cat, tmp_path, monkeypatch):
         np.testing.assert_array_equal(getattr(first, k), getattr(fresh, k))
         np.testing.assert_array_equal(getattr(again, k), getattr(fresh, k))
         assert not getattr(again, k).flags.writeable
+    # the UNIFAC answers are kept beside the matrices (one file per version of the code and
+    # temperature), read back by a new process (here: the answers in memory forgotten) without
+    # solving a pair again
+    assert len(list(tmp_path.glob("unifac_pairs_*.json"))) == 1
+    M._DISK_PAIRS.clear()
+    with monkeypatch.context() as m:
+        m.setattr(M, "_unifac_solve", lambda *args: pytest.fail("a kept answer was solved again"))
+        np.testing.assert_array_equal(M._compute_matrix(cat, recs, 25.0).limit, fresh.limit)
+    # a damaged file of answers is recomputed, not trusted
+    next(tmp_path.glob("unifac_pairs_*.json")).write_text("[not, json")
+    M._DISK_PAIRS.clear()
+    np.testing.assert_array_equal(M._compute_matrix(cat, recs, 25.0).limit, fresh.limit)
     # another temperature is another key; a damaged file is recomputed, not trusted
     M._pair_matrix_cached.cache_clear()
     M.pair_matrix(cat, names, temp_C=40.0)
     assert len(list(tmp_path.glob("pair_matrix_*.npz"))) == 2
+    assert len(list(tmp_path.glob("unifac_pairs_*.json"))) == 2
     files[0].write_bytes(b"not a matrix")
     M._pair_matrix_cached.cache_clear()
     np.testing.assert_array_equal(M.pair_matrix(cat, names).limit, fresh.limit)
-    # only the newest DISK_CACHE_KEEP matrices stay
+    # only the newest DISK_CACHE_KEEP matrices (and files of UNIFAC answers) stay
     monkeypatch.setattr(M, "DISK_CACHE_KEEP", 1)
     M._pair_matrix_cached.cache_clear()
     M.pair_matrix(cat, names, temp_C=30.0)
     assert len(list(tmp_path.glob("pair_matrix_*.npz"))) == 1
-    # the UNIFAC answers are kept beside the matrices, one file per version of the code, read back
-    # by a new process (here: the in-memory caches emptied) without solving a pair again
-    kept = list(tmp_path.glob("unifac_pairs_*.json"))
-    assert len(kept) == 1
-    M._DISK_PAIRS.clear()
-    monkeypatch.setattr(M, "_unifac_solve", lambda *args: pytest.fail("a kept answer was solved again"))
-    np.testing.assert_array_equal(M._compute_matrix(cat, [cat.solvent(n) for n in names], 25.0).status, fresh.status)
-    monkeypatch.undo()
-    # a damaged file of answers is ignored (recomputed), not trusted
-    monkeypatch.setenv("SOLVSEL_CACHE_DIR", str(tmp_path))
-    kept[0].write_text("[not, json")
-    M._DISK_PAIRS.clear()
-    np.testing.assert_array_equal(M._compute_matrix(cat, [cat.solvent(n) for n in names], 25.0).status, fresh.status)
+    assert len(list(tmp_path.glob("unifac_pairs_*.json"))) == 1
     # an empty SOLVSEL_CACHE_DIR turns the disk cache off
     monkeypatch.setenv("SOLVSEL_CACHE_DIR", "")
     assert M.cache_dir() is None

@@ -491,12 +491,12 @@ def _unifac_pair(sa, sb, temp_C: float, models: tuple[str, ...] = UNIFAC_ORDER):
 def _unifac_oriented(a: tuple[str, float], b: tuple[str, float], temp_C: float, models: tuple[str, ...]):
     """The answer of :func:`_unifac_solve`, solved once per pair, temperature and order of parameter sets
     (kept in memory and, with a cache folder, on disk)."""
-    key, kept = _pair_key(a, b, temp_C, models), _disk_pairs()
+    key, (name, kept) = json.dumps([a[0], a[1], b[0], b[1], list(models)]), _disk_pairs(temp_C)
     if key in kept:
         return None if kept[key] is None else tuple(kept[key])
     got = _unifac_solve(a, b, temp_C, models)
     kept[key] = list(got) if got is not None else None
-    _DISK_PAIRS_NEW.append(key)
+    _DISK_PAIRS_NEW.add(name)
     return got
 
 
@@ -530,15 +530,11 @@ def _unifac_solve(a: tuple[str, float], b: tuple[str, float], temp_C: float, mod
     return None
 
 
-# UNIFAC answers already solved, kept in memory and in cache_dir() beside the pair matrices (one
-# JSON file per version of the code): {folder: {pair key: [model, b in a, a in b] or None}}, and the
-# keys added since the file was last written.
+# UNIFAC answers already solved, kept in memory and in cache_dir() beside the pair matrices, one
+# JSON file per version of the code and temperature: {file: {pair key: [model, b in a, a in b] or
+# None}}, and the files with answers added since they were last written.
 _DISK_PAIRS: dict[str, dict] = {}
-_DISK_PAIRS_NEW: list[str] = []
-
-
-def _pair_key(a: tuple[str, float], b: tuple[str, float], temp_C: float, models: tuple[str, ...]) -> str:
-    return json.dumps([a[0], a[1], b[0], b[1], temp_C, list(models)])
+_DISK_PAIRS_NEW: set[str] = set()
 
 
 @lru_cache(maxsize=1)
@@ -553,16 +549,15 @@ def _unifac_code_key() -> str:
     return digest.hexdigest()[:32]
 
 
-def _unifac_file() -> Path | None:
-    return _unifac_file_for(os.environ.get("SOLVSEL_CACHE_DIR"), os.environ.get("XDG_CACHE_HOME"),
-                            os.environ.get("HOME"))
-
-
 @lru_cache(maxsize=8)
-def _unifac_file_for(*environment) -> Path | None:
-    """The file of UNIFAC answers in :func:`cache_dir` (which the ``environment`` variables decide)."""
-    folder = cache_dir()
-    return None if folder is None else folder / f"unifac_pairs_{_unifac_code_key()}.json"
+def _cache_folder(*environment) -> Path | None:
+    """:func:`cache_dir`, once per value of the ``environment`` variables that decide it."""
+    return cache_dir()
+
+
+def _unifac_file(temp_C: float) -> Path | None:
+    folder = _cache_folder(os.environ.get("SOLVSEL_CACHE_DIR"), os.environ.get("XDG_CACHE_HOME"), os.environ.get("HOME"))
+    return None if folder is None else folder / f"unifac_pairs_{_unifac_code_key()}_{float(temp_C)!r}C.json"
 
 
 def _read_pairs(path: Path | None) -> dict:
@@ -579,26 +574,30 @@ def _read_pairs(path: Path | None) -> dict:
             if v is None or (isinstance(v, list) and len(v) == 3 and v[0] in MODELS)}
 
 
-def _disk_pairs() -> dict:
-    path = _unifac_file()
+def _disk_pairs(temp_C: float) -> tuple[str, dict]:
+    """(file name, answers) of the UNIFAC answers at ``temp_C`` (the name "None" without a cache folder)."""
+    path = _unifac_file(temp_C)
     if str(path) not in _DISK_PAIRS:
         _DISK_PAIRS[str(path)] = _read_pairs(path)
-    return _DISK_PAIRS[str(path)]
+    return str(path), _DISK_PAIRS[str(path)]
 
 
 def _save_unifac_pairs() -> None:
-    """Write the UNIFAC answers solved in this process to the cache folder (nothing without one)."""
-    path = _unifac_file()
-    if not _DISK_PAIRS_NEW or path is None:
-        return
-    try:
-        path.parent.mkdir(parents=True, exist_ok=True)
-        tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp.json")
-        tmp.write_text(json.dumps({**_read_pairs(path), **_disk_pairs()}), encoding="utf-8")
-        os.replace(tmp, path)
-        _DISK_PAIRS_NEW.clear()
-    except OSError:  # a read-only or full cache folder only costs the time next run
-        return
+    """Write the UNIFAC answers solved in this process to the cache folder (nothing without one); only the
+    newest :data:`DISK_CACHE_KEEP` files of answers stay."""
+    for name in sorted(_DISK_PAIRS_NEW):
+        if name == "None":
+            continue
+        path = Path(name)
+        try:
+            path.parent.mkdir(parents=True, exist_ok=True)
+            tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp.json")
+            tmp.write_text(json.dumps({**_read_pairs(path), **_DISK_PAIRS[name]}), encoding="utf-8")
+            os.replace(tmp, path)
+            _keep_newest(path.parent, "unifac_pairs_*.json")
+        except OSError:  # a read-only or full cache folder only costs the time next run
+            continue
+    _DISK_PAIRS_NEW.clear()
 
 
 def predict_pair(sa, sb, temp_C: float = 25.0, models: tuple[str, ...] = UNIFAC_ORDER) -> PairVerdict:
@@ -1107,15 +1106,20 @@ def _matrix_from_disk(path: Path, names: tuple[str, ...], temp_C: float) -> Pair
 DISK_CACHE_KEEP = 16
 
 
+def _keep_newest(folder: Path, pattern: str) -> None:
+    """Delete all but the newest :data:`DISK_CACHE_KEEP` files of ``folder`` matching ``pattern``."""
+    kept = sorted(folder.glob(pattern), key=lambda p: p.stat().st_mtime, reverse=True)
+    for old in kept[DISK_CACHE_KEEP:]:
+        old.unlink(missing_ok=True)
+
+
 def _matrix_to_disk(path: Path, m: PairMatrix) -> None:
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
         tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp.npz")
         np.savez(tmp, **{k: getattr(m, k) for k in _MATRIX_ARRAYS})
         os.replace(tmp, path)
-        kept = sorted(path.parent.glob("pair_matrix_*.npz"), key=lambda p: p.stat().st_mtime, reverse=True)
-        for old in kept[DISK_CACHE_KEEP:]:
-            old.unlink(missing_ok=True)
+        _keep_newest(path.parent, "pair_matrix_*.npz")
     except OSError:  # a read-only or full cache folder only costs the time next run
         return
 
