@@ -9,14 +9,20 @@ has loaded.  What each command may not load:
 - scikit-learn, networkx, RDKit, Textual, Dask and matplotlib only where their feature is asked for (a
   refit, a miscibility graph, a structure, the UI, a cluster, a report's figures).
 
-pandas is loaded by every command that reads the tables (the catalog keeps them as DataFrames),
-but not by ``--version`` or ``--help``; pandas itself loads pyarrow where it is installed.  No time is measured here; the benchmarks time the cold
-starts.
+- pandas only where a DataFrame is asked for (``table``, ``solvents``, a result's ``to_frame()``):
+  the catalog reads its tables with the csv module, so ``rank`` and ``fit`` never load it (pandas
+  itself loads pyarrow where it is installed);
+- the reference library's safety data (``chemicals.safety``: exposure limits, carcinogen listings)
+  once per cache folder: later runs read the values the answers show from the cache file.
+
+A command line with a command imports that command's module alone, not every command's.  No time
+is measured here; the benchmarks time the cold starts (``bench/bench_rank.py``).
 """
 
 from __future__ import annotations
 
 import json
+import os
 import subprocess
 import sys
 from pathlib import Path
@@ -31,14 +37,17 @@ HEAVY = ("pandas", "scipy", "scipy.optimize", "scipy.stats", "scipy.linalg", "sk
 #: Never needed to compute a plain answer (matplotlib only draws a report's figures).
 OPTIONAL = {"sklearn", "networkx", "rdkit", "textual", "dask", "distributed", "scipy.stats", "matplotlib"}
 NO_SCIPY = OPTIONAL | {"scipy", "scipy.optimize", "scipy.linalg"}
+#: Commands that need no DataFrame.
+NO_FRAME = NO_SCIPY | {"pandas"}
 
 CASES = [
-    (["--version"], NO_SCIPY | {"pandas"}),
-    (["blend", "--help"], NO_SCIPY | {"pandas"}),
+    (["--version"], NO_FRAME),
+    (["blend", "--help"], NO_FRAME),
     (["table", "sources", "--json"], NO_SCIPY),
     (["solvents", "--food", "--json"], NO_SCIPY),
     (["rank", "--solute", "cannabidiol", "--top", "3", "--json"], NO_SCIPY),
-    (["rank", "--like", "n-hexane", "--json"], NO_SCIPY),
+    (["rank", "--like", "n-hexane", "--json"], NO_FRAME),
+    (["rank", "--hsp", "17,3,8,8", "--top", "5", "--json"], NO_FRAME),
     (["blend", "--hsp", "17.5,6,10", "--max-components", "2", "--json"], NO_SCIPY),
     (["blend", "--hsp", "17.5,6,10", "--max-components", "3", "--only", "ethanol,water,triacetin", "--json"],
      OPTIONAL),
@@ -46,13 +55,13 @@ CASES = [
     # cache folder or solved with numpy; scipy.optimize only for the tangent-plane polish)
     (["blend", "--hsp", "17.8,3.9,9.9", "--max-components", "4", "--json"], OPTIONAL),
     (["miscible", "water", "ethyl acetate", "--json"], NO_SCIPY),
-    (["fit", BENCH, "--good-at-most", "2", "--json"], OPTIONAL),
+    (["fit", BENCH, "--good-at-most", "2", "--json"], OPTIONAL | {"pandas"}),
     (["hlb", "--oil", "d-limonene=70,medium-chain triglycerides=30", "--emulsifiers",
-      "polysorbate 80,sorbitan monooleate", "--json"], NO_SCIPY),
+      "polysorbate 80,sorbitan monooleate", "--json"], NO_FRAME),
     (["emulsion", "--oil", "d-limonene=70,sucrose acetate isobutyrate=30", "--brix", "11", "--dilution", "500",
       "--droplet-um", "0.4", "--json"], NO_SCIPY),
     (["dose", "--formula", "propylene glycol=90,vanillin=10", "--dose", "0.15%", "--category", "beverages",
-      "--jurisdiction", "EU", "--json"], NO_SCIPY),
+      "--jurisdiction", "EU", "--json"], NO_FRAME),
 ]
 
 _RUN = """
@@ -67,9 +76,9 @@ print(json.dumps({"code": code, "loaded": [m for m in json.loads(sys.argv[2]) if
 """
 
 
-def loaded_by(argv: list[str]) -> tuple[int, set[str]]:
-    """Exit code and the heavy modules loaded by ``solvsel ARGV`` in a fresh interpreter."""
-    out = subprocess.run([sys.executable, "-c", _RUN, json.dumps(argv), json.dumps(HEAVY)], capture_output=True,
+def loaded_by(argv: list[str], heavy=HEAVY) -> tuple[int, set[str]]:
+    """Exit code and the modules of ``heavy`` loaded by ``solvsel ARGV`` in a fresh interpreter."""
+    out = subprocess.run([sys.executable, "-c", _RUN, json.dumps(argv), json.dumps(heavy)], capture_output=True,
                          text=True, check=True, cwd=HERE.parent)
     got = json.loads(out.stdout.strip().splitlines()[-1])
     return got["code"], set(got["loaded"])
@@ -82,24 +91,53 @@ def test_a_command_loads_only_what_it_uses(argv, forbidden):
     assert not loaded & forbidden, f"solvsel {' '.join(argv)} loaded {sorted(loaded & forbidden)}"
 
 
-def test_the_tables_are_read_with_pandas():
-    """The check above sees imports: a command that reads the tables shows pandas loaded."""
+def test_a_table_shown_whole_is_a_dataframe():
+    """The check above sees imports: a command that shows a table as a DataFrame has pandas loaded."""
     assert "pandas" in loaded_by(["table", "sources", "--json"])[1]
 
 
-def test_a_batch_on_this_machine_loads_no_cluster(tmp_path):
-    targets = tmp_path / "targets.csv"
-    targets.write_text("id,dD,dP,dH\na,17,3,8\nb,15.8,8.8,19.4\n", encoding="utf-8")
-    code, loaded = loaded_by(["rank", "--targets", str(targets), "--out", str(tmp_path / "answers.csv"),
-                              "--workers", "1", "--json"])
-    assert code == 0
-    assert not loaded & NO_SCIPY, sorted(loaded & NO_SCIPY)
+def test_a_command_imports_only_its_own_module():
+    """The parser of the command given alone is built (``--help`` still lists every command)."""
+    commands = tuple(f"solvsel.cli.{c}" for c in ("blend", "fit", "estimate", "report", "extract", "demo"))
+    assert loaded_by(["rank", "--hsp", "17,3,8,8", "--top", "3", "--json"], commands)[1] == set()
+    assert loaded_by(["--help"], commands)[1] == set(commands)
 
 
-def test_the_sphere_fit_loads_exactly_its_optimisers_and_the_tables():
-    """``fit`` needs scipy's optimisers (linear programme, SLSQP, Nelder-Mead, L-BFGS-B) and the tables
-    (pandas), nothing else; RDKit only when a structure is given as the prior."""
-    fit_modules = {"pandas", "scipy", "scipy.optimize", "scipy.linalg"}
+#: Runs ``solvsel ARGV``; prints its exit code and whether the reference library's safety data were
+#: loaded (``chemicals.safety`` loads them on the first value asked for and sets this flag).
+_SAFETY_RUN = """
+import contextlib, io, json, sys
+from solvsel.cli import main
+with contextlib.redirect_stdout(io.StringIO()):
+    code = main(json.loads(sys.argv[1]))
+print(json.dumps([code, bool(getattr(sys.modules.get("chemicals.safety"), "_safety_data_loaded", False))]))
+"""
+
+
+@pytest.mark.parametrize("argv", [
+    ["blend", "--hsp", "17.5,6,10", "--max-components", "3", "--only", "ethanol,dichloromethane,triacetin", "--json"],
+    ["rank", "--hsp", "17,3,8,8", "--top", "5", "--json"],
+    ["fit", BENCH, "--good-at-most", "2", "--json"],
+], ids=["blend", "rank", "fit"])
+def test_the_exposure_limits_are_read_from_the_cache_after_the_first_run(argv, tmp_path):
+    """The first run in a cache folder loads the reference library's safety data; the next reads the
+    values its answers show from the cache file (the values themselves: tests/test_health_hazards.py)."""
+    env = {**os.environ, "SOLVSEL_CACHE_DIR": str(tmp_path)}
+
+    def run() -> list:
+        out = subprocess.run([sys.executable, "-c", _SAFETY_RUN, json.dumps(argv)], capture_output=True, text=True,
+                             check=True, cwd=HERE.parent, env=env)
+        return json.loads(out.stdout.strip().splitlines()[-1])
+
+    assert run() == [0, True]
+    assert run() == [0, False]
+    assert list(tmp_path.glob("safety_*.json"))
+
+
+def test_the_sphere_fit_loads_exactly_its_optimisers():
+    """``fit`` needs scipy's optimisers (linear programme, SLSQP, Nelder-Mead, L-BFGS-B), nothing else
+    (the tables are read without pandas); RDKit only when a structure is given as the prior."""
+    fit_modules = {"scipy", "scipy.optimize", "scipy.linalg"}
     assert loaded_by(["fit", BENCH, "--good-at-most", "2", "--graded", "--json"]) == (0, fit_modules)
     assert loaded_by(["fit", BENCH, "--good-at-most", "2", "--graded", "--prior", "CCO", "--json"]) == (
         0, fit_modules | {"rdkit"})
