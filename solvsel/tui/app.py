@@ -29,13 +29,30 @@ THEME = Theme(
 )
 
 
+def alt_digits_as_sent() -> None:
+    """Let Alt+digit reach the app as ``alt+1`` ... ``alt+9`` in terminals that send it as ESC and the digit
+    (xterm, tmux, most terminals of Linux): Textual's table of key sequences reads ESC and a digit as the
+    character a macOS keyboard types with Option and that digit ("™" for ESC 2, "£" for ESC 3), so Alt+2
+    never arrived as alt+2 there.  Without those entries, ESC and a digit take the parser's rule for ESC
+    before a character: the key with Alt.  (The table is Textual's own; if a version has none, nothing
+    changes and the F-keys and the command palette still switch screens.)"""
+    from textual import _ansi_sequences
+
+    table = getattr(_ansi_sequences, "ANSI_SEQUENCES_KEYS", None)
+    if isinstance(table, dict):
+        for digit in "0123456789":
+            table.pop("\x1b" + digit, None)
+
+
 class SolvselApp(App):
     """Choose carriers, blends and emulsifier systems for the current target."""
 
     CSS_PATH = "app.tcss"
     TITLE = "solvsel"
     COMMAND_PALETTE_BINDING = "ctrl+p"
-    BINDINGS = [Binding(f"{key.lower()},alt+{i}", f"switch_mode('{mode}')", title, show=False)
+    # priority: Alt+digit comes with the digit as its character, which a text field with the cursor would
+    # otherwise take as typed
+    BINDINGS = [Binding(f"{key.lower()},alt+{i}", f"switch_mode('{mode}')", title, show=False, priority=True)
                 for i, (mode, key, title) in enumerate(SCREENS, 1)] + [
         Binding("f9", "toggle_keys", "Keys"),
         Binding("ctrl+s", "save_work", "Save work", show=False, priority=True),
@@ -60,6 +77,7 @@ class SolvselApp(App):
             "mixing": MixingScreen, "extraction": ExtractionScreen,
         }
         super().__init__()
+        alt_digits_as_sent()
         self.session = session
         self.start_mode: str | None = None
         self.register_theme(THEME)
