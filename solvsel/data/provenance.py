@@ -275,9 +275,21 @@ def _logging_catalog(tables_dir: Path, log: ReadLog):
             log._frames.setdefault(key, df)
             return _logged_frame(df, log, key)
 
+        def _plain(self, table: str):
+            key = self._table_name(table)
+            return key, log._frames.setdefault(key, Catalog.table(self, key))
+
+        def rows(self, name: str) -> list:
+            plain = Catalog.rows(self, name)
+            if self._table_name(name) == "sources":
+                return plain
+            key, _ = self._plain(name)
+            return [_LoggedRow(r, log, key, i) for i, r in enumerate(plain)]
+
         def find(self, table: str, name: str) -> dict:
             i = self.find_index(table, name)
-            return _LoggedRow(Catalog.table(self, table).iloc[i].to_dict(), log, table, i)
+            key, plain = self._plain(table)
+            return _LoggedRow(plain.iloc[i].to_dict(), log, key, i)
 
         def _records_of(self, table: str) -> list:
             if table not in self._records:
