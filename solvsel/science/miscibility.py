@@ -735,6 +735,13 @@ def pair(cat, a, b, temp_C: float = 25.0) -> PairVerdict:
     >>> v.one_phase, v.basis, v.chi > v.chi_critical
     ('yes', 'measured', True)
     """
+    verdict = _pair(cat, a, b, temp_C)
+    _save_unifac_pairs()  # a UNIFAC answer solved here is kept for the next process
+    return verdict
+
+
+def _pair(cat, a, b, temp_C: float) -> PairVerdict:
+    """:func:`pair` without writing the UNIFAC answers solved to the cache folder."""
     if not (isinstance(temp_C, (int, float)) and math.isfinite(temp_C)):
         raise InputError(f"expected a temperature in C, got {temp_C}", param="temp_C")
     if not -80.0 <= temp_C <= 150.0:
@@ -1132,7 +1139,7 @@ def _compute_matrix(cat, recs, temp_C: float) -> PairMatrix:
     chi = np.zeros((n, n))
     chic = np.full((n, n), np.nan)
     for i, j in combinations(range(n), 2):
-        v = pair(cat, recs[i], recs[j], temp_C)
+        v = _pair(cat, recs[i], recs[j], temp_C)
         status[i, j] = status[j, i] = v.code
         measured[i, j] = measured[j, i] = v.basis == "measured"
         lim_ba, lim_ab = _limits_from_verdict(v)
