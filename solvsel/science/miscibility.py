@@ -502,8 +502,9 @@ def _unifac_oriented(a: tuple[str, float], b: tuple[str, float], temp_C: float, 
 
 #: Subgroups of a parameter set whose value in ``thermo`` is wrong, skipped (the next set is tried).
 #: To merge into solvsel/science/unifac.py (and drop here): ``thermo.unifac.LLEUFSG[30]`` (FCH2O,
-#: the ring ether of tetrahydrofuran and 1,4-dioxane) has R = 9183 for Magnussen et al.'s 0.9183
-#: (the original UNIFAC's ring-ether subgroup ``UFSG[27]``: R 0.9183, Q 1.1).
+#: the ring ether of tetrahydrofuran and 1,4-dioxane) has R = 9183, evidently 0.9183 (the R of the
+#: original UNIFAC's ring-ether subgroup ``UFSG[27]``, whose pattern it takes; not checked against
+#: the paper); with 9183 every pair with those two liquids is a split at 1e-9.
 _WRONG_IN_THERMO = {"lle": frozenset({30})}
 
 
