@@ -57,6 +57,11 @@ RELATIVE_DENSITY_20 = {"8001-21-6": (0.9195, "oils_codex_sunflower"), "73398-61-
 # the triglyceride = 3 x 56105.6 / SV (g/mol).
 SAPONIFICATION_VALUE = {"8001-21-6": (190.5, "oils_codex_sunflower"), "73398-61-5": (335.0, "oils_pheur_mct"),
                         "8001-22-7": (190.0, "oils_usp_soybean")}
+# Flash point [C] (from the chart's degrees F) and its source; the oils' melting points and viscosities
+# stay recalled (memory_oil_mp), and so do all of them where no flash point is published here
+# (memory_oil_props_other).
+OIL_FLASH = {"8001-30-7": ((617 - 32) / 1.8, "oils_iseo_flash"), "8002-13-9": ((619 - 32) / 1.8, "oils_iseo_flash"),
+             "8001-22-7": ((626 - 32) / 1.8, "oils_iseo_flash"), "8001-21-6": ((607 - 32) / 1.8, "oils_iseo_flash")}
 # Fall of the density of vegetable oils with temperature [g/cm3 per K] (source oils_density_slope); the
 # thermal expansion of every oil row is this slope over its density at 25 C.
 OIL_DENSITY_SLOPE = 0.00064
@@ -178,7 +183,8 @@ def ethanol_water_row(phi: float, flash_C: float, e: dict, w: dict) -> dict:
 
 
 def oil_props(cas: str) -> tuple[float, float, str]:
-    """Molar mass [g/mol], density at 25 C [g/cm3] and the property sources of an oil row."""
+    """Molar mass [g/mol], density at 25 C [g/cm3] and the property sources of an oil row (those of its
+    flash point too)."""
     mw, dens = MIXTURE_PROPS[cas][:2]
     sources, recalled = [], []
     if cas in USP_DENSITY:
@@ -196,7 +202,11 @@ def oil_props(cas: str) -> tuple[float, float, str]:
         sources += [src, "oils_sap_to_mw"]
     else:
         recalled.append("memory_oil_mw")
-    sources += ["oils_density_slope", "memory_oil_props_other"] + recalled
+    if cas in OIL_FLASH:
+        sources += [OIL_FLASH[cas][1], "memory_oil_mp"]
+    else:
+        recalled.insert(0, "memory_oil_props_other")
+    sources += ["oils_density_slope"] + recalled
     return mw, dens, ";".join(dict.fromkeys(sources))
 
 
@@ -212,6 +222,7 @@ def oil_row(cas: str) -> dict:
         src = "derived_triglyceride_interpolation;hsp_mr2022"
     mw, dens, props = oil_props(cas)
     _, _, bp, mp, fl, mu = MIXTURE_PROPS[cas]
+    fl = OIL_FLASH.get(cas, (fl,))[0]
     return dict(mw_g_mol=r(mw, 1), dD_MPa05=r(hsp[0], 2), dP_MPa05=r(hsp[1], 2), dH_MPa05=r(hsp[2], 2),
                 hsp_source=src, density_g_cm3=r(dens, 4), vm_cm3_mol=r(mw / dens, 1), bp_C="", mp_C=r(mp, 0),
                 flash_C=r(fl, 0), visc_mPa_s=r(mu, 1), alpha_1_K=r(OIL_DENSITY_SLOPE / dens, 6), props_source=props)

@@ -111,6 +111,7 @@ MEMORY_SCOPE = {
     "memory_liquid_props": ("density_g_cm3", "visc_mPa_s", "alpha_1_K", "vm_cm3_mol"),
     "memory_oil_props_other": ("mp_C", "flash_C", "flammable", "visc_mPa_s"),
     "memory_oil_mw": ("mw_g_mol", "vm_cm3_mol"),
+    "memory_oil_mp": ("mp_C", "visc_mPa_s"),
     "memory_genotelle_sucrose_viscosity": tuple(f"visc_{t}C_mPa_s" for t in range(0, 61, 5)),
     "memory_ethanol_water": ("flash_C", "flammable"),
 }
