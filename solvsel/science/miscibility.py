@@ -462,6 +462,10 @@ def activity_binodal(ln_gamma) -> tuple[float, float] | None:
     """
     la = _ln_activities(ln_gamma, np.log(_GRID / (1.0 - _GRID)))
     g = _GRID * la[:, 0] + (1.0 - _GRID) * la[:, 1]
+    x = _GRID
+    chord = g[:-2] + (g[2:] - g[:-2]) * (x[1:-1] - x[:-2]) / (x[2:] - x[:-2])
+    if (g[1:-1] <= chord).all():  # convex at every point of the grid: one phase (most pairs)
+        return None
     gap = _widest_hull_gap(_GRID, g)
     if gap is None:
         return None
