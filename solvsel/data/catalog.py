@@ -950,6 +950,10 @@ class Catalog:
         name = self._table_name(name)
         if name == "sources":
             return list(_load_sources(self.tables_dir))
+        if type(self).table is not Catalog.table:
+            # a catalog that watches the reads of its tables through table() (the read log of
+            # solvsel.data.provenance) sees the rows read here too
+            return self.table(name).to_dict("records")
         return self._read(name)[1]
 
     def table(self, name: str):
@@ -986,7 +990,7 @@ class Catalog:
     # -- lookup
     def _name_index(self, table: str) -> dict[str, int]:
         if table not in self._index:
-            columns, rows = self._read(self._table_name(table))
+            columns, rows = self._read(self._table_name(table))[0], self.rows(table)
             idx: dict[str, int] = {}
             cols = [c for c in ("name", "cas", "synonyms") if c in columns]
             if "name" not in cols:
