@@ -281,11 +281,10 @@ def _logging_catalog(tables_dir: Path, log: ReadLog):
             return key, log._frames.setdefault(key, Catalog.table(self, key))
 
         def rows(self, name: str) -> list:
-            plain = Catalog.rows(self, name)
             if self._table_name(name) == "sources":
-                return plain
+                return Catalog.rows(self, name)
             key, _ = self._plain(name)
-            return [_LoggedRow(r, log, key, i) for i, r in enumerate(plain)]
+            return [_LoggedRow(r, log, key, i) for i, r in enumerate(Catalog._read(self, key)[1])]
 
         def find(self, table: str, name: str) -> dict:
             i = self.find_index(table, name)
