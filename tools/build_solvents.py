@@ -6,7 +6,11 @@ the HSP from the published datasets bundled with the `chemicals` library (keys
 MANUEL_RUBEN_2022, ALSHERI_HANSEN, WDR_SCHRIER only) and the physical
 properties at 25 C from `chemicals` (molar mass, boiling and melting point,
 flash point) and `thermo` (liquid density, viscosity, thermal expansion), and
-for the mixtures the values written below with their sources.
+for the mixtures the values written below with their sources: the ethanol-water
+strengths from the OIML R 22 alcoholometric formula and the published tables of
+tables/ethanol_water.csv (:func:`ethanol_water_row`), the oils from their
+standards' relative density and saponification value, the published flash points
+and density slope (:func:`oil_props`); what no source gives stays marked recalled.
 
 Run:  .venv/bin/python tools/build_solvents.py   (needs the `test` extra: thermo)
 """
