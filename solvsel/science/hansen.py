@@ -704,7 +704,7 @@ def _mixture_stability(vm_cm3_mol, phi, chi, tol: float) -> MixtureStability:
         def f(z):
             e = np.exp(z - z.max())
             y = e / e.sum()
-            lny = np.log(np.clip(y, 1e-300, None))
+            lny = np.log(np.maximum(y, 1e-300))
             cy = C @ y
             d = float((y * lny) @ inv_n + 0.5 * (y @ cy) - y @ mu + const)
             grad_y = (lny + 1.0) * inv_n + cy - mu
@@ -741,7 +741,7 @@ def _bfgs(f, z0, maxiter: int = 200, gtol: float = 1e-10, ftol: float = 1e-14):
     eye = np.eye(z.size)
     H = eye.copy()
     for _ in range(maxiter):
-        if np.max(np.abs(g)) <= gtol:
+        if abs(g).max() <= gtol:
             break
         p = -H @ g
         if g @ p >= 0.0:  # not a descent direction: start the curvature estimate again
@@ -761,8 +761,8 @@ def _bfgs(f, z0, maxiter: int = 200, gtol: float = 1e-10, ftol: float = 1e-14):
         sy = float(s @ y)
         if sy > 1e-300:
             rho = 1.0 / sy
-            V = eye - rho * np.outer(s, y)
-            H = V @ H @ V.T + rho * np.outer(s, s)
+            V = eye - rho * (s[:, None] * y)
+            H = V @ H @ V.T + rho * (s[:, None] * s)
         if done:
             break
     return float(fz), z
