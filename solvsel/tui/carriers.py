@@ -30,12 +30,12 @@ from textual.worker import Worker, WorkerState, get_current_worker
 from . import carrier_checks
 from .base import BenchScreen
 from .limits import NO_PURPOSE, audit_text, purpose_choices, purpose_value
-from .widgets import BrailleMap, CautionBox, FollowingTabs, fill_table
+from .widgets import BrailleMap, CautionBox, FollowingTabs, fill_table, shorten
 
 # Verdicts first, names last (cut first where the screen is narrow; the detail pane has them whole).
 RANK_HEADERS = ("#", "Ra MPa½", "RED", "allowed", "flammable", "health", "how sure", "carries", "flash °C",
                 "boils °C", "cost", "liquid")
-DROPPED_HEADERS = ("Ra MPa½", "why it was dropped", "blend (volume fractions)")
+DROPPED_HEADERS = ("Ra MPa½", "blend (volume fractions)", "why it was dropped")
 EXCLUDED_HEADERS = ("why it is not in the pool", "liquid")
 #: Columns shown only where some row has something in them (the load check is asked for, say).
 OPTIONAL = ("carries", "how sure", "health")
@@ -47,9 +47,8 @@ BLEND_ROOM = 46
 #: bar, its share of it (about its share of the time of a wide search), and how the status line says it.
 STEPS = {
     "combinations": (0.0, 0.4, "step 1 of 3: exact fractions, {done:,} of {total:,} combinations"),
-    "checks": (0.4, 0.45, "step 2 of 3: checking the best blends (one phase, limits, load), {done} of the {total} "
-                          "wanted passed"),
-    "describing": (0.85, 0.15, "step 3 of 3: describing the blends shown, {done} of {total}"),
+    "checks": (0.4, 0.45, "step 2 of 3: checks (one phase, limits, load), {done} of {total} blends passed"),
+    "describing": (0.85, 0.15, "step 3 of 3: describing, {done} of {total} blends"),
 }
 #: Least time between two progress messages of a step [s] (the first and the last of each always go).
 PROGRESS_EVERY = 0.05
@@ -382,7 +381,7 @@ class CarriersScreen(BenchScreen):
         self.search_no += 1
         self.set_stale(self.result is not None)
         self.query_one("#search-progress", ProgressBar).update(total=100, progress=0)
-        self.status("searching blends: the pool and its constraints (Esc cancels)")
+        self.status("searching blends: the pool and its constraints · Esc cancels")
         self.show_summary()
         self.worker = self.search_worker(req, self.search_no)
 
@@ -397,7 +396,7 @@ class CarriersScreen(BenchScreen):
 
     def status(self, text: str) -> None:
         """The status line beside the bar (saying so while the lists are the previous search's)."""
-        stale = "  ·  greyed: the previous search's lists, until the new ones arrive" if self.stale else ""
+        stale = " · greyed: the previous search's lists" if self.stale else ""
         self.query_one("#search-status", Static).update(text + stale)
 
     def searching(self) -> bool:
@@ -421,7 +420,7 @@ class CarriersScreen(BenchScreen):
             now = time.monotonic()
             if step != last["step"] or done >= total or now - last["at"] >= PROGRESS_EVERY:
                 last.update(step=step, at=now)
-                text = STEPS[step][2].format(done=done, total=total) + " (Esc cancels)"
+                text = STEPS[step][2].format(done=done, total=total) + " · Esc cancels"
                 self.post_message(BlendProgress(done, total, text, search, step))
             return True
 
@@ -526,8 +525,9 @@ class CarriersScreen(BenchScreen):
         fill_table(self.query_one("#blend-grid", DataTable), cols, rows, cut=-1, optional=OPTIONAL, spare=SPARE,
                    name_room=BLEND_ROOM)
         fill_table(self.query_one("#dropped-grid", DataTable), DROPPED_HEADERS, [
-            (_fmt(d.ra), d.reason, " + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions)))
-            for d in res.dropped], cut=1)
+            # the blend at most BLEND_ROOM cells, so that its reason has room (the detail pane has both whole)
+            (_fmt(d.ra), shorten(" + ".join(f"{n} {x:.2f}" for n, x in zip(d.names, d.volume_fractions)), BLEND_ROOM),
+             d.reason) for d in res.dropped], cut=-1)
         fill_table(self.query_one("#excluded-grid", DataTable), EXCLUDED_HEADERS,
                    [(e.reason, e.name) for e in res.excluded], cut=0)
         if res.results or self.query_one("#carrier-tabs", TabbedContent).active != "tab-blends":
@@ -601,8 +601,11 @@ class CarriersScreen(BenchScreen):
             return  # the answer for a selection left since
         self.checks = message
         t = Text()
-        for question, answer, say in (("Dissolves?", message.load, carrier_checks.load_text),
-                                      ("Drink stays clear?", message.clear, carrier_checks.clarity_text)):
+        asked = (("Dissolves?", message.load, carrier_checks.load_text),
+                 ("Drink stays clear?", message.clear, carrier_checks.clarity_text))
+        if message.load is message.clear:  # one thing missing for both questions (the load): said once
+            asked = (("Dissolves? Drink stays clear?", message.load, None),)
+        for question, answer, say in asked:
             t.append_text(carrier_checks.error_text(question, answer, self.FIELD_LABELS)
                           if isinstance(answer, SolvselError) else say(answer))
         self.query_one("#carrier-checks", Static).update(t)

@@ -42,7 +42,7 @@ class TargetScreen(BenchScreen):
             with FollowingTabs(id="target-tabs"):
                 with TabPane("Solutes table", id="from-table"):
                     yield Input(placeholder="type to narrow the list; Enter on a name uses it", id="solute-filter", compact=True)
-                    yield Static(f"  {'solute':<30} {'kind':<8} {'dD':>5} {'dP':>5} {'dH':>5}  basis of the HSP  (MPa^0.5)",
+                    yield Static(f"  {'solute':<28} {'kind':<8} {'dD':>5} {'dP':>5} {'dH':>5}  basis of the HSP  (MPa^0.5)",
                                  classes="list-header")
                     yield OptionList(id="solute-list")
                 with TabPane("Typed numbers", id="from-typed"):
@@ -90,7 +90,7 @@ class TargetScreen(BenchScreen):
                 continue
             r0 = f" R0 {s.r0:.1f}" if s.r0 else ""
             mine = "  (yours)" if s.is_user else ""
-            line = f"{shorten(s.name, 30):<30} {s.category:<8} {s.dD:5.1f} {s.dP:5.1f} {s.dH:5.1f}{r0}  {s.hsp_basis}{mine}"
+            line = f"{shorten(s.name, 28):<28} {s.category:<8} {s.dD:5.1f} {s.dP:5.1f} {s.dH:5.1f}{r0}  {s.hsp_basis}{mine}"
             ol.add_option(Option(Text(line, no_wrap=True, overflow="ellipsis"), id=s.cas or s.name))
         t = self.session.target
         if t is not None and t.solute is not None:

@@ -28,7 +28,10 @@ def front_map(figure) -> MapData:
     pts = tuple(MapPoint(float(p["x"]), float(p["ra"]), "top" if p["front"] else "other", _mark(p.get("rank")),
                          p["name"])
                 for p in sorted(figure.data["points"], key=lambda p: (not p["front"], p.get("rank") or 0)))
-    return MapData(pts, figure.data["x_label"], RA_LABEL, title=figure.title, equal=False)
+    xs, ys = [p.x for p in pts], [p.y for p in pts]
+    pad = 0.1 * (max(xs) - min(xs) or 1.0)  # room for the marks at the ends; Ra from 0, a perfect fit
+    window = (min(xs) - pad, max(xs) + pad, 0.0, 1.08 * max(ys) or 1.0)
+    return MapData(pts, figure.data["x_label"], RA_LABEL, title=figure.title, window=window, equal=False)
 
 
 def front_legend(figure, width: int = 36) -> Text:
