@@ -946,7 +946,16 @@ class Catalog:
     def rows(self, name: str) -> list[dict[str, Any]]:
         """The validated rows of table ``name`` (without .csv), one dict a row with an ``origin``
         (numbers as float, NaN when empty; integers as int, None when empty; text as str), read
-        with the csv module: what a job reads without needing a DataFrame.  Do not change them."""
+        with the csv module: what a job reads without needing a DataFrame.  Do not change them.
+
+        The same values as :meth:`table`:
+
+        >>> cat = load_catalog()
+        >>> row = cat.rows("solvents")[cat.find_index("solvents", "ethanol")]
+        >>> frame = cat.table("solvents").set_index("name")
+        >>> all(row[c] == frame.loc["ethanol", c] for c in ("cas", "dD_MPa05", "bp_C", "cost_class", "origin"))
+        True
+        """
         name = self._table_name(name)
         if name == "sources":
             return list(_load_sources(self.tables_dir))
