@@ -71,6 +71,38 @@ def test_olive_oil_in_absolute_ethanol_as_villavecchia_gives_it():
     assert float(r["b_in_a_wt"]) < 100 * 10 / 110
 
 
+#: Mutual solubilities with water from the IUPAC-NIST Solubility Data Series 69 (Skrzecz, Shaw and Maczynski 1999,
+#: critical evaluations in the IUPAC-NIST Solubility Database): (liquid, temperature [C]) -> (mole fraction of the
+#: liquid in its own phase, in the water-rich phase, molar mass [g/mol], source id).  Benzyl alcohol's entry is a
+#: compiled measurement given as mass fractions there (Susarev and Gorbunov 1963): 0.9080 and 0.0420.
+IUPAC_NIST_WATER = {
+    ("1-butanol", 25.0): (0.488, 0.0191, 74.12, "pairs_sds69_1butanol"),
+    ("1-octanol", 25.0): (0.742, 7.5e-5, 130.23, "pairs_sds69_1octanol"),
+    ("2-butanol", 30.0): (0.318, 0.0491, 74.12, "pairs_sds69_2butanol"),
+}
+
+
+def _mass_pct(x: float, mw: float, mw_water: float = 18.015) -> float:
+    return 100.0 * x * mw / (x * mw + (1.0 - x) * mw_water)
+
+
+@pytest.mark.parametrize("key", sorted(IUPAC_NIST_WATER), ids=lambda k: k[0])
+def test_water_pairs_from_the_iupac_nist_evaluations(key):
+    x_own, x_water, mw, src = IUPAC_NIST_WATER[key]
+    r = _row(key[0], "water", key[1])
+    assert src in _sources(r)
+    # water in the liquid, the liquid in water [wt %]; three significant figures as the table holds them
+    assert float(r["b_in_a_wt"]) == pytest.approx(100.0 - _mass_pct(x_own, mw), rel=5e-3)
+    assert float(r["a_in_b_wt"]) == pytest.approx(_mass_pct(x_water, mw), rel=5e-3)
+
+
+def test_benzyl_alcohol_with_water_as_compiled():
+    # IUPAC-NIST Solubility Database, benzyl alcohol + toluene + water, binary ends at 20 C (pairs_sds69_benzyl_alcohol)
+    r = _row("benzyl alcohol", "water", 20.0)
+    assert float(r["b_in_a_wt"]) == pytest.approx(100.0 * (1.0 - 0.9080))
+    assert float(r["a_in_b_wt"]) == pytest.approx(100.0 * 0.0420)
+
+
 def test_sources_of_the_pairs_carry_their_address_and_date_read():
     ids = {s for r in PAIRS for s in _sources(r) if s.startswith("pairs_")} | {
         s for s in SOURCES if s.startswith("pairs_")}
