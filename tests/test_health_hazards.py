@@ -18,6 +18,11 @@ Published values checked here (tables/sources.csv has the addresses, read 2026-1
   ``health_annexvi_acetone_secondary``);
 - ethanol: no health hazard class (Annex VI, index 603-002-00-5: Flam. Liq. 2 only; ECHA C&L Inventory,
   ``health_echa_ethanol``).
+- cyclohexane: H304 H315 H336 (Annex VI, index 601-017-00-1; INRS substance sheet n° 17, ``health_inrs_cyclohexane``);
+- acetonitrile: H302 H312 H319 H332 (Annex VI, index 608-001-00-3; INRS substance sheet n° 104,
+  ``health_inrs_acetonitrile``);
+- 1-butanol: H302 H315 H318 H335 H336 (Annex VI, index 603-004-00-6; INRS substance sheet n° 80,
+  ``health_inrs_1_butanol``).
 Exposure limits and carcinogen listings are compared with the reference library ``chemicals``.
 """
 
@@ -49,6 +54,9 @@ PUBLISHED = {
     "methyl isobutyl ketone": {"H319", "H332", "H335"},
     "acetone": {"H319", "H336"},
     "ethanol": set(),
+    "cyclohexane": {"H304", "H315", "H336"},  # INRS sheet n° 17 (health_inrs_cyclohexane)
+    "acetonitrile": {"H302", "H312", "H319", "H332"},  # INRS sheet n° 104 (health_inrs_acetonitrile)
+    "1-butanol": {"H302", "H315", "H318", "H335", "H336"},  # INRS sheet n° 80 (health_inrs_1_butanol)
 }
 
 
