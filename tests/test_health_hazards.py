@@ -22,7 +22,14 @@ Published values checked here (tables/sources.csv has the addresses, read 2026-1
 - acetonitrile: H302 H312 H319 H332 (Annex VI, index 608-001-00-3; INRS substance sheet n° 104,
   ``health_inrs_acetonitrile``);
 - 1-butanol: H302 H315 H318 H335 H336 (Annex VI, index 603-004-00-6; INRS substance sheet n° 80,
-  ``health_inrs_1_butanol``).
+  ``health_inrs_1_butanol``);
+- ethyl acetate: H319 H336 (Annex VI, index 607-022-00-5; INRS sheet n° 18, ``health_inrs_ethyl_acetate``);
+- isopropanol: H319 H336 (Annex VI, index 603-117-00-0; INRS sheet n° 66, ``health_inrs_isopropanol``);
+- methyl ethyl ketone: H319 H336 (Annex VI, index 606-002-00-3; INRS sheet n° 14, ``health_inrs_mek``);
+- acetic acid: H314 (Annex VI, index 607-002-00-6, Skin Corr. 1A; quoted on the agency's registration pages,
+  ``health_echa_acetic_acid``);
+- N,N-dimethylformamide: H312 H319 H332 H360D (CLP statements listed by the INRS exposure tool, a safety data
+  compilation, ``health_inrs_dmf``).
 Exposure limits and carcinogen listings are compared with the reference library ``chemicals``.
 """
 
@@ -57,6 +64,15 @@ PUBLISHED = {
     "cyclohexane": {"H304", "H315", "H336"},  # INRS sheet n° 17 (health_inrs_cyclohexane)
     "acetonitrile": {"H302", "H312", "H319", "H332"},  # INRS sheet n° 104 (health_inrs_acetonitrile)
     "1-butanol": {"H302", "H315", "H318", "H335", "H336"},  # INRS sheet n° 80 (health_inrs_1_butanol)
+    "ethyl acetate": {"H319", "H336"},  # INRS sheet n° 18 (health_inrs_ethyl_acetate)
+    "isopropanol": {"H319", "H336"},  # INRS sheet n° 66 (health_inrs_isopropanol)
+    "methyl ethyl ketone": {"H319", "H336"},  # INRS sheet n° 14 (health_inrs_mek)
+    "acetic acid": {"H314"},  # agency's registration pages quoting Annex VI (health_echa_acetic_acid)
+}
+
+#: Statements read in a safety data compilation that does not say they are the Annex VI entry.
+COMPILED = {
+    "N,N-dimethylformamide": {"H312", "H319", "H332", "H360D"},  # INRS exposure tool (health_inrs_dmf)
 }
 
 
@@ -84,6 +100,13 @@ def test_published_statements(cat, name):
     hh = health_hazard(cat, cat.solvent(name))
     assert set(hh.statements) == PUBLISHED[name]
     assert hh.basis == "harmonised" and hh.confidence == "checked"
+
+
+@pytest.mark.parametrize("name", sorted(COMPILED))
+def test_statements_from_a_safety_data_compilation(cat, name):
+    hh = health_hazard(cat, cat.solvent(name))
+    assert set(hh.statements) == COMPILED[name]
+    assert hh.basis == "safety data compilation" and hh.confidence == "checked"
 
 
 def test_dichloromethane_shows_its_carcinogenicity_in_rank_and_blend(cat):
