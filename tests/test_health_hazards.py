@@ -9,7 +9,8 @@ Published values checked here (tables/sources.csv has the addresses, read 2026-1
 - chloroform: H302 H315 H319 H331 H351 H361d H372 (Annex VI, index 602-006-00-4, as amended by
   Regulation (EU) No 944/2013; University of Hamburg list, source ``health_claks_chloroform``);
 - n-hexane: H304 H315 H336 H361f H373 (Annex VI, index 601-037-00-0; GisChem, ``health_gischem_hexane``);
-- toluene: H304 H315 H336 H361d H373 (Annex VI, index 601-021-00-3; GisChem, ``health_gischem_toluene``).
+- toluene: H304 H315 H336 H361d H373 (Annex VI, index 601-021-00-3; GisChem, ``health_gischem_toluene``;
+  INRS sheet n° 74, ``health_inrs_toluene``).
 - diethyl ether: H302 H336 (Annex VI, index 603-022-00-4, nothing added; GisChem, ``health_gischem_diethyl_ether``);
 - tetrahydrofuran: H319 H335 H351 (Annex VI as amended by Regulation (EU) No 618/2012; University of Hamburg
   list, ``health_claks_thf``; GisChem adds H302 and H336 from suppliers' data, ``health_gischem_thf``);
@@ -29,7 +30,8 @@ Published values checked here (tables/sources.csv has the addresses, read 2026-1
 - acetic acid: H314 (Annex VI, index 607-002-00-6, Skin Corr. 1A; quoted on the agency's registration pages,
   ``health_echa_acetic_acid``);
 - N,N-dimethylformamide: H312 H319 H332 H360D (CLP statements listed by the INRS exposure tool, a safety data
-  compilation, ``health_inrs_dmf``).
+  compilation, ``health_inrs_dmf``);
+- ethylene glycol: H302 (Annex VI, index 603-027-00-1; INRS sheet n° 25, ``health_inrs_ethylene_glycol``).
 Exposure limits and carcinogen listings are compared with the reference library ``chemicals``.
 """
 
@@ -68,6 +70,7 @@ PUBLISHED = {
     "isopropanol": {"H319", "H336"},  # INRS sheet n° 66 (health_inrs_isopropanol)
     "methyl ethyl ketone": {"H319", "H336"},  # INRS sheet n° 14 (health_inrs_mek)
     "acetic acid": {"H314"},  # agency's registration pages quoting Annex VI (health_echa_acetic_acid)
+    "ethylene glycol": {"H302"},  # INRS sheet n° 25 (health_inrs_ethylene_glycol)
 }
 
 #: Statements read in a safety data compilation that does not say they are the Annex VI entry.
