@@ -740,6 +740,7 @@ def _bfgs(f, z0, maxiter: int = 200, gtol: float = 1e-10, ftol: float = 1e-14):
     fz, g = f(z)
     eye = np.eye(z.size)
     H = eye.copy()
+    first = True
     for _ in range(maxiter):
         if abs(g).max() <= gtol:
             break
@@ -761,6 +762,8 @@ def _bfgs(f, z0, maxiter: int = 200, gtol: float = 1e-10, ftol: float = 1e-14):
         sy = float(s @ y)
         if sy > 1e-300:
             rho = 1.0 / sy
+            if first:  # scale the first curvature estimate (Nocedal and Wright, eq. 6.20)
+                H, first = eye * (sy / float(y @ y)), False
             V = eye - rho * (s[:, None] * y)
             H = V @ H @ V.T + rho * (s[:, None] * s)
         if done:
