@@ -8,7 +8,8 @@ Published values checked here (tables/sources.csv has the addresses, read 2026-1
   GisChem, source ``health_gischem_methanol``);
 - chloroform: H302 H315 H319 H331 H351 H361d H372 (Annex VI, index 602-006-00-4, as amended by
   Regulation (EU) No 944/2013; University of Hamburg list, source ``health_claks_chloroform``);
-- n-hexane: H304 H315 H336 H361f H373 (Annex VI, index 601-037-00-0; GisChem, ``health_gischem_hexane``);
+- n-hexane: H304 H315 H336 H361f H373 (Annex VI, index 601-037-00-0; GisChem, ``health_gischem_hexane``;
+  INRS sheet n° 113, ``health_inrs_hexane``);
 - toluene: H304 H315 H336 H361d H373 (Annex VI, index 601-021-00-3; GisChem, ``health_gischem_toluene``;
   INRS sheet n° 74, ``health_inrs_toluene``).
 - diethyl ether: H302 H336 (Annex VI, index 603-022-00-4, nothing added; GisChem, ``health_gischem_diethyl_ether``);
