@@ -32,7 +32,8 @@ Published values checked here (tables/sources.csv has the addresses, read 2026-1
   ``health_echa_acetic_acid``);
 - N,N-dimethylformamide: H312 H319 H332 H360D (CLP statements listed by the INRS exposure tool, a safety data
   compilation, ``health_inrs_dmf``);
-- ethylene glycol: H302 (Annex VI, index 603-027-00-1; INRS sheet n° 25, ``health_inrs_ethylene_glycol``).
+- ethylene glycol: H302 (Annex VI, index 603-027-00-1; INRS sheet n° 25, ``health_inrs_ethylene_glycol``);
+- p-xylene: H312 H315 H332 (Annex VI, index 601-022-00-9; INRS sheet n° 77, ``health_inrs_xylenes``).
 Exposure limits and carcinogen listings are compared with the reference library ``chemicals``.
 """
 
@@ -72,6 +73,7 @@ PUBLISHED = {
     "methyl ethyl ketone": {"H319", "H336"},  # INRS sheet n° 14 (health_inrs_mek)
     "acetic acid": {"H314"},  # agency's registration pages quoting Annex VI (health_echa_acetic_acid)
     "ethylene glycol": {"H302"},  # INRS sheet n° 25 (health_inrs_ethylene_glycol)
+    "p-xylene": {"H312", "H315", "H332"},  # INRS sheet n° 77 (health_inrs_xylenes)
 }
 
 #: Statements read in a safety data compilation that does not say they are the Annex VI entry.

@@ -201,7 +201,7 @@ def test_soybean_oil_molar_mass_from_its_saponification_value():
 #: miscibility 45 of the 74 values the demo then read; at the start of the next round: health_hazards 33,
 #: solvents 105, oils 2, sucrose_viscosity 4, water_solubility 4).
 RECALLED_AT_MOST = {"emulsifiers": 1, "oils": 1, "solutes": 13, "sucrose_density": 2, "weighting_agents": 2,
-                    "miscibility": 32, "health_hazards": 18, "solvents": 71, "sucrose_viscosity": 4,
+                    "miscibility": 32, "health_hazards": 17, "solvents": 71, "sucrose_viscosity": 4,
                     "water_solubility": 4}
 
 
