@@ -34,3 +34,27 @@ def test_esc_and_a_digit_reach_the_app_as_alt_digit_and_switch_screens_with_a_fi
     # the screen keys take Alt+digit before a text field with the cursor would type its digit
     bound = {k.strip(): b for b in SolvselApp.BINDINGS for k in b.key.split(",")}
     assert all(bound[f"alt+{i}"].priority for i in range(1, 9))
+
+
+def test_no_screen_switch_under_a_dialog_or_the_command_palette():
+    import asyncio
+
+    from _tui_helpers import settle, until
+    from solvsel.tui.app import create_app
+
+    async def go():
+        app = create_app(start="tables")
+        async with app.run_test(size=(100, 30)) as pilot:
+            await settle(app, pilot)
+            await pilot.press("ctrl+p")
+            await until(pilot, lambda: type(app.screen).__name__ == "CommandPalette")
+            for key in ("alt+3", "f4"):  # the palette keeps the keys (switching would leave it behind)
+                await pilot.press(key)
+                await pilot.pause()
+                assert app.current_mode == "tables" and type(app.screen).__name__ == "CommandPalette"
+            await pilot.press("escape")
+            await until(pilot, lambda: type(app.screen).__name__ == "TablesScreen")
+            await pilot.press("alt+3")  # and switch again once it is closed
+            await until(pilot, lambda: app.current_mode == "carriers")
+
+    asyncio.run(go())

@@ -83,6 +83,15 @@ class SolvselApp(App):
         self.register_theme(THEME)
         self.theme = THEME.name
 
+    def check_action(self, action: str, parameters) -> bool | None:
+        """No switching of screens while a dialog or the command palette is open (it would stay behind on the
+        screen left, and open again over itself): the keys go to the dialog."""
+        from textual.screen import ModalScreen
+
+        if action == "switch_mode" and isinstance(self.screen, ModalScreen):
+            return False
+        return True
+
     def action_toggle_keys(self) -> None:
         """Show or hide the panel listing every key of the screen in front."""
         from textual.widgets import HelpPanel

@@ -17,7 +17,7 @@ import time
 PATIENCE = 10.0
 
 #: Keys of the run: every screen key, the tabs, the forms, the lists, typing, Enter and Escape.
-KEYS = (["f1", "f2", "f3", "f4", "f5", "f6", "f7"] + [f"alt+{i}" for i in range(1, 8)]
+KEYS = ([f"f{i}" for i in range(1, 9)] + [f"alt+{i}" for i in range(1, 9)]
         + ["tab", "shift+tab", "ctrl+t", "ctrl+b", "ctrl+o", "ctrl+r", "ctrl+g", "ctrl+f", "escape", "enter",
            "up", "down", "left", "right", "pagedown", "pageup", "home", "end", "space", "backspace", "slash",
            "v", "z", "f9", "ctrl+p"]
