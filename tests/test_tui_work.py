@@ -38,6 +38,7 @@ def test_save_open_and_export_through_the_ui(tmp_path):
             screen.query_one("#temp").value = "30"
             screen.query_one("#exclude").value = "ethanol"
             screen.query_one("#load").value = "5%"
+            screen.query_one("#storage").value = "2:30"
             screen.action_search()
             await _settle(app, pilot)
             app.session.set_target(target_from_hsp((17.5, 4.0, 9.0, 7.0), name="typed"))
@@ -48,7 +49,7 @@ def test_save_open_and_export_through_the_ui(tmp_path):
             ws = open_workspace(path)
             assert ws.target == {"hsp": [17.5, 4.0, 9.0, 7.0]}
             assert ws.constraints["temp_C"] == 30.0 and ws.constraints["exclude"] == ["ethanol"]
-            assert ws.constraints["load"] == pytest.approx(0.05)
+            assert ws.constraints["load"] == pytest.approx(0.05) and ws.constraints["storage_C"] == "2:30"
             assert ws.formulas and ws.emulsions  # the flavour's and the drink's fields, as the forms hold them
 
             # the result on screen as a report: the blend search's JSON document, with its figures named
@@ -68,6 +69,7 @@ def test_save_open_and_export_through_the_ui(tmp_path):
             assert other.screen.query_one("#temp").value == "30"
             assert other.screen.query_one("#exclude").value == "ethanol"
             assert other.screen.query_one("#load").value == "5%"
+            assert other.screen.query_one("#storage").value == "2:30"
             # a file that is not a workspace: the dialog, and the work on screen stays
             bad = tmp_path / "bad.json"
             bad.write_text("{not json", encoding="utf-8")

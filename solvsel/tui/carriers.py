@@ -245,6 +245,7 @@ class CarriersScreen(BenchScreen):
         lo, hi = part.get("bp_min_C"), part.get("bp_max_C")
         self.query_one("#bp-window", Input).value = "" if lo is None and hi is None else f"{_g(lo)}:{_g(hi)}"
         self.query_one("#load", Input).value = "" if part.get("load") is None else f"{100 * float(part['load']):g}%"
+        self.query_one("#storage", Input).value = str(part.get("storage_C") or "")
 
     def report_of(self):
         """(job, title, text, result) of the list in front, for a report (None before any result)."""
@@ -267,6 +268,8 @@ class CarriersScreen(BenchScreen):
             "max_components": b.max_components, "temp_C": b.temp_C, "exclude": list(b.exclude),
             "reject": list(b.rejects), "min_flash_C": b.min_flash_C, "bp_min_C": b.bp_min_C, "bp_max_C": b.bp_max_C,
             "load": b.load}
+        if _text(self, "#storage"):  # the storage range of the load checks, as text the command line reads too
+            self.session.overrides["carrier"]["storage_C"] = f"{b.storage_C[0]:g}:{b.storage_C[1]:g}"
 
     def session_to_form(self) -> None:
         self.fill_preset("carrier")
@@ -308,6 +311,8 @@ class CarriersScreen(BenchScreen):
             exclude=tuple(parse_names(exclude, "exclude")) if exclude else (),
             load=_text(self, "#load"),
         )
+        if _text(self, "#storage"):  # the load checks' storage range (the jobs' default without it)
+            common["storage_C"] = _text(self, "#storage")
         return (
             RankRequest(**common, food=common["use"] is not None, top=15),
             BlendRequest(**common, max_components=int(self.query_one("#max-components", Select).value),
@@ -347,7 +352,8 @@ class CarriersScreen(BenchScreen):
                  f"for {q('#purpose', Select).value}", f"up to {q('#max-components', Select).value} liquids",
                  f"{q('#temp', Input).value.strip() or '?'} C"]
         for label, sel in (("flash at least", "#min-flash"), ("boils", "#bp-window"), ("leaving out", "#exclude"),
-                           ("keeping out", "#rejects"), ("load", "#load")):
+                           ("keeping out", "#rejects"), ("load", "#load"), ("stored", "#storage"),
+                           ("dose in the drink", "#drink-dose"), ("chain", "#drink-chain"), ("Brix", "#drink-brix")):
             if _text(self, sel):
                 parts.append(f"{label} {_text(self, sel)}")
         return "Constraints: " + " · ".join(parts)

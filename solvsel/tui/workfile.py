@@ -13,7 +13,8 @@ from pathlib import Path
 #: Carriers' constraints: workspace (request) field -> the scenario part's key the form reads.
 CARRIER_FIELDS = {"use": "use", "jurisdiction": "jurisdiction", "purpose": "purpose", "temp_C": "temp_C",
                   "max_components": "max_components", "exclude": "exclude", "rejects": "reject",
-                  "min_flash_C": "min_flash_C", "bp_min_C": "bp_min_C", "bp_max_C": "bp_max_C", "load": "load"}
+                  "min_flash_C": "min_flash_C", "bp_min_C": "bp_min_C", "bp_max_C": "bp_max_C", "load": "load",
+                  "storage_C": "storage_C"}
 
 
 def target_entry(target) -> dict | None:
