@@ -152,12 +152,6 @@ def _unifac_estimate(solute: str, keys: tuple, chain: tuple, amount: bool) -> tu
     return out, basis
 
 
-def _with_hansen(s, g, L, V, sites, chain, amount: bool = True) -> np.ndarray:
-    """The UNIFAC estimate, the Hansen estimate where UNIFAC has no groups or parameters."""
-    u, _ = unifac_estimate(s, g, chain, amount)
-    return np.where(np.isfinite(u), u, estimate(s, L, V, sites, amount=amount))
-
-
 def _rho(y, p) -> float:
     ok = np.isfinite(p)
     return data.spearman(y[ok], p[ok])
