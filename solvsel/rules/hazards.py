@@ -323,21 +323,24 @@ _LIBRARY_NEW: list[str] = []
 
 
 @lru_cache(maxsize=1)
-def _library_file() -> Path | None:
-    """The cache file of the library's safety values, or None (no cache folder, or no library)."""
+def _library_key() -> str | None:
+    """What the kept values depend on: the library's version and this module (None: no library)."""
     from importlib.metadata import PackageNotFoundError, version
 
-    from ..data.catalog import cache_dir
-
-    folder = cache_dir()
-    if folder is None:
-        return None
     try:
         digest = hashlib.sha256(version("chemicals").encode())
     except PackageNotFoundError:
         return None
     digest.update(Path(__file__).read_bytes())
-    return folder / f"safety_{digest.hexdigest()[:32]}.json"
+    return digest.hexdigest()[:32]
+
+
+def _library_file() -> Path | None:
+    """The cache file of the library's safety values, or None (no cache folder, or no library)."""
+    from ..data.catalog import cache_dir
+
+    folder, key = cache_dir(), _library_key()
+    return None if folder is None or key is None else folder / f"safety_{key}.json"
 
 
 def _read_library_file(path: Path | None) -> dict[str, dict]:
