@@ -28,7 +28,7 @@ from textual.widgets import Button, DataTable, Input, Label, ProgressBar, Select
 from textual.worker import Worker, WorkerState, get_current_worker
 
 from . import carrier_checks
-from .base import BenchScreen
+from .base import NARROW, BenchScreen
 from .limits import NO_PURPOSE, audit_text, purpose_choices, purpose_value
 from .widgets import BrailleMap, CautionBox, FollowingTabs, fill_table, shorten
 
@@ -345,6 +345,7 @@ class CarriersScreen(BenchScreen):
         self.fill_ranking()
         if self.result is not None:
             self.fill_blends(self.result)
+            self.draw_front(self.result)
 
     def form_summary(self) -> str:
         q = self.query_one
@@ -557,7 +558,7 @@ class CarriersScreen(BenchScreen):
 
         pic.data = front_map(self.front)
         pic.border_title = f"Ra against {self.front.data['x_label']}"
-        legend.update(front_legend(self.front))
+        legend.update(front_legend(self.front, 38 if self.app.size.width >= NARROW else 28))  # the pane's room
 
     def on_braille_map_cursor_moved(self, message: BrailleMap.CursorMoved) -> None:
         self.query_one("#front-map", BrailleMap).border_subtitle = (
