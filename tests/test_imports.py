@@ -10,8 +10,8 @@ has loaded.  What each command may not load:
   refit, a miscibility graph, a structure, the UI, a cluster, a report's figures).
 
 - pandas only where a DataFrame is asked for (``table``, ``solvents``, a result's ``to_frame()``):
-  the catalog reads its tables with the csv module, so ``rank`` and ``fit`` never load it (pandas
-  itself loads pyarrow where it is installed);
+  the catalog reads its tables with the csv module, so ``rank``, ``blend``, ``miscible`` and ``fit``
+  never load it (pandas itself loads pyarrow where it is installed);
 - the reference library's safety data (``chemicals.safety``: exposure limits, carcinogen listings)
   once per cache folder: later runs read the values the answers show from the cache file.
 
@@ -48,13 +48,13 @@ CASES = [
     (["rank", "--solute", "cannabidiol", "--top", "3", "--json"], NO_SCIPY),
     (["rank", "--like", "n-hexane", "--json"], NO_FRAME),
     (["rank", "--hsp", "17,3,8,8", "--top", "5", "--json"], NO_FRAME),
-    (["blend", "--hsp", "17.5,6,10", "--max-components", "2", "--json"], NO_SCIPY),
+    (["blend", "--hsp", "17.5,6,10", "--max-components", "2", "--json"], NO_FRAME),
     (["blend", "--hsp", "17.5,6,10", "--max-components", "3", "--only", "ethanol,water,triacetin", "--json"],
-     OPTIONAL),
+     OPTIONAL | {"pandas"}),
     # the widest search from the command line: all liquids, up to 4 (the pair matrix is read from the
     # cache folder or solved with numpy; scipy.optimize only for the tangent-plane polish)
-    (["blend", "--hsp", "17.8,3.9,9.9", "--max-components", "4", "--json"], OPTIONAL),
-    (["miscible", "water", "ethyl acetate", "--json"], NO_SCIPY),
+    (["blend", "--hsp", "17.8,3.9,9.9", "--max-components", "4", "--json"], OPTIONAL | {"pandas"}),
+    (["miscible", "water", "ethyl acetate", "--json"], NO_FRAME),
     (["fit", BENCH, "--good-at-most", "2", "--json"], OPTIONAL | {"pandas"}),
     (["hlb", "--oil", "d-limonene=70,medium-chain triglycerides=30", "--emulsifiers",
       "polysorbate 80,sorbitan monooleate", "--json"], NO_FRAME),
