@@ -1,7 +1,7 @@
 """Rebuild tables/solvents.csv from tools/solvents_curated.csv.
 
 The curated file holds what a person decided (names, synonyms, CAS, roles,
-water miscibility, cost class, notes).  This script adds, for pure compounds,
+water miscibility with its source where published, cost class, notes).  This script adds, for pure compounds,
 the HSP from the published datasets bundled with the `chemicals` library (keys
 MANUEL_RUBEN_2022, ALSHERI_HANSEN, WDR_SCHRIER only) and the physical
 properties at 25 C from `chemicals` (molar mass, boiling and melting point,
@@ -72,16 +72,11 @@ OIL_DENSITY_SLOPE = 0.00064
 WATER_20C_G_CM3 = 0.99820
 KOH_MG_MOL = 56105.6
 
-# ethanol-water strengths: ethanol volume fraction (% v/v at 20 C) and closed-cup flash point [C]
-# (source secondary_flash_ethanol_water; the flash points stay marked recalled, memory_ethanol_water)
-ETHANOL_WATER = {
-    "ethanol 96% v/v": (0.96, 17.0),
-    "ethanol 70% v/v": (0.70, 21.0),
-    "ethanol 50% v/v": (0.50, 24.0),
-    "ethanol 40% v/v": (0.40, 26.0),
-}
+# ethanol-water strengths: ethanol volume fraction (% v/v at 20 C); their closed-cup flash points are computed
+# by the model of Liaw et al. (2002) (solvsel.science.extraction.flash_point_C, source ethwat_liaw_flash)
+ETHANOL_WATER = {"ethanol 96% v/v": 0.96, "ethanol 70% v/v": 0.70, "ethanol 50% v/v": 0.50, "ethanol 40% v/v": 0.40}
 ETHANOL_WATER_SOURCES = ("ethwat_oiml_r22;ethwat_derived;extract_etb_freezing;extract_bingham_viscosity;"
-                         "extract_chemsep_nrtl;extract_poling_antoine;secondary_flash_ethanol_water;memory_ethanol_water")
+                         "extract_chemsep_nrtl;extract_poling_antoine;chemicals_lib;ethwat_liaw_flash")
 # OIML R 22 (1975) International alcoholometric tables: density [kg/m3] of ethanol-water as a polynomial in
 # the mass fraction p of ethanol whose coefficients are polynomials in (t - 20 C); rows from p^11 down to p^0,
 # each row's coefficients from the highest power of (t - 20) down to the constant (A_k, B_k, C_ik of R 22),
@@ -162,10 +157,11 @@ def ethanol_mass_fraction(phi: float, t_ref_C: float = 20.0) -> float:
     return float(brentq(lambda p: p * oiml_density(p, t_ref_C) / rho_e - phi, 0.0, 1.0, xtol=1e-12))
 
 
-def ethanol_water_row(phi: float, flash_C: float, e: dict, w: dict) -> dict:
+def ethanol_water_row(phi: float, e: dict, w: dict) -> dict:
     """The values of an ethanol-water strength: density, expansion and molar volume at 25 C from OIML R 22,
     boiling point (NRTL bubble point at 101.325 kPa), freezing point and viscosity from the published tables
-    the project holds (tables/ethanol_water.csv); HSP by volume fractions of the pure liquids."""
+    the project holds (tables/ethanol_water.csv), closed-cup flash point by the model of Liaw et al. (2002)
+    from ethanol's flash point; HSP by volume fractions of the pure liquids."""
     from solvsel.data.catalog import load_catalog
     from solvsel.science import extraction as ex
 
@@ -181,7 +177,7 @@ def ethanol_water_row(phi: float, flash_C: float, e: dict, w: dict) -> dict:
     return dict(mw_g_mol=r(mw, 2), dD_MPa05=r(hsp[0], 2), dP_MPa05=r(hsp[1], 2), dH_MPa05=r(hsp[2], 2),
                 hsp_source="derived_volume_mix;hsp_mr2022", density_g_cm3=r(rho / 1000.0, 4),
                 vm_cm3_mol=r(mw / (rho / 1000.0), 1), bp_C=r(bp, 1),
-                mp_C=r(float(ex.freezing_point_C(cat, 100.0 * phi)), 0), flash_C=r(flash_C, 0),
+                mp_C=r(float(ex.freezing_point_C(cat, 100.0 * phi)), 0), flash_C=r(ex.flash_point_C(p), 0),
                 visc_mPa_s=r(ex.viscosity_mPa_s(cat, 100.0 * p, 25.0)[0], 2), alpha_1_K=r(alpha, 6),
                 props_source=ETHANOL_WATER_SOURCES)
 
@@ -244,12 +240,12 @@ def main() -> int:
     for row in rows:
         cas = row["cas"]
         o = {k: row.get(k, "") for k in COLUMNS}
-        o["miscibility_source"] = "" if row["water_miscibility"] == "" else (
+        o["miscibility_source"] = row["miscibility_source"] or ("" if row["water_miscibility"] == "" else (
             "memory_mutual_solubility" if (row["water_in_solvent_wt"] or row["solvent_in_water_wt"]) else "common_practice"
-        )
+        ))
         o["cost_source"] = "memory_cost"
         if row["name"] in ETHANOL_WATER:
-            o.update(ethanol_water_row(*ETHANOL_WATER[row["name"]], by_name["ethanol"], by_name["water"]))
+            o.update(ethanol_water_row(ETHANOL_WATER[row["name"]], by_name["ethanol"], by_name["water"]))
             out.append(o)
             continue
         if cas in MIXTURE_PROPS:

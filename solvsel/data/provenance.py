@@ -113,7 +113,6 @@ MEMORY_SCOPE = {
     "memory_oil_mw": ("mw_g_mol", "vm_cm3_mol"),
     "memory_oil_mp": ("mp_C", "visc_mPa_s"),
     "memory_genotelle_sucrose_viscosity": tuple(f"visc_{t}C_mPa_s" for t in range(0, 61, 5)),
-    "memory_ethanol_water": ("flash_C", "flammable"),
 }
 
 #: Text columns that hold a value (a verdict) rather than a name or a note.
