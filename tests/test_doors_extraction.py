@@ -21,7 +21,7 @@ def test_library_and_cli_agree(capsys):
     assert cli["temps_C"] == lib["temps_C"] == [-30.0, 0.0, 30.0]
     # floats survive JSON exactly (shortest repr), so the grid, the window and stripping are equal as they are
     expected = json.loads(json.dumps(lib, default=str))
-    for key in ("grid", "best", "window", "strip", "freezing_point_C", "rejects", "liquids"):
+    for key in ("grid", "best", "window", "strip", "freezing_point_C", "flash_point_C", "rejects", "liquids"):
         assert cli[key] == expected[key], key
     assert [x["status"] for x in cli["legal"]] == [x["status"] for x in lib["legal"]]
     assert cli["cautions"] == lib["cautions"]

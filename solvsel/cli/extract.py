@@ -60,12 +60,12 @@ def _print_grid(result) -> None:
     temps = result.temps_C
     rows = []
     for i, s in enumerate(result.strengths):
-        row = {"s": s, "fp": result.freezing_point_C[i]}
+        row = {"s": s, "fp": result.freezing_point_C[i], "flash": result.flash_point_C[i]}
         for j, t in enumerate(temps):
             v = result.grid[key][i][j]
             row[f"t{j}"] = "-" if not result.grid["liquid"][i][j] else ("n/a" if v is None else f"{v:.3g}")
         rows.append(row)
-    cols = [("s", "%v/v", "g"), ("fp", "freezes C", ".0f")] + [(f"t{j}", f"{t:g}") for j, t in enumerate(temps)]
+    cols = [("s", "%v/v", "g"), ("fp", "freezes C", ".0f"), ("flash", "flash C", ".0f")] + [(f"t{j}", f"{t:g}") for j, t in enumerate(temps)]
     print_table(rows, cols)
 
 

@@ -140,7 +140,9 @@ class ExtractionResult:
 
     ``grid`` keys: ``ra`` and ``red`` of the target [MPa^0.5, -], ``target_g_L`` and ``rejects_g_L``
     (per reject) [g/L], ``selectivity`` (target g/L over the most soluble reject's g/L), ``liquid``,
-    ``viscosity_mPa_s``; ``freezing_point_C`` per strength; ``strip`` the bubble temperature of each
+    ``viscosity_mPa_s``; ``freezing_point_C`` per strength; ``flash_point_C`` per strength, closed cup [C]
+    (ethanol-water by :func:`solvsel.science.extraction.flash_point_C`; None for other pairs or where
+    the strength boils first); ``strip`` the bubble temperature of each
     strength at the vacuum [C], the end of stripping (the less volatile liquid alone), the azeotrope;
     ``legal`` each liquid's status for the purpose, its residue rules and ``residue_bound_mg_kg``, the most
     that can stay in the extract at equilibrium at ``finish_C`` and the vacuum (each rule with a number
@@ -154,6 +156,7 @@ class ExtractionResult:
     rejects: tuple[str, ...]
     grid: dict
     freezing_point_C: tuple[float | None, ...]
+    flash_point_C: tuple[float | None, ...]
     hsp_basis: str
     best: dict | None
     window: str
@@ -169,7 +172,8 @@ class ExtractionResult:
         return {
             "target": self.target.to_dict(), "liquids": list(self.liquids), "strengths_pct_v": list(self.strengths),
             "temps_C": list(self.temps_C), "rejects": list(self.rejects), "grid": self.grid,
-            "freezing_point_C": list(self.freezing_point_C), "hsp_basis": self.hsp_basis, "best": self.best,
+            "freezing_point_C": list(self.freezing_point_C), "flash_point_C": list(self.flash_point_C),
+            "hsp_basis": self.hsp_basis, "best": self.best,
             "window": self.window, "strip": self.strip, "legal": list(self.legal), "notes": list(self.notes),
             "cautions": list(self.cautions), "sources": self.sources, "audit": self.audit,
         }
@@ -214,6 +218,14 @@ def _liquid_and_viscosity(cat: Catalog, p: ex.Pair, strength: float, temps) -> t
     mps = [m for m in (p.a.mp_C, p.b.mp_C) if m is not None]
     fp = max(mps) if mps else None
     return fp, [fp is None or t > fp for t in temps], [None] * len(temps), False
+
+
+def _flash_points(p: ex.Pair, strengths) -> tuple[float | None, ...]:
+    """Closed-cup flash point of each strength [C] (ethanol-water only: the model needs its published NRTL)."""
+    if not p.ethanol_water:
+        return (None,) * len(strengths)
+    out = (ex.flash_point_C(float(p.mass_fraction(s / 100.0))) for s in strengths)
+    return tuple(None if f is None else round(f, 1) for f in out)
 
 
 def _grid(cat: Catalog, p: ex.Pair, target: Target, rejects, req: ExtractionRequest) -> tuple[dict, list, bool]:
@@ -381,9 +393,10 @@ def extraction(request: ExtractionRequest | None = None, *, catalog: Catalog | N
     legal, rules = _legal(cat, p, req, target, strip)
     basis = [(s.name, ex.fusion_of(s)[2]) for s in ([target.solute] if target.solute is not None else []) + rejects
              if ex.fusion_of(s) is not None]
-    sources = {**ex.table_sources(cat), "hsp": [target.solute.hsp_source] if target.solute is not None else []}
+    sources = {**ex.table_sources(cat), "hsp": [target.solute.hsp_source] if target.solute is not None else [],
+               "flash_point": [ex.FLASH_MODEL["source"]] if p.ethanol_water else []}
     return ExtractionResult(
         target, (p.a.name, p.b.name), req.strengths, req.temps_C, tuple(s.name for s in rejects), g,
-        tuple(fps), ex.HSP_BASIS, best, words, strip, tuple(legal),
+        tuple(fps), _flash_points(p, req.strengths), ex.HSP_BASIS, best, words, strip, tuple(legal),
         tuple(_notes(target, rejects, basis, extrapolated, p)), _cautions(cat, p), sources,
         audit_block(rules, cat.tables_dir))
