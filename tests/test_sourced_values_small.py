@@ -104,3 +104,14 @@ def test_sucrose_ester_hlb_as_published_for_the_high_monoester_grade():
     r = _row("emulsifiers", "sucrose esters of fatty acids")
     _cites(r["hlb_source"], "HLB 2 to 15", "from 10 to 70 %")
     assert float(r["hlb"]) == 15.0 and "70 % monoester" in r["note"]
+
+
+# ----------------------------------------------------------------------------- solutes
+
+
+def test_cetyl_palmitate_molar_volume_from_the_published_wax_density():
+    # The International Pharmacopoeia, Cetyl esters wax: "a mass density of about 0.83 g/ml at 50 C"
+    # (vm_cetyl_esters_wax_phint); molar volume = M / density
+    r = _row("solutes", "cetyl palmitate")
+    _cites(r["vm_source"], "about 0.83 g/ml at 50 C")
+    assert float(r["vm_cm3_mol"]) == pytest.approx(float(r["mw_g_mol"]) / 0.83, rel=1e-3)
