@@ -115,3 +115,13 @@ def test_cetyl_palmitate_molar_volume_from_the_published_wax_density():
     r = _row("solutes", "cetyl palmitate")
     _cites(r["vm_source"], "about 0.83 g/ml at 50 C")
     assert float(r["vm_cm3_mol"]) == pytest.approx(float(r["mw_g_mol"]) / 0.83, rel=1e-3)
+
+
+# ----------------------------------------------------------------------------- water solubility
+
+
+def test_citral_water_solubility_as_published():
+    # GESTIS substance database (IFA), as cited for citral (clarity_citral_gestis): "420 mg/l bei 20 C"
+    r = _row("water_solubility", "citral")
+    _cites(r["source"], "420 mg/l bei 20 C")
+    assert float(r["water_solubility_mg_L"]) == 420.0 and float(r["temp_C"]) == 20.0
