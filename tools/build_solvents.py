@@ -70,6 +70,7 @@ OIL_FLASH = {"8001-30-7": ((617 - 32) / 1.8, "oils_iseo_flash"), "8002-13-9": ((
 # thermal expansion of every oil row is this slope over its density at 25 C.
 OIL_DENSITY_SLOPE = 0.00064
 WATER_20C_G_CM3 = 0.99820
+WATER_25C_G_CM3 = 0.99705
 KOH_MG_MOL = 56105.6
 
 # ethanol-water strengths: ethanol volume fraction (% v/v at 20 C); their closed-cup flash points are computed
@@ -109,9 +110,16 @@ MEMORY_LIQUID = {
     "108-21-4": (0.866, 0.52), "111-90-0": (0.985, 3.85), "123-92-2": (0.867, 0.79), "111-62-6": (0.867, 5.2),
     "106-65-0": (1.114, None),
 }
-# flash points (closed cup, C) missing from chemicals, recalled (kind memory)
-MEMORY_FLASH = {"77-93-0": 155.0, "100-51-6": 93.0, "96-47-9": -11.0, "75-28-5": -83.0, "74-98-6": -104.0,
-                "108-32-7": 132.0, "616-38-6": 17.0}
+# Liquid densities at 25 C from published specifications where thermo has only an estimate: specific gravity
+# 25/25 C (midpoint of the monograph's range) and its source; density = SG x water at 25 C (oils_sg_to_density).
+# The viscosity stays recalled (memory_liquid_viscosity) and the expansion is thermo's estimate
+# (thermo_estimate_expansion).
+PUBLISHED_SG_25 = {"102-76-1": (1.155, "liquids_usp_triacetin"), "77-93-0": (1.137, "liquids_chp_triethyl_citrate")}
+# flash points (closed cup, C) missing from chemicals: from published sheets, with their source
+PUBLISHED_FLASH = {"77-93-0": (151.0, "liquids_icsc_triethyl_citrate"), "74-98-6": (-104.0, "liquids_nies_propane"),
+                   "616-38-6": (16.7, "liquids_dmc_safety_summary")}
+# and, where none was found, recalled (kind memory)
+MEMORY_FLASH = {"100-51-6": 93.0, "96-47-9": -11.0, "75-28-5": -83.0, "108-32-7": 132.0}
 NONFLAMMABLE = {"7732-18-5", "75-09-2", "67-66-3", "124-38-9", "811-97-2"}
 
 COLUMNS = [
@@ -228,10 +236,49 @@ def oil_row(cas: str) -> dict:
                 flash_C=r(fl, 0), visc_mPa_s=r(mu, 1), alpha_1_K=r(OIL_DENSITY_SLOPE / dens, 6), props_source=props)
 
 
+def liquid_props(cas: str, ch) -> tuple[float, float | None, str] | None:
+    """Density at 25 C [g/cm3], viscosity [mPa s] and the property sources of a pure liquid: thermo's data-backed
+    values; where thermo has only an estimate, a published specific gravity (:data:`PUBLISHED_SG_25`) or the
+    recalled values of :data:`MEMORY_LIQUID`; None where neither is known."""
+    dens, mu = ch.rhol / 1000.0, (ch.mul * 1000.0 if ch.mul else None)
+    est_vol = ch.VolumeLiquid.method in ESTIMATED_METHODS
+    est_mu = ch.ViscosityLiquid.method in ESTIMATED_METHODS
+    sources = ["chemicals_lib", "thermo_lib"]
+    if not (est_vol or est_mu):
+        return dens, mu, ";".join(sources)
+    if cas not in MEMORY_LIQUID:
+        return None
+    mdens, mmu = MEMORY_LIQUID[cas]
+    mu = mmu if est_mu else mu
+    if est_vol and cas in PUBLISHED_SG_25:
+        sg, src = PUBLISHED_SG_25[cas]
+        dens = sg * WATER_25C_G_CM3
+        sources += [src, "oils_sg_to_density", "thermo_estimate_expansion"]
+        sources += ["memory_liquid_viscosity"] if est_mu else []
+    else:
+        dens = mdens if est_vol else dens
+        sources.append("memory_liquid_props")
+    return dens, mu, ";".join(sources)
+
+
+def flash_K(cas: str) -> tuple[float | None, str]:
+    """Closed-cup flash point [K] and the source id to add: the chemicals library's, else a published one,
+    else a recalled one (memory_flash)."""
+    from chemicals.safety import T_flash
+
+    tf = T_flash(cas)
+    if tf is not None:
+        return tf, ""
+    if cas in PUBLISHED_FLASH:
+        return PUBLISHED_FLASH[cas][0] + 273.15, PUBLISHED_FLASH[cas][1]
+    if cas in MEMORY_FLASH:
+        return MEMORY_FLASH[cas] + 273.15, "memory_flash"
+    return None, ""
+
+
 def main() -> int:
     from chemicals.identifiers import search_chemical
     from chemicals.phase_change import Tb, Tm
-    from chemicals.safety import T_flash
     from thermo import Chemical
 
     rows = list(csv.DictReader(CURATED.open(encoding="utf-8")))
@@ -260,28 +307,17 @@ def main() -> int:
         src = DATASETS[key] + (";derived_model_compound" if cas in HSP_MODEL else "")
         c = search_chemical(cas)
         ch = Chemical(cas, T=298.15, P=101325.0)
-        rho = ch.rhol
-        if rho is None:
+        if ch.rhol is None:
             print(f"no liquid density for {row['name']}", file=sys.stderr)
             return 1
-        dens = rho / 1000.0
-        mu = ch.mul * 1000.0 if ch.mul else None
-        props = "chemicals_lib;thermo_lib"
-        if ch.VolumeLiquid.method in ESTIMATED_METHODS or ch.ViscosityLiquid.method in ESTIMATED_METHODS:
-            if cas not in MEMORY_LIQUID:
-                print(f"{row['name']}: thermo estimate only; add a MEMORY_LIQUID entry", file=sys.stderr)
-                return 1
-            mdens, mmu = MEMORY_LIQUID[cas]
-            if ch.VolumeLiquid.method in ESTIMATED_METHODS:
-                dens = mdens
-            if ch.ViscosityLiquid.method in ESTIMATED_METHODS:
-                mu = mmu
-            props += ";memory_liquid_props"
+        got = liquid_props(cas, ch)
+        if got is None:
+            print(f"{row['name']}: thermo estimate only; add a MEMORY_LIQUID entry", file=sys.stderr)
+            return 1
+        dens, mu, props = got
         alpha = ch.isobaric_expansion_l
-        tb, tm, tf = Tb(cas), Tm(cas), T_flash(cas)
-        if tf is None and cas in MEMORY_FLASH:
-            tf = MEMORY_FLASH[cas] + 273.15
-            props += ";memory_flash"
+        (tf, flash_src), tb, tm = flash_K(cas), Tb(cas), Tm(cas)
+        props += f";{flash_src}" if flash_src else ""
         o.update(
             mw_g_mol=r(c.MW, 3), dD_MPa05=r(hsp[0], 2), dP_MPa05=r(hsp[1], 2), dH_MPa05=r(hsp[2], 2), hsp_source=src,
             density_g_cm3=r(dens, 4), vm_cm3_mol=r(c.MW / dens, 1), bp_C=r(tb - 273.15 if tb else None, 1),

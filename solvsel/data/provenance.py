@@ -109,6 +109,8 @@ MEMORY_SCOPE = {
     "memory_fusion": ("mp_C", "dHfus_kJ_mol"),
     "memory_flash": ("flash_C",),
     "memory_liquid_props": ("density_g_cm3", "visc_mPa_s", "alpha_1_K", "vm_cm3_mol"),
+    "memory_liquid_viscosity": ("visc_mPa_s",),
+    "memory_mutual_solubility_value": ("water_in_solvent_wt", "solvent_in_water_wt"),
     "memory_oil_props_other": ("mp_C", "flash_C", "flammable", "visc_mPa_s"),
     "memory_oil_mw": ("mw_g_mol", "vm_cm3_mol"),
     "memory_oil_mp": ("mp_C", "visc_mPa_s"),
