@@ -5,10 +5,13 @@ water miscibility with its source where published, cost class, notes).  This scr
 the HSP from the published datasets bundled with the `chemicals` library (keys
 MANUEL_RUBEN_2022, ALSHERI_HANSEN, WDR_SCHRIER only) and the physical
 properties at 25 C from `chemicals` (molar mass, boiling and melting point,
-flash point) and `thermo` (liquid density, viscosity, thermal expansion), and
-for the mixtures the values written below with their sources: the ethanol-water
-strengths from the OIML R 22 alcoholometric formula and the published tables of
-tables/ethanol_water.csv (:func:`ethanol_water_row`), the oils from their
+flash point) and `thermo` (liquid density, viscosity, thermal expansion); where
+these give only an estimate or nothing, the published specific gravities and flash
+points below (:func:`liquid_props`, :func:`flash_K`), else recalled values marked
+so; and for the mixtures the values written below with their sources: the
+ethanol-water strengths from the OIML R 22 alcoholometric formula, the published
+tables of tables/ethanol_water.csv and the flash-point model of Liaw et al. (2002)
+(:func:`ethanol_water_row`), the oils from their
 standards' relative density and saponification value, the published flash points
 and density slope (:func:`oil_props`); what no source gives stays marked recalled.
 
@@ -100,11 +103,12 @@ OIML_R22 = [
 ]
 
 # thermo estimates (not data-backed) for these: values recalled from handbooks and
-# supplier data sheets instead (kind memory); None leaves the cell empty (unknown).
+# supplier data sheets instead (kind memory); None leaves the cell empty (unknown), or, for a density, the
+# published one of PUBLISHED_SG_25 is used.
 # cas: (density_25C, visc_25C)
 ESTIMATED_METHODS = {"MMSNM0", "LETSOU_STIEL", "COSTALD", "RACKETT", "YEN_WOODS_SAT", "TOWNSEND_HALES", "PRZEDZIECKI_SRIDHAR"}
 MEMORY_LIQUID = {
-    "102-76-1": (1.155, 17.4), "77-93-0": (1.136, 35.2), "25395-31-7": (1.17, None), "97-64-3": (1.030, None),
+    "102-76-1": (None, 17.4), "77-93-0": (None, 35.2), "25395-31-7": (1.17, None), "97-64-3": (1.030, None),
     "120-51-4": (1.118, None), "60-01-5": (1.032, None), "5989-27-5": (0.838, 0.92), "80-56-8": (0.854, 1.30),
     "96-47-9": (0.849, 0.46), "872-50-4": (1.028, 1.67), "108-32-7": (1.200, 2.5), "96-48-0": (1.125, 1.7),
     "108-21-4": (0.866, 0.52), "111-90-0": (0.985, 3.85), "123-92-2": (0.867, 0.79), "111-62-6": (0.867, 5.2),
