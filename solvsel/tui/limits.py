@@ -307,8 +307,8 @@ class LimitsScreen(BenchScreen):
                                c.confidence, c.rule))
         headers = list(CHECK_HEADERS)
         headers[3] = "max dose " + ("%" if frac else r.max_dose_unit)
-        # the rule's text gives way (the summary above names the binding rule whole), the substance stays whole
-        fill_table(self.query_one("#lim-checks", DataTable), headers, check_rows, cut=-1)
+        # the substance and the rule share the room left; on a narrow screen the confidence gives way first
+        fill_table(self.query_one("#lim-checks", DataTable), headers, check_rows, cut=(4, -1), spare=("confidence",))
         rows = [r.stage_table(i) for i in range(len(r.stages))]
         subs = list(dict.fromkeys(row["substance"] for tab in rows for row in tab))
         stage_rows = []

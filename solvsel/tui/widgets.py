@@ -539,49 +539,41 @@ class Tick(Checkbox):
 NAME_ROOM = 28
 
 
-def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str, ...] = (),
+def fill_table(grid, headers, rows, cut: int | tuple[int, ...] | None = None, optional: tuple[str, ...] = (),
                spare: tuple[str, ...] = (), name_room: int = NAME_ROOM) -> None:
     """Replace a DataTable's columns and rows, each column as wide as its widest cell.
 
     The widths are set here, from the cells, rather than left to the table's
     own measuring, which now and then kept the header widths when a table was
     filled while the screen was still being laid out (cut values such as
-    "Ra 1." for 1.20).  ``cut`` names the one column (a name or a reason) whose
+    "Ra 1." for 1.20).  ``cut`` names the column (a name or a reason), or the columns, whose
     text is shortened, with an ellipsis, so that the table fits the width it
-    has; every other column stays whole.  Columns named in ``optional`` are left out when every
+    has (several share the room in proportion to their widths); every other column stays whole.
+    Columns named in ``optional`` are left out when every
     row has "-" in them; those named in ``spare`` (in that order) are left out where the screen is too
-    narrow to give the cut column ``name_room`` cells (the detail pane shows them).
+    narrow to give each cut column ``name_room`` cells (the detail pane shows them).
     """
-    from rich.cells import cell_len
-
-    def width(v) -> int:
-        if isinstance(v, Text):
-            return v.cell_len
-        return max((cell_len(line) for line in str(v).splitlines()), default=0)
-
-    rows = [list(r) for r in rows]
+    rows, headers = [list(r) for r in rows], list(headers)
+    cuts = [] if cut is None else [c % len(headers) for c in (cut if isinstance(cut, tuple) else (cut,))]
     if optional and rows:  # columns with nothing to say in any row (a check not asked for) are left out
         keep = [i for i, h in enumerate(headers) if h not in optional or any(str(r[i]) != "-" for r in rows)]
-        cut = None if cut is None else keep.index(cut % len(headers))
+        cuts = [keep.index(k) for k in cuts]
         headers, rows = [headers[i] for i in keep], [[r[i] for i in keep] for r in rows]
-    widths = [max([width(h)] + [width(r[i]) for r in rows]) for i, h in enumerate(headers)]
+    widths = [max([_cells(h)] + [_cells(r[i]) for r in rows]) for i, h in enumerate(headers)]
     room = _room(grid) - 4  # the scroll bars (the pane's may come later)
-    if cut is not None and spare:  # columns the detail pane also shows give way to the name first
-        k = cut % len(headers)
-        for name in spare:
-            need = min(widths[k], name_room)
-            if name not in headers or room - sum(w + 2 for i, w in enumerate(widths) if i != k) - 2 >= need:
-                continue
-            i = headers.index(name)
-            headers, widths = headers[:i] + headers[i + 1:], widths[:i] + widths[i + 1:]
-            rows = [r[:i] + r[i + 1:] for r in rows]
-            k -= i < k
-        cut = k
-    if cut is not None and headers:
-        k = cut % len(headers)
-        left = room - sum(w + 2 for i, w in enumerate(widths) if i != k) - 2  # 2: the cell's padding
-        if left < widths[k]:
-            widths[k] = max(left, width(headers[k]), 8)
+    for name in spare if cuts else ():  # columns the detail pane also shows give way to the names first
+        need = min(sum(widths[k] for k in cuts), name_room * len(cuts))
+        if name not in headers or _left(widths, cuts, room) >= need:
+            continue
+        i = headers.index(name)
+        del headers[i], widths[i]
+        for r in rows:
+            del r[i]
+        cuts = [k - (i < k) for k in cuts]
+    left, need = _left(widths, cuts, room), sum(widths[k] for k in cuts)
+    if cuts and left < need:
+        for k in cuts:
+            widths[k] = max(left * widths[k] // need, _cells(headers[k]), 8)
             for r in rows:
                 r[k] = shorten(str(r[k]), widths[k])
     grid.clear(columns=True)
@@ -589,6 +581,20 @@ def fill_table(grid, headers, rows, cut: int | None = None, optional: tuple[str,
         grid.add_column(h, width=w)
     for r in rows:
         grid.add_row(*r)
+
+
+def _cells(value) -> int:
+    """Cells the widest line of a table cell takes."""
+    from rich.cells import cell_len
+
+    if isinstance(value, Text):
+        return value.cell_len
+    return max((cell_len(line) for line in str(value).splitlines()), default=0)
+
+
+def _left(widths: list[int], cuts: list[int], room: int) -> int:
+    """Cells left for the cut columns: the room less every other column, and each column's padding of 2."""
+    return room - sum(w + 2 for i, w in enumerate(widths) if i not in cuts) - 2 * len(cuts)
 
 
 def _room(widget) -> int:
