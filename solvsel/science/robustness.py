@@ -35,6 +35,8 @@ from typing import Any
 
 import numpy as np
 
+from ..errors import UnknownNameError
+
 __all__ = ["RECALLED_SD", "STABLE_SHARE", "SAMPLES", "TOP", "Spread", "HowSure", "target_spread", "how_sure",
            "spread_from_interval"]
 
@@ -105,8 +107,10 @@ def _recalled(target, cat) -> bool:
         return False
     kinds = []
     for sid in (v for v in str(getattr(sol, "hsp_source", "") or "").split(";") if v):
-        hit = cat.sources[cat.sources["id"] == sid]
-        kinds.append(hit.iloc[0]["kind"] if not hit.empty else "")
+        try:
+            kinds.append(cat.source(sid)["kind"])
+        except UnknownNameError:
+            kinds.append("")
     return "memory" in kinds
 
 
