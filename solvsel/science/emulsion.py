@@ -26,8 +26,8 @@ References
    12758-12765 (2008). https://pubmed.ncbi.nlm.nih.gov/18850732/
 .. [5] Genotelle, J. Expression de la viscosite des solutions sucrees.
    Industries Alimentaires et Agricoles 95, 747-755 (1978) (the equation
-   behind ``tables/sucrose_viscosity.csv``, recalled: source
-   ``memory_genotelle_sucrose_viscosity``).
+   behind ``tables/sucrose_viscosity.csv``; coefficients as given by
+   Mathlouthi and Reiser 1995, source ``sucrose_genotelle_equation``).
 """
 
 from __future__ import annotations
