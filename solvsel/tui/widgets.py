@@ -540,7 +540,7 @@ NAME_ROOM = 28
 
 
 def fill_table(grid, headers, rows, cut: int | tuple[int, ...] | None = None, optional: tuple[str, ...] = (),
-               spare: tuple[str, ...] = (), name_room: int = NAME_ROOM) -> None:
+               spare: tuple[str, ...] = (), name_room: int = NAME_ROOM, *, again: bool = True) -> None:
     """Replace a DataTable's columns and rows, each column as wide as its widest cell.
 
     The widths are set here, from the cells, rather than left to the table's
@@ -551,8 +551,14 @@ def fill_table(grid, headers, rows, cut: int | tuple[int, ...] | None = None, op
     has (several share the room in proportion to their widths); every other column stays whole.
     Columns named in ``optional`` are left out when every
     row has "-" in them; those named in ``spare`` (in that order) are left out where the screen is too
-    narrow to give each cut column ``name_room`` cells (the detail pane shows them).
+    narrow to give each cut column ``name_room`` cells (the detail pane shows them).  A table not laid out
+    yet (filled while its screen mounts) is measured by its nearest ancestor with a width, then filled
+    ``again`` once after the screen's first layout (unless filled anew before).
     """
+    grid.fills = getattr(grid, "fills", 0) + 1
+    if again and not grid.size.width:
+        fill, args = grid.fills, (grid, headers, list(rows), cut, optional, spare, name_room)
+        grid.call_after_refresh(lambda: grid.fills == fill and fill_table(*args, again=False))
     rows, headers = [list(r) for r in rows], list(headers)
     cuts = [] if cut is None else [c % len(headers) for c in (cut if isinstance(cut, tuple) else (cut,))]
     if optional and rows:  # columns with nothing to say in any row (a check not asked for) are left out
