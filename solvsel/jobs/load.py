@@ -3,8 +3,9 @@
 A liquid solute (an oil, a terpene: a liquid of the solvents table) or a solid (a
 solute of the solutes table) in one liquid or a blend, at a stated load (mass
 fraction) and over a storage range (default 4-25 C): yes / no / borderline, the
-basis (measured pair, Flory-Huggins binodal, or solid solubility from fusion data
-and the HSP activity) and the largest load that stays one phase over the whole range
+basis (measured pair, the binodal predicted by UNIFAC or Flory-Huggins, or solid
+solubility from fusion data and the HSP activity) and the largest load that stays
+one phase over the whole range
 (:mod:`solvsel.science.loading`).  :func:`load_check` is the same check for the
 ``rank`` and ``blend`` jobs (their ``load`` field).
 
@@ -35,7 +36,7 @@ DEFAULT_STORAGE_C = (4.0, 25.0)
 
 #: The note of a ranking or a blend search with a load.
 LOAD_NOTE = ("load check over the storage range: a liquid or blend that cannot carry the load is marked with the "
-             "largest load that stays one phase (measured pair, Flory-Huggins binodal or solid solubility)")
+             "largest load that stays one phase (measured pair, predicted binodal or solid solubility)")
 
 
 def check_load_value(value, param: str = "load") -> float | None:
@@ -191,7 +192,8 @@ def load(request: LoadRequest | None = None, *, catalog: Catalog | None = None, 
              "crystallise a solid)"]
     if liquid:
         notes.append("judged as a liquid: measured pairs where the table has one near the temperature, else the "
-                     "Flory-Huggins binodal from HSP (water and glycols are poorly predicted)")
+                     "binodal predicted by UNIFAC from the two structures, or by Flory-Huggins from HSP for "
+                     "mixtures such as the oils (water and glycols are poorly predicted by the latter)")
     seen = dict.fromkeys(c for r in recs for c in solvent_cautions(r, use="carrier", cat=cat) if c != DEFER)
     return LoadResult(chk, tuple(seen) + (DEFER,), tuple(notes), audit_block((), cat.tables_dir))
 

@@ -92,10 +92,19 @@ def storage_temperatures(lo: float, hi: float, step: float = 5.0) -> list[float]
 # ----------------------------------------------------------------------------- one temperature
 
 
+def _predicted_basis(model: str) -> str:
+    """The basis of a predicted pair's load in words: the binodal of the model that predicted it.
+
+    >>> _predicted_basis("Flory-Huggins from HSP"), _predicted_basis("UNIFAC-LLE (Magnussen 1981)")
+    ('Flory-Huggins binodal', 'UNIFAC-LLE (Magnussen 1981) binodal')
+    """
+    return "Flory-Huggins binodal" if not model or model.startswith("Flory-Huggins") else f"{model} binodal"
+
+
 def _pair_point(cat, carrier, solute, temp_C: float) -> LoadPoint:
     """A liquid solute in one liquid: the first one-phase range of the solute's mass fraction."""
     v = pair(cat, carrier, solute, temp_C)
-    basis = "measured pair" if v.basis == "measured" else "Flory-Huggins binodal"
+    basis = "measured pair" if v.basis == "measured" else _predicted_basis(v.model)
     if v.one_phase == "yes":
         return LoadPoint(temp_C, 1.0, basis, tuple(v.source), "miscible in all proportions")
     w = v.window or {}

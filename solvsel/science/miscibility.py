@@ -525,6 +525,8 @@ def _unifac_solve(a: tuple[str, float], b: tuple[str, float], temp_C: float, mod
             unifac.ln_gammas(gl, [0.5, 0.5], temp_C, model)  # refuses a mixture without parameters
         except MissingDataError:  # a group or an interaction parameter the model does not have
             continue
+        except ImportError:  # thermo or RDKit left out of an install (both are dependencies): Flory-Huggins
+            return None
         if _WRONG_IN_THERMO.get(model, frozenset()) & (set(gl[0]) | set(gl[1])):
             continue
         split = activity_binodal(lambda x, gl=gl, model=model: unifac.ln_gammas(gl, x, temp_C, model))
