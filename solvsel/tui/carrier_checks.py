@@ -26,7 +26,7 @@ FIELDS = (
 )
 
 #: Labels of the checks' request fields (an error about a field names it by its label).
-FIELD_LABELS = {"storage_C": "storage range", "dose": "dose of this in the drink", "chain": "dilution chain to the drink",
+FIELD_LABELS = {"storage_C": "storage", "dose": "dose in the 1st stage", "chain": "dilution chain to the drink",
                 "brix": "sugar in the drink", "solute": "target", "carrier": "selected carrier",
                 "fractions": "selected carrier", "formula": "formula (the target at its load in the carrier)"}
 
