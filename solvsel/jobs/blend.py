@@ -695,7 +695,8 @@ def _blend_cautions(s: _Search, recs: list[Candidate], phase) -> list[str]:
         out.append(f"Lowest flash point of a component {min(flashes):g} C: the blend's flash point is not the "
                    "average and must be measured (closed cup).")
     if phase[1] == "predicted":
-        out.append("One phase is predicted from HSP, not measured: check the blend at the bench and in the cold.")
+        out.append("One phase is predicted (UNIFAC from the structures, or HSP for mixtures such as the oils), "
+                   "not measured: check the blend at the bench and in the cold.")
     return list(dict.fromkeys(t for t in out if t))
 
 
