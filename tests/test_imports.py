@@ -13,7 +13,10 @@ has loaded.  What each command may not load:
   the catalog reads its tables with the csv module, so ``rank``, ``blend``, ``miscible`` and ``fit``
   never load it (pandas itself loads pyarrow where it is installed);
 - the reference library's safety data (``chemicals.safety``: exposure limits, carcinogen listings)
-  once per cache folder: later runs read the values the answers show from the cache file.
+  once per cache folder: later runs read the values the answers show from the cache file;
+- RDKit and thermo for the liquids' UNIFAC miscibility once per cache folder: later runs read the
+  pairs' answers from the cache file.  The commands below run in a cache folder of this module,
+  warmed once by the widest blend search (which solves every pair of the catalog).
 
 A command line with a command imports that command's module alone, not every command's.  No time
 is measured here; the benchmarks time the cold starts (``bench/bench_rank.py``).
@@ -76,10 +79,24 @@ print(json.dumps({"code": code, "loaded": [m for m in json.loads(sys.argv[2]) if
 """
 
 
+_CACHE: dict[str, str] = {}
+
+
+@pytest.fixture(scope="module", autouse=True)
+def warm_cache(tmp_path_factory):
+    """A cache folder for this module's commands, filled once by the widest blend search."""
+    _CACHE["dir"] = str(tmp_path_factory.mktemp("cache"))
+    loaded_by(["blend", "--hsp", "17.8,3.9,9.9", "--max-components", "4", "--json"])
+    yield
+    _CACHE.clear()
+
+
 def loaded_by(argv: list[str], heavy=HEAVY) -> tuple[int, set[str]]:
-    """Exit code and the modules of ``heavy`` loaded by ``solvsel ARGV`` in a fresh interpreter."""
+    """Exit code and the modules of ``heavy`` loaded by ``solvsel ARGV`` in a fresh interpreter (in this
+    module's cache folder once it is set)."""
+    env = {**os.environ, **({"SOLVSEL_CACHE_DIR": _CACHE["dir"]} if "dir" in _CACHE else {})}
     out = subprocess.run([sys.executable, "-c", _RUN, json.dumps(argv), json.dumps(heavy)], capture_output=True,
-                         text=True, check=True, cwd=HERE.parent)
+                         text=True, check=True, cwd=HERE.parent, env=env)
     got = json.loads(out.stdout.strip().splitlines()[-1])
     return got["code"], set(got["loaded"])
 
