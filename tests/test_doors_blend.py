@@ -22,6 +22,8 @@ from solvsel.data.catalog import load_catalog
 from solvsel.jobs.blend import BlendRequest, BlendResult, blend
 from solvsel.jobs.rank import rank
 
+from _tui_helpers import settle as _settle
+
 #: Carrier blends of two liquids for the demo's solute, warm, with a boiling window.
 REQUEST = dict(solute="cannabidiol", use="carrier", jurisdiction="EU", max_components=2, temp_C=30.0,
                bp_min_C=150.0, top=10)
@@ -189,14 +191,3 @@ def test_single_liquid_blends_and_the_ranking_use_one_pool_at_60_C(tmp_path, cap
     blend_doc = json.loads(out)
     assert {b["components"][0]["name"] for b in blend_doc["results"]} == {r["name"] for r in rank_doc["results"]}
     assert blend_doc["excluded"] == rank_doc["dropped"]
-
-
-async def _settle(app, pilot):
-    from textual.worker import WorkerCancelled, WorkerFailed
-
-    try:
-        await app.workers.wait_for_complete()
-    except (WorkerCancelled, WorkerFailed):
-        pass
-    await pilot.pause()
-    await pilot.pause()

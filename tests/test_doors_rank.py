@@ -18,6 +18,8 @@ from solvsel.data.catalog import load_catalog
 from solvsel.errors import OutOfRangeError
 from solvsel.jobs.rank import RankRequest, RankResult, rank
 
+from _tui_helpers import settle as _settle
+
 #: A carrier ranking for the demo's solute, warm and with a flash-point limit.
 REQUEST = dict(solute="cannabidiol", food=True, use="carrier", jurisdiction="EU", temp_C=40.0, min_flash_C=60.0,
                top=15)
@@ -155,14 +157,3 @@ def test_a_bad_field_is_named_by_each_door(cat, capsys):
     assert err.value.param == "temp_C"
     code, _, stderr = _cli(capsys, ["rank", "--solute", "cannabidiol", "--temp", "500"])
     assert code == 2 and "--temp:" in stderr
-
-
-async def _settle(app, pilot):
-    from textual.worker import WorkerCancelled, WorkerFailed
-
-    try:
-        await app.workers.wait_for_complete()
-    except (WorkerCancelled, WorkerFailed):
-        pass
-    await pilot.pause()
-    await pilot.pause()
