@@ -74,3 +74,17 @@ def test_olive_oil_in_ethanol_from_its_measured_solubility(cat):
     assert r.verdict == "no" and r.basis == "measured pair"
     assert r.largest_load == pytest.approx(0.0185)
     assert load(solute="olive oil", carrier="ethanol", load="1%", storage_C=(4, 15), catalog=cat).verdict == "yes"
+
+
+def test_a_prediction_the_table_contradicts_is_not_used_for_the_load(cat):
+    # d-limonene and ethanol mix in all proportions at 25 C (tables/miscibility.csv, common practice);
+    # UNIFAC-LLE predicts a split at 25 C, so at 4 C, beyond the measurement's reach, its answer is not
+    # trusted: the load there is not known and the verdict borderline, never a confident no
+    from solvsel.science.miscibility import pair
+
+    assert not pair(cat, "d-limonene", "ethanol", 25.0).contradicted
+    cold = pair(cat, "d-limonene", "ethanol", 4.0)
+    assert cold.basis == "predicted" and cold.contradicted and "not reliable" in cold.note
+    r = load(solute="d-limonene", carrier="ethanol", load="8%", storage_C=(4, 25), catalog=cat)
+    assert r.verdict == "borderline"
+    assert [p.largest_load for p in r.check.points if p.temp_C < 15] == [None] * 3

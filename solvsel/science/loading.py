@@ -108,6 +108,9 @@ def _pair_point(cat, carrier, solute, temp_C: float) -> LoadPoint:
     if v.one_phase == "yes":
         return LoadPoint(temp_C, 1.0, basis, tuple(v.source), "miscible in all proportions")
     w = v.window or {}
+    if v.contradicted:
+        return LoadPoint(temp_C, None, basis, tuple(v.source),
+                         "not known: the prediction contradicts the table's measurement at its temperature")
     if v.basis == "measured" and v.one_phase == "partial" and w.get("b_in_a_max") is None:
         return LoadPoint(temp_C, None, basis, tuple(v.source),
                          f"partly miscible, the solubility of {v.liquids[1]} in {v.liquids[0]} is not tabulated")

@@ -141,6 +141,10 @@ class PairVerdict:
     model : str
         what predicted a "predicted" verdict: a UNIFAC parameter set by name (from the two
         liquids' structures) or :data:`FLORY_HUGGINS`; "" for a measured one
+    contradicted : bool
+        a predicted verdict for a pair the table has measured at another temperature, where
+        the same prediction at the measured temperature disagrees with the measurement
+        (miscible against not): the model is not to be trusted for this pair
     """
 
     liquids: tuple[str, str]
@@ -154,6 +158,7 @@ class PairVerdict:
     temp_C: float = 25.0
     cas: tuple[str, str] = ("", "")
     model: str = ""
+    contradicted: bool = False
 
     @property
     def code(self) -> int:
@@ -172,6 +177,7 @@ class PairVerdict:
             "note": self.note,
             "temp_C": self.temp_C,
             "model": self.model,
+            "contradicted": self.contradicted,
         }
 
 
@@ -770,7 +776,12 @@ def _pair(cat, a, b, temp_C: float) -> PairVerdict:
         )
         if row.get("note"):
             note += f" (table note: {row['note']})"
-        return replace(predicted, source=src, note=note)
+        at_row = predict_pair(sa, sb, t_row)
+        contradicted = (code == FULL) != (at_row.one_phase == "yes")
+        if contradicted:
+            note += (f"; at {t_row:g} C the same prediction says '{at_row.one_phase}' against the measured "
+                     f"'{_VERDICT[code]}': it is not reliable for this pair, check at the bench")
+        return replace(predicted, source=src, note=note, contradicted=contradicted)
     window = None
     rho_a, rho_b = _num(sa.density_g_cm3), _num(sb.density_g_cm3)
     if code == PARTIAL:
