@@ -17,7 +17,7 @@ from textual.widgets import Button, DataTable, Input, Label, Static
 from .base import BenchScreen
 from .widgets import CautionBox, Tick, fill_table
 
-PAIR_HEADERS = ("one phase", "basis", "chi / chi crit", "liquid a", "liquid b")
+PAIR_HEADERS = ("one phase", "basis", "chi / chi crit", "liquid a", "liquid b", "predicted by")
 BRIDGE_HEADERS = ("#", "max chi / chi crit", "with a", "with b", "mixes with both")
 
 
@@ -127,7 +127,8 @@ class MixingScreen(BenchScreen):
         if r.note:
             t.append(r.note)
         self.query_one("#mix-summary", Static).update(t)
-        rows = [(p.one_phase, p.basis, _ratio(p.chi, p.chi_critical), p.liquids[0], p.liquids[1]) for p in r.pairs]
+        rows = [(p.one_phase, p.basis, _ratio(p.chi, p.chi_critical), p.liquids[0], p.liquids[1], p.model or "-")
+                for p in r.pairs]
         fill_table(self.query_one("#mix-pairs", DataTable), PAIR_HEADERS, rows)
         blend = ""
         if r.blend is not None:
