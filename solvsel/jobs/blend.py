@@ -30,6 +30,7 @@ solvent:
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
+from functools import cached_property
 from typing import Any, Callable
 
 import numpy as np
@@ -57,6 +58,7 @@ from ..science.blends import (
     stream_candidates,
 )
 from ..science.formulation import Step
+from ..science.miscibility import PairMatrix, pair_matrix
 from ..science.hansen import SCALE, as_hsp, convert_fractions
 from ..science.target import Target, target_from_hsp
 from ._base import (build_request, catalog_or_default, check_bool, check_choice, check_int, check_names, check_number,
@@ -376,6 +378,11 @@ class _Search:
     to_describe: int = 0  # blends to describe (and check for the load) once the checks are done
     described: int = 0
 
+    @cached_property
+    def matrix(self) -> PairMatrix:
+        """The pair matrix of the pool at the request's temperature (solved, or read from the cache, once)."""
+        return pair_matrix(self.cat, list(self.pool.names), self.req.temp_C)
+
     def tell(self, step: str, done: int, total: int) -> None:
         """Report ``done`` of ``total`` of a step; the callback's False stops the search (:class:`SearchCancelled`)."""
         if self.step_progress is not None and self.step_progress(step, done, total) is False:
@@ -403,7 +410,7 @@ class _Search:
         if j not in self.phases:
             recs, xs = self.members(j)
             self.phases[j] = ((True, "single liquid", "") if len(recs) == 1 else
-                              one_phase(self.cat, [c.name for c in recs], xs, self.req.temp_C))
+                              one_phase(self.cat, [c.name for c in recs], xs, self.req.temp_C, self.matrix))
         return self.phases[j]
 
     def drop(self, j: int, reason: str) -> None:
@@ -535,7 +542,7 @@ def _search(s: _Search, lo: np.ndarray, hi: np.ndarray, progress) -> None:
     for part in stream_candidates(s.pool.hsp, s.target.hsp, min(req.max_components, m), lo, hi, req.min_fraction,
                                   progress=progress):
         if len(part):
-            screen = one_phase_screen(s.cat, s.pool.names, part.idx, part.fractions, req.temp_C)
+            screen = one_phase_screen(s.matrix, part.idx, part.fractions)
             two_phase += int(np.count_nonzero(~screen))
         best.add(part, (np.nan_to_num(_cost(s, part), nan=np.inf), part.ra) if req.sort == "cost" else None)
     s.cands = best.result()
@@ -591,7 +598,7 @@ def _check(s: _Search, sc: _Scores) -> list[tuple[int, dict | None]]:
     kept: list[tuple[int, dict | None]] = []
     # pairwise one-phase screen of the candidates at once (windows, measured pairs first; every
     # candidate's was counted in the search); the full check with its reasons runs on those listed
-    screen = one_phase_screen(s.cat, s.pool.names, c.idx, c.fractions, req.temp_C)
+    screen = one_phase_screen(s.matrix, c.idx, c.fractions)
 
     def listing() -> bool:
         return not req.shown_only and len(kept) < want and len(s.dropped) < _DROPPED_LISTED

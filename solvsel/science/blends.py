@@ -1036,28 +1036,27 @@ def pareto_layers(objectives) -> np.ndarray:
     return layer
 
 
-def one_phase_screen(cat, names, idx, fractions, temp_C: float) -> np.ndarray:
-    """Pairwise one-phase screen of many blends of the liquids ``names`` (measured pairs first,
-    the Flory-Huggins prediction otherwise; :func:`solvsel.science.miscibility.pair_matrix`):
-    True where every pair of a blend is in its one-phase window at its proportion.
+def one_phase_screen(matrix, idx, fractions) -> np.ndarray:
+    """Pairwise one-phase screen of many blends of the liquids of ``matrix`` (measured pairs first,
+    a prediction otherwise; :func:`solvsel.science.miscibility.pair_matrix` of the pool at the
+    search's temperature): True where every pair of a blend is in its one-phase window at its
+    proportion.
 
-    ``idx`` (n, 4) indexes ``names`` (-1 after a blend's last liquid), ``fractions`` (n, 4) are
-    volume fractions [-], ``temp_C`` the temperature [C].
+    ``idx`` (n, 4) indexes the matrix's ``names`` (-1 after a blend's last liquid), ``fractions``
+    (n, 4) are volume fractions [-].
     """
-    from .miscibility import pair_matrix
-
-    m = pair_matrix(cat, list(names), temp_C)
     idx = np.asarray(idx)
-    return m.screen(np.where(idx < 0, 0, idx), fractions)
+    return matrix.screen(np.where(idx < 0, 0, idx), fractions)
 
 
-def one_phase(cat, names, fractions, temp_C: float) -> tuple[bool, str, str]:
+def one_phase(cat, names, fractions, temp_C: float, matrix=None) -> tuple[bool, str, str]:
     """(one phase, basis "measured" / "predicted", reason or note) of one blend at its volume
     fractions [-] and ``temp_C`` [C] (:func:`solvsel.science.miscibility.blend_phase`: pairs, then a
-    blend of three or four liquids as a whole by the tangent-plane test)."""
+    blend of three or four liquids as a whole by the tangent-plane test); the pairs' verdicts are
+    read from ``matrix`` (the pool's pair matrix at ``temp_C``) where given."""
     from .miscibility import blend_phase
 
-    res = blend_phase(cat, list(names), [float(v) for v in fractions], temp_C)
+    res = blend_phase(cat, list(names), [float(v) for v in fractions], temp_C, matrix=matrix)
     text = res.reason if not res.one_phase else res.note
     if not res.one_phase and res.note:
         text = f"{res.reason}; {res.note}"

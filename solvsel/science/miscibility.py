@@ -51,6 +51,7 @@ from dataclasses import dataclass, replace
 from functools import lru_cache
 from itertools import combinations
 from pathlib import Path
+from typing import NamedTuple
 
 import numpy as np
 
@@ -866,7 +867,35 @@ def _limits_from_verdict(v: PairVerdict) -> tuple[float, float]:
     return float(bia or 0.0), float(aib or 0.0)
 
 
-def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0) -> BlendPhase:
+class _PairFacts(NamedTuple):
+    """What the blend checks use of a pair's verdict (:class:`PairVerdict`, or a row of a :class:`PairMatrix`)."""
+
+    one_phase: str  # "yes", "partial" or "no"
+    basis: str  # "measured" or "predicted"
+    limits: tuple[float, float]  # (max volume fraction of b in a, of a in b): :func:`_limits_from_verdict`
+    flory_huggins: bool  # Flory-Huggins' own prediction from HSP (neither measured nor UNIFAC)
+
+
+def _pair_facts(cat, recs, temp_C: float, matrix: PairMatrix | None) -> dict[tuple[int, int], _PairFacts]:
+    """The facts of every pair (i, j), i < j, of the liquid records ``recs``: read from ``matrix``
+    where given (it must hold the liquids, at ``temp_C``), else from :func:`pair`."""
+    out = {}
+    if matrix is None:
+        for i, j in combinations(range(len(recs)), 2):
+            v = pair(cat, recs[i], recs[j], temp_C)
+            out[(i, j)] = _PairFacts(v.one_phase, v.basis, _limits_from_verdict(v), v.model == FLORY_HUGGINS)
+        return out
+    if float(matrix.temp_C) != float(temp_C):
+        raise InputError(f"the pair matrix is at {matrix.temp_C:g} C, the blend at {temp_C:g} C", param="temp_C")
+    at = [matrix.index(r.name) for r in recs]
+    for i, j in combinations(range(len(recs)), 2):
+        a, b = at[i], at[j]
+        out[(i, j)] = _PairFacts(_VERDICT[int(matrix.status[a, b])], "measured" if matrix.measured[a, b] else "predicted",
+                                 (float(matrix.limit[a, b]), float(matrix.limit[b, a])), bool(matrix.hsp_model[a, b]))
+    return out
+
+
+def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0, matrix: PairMatrix | None = None) -> BlendPhase:
     """Is a blend of liquids one phase at the given volume fractions?
 
     Each pair is checked at its own proportion in the blend,
@@ -890,19 +919,35 @@ def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0) -> BlendPhas
         their volume fractions [-] (>= 0, summing to 1)
     temp_C : float
         temperature [C]
+    matrix : PairMatrix, optional
+        the pair matrix (:func:`pair_matrix`, at ``temp_C``) of a set of liquids that holds these:
+        the pairs' verdicts are read from it instead of being solved again (the same answers)
+
+    Examples
+    --------
+    Water, ethanol and propylene glycol mix in all proportions (each pair measured), and the
+    answer read from the pool's matrix is the same:
+
+    >>> from solvsel.data.catalog import load_catalog
+    >>> cat = load_catalog()
+    >>> liquids, f = ["water", "ethanol", "propylene glycol"], [0.4, 0.3, 0.3]
+    >>> bp = blend_phase(cat, liquids, f)
+    >>> bp.one_phase, bp.basis
+    (True, 'measured')
+    >>> blend_phase(cat, liquids, f, matrix=pair_matrix(cat, liquids + ["d-limonene"])) == bp
+    True
     """
     names = list(names)
     f = hansen._check_fractions(volume_fractions, "volume_fractions", len(names))
     recs = [_solvent(cat, n) for n in names]
     checks = []
-    verdicts = {}
+    verdicts = _pair_facts(cat, recs, temp_C, matrix)
     for i, j in combinations(range(len(recs)), 2):
-        v = pair(cat, recs[i], recs[j], temp_C)
-        verdicts[(i, j)] = v
+        v = verdicts[(i, j)]
         if f[i] == 0 or f[j] == 0:
             checks.append(PairCheck(recs[i].name, recs[j].name, v.one_phase, v.basis, float("nan"), True, "not both present"))
             continue
-        lim_ba, lim_ab = _limits_from_verdict(v)
+        lim_ba, lim_ab = v.limits
         ok, r = _pair_ok(f[i], f[j], lim_ba, lim_ab)
         if ok:
             reason = "miscible in all proportions" if v.one_phase == "yes" else "inside the one-phase window"
@@ -969,7 +1014,7 @@ def _whole_blend(recs, f, present, verdicts, temp_C):
     sub = [recs[k] for k in present]
     if any(getattr(r, "vm_cm3_mol", None) is None or not r.vm_cm3_mol > 0 for r in sub):
         return None
-    if any(verdicts[(a, b)].model != FLORY_HUGGINS and verdicts[(a, b)].one_phase == "partial"
+    if any(not verdicts[(a, b)].flory_huggins and verdicts[(a, b)].one_phase == "partial"
            for a, b in combinations(present, 2)):
         return None  # a solubility window that one chi cannot reproduce: the pairwise test stands
     n = len(sub)
@@ -981,7 +1026,7 @@ def _whole_blend(recs, f, present, verdicts, temp_C):
         for b in range(a + 1, n):
             c = float(hansen.chi_flory_huggins(H[a], H[b], vref, temp_C))
             v = verdicts[(present[a], present[b])]
-            if v.model != FLORY_HUGGINS:  # measured, or predicted by UNIFAC
+            if not v.flory_huggins:  # measured, or predicted by UNIFAC
                 # critical chi of the pair, rescaled from liquid a's volume to the lattice site vref
                 cc = float(hansen.chi_critical(V[a], V[b])) * vref / V[a]
                 c = min(c, 0.9 * cc) if v.one_phase == "yes" else max(c, 1.1 * cc)
@@ -1013,6 +1058,9 @@ class PairMatrix:
         solubility is not tabulated, the cautious choice)
     chi, chi_critical : ndarray of float, shape (n, n)
         Flory-Huggins chi (per molecule of the row liquid) and its critical value
+    hsp_model : ndarray of bool, shape (n, n)
+        True where the verdict is Flory-Huggins' own prediction from HSP (neither measured nor
+        predicted by UNIFAC: ``model`` of :class:`PairVerdict`)
     temp_C : float
         temperature of the screen [C]
 
@@ -1042,6 +1090,7 @@ class PairMatrix:
     limit: np.ndarray
     chi: np.ndarray
     chi_critical: np.ndarray
+    hsp_model: np.ndarray
     temp_C: float = 25.0
 
     def index(self, name: str) -> int:
@@ -1091,7 +1140,7 @@ class PairMatrix:
 
 #: Matrices of at least this many liquids are also kept on disk between runs (see :func:`pair_matrix`).
 DISK_CACHE_FROM = 30
-_MATRIX_ARRAYS = ("status", "measured", "limit", "chi", "chi_critical")
+_MATRIX_ARRAYS = ("status", "measured", "limit", "chi", "chi_critical", "hsp_model")
 
 
 def _matrix_key(cat, recs, temp_C: float) -> str:
@@ -1156,10 +1205,12 @@ def _compute_matrix(cat, recs, temp_C: float) -> PairMatrix:
     limit = np.ones((n, n))
     chi = np.zeros((n, n))
     chic = np.full((n, n), np.nan)
+    hsp_model = np.zeros((n, n), dtype=bool)
     for i, j in combinations(range(n), 2):
         v = _pair(cat, recs[i], recs[j], temp_C)
         status[i, j] = status[j, i] = v.code
         measured[i, j] = measured[j, i] = v.basis == "measured"
+        hsp_model[i, j] = hsp_model[j, i] = v.model == FLORY_HUGGINS
         lim_ba, lim_ab = _limits_from_verdict(v)
         limit[i, j], limit[j, i] = lim_ba, lim_ab
         if v.chi is not None:
@@ -1169,9 +1220,9 @@ def _compute_matrix(cat, recs, temp_C: float) -> PairMatrix:
             chic[i, j] = v.chi_critical
             chic[j, i] = v.chi_critical * recs[j].vm_cm3_mol / recs[i].vm_cm3_mol
     _save_unifac_pairs()
-    for a in (status, measured, limit, chi, chic):
+    for a in (status, measured, limit, chi, chic, hsp_model):
         a.setflags(write=False)
-    return PairMatrix(tuple(r.name for r in recs), status, measured, limit, chi, chic, temp_C)
+    return PairMatrix(tuple(r.name for r in recs), status, measured, limit, chi, chic, hsp_model, temp_C)
 
 
 @lru_cache(maxsize=32)
