@@ -529,11 +529,10 @@ def _fh_g(Y, N, chi):
 
 @functools.lru_cache(maxsize=8)
 def _simplex_grid(n: int, steps: int) -> np.ndarray:
-    """Every composition of n parts in multiples of 1/steps (rows sum to 1)."""
-    import itertools
-
-    pts = [c for c in itertools.product(range(steps + 1), repeat=n - 1) if sum(c) <= steps]
-    a = np.array(pts, dtype=float)
+    """Every composition of n parts in multiples of 1/steps (rows sum to 1), the first n - 1 parts
+    in lexicographic order."""
+    a = np.indices((steps + 1,) * (n - 1)).reshape(n - 1, -1).T
+    a = a[a.sum(axis=1) <= steps].astype(float)
     out = np.column_stack([a, steps - a.sum(axis=1)]) / steps
     out.setflags(write=False)
     return out
@@ -694,11 +693,14 @@ def _mixture_stability(vm_cm3_mol, phi, chi, tol: float) -> MixtureStability:
     iu, ju = np.triu_indices(m, 1)
     Y = _trial_compositions(m)
     D = _trial_terms(m) @ np.concatenate([1.0 / N, -mu, C[iu, ju]]) + const
-    order = _lowest(D, 200)
-    best_d, best_y = float(D[order[0]]), Y[order[0]]
+    lowest = int(np.argmin(D))
+    best_d, best_y = float(D[lowest]), Y[lowest]
     if best_d >= -tol:
         # polish, in softmax coordinates, the lowest points away from the mixture itself
-        # (next to it the distance is ~0 anyway) that come close to zero
+        # (next to it the distance is ~0 anyway) that come close to zero: of the 200 lowest
+        # points, those within POLISH_BELOW of zero (ordered among themselves alone)
+        near = np.flatnonzero(D < POLISH_BELOW)
+        order = near[_lowest(D[near], 200)]
         inv_n = 1.0 / N
 
         def f(z):
@@ -710,8 +712,7 @@ def _mixture_stability(vm_cm3_mol, phi, chi, tol: float) -> MixtureStability:
             grad_y = (lny + 1.0) * inv_n + cy - mu
             return d, y * (grad_y - y @ grad_y)  # chain rule through the softmax
 
-        away = (np.max(np.abs(Y[order] - xs), axis=1) > 0.05) & (D[order] < POLISH_BELOW)
-        far = order[away][:POLISH_STARTS]
+        far = order[np.max(np.abs(Y[order] - xs), axis=1) > 0.05][:POLISH_STARTS]
         if far.size:
             best_d, best_y = _polish(f, Y[far], best_d, best_y)
     trial = np.zeros(n)
