@@ -1021,16 +1021,14 @@ def _whole_blend(recs, f, present, verdicts, temp_C):
     H, V, _ = zip(*(_liquid_at(r, temp_C) for r in sub))
     V = np.array(V, dtype=float)
     vref = V.min()
-    chi = np.zeros((n, n))
-    for a in range(n):
-        for b in range(a + 1, n):
-            c = float(hansen.chi_flory_huggins(H[a], H[b], vref, temp_C))
-            v = verdicts[(present[a], present[b])]
-            if not v.flory_huggins:  # measured, or predicted by UNIFAC
-                # critical chi of the pair, rescaled from liquid a's volume to the lattice site vref
-                cc = float(hansen.chi_critical(V[a], V[b])) * vref / V[a]
-                c = min(c, 0.9 * cc) if v.one_phase == "yes" else max(c, 1.1 * cc)
-            chi[a, b] = chi[b, a] = c
+    H = np.array(H, dtype=float)
+    chi = hansen.chi_flory_huggins(H[:, None, :], H[None, :, :], vref, temp_C)
+    for a, b in combinations(range(n), 2):
+        v = verdicts[(present[a], present[b])]
+        if not v.flory_huggins:  # measured, or predicted by UNIFAC
+            # critical chi of the pair, rescaled from liquid a's volume to the lattice site vref
+            c, cc = float(chi[a, b]), float(hansen.chi_critical(V[a], V[b])) * vref / V[a]
+            chi[a, b] = chi[b, a] = min(c, 0.9 * cc) if v.one_phase == "yes" else max(c, 1.1 * cc)
     res = hansen.mixture_stability(V, [f[k] / sum(f[j] for j in present) for k in present], chi)
     trial = [0.0] * len(recs)
     for a, k in enumerate(present):
