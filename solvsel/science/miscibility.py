@@ -387,14 +387,15 @@ def _identity(s) -> tuple[str, float] | None:
     return cas, float(mw)
 
 
+@lru_cache(maxsize=1)
 def _binodal_grid() -> np.ndarray:
     """Mole fractions of liquid 1 where the Gibbs energy of mixing is sampled: 1e-9 to 0.5 on a log
-    scale from both ends (tiny solubilities, water in an alkane) and every 0.02 between."""
+    scale from both ends (tiny solubilities, water in an alkane) and every 0.02 between (made on
+    the first UNIFAC pair solved: a run that reads every answer from the cache never needs it)."""
     ends = np.logspace(-9.0, math.log10(0.5), 40)
-    return np.unique(np.concatenate([ends, 1.0 - ends, np.linspace(0.02, 0.98, 49)]))
-
-
-_GRID = _binodal_grid()
+    grid = np.unique(np.concatenate([ends, 1.0 - ends, np.linspace(0.02, 0.98, 49)]))
+    grid.setflags(write=False)
+    return grid
 
 
 def _widest_hull_gap(x: np.ndarray, g: np.ndarray) -> tuple[int, int] | None:
@@ -467,16 +468,16 @@ def activity_binodal(ln_gamma) -> tuple[float, float] | None:
     (x_lo, x_hi) or None
         mole fractions of liquid 1 in the phase poor in it and in the phase rich in it
     """
-    la = _ln_activities(ln_gamma, np.log(_GRID / (1.0 - _GRID)))
-    g = _GRID * la[:, 0] + (1.0 - _GRID) * la[:, 1]
-    x = _GRID
+    x = _binodal_grid()
+    la = _ln_activities(ln_gamma, np.log(x / (1.0 - x)))
+    g = x * la[:, 0] + (1.0 - x) * la[:, 1]
     chord = g[:-2] + (g[2:] - g[:-2]) * (x[1:-1] - x[:-2]) / (x[2:] - x[:-2])
     if (g[1:-1] <= chord).all():  # convex at every point of the grid: one phase (most pairs)
         return None
-    gap = _widest_hull_gap(_GRID, g)
+    gap = _widest_hull_gap(x, g)
     if gap is None:
         return None
-    first = (float(_GRID[gap[0]]), float(_GRID[gap[1]]))
+    first = (float(x[gap[0]]), float(x[gap[1]]))
     return _equal_activities(ln_gamma, *first) or first
 
 
