@@ -935,7 +935,17 @@ def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0, matrix: Pair
     >>> bp = blend_phase(cat, liquids, f)
     >>> bp.one_phase, bp.basis
     (True, 'measured')
-    >>> blend_phase(cat, liquids, f, matrix=pair_matrix(cat, liquids + ["d-limonene"])) == bp
+    >>> pool = liquids + ["d-limonene", "sunflower oil", "ethyl acetate", "triacetin"]
+    >>> m = pair_matrix(cat, pool)
+    >>> blend_phase(cat, liquids, f, matrix=m) == bp
+    True
+
+    So it is where some pairs are predicted (UNIFAC, or Flory-Huggins from HSP for the oil):
+
+    >>> blends = [(["ethanol", "sunflower oil", "ethyl acetate", "triacetin"], [0.4, 0.2, 0.2, 0.2]),
+    ...           (["water", "ethanol", "d-limonene"], [0.3, 0.6, 0.1]),
+    ...           (["sunflower oil", "d-limonene", "propylene glycol"], [0.5, 0.3, 0.2])]
+    >>> all(blend_phase(cat, n, x, matrix=m) == blend_phase(cat, n, x) for n, x in blends)
     True
     """
     names = list(names)
