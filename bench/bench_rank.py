@@ -12,6 +12,10 @@ the package is kept in a temporary folder (as an installed copy keeps it), and t
 (pair matrix, the reference library's exposure limits) is filled by a first run, as any first run
 does; the blend and the fit are also timed in an empty cache folder.  The import time of the heavy
 libraries each command loads (``python -X importtime``) shows what is left on its path.
+
+``--before DIR`` also times a checkout of an earlier version (``git worktree add DIR <commit>``, or an
+unpacked ``git archive <commit>``) in the same run, each of its cold starts right after this
+version's (a cache folder of its own), so that the two are measured at the same load.
 """
 
 from __future__ import annotations
@@ -41,9 +45,9 @@ COLD = [
     ("rank --hsp 17,3,8,8 --top 5", ["rank", "--hsp", "17,3,8,8", "--top", "5"], 0.5, "0.63-0.75 s (README 0.89 s)"),
     ("rank --solute vanillin --food", ["rank", "--solute", "vanillin", "--food"], 1.0, "0.87-1.00 s"),
     ("blend --max-components 4 (all liquids)", ["blend", "--hsp", "17.8,3.9,9.9", "--max-components", "4", "--json"],
-     0.5, "1.32-1.35 s (README 1.5 s)"),
+     0.5, "0.61-0.62 s (1.32-1.35 s two versions back)"),
     ("fit (40 liquids, bench file)", ["fit", BENCH, "--good-at-most", "2", "--json"], 0.5,
-     "0.92-1.02 s (README 1.0 s)"),
+     "0.52-0.53 s (0.92-1.02 s two versions back)"),
 ]
 #: Libraries whose import time is shown.
 HEAVY = ("numpy", "pandas", "scipy.optimize", "chemicals")
@@ -58,11 +62,12 @@ def best_of(fn, repeats):
     return min(times), statistics.median(times)
 
 
-def run_cold(argv, env) -> tuple[float, float]:
-    """Wall and processor time [s] of ``solvsel ARGV`` in a new interpreter."""
+def run_cold(argv, env, root: Path = ROOT) -> tuple[float, float]:
+    """Wall and processor time [s] of ``solvsel ARGV`` in a new interpreter (the package of the checkout
+    ``root``)."""
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     t = time.perf_counter()
-    subprocess.run([sys.executable, "-m", "solvsel", *argv], cwd=ROOT, check=True, capture_output=True, env=env)
+    subprocess.run([sys.executable, "-m", "solvsel", *argv], cwd=root, check=True, capture_output=True, env=env)
     wall = time.perf_counter() - t
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
     return wall, (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
@@ -80,20 +85,32 @@ def import_ms(argv, env) -> dict[str, float]:
     return got
 
 
-def cold_starts(repeat: int) -> None:
-    with tempfile.TemporaryDirectory() as pyc, tempfile.TemporaryDirectory() as cache:
+def cold_starts(repeat: int, earlier: Path | None = None) -> None:
+    with tempfile.TemporaryDirectory() as pyc, tempfile.TemporaryDirectory() as cache, \
+            tempfile.TemporaryDirectory() as cache_before:
         env = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
         env.update(PYTHONPYCACHEPREFIX=pyc, SOLVSEL_CACHE_DIR=cache)
+        env_before = {**env, "SOLVSEL_CACHE_DIR": cache_before}
         print(f"cold starts (new interpreter, best / median of {repeat}; load average "
               f"{', '.join(f'{x:.1f}' for x in os.getloadavg())})")
         for label, argv, goal, before in COLD:
             run_cold(argv, env)  # writes the bytecode and fills the cache folder, as a first run does
-            runs = [run_cold(argv, env) for _ in range(repeat)]
+            if earlier is not None:
+                run_cold(argv, env_before, earlier)
+            runs, runs_before = [], []
+            for _ in range(repeat):
+                runs.append(run_cold(argv, env))
+                if earlier is not None:
+                    runs_before.append(run_cold(argv, env_before, earlier))
             wall, cpu = [r[0] for r in runs], [r[1] for r in runs]
             met = "met" if min(wall) < goal else "not met"
             imports = ", ".join(f"{k} {v:.0f} ms" for k, v in import_ms(argv, env).items())
             print(f"  {label:40s}: wall {min(wall):5.2f} s / {statistics.median(wall):5.2f} s, processor "
                   f"{min(cpu):5.2f} s / {statistics.median(cpu):5.2f} s   (goal < {goal:g} s: {met}; before: {before})")
+            if runs_before:
+                wall_b = [r[0] for r in runs_before]
+                print(f"  {'':40s}  the earlier checkout, same run: wall {min(wall_b):5.2f} s / "
+                      f"{statistics.median(wall_b):5.2f} s")
             print(f"  {'':40s}  imports: {imports or 'none of ' + ', '.join(HEAVY)}")
         for label, argv, _, _ in COLD[3:]:
             walls = []
@@ -106,7 +123,11 @@ def cold_starts(repeat: int) -> None:
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__)
     ap.add_argument("--quick", action="store_true", help="fewer repeats")
+    ap.add_argument("--before", type=Path, metavar="DIR",
+                    help="a checkout of an earlier version whose cold starts are timed in the same run")
     args = ap.parse_args()
+    if args.before is not None and not (args.before / "solvsel" / "__main__.py").is_file():
+        ap.error(f"--before: {args.before} is not a checkout of solvsel")
     rep = 3 if args.quick else 15
     rng = np.random.default_rng(0)
     lo, hi = [14, 0, 0], [21, 20, 25]
@@ -125,7 +146,7 @@ def main() -> None:
     print(f"  full order, RED        : {1e3 * t_full:7.1f} ms / {1e3 * m_full:7.1f} ms   (goal < 50 ms)")
     print(f"  best 10 per target     : {1e3 * t_k:7.1f} ms / {1e3 * m_k:7.1f} ms")
     print(f"  naive broadcast+argsort: {1e3 * t_b:7.1f} ms / {1e3 * m_b:7.1f} ms   (ratio {t_b / t_full:.2f}x)")
-    cold_starts(2 if args.quick else 5)
+    cold_starts(2 if args.quick else 5, args.before)
 
 
 if __name__ == "__main__":
