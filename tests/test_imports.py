@@ -160,3 +160,34 @@ def test_the_sphere_fit_loads_exactly_its_optimisers():
     assert loaded_by(["fit", BENCH, "--good-at-most", "2", "--graded", "--json"]) == (0, fit_modules)
     assert loaded_by(["fit", BENCH, "--good-at-most", "2", "--graded", "--prior", "CCO", "--json"]) == (
         0, fit_modules | {"rdkit"})
+
+
+#: Runs ``solvsel ARGV`` after loading numpy; prints the thread counts of the OpenBLAS libraries the
+#: command loaded (numpy's excluded) and whether it left ``OPENBLAS_NUM_THREADS`` set.
+_BLAS_RUN = """
+import contextlib, io, json, os, sys
+import numpy
+from threadpoolctl import threadpool_info
+os.environ.pop("OPENBLAS_NUM_THREADS", None)
+before = {i["filepath"] for i in threadpool_info()}
+from solvsel.cli import main
+with contextlib.redirect_stdout(io.StringIO()):
+    code = main(json.loads(sys.argv[1]))
+print(json.dumps([code, [i["num_threads"] for i in threadpool_info()
+                         if i["internal_api"] == "openblas" and i["filepath"] not in before],
+                  "OPENBLAS_NUM_THREADS" in os.environ]))
+"""
+
+
+def test_the_fit_loads_the_optimisers_blas_on_one_thread():
+    """scipy's OpenBLAS, loaded by the fit, starts with one thread (its pool would only cost the cold
+    start: the fit runs its BLAS on one thread); the setting does not outlive the command."""
+    pytest.importorskip("threadpoolctl")
+    out = subprocess.run([sys.executable, "-c", _BLAS_RUN, json.dumps(["fit", BENCH, "--good-at-most", "2", "--json"])],
+                         capture_output=True, text=True, check=True, cwd=HERE.parent,
+                         env={**os.environ, "SOLVSEL_CACHE_DIR": _CACHE["dir"]})
+    code, loaded, left_set = json.loads(out.stdout.strip().splitlines()[-1])
+    assert code == 0 and not left_set
+    if not loaded:
+        pytest.skip("scipy uses numpy's BLAS library here")
+    assert set(loaded) == {1}

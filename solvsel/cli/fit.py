@@ -10,7 +10,7 @@ the UI can use it with ``--own-solutes FILE --solute NAME``.
 from __future__ import annotations
 
 from ..jobs.fit import SOLUTE_CATEGORIES
-from ._common import add_json_flag, emit_json, get_catalog, print_cautions, print_table
+from ._common import add_json_flag, blas_loads_on_one_thread, emit_json, get_catalog, print_cautions, print_table
 
 #: Request fields given by another option (or the positional file) than ``--`` + the field.
 OPTION_NAMES = {"path": "BENCH_CSV", "next_tests": "--next"}
@@ -71,13 +71,14 @@ def register(sub):
 def run(args) -> int:
     from ..jobs.fit import fit
 
-    result = fit(
-        path=args.file, good_at_most=args.good_at_most, good_at_least=args.good_at_least, partial=args.partial,
-        partial_weight=args.partial_weight, rule=args.rule, lapse=args.lapse, level=args.level,
-        next_tests=args.next_tests, food=args.food, two_spheres=args.two_spheres, graded=args.graded,
-        prior=args.prior, save_as=args.save_as,
-        into=args.into, category=args.category, catalog=get_catalog(args),
-    )
+    with blas_loads_on_one_thread():  # the optimisers' BLAS (the fit runs it on one thread)
+        result = fit(
+            path=args.file, good_at_most=args.good_at_most, good_at_least=args.good_at_least, partial=args.partial,
+            partial_weight=args.partial_weight, rule=args.rule, lapse=args.lapse, level=args.level,
+            next_tests=args.next_tests, food=args.food, two_spheres=args.two_spheres, graded=args.graded,
+            prior=args.prior, save_as=args.save_as,
+            into=args.into, category=args.category, catalog=get_catalog(args),
+        )
     if args.json:
         emit_json(result.to_dict())
         return 0
