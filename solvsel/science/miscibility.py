@@ -951,24 +951,8 @@ def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0, matrix: Pair
     names = list(names)
     f = hansen._check_fractions(volume_fractions, "volume_fractions", len(names))
     recs = [_solvent(cat, n) for n in names]
-    checks = []
     verdicts = _pair_facts(cat, recs, temp_C, matrix)
-    for i, j in combinations(range(len(recs)), 2):
-        v = verdicts[(i, j)]
-        if f[i] == 0 or f[j] == 0:
-            checks.append(PairCheck(recs[i].name, recs[j].name, v.one_phase, v.basis, float("nan"), True, "not both present"))
-            continue
-        lim_ba, lim_ab = v.limits
-        ok, r = _pair_ok(f[i], f[j], lim_ba, lim_ab)
-        if ok:
-            reason = "miscible in all proportions" if v.one_phase == "yes" else "inside the one-phase window"
-        else:
-            reason = (
-                f"{recs[j].name} is {r:.1%} of the pair by volume; one phase only up to "
-                f"{lim_ba:.2%} of {recs[j].name} in {recs[i].name} or {lim_ab:.2%} of {recs[i].name} in {recs[j].name}"
-                f" ({v.basis})"
-            )
-        checks.append(PairCheck(recs[i].name, recs[j].name, v.one_phase, v.basis, float(r), bool(ok), reason))
+    checks = _pair_checks(recs, f, verdicts)
     failing = [c for c in checks if not c.ok]
     present = [k for k in range(len(recs)) if f[k] > 0]
     basis = "measured" if all(c.basis == "measured" for c in checks) else "predicted"
@@ -990,17 +974,7 @@ def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0, matrix: Pair
                           note)
     if failing:
         reason = "; ".join(c.reason for c in failing)
-        bridging = []
-        pos = {r.name: k for k, r in enumerate(recs)}
-        for c in failing:
-            ia, ib = pos[c.a], pos[c.b]
-            for k in present:
-                if k in (ia, ib):
-                    continue
-                ka = verdicts[tuple(sorted((k, ia)))]
-                kb = verdicts[tuple(sorted((k, ib)))]
-                if ka.one_phase == "yes" and kb.one_phase == "yes":
-                    bridging.append(recs[k].name)
+        bridging = _bridging(recs, failing, present, verdicts)
         if bridging:
             note += (
                 "; " + ", ".join(sorted(set(bridging)))
@@ -1009,6 +983,46 @@ def blend_phase(cat, names, volume_fractions, temp_C: float = 25.0, matrix: Pair
     else:
         reason = "every pair is one phase at its proportion"
     return BlendPhase(tuple(r.name for r in recs), tuple(float(x) for x in f), not failing, basis, tuple(checks), reason, note)
+
+
+def _pair_checks(recs, f, verdicts) -> list[PairCheck]:
+    """Each pair of the blend (records ``recs`` at volume fractions ``f``) checked at its proportion
+    against its verdict's one-phase window (``verdicts``: :func:`_pair_facts`)."""
+    checks = []
+    for i, j in combinations(range(len(recs)), 2):
+        v = verdicts[(i, j)]
+        if f[i] == 0 or f[j] == 0:
+            checks.append(PairCheck(recs[i].name, recs[j].name, v.one_phase, v.basis, float("nan"), True, "not both present"))
+            continue
+        lim_ba, lim_ab = v.limits
+        ok, r = _pair_ok(f[i], f[j], lim_ba, lim_ab)
+        if ok:
+            reason = "miscible in all proportions" if v.one_phase == "yes" else "inside the one-phase window"
+        else:
+            reason = (
+                f"{recs[j].name} is {r:.1%} of the pair by volume; one phase only up to "
+                f"{lim_ba:.2%} of {recs[j].name} in {recs[i].name} or {lim_ab:.2%} of {recs[i].name} in {recs[j].name}"
+                f" ({v.basis})"
+            )
+        checks.append(PairCheck(recs[i].name, recs[j].name, v.one_phase, v.basis, float(r), bool(ok), reason))
+    return checks
+
+
+def _bridging(recs, failing, present, verdicts) -> list[str]:
+    """Names of the liquids present (indices ``present``) that mix in all proportions with both liquids
+    of a failing pair (:class:`PairCheck` ``failing``), once per such pair."""
+    bridging = []
+    pos = {r.name: k for k, r in enumerate(recs)}
+    for c in failing:
+        ia, ib = pos[c.a], pos[c.b]
+        for k in present:
+            if k in (ia, ib):
+                continue
+            ka = verdicts[tuple(sorted((k, ia)))]
+            kb = verdicts[tuple(sorted((k, ib)))]
+            if ka.one_phase == "yes" and kb.one_phase == "yes":
+                bridging.append(recs[k].name)
+    return bridging
 
 
 def _whole_blend(recs, f, present, verdicts, temp_C):
