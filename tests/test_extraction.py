@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-import functools
-
 import numpy as np
 import pytest
 
@@ -12,6 +10,8 @@ from solvsel.errors import InputError
 from solvsel.jobs.extraction import extraction
 from solvsel.science import extraction as ex
 from solvsel.science import hansen
+
+from _scripts import load_script
 
 
 @pytest.fixture(scope="module")
@@ -161,16 +161,8 @@ def test_a_residue_over_a_numerical_limit_is_flagged(cat):
 FLASH_BY_STRENGTH = [(96, 17), (90, 17), (80, 20), (70, 21), (60, 22), (50, 24), (40, 26), (30, 29), (20, 36), (10, 49)]
 
 
-@functools.lru_cache(maxsize=1)
 def _build_tool():
-    import importlib.util
-    from pathlib import Path
-
-    path = Path(__file__).resolve().parents[1] / "tools" / "build_solvents.py"
-    spec = importlib.util.spec_from_file_location("build_solvents", path)
-    tool = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(tool)
-    return tool
+    return load_script("tools/build_solvents.py")
 
 
 def _flash_at_strength(vol_pct: float) -> float:

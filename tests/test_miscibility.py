@@ -16,6 +16,8 @@ from solvsel.science import miscibility as M
 from solvsel.data.catalog import load_catalog
 from solvsel.errors import InputError, UnknownNameError
 
+from _scripts import load_script
+
 
 @pytest.fixture(scope="module")
 def cat():
@@ -360,14 +362,7 @@ def test_pair_matrix_is_kept_on_disk_and_read_back(cat, tmp_path, monkeypatch):
 
 @pytest.fixture(scope="module")
 def bench():
-    import importlib.util
-    from pathlib import Path
-
-    path = Path(__file__).resolve().parents[1] / "bench" / "bench_miscibility.py"
-    spec = importlib.util.spec_from_file_location("bench_miscibility", path)
-    mod = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(mod)
-    return mod
+    return load_script("bench/bench_miscibility.py")
 
 
 def test_unifac_order_is_the_one_the_measured_table_chooses(cat, bench):

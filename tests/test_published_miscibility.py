@@ -13,10 +13,11 @@ prediction alone; Flory-Huggins from HSP alone, the baseline, does not reach the
 
 from __future__ import annotations
 
-import importlib.util
 from pathlib import Path
 
 import pytest
+
+from _scripts import load_script
 
 ROOT = Path(__file__).resolve().parents[1]
 CHART = ROOT.parent / "shared" / "data" / "external" / "miscibility_chart" / "solvent_miscibility_table.csv"
@@ -38,10 +39,7 @@ GOALS = {"accuracy": 0.95, "immiscible_found": 0.85}
 
 @pytest.fixture(scope="module")
 def figures():
-    spec = importlib.util.spec_from_file_location("published_miscibility", ROOT / "bench" / "published_miscibility.py")
-    mod = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(mod)
-    return mod.miscibility_figures(CHART.parent)
+    return load_script("bench/published_miscibility.py").miscibility_figures(CHART.parent)
 
 
 def test_the_chart_as_scored(figures):

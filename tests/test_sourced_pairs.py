@@ -9,8 +9,6 @@ check) to show the rows are what the answers rest on.
 from __future__ import annotations
 
 import csv
-import importlib.util
-from pathlib import Path
 
 import pytest
 
@@ -18,7 +16,6 @@ import solvsel
 from solvsel.data.catalog import TABLES_DIR, load_catalog
 from solvsel.science import miscibility as M
 
-ROOT = Path(__file__).resolve().parents[1]
 PAIRS = list(csv.DictReader(open(TABLES_DIR / "miscibility.csv", encoding="utf-8")))
 SOURCES = {r["id"]: r for r in csv.DictReader(open(TABLES_DIR / "sources.csv", encoding="utf-8"))}
 
@@ -150,19 +147,3 @@ def test_the_blend_phase_check_reads_the_measured_oil_rows(cat):
     little = M.blend_phase(cat, ["ethanol", "olive oil"], [0.99, 0.01], 14.0)
     more = M.blend_phase(cat, ["ethanol", "olive oil"], [0.95, 0.05], 14.0)
     assert little.one_phase and not more.one_phase and more.basis == "measured"
-
-
-# ----------------------------------------------------------------------------- the recalled count
-
-#: Values ``solvsel demo`` reads from these tables that are marked from memory, after this sourcing (before it:
-#: miscibility 32, regulations 19 - the 16 ICH Q3C limits and 3 other rows).
-RECALLED_AT_MOST = {"miscibility": 28, "regulations": 7}
-
-
-def test_recalled_values_the_demo_reads_do_not_creep_up():
-    spec = importlib.util.spec_from_file_location("count_recalled", ROOT / "tools" / "count_recalled.py")
-    tool = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(tool)
-    tables = tool.demo_reads()["tables"]
-    for table, most in RECALLED_AT_MOST.items():
-        assert tables.get(table, [0, 0])[1] <= most, (table, tables.get(table))
