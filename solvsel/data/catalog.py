@@ -48,6 +48,7 @@ __all__ = [
     "MAX_USER_FILE_BYTES",
     "MAX_OWN_ROWS",
     "CsvRecords",
+    "write_cache_file",
     "read_user_text",
     "read_user_csv",
     "read_user_text_encoding",
@@ -95,6 +96,20 @@ def cache_dir() -> Path | None:
         return Path(env) if env.strip() else None
     base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
     return Path(base) / "solvsel"
+
+
+def write_cache_file(path: Path, write) -> bool:
+    """Replace the cache file ``path`` whole: ``write(tmp)`` fills a temporary file beside it (same
+    suffix), which is then renamed over it, so a reader never sees half a file.  False when the folder
+    cannot be written (read-only or full): a cache that is not kept only costs time on the next run."""
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp{path.suffix}")
+        write(tmp)
+        os.replace(tmp, path)
+    except OSError:
+        return False
+    return True
 
 
 # ----------------------------------------------------------------------------- names

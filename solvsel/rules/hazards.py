@@ -45,7 +45,6 @@ import atexit
 import hashlib
 import json
 import math
-import os
 from dataclasses import asdict, dataclass
 from functools import lru_cache
 from pathlib import Path
@@ -360,17 +359,13 @@ def _save_library_values() -> None:
     path = _library_file()
     if not _LIBRARY_NEW or path is None:
         return
-    try:
-        path.parent.mkdir(parents=True, exist_ok=True)
-        merged = _read_library_file(path)
-        for kind, values in _LIBRARY.items():
-            merged[kind].update(values)
-        tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp.json")
-        tmp.write_text(json.dumps(merged), encoding="utf-8")
-        os.replace(tmp, path)
+    from ..data.catalog import write_cache_file
+
+    merged = _read_library_file(path)
+    for kind, values in _LIBRARY.items():
+        merged[kind].update(values)
+    if write_cache_file(path, lambda tmp: tmp.write_text(json.dumps(merged), encoding="utf-8")):
         _LIBRARY_NEW.clear()
-    except OSError:  # a read-only or full cache folder only costs the time next run
-        return
 
 
 def _library_value(kind: str, cas: str, read) -> tuple:

@@ -55,7 +55,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from ..data.catalog import cache_dir
+from ..data.catalog import cache_dir, write_cache_file
 from ..data.catalog import number_or_none as _num
 from . import hansen
 from ..errors import InputError, MissingDataError, OutOfRangeError, SolvselError, UnknownNameError
@@ -604,14 +604,9 @@ def _save_unifac_pairs() -> None:
         if name == "None":
             continue
         path = Path(name)
-        try:
-            path.parent.mkdir(parents=True, exist_ok=True)
-            tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp.json")
-            tmp.write_text(json.dumps({**_read_pairs(path), **_DISK_PAIRS[name]}), encoding="utf-8")
-            os.replace(tmp, path)
+        answers = {**_read_pairs(path), **_DISK_PAIRS[name]}
+        if write_cache_file(path, lambda tmp, a=answers: tmp.write_text(json.dumps(a), encoding="utf-8")):
             _keep_newest(path.parent, "unifac_pairs_*.json")
-        except OSError:  # a read-only or full cache folder only costs the time next run
-            continue
     _DISK_PAIRS_NEW.clear()
 
 
@@ -1211,14 +1206,8 @@ def _keep_newest(folder: Path, pattern: str) -> None:
 
 
 def _matrix_to_disk(path: Path, m: PairMatrix) -> None:
-    try:
-        path.parent.mkdir(parents=True, exist_ok=True)
-        tmp = path.with_name(f"{path.stem}.{os.getpid()}.tmp.npz")
-        np.savez(tmp, **{k: getattr(m, k) for k in _MATRIX_ARRAYS})
-        os.replace(tmp, path)
+    if write_cache_file(path, lambda tmp: np.savez(tmp, **{k: getattr(m, k) for k in _MATRIX_ARRAYS})):
         _keep_newest(path.parent, "pair_matrix_*.npz")
-    except OSError:  # a read-only or full cache folder only costs the time next run
-        return
 
 
 def _compute_matrix(cat, recs, temp_C: float) -> PairMatrix:
