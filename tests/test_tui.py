@@ -29,13 +29,29 @@ def run(coro):
 
 async def _next_tab_until(pilot, screen, wanted: str):
     """Ctrl+T one tab at a time, each waited for as a person watching the screen would, until the
-    target screen's tab ``wanted`` is in front."""
+    target screen's tab ``wanted`` is in front.
+
+    The screen's first focus (given when it opens) reaches its tab as a message; on a loaded machine
+    that message can arrive after a quick Ctrl+T and bring the first tab back, as it would for a person
+    typing ahead. So the helper waits for the screen to take its focus first, and presses again when a
+    tab it opened was taken back (a person would too), up to a deadline."""
+    import time
+
     tabs = screen.query_one("#target-tabs")
     ids = [pane.id for pane in tabs.query("TabPane")]
+    await _until(pilot, lambda: pilot.app.screen is screen and screen.focused is not None)
+    await pilot.pause()
+    end = time.monotonic() + 30.0
     while tabs.active != wanted:
+        if time.monotonic() > end:
+            raise AssertionError(f"tab {wanted!r} not reached within 30 s (in front: {tabs.active!r})")
         nxt = ids[(ids.index(tabs.active) + 1) % len(ids)]
         await pilot.press("ctrl+t")
-        await _until(pilot, lambda: tabs.active == nxt)
+        try:
+            await _until(pilot, lambda: tabs.active == nxt and screen.focused is not None, seconds=5.0)
+        except AssertionError:
+            continue  # taken back by a late focus message: press again from where the screen is
+        await pilot.pause()
 
 
 def _cells(grid, row):
