@@ -324,12 +324,12 @@ _LIBRARY_NEW: list[str] = []
 @lru_cache(maxsize=1)
 def _library_key() -> str | None:
     """What the kept values depend on: the library's version and this module (None: no library)."""
-    from importlib.metadata import PackageNotFoundError, version
+    from ..data.catalog import installed_stamp
 
-    try:
-        digest = hashlib.sha256(version("chemicals").encode())
-    except PackageNotFoundError:
+    stamp = installed_stamp("chemicals")
+    if stamp is None:
         return None
+    digest = hashlib.sha256(stamp.encode())
     digest.update(Path(__file__).read_bytes())
     return digest.hexdigest()[:32]
 

@@ -555,10 +555,10 @@ _DISK_PAIRS_NEW: set[str] = set()
 @lru_cache(maxsize=1)
 def _unifac_code_key() -> str:
     """SHA-256 of what a UNIFAC answer depends on besides the pair: the code and ``thermo``'s version."""
-    from importlib.metadata import version
+    from ..data.catalog import installed_stamp
 
     here = Path(__file__).resolve().parent
-    digest = hashlib.sha256(version("thermo").encode())
+    digest = hashlib.sha256(str(installed_stamp("thermo")).encode())
     for module in ("miscibility.py", "unifac.py"):
         digest.update((here / module).read_bytes())
     return digest.hexdigest()[:32]
