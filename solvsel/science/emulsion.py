@@ -747,8 +747,9 @@ def ripening_check(components: Sequence[OilComponent], nano: bool = False) -> Ri
     reason = (f"{prone:.0%} of the oil phase ({names}) dissolves in water enough for Ostwald ripening: small droplets "
               "feed large ones through the water, the size grows and the emulsion creams or rings")
     remedy = (f"Add a ripening inhibitor: an insoluble long-chain triglyceride (e.g. a vegetable oil) or a weighting "
-              f"agent such as ester gum or SAIB in the oil phase; published work needed {lo:.0%} to {hi:.0%} of the oil "
-              f"phase, depending on the emulsifier (the oil phase has {inhib:.0%})")
+              f"agent such as glycerol ester of wood rosin (E 445) or sucrose acetate isobutyrate (E 444) in the oil "
+              f"phase; published work needed {lo:.0%} to {hi:.0%} of the oil phase, depending on the emulsifier (the "
+              f"oil phase has {inhib:.0%})")
     warn = inhib < hi or nano
     if nano:
         reason += "; nanoemulsions are far more sensitive to ripening"
