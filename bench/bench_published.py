@@ -33,6 +33,8 @@ Figures:
    the structure estimate; and, to show what a sphere can do at all on these data, the in-sample
    (resubstitution) accuracy of the good/bad sphere fitted to all liquids; beside them, the accuracy
    of calling the top third without a fit (solute-blind ranking, -Ra to the structure estimate);
+   and why the good/bad fit stays under 0.80: its leave-one-out and in-sample accuracy by how many
+   liquids each solute was measured in, and the share of liquids within 0.1 decade of their cut;
 4. miscibility, when ``bench/published_miscibility.py`` is there (``miscibility_figures()``).
 """
 
@@ -284,15 +286,50 @@ def sphere_solute(kind: str, s, g, L) -> dict:
 
 
 @lru_cache(maxsize=None)
+def _sphere_rows(split: str | None, kind: str, limit: int | None = None) -> tuple:
+    return tuple(sphere_solute(kind, s, g, L) for s, g, L, _, _ in list(_groups(split))[:limit])
+
+
+@lru_cache(maxsize=None)
 def spheres(split: str | None, kind: str, limit: int | None = None) -> dict:
     """Pooled leave-one-out accuracy and the rest for a kind of fit ("binary", "graded", "graded_prior")."""
-    rows = [sphere_solute(kind, s, g, L) for s, g, L, _, _ in list(_groups(split))[:limit]]
+    rows = _sphere_rows(split, kind, limit)
     n = sum(r["n"] for r in rows)
     agree = [r["prior_agrees"] for r in rows if r["prior_agrees"] is not None]
     return {"solutes": len(rows), "loo": sum(r["hits"] for r in rows) / n, "insample": sum(r["insample"] for r in rows) / n,
             "majority": sum(r["bad"] for r in rows) / n, "at_bound": sum(r["at_bound"] for r in rows),
             "ra_to_estimate": statistics.median(r["ra_to_estimate"] for r in rows),
             "prior_agrees": f"{sum(agree)} of {len(agree)}" if agree else ""}
+
+
+#: Bins of liquids measured per solute for :func:`sphere_by_size`.
+SIZE_BINS = ((0, 12), (12, 20), (20, 10**6))
+
+
+def sphere_by_size(split: str | None, kind: str = "binary", limit: int | None = None) -> list[dict]:
+    """Why the sphere's leave-one-out accuracy stays under 0.80: pooled by how many liquids each solute was
+    measured in (leave-one-out rises and in-sample falls as the liquids outnumber the fit's four numbers)."""
+    rows = _sphere_rows(split, kind, limit)
+    out = []
+    for lo, hi in SIZE_BINS:
+        sel = [r for r in rows if lo <= r["n"] < hi]
+        n = sum(r["n"] for r in sel)
+        if n:
+            out.append({"liquids": (lo, hi), "solutes": len(sel), "n": n, "loo": sum(r["hits"] for r in sel) / n,
+                        "insample": sum(r["insample"] for r in sel) / n, "majority": sum(r["bad"] for r in sel) / n})
+    return out
+
+
+def near_the_cut(split: str | None, within: float = 0.1) -> float:
+    """Share of the liquids whose measured log10 x lies within ``within`` decades of their solute's top-third
+    cut: the liquids a sphere must place right on a difference of under 26 % in solubility."""
+    near = total = 0
+    for _, g, _, _, _ in _groups(split):
+        y = g["log10_x"].to_numpy()
+        _, cut = top_third(y)
+        near += int(np.sum(np.abs(y - cut) < within))
+        total += len(y)
+    return near / total
 
 
 @lru_cache(maxsize=None)
@@ -419,6 +456,13 @@ def report(split: str | None, quick: bool) -> None:
                "at bound": f"{f['at_bound']} of {f['solutes']}", "Ra to estimate": f"{f['ra_to_estimate']:.1f}",
                **({"prior agrees": f["prior_agrees"]} if f["prior_agrees"] else {}),
                "s": f"{time.perf_counter() - t0:.0f}"})
+    for b in sphere_by_size(split, "binary", limit):
+        lo, hi = b["liquids"]
+        span = f"{lo}-{hi - 1}" if hi < 10**6 else f"{lo} or more"
+        _line(f"  good/bad fit, solutes measured in {span} liquids",
+              {"solutes": str(b["solutes"]), "LOO": f"{b['loo']:.3f}", "in-sample": f"{b['insample']:.3f}",
+               "majority": f"{b['majority']:.3f}"})
+    _line("  liquids within 0.1 decade of their solute's top-third cut", {"": f"{near_the_cut(split):.3f}"})
 
 
 def miscibility() -> None:
