@@ -206,13 +206,29 @@ def make_axes(bounds: tuple[float, float, float, float], cols: int, rows: int, e
 
 
 def axis_ticks(lo: float, hi: float, cells: int) -> list[float]:
-    """Round values between ``lo`` and ``hi``, about one every 8 cells."""
+    """Round values between ``lo`` and ``hi``, about one every 8 cells, and at least two where the range
+    has room for them (a short axis would otherwise show a single label, which gives no scale).
+
+    >>> axis_ticks(1.2, 3.5, 16)   # one label (2) at the round step of 2: the step halves
+    [2.0, 3.0]
+    >>> axis_ticks(0, 40, 80)
+    [0, 5, 10, 15, 20, 25, 30, 35, 40]
+    """
+    def ticks(step: float) -> list[float]:
+        v = math.ceil(lo / step) * step
+        out = []
+        while v <= hi + 1e-9:
+            out.append(round(v, 10))
+            v += step
+        return out
+
     step = _nice_step((hi - lo) / max(2, cells // 8))
-    v = math.ceil(lo / step) * step
-    out = []
-    while v <= hi + 1e-9:
-        out.append(round(v, 10))
-        v += step
+    out = ticks(step)
+    for _ in range(3):
+        if len(out) >= 2 or not hi > lo:
+            break
+        step = _nice_step(step / 2.5)  # the next smaller round step (10 -> 5 -> 2 -> 1)
+        out = ticks(step)
     return out
 
 
@@ -331,13 +347,19 @@ class BrailleMap(Widget, can_focus=True):
                          self.STYLES["target" if named[0].kind == "target" else "name"])
         return cv
 
+    @staticmethod
+    def y_tick_values(ax: Axes) -> list[float]:
+        """The values labelled on the y axis: from one dot above the bottom edge (a value on the edge
+        itself falls below the last row), at least two where the axis has room."""
+        return axis_ticks(ax.y0 + 1.0 / ax.ys, ax.y1, ax.rows * 2)
+
     def render(self) -> Text:
         d, ax = self.data, self.axes()
         if d is None or ax is None:
             return Text("(no map)")
         cv = self._draw(d, ax)
         self._left = self.LEFT
-        y_ticks = {ax.cell(ax.x0, v)[0]: f"{v:g}" for v in axis_ticks(ax.y0, ax.y1, ax.rows * 2)}
+        y_ticks = {ax.cell(ax.x0, v)[0]: f"{v:g}" for v in self.y_tick_values(ax)}
         out = Text(no_wrap=True)
         for r in range(ax.rows):
             out.append(f"{y_ticks.get(r, ''):>{self.LEFT - 1}}" + ("┤" if r in y_ticks else "│"), style=self.STYLES["axis"])
