@@ -115,3 +115,41 @@ def test_json_contract(capsys, monkeypatch, argv, top, inner):
         assert {"name", "cas", "volume_fraction", "mass_fraction"} <= set(doc["results"][0]["components"][0])
     if argv[0] == "miscible":
         assert doc["one_phase"] in ("yes", "no", "partial") and doc["basis"] in ("measured", "predicted")
+
+
+def test_the_installed_command_exits_with_mains_code_and_freezes_the_collector_only_there(monkeypatch, capsys):
+    # `solvsel` (pyproject's script) and `python -m solvsel` run cli.console: main's exit code, the
+    # collector frozen just before the process ends; main(argv) itself leaves the collector alone
+    import gc
+    import sys
+    import tomllib
+    from pathlib import Path
+
+    from solvsel.cli import console
+
+    project = tomllib.loads((Path(__file__).resolve().parent.parent / "pyproject.toml").read_text("utf-8"))
+    assert project["project"]["scripts"]["solvsel"] == "solvsel.cli:console"
+    gc.unfreeze()
+    before = gc.get_freeze_count()
+    assert main(["rank", "--hsp", "17,3"]) == 2 and gc.get_freeze_count() == before == 0
+    for argv, code in ((["solvsel", "rank", "--hsp", "17,3,8,8", "--top", "1"], 0),
+                       (["solvsel", "rank", "--hsp", "17,3"], 2)):
+        monkeypatch.setattr(sys, "argv", argv)
+        try:
+            with pytest.raises(SystemExit) as end:
+                console()
+            assert end.value.code == code
+            assert gc.get_freeze_count() > 0
+        finally:
+            gc.unfreeze()
+    assert "Ra" in capsys.readouterr().out
+
+
+def test_installed_stamp_names_the_installed_version_without_importing():
+    # the cache keys' name of an installed package: its dist-info folder (pip's layout), None when absent
+    import importlib.metadata as md
+
+    from solvsel.data.catalog import installed_stamp
+
+    assert f"numpy-{md.version('numpy')}.dist-info" in installed_stamp("numpy")
+    assert installed_stamp("no_such_package_of_this_name") is None

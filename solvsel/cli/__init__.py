@@ -192,7 +192,7 @@ def console() -> None:
 
     Before leaving, the objects the command made are moved out of the garbage collector's sight
     (:func:`gc.freeze`): the interpreter would otherwise walk them all once more on its way out, about
-    50 ms after the answer is printed (a third of a ranking's whole run).  Only here, where the process
+    50 ms after the answer is printed (a quarter of a ranking's whole run).  Only here, where the process
     ends next; :func:`main` called from a program leaves its collector alone."""
     import gc
 

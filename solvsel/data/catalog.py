@@ -114,7 +114,7 @@ def write_cache_file(path: Path, write) -> bool:
 
 def installed_stamp(package: str) -> str | None:
     """What names the installed version of ``package`` (its ``dist-info`` folder, e.g.
-    ``thermo-0.4.2.dist-info``, else its ``__init__.py``'s size and time), found without importing the
+    ``name-1.2.3.dist-info``, else its ``__init__.py``'s size and time), found without importing the
     package or ``importlib.metadata`` (which costs about 25 ms of a command's start).  None when the
     package is not installed.  Cache keys use it: a new version of the package makes new cache files."""
     from importlib.util import find_spec
