@@ -40,6 +40,9 @@ import numpy as np
 
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+
+from _cold import cold_env, import_ms  # noqa: E402
 
 from solvsel.science.blends import (  # noqa: E402
     best_fractions, combinations_array, exact_candidates, search_blends)
@@ -148,8 +151,7 @@ def search_figures(quick: bool):
          unit="ns")
 
 
-#: Compiled bytecode kept in a folder of the benchmark's own, as an installed package keeps it (an
-#: environment that sets PYTHONDONTWRITEBYTECODE would otherwise compile solvsel at every start).
+#: Compiled bytecode kept in a folder of the benchmark's own (see ``_cold``).
 _PYC = tempfile.mkdtemp(prefix="solvsel-bench-pyc-")
 atexit.register(shutil.rmtree, _PYC, True)
 
@@ -158,27 +160,13 @@ def cold(argv, repeat=3, env=None):
     """Best wall time of ``solvsel ARGV`` in a new interpreter (process start to answer) [s], after one
     untimed run that writes the bytecode (and fills the cache folder), as any first run does."""
     best = np.inf
-    base = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
-    base["PYTHONPYCACHEPREFIX"] = _PYC
     for i in range(repeat + 1):
         t0 = time.perf_counter()
         subprocess.run([sys.executable, "-m", "solvsel", *argv], cwd=ROOT, check=True, capture_output=True,
-                       env={**base, **(env or {})})
+                       env=cold_env(_PYC, **(env or {})))
         if i:
             best = min(best, time.perf_counter() - t0)
     return best
-
-
-def import_ms(argv, modules=("pandas", "scipy.optimize", "chemicals")):
-    """Cumulative import time [ms] of each of ``modules`` in ``solvsel ARGV`` (``python -X importtime``)."""
-    out = subprocess.run([sys.executable, "-X", "importtime", "-m", "solvsel", *argv], cwd=ROOT, check=True,
-                         capture_output=True, text=True).stderr
-    got = {}
-    for row in out.splitlines():
-        parts = row.split("|")
-        if len(parts) == 3 and parts[2].strip() in modules:
-            got[parts[2].strip()] = int(parts[1]) / 1000.0
-    return got
 
 
 def command_figures(quick: bool):
@@ -188,7 +176,7 @@ def command_figures(quick: bool):
     t = cold(argv, repeat)
     t_nocache = cold(argv, repeat, env={"SOLVSEL_CACHE_DIR": ""})
     t1 = cold(["blend", "--hsp", "17.8,3.9,9.9", "--max-components", "1", "--json"], repeat)
-    imports = ", ".join(f"{k} {v:.0f} ms" for k, v in import_ms(argv).items())
+    imports = ", ".join(f"{k} {v:.0f} ms" for k, v in import_ms(argv, ("pandas", "scipy.optimize", "chemicals"), cold_env(_PYC)).items())
     line("blend --max-components 4, all liquids (cold start)", t, 0.5,
          f"without the cached pair matrix {t_nocache:.2f} s; the same command with 1 liquid {t1:.2f} s "
          f"(start, tables, pool); imports: {imports}; before: 2.1 s (3.0-3.5 s the version before)")

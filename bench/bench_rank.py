@@ -34,6 +34,9 @@ import numpy as np
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+
+from _cold import cold_env, import_ms  # noqa: E402
 
 from solvsel.science import hansen  # noqa: E402
 
@@ -73,23 +76,10 @@ def run_cold(argv, env, root: Path = ROOT) -> tuple[float, float]:
     return wall, (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
 
 
-def import_ms(argv, env) -> dict[str, float]:
-    """Cumulative import time [ms] of each library of :data:`HEAVY` that ``solvsel ARGV`` loads."""
-    err = subprocess.run([sys.executable, "-X", "importtime", "-m", "solvsel", *argv], cwd=ROOT, check=True,
-                         capture_output=True, text=True, env=env).stderr
-    got = {}
-    for row in err.splitlines():
-        parts = row.split("|")
-        if len(parts) == 3 and parts[2].strip() in HEAVY:
-            got[parts[2].strip()] = int(parts[1]) / 1000.0
-    return got
-
-
 def cold_starts(repeat: int, earlier: Path | None = None) -> None:
     with tempfile.TemporaryDirectory() as pyc, tempfile.TemporaryDirectory() as cache, \
             tempfile.TemporaryDirectory() as cache_before:
-        env = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
-        env.update(PYTHONPYCACHEPREFIX=pyc, SOLVSEL_CACHE_DIR=cache)
+        env = cold_env(pyc, SOLVSEL_CACHE_DIR=cache)
         env_before = {**env, "SOLVSEL_CACHE_DIR": cache_before}
         print(f"cold starts (new interpreter, best / median of {repeat}; load average "
               f"{', '.join(f'{x:.1f}' for x in os.getloadavg())})")
@@ -104,7 +94,7 @@ def cold_starts(repeat: int, earlier: Path | None = None) -> None:
                     runs_before.append(run_cold(argv, env_before, earlier))
             wall, cpu = [r[0] for r in runs], [r[1] for r in runs]
             met = "met" if min(wall) < goal else "not met"
-            imports = ", ".join(f"{k} {v:.0f} ms" for k, v in import_ms(argv, env).items())
+            imports = ", ".join(f"{k} {v:.0f} ms" for k, v in import_ms(argv, HEAVY, env).items())
             print(f"  {label:40s}: wall {min(wall):5.2f} s / {statistics.median(wall):5.2f} s, processor "
                   f"{min(cpu):5.2f} s / {statistics.median(cpu):5.2f} s   (goal < {goal:g} s: {met}; before: {before})")
             if runs_before:
